@@ -1,0 +1,5 @@
+"""``python -m gasbench`` runs the same command line as the ``gasbench`` script."""
+
+from gasbench.cli import main
+
+raise SystemExit(main())

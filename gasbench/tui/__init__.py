@@ -1,0 +1,1 @@
+"""The Textual app (screens, widgets, one stylesheet). No physics here."""

@@ -1,0 +1,106 @@
+"""Command-line contract: JSON keys, one-line errors with exit status 2, fast --help."""
+
+import json
+import subprocess
+import sys
+
+import pytest
+
+from gasbench.cli import main
+
+
+def run(capsys, *argv):
+    try:
+        code = main(list(argv))
+    except SystemExit as exc:  # argparse usage errors
+        code = exc.code
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def test_contents_json_keys(capsys):
+    code, out, _ = run(capsys, "contents", "--gas", "nitrogen", "--volume", "50 L", "--pressure", "200 bar",
+                       "--temperature", "15 degC", "--json")
+    assert code == 0
+    d = json.loads(out)
+    for key in ("mass_kg", "free_volume_m3", "density_kg_m3", "z", "pressure_abs_pa", "temperature_k",
+                "reference_temperature_k", "reference_pressure_pa", "ideal_free_volume_m3", "liquefied"):
+        assert key in d
+    assert d["pressure_abs_pa"] == pytest.approx(200e5 + 101325)
+    assert d["reference_temperature_k"] == pytest.approx(288.15)
+    assert d["liquefied"] is False
+
+
+def test_contents_liquefied_json_and_human(capsys):
+    args = ["contents", "--gas", "co2", "--volume", "50 L", "--pressure", "57 bar", "--temperature", "20 degC"]
+    code, out, _ = run(capsys, *args, "--json")
+    d = json.loads(out)
+    assert code == 0 and d["liquefied"] is True and d["mass_kg"] is None
+    code, out, err = run(capsys, *args)
+    assert code == 2 and "weigh" in err
+    code, out, _ = run(capsys, "contents", "--gas", "co2", "--gross", "75 kg", "--tare", "68.5 kg", "--json")
+    assert json.loads(out)["mass_kg"] == pytest.approx(6.5)
+
+
+def test_human_output_marks_gauge_and_absolute(capsys):
+    code, out, _ = run(capsys, "contents", "--gas", "n2", "--volume", "50 L", "--pressure", "200 bar",
+                       "--temperature", "15 degC")
+    assert code == 0 and "bar(g)" in out and "bar(a)" in out and "15 °C, 101.325 kPa" in out
+
+
+def test_heat_json(capsys):
+    code, out, _ = run(capsys, "heat", "--gas", "n2", "--pressure", "200 bar", "--temperature", "15 degC",
+                       "--to", "50 degC", "--service", "200 bar", "--test", "300 bar", "--json")
+    d = json.loads(out)
+    assert code == 0 and d["pressure_gauge_pa"] == pytest.approx(d["pressure_abs_pa"] - 101325)
+    assert d["warnings"]
+
+
+def test_runtime_json(capsys):
+    code, out, _ = run(capsys, "runtime", "--gas", "n2", "--volume", "50 L", "--pressure", "180 bar",
+                       "--temperature", "20 degC", "--reserve", "10 bar", "--flow", "2 slpm", "--flow", "500 sccm",
+                       "--json")
+    d = json.loads(out)
+    assert code == 0
+    assert d["draw_kg_s"] == pytest.approx(sum(d["draws_kg_s"]))
+    assert d["hours_to_reserve"] == pytest.approx(d["usable_mass_kg"] / d["draw_kg_s"] / 3600)
+
+
+@pytest.mark.parametrize(
+    "argv, fragment",
+    [
+        (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "200", "--temperature", "15 degC"], "no unit"),
+        (["contents", "--gas", "kryptonite", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "15 degC"],
+         "unknown gas"),
+        (["contents", "--gas", "n2", "--volume", "-50 L", "--pressure", "2 bar", "--temperature", "15 degC"],
+         "greater than zero"),
+        (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "nan bar", "--temperature", "15 degC"],
+         "finite"),
+        (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "-250 degC"],
+         "outside the equation of state"),
+        (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "15 degC",
+          "--reference", "25C"], "unknown reference"),
+        (["runtime", "--gas", "n2", "--volume", "50 L", "--pressure", "5 bar", "--temperature", "15 degC",
+          "--reserve", "10 bar", "--flow", "1 slpm"], "reserve"),
+        (["runtime", "--gas", "n2"], "required"),
+        (["heat", "--gas", "n2", "--pressure", "2 bar", "--temperature", "15 degC", "--to", "hot"], "not a number"),
+        (["nosuchcommand"], "invalid choice"),
+    ],
+)
+def test_bad_input_one_line_exit_2(capsys, argv, fragment):
+    code, out, err = run(capsys, *argv)
+    assert code == 2
+    assert fragment in err
+    assert err.count("\n") == 1 and "Traceback" not in err and out == ""
+
+
+def test_help_does_not_import_coolprop():
+    code = (
+        "import sys, runpy; sys.argv=['gasbench','--help']\n"
+        "try:\n    runpy.run_module('gasbench', run_name='__main__')\nexcept SystemExit: pass\n"
+        "assert 'CoolProp' not in sys.modules, 'CoolProp imported by --help'\n"
+        "assert 'textual' not in sys.modules\n"
+    )
+    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    assert r.returncode == 0, r.stderr
+    assert "contents" in r.stdout

@@ -1,0 +1,163 @@
+"""Unit parsing and reference conditions.
+
+Sources beside each check; exact factors come from the unit definitions (NIST SP 811).
+"""
+
+import math
+
+import pytest
+
+from gasbench.errors import InputError
+from gasbench.units import (
+    ATM_PA,
+    REFERENCES,
+    ambient_from_altitude,
+    get_reference,
+    parse_duration,
+    parse_flow,
+    parse_length,
+    parse_pressure,
+    parse_temperature,
+    parse_volume,
+)
+
+R = 8.314462618  # CODATA 2018, exact
+
+
+def test_exact_unit_factors():
+    # NIST SP 811 Appendix B: 1 psi = 6.894 757 E+03 Pa; 1 atm = 101 325 Pa (exact).
+    assert parse_pressure("1 psia").abs_pa == pytest.approx(6894.757, abs=1e-3)
+    assert parse_pressure("1 atm").abs_pa == 101325.0
+    assert parse_pressure("1 bar(a)").abs_pa == 1e5
+    assert parse_pressure("760 Torr").abs_pa == pytest.approx(101325.0)
+
+
+@pytest.mark.parametrize(
+    "text, abs_pa, kind",
+    [
+        ("200 bar", 200e5 + ATM_PA, "gauge"),
+        ("200 barg", 200e5 + ATM_PA, "gauge"),
+        ("200 bar(g)", 200e5 + ATM_PA, "gauge"),
+        ("3000 psi", 3000 * 6894.757293168361 + ATM_PA, "gauge"),
+        ("3000 psig", 3000 * 6894.757293168361 + ATM_PA, "gauge"),
+        ("2.5 MPa", 2.5e6 + ATM_PA, "gauge"),
+        ("150 kPa", 150e3 + ATM_PA, "gauge"),
+        ("150 bar(a)", 150e5, "absolute"),
+        ("150 bara", 150e5, "absolute"),
+        ("14.7 psia", 14.7 * 6894.757293168361, "absolute"),
+        ("95 kPa(a)", 95e3, "absolute"),
+        ("500 mbar(a)", 500e2, "absolute"),
+        ("-0.5 bar", ATM_PA - 0.5e5, "gauge"),
+    ],
+)
+def test_gauge_unless_marked_absolute(text, abs_pa, kind):
+    p = parse_pressure(text)
+    assert p.abs_pa == pytest.approx(abs_pa)
+    assert p.typed_as == kind
+
+
+def test_ambient_is_settable():
+    assert parse_pressure("1 bar", ambient_pa=90e3).abs_pa == pytest.approx(190e3)
+
+
+def test_iso_2533_standard_atmosphere():
+    # ISO 2533:1975 table (from memory): 0 m 101 325 Pa, 1000 m 89 875 Pa, 2000 m 79 495 Pa.
+    assert ambient_from_altitude(0) == pytest.approx(101325, abs=1)
+    assert ambient_from_altitude(1000) == pytest.approx(89875, abs=5)
+    assert ambient_from_altitude(2000) == pytest.approx(79495, abs=10)
+
+
+@pytest.mark.parametrize(
+    "text, kelvin",
+    [("15 degC", 288.15), ("70 degF", 294.2611111), ("293.15 K", 293.15), ("-40 degF", 233.15), ("20 C", 293.15)],
+)
+def test_temperatures(text, kelvin):
+    assert parse_temperature(text) == pytest.approx(kelvin)
+
+
+def test_volumes_durations_lengths():
+    assert parse_volume("50 L") == pytest.approx(0.05)
+    # 1 ft = 0.3048 m exactly (international foot).
+    assert parse_volume("1.5 ft3") == pytest.approx(1.5 * 0.3048**3)
+    assert parse_duration("12 h") == 43200
+    assert parse_duration("30 min") == 1800
+    assert parse_length("0.5 in") == pytest.approx(0.0127)
+
+
+@pytest.mark.parametrize(
+    "text, std_m3_s, ref",
+    [
+        ("2 slpm", 2e-3 / 60, "0C"),
+        ("500 sccm", 500e-6 / 60, "0C"),
+        ("40 scfh", 40 * 0.3048**3 / 3600, "70F"),
+        ("3 Nm3/h", 3 / 3600, "0C"),
+        ("3 Nm³/h", 3 / 3600, "0C"),
+    ],
+)
+def test_standard_flows_carry_their_reference(text, std_m3_s, ref):
+    f = parse_flow(text)
+    assert f.kind == "standard"
+    assert f.value == pytest.approx(std_m3_s)
+    assert f.reference.key == ref
+
+
+def test_flow_reference_override_applies_to_sccm_not_nm3():
+    assert parse_flow("100 sccm", reference="20C").reference.key == "20C"
+    assert parse_flow("1 Nm3/h", reference="20C").reference.key == "0C"
+
+
+def test_mass_and_actual_flows():
+    assert parse_flow("6 g/min").kind == "mass"
+    assert parse_flow("6 g/min").value == pytest.approx(1e-4)
+    f = parse_flow("60 m3/h")
+    assert f.kind == "actual" and f.value == pytest.approx(60 / 3600)
+
+
+@pytest.mark.parametrize(
+    "key, molar_volume_l",
+    [
+        # DIN 1343 / CODATA 2018: molar volume of the ideal gas at 273.15 K, 101.325 kPa.
+        ("0C", 22.413969),
+        # ISO 13443: 15 °C, 101.325 kPa; V_m = R·T/p = 23.6446 L/mol.
+        ("15C", 23.6446),
+        ("20C", 24.0549),
+        # 70 °F, 14.696 psia: 386.8 ft³/lb-mol (US gas industry molar volume, from memory;
+        # 379.5 ft³/lb-mol at 60 °F scaled by 529.67/519.67) = 24.147 L/mol.
+        ("70F", 386.8 * 0.3048**3 / 0.45359237),
+    ],
+)
+def test_reference_conditions_molar_volume(key, molar_volume_l):
+    ref = REFERENCES[key]
+    assert R * ref.temperature_k / ref.pressure_pa * 1000 == pytest.approx(molar_volume_l, rel=2e-4)
+
+
+@pytest.mark.parametrize(
+    "bad",
+    ["200", "", "abc bar", "nan bar", "inf psi", "200 furlong", "1 atm(g)", "-2 bar", "5 kPa(x)"],
+)
+def test_bad_pressures_are_input_errors(bad):
+    with pytest.raises(InputError):
+        parse_pressure(bad)
+
+
+@pytest.mark.parametrize("bad", ["20", "20 parsec", "-300 degC", "nan degC"])
+def test_bad_temperatures(bad):
+    with pytest.raises(InputError):
+        parse_temperature(bad)
+
+
+@pytest.mark.parametrize("bad", ["2", "-1 slpm", "2 bar", "2 kg", "nan sccm"])
+def test_bad_flows(bad):
+    with pytest.raises(InputError):
+        parse_flow(bad)
+
+
+def test_unknown_reference():
+    with pytest.raises(InputError, match="allowed"):
+        get_reference("25C")
+
+
+def test_errors_are_also_value_errors():
+    with pytest.raises(ValueError):
+        parse_volume("50")
+    assert not math.isnan(parse_volume("0.5 m3"))
