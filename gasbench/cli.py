@@ -225,6 +225,152 @@ def cmd_runtime(args: argparse.Namespace) -> int:
     return 0
 
 
+# ----------------------------------------------------------------------------- plan
+
+
+def plan_json(plan: Any) -> dict[str, Any]:
+    """The plan as a JSON-ready dict (SI numbers, unit in the key name)."""
+    from dataclasses import asdict
+
+    d = asdict(plan)
+    for sp_ in d["supplies"]:
+        sp_["hours_band_low"], sp_["hours_band_high"] = sp_.pop("hours_band")
+    return d
+
+
+def cmd_plan(args: argparse.Namespace) -> int:
+    from gasbench.plan import build_plan
+    from gasbench.profile import load_profile
+
+    plan = build_plan(load_profile(args.profile))
+    if args.json:
+        emit_json(plan_json(plan))
+        return 0
+    print(format_plan(plan))
+    return 0
+
+
+def format_plan(plan: Any) -> str:
+    """Human-readable plan (aligned text, (g)/(a) marks)."""
+    from gasbench.plan import SEVERITY_MARK
+    from gasbench.units import fmt_hours, fmt_pressure
+
+    amb = plan.ambient_pa
+    g_ = lambda x: fmt_pressure(x, amb)  # noqa: E731
+    out = [f"Plan: {plan.bench_name}",
+           f"  session {fmt_hours(plan.session_hours)} from {plan.start[11:16]}; ambient "
+           f"{fmt_pressure(amb, kind='absolute')}, {plan.temperature_k - 273.15:.1f} °C; "
+           + ("fits" if plan.fits else "DOES NOT FIT"), "", "Supplies"]
+    for s in plan.supplies:
+        band = f" (gauge band {fmt_hours(s.hours_band[0])} – {fmt_hours(s.hours_band[1])})" if s.hours_band[0] != s.hours_band[1] else ""
+        out += [f"  {s.id}: {s.gas_name}" + (" (liquefied; by weight)" if s.liquefied else ""),
+                f"    now {g_(s.pressure_abs_pa)}, {s.temperature_k - 273.15:.1f} °C; reserve {g_(s.reserve_abs_pa)}",
+                f"    contents {s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}; usable {s.usable_mass_kg:.3f} kg",
+                f"    draw {s.draw_kg_s * 6e4:.3f} g/min; to reserve {fmt_hours(s.hours_to_reserve)}{band}"
+                + (f", at {s.reserve_at[11:16]}" if s.reserve_at else "")]
+        if s.shots_to_reserve:
+            out.append(f"    shots to reserve {s.shots_to_reserve:,.0f}")
+        if s.cost_per_hour is not None:
+            out.append(f"    gas cost {s.cost_per_hour:.2f} {s.currency}/h")
+    out += ["", "Regulators"]
+    for r in plan.regulators:
+        out.append(f"  {r.id} on {r.supply_id} ({r.stages}-stage): outlet {g_(r.set_point_abs_pa)} → "
+                   f"{g_(r.outlet_at_reserve_abs_pa)} at reserve; gas leaves at {r.outlet_temperature_k - 273.15:.1f} °C")
+    out += ["", "Draws"]
+    for d in plan.draws:
+        out.append(f"  {d.id} ({d.kind}, {d.regulator_id}): {d.how} = {d.standard_flow_slpm:.3f} slpm at 0 °C, 1 atm"
+                   + ("" if d.vents_to_room else "; not vented to the room"))
+        if d.gap:
+            out.append(f"    fires at ≈ {d.gap.breakdown_start_kv:.1f} kV → {d.gap.breakdown_reserve_kv:.1f} kV at reserve "
+                       f"[{d.gap.method}]")
+            for m0, m1 in zip(d.gap.margins_start, d.gap.margins_reserve, strict=True):
+                out.append(f"    {m0.part}: withstands ≈ {m0.withstand_kv:.1f} kV, margin {m0.margin_kv:+.1f} → "
+                           f"{m1.margin_kv:+.1f} kV ({m1.status})")
+    if plan.room:
+        rm_ = plan.room
+        out += ["", "Room",
+                f"  {rm_.volume_m3:g} m³, ventilation {rm_.ventilation_m3_s * 3600:.0f} m³/h ({rm_.ventilation_kind})",
+                f"  all of {rm_.release_supply_id} released: {rm_.release.o2_percent_after_release:.1f} % O2 "
+                f"({rm_.release.method}); well mixed {rm_.release_mixed.o2_percent_after_release:.1f} %"]
+        if rm_.leak:
+            out.append(f"  vented draws {rm_.vented_m3_s * 6e4:.2f} L/min: steady {rm_.leak.o2_percent_steady:.2f} % O2")
+        out += [f"  {n}" for n in rm_.notes]
+    out += ["", "Findings"]
+    if not plan.findings:
+        out.append("  none")
+    for f in plan.findings:
+        out.append(f"  {SEVERITY_MARK[f.severity]:<12} {f.subject}: {f.text} [{f.figure}]")
+    out += ["", "Estimates only: follow local codes, the gas supplier's safety data sheet and your lab's procedures."]
+    return "\n".join(out)
+
+
+def cmd_throttle(args: argparse.Namespace) -> int:
+    from dataclasses import asdict
+
+    from gasbench.regulator import throttle
+    from gasbench.units import parse_pressure, parse_temperature
+
+    gas = _gas(args)
+    amb = _ambient(args)
+    p_in = parse_pressure(args.inlet, amb, "inlet pressure").abs_pa
+    p_out = parse_pressure(args.outlet, amb, "outlet pressure").abs_pa
+    t = throttle(gas, p_in, p_out, parse_temperature(args.temperature))
+    if args.json:
+        emit_json(asdict(t))
+        return 0
+    emit_table("Regulator outlet (isenthalpic)", [
+        ("gas", t.gas_name), ("inlet", f"{_bar(p_in, amb)} at {t.inlet_temperature_k - 273.15:.1f} °C"),
+        ("outlet", _bar(p_out, amb)),
+        ("outlet temperature", f"{t.outlet_temperature_k - 273.15:.1f} °C ({t.temperature_change_k:+.1f} K)"),
+        ("solid forms", "yes" if t.solid_forms else "no"), ("liquid forms", "yes" if t.liquid_forms else "no"),
+        ("method", t.method)], t.notes)
+    return 0
+
+
+def cmd_gap(args: argparse.Namespace) -> int:
+    from dataclasses import asdict
+
+    from gasbench.gap import breakdown
+    from gasbench.units import parse_length, parse_pressure, parse_temperature
+
+    gas = _gas(args)
+    amb = _ambient(args)
+    p = parse_pressure(args.pressure, amb, "gap pressure").abs_pa
+    b = breakdown(gas, parse_length(args.spacing, "gap spacing"), p, parse_temperature(args.temperature))
+    if args.json:
+        emit_json(asdict(b))
+        return 0
+    emit_table("Spark gap self-breakdown (estimate)", [
+        ("gas", b.gas_name), ("spacing", f"{b.spacing_m * 1000:g} mm"), ("pressure", _bar(p, amb)),
+        ("p·d at 20 °C", f"{b.pd_bar_cm_20c:.4g} bar·cm"), ("breakdown", f"{b.breakdown_kv:.2f} kV"),
+        ("method", b.method), ("valid for", b.validity)],
+        ["real gaps differ (electrode shape, surface, pulse rise time): treat as an estimate"])
+    return 0
+
+
+def cmd_orifice(args: argparse.Namespace) -> int:
+    from dataclasses import asdict
+
+    from gasbench.flow import orifice_flow
+    from gasbench.units import parse_length, parse_pressure, parse_temperature
+
+    gas = _gas(args)
+    amb = _ambient(args)
+    up = parse_pressure(args.upstream, amb, "upstream pressure").abs_pa
+    down = parse_pressure(args.downstream, amb, "downstream pressure").abs_pa
+    o = orifice_flow(gas, parse_length(args.diameter, "orifice diameter"), up, down,
+                     parse_temperature(args.temperature), args.cd)
+    if args.json:
+        emit_json(asdict(o))
+        return 0
+    emit_table("Orifice flow", [
+        ("gas", gas.name), ("upstream", _bar(up, amb)), ("downstream", _bar(down, amb)),
+        ("flow", f"{o.mass_flow_kg_s * 6e4:.4g} g/min = {o.standard_flow_slpm:.4g} slpm at 0 °C, 101.325 kPa"),
+        ("regime", f"{'choked' if o.choked else 'subcritical'} (critical ratio {o.critical_ratio:.3f}, k = {o.k:.3f})"),
+        ("method", o.method)])
+    return 0
+
+
 # ----------------------------------------------------------------------------- parser
 
 
@@ -280,6 +426,39 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _add_more_commands(sub: Any) -> None:
     """Sub-commands of the plan, hold-test, room, checklist and journal layers."""
+    p = sub.add_parser("plan", help="session plan of a bench profile: run time, regulators, gaps, findings")
+    p.add_argument("profile", help="bench profile (TOML)")
+    _add_json(p)
+    p.set_defaults(func=cmd_plan)
+
+    p = sub.add_parser("throttle", help="regulator outlet temperature (isenthalpic expansion)")
+    p.add_argument("--gas", required=True)
+    p.add_argument("--inlet", required=True, help="inlet pressure, e.g. '150 bar'")
+    p.add_argument("--outlet", required=True, help="outlet pressure, e.g. '3 bar'")
+    p.add_argument("--temperature", required=True, help="inlet temperature, e.g. '20 degC'")
+    _add_ambient(p)
+    _add_json(p)
+    p.set_defaults(func=cmd_throttle)
+
+    p = sub.add_parser("gap", help="estimated self-breakdown (firing) voltage of a spark gap")
+    p.add_argument("--gas", required=True)
+    p.add_argument("--spacing", required=True, help="electrode spacing, e.g. '2 mm'")
+    p.add_argument("--pressure", required=True, help="gap pressure, e.g. '3 bar' (gauge) or '400 Torr'")
+    p.add_argument("--temperature", default="20 degC", help="gas temperature (default 20 degC)")
+    _add_ambient(p)
+    _add_json(p)
+    p.set_defaults(func=cmd_gap)
+
+    p = sub.add_parser("orifice", help="flow through a bleed orifice or needle valve bore")
+    p.add_argument("--gas", required=True)
+    p.add_argument("--diameter", required=True, help="bore, e.g. '0.2 mm'")
+    p.add_argument("--upstream", required=True, help="upstream pressure, e.g. '2 bar'")
+    p.add_argument("--downstream", required=True, help="downstream pressure, e.g. '50 mbar(a)' or '0 bar'")
+    p.add_argument("--temperature", required=True)
+    p.add_argument("--cd", type=float, default=0.62, help="discharge coefficient (default 0.62)")
+    _add_ambient(p)
+    _add_json(p)
+    p.set_defaults(func=cmd_orifice)
 
 
 def main(argv: Sequence[str] | None = None) -> int:

@@ -156,9 +156,16 @@ class Pressure:
     abs_pa: float
     typed_as: PressureKind
     text: str
+    typed_pa: float = math.nan  # the value as typed (gauge or absolute), in Pa
 
     def gauge_pa(self, ambient_pa: float = ATM_PA) -> float:
-        return self.abs_pa - ambient_pa
+        return self.abs_at(ambient_pa) - ambient_pa
+
+    def abs_at(self, ambient_pa: float) -> float:
+        """Absolute pressure [Pa] with another ambient pressure (matters for gauge readings)."""
+        if self.typed_as == "absolute":
+            return self.abs_pa
+        return self.typed_pa + ambient_pa
 
 
 def _pressure_unit(unit: str) -> tuple[float, PressureKind | None, str]:
@@ -206,7 +213,7 @@ def parse_pressure(text: str, ambient_pa: float = ATM_PA, what: str = "pressure"
             f"{what} {text!r} is below vacuum (absolute {abs_pa / 1e5:.4g} bar(a)); "
             "a gauge reading cannot be lower than minus the ambient pressure"
         )
-    return Pressure(abs_pa, kind, text.strip())
+    return Pressure(abs_pa, kind, text.strip(), pa)
 
 
 def pressure_abs(text: str | float, ambient_pa: float = ATM_PA, what: str = "pressure") -> float:
@@ -266,6 +273,8 @@ def _pint_quantity(value: float, unit: str, text: str, what: str) -> pint.Quanti
 
     u = re.sub(r"(?<=[a-zA-Z])([23])\b", r"**\1", unit.strip())
     u = u.replace("³", "**3").replace("²", "**2").replace("µ", "u")
+    if u.startswith("/"):
+        u = "1" + u
     try:
         return Q_(value, u)
     except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
@@ -285,7 +294,8 @@ def _parse_dim(text: str, what: str, target: str, examples: str) -> float:
         raise InputError(f"{what} {text!r} is not a {target_names.get(target, target)}; e.g. {examples}") from None
 
 
-target_names = {"m**3": "volume", "s": "duration", "m": "length", "kg": "mass", "m**3/s": "volume flow"}
+target_names = {"m**3": "volume", "s": "duration", "m": "length", "kg": "mass", "m**3/s": "volume flow",
+                "Hz": "frequency", "V": "voltage"}
 
 
 def parse_volume(text: str, what: str = "volume") -> float:
@@ -324,6 +334,24 @@ def parse_mass(text: str, what: str = "mass") -> float:
     0.45359237
     """
     return _parse_dim(text, what, "kg", '"45.2 kg"')
+
+
+def parse_frequency(text: str, what: str = "repetition rate") -> float:
+    """Parse a repetition rate (``10 Hz``, ``600 /min``) into Hz.
+
+    >>> parse_frequency("600 /min")
+    10.0
+    """
+    return _parse_dim(text, what, "Hz", '"10 Hz"')
+
+
+def parse_voltage(text: str, what: str = "voltage") -> float:
+    """Parse a voltage (``25 kV``) into volts.
+
+    >>> parse_voltage("25 kV")
+    25000.0
+    """
+    return _parse_dim(text, what, "V", '"25 kV"')
 
 
 # --------------------------------------------------------------------------------------

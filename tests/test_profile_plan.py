@@ -1,0 +1,144 @@
+"""Bench profiles (validation, errors with file, line and key) and the session plan."""
+
+import json
+import math
+from pathlib import Path
+
+import pytest
+
+from gasbench import gas as g
+from gasbench.cli import main
+from gasbench.errors import ProfileError
+from gasbench.plan import _SupplyModel, build_plan
+from gasbench.profile import demo_profile_text, load_profile, parse_profile
+
+ROOT = Path(__file__).resolve().parents[1]
+PROFILES = sorted((ROOT / "profiles").glob("*.toml"))
+
+
+def test_shipped_profiles_load_and_demo_is_bundled():
+    assert len(PROFILES) >= 2
+    for p in PROFILES:
+        load_profile(p)
+    assert demo_profile_text() == (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
+
+
+@pytest.mark.parametrize("path", PROFILES, ids=lambda p: p.name)
+def test_plan_mass_balance(path):
+    # Mass at start − draw × time to reserve = mass at the reserve pressure, and the projected
+    # pressure at the reserve time equals the reserve pressure.
+    prof = load_profile(path)
+    plan = build_plan(prof)
+    for sp in plan.supplies:
+        s = prof.supply(sp.id)
+        model = _SupplyModel(s.gas, s.water_volume, sp.temperature_k,
+                             max(sp.pressure_abs_pa, s.service_pressure.abs_at(plan.ambient_pa)) * 1.02, plan.ambient_pa)
+        m_end = sp.mass_kg - sp.draw_kg_s * sp.hours_to_reserve * 3600
+        p_end = float(model.pressures([m_end])[0])
+        if not sp.liquefied:
+            assert p_end == pytest.approx(sp.reserve_abs_pa, rel=1e-4)
+            # and the table agrees with a direct CoolProp density at the reserve (bounded error)
+            assert m_end == pytest.approx(g.density(s.gas, sp.temperature_k, sp.reserve_abs_pa) * s.water_volume, rel=1e-4)
+        assert sp.usable_mass_kg == pytest.approx(sp.draw_kg_s * sp.hours_to_reserve * 3600)
+        assert len(sp.projection_pressure_abs_pa) == 200
+
+
+def test_plan_agrees_with_runtime_command(capsys):
+    prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
+    plan = build_plan(prof)
+    sp = plan.supplies[0]
+    main(["runtime", "--gas", "nitrogen", "--volume", "50 L", "--pressure", "64 bar",
+          "--temperature", "21 degC", "--reserve", "15 bar", "--flow", f"{sp.draw_kg_s * 60000} g/min",
+          "--ambient", f"{plan.ambient_pa} Pa", "--json"])
+    d = json.loads(capsys.readouterr().out)
+    assert d["hours_to_reserve"] == pytest.approx(sp.hours_to_reserve, rel=2e-4)
+
+
+def test_plan_json_has_supplies_and_findings(capsys):
+    code = main(["plan", str(ROOT / "profiles" / "premix-switch-bench.toml"), "--json"])
+    d = json.loads(capsys.readouterr().out)
+    assert code == 0
+    assert all("hours_to_reserve" in s for s in d["supplies"])
+    assert "findings" in d and all({"severity", "text", "figure"} <= set(f) for f in d["findings"])
+
+
+def test_liquefied_supply_uses_weight():
+    plan = build_plan(load_profile(ROOT / "profiles" / "premix-switch-bench.toml"))
+    sf6 = next(s for s in plan.supplies if s.id == "sf6")
+    assert sf6.liquefied and sf6.mass_kg == pytest.approx(27.9 - 18.4)
+    # projected pressure stays at the vapour pressure while liquid remains
+    assert sf6.projection_pressure_abs_pa[0] == pytest.approx(sf6.projection_pressure_abs_pa[-1])
+
+
+def test_findings_ranked_and_demo_findings_present():
+    plan = build_plan(load_profile(ROOT / "profiles" / "demo-teaching-bench.toml"))
+    ranks = [("stop", "warning", "attention", "info").index(f.severity) for f in plan.findings]
+    assert ranks == sorted(ranks)
+    codes = {f.code for f in plan.findings}
+    assert "room-release" in codes and "flashover" in codes
+
+
+def test_outlet_drift_and_gap_voltage_follow_the_supply():
+    plan = build_plan(load_profile(ROOT / "profiles" / "demo-teaching-bench.toml"))
+    reg = next(r for r in plan.regulators if r.id == "reg-channel")
+    sp = plan.supplies[0]
+    outl = sp.projection_outlets_abs_pa["reg-channel"]
+    assert outl[-1] > outl[0]  # single-stage outlet rises as the cylinder empties
+    assert reg.outlet_at_reserve_abs_pa > reg.set_point_abs_pa
+    kv = sp.projection_gap_kv["gap-main"]
+    assert kv[-1] > kv[0]
+
+
+BASE = demo_profile_text()
+
+
+def _bad(replace_from: str, replace_to: str) -> str:
+    assert replace_from in BASE
+    return BASE.replace(replace_from, replace_to, 1)
+
+
+@pytest.mark.parametrize(
+    "text, fragment",
+    [
+        (_bad('water_volume = "50 L"', 'water_volume = "50 L"\nwater_colour = "blue"'), "unknown key"),
+        (_bad('regulator = "reg-channel"', 'regulator = "reg-missing"'), "does not exist"),
+        (_bad('set_point = "3 bar"', 'set_point = "12 bar"'), "outside the outlet range"),
+        (_bad('spacing = "1.4 mm"', 'spacing = "0 mm"'), "greater than zero"),
+        (_bad('reserve = "15 bar"', 'reserve = "80 bar"'), "reserve"),
+        (_bad('reading = "64 bar"', 'reading = "400 bar"'), "test pressure"),
+        (_bad('water_volume = "50 L"', 'water_volume = "50"'), "no unit"),
+        (_bad('gas = "nitrogen"', 'gas = "nitrogenium"'), "unknown gas"),
+        (_bad('water_volume = "50 L"', 'water_volume = 50'), "string"),
+        ("[bench\nname=1", "not valid TOML"),
+    ],
+)
+def test_bad_profiles_name_file_line_and_key(text, fragment):
+    with pytest.raises(ProfileError) as exc:
+        parse_profile(text, "bench.toml")
+    msg = str(exc.value)
+    assert fragment in msg and msg.startswith("bench.toml")
+    assert "\n" not in msg
+
+
+def test_error_line_points_at_the_key():
+    text = _bad('set_point = "1.2 bar"', 'set_point = "1.2 bar"\nsetpoint = "1 bar"')
+    with pytest.raises(ProfileError) as exc:
+        parse_profile(text, "b.toml")
+    line = int(str(exc.value).split(":")[1])
+    assert text.splitlines()[line - 1].startswith("setpoint")
+    assert "regulators[1].setpoint" in str(exc.value)
+
+
+def test_bad_profile_on_command_line_exits_2(tmp_path, capsys):
+    p = tmp_path / "b.toml"
+    p.write_text(_bad('regulator = "reg-channel"', 'regulator = "nope"'))
+    assert main(["plan", str(p)]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "b.toml" in err
+    assert main(["plan", str(tmp_path / "missing.toml")]) == 2
+
+
+def test_altitude_sets_ambient():
+    prof = parse_profile(BASE)
+    assert prof.ambient_pa == pytest.approx(101325 * (1 - 2.25577e-5 * 120) ** 5.25588)
+    assert not math.isnan(prof.ambient_pa)
