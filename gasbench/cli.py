@@ -371,6 +371,186 @@ def cmd_orifice(args: argparse.Namespace) -> int:
     return 0
 
 
+def cmd_room(args: argparse.Namespace) -> int:
+    from dataclasses import asdict
+
+    from gasbench import room as rm
+    from gasbench.gas import density
+    from gasbench.units import fmt_hours, parse_temperature, parse_volume
+
+    gas = _gas(args)
+    amb = _ambient(args)
+    T = parse_temperature(args.temperature, "room temperature")
+    V = parse_volume(args.room_volume, "room volume")
+    if V <= 0:
+        raise _input(f"room volume {args.room_volume!r} must be greater than zero")
+    Q = rm.parse_ventilation(args.ventilation, V) if args.ventilation else 0.0
+    notes = [rm.stratification_note(gas)]
+    if args.release:
+        from gasbench.errors import InputError
+        from gasbench.units import parse_mass
+
+        try:
+            vg = parse_mass(args.release, "release") / density(gas, T, amb)
+        except InputError:
+            vg = parse_volume(args.release, "release (a volume or a mass)")
+        r = rm.release(V, vg, args.model, args.oxygen)
+        hz = rm.gas_hazards(gas, r.o2_percent_after_release, args.oxygen)
+        if args.json:
+            emit_json(asdict(r) | {"gas": gas.name, "hazards": [asdict(h) for h in hz], "stratification": notes[0]})
+            return 0
+        emit_table("Room oxygen after a sudden release", [
+            ("gas", gas.name), ("room", f"{V:g} m³"), ("released", f"{vg:.3f} m³ at room conditions"),
+            ("oxygen after", f"{r.o2_percent_after_release:.2f} %"), ("effect", r.effect or "none expected (≥ 19.5 %)"),
+            ("model", r.method)], list(r.notes) + [h.text for h in hz] + notes + [_CAUTION])
+        return 0
+    if args.ventilation and Q == 0 and args.ventilation_kind == "exhaust":
+        raise _input(f"ventilation {args.ventilation!r} is zero: leave out --ventilation for an unventilated room")
+    R = rm.leak_volume_flow(gas, args.leak, T, amb)
+    lk = rm.leak_o2(V, R, Q, args.ventilation_kind, args.oxygen)
+    hz = rm.gas_hazards(gas, lk.o2_percent_steady, args.oxygen)
+    if args.json:
+        emit_json(asdict(lk) | {"gas": gas.name, "model": lk.method, "hazards": [asdict(h) for h in hz],
+                                "stratification": notes[0]})
+        return 0
+    mins = lambda m: fmt_hours(m / 60.0)  # noqa: E731
+    emit_table("Room oxygen with a continuous leak", [
+        ("gas", gas.name), ("room", f"{V:g} m³"), ("leak", f"{R * 6e4:.3f} L/min at room conditions"),
+        ("ventilation", f"{Q * 3600:.1f} m³/h ({args.ventilation_kind})" if Q else "none"),
+        ("steady oxygen", f"{lk.o2_percent_steady:.2f} %"), ("to 19.5 %", mins(lk.minutes_to_19_5)),
+        ("to 18 %", mins(lk.minutes_to_18)), ("recovery to 19.5 %", mins(lk.minutes_to_recover)),
+        ("effect", lk.effect or "none expected (≥ 19.5 %)"), ("model", lk.method)],
+        [h.text for h in hz] + notes + [_CAUTION])
+    return 0
+
+
+def cmd_hold(args: argparse.Namespace) -> int:
+    from dataclasses import asdict
+
+    from gasbench import hold as hd
+    from gasbench.units import (
+        fmt_hours,
+        parse_duration,
+        parse_flow,
+        parse_length,
+        parse_pressure,
+        parse_temperature,
+        parse_volume,
+    )
+
+    gas = _gas(args)
+    amb = _ambient(args)
+    if args.volume:
+        V = parse_volume(args.volume, "held volume")
+    elif args.line_length and args.bore:
+        V = hd.line_volume(parse_length(args.line_length, "line length"), parse_length(args.bore, "bore"))
+    else:
+        raise _input("give the held --volume, or --line-length and --bore of the line")
+    if V <= 0:
+        raise _input(f"held volume {args.volume!r} must be greater than zero")
+    gauge = None
+    if (args.gauge_range is None) != (args.gauge_class is None):
+        raise _input("--gauge-range and --gauge-class go together")
+    if args.gauge_range:
+        if not (0 < args.gauge_class <= 5):
+            raise _input(f"gauge class {args.gauge_class:g} must be between 0 and 5 (EN 837-1 classes 0.1 to 4)")
+        span = parse_pressure(args.gauge_range, amb, "gauge range").gauge_pa(amb)
+        if span <= 0:
+            raise _input(f"gauge range {args.gauge_range!r} must be above zero")
+        res = parse_pressure(args.resolution, 0.0, "resolution").abs_pa if args.resolution else None
+        gauge = hd.GaugeSpec(span, args.gauge_class, res)
+    from gasbench.units import Q_
+
+    u_T = float(Q_(*_num_unit(args.t_uncertainty)).to("K").magnitude) if args.t_uncertainty else 0.5
+    target = None
+    if args.target:
+        f = parse_flow(args.target, what="target leak rate")
+        from gasbench.supply import mass_flow
+
+        target = hd.sccm_from_kg_s(gas, mass_flow(gas, f))
+    reserve = parse_pressure(args.reserve, amb, "reserve").abs_pa if args.reserve else None
+    fit = None
+    if args.log:
+        from pathlib import Path
+
+        try:
+            text = Path(args.log).read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError) as exc:
+            raise _input(f"cannot read log {args.log}: {exc}") from None
+        T_def = parse_temperature(args.t_start) if args.t_start else 293.15
+        fit = hd.hold_from_log(gas, V, hd.parse_log(text, args.pressure_unit, amb), gauge, T_def, u_T, target,
+                               reserve, amb)
+        r = fit.result
+    else:
+        if not (args.start and args.end and args.duration):
+            raise _input("give --start, --end and --duration (or --log FILE.csv)")
+        r = hd.hold_two_readings(
+            gas, V, parse_pressure(args.start, amb, "start pressure").abs_pa,
+            parse_pressure(args.end, amb, "end pressure").abs_pa, parse_duration(args.duration, "hold duration"),
+            parse_temperature(args.t_start, "start temperature") if args.t_start else None,
+            parse_temperature(args.t_end, "end temperature") if args.t_end else None,
+            gauge, u_T, target, reserve, amb)
+    if args.json:
+        d = asdict(r)
+        if fit is not None:
+            d |= {"log_rows": fit.n, "slope_se_kg_s": fit.slope_se_kg_s, "residual_rms_kg": fit.residual_rms_kg,
+                  "residual_max_kg": fit.residual_max_kg, "residual_rms_pa": fit.residual_rms_pa,
+                  "curvature_significant": fit.curvature_significant}
+        emit_json(d | {"guidance": list(hd.GUIDANCE)})
+        return 0
+    words = {"leak": "LEAK: the mass loss is larger than its uncertainty",
+             "no-leak-resolved": f"no leak above {r.leak_rate_sccm + r.smallest_resolvable_sccm:.3g} sccm "
+                                 f"(smallest this test resolves: {r.smallest_resolvable_sccm:.3g} sccm)",
+             "inconclusive": "INCONCLUSIVE: this gauge cannot tell; hold longer or use a finer gauge"}
+    rows = [("gas", gas.name), ("volume", f"{V * 1000:.4g} L"),
+            ("start", f"{_bar(r.start_abs_pa, amb)} at {r.start_temperature_k - 273.15:.1f} °C"),
+            ("end", f"{_bar(r.end_abs_pa, amb)} at {r.end_temperature_k - 273.15:.1f} °C"),
+            ("hold", fmt_hours(r.duration_s / 3600)),
+            ("mass loss", f"{r.mass_loss_kg * 1000:.3f} ± {r.mass_loss_uncertainty_kg * 1000:.3f} g (1σ)"),
+            ("leak rate", f"{r.leak_rate_sccm:.4g} ± {r.leak_rate_uncertainty_sccm:.3g} sccm (0 °C, 101.325 kPa; 1σ)"),
+            ("", f"{r.leak_rate_pa_m3_s:.3g} Pa·m³/s = {r.leak_rate_mbar_l_s:.3g} mbar·L/s"),
+            ("", f"{r.kg_per_day * 1000:.3g} g/day = {r.percent_per_day:.3g} % of contents/day = "
+                 f"{r.pressure_fall_per_day_pa / 1e5:.3g} bar/day at constant temperature"),
+            ("verdict", words[r.verdict]),
+            ("target", f"{r.target_sccm:.3g} sccm; hold needed to resolve it ≈ {fmt_hours(r.hold_needed_h)}"),
+            ("to empty at this rate", fmt_hours(r.hours_to_empty) if r.leak_rate_kg_s > 0 else "—")]
+    if r.hours_to_reserve is not None:
+        rows.append(("to reserve at this rate", fmt_hours(r.hours_to_reserve)))
+    if fit is not None:
+        rows.append(("log fit", f"{fit.n} rows; residual rms {fit.residual_rms_pa / 1e5:.3g} bar, "
+                                f"max {fit.residual_max_kg * 1000:.3g} g"))
+    rows.append(("method", r.method))
+    emit_table("Hold test", rows, list(r.notes) + list(hd.GUIDANCE[-2:]))
+    if fit is not None and sys.stdout.isatty():
+        _terminal_plot(fit)
+    return 0
+
+
+def _num_unit(text: str) -> tuple[float, str]:
+    from gasbench.units import _split
+
+    v, u = _split(text, "temperature uncertainty")
+    if u.strip().lower() in ("c", "degc", "°c", "k"):
+        u = "K"
+    return v, u or "K"
+
+
+def _terminal_plot(fit: Any) -> None:
+    import plotext as plt
+
+    hours = [t / 3600 for t in fit.t_s]
+    plt.clear_figure()
+    plt.plot_size(80, 18)
+    plt.scatter(hours, [m * 1000 for m in fit.mass_kg], label="held mass (g)")
+    plt.plot(hours, [m * 1000 for m in fit.fit_kg], label="least-squares fit")
+    plt.xlabel("hours")
+    plt.show()
+
+
+_CAUTION = ("estimate only: use a fixed oxygen monitor with alarm where gas can accumulate; follow local codes "
+            "and the gas supplier's safety data sheet")
+
+
 # ----------------------------------------------------------------------------- parser
 
 
@@ -459,6 +639,44 @@ def _add_more_commands(sub: Any) -> None:
     _add_ambient(p)
     _add_json(p)
     p.set_defaults(func=cmd_orifice)
+
+    p = sub.add_parser("hold", help="leak rate from an idle pressure drop (hold test)")
+    p.add_argument("--gas", required=True)
+    p.add_argument("--volume", help="held volume: cylinder water volume or trapped line volume, e.g. '50 L'")
+    p.add_argument("--line-length", help="or compute the line volume: tube length, e.g. '3 m'")
+    p.add_argument("--bore", help="... and inner diameter, e.g. '4 mm'")
+    p.add_argument("--start", help="gauge reading at the start, e.g. '152 bar'")
+    p.add_argument("--end", help="gauge reading at the end, e.g. '150 bar'")
+    p.add_argument("--duration", help="hold time, e.g. '14 h'")
+    p.add_argument("--t-start", help="temperature at the start, e.g. '21 degC'")
+    p.add_argument("--t-end", help="temperature at the end, e.g. '17 degC'")
+    p.add_argument("--t-uncertainty", default="0.5 K", help="standard uncertainty of each temperature (default 0.5 K)")
+    p.add_argument("--gauge-range", help="gauge full scale, e.g. '250 bar'")
+    p.add_argument("--gauge-class", type=float, help="gauge accuracy class (EN 837-1), e.g. 1.6")
+    p.add_argument("--resolution", help="smallest reading step, e.g. '1 bar' (default: one class error)")
+    p.add_argument("--target", help="leak rate that matters, e.g. '10 sccm' (default 1 %% of contents per day)")
+    p.add_argument("--reserve", help="reserve pressure, for time to reserve at this leak")
+    p.add_argument("--log", metavar="FILE.csv", help="logged series instead of two readings")
+    p.add_argument("--pressure-unit", help="pressure unit of the log if not in its header, e.g. 'bar' or 'psia'")
+    _add_ambient(p)
+    _add_json(p)
+    p.set_defaults(func=cmd_hold)
+
+    p = sub.add_parser("room", help="room oxygen after a release or during a leak")
+    p.add_argument("--gas", required=True)
+    p.add_argument("--room-volume", required=True, help="room volume, e.g. '40 m3'")
+    g1 = p.add_mutually_exclusive_group(required=True)
+    g1.add_argument("--release", help="sudden release: free-gas volume at room conditions ('9 m3') or a mass ('11 kg')")
+    g1.add_argument("--leak", help="continuous leak or vented draw: '5 slpm', '2 L/min', '3 g/min'")
+    p.add_argument("--ventilation", help="air changes per hour ('2/h') or a flow ('60 m3/h')")
+    p.add_argument("--ventilation-kind", choices=["exhaust", "supply"], default="exhaust")
+    p.add_argument("--model", choices=["displacement", "mixed", "sealed"], default="displacement",
+                   help="release model (default displacement, the most conservative)")
+    p.add_argument("--temperature", default="20 degC", help="room temperature (default 20 degC)")
+    p.add_argument("--oxygen", type=float, default=20.95, help="initial oxygen, %% (default 20.95)")
+    _add_ambient(p)
+    _add_json(p)
+    p.set_defaults(func=cmd_room)
 
 
 def main(argv: Sequence[str] | None = None) -> int:

@@ -128,3 +128,29 @@ def test_effects_and_stratification():
 def test_bad_room_input(call):
     with pytest.raises(InputError):
         call()
+
+
+def test_room_cli_json_keys_and_errors(capsys):
+    import json
+
+    from gasbench.cli import main
+
+    assert main(["room", "--gas", "n2", "--room-volume", "30 m3", "--release", "9 m3", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["model"] == "displacement" and "o2_percent_after_release" in d
+    assert main(["room", "--gas", "argon", "--room-volume", "30 m3", "--leak", "20 slpm", "--ventilation", "2/h",
+                 "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert {"o2_percent_steady", "minutes_to_19_5", "model"} <= set(d)
+    for argv, frag in [
+        (["--room-volume", "0 m3", "--release", "1 m3"], "greater than zero"),
+        (["--room-volume", "-3 m3", "--release", "1 m3"], "greater than zero"),
+        (["--room-volume", "30 m3", "--leak", "1 slpm", "--ventilation", "0/h"], "zero"),
+    ]:
+        assert main(["room", "--gas", "n2", *argv]) == 2
+        err = capsys.readouterr().err
+        assert frag in err and err.count("\n") == 1
+    # a release larger than the room with the displacement model: 0 % and why, not a crash
+    assert main(["room", "--gas", "n2", "--room-volume", "5 m3", "--release", "9 m3", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["o2_percent_after_release"] == 0.0 and d["notes"]

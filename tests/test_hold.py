@@ -1,0 +1,175 @@
+"""Hold tests against hand calculations, exact unit factors and synthetic logs.
+
+Method: the pressure-change (pressure-decay) method of EN 13184 and ASTM E2930; uncertainty per
+the GUM (JCGM 100:2008) with EN 837-1 accuracy classes.
+"""
+
+import math
+
+import numpy as np
+import pytest
+
+from gasbench import gas as g
+from gasbench import hold as h
+from gasbench.cli import main
+from gasbench.errors import InputError
+
+N2 = g.parse_gas("nitrogen")
+AMB = 101325.0
+
+
+def test_worked_example_ideal_gas_temperature_compensated():
+    # EN 13184 pressure-change method, ideal gas at low pressure, by hand:
+    # m = p·V·M/(R·T). 20 L at 3.000 bar(a), 22 °C → 2.950 bar(a), 19 °C over 20 h.
+    V, p1, T1, p2, T2, t = 0.020, 3.000e5, 295.15, 2.950e5, 292.15, 20 * 3600
+    M, R = N2.molar_mass, 8.314462618
+    dm = V * M / R * (p1 / T1 - p2 / T2)
+    r = h.hold_two_readings(N2, V, p1, p2, t, T1, T2)
+    # real gas at 3 bar differs from ideal by Z − 1 ≈ −6e-4 on each mass: well within 2 %
+    assert r.mass_loss_kg == pytest.approx(dm, rel=0.02)
+
+
+def test_exact_leak_unit_factors():
+    # 1 mbar·L/s = 0.1 Pa·m³/s (exact: 100 Pa × 1e-3 m³); 1 sccm at 0 °C, 101.325 kPa is
+    # 101325 Pa × 1e-6 m³ / 60 s = 1.68875e-3 Pa·m³/s (so 1 Pa·m³/s = 592.2 sccm).
+    r = h.hold_two_readings(N2, 0.01, 5e5, 4.9e5, 3600, 293.15, 293.15)
+    assert r.leak_rate_mbar_l_s == pytest.approx(10 * r.leak_rate_pa_m3_s)
+    assert r.leak_rate_pa_m3_s / r.leak_rate_sccm == pytest.approx(101325e-6 / 60)
+    assert 1 / h.pa_m3_s_from_sccm(1.0) == pytest.approx(592.15, abs=0.01)
+
+
+def test_pure_temperature_change_gives_zero_leak_within_uncertainty():
+    # Cooling a closed 50 L cylinder from 21 °C to 17 °C at constant density drops its gauge
+    # by about 2.6 bar at 150 bar; the test must see no leak.
+    rho = g.density(N2, 294.15, 151e5)
+    p_end = g.pressure_from_density(N2, rho, 290.15)
+    r = h.hold_two_readings(N2, 0.05, 151e5, p_end, 12 * 3600, 294.15, 290.15, h.GaugeSpec(250e5, 0.25))
+    assert abs(r.leak_rate_sccm) < 1e-6
+    assert r.verdict != "leak"
+    assert (151e5 - p_end) / 1e5 > 2.0
+
+
+def test_one_kelvin_moves_a_nitrogen_cylinder_by_about_0_7_bar():
+    # Common practice figure: 1 K at 150 bar moves a N2 cylinder ≈ 0.7 bar.
+    rho = g.density(N2, 293.15, 150e5)
+    assert (g.pressure_from_density(N2, rho, 294.15) - 150e5) / 1e5 == pytest.approx(0.7, abs=0.15)
+
+
+def test_class_1_6_gauge_on_250_bar_cannot_resolve_a_small_leak():
+    # EN 837-1 class 1.6 on a 250 bar span: MPE ±4 bar.
+    gauge = h.GaugeSpec(250e5, 1.6)
+    assert gauge.mpe_pa == pytest.approx(4e5)
+    assert gauge.u_reading_pa == pytest.approx(math.hypot(4e5 / math.sqrt(3), 4e5 / (2 * math.sqrt(3))))
+    r = h.hold_two_readings(N2, 0.05, 151e5, 150.5e5, 12 * 3600, 293.15, 293.15, gauge)
+    assert r.verdict == "inconclusive"
+    assert r.astm_accuracy_ok is False
+    assert r.hold_needed_h > 12
+
+
+def test_clear_leak_is_a_leak():
+    gauge = h.GaugeSpec(6e5, 0.25, 0.005e5)
+    r = h.hold_two_readings(N2, 0.002, 4e5, 3.5e5, 3600, 293.15, 293.15, gauge, u_T=0.1)
+    assert r.verdict == "leak"
+    assert r.leak_rate_sccm > 2 * r.leak_rate_uncertainty_sccm
+
+
+def test_tight_volume_fine_gauge_no_leak_resolved():
+    gauge = h.GaugeSpec(10e5, 0.1, 0.001e5)
+    r = h.hold_two_readings(N2, 0.010, 6e5, 6e5, 48 * 3600, 293.15, 293.15, gauge, u_T=0.05, target_sccm=5.0)
+    assert r.verdict == "no-leak-resolved"
+    assert r.smallest_resolvable_sccm < 5.0
+
+
+def _synthetic_log(rate_kg_s, noise_pa, n=200, seed=1, temps=False):
+    rng = np.random.default_rng(seed)
+    t = np.linspace(0, 36 * 3600, n)
+    T = 293.15 + (1.5 * np.sin(t / 3600 / 4) if temps else 0.0) * np.ones(n)
+    m = g.density(N2, 293.15, 120e5) * 0.05 - rate_kg_s * t
+    p = np.array([g.pressure_from_density(N2, mi / 0.05, Ti) for mi, Ti in zip(m, T, strict=True)])
+    p += rng.normal(0, noise_pa, n)
+    return h.HoldLog(tuple(t), tuple(p), tuple(T) if temps else None)
+
+
+def test_synthetic_log_rate_recovered_within_standard_error():
+    true = 3e-7
+    fit = h.hold_from_log(N2, 0.05, _synthetic_log(true, 2000.0), T_default=293.15)
+    assert abs(fit.slope_kg_s - true) < 3 * fit.slope_se_kg_s
+    assert fit.slope_se_kg_s > 0
+    assert not fit.curvature_significant
+
+
+def test_log_with_temperatures_is_compensated():
+    true = 2e-7
+    fit = h.hold_from_log(N2, 0.05, _synthetic_log(true, 500.0, temps=True), u_T=0.1)
+    assert fit.slope_kg_s == pytest.approx(true, rel=0.05)
+
+
+def test_curved_decay_is_flagged():
+    t = np.linspace(0, 24 * 3600, 100)
+    m = g.density(N2, 293.15, 100e5) * 0.05 - 1e-12 * t**2
+    p = [g.pressure_from_density(N2, mi / 0.05, 293.15) for mi in m]
+    fit = h.hold_from_log(N2, 0.05, h.HoldLog(tuple(t), tuple(p), None))
+    assert fit.curvature_significant
+
+
+def test_table_mass_matches_coolprop_per_row():
+    # bounded error of the tabulated path: < 1e-4 relative against one CoolProp call per row
+    log = _synthetic_log(3e-7, 0.0, n=50, temps=True)
+    tab = g.DensityTable(N2, min(log.p_abs_pa) * 0.999, max(log.p_abs_pa) * 1.001, min(log.T_k), max(log.T_k))
+    direct = np.array([g.density(N2, T, p) for p, T in zip(log.p_abs_pa, log.T_k, strict=True)])
+    assert np.max(np.abs(tab.density(np.array(log.p_abs_pa), np.array(log.T_k)) / direct - 1)) < 1e-4
+
+
+def test_parse_log_formats():
+    text = "elapsed (h),pressure (bar),temperature (degC)\n0,150.0,21.0\n1,149.9,20.8\n2,149.8,20.7\n"
+    lg = h.parse_log(text)
+    assert lg.t_s == (0.0, 3600.0, 7200.0)
+    assert lg.p_abs_pa[0] == pytest.approx(150e5 + AMB)
+    assert lg.T_k[1] == pytest.approx(293.95)
+    text2 = "timestamp,pressure_psia\n2026-11-30T18:00,2000\n2026-11-30T22:00,1995\n2026-12-01T07:30,1990\n"
+    lg2 = h.parse_log(text2)
+    assert lg2.t_s[-1] == pytest.approx(13.5 * 3600)
+    assert lg2.p_abs_pa[0] == pytest.approx(2000 * 6894.757293168361)
+
+
+@pytest.mark.parametrize(
+    "text, fragment",
+    [
+        ("elapsed (h),pressure (bar)\n0,150\n2,149\n1,148\n", "row 4"),
+        ("elapsed (h),pressure (bar)\n0,150\n1,abc\n2,148\n", "row 3"),
+        ("elapsed (h),pressure\n0,150\n1,149\n2,148\n", "pressure unit"),
+        ("when,how much\n0,150\n1,149\n", "header"),
+    ],
+)
+def test_bad_logs_name_the_row(text, fragment):
+    with pytest.raises(InputError, match=fragment):
+        h.parse_log(text)
+
+
+def test_hold_cli_json_and_errors(capsys, tmp_path):
+    code = main(["hold", "--gas", "n2", "--volume", "50 L", "--start", "152 bar", "--end", "150 bar",
+                 "--duration", "14 h", "--t-start", "21 degC", "--t-end", "18 degC", "--gauge-range", "250 bar",
+                 "--gauge-class", "1.6", "--json"])
+    import json
+
+    d = json.loads(capsys.readouterr().out)
+    assert code == 0
+    for k in ("leak_rate_sccm", "leak_rate_uncertainty_sccm", "leak_rate_pa_m3_s", "mass_loss_kg", "verdict"):
+        assert k in d
+    for argv, frag in [
+        (["--duration", "-2 h"], "greater than zero"),
+        (["--duration", "0 h"], "greater than zero"),
+        (["--start", "300 bar"], "above the gauge range"),
+        (["--volume", "0 L"], "greater than zero"),
+    ]:
+        base = {"--gas": "n2", "--volume": "50 L", "--start": "152 bar", "--end": "150 bar", "--duration": "14 h",
+                "--gauge-range": "250 bar", "--gauge-class": "1.6"}
+        base.update(dict([argv]))
+        args = ["hold"] + [x for kv in base.items() for x in kv]
+        assert main(args) == 2
+        err = capsys.readouterr().err
+        assert frag in err and err.count("\n") == 1
+    log = tmp_path / "log.csv"
+    log.write_text("elapsed (h),pressure (bar)\n0,150\n2,149\n1,148\n")
+    assert main(["hold", "--gas", "n2", "--volume", "50 L", "--log", str(log)]) == 2
+    assert "row 4" in capsys.readouterr().err
