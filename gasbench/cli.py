@@ -490,6 +490,7 @@ def cmd_hold(args: argparse.Namespace) -> int:
             parse_temperature(args.t_start, "start temperature") if args.t_start else None,
             parse_temperature(args.t_end, "end temperature") if args.t_end else None,
             gauge, u_T, target, reserve, amb)
+    _record_hold(args, gas, r)
     if args.json:
         d = asdict(r)
         if fit is not None:
@@ -526,6 +527,105 @@ def cmd_hold(args: argparse.Namespace) -> int:
     return 0
 
 
+def _journal_if_exists(args: argparse.Namespace) -> Any:
+    """The journal when its file exists (commands that only read or add to it never create one)."""
+    from gasbench.journal import Journal, default_path
+
+    path = default_path(getattr(args, "journal", None))
+    return Journal(path) if path.exists() else None
+
+
+def cmd_checklist(args: argparse.Namespace) -> int:
+    import datetime as dt
+    import shutil
+    import subprocess
+    from pathlib import Path
+
+    from gasbench.checklist import LastHoldTest, build_checklist
+    from gasbench.checklist.render import render_html, render_markdown, render_pdf, render_text
+    from gasbench.plan import build_plan
+    from gasbench.profile import load_profile
+
+    if args.format == "pdf" and not args.output:
+        raise _input("--format pdf needs --output FILE")
+    if args.print and not args.output:
+        raise _input("--print needs --output FILE")
+    prof = load_profile(args.profile)
+    plan = build_plan(prof)
+    last = None
+    j = _journal_if_exists(args)
+    if j is not None:
+        row = j.last_hold_test(prof.bench.name)
+        j.close()
+        if row is not None:
+            last = LastHoldTest(dt.datetime.fromisoformat(row.at), row.verdict, row.leak_rate_sccm,
+                                row.leak_rate_uncertainty_sccm)
+    cl = build_checklist(prof, plan, Path(args.profile).resolve().parent, last, operator=args.operator)
+    if args.format == "pdf":
+        out = render_pdf(cl, args.output)
+    else:
+        text = {"txt": render_text, "md": render_markdown, "html": render_html}[args.format](cl)
+        if not args.output:
+            sys.stdout.write(text)
+            return 0
+        out = Path(args.output)
+        try:
+            out.write_text(text, encoding="utf-8")
+        except OSError as exc:
+            raise _input(f"cannot write {args.output}: {exc.strerror or exc}") from None
+    print(f"checklist written to {out}")
+    if args.print:
+        cmd = shutil.which("lp") or shutil.which("lpr")
+        if cmd is None:
+            sys.stderr.write(f"gasbench: no print command (lp or lpr) on this system; print {out} yourself\n")
+            return 1
+        r = subprocess.run([cmd, str(out)], capture_output=True, text=True)
+        if r.returncode != 0:
+            sys.stderr.write(f"gasbench: {Path(cmd).name} failed: {r.stderr.strip() or r.returncode}\n")
+            return 1
+        print(f"sent to {Path(cmd).name}")
+    return 0
+
+
+def cmd_sessions(args: argparse.Namespace) -> int:
+    from dataclasses import asdict
+
+    from gasbench.journal import default_path
+
+    j = _journal_if_exists(args)
+    rows = j.sessions() if j is not None else []
+    if args.json:
+        emit_json({"journal": str(default_path(args.journal)), "sessions": [asdict(r) for r in rows]})
+        return 0
+    if not rows:
+        print(f"no sessions in {default_path(args.journal)}")
+        return 0
+    print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  bench")
+    for r in rows:
+        print(f"{r.id:>4}  {r.started_at[:16]:<16}  {(r.stopped_at or 'left running')[:16]:<16}  {r.readings:>8}  {r.bench}")
+    return 0
+
+
+def cmd_export(args: argparse.Namespace) -> int:
+    from pathlib import Path
+
+    j = _journal_if_exists(args)
+    if j is None:
+        raise _input("no journal yet: start a session in the app first")
+    if j.session(args.session) is None:
+        raise _input(f"no session {args.session} in the journal (see 'gasbench sessions')")
+    text = j.export_csv(args.session)
+    if args.output:
+        try:
+            Path(args.output).write_text(text, encoding="utf-8")
+        except OSError as exc:
+            raise _input(f"cannot write {args.output}: {exc.strerror or exc}") from None
+        print(f"session {args.session} written to {args.output}")
+    else:
+        sys.stdout.write(text)
+    return 0
+
+
 def _num_unit(text: str) -> tuple[float, str]:
     from gasbench.units import _split
 
@@ -533,6 +633,20 @@ def _num_unit(text: str) -> tuple[float, str]:
     if u.strip().lower() in ("c", "degc", "°c", "k"):
         u = "K"
     return v, u or "K"
+
+
+def _record_hold(args: argparse.Namespace, gas: Any, r: Any) -> None:
+    """Store a hold test in the journal when the journal exists (tagged with --bench if given)."""
+    import datetime as dt
+    import json as _json
+
+    j = _journal_if_exists(args)
+    if j is None:
+        return
+    with j:
+        j.add_hold_test(dt.datetime.now().astimezone().isoformat(timespec="seconds"), args.bench, args.supply,
+                        gas.name, r.volume_m3, r.duration_s, r.verdict, r.leak_rate_sccm, r.leak_rate_uncertainty_sccm,
+                        _json.dumps({"start_abs_pa": r.start_abs_pa, "end_abs_pa": r.end_abs_pa}))
 
 
 def _terminal_plot(fit: Any) -> None:
@@ -658,9 +772,33 @@ def _add_more_commands(sub: Any) -> None:
     p.add_argument("--reserve", help="reserve pressure, for time to reserve at this leak")
     p.add_argument("--log", metavar="FILE.csv", help="logged series instead of two readings")
     p.add_argument("--pressure-unit", help="pressure unit of the log if not in its header, e.g. 'bar' or 'psia'")
+    p.add_argument("--bench", help="bench name to file the test under in the journal (as in the profile)")
+    p.add_argument("--supply", help="supply id to file the test under in the journal")
     _add_ambient(p)
     _add_json(p)
     p.set_defaults(func=cmd_hold)
+
+    p = sub.add_parser("checklist", help="pre-session checklist filled with this bench's figures")
+    p.add_argument("profile", help="bench profile (TOML)")
+    p.add_argument("--format", choices=["txt", "md", "html", "pdf"], default="txt")
+    p.add_argument("--output", metavar="FILE", help="write to FILE (required for pdf)")
+    p.add_argument("--operator", help="operator's name for the sign-off")
+    p.add_argument("--print", action="store_true", help="send the written file to the system's print command")
+    p.set_defaults(func=cmd_checklist)
+
+    p = sub.add_parser("open", help="open the app on a bench profile")
+    p.add_argument("profile", help="bench profile (TOML)")
+    p.set_defaults(func=lambda a: _run_app(a, a.profile))
+
+    p = sub.add_parser("sessions", help="list the sessions in the journal")
+    _add_json(p)
+    p.set_defaults(func=cmd_sessions)
+
+    p = sub.add_parser("export", help="write one session's readings out")
+    p.add_argument("session", type=int, help="session number (see 'gasbench sessions')")
+    p.add_argument("--format", choices=["csv"], default="csv")
+    p.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+    p.set_defaults(func=cmd_export)
 
     p = sub.add_parser("room", help="room oxygen after a release or during a leak")
     p.add_argument("--gas", required=True)

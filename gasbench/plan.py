@@ -482,3 +482,65 @@ def _room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
         add("warning" if hz.kind == "toxic" else "stop", f"room-{hz.kind}", "room",
             f"if all of {biggest.id} escapes: {hz.text}", f"{hz.percent:.2f} %")
     return RoomPlan(room.volume, Q, room.ventilation_kind, vented, leak, biggest.id, rel, rel_mixed, tuple(notes))
+
+
+# ----------------------------------------------------------------------------- observed draw
+
+
+@dataclass(frozen=True)
+class Observed:
+    """Actual draw of a supply fitted from readings during a session."""
+
+    supply_id: str
+    n: int
+    draw_kg_s: float
+    draw_uncertainty_kg_s: float
+    planned_kg_s: float
+    faster_than_planned: bool
+    mass_now_kg: float
+    hours_to_reserve: float
+    reserve_at: str | None
+    method: str
+
+
+def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s: float,
+                  readings: list[tuple[dt.datetime, float, float]], u_p: float = 0.0, supply_id: str = "",
+                  ) -> Observed | None:
+    """Fit the real-gas mass against time from (time, p_abs, T) readings by least squares.
+
+    Mass per reading m = ρ(T, p)·V (CoolProp HEOS); the slope's uncertainty combines the fit's
+    standard error (numpy ``polyfit`` covariance, with two readings none) and the gauge's
+    reading uncertainty ``u_p`` on the first and last reading (GUM). ``faster_than_planned``
+    when the observed draw exceeds the plan by more than twice that uncertainty.
+    Returns None with fewer than two readings or no elapsed time.
+    """
+    import numpy as np
+
+    if len(readings) < 2:
+        return None
+    t0 = readings[0][0]
+    t = np.array([(r[0] - t0).total_seconds() for r in readings])
+    if t[-1] - t[0] <= 0:
+        return None
+    m = np.array([g.density(gas, T, p) * volume_m3 for _, p, T in readings])
+    if len(t) >= 3:
+        coef, cov = np.polyfit(t, m, 1, cov="unscaled")
+        resid = m - np.polyval(coef, t)
+        s2 = float(resid @ resid) / (len(t) - 2) if len(t) > 2 else 0.0
+        se = math.sqrt(max(0.0, float(cov[0, 0]) * s2))
+        slope = float(coef[0])
+    else:
+        slope = float((m[-1] - m[0]) / (t[-1] - t[0]))
+        se = 0.0
+    span = float(t[-1] - t[0])
+    p_last, T_last = readings[-1][1], readings[-1][2]
+    dp = max(p_last * 1e-5, 1.0)
+    dmdp = (g.density(gas, T_last, p_last + dp) - g.density(gas, T_last, p_last - dp)) * volume_m3 / (2 * dp)
+    u = math.hypot(se, math.sqrt(2.0) * dmdp * u_p / span)
+    draw = -slope
+    m_now = float(m[-1])
+    m_res = g.density(gas, T_last, reserve_abs) * volume_m3
+    hours = (m_now - m_res) / draw / 3600.0 if draw > 0 else math.inf
+    at = (readings[-1][0] + dt.timedelta(hours=hours)).isoformat(timespec="minutes") if math.isfinite(hours) else None
+    return Observed(supply_id, len(readings), draw, u, planned_kg_s, draw - planned_kg_s > 2.0 * u, m_now,
+                    max(hours, 0.0), at, "least-squares fit of real-gas mass vs time (CoolProp HEOS)")

@@ -1,0 +1,141 @@
+"""Checklist: computed items carry the plan's figures; renderers escape user text; PDF text."""
+
+import datetime as dt
+import json
+from pathlib import Path
+
+import pytest
+
+from gasbench.checklist import LastHoldTest, build_checklist
+from gasbench.checklist.render import render_html, render_markdown, render_pdf, render_text
+from gasbench.cli import main, plan_json
+from gasbench.errors import ProfileError
+from gasbench.plan import build_plan
+from gasbench.profile import load_profile, parse_profile
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "profiles" / "demo-teaching-bench.toml"
+
+
+def _lookup(d, path):
+    for part in path.replace("]", "").replace("[", ".").split("."):
+        d = d[int(part)] if part.isdigit() else d[part]
+    return d
+
+
+@pytest.mark.parametrize("path", sorted((ROOT / "profiles").glob("*.toml")), ids=lambda p: p.name)
+def test_computed_items_carry_the_plan_json_figures(path, capsys):
+    prof = load_profile(path)
+    plan = build_plan(prof)
+    cl = build_checklist(prof, plan, path.parent)
+    main(["plan", str(path), "--json"])
+    pj = json.loads(capsys.readouterr().out)
+    checked = 0
+    for s in cl.sections:
+        for it in s.items:
+            if it.source:
+                assert _lookup(pj, it.source) == pytest.approx(it.value, rel=1e-6), it.id
+                checked += 1
+    assert checked >= 4
+    assert plan_json(plan)["supplies"][0]["id"] == pj["supplies"][0]["id"]
+
+
+def test_statuses_and_leak_status_from_journal():
+    prof = load_profile(DEMO)
+    plan = build_plan(prof)
+    now = dt.datetime(2026, 12, 1, 9, 0).astimezone()
+    fresh = LastHoldTest(now - dt.timedelta(days=1), "no-leak-resolved", 0.2, 0.1)
+    old = LastHoldTest(now - dt.timedelta(days=9), "no-leak-resolved", 0.2, 0.1)
+    leak = LastHoldTest(now - dt.timedelta(days=1), "leak", 12.0, 1.0)
+
+    def status(last):
+        cl = build_checklist(prof, plan, DEMO.parent, last, now=now)
+        return next(i for s in cl.sections for i in s.items if i.id == "leak-status").status
+
+    assert status(None) == "attention"
+    assert status(fresh) == "ok"
+    assert status(old) == "attention"
+    assert status(leak) == "stop"
+
+
+HOSTILE = '<script>alert("x")</script> & Sons | "quotes" *bold* [link](http://x)'
+
+
+def _hostile_checklist():
+    text = DEMO.read_text().replace('name = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"',
+                                    f"name = '{HOSTILE}'")
+    prof = parse_profile(text)
+    return build_checklist(prof, build_plan(prof), DEMO.parent)
+
+
+def test_hostile_bench_name_is_escaped_in_html():
+    h = render_html(_hostile_checklist())
+    assert "<script>" not in h
+    assert "&lt;script&gt;" in h and "&amp; Sons" in h
+
+
+def test_hostile_bench_name_does_not_break_markdown_tables():
+    md = render_markdown(_hostile_checklist())
+    assert "<script>" not in md
+    for line in md.splitlines():
+        if line.startswith("| ") and not line.startswith("|---"):
+            # every table row has exactly 4 cells: 5 unescaped pipes
+            unescaped = len(line) - len(line.replace("|", "")) - line.count("\\|")
+            assert unescaped == 5, line
+
+
+def test_text_fits_a_printed_page():
+    txt = render_text(_hostile_checklist())
+    assert max(len(line) for line in txt.splitlines()) <= 100
+    assert "SIGN-OFF" in txt and "estimates" in txt
+
+
+def test_pdf_opens_and_contains_the_items(tmp_path):
+    from pypdf import PdfReader
+
+    cl = _hostile_checklist()
+    out = render_pdf(cl, tmp_path / "c.pdf")
+    text = " ".join(p.extract_text() for p in PdfReader(out).pages)
+    flat = " ".join(text.split())
+    assert "time to reserve" in flat
+    assert "°C" in flat.replace(" ", "") and "m³" in flat  # the bundled font prints ° and ³
+    assert "Sign-off" in flat
+
+
+def test_lab_items_add_remove_and_reword(tmp_path):
+    items = tmp_path / "lab.toml"
+    items.write_text(
+        'remove = ["laser-goggles"]\n'
+        '[[reword]]\nid = "estop"\ntext = "Red mushroom button by the door tested"\n'
+        '[[sections]]\nid = "emergency"\nitems = [{ id = "call", text = "Call the lab manager on 4411" }]\n'
+        '[[sections]]\nid = "local"\ntitle = "Our own"\nitems = [{ id = "keys", text = "Key cabinet locked" }]\n')
+    text = DEMO.read_text() + f'\n[checklist]\nitems = "{items}"\noperator = "A. Example"\nsecond_person = true\n'
+    prof = parse_profile(text)
+    cl = build_checklist(prof, build_plan(prof), tmp_path)
+    ids = {i.id: i for s in cl.sections for i in s.items}
+    assert "laser-goggles" not in ids
+    assert ids["estop"].text.startswith("Red mushroom")
+    assert "call" in ids and "keys" in ids
+    assert cl.second_person and cl.operator == "A. Example"
+    bad = tmp_path / "bad.toml"
+    bad.write_text('[[sections]]\nid = "x"\nitems = [{ id = "y", computed = "nonsense" }]\n')
+    prof2 = parse_profile(DEMO.read_text() + f'\n[checklist]\nitems = "{bad}"\n')
+    with pytest.raises(ProfileError, match="unknown computed key"):
+        build_checklist(prof2, build_plan(prof2), tmp_path)
+
+
+def test_checklist_cli_formats(tmp_path, capsys):
+    for fmt in ("txt", "md", "html", "pdf"):
+        out = tmp_path / f"c.{fmt}"
+        assert main(["checklist", str(DEMO), "--format", fmt, "--output", str(out)]) == 0
+        assert out.stat().st_size > 500
+    assert main(["checklist", str(DEMO), "--format", "pdf"]) == 2
+    assert "needs --output" in capsys.readouterr().err
+
+
+def test_print_without_print_command_says_so(tmp_path, capsys, monkeypatch):
+    monkeypatch.setattr("shutil.which", lambda name: None)
+    out = tmp_path / "c.txt"
+    assert main(["checklist", str(DEMO), "--output", str(out), "--print"]) == 1
+    assert "no print command" in capsys.readouterr().err
+    assert out.exists()
