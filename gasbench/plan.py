@@ -208,16 +208,19 @@ def _hours_str(h: float) -> str:
 
 
 def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJECTION_POINTS,
-               extra_leak_m3_s: float = 0.0) -> Plan:
-    """Compute the session plan of a bench profile (see module docstring for the methods)."""
+               extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None) -> Plan:
+    """Compute the session plan of a bench profile (see module docstring for the methods).
+
+    The clock times count from ``start_at`` when given (a running session), else from the
+    profile's planned start time today, else from ``now``."""
     import numpy as np
 
     amb = prof.ambient_pa
     T_amb = prof.ambient.temperature
     session_h = prof.session.duration / 3600.0
     now = now or dt.datetime.now().astimezone().replace(second=0, microsecond=0)
-    start = now
-    if prof.session.start:
+    start = start_at or now
+    if start_at is None and prof.session.start:
         hh, mm = (int(x) for x in prof.session.start.split(":"))
         start = now.replace(hour=hh, minute=mm)
     findings: list[Finding] = []
@@ -501,6 +504,8 @@ class Observed:
     hours_to_reserve: float
     reserve_at: str | None
     method: str
+    fit_at: tuple[str, ...] = ()
+    fit_pressure_abs_pa: tuple[float, ...] = ()
 
 
 def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s: float,
@@ -542,5 +547,34 @@ def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s
     m_res = g.density(gas, T_last, reserve_abs) * volume_m3
     hours = (m_now - m_res) / draw / 3600.0 if draw > 0 else math.inf
     at = (readings[-1][0] + dt.timedelta(hours=hours)).isoformat(timespec="minutes") if math.isfinite(hours) else None
+    # the fitted line as pressures at the first and last reading (for plots)
+    fitted = [float(m[0] + slope * 0.0), float(m[0] + slope * span)] if len(t) < 3 else \
+        [float(np.polyval(coef, t[0])), float(np.polyval(coef, t[-1]))]
+    fit_p = tuple(g.pressure_from_density(gas, max(x, 1e-9) / volume_m3, T_last) for x in fitted)
+    fit_at = (readings[0][0].isoformat(timespec="seconds"), readings[-1][0].isoformat(timespec="seconds"))
     return Observed(supply_id, len(readings), draw, u, planned_kg_s, draw - planned_kg_s > 2.0 * u, m_now,
-                    max(hours, 0.0), at, "least-squares fit of real-gas mass vs time (CoolProp HEOS)")
+                    max(hours, 0.0), at, "least-squares fit of real-gas mass vs time (CoolProp HEOS)", fit_at, fit_p)
+
+
+def live_findings(plan: Plan, observed: dict[str, Observed], session_end: dt.datetime | None) -> list[Finding]:
+    """Findings during a session: a draw faster than planned beyond its uncertainty, and a
+    reserve (planned or observed) that arrives before the planned end of the session."""
+    out: list[Finding] = []
+    for s in plan.supplies:
+        ob = observed.get(s.id)
+        if ob is not None and ob.faster_than_planned:
+            out.append(Finding(
+                "warning", "faster-than-planned", s.id,
+                f"{s.id} empties faster than planned: check for leaks or a flow set too high",
+                f"observed {ob.draw_kg_s * 6e4:.3g} ± {ob.draw_uncertainty_kg_s * 6e4:.2g} g/min vs planned "
+                f"{ob.planned_kg_s * 6e4:.3g} g/min"))
+        if session_end is None:
+            continue
+        at = ob.reserve_at if ob is not None and ob.reserve_at else s.reserve_at
+        if at is not None and dt.datetime.fromisoformat(at) < session_end:
+            out.append(Finding(
+                "warning", "reserve-before-end-live", s.id,
+                f"{s.id} reaches its reserve at {at[11:16]}, before the session's planned end "
+                f"{session_end.isoformat(timespec='minutes')[11:16]}: swap the cylinder or stop early",
+                f"reserve at {at[11:16]}"))
+    return out

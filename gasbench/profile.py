@@ -435,3 +435,12 @@ def demo_profile_text() -> str:
 
 def demo_profile_path() -> Path:
     return Path(str(resources.files("gasbench.data").joinpath(DEMO_NAME)))
+
+
+def with_reading(prof: Profile, supply_id: str, pressure: u.Pressure, temperature_k: float) -> Profile:
+    """A copy of the profile with a new reading for one supply (no other change)."""
+    if supply_id not in {s.id for s in prof.supplies}:
+        raise InputError(f"unknown supply {supply_id!r}; known: {', '.join(s.id for s in prof.supplies)}")
+    supplies = [s.model_copy(update={"reading": pressure, "reading_temperature": temperature_k})
+                if s.id == supply_id else s for s in prof.supplies]
+    return prof.model_copy(update={"supplies": supplies})

@@ -1,2 +1,71 @@
-def run_app(profile_path, journal_path):
-    raise NotImplementedError
+"""The Textual app: ``make_app`` builds it exactly as the command line runs it."""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections.abc import Callable
+from pathlib import Path
+
+from textual.app import App
+from textual.binding import Binding
+
+from gasbench.session import SessionState, now_local
+
+
+class GasbenchApp(App[int]):
+    """gasbench: the bench overview and its tools."""
+
+    CSS_PATH = "gasbench.tcss"
+    TITLE = "gasbench"
+    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (120, "-wide")]
+    ENABLE_COMMAND_PALETTE = False
+    BINDINGS = [
+        Binding("c", "cautions", "Cautions", priority=True),
+        Binding("question_mark", "help", "Help", key_display="?"),
+        Binding("q", "quit", "Quit"),
+    ]
+
+    def __init__(self, state: SessionState) -> None:
+        super().__init__()
+        self.state = state
+
+    def on_mount(self) -> None:
+        from gasbench.tui.screens.overview import OverviewScreen
+
+        self.push_screen(OverviewScreen(self.state))
+
+    def action_cautions(self) -> None:
+        from gasbench.tui.screens.modals import CautionsScreen
+
+        if not isinstance(self.screen, CautionsScreen):
+            self.push_screen(CautionsScreen(self.state))
+
+    def action_help(self) -> None:
+        from gasbench.tui.screens.modals import HelpScreen
+
+        if not isinstance(self.screen, HelpScreen):
+            self.push_screen(HelpScreen())
+
+
+def make_app(profile_path: str | Path | None = None, journal_path: str | Path | None = None,
+             clock: Callable[[], dt.datetime] = now_local, use_journal: bool = True) -> GasbenchApp:
+    """Build the app for a profile (default: the bundled demo bench) and a journal file
+    (default: ``$GASBENCH_JOURNAL`` or the user data directory)."""
+    from gasbench.journal import open_journal
+    from gasbench.profile import demo_profile_path
+
+    path = Path(profile_path) if profile_path else demo_profile_path()
+    journal = open_journal(journal_path) if use_journal else None
+    return GasbenchApp(SessionState(path, journal, clock))
+
+
+def run_app(profile_path: str | None, journal_path: str | None) -> int:
+    from gasbench.profile import load_profile
+
+    if profile_path:
+        load_profile(profile_path)  # a bad profile is a one-line error before the screen opens
+    app = make_app(profile_path, journal_path)
+    app.run()
+    if app.state.journal is not None:
+        app.state.journal.close()
+    return app.return_code or 0

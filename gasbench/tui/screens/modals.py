@@ -1,0 +1,165 @@
+"""Modal screens: reading entry, cautions, help, yes/no."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Button, Input, Label, Select, Static
+
+from gasbench.cautions import DEFER, ESTIMATES, GENERAL, gas_cautions
+from gasbench.errors import InputError
+from gasbench.session import Reading, SessionState
+
+
+class ReadingScreen(ModalScreen[Reading | None]):
+    """Enter a gauge reading: supply, pressure, temperature (prefilled), time (now by default).
+    A wrong entry is shown inline and the typed values stay."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(self, state: SessionState) -> None:
+        super().__init__()
+        self.state = state
+
+    def compose(self) -> ComposeResult:
+        st = self.state
+        assert st.profile is not None
+        first = st.profile.supplies[0].id
+        with Vertical(id="dialog", classes="dialog"):
+            yield Static("New reading", classes="heading")
+            yield Label("Supply")
+            yield Select([(s.id, s.id) for s in st.profile.supplies], value=first, allow_blank=False, id="supply")
+            yield Label("Gauge pressure (e.g. 142 bar, 2050 psi; bar(a) for absolute)")
+            yield Input(placeholder="142 bar", id="pressure")
+            yield Label("Cylinder temperature")
+            yield Input(value=self._last_temperature(first), id="temperature")
+            yield Label("Time (HH:MM, or leave 'now')")
+            yield Input(value="now", id="time")
+            yield Static("", id="error", classes="error")
+            with Horizontal(classes="buttons"):
+                yield Button("Save", variant="primary", id="save")
+                yield Button("Cancel", id="cancel")
+
+    def _last_temperature(self, supply_id: str) -> str:
+        st = self.state
+        last = st.last_reading(supply_id)
+        if last is not None:
+            return f"{last.temperature_k - 273.15:.1f} degC"
+        assert st.plan is not None
+        sp = next(s for s in st.plan.supplies if s.id == supply_id)
+        return f"{sp.temperature_k - 273.15:.1f} degC"
+
+    def on_mount(self) -> None:
+        self.query_one("#pressure", Input).focus()
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        if isinstance(event.value, str):
+            self.query_one("#temperature", Input).value = self._last_temperature(event.value)
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        self.save()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        if event.button.id == "save":
+            self.save()
+        else:
+            self.dismiss(None)
+
+    def save(self) -> None:
+        supply = self.query_one("#supply", Select).value
+        try:
+            reading = self.state.parse_reading(
+                str(supply), self.query_one("#pressure", Input).value, self.query_one("#temperature", Input).value,
+                self.query_one("#time", Input).value)
+        except InputError as exc:
+            self.query_one("#error", Static).update(f"✖ {exc}")
+            return
+        self.dismiss(reading)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class CautionsScreen(ModalScreen[None]):
+    BINDINGS = [Binding("escape,enter,c", "close", "Close")]
+
+    def __init__(self, state: SessionState) -> None:
+        super().__init__()
+        self.state = state
+
+    def compose(self) -> ComposeResult:
+        gases = [s.gas for s in self.state.profile.supplies] if self.state.profile else []
+        text = []
+        for c in list(GENERAL) + gas_cautions(gases):
+            text.append(f"[b]{c.topic}[/b]\n{c.text}\n")
+        text.append(f"[i]{ESTIMATES}[/i]\n\n[b]{DEFER}[/b]")
+        with Vertical(id="dialog", classes="dialog wide"):
+            yield Static("Cautions for this bench", classes="heading")
+            with VerticalScroll():
+                yield Static("\n".join(text), markup=True)
+            yield Button("Understood", variant="primary", id="close")
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(None)
+
+    def action_close(self) -> None:
+        self.dismiss(None)
+
+
+HELP = """\
+[b]Overview[/b]
+  s  start or stop a session        r  enter a gauge reading
+  g  graph: supply pressure          t  hold test (leak rate)
+  o  room oxygen                     k  checklist preview and export
+  l  reload the profile after editing it
+[b]Everywhere[/b]
+  c  cautions for this bench         ?  this help
+  escape  back                       q  quit
+[b]In the graph[/b]  n  next supply
+[b]In the checklist[/b]  e  export HTML and PDF next to the profile
+
+Pressures are gauge unless marked absolute: 200 bar = 200 bar(g); 150 bar(a), 14.7 psia.
+Every reading is saved to the journal the moment you press Save.
+"""
+
+
+class HelpScreen(ModalScreen[None]):
+    BINDINGS = [Binding("escape,question_mark,enter", "close", "Close")]
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="dialog", classes="dialog wide"):
+            yield Static("Keys", classes="heading")
+            yield Static(HELP, markup=True)
+            yield Button("Close", id="close")
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(None)
+
+    def action_close(self) -> None:
+        self.dismiss(None)
+
+
+class ConfirmScreen(ModalScreen[bool]):
+    BINDINGS = [Binding("y", "yes", "Yes"), Binding("n,escape", "no", "No")]
+
+    def __init__(self, question: str) -> None:
+        super().__init__()
+        self.question = question
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="dialog", classes="dialog"):
+            yield Static(self.question)
+            with Horizontal(classes="buttons"):
+                yield Button("Yes (y)", variant="primary", id="yes")
+                yield Button("No (n)", id="no")
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(event.button.id == "yes")
+
+    def action_yes(self) -> None:
+        self.dismiss(True)
+
+    def action_no(self) -> None:
+        self.dismiss(False)

@@ -1,0 +1,261 @@
+"""The bench overview: supplies with countdowns, draws and gaps, ranked findings."""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+
+from rich.text import Text
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Header, Static
+
+from gasbench.errors import GasbenchError, JournalError
+from gasbench.session import Reading, SessionState
+from gasbench.tui.widgets import FindingsPanel, bar
+from gasbench.units import fmt_hours, fmt_pressure
+
+
+class OverviewScreen(Screen[None]):
+    BINDINGS = [
+        Binding("s", "toggle_session", "Session"),
+        Binding("r", "reading", "Reading"),
+        Binding("g", "graph", "Graph"),
+        Binding("t", "hold", "Hold"),
+        Binding("o", "oxygen", "O2"),
+        Binding("k", "checklist", "Checklist"),
+        Binding("l", "reload", "Reload"),
+    ]
+
+    def __init__(self, state: SessionState) -> None:
+        super().__init__()
+        self.state = state
+        self.cautions_shown = False
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        yield Static("Loading the bench profile and computing the plan…", id="status")
+        with VerticalScroll(id="body"):
+            yield Static("Supplies", classes="heading")
+            yield DataTable(id="supplies", cursor_type="none", zebra_stripes=True)
+            yield Static("", id="observed")
+            with Horizontal(id="lower"):
+                with Vertical(id="draws-box"):
+                    yield Static("Draws and gaps", classes="heading")
+                    yield DataTable(id="draws", cursor_type="row")
+                with Vertical(id="findings-box"):
+                    yield Static("Findings", classes="heading")
+                    yield FindingsPanel(id="findings")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        sup = self.query_one("#supplies", DataTable)
+        for label, key in (("Supply", "id"), ("Gas", "gas"), ("Reading", "reading"), ("Contents", "contents"),
+                           ("Usable", "usable"), ("To reserve", "left"), ("", "bar"), ("At", "at"),
+                           ("Regulator outlet", "outlet")):
+            sup.add_column(label, key=key)
+        dr = self.query_one("#draws", DataTable)
+        for label, key in (("Draw", "id"), ("Kind", "kind"), ("Flow", "flow"), ("Fires at", "kv"),
+                           ("Margin", "margin")):
+            dr.add_column(label, key=key)
+        self.load_plan()
+        self.set_interval(1.0, self.tick)
+
+    # -- workers: CoolProp and the journal never block the screen
+
+    @work(thread=True, exclusive=True, group="plan")
+    def load_plan(self) -> None:
+        try:
+            if self.state.profile is None:
+                self.state.load()
+            else:
+                self.state.recompute()
+        except GasbenchError as exc:
+            self.app.call_from_thread(self._error, str(exc))
+            return
+        self.app.call_from_thread(self._plan_ready)
+
+    def _plan_ready(self) -> None:
+        self.refresh_view()
+        st = self.state
+        if st.journal is not None and st.profile is not None and not st.running:
+            row = st.journal.unfinished_session(st.profile.bench.name)
+            if row is not None:
+                from gasbench.tui.screens.modals import ConfirmScreen
+
+                self.app.push_screen(
+                    ConfirmScreen(f"Session #{row.id} started {row.started_at[:16].replace('T', ' ')} was left "
+                                  f"running with {row.readings} reading(s). Resume it?"),
+                    lambda yes: self._resume(row.id) if yes else None)
+
+    def _resume(self, session_id: int) -> None:
+        self.state.resume(session_id)
+        self.notify(f"Session #{session_id} resumed", title="Session")
+        self.load_plan()
+
+    def _error(self, msg: str) -> None:
+        self.query_one("#status", Static).update(f"✖ {msg}")
+        self.notify(msg, title="Error", severity="error", timeout=10)
+
+    # -- display
+
+    def refresh_view(self) -> None:
+        st = self.state
+        if st.plan is None or st.profile is None:
+            return
+        self.app.sub_title = st.plan.bench_name
+        amb = st.plan.ambient_pa
+        sup = self.query_one("#supplies", DataTable)
+        sup.clear()
+        for s in st.plan.supplies:
+            regs = [r for r in st.plan.regulators if r.supply_id == s.id]
+            outlet = "—"
+            if regs:
+                coldest = min(r.outlet_temperature_k for r in regs)
+                outlet = ("/".join(fmt_pressure(r.set_point_abs_pa, amb).replace(" bar(g)", "") for r in regs)
+                          + f" bar(g) {coldest - 273.15:.0f}°C")
+            reading = "liquid (by weight)" if s.liquefied else fmt_pressure(s.pressure_abs_pa, amb)
+            sup.add_row(s.id, s.gas_name[:14], reading, f"{s.mass_kg:.2f} kg", f"{s.usable_mass_kg:.2f} kg",
+                        "", "", "", outlet, key=s.id)
+        dr = self.query_one("#draws", DataTable)
+        dr.clear()
+        for d in st.plan.draws:
+            kv = margin = "—"
+            if d.gap is not None:
+                kv = f"{d.gap.breakdown_start_kv:.1f} kV"
+                ms = list(d.gap.margins_start) + list(d.gap.margins_reserve)
+                if ms:
+                    w = min(ms, key=lambda m: m.margin_kv)
+                    margin = f"{w.margin_kv:+.1f} kV {w.status}"
+            dr.add_row(d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin, key=d.id)
+        self._observed_line()
+        self.query_one("#findings", FindingsPanel).show(st.findings())
+        self.tick()
+
+    def _observed_line(self) -> None:
+        st = self.state
+        assert st.plan is not None
+        parts = []
+        for s in st.plan.supplies:
+            ob = st.observed.get(s.id)
+            if ob is None:
+                n = len(st.readings.get(s.id, []))
+                if st.running:
+                    parts.append(f"{s.id}: {n} reading(s); two give the observed draw")
+                continue
+            parts.append(f"{s.id}: observed {ob.draw_kg_s * 6e4:.3g} ± {ob.draw_uncertainty_kg_s * 6e4:.2g} g/min "
+                         f"vs planned {s.draw_kg_s * 6e4:.3g} g/min"
+                         + ("  ▲ faster than planned" if ob.faster_than_planned else ""))
+        self.query_one("#observed", Static).update("\n".join(parts))
+
+    def tick(self) -> None:
+        """Once a second: elapsed time and countdowns (only these cells change)."""
+        st = self.state
+        if st.plan is None:
+            return
+        now = st.clock()
+        if st.running and st.started_at is not None:
+            el = (now - st.started_at).total_seconds()
+            status = (f"● SESSION #{st.session_id} running {int(el // 3600)}:{int(el % 3600 // 60):02d}:"
+                      f"{int(el % 60):02d} of {fmt_hours(st.plan.session_hours)}")
+        else:
+            status = f"○ no session — press s to start ({fmt_hours(st.plan.session_hours)} planned)"
+        if st.unsaved:
+            status += f"   ✖ {len(st.unsaved)} reading(s) NOT saved to the journal"
+        self.query_one("#status", Static).update(status)
+        sup = self.query_one("#supplies", DataTable)
+        for s in st.plan.supplies:
+            if s.id not in sup.rows:  # the plan was recomputed and the table not yet refreshed
+                continue
+            h = st.hours_left(s.id, now)
+            at = now + dt.timedelta(hours=h) if math.isfinite(h) else None
+            sup.update_cell(s.id, "left", fmt_hours(h), update_width=False)
+            left = (st.session_end - now).total_seconds() / 3600.0 if st.session_end else st.plan.session_hours
+            colour = "green" if h >= left else ("yellow" if h >= 0.5 * left else "red")
+            sup.update_cell(s.id, "bar", Text(bar(h / st.plan.session_hours if st.plan.session_hours else 0.0, 8),
+                                              style=colour), update_width=False)
+            sup.update_cell(s.id, "at", at.strftime("%H:%M") if at else "never", update_width=False)
+
+    # -- actions
+
+    def action_toggle_session(self) -> None:
+        st = self.state
+        if st.plan is None:
+            return
+        try:
+            if st.running:
+                st.stop()
+                self.notify("Session stopped and saved", title="Session")
+            else:
+                st.start()
+                self.notify(f"Session #{st.session_id} started", title="Session")
+                if not self.cautions_shown:
+                    self.cautions_shown = True
+                    self.app.action_cautions()
+        except JournalError as exc:
+            self.notify(str(exc), title="Journal", severity="error", timeout=10)
+        self.refresh_view()
+
+    def action_reading(self) -> None:
+        from gasbench.tui.screens.modals import ReadingScreen
+
+        if self.state.plan is None:
+            return
+        if not self.state.running:
+            self.notify("Start a session first (s)", severity="warning")
+            return
+        self.app.push_screen(ReadingScreen(self.state), self._reading_entered)
+
+    def _reading_entered(self, reading: Reading | None) -> None:
+        if reading is None:
+            return
+        try:
+            self.state.add_reading(reading)
+        except JournalError as exc:
+            self.notify(f"{exc}. The reading is kept on screen and marked unsaved.", title="Journal",
+                        severity="error", timeout=15)
+        except GasbenchError as exc:
+            self.notify(str(exc), severity="error")
+            return
+        self.load_plan()
+
+    def action_reload(self) -> None:
+        self.reload_profile()
+
+    @work(thread=True, exclusive=True, group="plan")
+    def reload_profile(self) -> None:
+        try:
+            self.state.reload()
+        except GasbenchError as exc:
+            self.app.call_from_thread(self.notify, f"{exc} — the profile loaded before stays in use.",
+                                      title="Profile not reloaded", severity="error", timeout=15)
+            return
+        self.app.call_from_thread(self.notify, "Profile reloaded", title="Profile")
+        self.app.call_from_thread(self.refresh_view)
+
+    def action_graph(self) -> None:
+        from gasbench.tui.screens.tools import GraphScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(GraphScreen(self.state))
+
+    def action_hold(self) -> None:
+        from gasbench.tui.screens.tools import HoldScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(HoldScreen(self.state))
+
+    def action_oxygen(self) -> None:
+        from gasbench.tui.screens.tools import RoomScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(RoomScreen(self.state))
+
+    def action_checklist(self) -> None:
+        from gasbench.tui.screens.tools import ChecklistScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(ChecklistScreen(self.state))

@@ -1,0 +1,210 @@
+"""The app, headless with App.run_test() and Pilot, built by the same factory as the command line."""
+
+import datetime as dt
+import shutil
+from pathlib import Path
+
+import pytest
+
+from gasbench.journal import Journal
+from gasbench.tui.app import make_app
+from gasbench.tui.screens.modals import CautionsScreen, ConfirmScreen, ReadingScreen
+from gasbench.tui.screens.overview import OverviewScreen
+
+ROOT = Path(__file__).resolve().parents[1]
+T0 = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
+
+
+class Clock:
+    def __init__(self, t: dt.datetime = T0) -> None:
+        self.t = t
+
+    def __call__(self) -> dt.datetime:
+        return self.t
+
+
+async def _ready(app, pilot):
+    await pilot.pause()
+    await app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+async def _enter_reading(app, pilot, pressure, when="now", temperature=None):
+    await pilot.press("r")
+    await pilot.pause()
+    assert isinstance(app.screen, ReadingScreen)
+    if temperature is not None:
+        app.screen.query_one("#temperature").value = temperature
+    app.screen.query_one("#time").value = when
+    app.screen.query_one("#pressure").value = pressure
+    await pilot.press("enter")
+    await _ready(app, pilot)
+
+
+@pytest.fixture
+def journal_path(tmp_path):
+    return tmp_path / "journal.sqlite3"
+
+
+async def test_session_readings_observed_draw_and_countdown(journal_path):
+    clock = Clock()
+    app = make_app(None, journal_path, clock=clock)
+    async with app.run_test(size=(100, 32)) as pilot:
+        await _ready(app, pilot)
+        st = app.state
+        assert isinstance(app.screen, OverviewScreen) and st.plan is not None
+        planned_hours = st.hours_left("n2-A")
+        await pilot.press("s")
+        await pilot.pause()
+        assert st.running
+        assert isinstance(app.screen, CautionsScreen)  # shown once when a session starts
+        await pilot.press("escape")
+        await pilot.pause()
+        await _enter_reading(app, pilot, "64 bar")
+        clock.t = T0 + dt.timedelta(hours=1)
+        # 24 bar in an hour against the plan's ~6 bar/h: faster beyond the class 1.6 gauge's uncertainty
+        await _enter_reading(app, pilot, "40 bar")
+        assert len(st.readings["n2-A"]) == 2
+        ob = st.observed["n2-A"]
+        assert ob.draw_kg_s > 0
+        assert st.hours_left("n2-A") < planned_hours - 1.0
+        text = str(app.screen.query_one("#observed").render())
+        assert "observed" in text and "planned" in text
+        assert any(f.code == "faster-than-planned" for f in st.findings())
+        # every reading is in the journal
+        with Journal(journal_path) as j:
+            assert len(j.readings(st.session_id)) == 2
+        # the countdown ticks from the clock, without a new reading
+        before = st.hours_left("n2-A")
+        clock.t += dt.timedelta(minutes=30)
+        app.screen.tick()
+        assert st.hours_left("n2-A") == pytest.approx(before - 0.5)
+        await pilot.press("s")
+        await pilot.pause()
+        assert not st.running
+
+
+async def test_bad_reading_is_shown_inline_and_journal_unchanged(journal_path):
+    app = make_app(None, journal_path, clock=Clock())
+    async with app.run_test(size=(80, 24)) as pilot:
+        await _ready(app, pilot)
+        await pilot.press("s")
+        await pilot.pause()
+        await pilot.press("escape")
+        await pilot.pause()
+        await pilot.press("r")
+        await pilot.pause()
+        await pilot.press(*"60", "enter")
+        await pilot.pause()
+        assert isinstance(app.screen, ReadingScreen)  # still open, the typed value kept
+        assert "no unit" in str(app.screen.query_one("#error").render())
+        assert app.screen.query_one("#pressure").value == "60"
+        app.screen.query_one("#pressure").value = "900 bar"
+        await pilot.press("enter")
+        await pilot.pause()
+        assert "test pressure" in str(app.screen.query_one("#error").render())
+        await pilot.press("escape")
+        await pilot.pause()
+        with Journal(journal_path) as j:
+            assert j.readings(app.state.session_id) == []
+
+
+async def test_resume_after_a_crash(journal_path):
+    # a session left running by a crash, with committed readings
+    with Journal(journal_path) as j:
+        sid = j.start_session("Demo: Larkfield teaching lab, bench 2 (N2 laser)", None, T0.isoformat())
+        j.add_reading(sid, "n2-A", (T0 + dt.timedelta(minutes=5)).isoformat(), 65e5, "64 bar", 294.15, "x")
+        j.add_reading(sid, "n2-A", (T0 + dt.timedelta(minutes=65)).isoformat(), 62e5, "61 bar", 294.15, "x")
+    app = make_app(None, journal_path, clock=Clock(T0 + dt.timedelta(hours=2)))
+    async with app.run_test(size=(100, 32)) as pilot:
+        await _ready(app, pilot)
+        assert isinstance(app.screen, ConfirmScreen)
+        await pilot.press("y")
+        await _ready(app, pilot)
+        assert app.state.session_id == sid and len(app.state.readings["n2-A"]) == 2
+        assert "n2-A" in app.state.observed
+
+
+async def test_reload_keeps_old_profile_when_the_edit_is_invalid(tmp_path, journal_path):
+    prof = tmp_path / "bench.toml"
+    shutil.copy(ROOT / "profiles" / "demo-teaching-bench.toml", prof)
+    app = make_app(prof, journal_path, clock=Clock())
+    async with app.run_test(size=(100, 32)) as pilot:
+        await _ready(app, pilot)
+        old = app.state.profile
+        prof.write_text(prof.read_text().replace('reserve = "15 bar"', 'reserve = "15 bar"\nreservoir = 1'))
+        await pilot.press("l")
+        await _ready(app, pilot)
+        assert app.state.profile is old
+        prof.write_text(prof.read_text().replace("reservoir = 1\n", "").replace('"21 degC"', '"23 degC"', 1))
+        await pilot.press("l")
+        await _ready(app, pilot)
+        assert app.state.profile is not old
+
+
+async def test_every_screen_reachable_by_keyboard(journal_path, tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    app = make_app(None, journal_path, clock=Clock())
+    async with app.run_test(size=(100, 32)) as pilot:
+        await _ready(app, pilot)
+        for key, name in (("g", "GraphScreen"), ("t", "HoldScreen"), ("o", "RoomScreen"), ("k", "ChecklistScreen")):
+            await pilot.press(key)
+            await pilot.pause()
+            assert type(app.screen).__name__ == name
+            await pilot.press("c")
+            await pilot.pause()
+            assert isinstance(app.screen, CautionsScreen)
+            await pilot.press("escape")
+            await pilot.pause()
+            if name == "ChecklistScreen":
+                await pilot.press("e")
+                await _ready(app, pilot)
+                assert list(tmp_path.glob("checklist-*.pdf")) and list(tmp_path.glob("checklist-*.html"))
+            await pilot.press("escape")
+            await pilot.pause()
+        await pilot.press("question_mark")
+        await pilot.pause()
+        assert type(app.screen).__name__ == "HelpScreen"
+
+
+async def test_hold_screen_computes_and_stores(journal_path):
+    app = make_app(None, journal_path, clock=Clock())
+    async with app.run_test(size=(100, 40)) as pilot:
+        await _ready(app, pilot)
+        await pilot.press("t")
+        await pilot.pause()
+        scr = app.screen
+        scr.query_one("#hold-start").value = "64 bar"
+        scr.query_one("#hold-end").value = "62 bar"
+        scr.query_one("#hold-duration").value = "12 h"
+        scr.query_one("#hold-tstart").value = "21 degC"
+        scr.query_one("#hold-tend").value = "21 degC"
+        scr.compute()
+        await pilot.pause()
+        assert "saved to the journal" in str(scr.query_one("#hold-result").render())
+        with Journal(journal_path) as j:
+            assert j.last_hold_test(app.state.profile.bench.name) is not None
+        scr.query_one("#hold-duration").value = "-3 h"
+        scr.compute()
+        await pilot.pause()
+        assert "greater than zero" in str(scr.query_one("#hold-result").render())
+
+
+def test_overview_snapshot_80x24(snap_compare, tmp_path):
+    app = make_app(None, tmp_path / "j.sqlite3", clock=Clock())
+
+    async def ready(pilot):
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+
+    assert snap_compare(app, terminal_size=(80, 24), run_before=ready)
+
+
+def test_overview_snapshot_wide(snap_compare, tmp_path):
+    app = make_app(None, tmp_path / "j.sqlite3", clock=Clock())
+
+    async def ready(pilot):
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+
+    assert snap_compare(app, terminal_size=(140, 36), run_before=ready)
