@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from gasbench import gas as g
 from gasbench.errors import InputError
@@ -122,9 +123,11 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
     k = heat_capacity_ratio(gas, T, p_up)
     MW = gas.molar_mass * 1000.0
 
-    def kv_of(Q: float) -> dict:
-        return size_control_valve_g(T=T, MW=MW, mu=1.8e-5, gamma=k, Z=Z, P1=p_up, P2=p_down, Q=Q,
-                                    xT=xT, allow_laminar=False, full_output=True)
+    def kv_of(Q: float) -> dict[str, Any]:
+        out = size_control_valve_g(T=T, MW=MW, mu=1.8e-5, gamma=k, Z=Z, P1=p_up, P2=p_down, Q=Q,
+                                   xT=xT, allow_laminar=False, full_output=True)
+        assert isinstance(out, dict)
+        return out
 
     lo, hi = 1e-12, 1.0
     while kv_of(hi)["Kv"] < kv:

@@ -32,14 +32,26 @@ def _str_only(fn: Any) -> Any:
     return check
 
 
-PressureQ = Annotated[u.Pressure, BeforeValidator(_str_only(lambda s: u.parse_pressure(s)))]
-TemperatureQ = Annotated[float, BeforeValidator(_str_only(u.parse_temperature))]
-VolumeQ = Annotated[float, BeforeValidator(_str_only(u.parse_volume))]
-LengthQ = Annotated[float, BeforeValidator(_str_only(u.parse_length))]
-DurationQ = Annotated[float, BeforeValidator(_str_only(u.parse_duration))]
-MassQ = Annotated[float, BeforeValidator(_str_only(u.parse_mass))]
-FrequencyQ = Annotated[float, BeforeValidator(_str_only(u.parse_frequency))]
-VoltageQ = Annotated[float, BeforeValidator(_str_only(u.parse_voltage))]
+def _within(fn: Any, hi: float, unit: str) -> Any:
+    """Parse, then refuse values beyond ``hi`` (SI): a huge number is a unit slip, not a bench."""
+    def check(v: str) -> Any:
+        out = fn(v)
+        x = out.abs_pa if isinstance(out, u.Pressure) else out
+        if x > hi:
+            raise InputError(f"{v!r} is beyond {hi:g} {unit}, more than any bench uses; check the unit")
+        return out
+
+    return _str_only(check)
+
+
+PressureQ = Annotated[u.Pressure, BeforeValidator(_within(lambda s: u.parse_pressure(s), 2e8, "Pa (2000 bar)"))]
+TemperatureQ = Annotated[float, BeforeValidator(_within(u.parse_temperature, 773.15, "K (500 °C)"))]
+VolumeQ = Annotated[float, BeforeValidator(_within(u.parse_volume, 1e6, "m³"))]
+LengthQ = Annotated[float, BeforeValidator(_within(u.parse_length, 1e4, "m"))]
+DurationQ = Annotated[float, BeforeValidator(_within(u.parse_duration, 365 * 86400.0, "s (a year)"))]
+MassQ = Annotated[float, BeforeValidator(_within(u.parse_mass, 1e4, "kg"))]
+FrequencyQ = Annotated[float, BeforeValidator(_within(u.parse_frequency, 1e6, "Hz"))]
+VoltageQ = Annotated[float, BeforeValidator(_within(u.parse_voltage, 1e7, "V"))]
 FlowQ = Annotated[u.Flow, BeforeValidator(_str_only(u.parse_flow))]
 GasQ = Annotated[Gas, BeforeValidator(_str_only(parse_gas))]
 Id = Annotated[str, Field(min_length=1, max_length=40, pattern=r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$")]
@@ -127,6 +139,9 @@ class Supply(_Model):
     @model_validator(mode="after")
     def _check(self) -> Supply:
         _positive(self.water_volume, f"water_volume of supply {self.id}")
+        if self.water_volume > 5.0:
+            raise InputError(f"supply {self.id}: water_volume {self.water_volume:g} m³ is larger than a cylinder "
+                             "bundle (5 m³); check the unit")
         if (self.gross is None) != (self.tare is None):
             raise InputError(f"supply {self.id}: gross and tare go together")
         if self.gross is not None and self.tare is not None and self.gross < self.tare:

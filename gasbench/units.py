@@ -40,8 +40,8 @@ T0_K = 273.15
 def _registry() -> pint.UnitRegistry:
     import pint
 
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
-    return ureg
+    registry: pint.UnitRegistry = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    return registry
 
 
 def ureg() -> pint.UnitRegistry:
@@ -262,7 +262,9 @@ def parse_temperature(text: str, what: str = "temperature") -> float:
     u = _TEMP_ALIASES.get(unit.strip().lower())
     if u is None:
         raise InputError(f"unknown temperature unit {unit!r} in {what} {text!r}; use degC, degF or K")
-    kelvin = float(Q_(value, u).to("K").magnitude)
+    # exact definitions (ITS-90 / SI): checked against pint in tests/test_units.py
+    kelvin = {"degC": value + T0_K, "degF": (value - 32.0) * 5.0 / 9.0 + T0_K, "K": value,
+              "degR": value * 5.0 / 9.0}[u]
     if kelvin <= 0:
         raise InputError(f"{what} {text!r} is at or below absolute zero")
     return kelvin
@@ -282,11 +284,29 @@ def _pint_quantity(value: float, unit: str, text: str, what: str) -> pint.Quanti
         raise InputError(f"unknown unit {unit!r} in {what} {text!r}") from None
 
 
-def _parse_dim(text: str, what: str, target: str, examples: str) -> float:
-    import pint
+#: Exact factors of the commonest units to SI, so everyday input does not wait for pint's
+#: registry (about 0.8 s to import and build). tests/test_units.py checks each against pint.
+_FAST: dict[str, tuple[str, float]] = {
+    "l": ("m**3", 1e-3), "ml": ("m**3", 1e-6), "cm3": ("m**3", 1e-6), "cc": ("m**3", 1e-6), "m3": ("m**3", 1.0),
+    "ft3": ("m**3", 0.3048**3),
+    "mm": ("m", 1e-3), "cm": ("m", 1e-2), "m": ("m", 1.0), "um": ("m", 1e-6), "in": ("m", 0.0254),
+    "ft": ("m", 0.3048),
+    "s": ("s", 1.0), "min": ("s", 60.0), "h": ("s", 3600.0), "hr": ("s", 3600.0), "d": ("s", 86400.0),
+    "day": ("s", 86400.0), "days": ("s", 86400.0),
+    "kg": ("kg", 1.0), "g": ("kg", 1e-3), "lb": ("kg", 0.45359237),
+    "hz": ("Hz", 1.0), "khz": ("Hz", 1e3), "/s": ("Hz", 1.0), "/min": ("Hz", 1.0 / 60.0),
+    "v": ("V", 1.0), "kv": ("V", 1e3),
+}
 
+
+def _parse_dim(text: str, what: str, target: str, examples: str) -> float:
     value, unit = _split(text, what)
     _need_unit(unit, text, what, examples)
+    fast = _FAST.get(unit.strip().lower().replace("³", "3").replace("µ", "u"))
+    if fast is not None and fast[0] == target:
+        return value * fast[1]
+    import pint
+
     q = _pint_quantity(value, unit, text, what)
     try:
         return float(q.to(target).magnitude)

@@ -161,3 +161,22 @@ def test_errors_are_also_value_errors():
     with pytest.raises(ValueError):
         parse_volume("50")
     assert not math.isnan(parse_volume("0.5 m3"))
+
+
+def test_fast_unit_factors_agree_with_pint():
+    # the fast path's exact factors must be pint's (the one registry stays the reference)
+    from gasbench.units import _FAST, Q_
+
+    for unit, (target, factor) in _FAST.items():
+        pint_unit = {"l": "L", "ml": "mL", "cm3": "cm**3", "cc": "cm**3", "m3": "m**3", "ft3": "ft**3",
+                     "um": "um", "hr": "hour", "d": "day", "days": "day", "hz": "Hz", "khz": "kHz",
+                     "/s": "1/s", "/min": "1/min", "v": "V", "kv": "kV"}.get(unit, unit)
+        assert Q_(1.0, pint_unit).to(target).magnitude == pytest.approx(factor, rel=1e-12), unit
+
+
+def test_temperature_arithmetic_agrees_with_pint():
+    from gasbench.units import Q_
+
+    for text, unit in (("21.5 degC", "degC"), ("-40 degF", "degF"), ("300 K", "K"), ("500 degR", "degR")):
+        v = float(text.split()[0])
+        assert parse_temperature(text) == pytest.approx(Q_(v, unit).to("K").magnitude, rel=1e-12)

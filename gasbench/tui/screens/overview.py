@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import datetime as dt
 import math
+from collections.abc import Callable
 
 from rich.text import Text
 from textual import work
@@ -34,6 +35,7 @@ class OverviewScreen(Screen[None]):
         super().__init__()
         self.state = state
         self.cautions_shown = False
+        self._shown: dict[str, object] = {}
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -110,6 +112,7 @@ class OverviewScreen(Screen[None]):
         amb = st.plan.ambient_pa
         sup = self.query_one("#supplies", DataTable)
         sup.clear()
+        self._shown.clear()
         for s in st.plan.supplies:
             regs = [r for r in st.plan.regulators if r.supply_id == s.id]
             outlet = "—"
@@ -165,19 +168,33 @@ class OverviewScreen(Screen[None]):
             status = f"○ no session — press s to start ({fmt_hours(st.plan.session_hours)} planned)"
         if st.unsaved:
             status += f"   ✖ {len(st.unsaved)} reading(s) NOT saved to the journal"
-        self.query_one("#status", Static).update(status)
+        self._set("status", status, lambda v: self.query_one("#status", Static).update(str(v)))
         sup = self.query_one("#supplies", DataTable)
         for s in st.plan.supplies:
             if s.id not in sup.rows:  # the plan was recomputed and the table not yet refreshed
                 continue
             h = st.hours_left(s.id, now)
             at = now + dt.timedelta(hours=h) if math.isfinite(h) else None
-            sup.update_cell(s.id, "left", fmt_hours(h), update_width=False)
             left = (st.session_end - now).total_seconds() / 3600.0 if st.session_end else st.plan.session_hours
             colour = "green" if h >= left else ("yellow" if h >= 0.5 * left else "red")
-            sup.update_cell(s.id, "bar", Text(bar(h / st.plan.session_hours if st.plan.session_hours else 0.0, 8),
-                                              style=colour), update_width=False)
-            sup.update_cell(s.id, "at", at.strftime("%H:%M") if at else "never", update_width=False)
+            b = bar(h / st.plan.session_hours if st.plan.session_hours else 0.0, 8)
+            for col, val in (("left", fmt_hours(h)), ("bar", (b, colour)),
+                             ("at", at.strftime("%H:%M") if at else "never")):
+                self._set(f"{s.id}/{col}", val, self._cell_setter(sup, s.id, col))
+
+    @staticmethod
+    def _cell_setter(table: DataTable[object], row: str, col: str) -> Callable[[object], object]:
+        def apply(v: object) -> None:
+            shown = Text(str(v[0]), style=str(v[1])) if isinstance(v, tuple) else v
+            table.update_cell(row, col, shown, update_width=False)
+
+        return apply
+
+    def _set(self, key: str, value: object, apply: Callable[[object], object]) -> None:
+        """Apply a display change only when the shown value changes (keeps the idle app quiet)."""
+        if self._shown.get(key) != value:
+            self._shown[key] = value
+            apply(value)
 
     # -- actions
 
@@ -194,7 +211,7 @@ class OverviewScreen(Screen[None]):
                 self.notify(f"Session #{st.session_id} started", title="Session")
                 if not self.cautions_shown:
                     self.cautions_shown = True
-                    self.app.action_cautions()
+                    self.app.call_later(self.app.run_action, "cautions")
         except JournalError as exc:
             self.notify(str(exc), title="Journal", severity="error", timeout=10)
         self.refresh_view()

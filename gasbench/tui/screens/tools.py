@@ -71,13 +71,16 @@ class GraphScreen(_Tool):
         plt.plot(xs, [bar_g(p) for p in s.projection_pressure_abs_pa], label="planned", marker="braille")
         plt.hline(bar_g(s.reserve_abs_pa), "red")
         rs = sorted(st.readings.get(s.id, []), key=lambda r: r.at)
-        if rs:
-            plt.scatter([(r.at - origin).total_seconds() / 3600.0 for r in rs], [bar_g(r.pressure_abs_pa) for r in rs],
-                        label="readings", marker="o")
         ob = st.observed.get(s.id)
         if ob is not None and ob.fit_at:
             fx = [(dt.datetime.fromisoformat(a) - origin).total_seconds() / 3600.0 for a in ob.fit_at]
-            plt.plot(fx, [bar_g(p) for p in ob.fit_pressure_abs_pa], label="fitted", marker="dot")
+            plt.plot(fx, [bar_g(p) for p in ob.fit_pressure_abs_pa], label="fitted", marker="braille")
+        if rs:  # drawn last so they stay visible
+            plt.scatter([(r.at - origin).total_seconds() / 3600.0 for r in rs], [bar_g(r.pressure_abs_pa) for r in rs],
+                        label="readings", marker="o")
+        ys = [bar_g(p) for p in s.projection_pressure_abs_pa] + [bar_g(r.pressure_abs_pa) for r in rs]
+        lo, hi = bar_g(s.reserve_abs_pa), max(ys)
+        plt.ylim(min(lo, min(ys)) - 0.05 * (hi - lo), hi + 0.25 * (hi - lo))  # room above for the legend
         plt.xlabel("hours since " + ("session start" if st.started_at else "plan"))
         plt.ylabel("bar(g)")
         self.query_one("#graph-title", Static).update(
