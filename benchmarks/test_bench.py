@@ -167,3 +167,30 @@ def test_app_first_paint_and_reading_latency(benchmark, tmp_path):
     benchmark.pedantic(lambda: asyncio.run(run()), rounds=1, iterations=1)
     benchmark.extra_info.update(results)
     print(results)
+
+
+def test_projection_table_vs_propssi(benchmark, ratio):
+    """The 200-point pressure projection of the demo supply: Z(ρ) table vs one PropsSI per point."""
+    import CoolProp.CoolProp as CP
+
+    from gasbench.plan import _SupplyModel
+
+    prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
+    s = prof.supplies[0]
+    amb = prof.ambient_pa
+    T = s.reading_temperature
+    p0 = s.reading.abs_at(amb)
+    m0 = g.density(s.gas, T, p0) * s.water_volume
+    masses = m0 - 1e-4 * np.linspace(0, prof.session.duration, 200)
+
+    def ours():
+        model = _SupplyModel(s.gas, s.water_volume, T, max(p0, s.service_pressure.abs_at(amb)) * 1.02, amb)
+        return model.pressures(masses)
+
+    def plain():
+        return [CP.PropsSI("P", "D", m / s.water_volume, "T", T, "Nitrogen") for m in masses]
+
+    assert np.allclose(ours(), plain(), rtol=1e-4)
+    t_ours, t_plain = _best(ours), _best(plain)
+    ratio("projection 200 points (Z table vs PropsSI)", t_ours, t_plain)
+    benchmark.pedantic(ours, rounds=3, iterations=1)
