@@ -21,6 +21,28 @@ def test_span_2000_nitrogen_verification_value():
     assert rho_molar == pytest.approx(6.3552, abs=5e-4)
 
 
+@pytest.mark.parametrize(
+    "T, p, rho_kg_m3",
+    # Tegeler, Span & Wagner, J. Phys. Chem. Ref. Data 28 (1999) 779, Table 34 (p. 830),
+    # single-phase states (values as quoted in the test suite of pychemqt, lib/mEoS/Ar.py).
+    [(170.0, 1e6, 29.723), (400.0, 1e7, 119.43), (700.0, 1e5, 0.68619), (150.0, 5e5, 16.605)],
+)
+def test_tegeler_1999_argon_table_34(T, p, rho_kg_m3):
+    assert g.density(g.parse_gas("argon"), T, p) == pytest.approx(rho_kg_m3, rel=2e-4)
+
+
+@pytest.mark.parametrize(
+    "T, p, rho_mol_dm3",
+    # Lemmon, Jacobsen, Penoncello & Friend, J. Phys. Chem. Ref. Data 29 (2000) 331, Table A2
+    # (p. 366), single-phase air (values as quoted in pychemqt's test suite, lib/mEoS/Air.py).
+    [(500.0, 2e5, 0.048077), (130.0, 1e6, 1.0295), (2000.0, 10e6, 0.59094)],
+)
+def test_lemmon_2000_air_table_a2(T, p, rho_mol_dm3):
+    air = g.parse_gas("air")
+    molar = g.density(air, T, p) / g.state(air).molar_mass() / 1000.0
+    assert molar == pytest.approx(rho_mol_dm3, rel=2e-4)
+
+
 def test_air_and_helium_near_ideal_handbook_density():
     # Incropera & DeWitt, Table A.4 (from memory): helium at 300 K, 1 atm: ρ = 0.1625 kg/m³.
     # Air at 300 K, 1 atm against the ideal gas with Lemmon et al. (2000)'s molar mass
