@@ -242,7 +242,14 @@ def cmd_plan(args: argparse.Namespace) -> int:
     from gasbench.plan import build_plan
     from gasbench.profile import load_profile
 
-    plan = build_plan(load_profile(args.profile))
+    prof = load_profile(args.profile)
+    extra = 0.0
+    if args.leak:
+        from gasbench.room import leak_volume_flow
+
+        gas = prof.supplies[0].gas
+        extra = leak_volume_flow(gas, args.leak, prof.ambient.temperature, prof.ambient_pa)
+    plan = build_plan(prof, extra_leak_m3_s=extra)
     if args.json:
         emit_json(plan_json(plan))
         return 0
@@ -722,6 +729,7 @@ def _add_more_commands(sub: Any) -> None:
     """Sub-commands of the plan, hold-test, room, checklist and journal layers."""
     p = sub.add_parser("plan", help="session plan of a bench profile: run time, regulators, gaps, findings")
     p.add_argument("profile", help="bench profile (TOML)")
+    p.add_argument("--leak", help="add a leak into the room, e.g. a hold test's '12 sccm' (of the largest supply's gas)")
     _add_json(p)
     p.set_defaults(func=cmd_plan)
 

@@ -578,3 +578,26 @@ def live_findings(plan: Plan, observed: dict[str, Observed], session_end: dt.dat
                 f"{session_end.isoformat(timespec='minutes')[11:16]}: swap the cylinder or stop early",
                 f"reserve at {at[11:16]}"))
     return out
+
+
+#: A hold test older than this asks for a new one (gasbench default, also used by the checklist).
+HOLD_TEST_MAX_AGE_DAYS = 7.0
+
+
+def hold_test_findings(last: tuple[str, float, float, float] | None) -> list[Finding]:
+    """A finding from the bench's last hold test: (verdict, sccm, uncertainty sccm, age in days)."""
+    if last is None:
+        return [Finding("attention", "no-hold-test", "leaks", "no hold test recorded for this bench: run one (t)",
+                        "none")]
+    verdict, rate, u, age = last
+    figure = f"{verdict}, {rate:.3g} ± {u:.2g} sccm, {age:.1f} days ago"
+    if verdict == "leak":
+        return [Finding("stop", "hold-test-leak", "leaks", "the last hold test found a leak: find and fix it first",
+                        figure)]
+    if verdict == "inconclusive":
+        return [Finding("attention", "hold-test-inconclusive", "leaks",
+                        "the last hold test could not tell: hold longer or use a finer gauge", figure)]
+    if age > HOLD_TEST_MAX_AGE_DAYS:
+        return [Finding("attention", "hold-test-old", "leaks",
+                        f"the last hold test is older than {HOLD_TEST_MAX_AGE_DAYS:.0f} days: repeat it", figure)]
+    return [Finding("info", "hold-test-ok", "leaks", "last hold test resolved no leak", figure)]

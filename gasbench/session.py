@@ -223,7 +223,21 @@ class SessionState:
             return math.inf
         return sp.hours_to_reserve - (now - self.plan_at).total_seconds() / 3600.0
 
+    def last_hold_test(self) -> tuple[str, float, float, float] | None:
+        """(verdict, leak sccm, its uncertainty, age in days) of the bench's last hold test."""
+        if self.journal is None or self.profile is None:
+            return None
+        try:
+            row = self.journal.last_hold_test(self.profile.bench.name)
+        except JournalError:
+            return None
+        if row is None:
+            return None
+        age = (self.clock() - dt.datetime.fromisoformat(row.at)).total_seconds() / 86400.0
+        return row.verdict, row.leak_rate_sccm, row.leak_rate_uncertainty_sccm, age
+
     def findings(self) -> list[pl.Finding]:
         assert self.plan is not None
         live = pl.live_findings(self.plan, self.observed, self.session_end) if self.running else []
+        live += pl.hold_test_findings(self.last_hold_test())
         return sorted(live + list(self.plan.findings), key=lambda f: pl.SEVERITY_RANK[f.severity])

@@ -138,3 +138,51 @@ def test_hold_command_records_into_existing_journal(tmp_path, capsys):
     capsys.readouterr()
     with Journal(path) as j:
         assert j.last_hold_test("bench A").verdict == "leak"
+
+
+def test_full_disk_keeps_journal_consistent_and_says_so(tmp_path):
+    # Simulate a full disk: SQLite's max_page_count caps the file, so a write fails with
+    # "database or disk is full" exactly as on a full filesystem.
+    j = Journal(tmp_path / "full.sqlite3")
+    sid = j.start_session("x", None, "t")
+    j.db.execute("PRAGMA max_page_count = " + str(j.db.execute("PRAGMA page_count").fetchone()[0] + 2))
+    written = 0
+    with pytest.raises(JournalError, match="full"):
+        for i in range(100_000):
+            j.add_reading(sid, "s", f"t{i:06d}", 1e6, "x" * 500, 293.0, "e")
+            written += 1
+    assert written > 0
+    assert len(j.readings(sid)) == written  # every acknowledged reading is there, nothing half-written
+    assert j.integrity_ok()
+    j.close()
+
+
+async def test_app_tells_the_user_when_the_journal_cannot_write(tmp_path):
+    import datetime as dt
+
+    from gasbench.tui.app import make_app
+
+    t0 = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
+    app = make_app(None, tmp_path / "j.sqlite3", clock=lambda: t0)
+    async with app.run_test(size=(100, 32)) as pilot:
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await pilot.press("s")
+        await pilot.pause()
+        await pilot.press("escape")
+        j = app.state.journal
+
+        def failing_write(*args, **kwargs):  # a failing write, as on a full disk
+            raise JournalError(f"journal {j.path}: write failed (database or disk is full); nothing was recorded")
+
+        j.add_reading = failing_write
+        await pilot.press("r")
+        await pilot.pause()
+        app.screen.query_one("#pressure").value = "60 bar"
+        await pilot.press("enter")
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        # the reading is kept (not silently dropped), marked unsaved, and the status line says so
+        assert app.state.unsaved and app.state.readings["n2-A"][0].saved is False
+        assert "NOT saved" in str(app.screen.query_one("#status").render())

@@ -17,12 +17,11 @@ from typing import Any, Literal
 
 from gasbench.cautions import DEFER, ESTIMATES, GENERAL, Caution, gas_cautions
 from gasbench.errors import ProfileError
-from gasbench.plan import Plan
+from gasbench.plan import Plan, hold_test_findings
 from gasbench.profile import Profile
 from gasbench.units import fmt_hours, fmt_pressure
 
 Status = Literal["ok", "attention", "stop"]
-HOLD_TEST_MAX_AGE_DAYS = 7  # gasbench default: a hold test older than a week asks for a new one
 
 
 @dataclass(frozen=True)
@@ -195,21 +194,11 @@ def _regulator_outlet(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
 def _leak_status(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
     last: LastHoldTest | None = ctx.get("last_hold")
     now: dt.datetime = ctx["now"]
-    if last is None:
-        return [Item("leak-status", "Hold test of the supply and lines", "attention", "none recorded",
-                     "run a hold test (gasbench hold) before the session")]
-    age = (now - last.at).total_seconds() / 86400.0
-    status: Status = "ok"
-    reason = f"last test {last.verdict}"
-    if last.verdict == "leak":
-        status, reason = "stop", "the last hold test found a leak: find and fix it first"
-    elif last.verdict == "inconclusive":
-        status, reason = "attention", "the last hold test could not tell: hold longer or use a finer gauge"
-    if age > HOLD_TEST_MAX_AGE_DAYS and status == "ok":
-        status, reason = "attention", f"older than {HOLD_TEST_MAX_AGE_DAYS} days: repeat it"
-    return [Item("leak-status", "Hold test of the supply and lines", status,
-                 f"{last.verdict}, {last.leak_rate_sccm:.3g} ± {last.uncertainty_sccm:.2g} sccm, {age:.1f} days ago",
-                 reason, age, None)]
+    age = (now - last.at).total_seconds() / 86400.0 if last else None
+    f = hold_test_findings((last.verdict, last.leak_rate_sccm, last.uncertainty_sccm, age)
+                           if last is not None and age is not None else None)[0]
+    status: Status = {"stop": "stop", "warning": "attention", "attention": "attention", "info": "ok"}[f.severity]  # type: ignore[assignment]
+    return [Item("leak-status", "Hold test of the supply and lines", status, f.figure, f.text, age, None)]
 
 
 def _room_release(plan: Plan, ctx: dict[str, Any]) -> list[Item]:

@@ -225,6 +225,9 @@ class RoomScreen(_Tool):
         lines.append("Estimates of a well-mixed room: use a fixed oxygen monitor with alarm where gas can "
                      "accumulate; follow local codes and the supplier's safety data sheet.")
         self.query_one("#room-figures", Static).update("\n".join(lines))
+        last = st.last_hold_test()
+        if last is not None and last[1] > 0:
+            self.query_one("#room-leak", Input).value = f"{last[1]:.3g} sccm"
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         from gasbench import room as rm
