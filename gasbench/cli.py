@@ -70,6 +70,11 @@ def _add_ambient(p: argparse.ArgumentParser) -> None:
     p.add_argument("--altitude", metavar="H", help="derive atmospheric pressure from altitude (ISO 2533), e.g. '850 m'")
 
 
+def _add_journal(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--journal", metavar="PATH", default=argparse.SUPPRESS,
+                   help="session journal file (default: user data dir, or $GASBENCH_JOURNAL)")
+
+
 def _add_json(p: argparse.ArgumentParser) -> None:
     p.add_argument("--json", action="store_true", help="print SI results as JSON")
 
@@ -782,6 +787,7 @@ def _add_more_commands(sub: Any) -> None:
     p.add_argument("--pressure-unit", help="pressure unit of the log if not in its header, e.g. 'bar' or 'psia'")
     p.add_argument("--bench", help="bench name to file the test under in the journal (as in the profile)")
     p.add_argument("--supply", help="supply id to file the test under in the journal")
+    _add_journal(p)
     _add_ambient(p)
     _add_json(p)
     p.set_defaults(func=cmd_hold)
@@ -792,13 +798,16 @@ def _add_more_commands(sub: Any) -> None:
     p.add_argument("--output", metavar="FILE", help="write to FILE (required for pdf)")
     p.add_argument("--operator", help="operator's name for the sign-off")
     p.add_argument("--print", action="store_true", help="send the written file to the system's print command")
+    _add_journal(p)
     p.set_defaults(func=cmd_checklist)
 
     p = sub.add_parser("open", help="open the app on a bench profile")
     p.add_argument("profile", help="bench profile (TOML)")
+    _add_journal(p)
     p.set_defaults(func=lambda a: _run_app(a, a.profile))
 
     p = sub.add_parser("sessions", help="list the sessions in the journal")
+    _add_journal(p)
     _add_json(p)
     p.set_defaults(func=cmd_sessions)
 
@@ -806,6 +815,7 @@ def _add_more_commands(sub: Any) -> None:
     p.add_argument("session", type=int, help="session number (see 'gasbench sessions')")
     p.add_argument("--format", choices=["csv"], default="csv")
     p.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+    _add_journal(p)
     p.set_defaults(func=cmd_export)
 
     p = sub.add_parser("room", help="room oxygen after a release or during a leak")

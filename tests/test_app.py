@@ -208,3 +208,21 @@ def test_overview_snapshot_wide(snap_compare, tmp_path):
         await pilot.pause()
 
     assert snap_compare(app, terminal_size=(140, 36), run_before=ready)
+
+
+async def test_typing_c_in_an_input_does_not_open_the_cautions(journal_path):
+    # regression: the cautions key must not steal a "c" typed into a field ("5 sccm", "20 c")
+    app = make_app(None, journal_path, clock=Clock())
+    async with app.run_test(size=(100, 32)) as pilot:
+        await _ready(app, pilot)
+        await pilot.press("o")
+        await pilot.pause()
+        app.screen.query_one("#room-leak").focus()
+        app.screen.query_one("#room-leak").value = ""
+        await pilot.press(*"5 sccm")
+        await pilot.pause()
+        assert type(app.screen).__name__ == "RoomScreen"
+        assert app.screen.query_one("#room-leak").value == "5 sccm"
+        await pilot.press("enter")
+        await pilot.pause()
+        assert "steady" in str(app.screen.query_one("#room-extra").render())

@@ -186,3 +186,11 @@ async def test_app_tells_the_user_when_the_journal_cannot_write(tmp_path):
         # the reading is kept (not silently dropped), marked unsaved, and the status line says so
         assert app.state.unsaved and app.state.readings["n2-A"][0].saved is False
         assert "NOT saved" in str(app.screen.query_one("#status").render())
+
+
+def test_journal_option_after_the_sub_command(tmp_path, capsys):
+    path = tmp_path / "j.sqlite3"
+    with Journal(path) as j:
+        j.start_session("bench B", None, "2026-12-01T09:30:00")
+    assert main(["sessions", "--journal", str(path), "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["sessions"][0]["bench"] == "bench B"

@@ -20,7 +20,7 @@ class GasbenchApp(App[int]):
     HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (120, "-wide")]
     ENABLE_COMMAND_PALETTE = False
     BINDINGS = [
-        Binding("c", "cautions", "Cautions", priority=True),
+        Binding("c", "cautions", "Cautions"),  # not priority: a focused input keeps its "c"
         Binding("question_mark", "help", "Help", key_display="?"),
         Binding("q", "quit", "Quit"),
     ]
