@@ -30,13 +30,14 @@ class ReadingScreen(ModalScreen[Reading | None]):
         with Vertical(id="dialog", classes="dialog"):
             yield Static("New reading", classes="heading")
             yield Label("Supply")
-            yield Select([(s.id, s.id) for s in st.profile.supplies], value=first, allow_blank=False, id="supply")
+            yield Select([(s.id, s.id) for s in st.profile.supplies], value=first, allow_blank=False, id="supply",
+                         compact=True)
             yield Label("Gauge pressure (e.g. 142 bar, 2050 psi; bar(a) for absolute)")
-            yield Input(placeholder="142 bar", id="pressure")
+            yield Input(placeholder="142 bar", id="pressure", compact=True)
             yield Label("Cylinder temperature")
-            yield Input(value=self._last_temperature(first), id="temperature")
+            yield Input(value=self._last_temperature(first), id="temperature", compact=True)
             yield Label("Time (HH:MM, or leave 'now')")
-            yield Input(value="now", id="time")
+            yield Input(value="now", id="time", compact=True)
             yield Static("", id="error", classes="error")
             with Horizontal(classes="buttons"):
                 yield Button("Save", variant="primary", id="save")

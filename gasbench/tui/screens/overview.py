@@ -55,8 +55,8 @@ class OverviewScreen(Screen[None]):
 
     def on_mount(self) -> None:
         sup = self.query_one("#supplies", DataTable)
-        for label, key in (("Supply", "id"), ("Gas", "gas"), ("Reading", "reading"), ("Contents", "contents"),
-                           ("Usable", "usable"), ("To reserve", "left"), ("", "bar"), ("At", "at"),
+        for label, key in (("Supply", "id"), ("Gas", "gas"), ("Reading", "reading"), ("To reserve", "left"),
+                           ("At", "at"), ("", "bar"), ("Contents", "contents"), ("Usable", "usable"),
                            ("Regulator outlet", "outlet")):
             sup.add_column(label, key=key)
         dr = self.query_one("#draws", DataTable)
@@ -121,8 +121,8 @@ class OverviewScreen(Screen[None]):
                 outlet = ("/".join(fmt_pressure(r.set_point_abs_pa, amb).replace(" bar(g)", "") for r in regs)
                           + f" bar(g) {coldest - 273.15:.0f}°C")
             reading = "liquid (by weight)" if s.liquefied else fmt_pressure(s.pressure_abs_pa, amb)
-            sup.add_row(s.id, s.gas_name[:14], reading, f"{s.mass_kg:.2f} kg", f"{s.usable_mass_kg:.2f} kg",
-                        "", "", "", outlet, key=s.id)
+            sup.add_row(s.id, s.gas_name[:14], reading, "", "", "", f"{s.mass_kg:.2f} kg",
+                        f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
         dr = self.query_one("#draws", DataTable)
         dr.clear()
         for d in st.plan.draws:
