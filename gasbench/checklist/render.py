@@ -22,6 +22,16 @@ def _box(it: Item) -> str:
     return "[ ]" if it.status is None else f"[{MARK[it.status]}]"
 
 
+def _line(it: Item) -> str:
+    """One item as a line of text: box, text, figure and (for computed items) the reason."""
+    line = f"{_box(it)} {it.text}"
+    if it.figure:
+        line += f": {it.figure}"
+    if it.reason and it.status is not None:
+        line += f" — {it.reason}"
+    return line
+
+
 def render_text(cl: Checklist) -> str:
     """Plain text for a printed page: no line longer than 100 characters."""
     out: list[str] = []
@@ -37,12 +47,7 @@ def render_text(cl: Checklist) -> str:
     for s in cl.sections:
         para(s.title.upper())
         for it in s.items:
-            line = f"{_box(it)} {it.text}"
-            if it.figure:
-                line += f": {it.figure}"
-            if it.reason and it.status is not None:
-                line += f" — {it.reason}"
-            para(line, indent="      ", first="  ")
+            para(_line(it), indent="      ", first="  ")
         out.append("")
     para("CAUTIONS")
     for c in cl.cautions:
@@ -167,12 +172,7 @@ def render_pdf(cl: Checklist, path: str | Path) -> Path:
         pdf.ln(2)
         text(s.title, 12, "B")
         for it in s.items:
-            line = f"{_box(it)} {it.text}"
-            if it.figure:
-                line += f": {it.figure}"
-            if it.reason and it.status is not None:
-                line += f" — {it.reason}"
-            text(line, 10, "B" if it.status == "stop" else "", 0.5)
+            text(_line(it), 10, "B" if it.status == "stop" else "", 0.5)
     pdf.ln(2)
     text("Cautions", 12, "B")
     for c in cl.cautions:
