@@ -88,6 +88,8 @@ def _gas(args: argparse.Namespace) -> Any:
 def _bar(abs_pa: float, ambient: float) -> str:
     from gasbench.units import fmt_pressure
 
+    if abs_pa < 1e4:  # low pressures read better in mbar(a)
+        return f"{fmt_pressure(abs_pa, ambient)} = {fmt_pressure(abs_pa, ambient, 'mbar', kind='absolute')}"
     return f"{fmt_pressure(abs_pa, ambient)} = {fmt_pressure(abs_pa, ambient, kind='absolute')}"
 
 
@@ -354,7 +356,9 @@ def cmd_gap(args: argparse.Namespace) -> int:
         return 0
     emit_table("Spark gap self-breakdown (estimate)", [
         ("gas", b.gas_name), ("spacing", f"{b.spacing_m * 1000:g} mm"), ("pressure", _bar(p, amb)),
-        ("p·d at 20 °C", f"{b.pd_bar_cm_20c:.4g} bar·cm"), ("breakdown", f"{b.breakdown_kv:.2f} kV"),
+        ("p·d at 20 °C", f"{b.pd_bar_cm_20c:.4g} bar·cm"),
+        ("breakdown", f"{b.breakdown_kv:.2f} kV" if math.isfinite(b.breakdown_kv)
+         else "none predicted: p·d is left of the Paschen curve's asymptote"),
         ("method", b.method), ("valid for", b.validity)],
         ["real gaps differ (electrode shape, surface, pulse rise time): treat as an estimate"])
     return 0
