@@ -177,3 +177,14 @@ def test_flashover_margin_statuses():
 def test_gap_zero_spacing_is_an_error():
     with pytest.raises(InputError, match="spacing"):
         gap.breakdown(N2, 0.0, 3e5)
+
+
+@pytest.mark.parametrize("name", ["nitrogen", "air", "sf6", "helium", "argon", "neon:0.99,xenon:0.01"])
+def test_breakdown_series_equals_scalar(name):
+    import numpy as np
+
+    gas = g.parse_gas(name)
+    ps = np.geomspace(50.0, 20e5, 60)
+    series = gap.breakdown_series(gas, 2e-3, ps, 300.0)
+    scalar = [gap.breakdown(gas, 2e-3, float(p), 300.0).breakdown_kv for p in ps]
+    np.testing.assert_allclose(series, scalar, rtol=1e-12)  # infinities (no breakdown) must match too
