@@ -226,3 +226,22 @@ async def test_typing_c_in_an_input_does_not_open_the_cautions(journal_path):
         await pilot.press("enter")
         await pilot.pause()
         assert "steady" in str(app.screen.query_one("#room-extra").render())
+
+
+async def test_hold_screen_imports_a_log_and_plots_it(journal_path, tmp_path):
+    log = tmp_path / "night.csv"
+    rows = ["elapsed (h),pressure (bar),temperature (degC)"]
+    for i in range(13):
+        rows.append(f"{i},{64 - 0.08 * i:.2f},{21 - 0.1 * i:.1f}")
+    log.write_text("\n".join(rows) + "\n")
+    app = make_app(None, journal_path, clock=Clock())
+    async with app.run_test(size=(100, 50)) as pilot:
+        await _ready(app, pilot)
+        await pilot.press("t")
+        await pilot.pause()
+        scr = app.screen
+        scr.query_one("#hold-log").value = str(log)
+        scr.compute()
+        await pilot.pause()
+        assert "sccm" in str(scr.query_one("#hold-result").render())
+        assert scr.query_one("#hold-plot").display

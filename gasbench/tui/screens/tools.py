@@ -114,7 +114,11 @@ class HoldScreen(_Tool):
             yield Input(placeholder="or a log file: /path/to/log.csv", id="hold-log")
             yield Button("Compute and save", variant="primary", id="hold-go")
             yield Static("", id="hold-result")
+            yield PlotextPlot(id="hold-plot")
         yield Footer()
+
+    def on_mount(self) -> None:
+        self.query_one("#hold-plot").display = False
 
     def _last_line(self) -> str:
         st = self.state
@@ -146,14 +150,16 @@ class HoldScreen(_Tool):
         gauge = hd.GaugeSpec(s.gauge.range.typed_pa, s.gauge.accuracy_class,
                              s.gauge.resolution.typed_pa if s.gauge.resolution else None) if s.gauge else None
         out = self.query_one("#hold-result", Static)
+        fit = None
         try:
             if val("hold-log"):
                 try:
                     text = Path(val("hold-log")).expanduser().read_text(encoding="utf-8")
                 except (OSError, UnicodeDecodeError) as exc:
                     raise InputError(f"cannot read {val('hold-log')}: {exc}") from None
-                r = hd.hold_from_log(s.gas, s.water_volume, hd.parse_log(text, None, amb), gauge,
-                                     ambient_pa=amb, reserve_abs=s.reserve.abs_at(amb)).result
+                fit = hd.hold_from_log(s.gas, s.water_volume, hd.parse_log(text, None, amb), gauge,
+                                       ambient_pa=amb, reserve_abs=s.reserve.abs_at(amb))
+                r = fit.result
             else:
                 r = hd.hold_two_readings(
                     s.gas, s.water_volume, parse_pressure(val("hold-start"), amb, "start").abs_pa,
@@ -183,6 +189,25 @@ class HoldScreen(_Tool):
                 lines.insert(1, f"✖ not saved: {exc}")
             self.query_one("#last-hold", Static).update(self._last_line())
         out.update("\n".join(lines))
+        self._plot(fit)
+
+    def _plot(self, fit: object) -> None:
+        """Held mass against time with the least-squares line (logged series only)."""
+        widget = self.query_one("#hold-plot", PlotextPlot)
+        widget.display = fit is not None
+        if fit is None:
+            return
+        from gasbench.hold import LogFit
+
+        assert isinstance(fit, LogFit)
+        hours = [t / 3600.0 for t in fit.t_s]
+        plt = widget.plt
+        plt.clear_data()
+        plt.clear_figure()
+        plt.scatter(hours, [m * 1000 for m in fit.mass_kg], label="held mass, g", marker="o")
+        plt.plot(hours, [m * 1000 for m in fit.fit_kg], label="least-squares fit", marker="braille")
+        plt.xlabel("hours")
+        widget.refresh()
 
 
 # ----------------------------------------------------------------------------- room
