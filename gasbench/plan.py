@@ -350,9 +350,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             for dp in draw_plans:
                 if dp.regulator_id == r.id and dp.gap is not None:
                     gap_kv[dp.id] = tuple(float(x) for x in gp.breakdown_series(s.gas, dp.gap.spacing_m, o, T_amb))
-        contents = (sp.contents(s.gas, s.water_volume, p_now, T, ref) if not model.liquefied else
-                    sp.contents_by_weight(s.gas, mass_now + 1e-12, 1e-12, ref, T) if mass_now > 0 else None)
-        fv = contents.free_volume_m3 if contents and contents.free_volume_m3 else 0.0
+        fv = sp.free_volume(s.gas, mass_now, ref) if mass_now > 0 else 0.0
         supply_plans.append(SupplyPlan(
             s.id, s.gas.name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
             band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
