@@ -142,3 +142,45 @@ def test_altitude_sets_ambient():
     prof = parse_profile(BASE)
     assert prof.ambient_pa == pytest.approx(101325 * (1 - 2.25577e-5 * 120) ** 5.25588)
     assert not math.isnan(prof.ambient_pa)
+
+
+def test_cost_shots_and_gauge_band_of_the_demo_supply():
+    prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
+    plan = build_plan(prof)
+    sp = plan.supplies[0]
+    s = prof.supply(sp.id)
+    amb = plan.ambient_pa
+    # cost per hour = fill price / mass of a full cylinder (service pressure at 15 °C) × draw
+    full = g.density(s.gas, 288.15, s.service_pressure.abs_at(amb)) * s.water_volume
+    assert sp.cost_per_hour == pytest.approx(62.0 / full * sp.draw_kg_s * 3600)
+    # shots to reserve at the session's 12 Hz
+    assert sp.shots_to_reserve == pytest.approx(sp.hours_to_reserve * 3600 * 12)
+    # gauge band: the reading ± the class 1.6 error on a 315 bar span (EN 837-1: 5.04 bar)
+    mpe = 0.016 * 315e5
+    lo, hi = sp.hours_band
+    assert lo < sp.hours_to_reserve < hi
+    m_res = g.density(s.gas, sp.temperature_k, sp.reserve_abs_pa) * s.water_volume
+    m_hi = g.density(s.gas, sp.temperature_k, sp.pressure_abs_pa + mpe) * s.water_volume
+    assert hi == pytest.approx((m_hi - m_res) / sp.draw_kg_s / 3600, rel=1e-4)
+
+
+def test_plan_draws_and_regulators_come_from_the_core_functions():
+    from gasbench import flow, regulator, supply
+
+    prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
+    plan = build_plan(prof)
+    amb, T = plan.ambient_pa, prof.ambient.temperature
+    s = prof.supplies[0]
+    p_now = s.reading.abs_at(amb)
+    reg = {r.id: r for r in plan.regulators}
+    d = {x.id: x for x in plan.draws}
+    o = flow.orifice_flow(s.gas, 0.22e-3, reg["reg-channel"].set_point_abs_pa, 6000.0, T, 0.62)
+    assert d["channel"].mass_flow_kg_s == pytest.approx(o.mass_flow_kg_s)
+    assert d["gap-main"].mass_flow_kg_s == pytest.approx(
+        flow.per_shot_mass_flow(s.gas, 1.5e-6, reg["reg-gaps"].set_point_abs_pa, T, 12.0))
+    th = regulator.throttle(s.gas, p_now, reg["reg-gaps"].set_point_abs_pa, s.reading_temperature)
+    assert reg["reg-gaps"].outlet_temperature_k == pytest.approx(th.outlet_temperature_k)
+    hot = supply.heat_up(s.gas, p_now, s.reading_temperature, prof.ambient.hot_day, amb)
+    assert reg["reg-gaps"].supply_hot_day_abs_pa == pytest.approx(hot.pressure_abs_pa)
+    assert reg["reg-channel"].outlet_at_reserve_abs_pa == pytest.approx(
+        regulator.outlet_drift(reg["reg-channel"].set_point_abs_pa, p_now, s.reserve.abs_at(amb), (0.012,)))
