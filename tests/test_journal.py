@@ -194,3 +194,23 @@ def test_journal_option_after_the_sub_command(tmp_path, capsys):
         j.start_session("bench B", None, "2026-12-01T09:30:00")
     assert main(["sessions", "--journal", str(path), "--json"]) == 0
     assert json.loads(capsys.readouterr().out)["sessions"][0]["bench"] == "bench B"
+
+
+def test_app_writer_and_command_line_on_one_journal(tmp_path, capsys):
+    # A separate process writes readings (as the app does) while the command line records hold
+    # tests into the same journal: both complete, nothing is lost, the file stays consistent.
+    path = tmp_path / "shared.sqlite3"
+    Journal(path).close()
+    writer = WRITER.replace("range(10_000)", "range(150)")
+    proc = subprocess.Popen([sys.executable, "-c", writer, str(path)], stdout=subprocess.DEVNULL)
+    for _ in range(15):
+        assert main(["--journal", str(path), "hold", "--gas", "n2", "--volume", "10 L", "--start", "5 bar",
+                     "--end", "4.9 bar", "--duration", "1 h", "--bench", "shared", "--json"]) == 0
+    capsys.readouterr()
+    assert proc.wait(timeout=60) == 0
+    with Journal(path) as j:
+        assert j.integrity_ok()
+        s = j.unfinished_session("crash bench")
+        assert len(j.readings(s.id)) == 150
+        n = j.db.execute("SELECT COUNT(*) FROM hold_tests WHERE bench = 'shared'").fetchone()[0]
+        assert n == 15
