@@ -190,24 +190,22 @@ async def test_hold_screen_computes_and_stores(journal_path):
         assert "greater than zero" in str(scr.query_one("#hold-result").render())
 
 
-def test_overview_snapshot_80x24(snap_compare, tmp_path):
+def _overview_snapshot(snap_compare, tmp_path, size):
     app = make_app(None, tmp_path / "j.sqlite3", clock=Clock())
 
     async def ready(pilot):
         await app.workers.wait_for_complete()
         await pilot.pause()
 
-    assert snap_compare(app, terminal_size=(80, 24), run_before=ready)
+    return snap_compare(app, terminal_size=size, run_before=ready)
+
+
+def test_overview_snapshot_80x24(snap_compare, tmp_path):
+    assert _overview_snapshot(snap_compare, tmp_path, (80, 24))
 
 
 def test_overview_snapshot_wide(snap_compare, tmp_path):
-    app = make_app(None, tmp_path / "j.sqlite3", clock=Clock())
-
-    async def ready(pilot):
-        await app.workers.wait_for_complete()
-        await pilot.pause()
-
-    assert snap_compare(app, terminal_size=(140, 36), run_before=ready)
+    assert _overview_snapshot(snap_compare, tmp_path, (140, 36))
 
 
 async def test_typing_c_in_an_input_does_not_open_the_cautions(journal_path):
