@@ -104,6 +104,9 @@ PURE_GASES: dict[str, PureGas] = {
     ]
 }
 
+_FORMULA = {"nitrogen": "N2", "air": "air", "argon": "Ar", "helium": "He", "neon": "Ne", "krypton": "Kr",
+            "xenon": "Xe", "oxygen": "O2", "hydrogen": "H2", "carbon dioxide": "CO2", "sulfur hexafluoride": "SF6"}
+
 _ALIASES: dict[str, str] = {}
 for _g in PURE_GASES.values():
     _ALIASES[_g.key] = _g.key
@@ -146,6 +149,19 @@ class Gas:
         if not self.is_mixture:
             return self.components[0][0].name
         return " / ".join(f"{g.name} {100 * x:.4g} %" for g, x in self.components)
+
+    @property
+    def short_name(self) -> str:
+        """Short label for narrow tables: the name of a pure gas, formulas for a mixture
+        (``"He/N2/CO2 mix"``).
+
+        >>> parse_gas("sf6").short_name, parse_gas("he:0.8,n2:0.2").short_name
+        ('SF6', 'He/N2 mix')
+        """
+        if not self.is_mixture:
+            g = self.components[0][0]
+            return g.name if len(g.name) <= 14 else _FORMULA.get(g.key, g.name)
+        return "/".join(_FORMULA.get(g.key, g.key) for g, _ in self.components) + " mix"
 
     @property
     def molar_mass(self) -> float:

@@ -92,6 +92,7 @@ class RegulatorPlan:
 class SupplyPlan:
     id: str
     gas_name: str
+    gas_short: str
     liquefied: bool
     pressure_abs_pa: float
     temperature_k: float
@@ -352,7 +353,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
                     gap_kv[dp.id] = tuple(float(x) for x in gp.breakdown_series(s.gas, dp.gap.spacing_m, o, T_amb))
         fv = sp.free_volume(s.gas, mass_now, ref) if mass_now > 0 else 0.0
         supply_plans.append(SupplyPlan(
-            s.id, s.gas.name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
+            s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
             band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
             tuple(float(x) for x in p_proj), outlets, gap_kv))
         if mdot > 0 and not fits:

@@ -121,7 +121,7 @@ class OverviewScreen(Screen[None]):
                 outlet = ("/".join(fmt_pressure(r.set_point_abs_pa, amb).replace(" bar(g)", "") for r in regs)
                           + f" bar(g) {coldest - 273.15:.0f}°C")
             reading = "liquid (by weight)" if s.liquefied else fmt_pressure(s.pressure_abs_pa, amb)
-            sup.add_row(s.id, s.gas_name[:14], reading, "", "", "", f"{s.mass_kg:.2f} kg",
+            sup.add_row(s.id, s.gas_short[:16], reading, "", "", "", f"{s.mass_kg:.2f} kg",
                         f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
         dr = self.query_one("#draws", DataTable)
         dr.clear()
@@ -179,7 +179,8 @@ class OverviewScreen(Screen[None]):
             colour = "green" if h >= left else ("yellow" if h >= 0.5 * left else "red")
             b = bar(h / st.plan.session_hours if st.plan.session_hours else 0.0, 8)
             for col, val in (("left", fmt_hours(h)), ("bar", (b, colour)),
-                             ("at", at.strftime("%H:%M") if at else "never")):
+                             ("at", (at.strftime("%H:%M") if at.date() == now.date() else at.strftime("%a %H:%M"))
+                                     if at else "never")):
                 self._set(f"{s.id}/{col}", val, self._cell_setter(sup, s.id, col))
 
     @staticmethod
