@@ -75,6 +75,12 @@ def _add_journal(p: argparse.ArgumentParser) -> None:
                    help="session journal file (default: user data dir, or $GASBENCH_JOURNAL)")
 
 
+def _add_flow_reference(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--flow-reference", default=None, metavar="REF",
+                   help="reference condition of sccm/slpm flows: 0C (default), 15C, 20C or 70F "
+                        "(Nm3 stays at 0 degC, scfh/scfm at 70 degF)")
+
+
 def _add_json(p: argparse.ArgumentParser) -> None:
     p.add_argument("--json", action="store_true", help="print SI results as JSON")
 
@@ -212,7 +218,7 @@ def cmd_runtime(args: argparse.Namespace) -> int:
     p = parse_pressure(args.pressure, ambient).abs_pa
     res = parse_pressure(args.reserve, ambient, "reserve").abs_pa
     T = parse_temperature(args.temperature)
-    flows = [parse_flow(f) for f in args.flow]
+    flows = [parse_flow(f, reference=args.flow_reference) for f in args.flow]
     draws = [supply.mass_flow(gas, f) for f in flows]
     r = supply.runtime(gas, V, p, res, T, sum(draws))
     now = dt.datetime.now().astimezone()
@@ -422,7 +428,7 @@ def cmd_room(args: argparse.Namespace) -> int:
         return 0
     if args.ventilation and Q == 0 and args.ventilation_kind == "exhaust":
         raise _input(f"ventilation {args.ventilation!r} is zero: leave out --ventilation for an unventilated room")
-    R = rm.leak_volume_flow(gas, args.leak, T, amb)
+    R = rm.leak_volume_flow(gas, args.leak, T, amb, args.flow_reference)
     lk = rm.leak_o2(V, R, Q, args.ventilation_kind, args.oxygen)
     hz = rm.gas_hazards(gas, lk.o2_percent_steady, args.oxygen)
     if args.json:
@@ -726,6 +732,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--temperature", required=True)
     p.add_argument("--reserve", required=True, help="pressure at which to close or swap, e.g. '10 bar'")
     p.add_argument("--flow", required=True, action="append", help="a draw, e.g. '2 slpm'; repeat for more")
+    _add_flow_reference(p)
     _add_ambient(p)
     _add_json(p)
     p.set_defaults(func=cmd_runtime)
@@ -834,6 +841,7 @@ def _add_more_commands(sub: Any) -> None:
                    help="release model (default displacement, the most conservative)")
     p.add_argument("--temperature", default="20 degC", help="room temperature (default 20 degC)")
     p.add_argument("--oxygen", type=float, default=20.95, help="initial oxygen, %% (default 20.95)")
+    _add_flow_reference(p)
     _add_ambient(p)
     _add_json(p)
     p.set_defaults(func=cmd_room)

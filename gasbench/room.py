@@ -210,11 +210,11 @@ def o2_at(lk: Leak, t_s: float) -> float:
     return lk.o2_percent_steady + (lk.c0_percent - lk.o2_percent_steady) * math.exp(-lk.rate_per_s * t_s)
 
 
-def leak_volume_flow(gas: g.Gas, text: str, T_room: float, p_room: float) -> float:
+def leak_volume_flow(gas: g.Gas, text: str, T_room: float, p_room: float, reference: str | None = None) -> float:
     """A typed leak as actual volume flow at room conditions [m³/s]: a standard flow via the
     gas's real density at its reference and at the room (CoolProp HEOS), a mass flow via the
     density at the room, a plain volume flow as given (taken at room conditions)."""
-    f = parse_flow(text, what="leak")
+    f = parse_flow(text, reference=reference, what="leak")
     if f.kind == "actual":
         return f.value
     from gasbench.supply import mass_flow

@@ -104,3 +104,16 @@ def test_help_does_not_import_coolprop():
     r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
     assert r.returncode == 0, r.stderr
     assert "contents" in r.stdout
+
+
+def test_flow_reference_option_changes_the_mass_flow(capsys):
+    # 2 slpm at 20 °C is 273.15/293.15 of the mass of 2 slpm at 0 °C (ideal-gas ratio, Z ≈ 1)
+    base = ["runtime", "--gas", "n2", "--volume", "50 L", "--pressure", "180 bar", "--temperature", "20 degC",
+            "--reserve", "10 bar", "--flow", "2 slpm", "--json"]
+    main(base)
+    d0 = json.loads(capsys.readouterr().out)
+    main(base + ["--flow-reference", "20C"])
+    d20 = json.loads(capsys.readouterr().out)
+    assert d20["draw_kg_s"] / d0["draw_kg_s"] == pytest.approx(273.15 / 293.15, rel=1e-3)
+    assert main(base + ["--flow-reference", "25C"]) == 2
+    assert "unknown reference" in capsys.readouterr().err
