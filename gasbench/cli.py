@@ -75,6 +75,12 @@ def _add_journal(p: argparse.ArgumentParser) -> None:
                    help="session journal file (default: user data dir, or $GASBENCH_JOURNAL)")
 
 
+def _add_gas(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--gas", required=True,
+                   help="nitrogen, air, argon, helium, neon, krypton, xenon, oxygen, hydrogen, co2, sf6, "
+                        "or a mixture by mole fraction 'helium:0.8,nitrogen:0.135,co2:0.065'")
+
+
 def _add_flow_reference(p: argparse.ArgumentParser) -> None:
     p.add_argument("--flow-reference", default=None, metavar="REF",
                    help="reference condition of sccm/slpm flows: 0C (default), 15C, 20C or 70F "
@@ -703,7 +709,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = ap.add_subparsers(dest="command", parser_class=_Parser, metavar="COMMAND")
 
     p = sub.add_parser("contents", help="mass and free-gas volume in a cylinder (real gas)")
-    p.add_argument("--gas", required=True, help="gas name or mixture 'helium:0.8,nitrogen:0.2'")
+    _add_gas(p)
     p.add_argument("--volume", help="cylinder water volume, e.g. '50 L'")
     p.add_argument("--pressure", help="gauge reading, e.g. '200 bar' (or '150 bar(a)')")
     p.add_argument("--temperature", help="gas temperature, e.g. '20 degC'")
@@ -715,7 +721,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.set_defaults(func=cmd_contents)
 
     p = sub.add_parser("heat", help="pressure of a closed cylinder at another temperature")
-    p.add_argument("--gas", required=True)
+    _add_gas(p)
     p.add_argument("--pressure", required=True, help="reading now, e.g. '200 bar'")
     p.add_argument("--temperature", required=True, help="temperature now, e.g. '15 degC'")
     p.add_argument("--to", required=True, help="temperature to evaluate, e.g. '50 degC'")
@@ -726,7 +732,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.set_defaults(func=cmd_heat)
 
     p = sub.add_parser("runtime", help="hours until the reserve at given draws")
-    p.add_argument("--gas", required=True)
+    _add_gas(p)
     p.add_argument("--volume", required=True)
     p.add_argument("--pressure", required=True)
     p.add_argument("--temperature", required=True)
@@ -750,7 +756,7 @@ def _add_more_commands(sub: Any) -> None:
     p.set_defaults(func=cmd_plan)
 
     p = sub.add_parser("throttle", help="regulator outlet temperature (isenthalpic expansion)")
-    p.add_argument("--gas", required=True)
+    _add_gas(p)
     p.add_argument("--inlet", required=True, help="inlet pressure, e.g. '150 bar'")
     p.add_argument("--outlet", required=True, help="outlet pressure, e.g. '3 bar'")
     p.add_argument("--temperature", required=True, help="inlet temperature, e.g. '20 degC'")
@@ -759,7 +765,7 @@ def _add_more_commands(sub: Any) -> None:
     p.set_defaults(func=cmd_throttle)
 
     p = sub.add_parser("gap", help="estimated self-breakdown (firing) voltage of a spark gap")
-    p.add_argument("--gas", required=True)
+    _add_gas(p)
     p.add_argument("--spacing", required=True, help="electrode spacing, e.g. '2 mm'")
     p.add_argument("--pressure", required=True, help="gap pressure, e.g. '3 bar' (gauge) or '400 Torr'")
     p.add_argument("--temperature", default="20 degC", help="gas temperature (default 20 degC)")
@@ -768,7 +774,7 @@ def _add_more_commands(sub: Any) -> None:
     p.set_defaults(func=cmd_gap)
 
     p = sub.add_parser("orifice", help="flow through a bleed orifice or needle valve bore")
-    p.add_argument("--gas", required=True)
+    _add_gas(p)
     p.add_argument("--diameter", required=True, help="bore, e.g. '0.2 mm'")
     p.add_argument("--upstream", required=True, help="upstream pressure, e.g. '2 bar'")
     p.add_argument("--downstream", required=True, help="downstream pressure, e.g. '50 mbar(a)' or '0 bar'")
@@ -779,7 +785,7 @@ def _add_more_commands(sub: Any) -> None:
     p.set_defaults(func=cmd_orifice)
 
     p = sub.add_parser("hold", help="leak rate from an idle pressure drop (hold test)")
-    p.add_argument("--gas", required=True)
+    _add_gas(p)
     p.add_argument("--volume", help="held volume: cylinder water volume or trapped line volume, e.g. '50 L'")
     p.add_argument("--line-length", help="or compute the line volume: tube length, e.g. '3 m'")
     p.add_argument("--bore", help="... and inner diameter, e.g. '4 mm'")
@@ -830,7 +836,7 @@ def _add_more_commands(sub: Any) -> None:
     p.set_defaults(func=cmd_export)
 
     p = sub.add_parser("room", help="room oxygen after a release or during a leak")
-    p.add_argument("--gas", required=True)
+    _add_gas(p)
     p.add_argument("--room-volume", required=True, help="room volume, e.g. '40 m3'")
     g1 = p.add_mutually_exclusive_group(required=True)
     g1.add_argument("--release", help="sudden release: free-gas volume at room conditions ('9 m3') or a mass ('11 kg')")
