@@ -4,7 +4,7 @@ Sudden release of a free-gas volume Vg (at room conditions) into a room of volum
 
 * ``displacement`` (default, most conservative): the released gas pushes out an equal volume of
   room air before mixing, C = C0·(Vr − Vg)/Vr (BCGA Guidance Note GN11, "Reduced oxygen
-  atmospheres", appendix).
+  atmospheres"; appendix and formula from memory).
 * ``mixed``: continuously well mixed while room air escapes, C = C0·exp(−Vg/Vr).
 * ``sealed``: nothing escapes (room pressure rises), C = C0·Vr/(Vr + Vg).
 
@@ -17,7 +17,8 @@ V·dC/dt = inflow·C0 − outflow·C:
 * no ventilation (displaced air leaves, nothing enters): C(t) = C0·e^(−R·t/V).
 
 These are the well-mixed models of laboratory oxygen-deficiency-hazard procedures (e.g. the
-CERN and Fermilab ODH assessment notes; method as in BCGA GN11). Gases heavier than air
+CERN and Fermilab ODH assessment notes, from memory; method as in BCGA GN11). The tests check
+them against a direct numerical integration of the mixing equation. Gases heavier than air
 (argon, CO2, SF6) collect near the floor and in pits, lighter ones (helium, hydrogen) under the
 ceiling: there the well-mixed figure is optimistic.
 """

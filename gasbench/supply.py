@@ -152,7 +152,7 @@ def heat_up(
     """Pressure of a closed cylinder taken from T1 to T2 at constant density (isochoric).
 
     Real gas: ρ = ρ(T1, p1), then p2 = p(ρ, T2), both from CoolProp HEOS. Ideal comparison
-    p2 = p1·T2/T1. Compares p2 with the service pressure (rated at 15 °C, ISO 10286) and the
+    p2 = p1·T2/T1. Compares p2 with the service pressure (rated at 15 °C, ISO 10286, from memory) and the
     test pressure, and T2 with the common 52 °C storage limit (CGA P-1, from memory).
 
     >>> h = heat_up(g.parse_gas("nitrogen"), 201.01325e5, 288.15, 323.15)
