@@ -48,14 +48,14 @@ class GasbenchApp(App[int]):
 
 
 def make_app(profile_path: str | Path | None = None, journal_path: str | Path | None = None,
-             clock: Callable[[], dt.datetime] = now_local, use_journal: bool = True) -> GasbenchApp:
+             clock: Callable[[], dt.datetime] = now_local) -> GasbenchApp:
     """Build the app for a profile (default: the bundled demo bench) and a journal file
     (default: ``$GASBENCH_JOURNAL`` or the user data directory)."""
     from gasbench.journal import open_journal
     from gasbench.profile import demo_profile_path
 
     path = Path(profile_path) if profile_path else demo_profile_path()
-    journal = open_journal(journal_path) if use_journal else None
+    journal = open_journal(journal_path)
     return GasbenchApp(SessionState(path, journal, clock))
 
 
