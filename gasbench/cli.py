@@ -403,7 +403,6 @@ def cmd_room(args: argparse.Namespace) -> int:
     from dataclasses import asdict
 
     from gasbench import room as rm
-    from gasbench.gas import density
     from gasbench.units import fmt_hours, parse_temperature, parse_volume
 
     gas = _gas(args)
@@ -415,13 +414,7 @@ def cmd_room(args: argparse.Namespace) -> int:
     Q = rm.parse_ventilation(args.ventilation, V) if args.ventilation else 0.0
     notes = [rm.stratification_note(gas)]
     if args.release:
-        from gasbench.errors import InputError
-        from gasbench.units import parse_mass
-
-        try:
-            vg = parse_mass(args.release, "release") / density(gas, T, amb)
-        except InputError:
-            vg = parse_volume(args.release, "release (a volume or a mass)")
+        vg = rm.release_volume(gas, args.release, T, amb)
         r = rm.release(V, vg, args.model, args.oxygen)
         hz = rm.gas_hazards(gas, r.o2_percent_after_release, args.oxygen)
         if args.json:
@@ -459,10 +452,10 @@ def cmd_hold(args: argparse.Namespace) -> int:
     from gasbench.units import (
         fmt_hours,
         parse_duration,
-        parse_flow,
         parse_length,
         parse_pressure,
         parse_temperature,
+        parse_temperature_difference,
         parse_volume,
     )
 
@@ -487,15 +480,8 @@ def cmd_hold(args: argparse.Namespace) -> int:
             raise _input(f"gauge range {args.gauge_range!r} must be above zero")
         res = parse_pressure(args.resolution, 0.0, "resolution").abs_pa if args.resolution else None
         gauge = hd.GaugeSpec(span, args.gauge_class, res)
-    from gasbench.units import Q_
-
-    u_T = float(Q_(*_num_unit(args.t_uncertainty)).to("K").magnitude) if args.t_uncertainty else 0.5
-    target = None
-    if args.target:
-        f = parse_flow(args.target, what="target leak rate")
-        from gasbench.supply import mass_flow
-
-        target = hd.sccm_from_kg_s(gas, mass_flow(gas, f))
+    u_T = parse_temperature_difference(args.t_uncertainty) if args.t_uncertainty else 0.5
+    target = hd.target_sccm(gas, args.target) if args.target else None
     reserve = parse_pressure(args.reserve, amb, "reserve").abs_pa if args.reserve else None
     fit = None
     if args.log:
@@ -652,15 +638,6 @@ def cmd_export(args: argparse.Namespace) -> int:
     else:
         sys.stdout.write(text)
     return 0
-
-
-def _num_unit(text: str) -> tuple[float, str]:
-    from gasbench.units import _split
-
-    v, u = _split(text, "temperature uncertainty")
-    if u.strip().lower() in ("c", "degc", "°c", "k"):
-        u = "K"
-    return v, u or "K"
 
 
 def _record_hold(args: argparse.Namespace, gas: Any, r: Any) -> None:

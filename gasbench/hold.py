@@ -70,6 +70,14 @@ def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
     return mdot / standard_density(gas) * 60e6
 
 
+def target_sccm(gas: g.Gas, text: str) -> float:
+    """A typed target leak rate (any standard or mass flow) as sccm at 0 °C, 101.325 kPa."""
+    from gasbench.supply import mass_flow
+    from gasbench.units import parse_flow
+
+    return sccm_from_kg_s(gas, mass_flow(gas, parse_flow(text, what="target leak rate")))
+
+
 def pa_m3_s_from_sccm(sccm: float) -> float:
     """pV throughput [Pa·m³/s] of a standard flow at 101.325 kPa: 1 sccm = 101325/6e7 Pa·m³/s.
 

@@ -223,6 +223,18 @@ def leak_volume_flow(gas: g.Gas, text: str, T_room: float, p_room: float, refere
     return mass_flow(gas, f) / g.density(gas, T_room, p_room)
 
 
+def release_volume(gas: g.Gas, text: str, T_room: float, p_room: float) -> float:
+    """A typed release as a volume at room conditions [m³]: a mass (``"11 kg"``) through the gas's
+    real density at the room (CoolProp HEOS), a plain volume (``"9 m3"``) as given."""
+    from gasbench.units import parse_mass, parse_volume
+
+    try:
+        mass = parse_mass(text, "release")
+    except InputError:
+        return parse_volume(text, "release (a volume or a mass)")
+    return mass / g.density(gas, T_room, p_room)
+
+
 def stratification_note(gas: g.Gas) -> str:
     """Where the gas collects, from its density relative to air (ideal-gas ratio of molar masses)."""
     rd = gas.relative_density_to_air

@@ -270,6 +270,22 @@ def parse_temperature(text: str, what: str = "temperature") -> float:
     return kelvin
 
 
+def parse_temperature_difference(text: str, what: str = "temperature uncertainty") -> float:
+    """Parse a temperature difference (``0.5 K``, ``0.5 degC``, ``1 degF``) into kelvin.
+
+    >>> parse_temperature_difference("0.5 degC"), round(parse_temperature_difference("0.9 degF"), 6)
+    (0.5, 0.5)
+    """
+    value, unit = _split(text, what)
+    _need_unit(unit, text, what, '"0.5 K"')
+    u = _TEMP_ALIASES.get(unit.strip().lower())
+    if u is None:
+        raise InputError(f"unknown temperature unit {unit!r} in {what} {text!r}; use K, degC or degF")
+    if value < 0:
+        raise InputError(f"{what} {text!r} must be zero or more")
+    return value * (5.0 / 9.0 if u in ("degF", "degR") else 1.0)
+
+
 def _pint_quantity(value: float, unit: str, text: str, what: str) -> pint.Quantity:
     import pint
 

@@ -29,6 +29,14 @@ async def _ready(app, pilot):
     await pilot.pause()
 
 
+async def _start_session(app, pilot):
+    """Press s and close the cautions shown once when a session starts."""
+    await pilot.press("s")
+    await pilot.pause()
+    await pilot.press("escape")
+    await pilot.pause()
+
+
 async def _enter_reading(app, pilot, pressure, when="now", temperature=None):
     await pilot.press("r")
     await pilot.pause()
@@ -88,10 +96,7 @@ async def test_bad_reading_is_shown_inline_and_journal_unchanged(journal_path):
     app = make_app(None, journal_path, clock=Clock())
     async with app.run_test(size=(80, 24)) as pilot:
         await _ready(app, pilot)
-        await pilot.press("s")
-        await pilot.pause()
-        await pilot.press("escape")
-        await pilot.pause()
+        await _start_session(app, pilot)
         await pilot.press("r")
         await pilot.pause()
         await pilot.press(*"60", "enter")

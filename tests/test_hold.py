@@ -173,3 +173,10 @@ def test_hold_cli_json_and_errors(capsys, tmp_path):
     log.write_text("elapsed (h),pressure (bar)\n0,150\n2,149\n1,148\n")
     assert main(["hold", "--gas", "n2", "--volume", "50 L", "--log", str(log)]) == 2
     assert "row 4" in capsys.readouterr().err
+
+
+def test_target_leak_rate_in_any_flow_unit():
+    assert h.target_sccm(N2, "2 sccm") == pytest.approx(2.0)
+    assert h.target_sccm(N2, "0.1 slpm") == pytest.approx(100.0)
+    # a mass flow: 1 g/h of N2 is 1e-3/3600 kg/s ÷ 1.2504 kg/m³ (0 °C, 1 atm) = 13.33 sccm
+    assert h.target_sccm(N2, "1 g/h") == pytest.approx(1e-3 / 3600 / 1.2504 * 6e7, rel=2e-4)

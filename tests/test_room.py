@@ -154,3 +154,13 @@ def test_room_cli_json_keys_and_errors(capsys):
     assert main(["room", "--gas", "n2", "--room-volume", "5 m3", "--release", "9 m3", "--json"]) == 0
     d = json.loads(capsys.readouterr().out)
     assert d["o2_percent_after_release"] == 0.0 and d["notes"]
+
+
+def test_release_given_as_mass_or_volume():
+    # 11 kg of N2 at 20 °C, 1 atm: V = m/ρ with ρ = 1.1649 kg/m³ (real gas, CoolProp HEOS)
+    n2 = g.parse_gas("nitrogen")
+    assert room.release_volume(n2, "11 kg", 293.15, 101325.0) == pytest.approx(
+        11.0 / g.density(n2, 293.15, 101325.0))
+    assert room.release_volume(n2, "9 m3", 293.15, 101325.0) == pytest.approx(9.0)
+    with pytest.raises(InputError):
+        room.release_volume(n2, "9 bar", 293.15, 101325.0)
