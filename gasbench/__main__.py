@@ -1,4 +1,4 @@
-"""``python -m gasbench`` runs the same command line as the ``gasbench`` script."""
+"""``python -m gasbench``: the same as the ``gasbench`` command."""
 
 from gasbench.cli import main
 

@@ -16,6 +16,23 @@ from typing import Any, NoReturn
 
 EXIT_INPUT = 2
 
+HOLD_LOG_FORMAT = """\
+log file (--log): CSV with a header row, comma-separated, decimal points (a semicolon-separated
+file is read too; decimal commas and thousands separators are refused), '#' lines ignored:
+  time       elapsed time with its unit in the header ('time (min)', 'elapsed_h'; s, min, h, d)
+             or ISO 8601 timestamps ('2026-11-27T18:00', all with or all without a UTC offset)
+  pressure   gauge unless the unit says absolute: 'pressure (bar)', 'pressure (psia)', 'p_bar'
+             (or give --pressure-unit)
+  temperature  optional: 'temperature (degC)', 'T_K'; without it the temperature is taken as
+             constant (--t-start, default 20 degC) with 1 K uncertainty
+example:
+  time (h),pressure (bar),temperature (degC)
+  0,152.0,21.0
+  6,151.3,19.5
+Uncertainty (GUM): each reading MPE/sqrt(3) from --gauge-class x --gauge-range, (+) --resolution/sqrt(12)
+when given, each temperature --t-uncertainty; the log fit adds its standard error.
+"""
+
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message: str) -> NoReturn:  # one line, exit 2
@@ -134,6 +151,11 @@ def cmd_contents(args: argparse.Namespace) -> int:
             raise _input("contents needs --volume, --pressure and --temperature (or --gross and --tare)")
         p = parse_pressure(args.pressure, ambient)
         c = supply.contents(gas, parse_volume(args.volume, "cylinder volume"), p.abs_pa, T, ref)
+    if c.mass_kg is None:
+        # no pressure-based contents: the same one line and exit status in text and JSON modes
+        if c.phase == "liquid-full":
+            raise _input(c.notes[0])
+        raise _input(c.notes[0] + " Use --gross and --tare.")
     if args.json:
         d = asdict(c)
         d["reference_temperature_k"] = ref.temperature_k
@@ -147,13 +169,13 @@ def cmd_contents(args: argparse.Namespace) -> int:
     if c.pressure_abs_pa is not None:
         rows.append(("pressure", _bar(c.pressure_abs_pa, ambient)))
     rows.append(("temperature", f"{c.temperature_k - 273.15:.1f} °C"))
-    if c.liquefied and c.mass_kg is None:
-        emit_table("Cylinder contents", rows + [("contents", "unknown from pressure: liquefied")], c.notes)
-        sys.stderr.write("gasbench: error: " + c.notes[0] + " Use --gross and --tare.\n")
-        return EXIT_INPUT
-    assert c.mass_kg is not None and c.free_volume_m3 is not None
+    assert c.free_volume_m3 is not None
     if c.density_kg_m3 is not None:
         rows += [("density", f"{c.density_kg_m3:.3f} kg/m³"), ("Z", f"{c.z:.4f}")]
+    if c.phase == "two-phase":
+        rows.append(("phase", f"two-phase: vapour fraction {c.vapour_fraction:.2f} (by moles)"))
+    if c.filling_ratio_kg_l is not None:
+        rows.append(("filling ratio", f"{c.filling_ratio_kg_l:.3f} kg/L" + (" (OVERFILLED)" if c.overfilled else "")))
     rows += [
         ("mass", f"{c.mass_kg:.3f} kg"),
         ("free gas", f"{c.free_volume_m3:.3f} m³ = {c.free_volume_m3 * 1000:.0f} L at {ref.label}"),
@@ -364,13 +386,21 @@ def cmd_gap(args: argparse.Namespace) -> int:
     p = parse_pressure(args.pressure, amb, "gap pressure").abs_pa
     b = breakdown(gas, parse_length(args.spacing, "gap spacing"), p, parse_temperature(args.temperature))
     if args.json:
-        emit_json(asdict(b))
+        d = asdict(b)
+        if not b.within_validity:
+            d["breakdown_kv"] = None  # no figure outside the methods' validity
+        emit_json(d)
         return 0
+    if not b.within_validity:
+        shown = "WARNING: outside the validity of the methods (below)"
+    elif math.isfinite(b.breakdown_kv):
+        shown = f"{b.breakdown_kv:.2f} kV"
+    else:
+        shown = "none predicted: p·d is left of the Paschen curve's asymptote"
     emit_table("Spark gap self-breakdown (estimate)", [
         ("gas", b.gas_name), ("spacing", f"{b.spacing_m * 1000:g} mm"), ("pressure", _bar(p, amb)),
         ("p·d at 20 °C", f"{b.pd_bar_cm_20c:.4g} bar·cm"),
-        ("breakdown", f"{b.breakdown_kv:.2f} kV" if math.isfinite(b.breakdown_kv)
-         else "none predicted: p·d is left of the Paschen curve's asymptote"),
+        ("breakdown", shown),
         ("method", b.method), ("valid for", b.validity)],
         ["real gaps differ (electrode shape, surface, pulse rise time): treat as an estimate"])
     return 0
@@ -480,7 +510,7 @@ def cmd_hold(args: argparse.Namespace) -> int:
             raise _input(f"gauge range {args.gauge_range!r} must be above zero")
         res = parse_pressure(args.resolution, 0.0, "resolution").abs_pa if args.resolution else None
         gauge = hd.GaugeSpec(span, args.gauge_class, res)
-    u_T = parse_temperature_difference(args.t_uncertainty) if args.t_uncertainty else 0.5
+    u_T = parse_temperature_difference(args.t_uncertainty) if args.t_uncertainty else hd.U_T_DEFAULT
     target = hd.target_sccm(gas, args.target) if args.target else None
     reserve = parse_pressure(args.reserve, amb, "reserve").abs_pa if args.reserve else None
     fit = None
@@ -510,7 +540,7 @@ def cmd_hold(args: argparse.Namespace) -> int:
         if fit is not None:
             d |= {"log_rows": fit.n, "slope_se_kg_s": fit.slope_se_kg_s, "residual_rms_kg": fit.residual_rms_kg,
                   "residual_max_kg": fit.residual_max_kg, "residual_rms_pa": fit.residual_rms_pa,
-                  "curvature_significant": fit.curvature_significant}
+                  "curvature_significant": bool(fit.curvature_significant)}
         emit_json(d | {"guidance": list(hd.GUIDANCE)})
         return 0
     words = {"leak": "LEAK: the mass loss is larger than its uncertainty",
@@ -761,7 +791,8 @@ def _add_more_commands(sub: Any) -> None:
     _add_json(p)
     p.set_defaults(func=cmd_orifice)
 
-    p = sub.add_parser("hold", help="leak rate from an idle pressure drop (hold test)")
+    p = sub.add_parser("hold", help="leak rate from an idle pressure drop (hold test)",
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=HOLD_LOG_FORMAT)
     _add_gas(p)
     p.add_argument("--volume", help="held volume: cylinder water volume or trapped line volume, e.g. '50 L'")
     p.add_argument("--line-length", help="or compute the line volume: tube length, e.g. '3 m'")
@@ -771,10 +802,12 @@ def _add_more_commands(sub: Any) -> None:
     p.add_argument("--duration", help="hold time, e.g. '14 h'")
     p.add_argument("--t-start", help="temperature at the start, e.g. '21 degC'")
     p.add_argument("--t-end", help="temperature at the end, e.g. '17 degC'")
-    p.add_argument("--t-uncertainty", default="0.5 K", help="standard uncertainty of each temperature (default 0.5 K)")
+    p.add_argument("--t-uncertainty", default=None,
+                   help="standard uncertainty of each temperature (default 0.5 K; 1 K when no temperatures are given)")
     p.add_argument("--gauge-range", help="gauge full scale, e.g. '250 bar'")
     p.add_argument("--gauge-class", type=float, help="gauge accuracy class (EN 837-1), e.g. 1.6")
-    p.add_argument("--resolution", help="smallest reading step, e.g. '1 bar' (default: one class error)")
+    p.add_argument("--resolution", help="smallest reading step, e.g. '1 bar'; adds resolution/√12 to each "
+                                        "reading's MPE/√3 (default: none beyond the class)")
     p.add_argument("--target", help="leak rate that matters, e.g. '10 sccm' (default 1 %% of contents per day)")
     p.add_argument("--reserve", help="reserve pressure, for time to reserve at this leak")
     p.add_argument("--log", metavar="FILE.csv", help="logged series instead of two readings")
@@ -844,6 +877,14 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_INPUT
     except KeyboardInterrupt:
         return 130
+    except BrokenPipeError:
+        # the reader went away (``gasbench plan --json | head``): stop quietly, and keep Python
+        # from complaining again when it flushes standard output at exit
+        import os
+
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return 0
 
 
 def _run_app(args: argparse.Namespace, profile_path: str | None) -> int:

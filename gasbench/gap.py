@@ -102,6 +102,75 @@ def relative_strength(gas: g.Gas) -> float:
     return sum(x * RELATIVE_STRENGTH.get(c.key, 1.0) for c, x in gas.components)
 
 
+#: Where Paschen's law hands over to the high-p·d rule, [bar·cm at 20 °C] (0.1 bar·cm =
+#: 75 Torr·cm, the lower end of the empirical air formula's range).
+PD_JOIN = 0.1
+#: Upper end of the uniform-field methods' stated validity, [bar·cm at 20 °C].
+PD_MAX = 100.0
+_LN_LN = math.log(math.log(1.0 + 1.0 / GAMMA))
+
+
+def _high_pd_kv(gas: g.Gas, pd: Any) -> Any:
+    import numpy as np
+
+    pd = np.asarray(pd, dtype=float)
+    return (6.72 * np.sqrt(np.clip(pd, 0.0, None)) + 24.36 * pd) * relative_strength(gas)
+
+
+def _paschen_kv(A: float, B: float, pd_bar_cm: Any) -> Any:
+    import numpy as np
+
+    pd_torr = np.asarray(pd_bar_cm, dtype=float) * 1e5 / TORR_PA
+    with np.errstate(divide="ignore", invalid="ignore"):
+        denom = np.log(A * pd_torr) - _LN_LN
+        return np.where(denom > 0, B * pd_torr / denom / 1000.0, np.inf)
+
+
+def join_parameters(gas: g.Gas) -> tuple[float, float] | None:
+    """(c, n) of the join between Paschen's law and the high-p·d rule, or None where the gas
+    has no Paschen constants (the high-p·d rule is then used throughout).
+
+    Below p·d_j = 0.1 bar·cm the Paschen voltage is multiplied by 1 + c·(pd/pd_j)^n with
+    c = V_high(pd_j)/V_Paschen(pd_j) − 1, so the two methods meet at pd_j and Paschen's law
+    is recovered towards the minimum. The exponent n ≤ 1 is chosen so that the joined curve
+    keeps rising at pd_j (where c < 0 it must not exceed the Paschen curve's logarithmic slope
+    × (1 + c)/(−c)); the join is an interpolation of ours between two published methods.
+    """
+    pure = None if gas.is_mixture else gas.components[0][0].key
+    if pure not in PASCHEN:
+        return None
+    A, B = PASCHEN[pure]
+    v_p = float(_paschen_kv(A, B, PD_JOIN))
+    v_h = float(_high_pd_kv(gas, PD_JOIN))
+    c = v_h / v_p - 1.0
+    if c >= 0:
+        return c, 1.0
+    pd_torr = PD_JOIN * 1e5 / TORR_PA
+    log_slope = 1.0 - 1.0 / (math.log(A * pd_torr) - _LN_LN)
+    return c, min(1.0, 0.8 * log_slope * (1.0 + c) / -c)
+
+
+def breakdown_series(gas: g.Gas, spacing_m: float, p_abs: Any, T: float = T_REF) -> Any:
+    """Self-breakdown voltages [kV] for an array of absolute pressures [Pa] (numpy): the one
+    implementation of the methods in the module docstring, joined continuously at
+    p·d = 0.1 bar·cm (:func:`join_parameters`). ``inf`` where Paschen's law predicts no
+    breakdown (left of its asymptote)."""
+    import numpy as np
+
+    check_positive(spacing_m, "gap spacing", "m")
+    p = np.asarray(p_abs, dtype=float)
+    pd = p / 1e5 * spacing_m * 100.0 * T_REF / T
+    high = _high_pd_kv(gas, pd)
+    join = join_parameters(gas)
+    if join is None:
+        return high
+    c, n = join
+    A, B = PASCHEN[gas.components[0][0].key]
+    with np.errstate(invalid="ignore"):
+        low = _paschen_kv(A, B, pd) * (1.0 + c * np.clip(pd / PD_JOIN, 0.0, 1.0) ** n)
+    return np.where(pd >= PD_JOIN, high, low)
+
+
 @dataclass(frozen=True)
 class Breakdown:
     gas_name: str
@@ -110,6 +179,7 @@ class Breakdown:
     temperature_k: float
     pd_bar_cm_20c: float
     breakdown_kv: float
+    within_validity: bool
     method: str
     validity: str
 
@@ -117,7 +187,9 @@ class Breakdown:
 def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> Breakdown:
     """Estimated self-breakdown voltage of a uniform-field gap (see module docstring).
 
-    The gas density enters through p·d scaled to 20 °C: (p·d)·(293.15 K / T).
+    The gas density enters through p·d scaled to 20 °C: (p·d)·(293.15 K / T). Above
+    p·d = 100 bar·cm the methods are outside their stated validity: ``within_validity`` is
+    False and the figure must not be shown as a firing voltage.
 
     >>> b = breakdown(g.parse_gas("nitrogen"), 3e-3, 4.0e5)
     >>> round(b.breakdown_kv, 1), b.method.split(",")[0]
@@ -125,27 +197,29 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     """
     check_positive(spacing_m, "gap spacing", "m")
     check_positive(p_abs, "gap pressure (absolute)", "Pa")
-    check_positive(T, "gas temperature", "K")
-    d_cm = spacing_m * 100.0
-    pd_bar_cm = p_abs / 1e5 * d_cm * T_REF / T
+    g.check_state(gas, T, p_abs)
+    pd_bar_cm = p_abs / 1e5 * spacing_m * 100.0 * T_REF / T
+    kv = float(breakdown_series(gas, spacing_m, p_abs, T))
     pure = None if gas.is_mixture else gas.components[0][0].key
-    if pd_bar_cm >= 0.1 or pure not in PASCHEN:
-        kv = air_uniform_field_kv(pd_bar_cm) * relative_strength(gas)
+    if pd_bar_cm >= PD_JOIN or pure not in PASCHEN:
         if pure in ("air", "nitrogen"):
             method = "empirical uniform-field formula for air (Kuffel, Zaengl & Kuffel 2000)"
         else:
             method = ("air formula × relative dielectric strength "
                       f"{relative_strength(gas):.2f} (common practice, rough)")
         validity = "uniform field, 0.1 to ~100 bar·cm; static breakdown"
-        if pd_bar_cm < 0.1:
+        if pd_bar_cm < PD_JOIN:
             validity = "below 0.1 bar·cm the air formula is extrapolated: rough"
     else:
         A, B = PASCHEN[pure]
-        pd_torr_cm = pd_bar_cm * 1e5 / TORR_PA
-        kv = paschen_voltage(pd_torr_cm, A, B) / 1000.0
-        method = f"Paschen's law, A = {A:g}, B = {B:g} (Raizer 1991), γ = {GAMMA:g}"
+        method = (f"Paschen's law, A = {A:g}, B = {B:g} (Raizer 1991), γ = {GAMMA:g}, joined "
+                  "continuously to the high-p·d rule at 0.1 bar·cm")
         validity = "uniform field, p·d below 0.1 bar·cm (75 Torr·cm); no breakdown left of the asymptote"
-    return Breakdown(gas.name, spacing_m, p_abs, T, pd_bar_cm, kv, method, validity)
+    within = pd_bar_cm <= PD_MAX
+    if not within:
+        validity = (f"p·d = {pd_bar_cm:.0f} bar·cm is beyond the ~{PD_MAX:.0f} bar·cm the methods cover: "
+                    "no estimate")
+    return Breakdown(gas.name, spacing_m, p_abs, T, pd_bar_cm, kv, within, method, validity)
 
 
 @dataclass(frozen=True)
@@ -181,22 +255,3 @@ def flashover_margin(part: str, breakdown_kv: float, clearance_m: float, rating_
                   "clearance × 1 kV/mm (common practice) or rating, whichever is lower")
 
 
-
-def breakdown_series(gas: g.Gas, spacing_m: float, p_abs: Any, T: float = T_REF) -> Any:
-    """:func:`breakdown` voltages [kV] for an array of absolute pressures (same methods,
-    vectorised with numpy for projections; tested equal to the scalar function)."""
-    import numpy as np
-
-    check_positive(spacing_m, "gap spacing", "m")
-    p = np.asarray(p_abs, dtype=float)
-    pd = p / 1e5 * spacing_m * 100.0 * T_REF / T
-    pure = None if gas.is_mixture else gas.components[0][0].key
-    air = (6.72 * np.sqrt(np.clip(pd, 0.0, None)) + 24.36 * pd) * relative_strength(gas)
-    if pure not in PASCHEN:
-        return air
-    A, B = PASCHEN[pure]
-    pd_torr = pd * 1e5 / TORR_PA
-    with np.errstate(divide="ignore", invalid="ignore"):
-        denom = np.log(A * pd_torr) - math.log(math.log(1.0 + 1.0 / GAMMA))
-        pas = np.where(denom > 0, B * pd_torr / denom / 1000.0, np.inf)
-    return np.where(pd >= 0.1, air, pas)

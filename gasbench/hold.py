@@ -55,9 +55,19 @@ class GaugeSpec:
 
     @property
     def u_reading_pa(self) -> float:
-        """Standard uncertainty of one reading: MPE/√3 ⊕ resolution/(2√3) (GUM)."""
-        res = self.resolution_pa if self.resolution_pa is not None else self.mpe_pa
-        return math.hypot(self.mpe_pa / SQRT3, res / (2.0 * SQRT3))
+        """Standard uncertainty of one reading (GUM, JCGM 100:2008, rectangular distributions):
+        MPE/√3 from the accuracy class, ⊕ resolution/√12 where a resolution is given (a
+        resolution not given is taken as already inside the class's MPE).
+
+        >>> round(GaugeSpec(250e5, 1.0).u_reading_pa)            # 2.5 bar MPE / √3
+        144338
+        >>> round(GaugeSpec(250e5, 1.0, 0.5e5).u_reading_pa)     # ⊕ 0.5 bar / √12
+        145057
+        """
+        u = self.mpe_pa / SQRT3
+        if self.resolution_pa is not None:
+            u = math.hypot(u, self.resolution_pa / (2.0 * SQRT3))
+        return u
 
 
 def standard_density(gas: g.Gas) -> float:
@@ -106,6 +116,25 @@ def _dm(gas: g.Gas, V: float, T: float, p: float) -> tuple[float, float, float]:
     dmdp = (g.density(gas, T, p + dp) - g.density(gas, T, p - dp)) * V / (2 * dp)
     dmdT = (g.density(gas, T + dT, p) - g.density(gas, T - dT, p)) * V / (2 * dT)
     return m, dmdp, dmdT
+
+
+#: Default standard uncertainty of a temperature reading [K] when temperatures are given, and
+#: the larger one used when they are not (an unmeasured change of about 1 K is common).
+U_T_DEFAULT = 0.5
+U_T_UNMEASURED = 1.0
+
+
+def mass_change_uncertainty(dm1p: float, dm2p: float, dm1T: float, dm2T: float, u_p: float,
+                            u_T: float) -> float:
+    """Standard uncertainty [kg] of the held mass change m1 − m2 (GUM law of propagation, the
+    one budget of both hold-test modes): each of the two pressure readings contributes
+    ∂m/∂p·u_p and each temperature ∂m/∂T·u_T, taken as uncorrelated (conservative for one
+    gauge: its zero error cancels in a difference, its hysteresis and non-linearity do not).
+
+    >>> round(mass_change_uncertainty(1.0, 1.0, 0.0, 0.0, 3.0, 0.5), 4)    # √2 · 3
+    4.2426
+    """
+    return math.sqrt((dm1p * u_p) ** 2 + (dm2p * u_p) ** 2 + (dm1T * u_T) ** 2 + (dm2T * u_T) ** 2)
 
 
 @dataclass(frozen=True)
@@ -200,7 +229,7 @@ def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: flo
 def hold_two_readings(
     gas: g.Gas, volume_m3: float, p_start: float, p_end: float, duration_s: float,
     T_start: float | None = None, T_end: float | None = None, gauge: GaugeSpec | None = None,
-    u_T: float = 0.5, target_sccm: float | None = None, reserve_abs: float | None = None,
+    u_T: float = U_T_DEFAULT, target_sccm: float | None = None, reserve_abs: float | None = None,
     ambient_pa: float = ATM_PA,
 ) -> HoldResult:
     """Leak rate from two readings (see module docstring for method and uncertainty).
@@ -234,8 +263,8 @@ def hold_two_readings(
     u_p = gauge.u_reading_pa if gauge is not None else 0.0
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
-    u_T_eff = u_T if temps_given else max(u_T, 1.0)
-    u_dm = math.sqrt((dm1p * u_p) ** 2 + (dm2p * u_p) ** 2 + (dm1T * u_T_eff) ** 2 + (dm2T * u_T_eff) ** 2)
+    u_T_eff = u_T if temps_given else max(u_T, U_T_UNMEASURED)
+    u_dm = mass_change_uncertainty(dm1p, dm2p, dm1T, dm2T, u_p, u_T_eff)
     mdot = (m1 - m2) / duration_s
     return _common(gas, volume_m3, duration_s, p_start, p_end, T_start, T_end, mdot, u_dm / duration_s, u_dm,
                    m1, m2, dm2p, gauge, target_sccm, reserve_abs, ambient_pa, temps_given, notes,
@@ -273,10 +302,21 @@ def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = A
     temperature column (``temperature (degC)``, ``T_K``). Errors name the row."""
     from gasbench.units import parse_pressure, parse_temperature
 
-    rows = list(csv.reader(io.StringIO(text)))
-    rows = [r for r in rows if r and any(c.strip() for c in r) and not r[0].lstrip().startswith("#")]
+    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
+    if not lines:
+        raise InputError("the log is empty; it needs a header row and at least two readings")
+    delimiter = ";" if lines[0].count(";") > lines[0].count(",") else ","
+    rows = list(csv.reader(io.StringIO("\n".join(lines)), delimiter=delimiter))
+    rows = [r for r in rows if r and any(c.strip() for c in r)]
     if len(rows) < 3:
         raise InputError("the log needs a header row and at least two readings")
+    width = len(rows[0])
+    for n, r in enumerate(rows[1:], start=2):
+        if len(r) != width:
+            raise InputError(f"log row {n} has {len(r)} fields where the header has {width}: write numbers with a "
+                             "decimal point and no thousands separators")
+        if delimiter == ";" and any("," in c for c in r):
+            raise InputError(f"log row {n}: decimal commas are not read; write decimal points (e.g. 150.5)")
     header = [_header_unit(h) for h in rows[0]]
     idx_t = idx_p = idx_T = None
     for i, (name, _) in enumerate(header):
@@ -308,6 +348,8 @@ def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = A
                     stamp = dt.datetime.fromisoformat(raw_t)
                 except ValueError:
                     raise InputError("time is neither a number with a unit in the header nor an ISO timestamp") from None
+                if t0 is not None and (stamp.tzinfo is None) != (t0.tzinfo is None):
+                    raise InputError("timestamps mix local times and times with a UTC offset; give all one way")
                 t0 = t0 or stamp
                 tv = (stamp - t0).total_seconds()
             pv = parse_pressure(f"{r[idx_p].strip()} {p_unit}", ambient_pa).abs_pa
@@ -343,7 +385,7 @@ class LogFit:
 
 
 def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec | None = None,
-                  T_default: float = 293.15, u_T: float = 0.5, target_sccm: float | None = None,
+                  T_default: float = 293.15, u_T: float = U_T_DEFAULT, target_sccm: float | None = None,
                   reserve_abs: float | None = None, ambient_pa: float = ATM_PA) -> LogFit:
     """Fit the held mass against time by least squares (numpy ``polyfit`` with its covariance):
     the slope is the leak rate, its standard error the scatter part of the uncertainty; the
@@ -351,7 +393,11 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
 
     Masses come from a Z(p, T) table (:class:`gasbench.gas.DensityTable`, error < 1e-4),
     not from one CoolProp call per row. A quadratic term significant at 3 standard errors
-    flags a curved decay (a temperature swing, a step, a leak that changes)."""
+    flags a curved decay (a temperature swing, a step, a leak that changes) only where it
+    matters: its departure from the line exceeds what the gauge resolves (one reading's
+    uncertainty, or the log's smallest pressure step without a gauge), or the curve's end
+    slopes would give another verdict. The uncertainty budget is the one of
+    :func:`hold_two_readings` (first and last reading) over the span, ⊕ the fit's standard error."""
     import numpy as np
 
     check_positive(volume_m3, "held volume", "m³")
@@ -374,26 +420,36 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     dof = max(1, n - 2)
     s2 = float(resid @ resid) / dof
     se = math.sqrt(float(cov[0, 0]) * (s2 if n == 3 else 1.0))
-    curved = False
-    if n >= 5:
-        c2, cov2 = np.polyfit(tc, m, 2, cov=True)
-        curved = abs(c2[0]) > 3.0 * math.sqrt(cov2[0, 0]) and cov2[0, 0] > 0
     notes: list[str] = []
     m1, dm1p, dm1T = _dm(gas, volume_m3, float(T[0]), float(p[0]))
     m2, dm2p, dm2T = _dm(gas, volume_m3, float(T[-1]), float(p[-1]))
     span = float(t[-1] - t[0])
-    u_sys = 0.0
-    if gauge is not None:
-        u_sys = math.sqrt(2.0) * dm2p * gauge.mpe_pa / SQRT3 / span
+    # the same GUM budget as two readings (first and last), spread over the span of the log,
+    # plus the scatter about the fitted line (its standard error) in quadrature
+    u_p = gauge.u_reading_pa if gauge is not None else 0.0
+    if gauge is None:
+        notes.append("no gauge range and class given: pressure uncertainty not included")
     if log.T_k is None:
         notes.append(f"no temperature column: assumed constant {T_default - 273.15:.1f} °C")
-        u_sys = math.hypot(u_sys, math.sqrt(2.0) * abs(dm2T) * max(u_T, 1.0) / span)
-    else:
-        u_sys = math.hypot(u_sys, math.sqrt(2.0) * abs(dm2T) * u_T / span)
-    u_rate = math.hypot(se, u_sys)
-    if curved:
-        notes.append("the decay is curved (quadratic term significant): a temperature swing, a step or a "
-                     "changing leak — look at the plot before trusting the average rate")
+    u_T_eff = u_T if log.T_k is not None else max(u_T, U_T_UNMEASURED)
+    u_dm = mass_change_uncertainty(dm1p, dm2p, dm1T, dm2T, u_p, u_T_eff)
+    u_rate = math.hypot(se, u_dm / span)
+    curved = False
+    if n >= 5:
+        c2, cov2 = np.polyfit(tc, m, 2, cov=True)
+        significant = cov2[0, 0] > 0 and abs(c2[0]) > 3.0 * math.sqrt(cov2[0, 0])
+        # how far the curve departs from the line over the log, as mass [kg]
+        departure = float(np.max(np.abs(np.polyval(c2, tc) - fit)))
+        # what the gauge can resolve, as mass: one reading's uncertainty, or without a gauge
+        # the smallest step between the log's own distinct pressures
+        steps = np.diff(np.unique(p))
+        resolvable_pa = u_p if gauge is not None else (float(steps.min()) if steps.size else 0.0)
+        resolvable = dm2p * resolvable_pa
+        # the end slopes of the curve against the fitted rate: does it change the verdict?
+        slope_ends = [-(2.0 * c2[0] * x + c2[1]) for x in (tc[0], tc[-1])]
+        U = K_EXPANDED * u_rate
+        verdict_changes = any((s > U) != (slope > U) for s in slope_ends)
+        curved = bool(significant and (departure > resolvable or verdict_changes))
     rms = float(np.sqrt(np.mean(resid**2)))
     res = _common(gas, volume_m3, span, float(p[0]), float(p[-1]), float(T[0]), float(T[-1]), slope, u_rate,
                   u_rate * span, float(m[0]), float(m[-1]), dm2p, gauge, target_sccm, reserve_abs, ambient_pa,

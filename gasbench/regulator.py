@@ -32,28 +32,51 @@ class Throttle:
     method: str
 
 
-def _solve_T_for_h(gas: g.Gas, h: float, p: float, T_guess: float) -> float:
-    """Temperature at which h(T, p) = h for a gas-phase mixture (secant on T, CoolProp PT flash)."""
-    tmin = max(g.limits(gas)[0], 100.0)
-    T0, T1 = T_guess, T_guess - 5.0
-    f0 = g.enthalpy(gas, T0, p) - h
-    for _ in range(60):
-        f1 = g.enthalpy(gas, max(T1, tmin), p) - h
-        if abs(f1) < 1e-6 * max(1.0, abs(h)):
-            return T1
-        if f1 == f0:
-            break
-        T0, T1, f0 = T1, max(tmin, T1 - f1 * (T1 - T0) / (f1 - f0)), f1
-    return T1
+#: Density of solid CO2 near its normal sublimation point, [kg/m³] (about 1.56 g/cm³,
+#: CRC Handbook of Chemistry and Physics, from memory); only its reciprocal enters, as a small
+#: correction to the vapour volume in the Clausius–Clapeyron equation.
+DRY_ICE_DENSITY = 1562.0
+
+
+def sublimation_enthalpy(gas: g.Gas, T: float) -> float:
+    """Enthalpy of sublimation [J/kg] of CO2 at T [K] below its triple point, by the
+    Clausius–Clapeyron equation Δh = T·(v_vap − v_solid)·dp/dT on the sublimation line
+    (Span & Wagner 1996, eq. 3.12), with the vapour volume from the equation of state.
+
+    >>> round(sublimation_enthalpy(g.parse_gas("co2"), 194.69) / 1e3)   # handbooks: ≈ 571 kJ/kg
+    574
+    """
+    p = g.sublimation_pressure(gas, T)
+    dT = 1e-3
+    dpdT = (g.sublimation_pressure(gas, T + dT) - g.sublimation_pressure(gas, T - dT)) / (2 * dT)
+    CP = g.coolprop()
+    AS = g.state(gas)
+    AS.specify_phase(CP.iphase_gas)
+    try:
+        AS.update(CP.PT_INPUTS, p, T)
+        v_vap = 1.0 / float(AS.rhomass())
+    finally:
+        AS.unspecify_phase()
+    return T * (v_vap - 1.0 / DRY_ICE_DENSITY) * dpdT
+
+
+def _vapour_outlet(gas: g.Gas, h: float, p_out: float, T_lo: float, T_hi: float) -> float:
+    """Temperature of the vapour with enthalpy h at p_out, between T_lo and T_hi."""
+    return g._solve_T(lambda T: g.vapour_enthalpy(gas, T, p_out) - h, T_lo, T_hi)
 
 
 def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapour: bool = False) -> Throttle:
     """Outlet state of an isenthalpic expansion from (p_in, T_in) to p_out.
 
-    For a pure gas the outlet is found with CoolProp's (h, p) flash, which detects liquid
-    forming (two-phase outlet). Below the triple-point pressure (CO2: 5.18 bar(a)) an outlet
-    enthalpy lower than that of the vapour at the triple-point temperature means the gas must
-    leave colder than the triple point: solid (dry ice) forms. This is a result, not an error.
+    Pure gases use CoolProp's (h, p) flash, which finds liquid forming (two-phase outlet).
+    Below the triple-point pressure (CO2: 5.18 bar(a)) the coldest the vapour can be is the
+    sublimation temperature at the outlet pressure (Span & Wagner 1996 sublimation line): when
+    the inlet enthalpy is below that of the vapour there, the outlet sits on the sublimation
+    line and solid (dry ice) forms, its mass fraction from the enthalpy balance with the
+    Clausius–Clapeyron sublimation enthalpy. Otherwise the outlet is vapour, evaluated on the
+    vapour branch of the equation of state also below the triple-point temperature.
+    Mixtures use a phase-equilibrium (h, p) flash (:func:`gasbench.gas.flash_ph`) that says
+    when a component condenses. Freezing is a result, not an error.
 
     Examples
     --------
@@ -62,48 +85,67 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     >>> t = throttle(g.parse_gas("nitrogen"), 200e5, 5e5, 293.15)
     >>> round(t.temperature_change_k, 1)
     -31.5
+
+    CO2 vapour drawn off the liquid at 20 °C and expanded to 1.51 bar(a) leaves on the
+    sublimation line at about −73.5 °C, with dry ice forming:
+
+    >>> t = throttle(g.parse_gas("co2"), 58.01e5, 1.5133e5, 293.15)
+    >>> round(t.outlet_temperature_k - 273.15, 1), t.solid_forms
+    (-73.5, True)
     """
     if p_out >= p_in:
         raise InputError(
             f"outlet {p_out / 1e5:.4g} bar(a) is not below inlet {p_in / 1e5:.4g} bar(a): a regulator only reduces pressure"
         )
+    g.check_state(gas, T_in, p_in)
     notes: list[str] = []
     if not saturated_vapour and g.is_liquefied(gas, T_in, p_in):
         saturated_vapour = True
         notes.append(f"{gas.name} is liquefied at the inlet: taken as vapour drawn off the liquid "
                      "(a dip-tube cylinder delivering liquid forms far more solid)")
-    if saturated_vapour:
-        h = float(g._update(gas, "QT_INPUTS", 1.0, T_in).hmass())
-    else:
-        h = g.enthalpy(gas, T_in, p_in)
+    h = g.saturated_vapour_enthalpy(gas, T_in) if saturated_vapour else g.enthalpy(gas, T_in, p_in)
     if gas.is_mixture:
-        T_out = _solve_T_for_h(gas, h, p_out, T_in)
-        notes.append("mixture: outlet computed for the gas phase; condensation of a heavy component is not checked")
-        return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, False, False, None,
-                        tuple(notes), "isenthalpic, real gas (CoolProp HEOS, gas phase)")
-    CP = g.coolprop()
+        fl = g.flash_ph(gas, h, p_out, T_in)
+        liquid = fl.phase.kind in ("two-phase", "liquid")
+        q = fl.phase.vapour_fraction if liquid else None
+        if liquid:
+            notes.append(f"a component condenses at the outlet (vapour fraction {q if q is not None else 0:.2f} "
+                         "by moles): liquid in the regulator and the line, and the delivered gas is leaner "
+                         "in the heavy component")
+        if fl.T < 273.15:
+            notes.append("outlet below 0 °C: moisture freezes on the body; ice can form outside")
+        return Throttle(gas.name, p_in, p_out, T_in, fl.T, fl.T - T_in, False, liquid, q, tuple(notes),
+                        "isenthalpic, real gas (CoolProp HEOS, phase-equilibrium (h, p) flash)")
     Tt, pt = g.triple_point(gas)
-    if p_out < pt:
-        h_vap_tt = g.enthalpy(gas, Tt + 1e-3, p_out)
-        if h < h_vap_tt:
+    if p_out < pt and g.has_sublimation_line(gas):
+        T_sub = g.sublimation_temperature(gas, p_out)
+        h_vap_sub = g.vapour_enthalpy(gas, T_sub, p_out)
+        if h <= h_vap_sub:
+            solid = min(1.0, (h_vap_sub - h) / sublimation_enthalpy(gas, T_sub))
             notes.append(
-                f"the expanded gas would be colder than the triple point ({Tt - 273.15:.1f} °C) at "
-                f"{p_out / 1e5:.2f} bar(a): solid {gas.name} forms and can block the regulator"
+                f"the outlet sits on the sublimation line at {T_sub - 273.15:.1f} °C "
+                f"({p_out / 1e5:.3g} bar(a)): solid {gas.name} (dry ice) forms, about "
+                f"{100 * solid:.0f} % of the flow by mass, and can block the regulator"
             )
-            return Throttle(gas.name, p_in, p_out, T_in, Tt, Tt - T_in, True, False, None, tuple(notes),
-                            "isenthalpic, real gas (CoolProp HEOS); outlet bounded by the triple point")
+            return Throttle(gas.name, p_in, p_out, T_in, T_sub, T_sub - T_in, True, False, 1.0 - solid,
+                            tuple(notes), "isenthalpic, real gas (CoolProp HEOS); Span & Wagner 1996 "
+                            "sublimation line below the triple point")
+        T_out = _vapour_outlet(gas, h, p_out, T_sub, max(T_in, T_sub + 1.0) + 50.0)
+        if T_out < 273.15:
+            notes.append(f"outlet {T_out - 273.15:.1f} °C: moisture freezes on the body; ice can form outside")
+        return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, False, False, None, tuple(notes),
+                        "isenthalpic, real gas (CoolProp HEOS, vapour branch)")
     try:
-        AS = g._update(gas, "HmassP_INPUTS", h, p_out)
-    except PropertyError as exc:
-        raise PropertyError(f"no outlet state for {gas.name} throttled to {p_out / 1e5:.3g} bar(a): {exc}") from None
-    T_out = float(AS.T())
-    q = float(AS.Q())
-    phase = AS.phase()
-    liquid = phase == CP.iphase_twophase or (0.0 <= q < 1.0)
-    vapour_fraction = q if liquid else None
+        fl = g.flash_ph(gas, h, p_out, T_in)
+    except PropertyError:
+        raise PropertyError(f"no outlet state for {gas.name} throttled to {p_out / 1e5:.3g} bar(a)") from None
+    T_out = fl.T
+    liquid = fl.phase.kind in ("two-phase", "liquid")
+    vapour_fraction = fl.phase.vapour_fraction if liquid else None
     solid = False
     if liquid:
-        notes.append(f"liquid forms at the outlet (vapour fraction {q:.2f}) at {T_out - 273.15:.1f} °C")
+        notes.append(f"liquid forms at the outlet (vapour fraction {vapour_fraction or 0.0:.2f}) "
+                     f"at {T_out - 273.15:.1f} °C")
         if p_out <= pt * 1.02:
             solid = True
             notes.append(f"outlet at the triple point pressure of {gas.name}: solid can form")
@@ -116,12 +158,8 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
 def joule_thomson_coefficient(gas: g.Gas, T: float, p: float, dp: float = 1e3) -> float:
     """Joule–Thomson coefficient μ_JT = (∂T/∂p)_h [K/Pa], by a small isenthalpic step."""
     h = g.enthalpy(gas, T, p)
-    if gas.is_mixture:
-        T1 = _solve_T_for_h(gas, h, p - dp, T)
-        T2 = _solve_T_for_h(gas, h, p + dp, T)
-    else:
-        T1 = float(g._update(gas, "HmassP_INPUTS", h, p - dp).T())
-        T2 = float(g._update(gas, "HmassP_INPUTS", h, p + dp).T())
+    T1 = g.flash_ph(gas, h, p - dp, T).T
+    T2 = g.flash_ph(gas, h, p + dp, T).T
     return (T2 - T1) / (2 * dp)
 
 

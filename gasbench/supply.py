@@ -38,6 +38,14 @@ class Contents:
     real_vs_ideal_percent: float | None
     method: str
     notes: tuple[str, ...] = ()
+    #: ``gas``, ``supercritical``, ``liquid``, ``two-phase``, ``liquefied`` (vapour over liquid:
+    #: weigh it) or ``liquid-full`` (no vapour space: hydraulic-rupture hazard)
+    phase: str = "gas"
+    #: molar vapour fraction of a two-phase mixture
+    vapour_fraction: float | None = None
+    #: filling ratio [kg/L of water capacity] and whether it exceeds the gas's permitted one
+    filling_ratio_kg_l: float | None = None
+    overfilled: bool = False
 
 
 def free_volume(gas: g.Gas, mass_kg: float, reference: Reference) -> float:
@@ -79,8 +87,20 @@ def contents(
     (11.21, 9.46, 1.0485)
     """
     check_positive(volume_m3, "cylinder volume", "m³")
+    g.check_state(gas, T, p_abs)
     ideal_free = volume_m3 * (p_abs / reference.pressure_pa) * (reference.temperature_k / T)
     ideal_mass = p_abs * volume_m3 * gas.molar_mass / (g.R * T)
+    if g.is_liquid_full(gas, T, p_abs):
+        p_sat = g.saturation_pressure(gas, T)
+        return Contents(
+            gas.name, volume_m3, T, p_abs, True, None, None, None, None, reference, None,
+            None, None, None, "liquid-full: no vapour space",
+            (f"STOP: {p_abs / 1e5:.1f} bar(a) is well above the vapour pressure of {gas.name} at "
+             f"{T - 273.15:.1f} °C ({p_sat / 1e5:.1f} bar(a)): the cylinder is full of liquid (overfilled, or "
+             "warmer than stated); warming it further raises the pressure steeply — a hydraulic-rupture "
+             "hazard. Keep it cool, do not use it, and call the supplier.",),
+            phase="liquid-full",
+        )
     if g.is_liquefied(gas, T, p_abs):
         return Contents(
             gas.name, volume_m3, T, p_abs, True, None, None, None, None, reference, None,
@@ -88,12 +108,23 @@ def contents(
             (f"{gas.name} is liquid in the cylinder at {T - 273.15:.1f} °C (below its critical "
              f"temperature {g.critical_temperature(gas) - 273.15:.1f} °C): the pressure is its vapour "
              "pressure and says nothing about how much is left; weigh it (gross − tare).",),
+            phase="liquefied",
         )
+    ph = g.phase(gas, T, p_abs)
     rho = g.density(gas, T, p_abs)
     z = g.z_factor(gas, T, p_abs)
     mass = rho * volume_m3
     fv = free_volume(gas, mass, reference)
     notes: list[str] = []
+    if ph.kind == "two-phase":
+        notes.append(
+            f"two phases in the cylinder: {100 * (ph.vapour_fraction or 0.0):.0f} % of the moles are vapour, "
+            "the rest liquid (phase-equilibrium flash); the mass is the total, but the gas drawn off is "
+            "not the filled mixture, and the pressure no longer falls in proportion to the contents"
+        )
+    elif ph.kind == "liquid":
+        notes.append(f"{gas.name} is a liquid at {T - 273.15:.1f} °C and {p_abs / 1e5:.4g} bar(a), not a gas: "
+                     "check the temperature and pressure you gave")
     if gas.sold_liquefied and T < g.critical_temperature(gas):
         notes.append("below the vapour pressure: no liquid left, only vapour; pressure falls fast from here")
     pairs = g.estimated_pairs(gas)
@@ -102,7 +133,9 @@ def contents(
     return Contents(
         gas.name, volume_m3, T, p_abs, False, rho, z, mass, mass / gas.molar_mass, reference, fv,
         ideal_mass, ideal_free, 100.0 * (fv - ideal_free) / ideal_free,
-        "real gas, CoolProp HEOS reference equation of state", tuple(notes),
+        "real gas, CoolProp HEOS reference equation of state" + (
+            " (phase-equilibrium flash)" if gas.is_mixture else ""), tuple(notes),
+        phase=ph.kind, vapour_fraction=ph.vapour_fraction,
     )
 
 
@@ -121,12 +154,30 @@ def contents_by_weight(
     if gross_kg < tare_kg:
         raise InputError(f"gross weight {gross_kg:g} kg is below the tare weight {tare_kg:g} kg")
     mass = gross_kg - tare_kg
+    if mass <= 0:
+        raise InputError(f"gross weight {gross_kg:g} kg equals the tare weight: the cylinder is empty")
     fv = free_volume(gas, mass, reference)
     ideal_fv = mass / gas.molar_mass * g.R * reference.temperature_k / reference.pressure_pa
+    notes: list[str] = []
+    ratio = None
+    over = False
+    limit = None if gas.is_mixture else gas.components[0][0].handling.max_filling_ratio_kg_l
+    if volume_m3 is not None:
+        check_positive(volume_m3, "cylinder volume", "m³")
+        ratio = mass / (volume_m3 * 1000.0)
+        if limit is not None and ratio > limit:
+            over = True
+            notes.append(f"STOP: {mass:.2f} kg in {volume_m3 * 1000:.3g} L is {ratio:.2f} kg/L, above the "
+                         f"{limit:.2f} kg/L filling ratio permitted for {gas.name}: the cylinder is overfilled and "
+                         "becomes liquid-full on warming — a hydraulic-rupture hazard. Check the weights; "
+                         "if they are right, keep it cool, do not use it and call the supplier.")
+    elif limit is not None:
+        notes.append(f"give the cylinder's water volume to check the filling ratio (at most {limit:.2f} kg/L)")
     return Contents(
         gas.name, volume_m3 or math.nan, T, None, gas.sold_liquefied, None, None, mass,
         mass / gas.molar_mass, reference, fv, mass, ideal_fv, 100.0 * (fv - ideal_fv) / ideal_fv,
-        "by weight (gross − tare)",
+        "by weight (gross − tare)", tuple(notes), phase="liquefied" if gas.sold_liquefied else "gas",
+        filling_ratio_kg_l=ratio, overfilled=over,
     )
 
 

@@ -93,26 +93,37 @@ def get_reference(key: str) -> Reference:
 # --------------------------------------------------------------------------------------
 # numbers
 
-_NUM = r"[-+]?(?:\d+(?:[.,_]\d*)*|\.\d+)(?:[eE][-+]?\d+)?|[-+]?(?:nan|inf|infinity)"
+_NUM = r"[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?|[-+]?(?:nan|inf|infinity)"
 _SPLIT = re.compile(rf"^\s*({_NUM})\s*(.*?)\s*$", re.IGNORECASE)
+_SEPARATOR = re.compile(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[,_'\u2009\u202f]|\s+)\d")
 
 
 def _split(text: str, what: str) -> tuple[float, str]:
+    """Split typed text into a number and its unit. A number is written with a decimal point
+    and no thousands separators: ``"1,000 L"`` or ``"2,5 bar"`` is refused, never read as
+    1 L or 2 bar."""
     if not isinstance(text, str):
         text = str(text)
+    if _SEPARATOR.match(text):
+        raise InputError(
+            f"{what} {_short(text)!r}: write the number without thousands separators and with a "
+            "decimal point, e.g. '1000 L' or '2.5 bar'"
+        )
     m = _SPLIT.match(text)
     if not m:
-        raise InputError(f"{what} {text!r} is not a number with a unit")
-    num = m.group(1).replace("_", "")
-    if num.count(",") and not num.count("."):
-        num = num.replace(",", ".")
+        raise InputError(f"{what} {_short(text)!r} is not a number with a unit")
     try:
-        value = float(num)
-    except ValueError:
-        raise InputError(f"{what} {text!r}: {m.group(1)!r} is not a number") from None
+        value = float(m.group(1))
+    except ValueError:  # pragma: no cover - the pattern only admits floats
+        raise InputError(f"{what} {_short(text)!r}: {m.group(1)!r} is not a number") from None
     if not math.isfinite(value):
-        raise InputError(f"{what} {text!r} is not a finite number")
+        raise InputError(f"{what} {_short(text)!r} is not a finite number")
     return value, m.group(2)
+
+
+def _short(text: str, limit: int = 40) -> str:
+    """Text cut to ``limit`` characters for an error message (never echo a long input)."""
+    return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
 def _need_unit(unit: str, text: str, what: str, examples: str) -> None:

@@ -59,7 +59,8 @@ def test_class_1_6_gauge_on_250_bar_cannot_resolve_a_small_leak():
     # EN 837-1 class 1.6 on a 250 bar span: MPE ±4 bar.
     gauge = h.GaugeSpec(250e5, 1.6)
     assert gauge.mpe_pa == pytest.approx(4e5)
-    assert gauge.u_reading_pa == pytest.approx(math.hypot(4e5 / math.sqrt(3), 4e5 / (2 * math.sqrt(3))))
+    # GUM: rectangular MPE over √3; no resolution term unless a resolution is given
+    assert gauge.u_reading_pa == pytest.approx(4e5 / math.sqrt(3))
     r = h.hold_two_readings(N2, 0.05, 151e5, 150.5e5, 12 * 3600, 293.15, 293.15, gauge)
     assert r.verdict == "inconclusive"
     assert r.astm_accuracy_ok is False
