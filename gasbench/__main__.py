@@ -1,4 +1,4 @@
-"""``python -m gasbench``: the same as the ``gasbench`` command."""
+"""``python -m gasbench`` runs the same command line as the ``gasbench`` script."""
 
 from gasbench.cli import main
 

@@ -440,6 +440,22 @@ def phase(gas: Gas, T: float, p: float) -> Phase:
     return _phase_of(gas, _update(gas, "PT_INPUTS", p, T))
 
 
+@dataclass(frozen=True)
+class PTState:
+    """Density [kg/m³], compressibility factor and phase of one (T, p) flash."""
+
+    density: float
+    z: float
+    phase: Phase
+
+
+def pt_state(gas: Gas, T: float, p: float) -> PTState:
+    """Density, Z and phase at T [K], p [Pa] from one (T, p) flash (CoolProp HEOS)."""
+    check_state(gas, T, p)
+    AS = _update(gas, "PT_INPUTS", p, T)
+    return PTState(float(AS.rhomass()), float(AS.compressibility_factor()), _phase_of(gas, AS))
+
+
 def density(gas: Gas, T: float, p: float) -> float:
     """Mass density [kg/m³] at temperature T [K] and absolute pressure p [Pa] (CoolProp HEOS,
     full (T, p) flash: a mixture inside its two-phase region gives the overall density of
@@ -766,6 +782,29 @@ def is_liquefied(gas: Gas, T: float, p: float) -> bool:
 # tabulated properties for long series
 
 
+def _gas_branch_row(gas: Gas, T: float, ps: Any) -> list[float] | None:
+    """Densities of a mixture at T over the pressures ``ps`` on the gas branch, or None when a
+    stability check (both ends and every 8th pressure) finds a state that is not a single
+    stable phase (the caller then uses full flashes)."""
+    n = len(ps)
+    for j in sorted(set(range(0, n, 8)) | {n - 1}):
+        if phase(gas, T, float(ps[j])).kind not in ("gas", "supercritical"):
+            return None
+    CP = coolprop()
+    AS = state(gas)
+    out: list[float] = []
+    AS.specify_phase(CP.iphase_gas)
+    try:
+        for p in ps:
+            check_state(gas, T, float(p))
+            out.append(float(_update(gas, "PT_INPUTS", float(p), T).rhomass()))
+    except PropertyError:
+        return None
+    finally:
+        AS.unspecify_phase()
+    return out
+
+
 class DensityTable:
     """Compressibility Z tabulated from CoolProp on a (p, T) grid, for long series.
 
@@ -773,6 +812,11 @@ class DensityTable:
     bilinear interpolation of Z (which is smooth and close to 1) instead of one CoolProp call
     per row. The interpolation error is tested against direct CoolProp calls (below 1e-4
     relative in density for 64 pressure points over 1–300 bar; see tests/test_gas.py).
+
+    For a mixture, a full phase-equilibrium flash costs about 8 ms; the grid is evaluated on
+    the gas branch (0.2 ms a point) after a stability check at both ends and every 8th
+    pressure of each temperature row: if any checked point is not a single stable phase,
+    every point gets the full flash.
     """
 
     def __init__(self, gas: Gas, p_lo: float, p_hi: float, T_lo: float, T_hi: float,
@@ -789,8 +833,10 @@ class DensityTable:
         self.T = np.linspace(T_lo, T_hi, n_T) if n_T > 1 else np.array([T_lo])
         Z = np.empty((len(self.T), n_p))
         for i, T in enumerate(self.T):
+            rho = _gas_branch_row(gas, float(T), self.p) if gas.is_mixture else None
             for j, p in enumerate(self.p):
-                Z[i, j] = p * self.M / (density(gas, float(T), float(p)) * R * T)
+                r = rho[j] if rho is not None else density(gas, float(T), float(p))
+                Z[i, j] = p * self.M / (r * R * T)
         self.Z = Z
 
     def _z_row(self, T: float) -> Any:

@@ -151,16 +151,21 @@ def _supply_T(prof: Profile, s: Supply) -> float:
     return s.reading_temperature if s.reading_temperature is not None else prof.ambient.temperature
 
 
-def _is_liquefied(gas: g.Gas, T: float) -> bool:
+def _is_liquefied(gas: g.Gas, T: float, p: float | None = None) -> bool:
+    """A gas sold liquefied below its critical temperature holds liquid, unless a reading
+    well below its vapour pressure says only vapour is left (:func:`gasbench.gas.is_liquefied`)."""
+    if p is not None:
+        return g.is_liquefied(gas, T, p)
     return gas.sold_liquefied and T < g.critical_temperature(gas)
 
 
 class _SupplyModel:
     """Mass ↔ pressure of one supply at constant temperature (table-based, see module doc)."""
 
-    def __init__(self, gas: g.Gas, V: float, T: float, p_hi: float, ambient: float) -> None:
+    def __init__(self, gas: g.Gas, V: float, T: float, p_hi: float, ambient: float,
+                 p_now: float | None = None) -> None:
         self.gas, self.V, self.T = gas, V, T
-        self.liquefied = _is_liquefied(gas, T)
+        self.liquefied = _is_liquefied(gas, T, p_now)
         self.p_sat = g.saturation_pressure(gas, T) if self.liquefied else math.inf
         top = min(p_hi, self.p_sat * 0.999)
         self.table = g.DensityTable(gas, min(ambient * 0.5, top * 0.5), top, T, T)
@@ -237,7 +242,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
     for s in prof.supplies:
         gas = s.gas
         T = _supply_T(prof, s)
-        liquefied = _is_liquefied(gas, T)
+        liquefied = _is_liquefied(gas, T, None if s.reading is None else s.reading.abs_at(amb))
         if liquefied:
             p_now = g.saturation_pressure(gas, T)
             if s.reading is not None and abs(s.reading.abs_at(amb) - p_now) > 0.15 * p_now:
@@ -248,7 +253,8 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         else:
             assert s.reading is not None
             p_now = s.reading.abs_at(amb)
-        model = _SupplyModel(gas, s.water_volume, T, max(p_now, s.service_pressure.abs_at(amb)) * 1.02, amb)
+        model = _SupplyModel(gas, s.water_volume, T, max(p_now, s.service_pressure.abs_at(amb)) * 1.02, amb,
+                             None if s.reading is None else p_now)
         supply_models[s.id] = model
         if liquefied:
             if s.gross is None or s.tare is None:
@@ -386,7 +392,7 @@ def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float
     a liquefied gas its vapour pressure — above the critical temperature the pressure of the
     whole fill at its mean density (steep: this is why fill ratios are regulated)."""
     hot = prof.ambient.hot_day
-    if not _is_liquefied(s.gas, T):
+    if not _is_liquefied(s.gas, T, p_now):
         return sp.heat_up(s.gas, p_now, T, hot, prof.ambient_pa).pressure_abs_pa
     if _is_liquefied(s.gas, hot):
         return g.saturation_pressure(s.gas, hot)

@@ -110,9 +110,8 @@ def contents(
              "pressure and says nothing about how much is left; weigh it (gross − tare).",),
             phase="liquefied",
         )
-    ph = g.phase(gas, T, p_abs)
-    rho = g.density(gas, T, p_abs)
-    z = g.z_factor(gas, T, p_abs)
+    st = g.pt_state(gas, T, p_abs)
+    ph, rho, z = st.phase, st.density, st.z
     mass = rho * volume_m3
     fv = free_volume(gas, mass, reference)
     notes: list[str] = []

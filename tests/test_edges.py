@@ -402,3 +402,20 @@ def test_thousands_separator_in_a_pressure_is_refused_on_the_command_line(capsys
     code, out, err = run(capsys, "contents", "--gas", "nitrogen", "--volume", "50 L", "--pressure", "1,000 psi",
                          "--temperature", "20 degC")
     assert code == 2 and out == "" and "decimal point" in err and err.count("\n") == 1
+
+
+def test_co2_vapour_supply_gives_no_solid_stop_in_a_plan():
+    # A CO2 cylinder read at 50 bar(g), 21 °C holds only vapour (vapour pressure 58.6 bar(a),
+    # Span & Wagner 1996); throttled to a low set point it stays above the sublimation line.
+    from gasbench.plan import build_plan
+    from gasbench.profile import demo_profile_text, parse_profile
+
+    text = (demo_profile_text().replace('gas = "nitrogen"', 'gas = "co2"')
+            .replace('reading = "64 bar"', 'reading = "50 bar"')
+            .replace('service_pressure = "200 bar"', 'service_pressure = "57 bar"')
+            .replace('test_pressure = "300 bar"', 'test_pressure = "250 bar"')
+            .replace('set_point = "3 bar"', 'set_point = "0.2 bar"'))
+    plan = build_plan(parse_profile(text, "co2-bench.toml"))
+    assert not any(f.code == "regulator-solid" for f in plan.findings)
+    assert all(not r.solid_forms and r.outlet_temperature_k > 194.69 for r in plan.regulators)
+    assert not plan.supplies[0].liquefied
