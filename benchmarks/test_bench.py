@@ -12,8 +12,8 @@ import pytest
 
 from gasbench import gas as g
 from gasbench import hold, supply
-from gasbench.plan import build_plan
 from gasbench.profile import load_profile
+from gasbench.workflows.build import build_plan
 
 ROOT = Path(__file__).resolve().parents[1]
 PROFILES = sorted((ROOT / "profiles").glob("*.toml"))
@@ -173,7 +173,7 @@ def test_projection_table_vs_propssi(benchmark, ratio):
     """The 200-point pressure projection of the demo supply: Z(ρ) table vs one PropsSI per point."""
     import CoolProp.CoolProp as CP
 
-    from gasbench.plan import _SupplyModel
+    from gasbench.workflows.build import SupplyModel as _SupplyModel
 
     prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
     s = prof.supplies[0]

@@ -36,7 +36,7 @@ def _within(fn: Any, hi: float, unit: str) -> Any:
     """Parse, then refuse values beyond ``hi`` (SI): a huge number is a unit slip, not a bench."""
     def check(v: str) -> Any:
         out = fn(v)
-        x = out.abs_pa if isinstance(out, u.Pressure) else out
+        x = out.abs_at(u.ATM_PA) if isinstance(out, u.Pressure) else out
         if x > hi:
             raise InputError(f"{v!r} is beyond {hi:g} {unit}, more than any bench uses; check the unit")
         return out
@@ -54,6 +54,7 @@ FrequencyQ = Annotated[float, BeforeValidator(_within(u.parse_frequency, 1e6, "H
 VoltageQ = Annotated[float, BeforeValidator(_within(u.parse_voltage, 1e7, "V"))]
 FlowQ = Annotated[u.Flow, BeforeValidator(_str_only(u.parse_flow))]
 GasQ = Annotated[Gas, BeforeValidator(_str_only(parse_gas))]
+VentilationQ = Annotated[u.Ventilation, BeforeValidator(_str_only(u.parse_ventilation))]
 Id = Annotated[str, Field(min_length=1, max_length=40, pattern=r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$")]
 
 
@@ -96,7 +97,7 @@ class Ambient(_Model):
     @property
     def pressure_pa(self) -> float:
         if self.pressure is not None:
-            return self.pressure.typed_pa if self.pressure.typed_as == "gauge" else self.pressure.abs_pa
+            return self.pressure.typed_pa
         if self.altitude is not None:
             return u.ambient_from_altitude(self.altitude)
         return u.ATM_PA
@@ -252,7 +253,7 @@ class Draw(_Model):
 
 class Room(_Model):
     volume: VolumeQ
-    ventilation: str | None = None
+    ventilation: VentilationQ | None = None
     """Air changes per hour ("2/h") or an extract flow ("120 m3/h")."""
     ventilation_kind: Literal["exhaust", "supply"] = "exhaust"
     oxygen_monitor: bool = False
@@ -262,10 +263,6 @@ class Room(_Model):
     @model_validator(mode="after")
     def _check(self) -> Room:
         _positive(self.volume, "room volume")
-        if self.ventilation is not None:
-            from gasbench.room import parse_ventilation
-
-            parse_ventilation(self.ventilation, self.volume)
         return self
 
 
@@ -291,6 +288,11 @@ class ChecklistConfig(_Model):
     """Whether the lab requires a second person's signature."""
 
 
+class DisplaySettings(_Model):
+    pressure_unit: Literal["bar", "psi", "kPa", "MPa"] = "bar"
+    """Unit pressures are shown in (gauge marked (g) or psig, absolute (a) or psia); JSON stays SI."""
+
+
 class Profile(_Model):
     bench: Bench
     ambient: Ambient = Field(default_factory=Ambient)
@@ -300,6 +302,7 @@ class Profile(_Model):
     room: Room | None = None
     session: Session
     checklist: ChecklistConfig = Field(default_factory=ChecklistConfig)
+    display: DisplaySettings = Field(default_factory=DisplaySettings)
 
     @model_validator(mode="after")
     def _cross(self) -> Profile:

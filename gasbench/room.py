@@ -26,13 +26,12 @@ ceiling: there the well-mixed figure is optimistic.
 from __future__ import annotations
 
 import math
-import re
 from dataclasses import dataclass
 from typing import Literal
 
 from gasbench import gas as g
 from gasbench.errors import InputError
-from gasbench.units import check_positive, parse_flow
+from gasbench.units import Amount, Flow, check_positive
 
 #: Oxygen in dry air, vol % (common value; 20.946 % in the US Standard Atmosphere 1976).
 C0_AIR = 20.95
@@ -65,31 +64,6 @@ def effect_of(c_percent: float) -> str:
         if c_percent < bound:
             text = words
     return text
-
-
-def parse_ventilation(text: str, room_volume_m3: float) -> float:
-    """Ventilation as a flow [m³/s]: ``"2/h"`` (air changes per hour × room volume) or a flow
-    (``"120 m3/h"``, ``"2 L/s"``).
-
-    >>> round(parse_ventilation("2/h", 50.0) * 3600, 6)
-    100.0
-    >>> round(parse_ventilation("120 m3/h", 50.0) * 3600, 6)
-    120.0
-    """
-    s = text.strip().lower().replace(" ", "")
-    m = re.fullmatch(r"([0-9.eE+-]+)(/h|/hr|ach|1/h|perh)", s)
-    if m:
-        try:
-            ach = float(m.group(1))
-        except ValueError:
-            raise InputError(f"ventilation {text!r}: {m.group(1)!r} is not a number") from None
-        if not math.isfinite(ach) or ach < 0:
-            raise InputError(f"ventilation {text!r} must be zero or more air changes per hour")
-        return ach * room_volume_m3 / 3600.0
-    f = parse_flow(text, what="ventilation")
-    if f.kind != "actual":
-        raise InputError(f"ventilation {text!r}: give air changes per hour (\"2/h\") or a volume flow (\"120 m3/h\")")
-    return f.value
 
 
 @dataclass(frozen=True)
@@ -211,11 +185,10 @@ def o2_at(lk: Leak, t_s: float) -> float:
     return lk.o2_percent_steady + (lk.c0_percent - lk.o2_percent_steady) * math.exp(-lk.rate_per_s * t_s)
 
 
-def leak_volume_flow(gas: g.Gas, text: str, T_room: float, p_room: float, reference: str | None = None) -> float:
-    """A typed leak as actual volume flow at room conditions [m³/s]: a standard flow via the
-    gas's real density at its reference and at the room (CoolProp HEOS), a mass flow via the
-    density at the room, a plain volume flow as given (taken at room conditions)."""
-    f = parse_flow(text, reference=reference, what="leak")
+def leak_volume_flow(gas: g.Gas, f: Flow, T_room: float, p_room: float) -> float:
+    """A leak as actual volume flow at room conditions [m³/s]: a standard flow via the gas's real
+    density at its reference and at the room (CoolProp HEOS), a mass flow via the density at the
+    room, a plain volume flow as given (taken at room conditions)."""
     if f.kind == "actual":
         return f.value
     from gasbench.supply import mass_flow
@@ -223,16 +196,12 @@ def leak_volume_flow(gas: g.Gas, text: str, T_room: float, p_room: float, refere
     return mass_flow(gas, f) / g.density(gas, T_room, p_room)
 
 
-def release_volume(gas: g.Gas, text: str, T_room: float, p_room: float) -> float:
-    """A typed release as a volume at room conditions [m³]: a mass (``"11 kg"``) through the gas's
-    real density at the room (CoolProp HEOS), a plain volume (``"9 m3"``) as given."""
-    from gasbench.units import parse_mass, parse_volume
-
-    try:
-        mass = parse_mass(text, "release")
-    except InputError:
-        return parse_volume(text, "release (a volume or a mass)")
-    return mass / g.density(gas, T_room, p_room)
+def release_volume(gas: g.Gas, amount: Amount, T_room: float, p_room: float) -> float:
+    """A release as a volume at room conditions [m³]: a mass through the gas's real density at
+    the room (CoolProp HEOS), a volume as given."""
+    if amount.kind == "volume":
+        return check_positive(amount.value, "release volume", "m³")
+    return check_positive(amount.value, "release mass", "kg") / g.density(gas, T_room, p_room)
 
 
 def stratification_note(gas: g.Gas) -> str:

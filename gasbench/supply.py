@@ -191,7 +191,9 @@ class HeatUp:
     ideal_pressure_abs_pa: float
     service_abs_pa: float | None
     test_abs_pa: float | None
-    warnings: tuple[str, ...]
+    above_storage_limit: bool
+    above_service_pressure: bool
+    above_test_pressure: bool
     method: str
 
 
@@ -216,24 +218,11 @@ def heat_up(
         )
     rho = g.density(gas, T1, p_abs)
     p2 = g.pressure_from_density(gas, rho, T2)
-    warnings: list[str] = []
-    if T2 > STORAGE_LIMIT_K:
-        warnings.append(
-            f"{T2 - 273.15:.0f} °C is above the 52 °C (125 °F) limit for storing cylinders "
-            "(CGA P-1, from memory): keep cylinders out of sun and away from heat"
-        )
-    if test_abs is not None and p2 > test_abs:
-        warnings.append(
-            f"STOP: {(p2 - ambient_pa) / 1e5:.1f} bar(g) exceeds the test pressure "
-            f"{(test_abs - ambient_pa) / 1e5:.1f} bar(g); never heat a cylinder"
-        )
-    elif service_abs is not None and p2 > service_abs:
-        warnings.append(
-            f"{(p2 - ambient_pa) / 1e5:.1f} bar(g) exceeds the service pressure "
-            f"{(service_abs - ambient_pa) / 1e5:.1f} bar(g) (rated at 15 °C); check regulator inlet rating"
-        )
+    above_storage = T2 > STORAGE_LIMIT_K
+    above_test = test_abs is not None and p2 > test_abs
+    above_service = service_abs is not None and p2 > service_abs
     return HeatUp(gas.name, T1, T2, p_abs, p2, p2 - ambient_pa, p_abs * T2 / T1, service_abs, test_abs,
-                  tuple(warnings), "isochoric, real gas (CoolProp HEOS)")
+                  above_storage, above_service, above_test, "isochoric, real gas (CoolProp HEOS)")
 
 
 def mass_flow(gas: g.Gas, flow: Flow, T: float | None = None, p_abs: float | None = None) -> float:

@@ -162,20 +162,23 @@ PressureKind = Literal["gauge", "absolute"]
 
 @dataclass(frozen=True)
 class Pressure:
-    """A parsed pressure: absolute value in Pa plus how it was typed."""
+    """A typed pressure: its value as typed [Pa] and whether it was gauge or absolute.
 
-    abs_pa: float
+    It holds no absolute value of its own: a gauge reading means something only against an
+    ambient pressure, which the caller gives (:meth:`abs_at`), so a profile read at sea level
+    and used at altitude cannot carry a stale absolute figure."""
+
     typed_as: PressureKind
+    typed_pa: float
     text: str
-    typed_pa: float = math.nan  # the value as typed (gauge or absolute), in Pa
 
     def gauge_pa(self, ambient_pa: float = ATM_PA) -> float:
         return self.abs_at(ambient_pa) - ambient_pa
 
     def abs_at(self, ambient_pa: float) -> float:
-        """Absolute pressure [Pa] with another ambient pressure (matters for gauge readings)."""
+        """Absolute pressure [Pa] at the given ambient pressure."""
         if self.typed_as == "absolute":
-            return self.abs_pa
+            return self.typed_pa
         return self.typed_pa + ambient_pa
 
 
@@ -202,11 +205,11 @@ def parse_pressure(text: str, ambient_pa: float = ATM_PA, what: str = "pressure"
     Unmarked units are gauge (added to ``ambient_pa``); ``a``/``(a)`` marks absolute;
     ``atm``, ``Torr`` and ``mmHg`` are always absolute.
 
-    >>> parse_pressure("200 bar").abs_pa
+    >>> parse_pressure("200 bar").abs_at(101325.0)
     20101325.0
-    >>> parse_pressure("150 bar(a)").abs_pa
+    >>> parse_pressure("150 bar(a)").abs_at(101325.0)
     15000000.0
-    >>> round(parse_pressure("14.7 psia").abs_pa, 1)
+    >>> round(parse_pressure("14.7 psia").abs_at(101325.0), 1)
     101352.9
     """
     value, unit = _split(text, what)
@@ -224,14 +227,15 @@ def parse_pressure(text: str, ambient_pa: float = ATM_PA, what: str = "pressure"
             f"{what} {text!r} is below vacuum (absolute {abs_pa / 1e5:.4g} bar(a)); "
             "a gauge reading cannot be lower than minus the ambient pressure"
         )
-    return Pressure(abs_pa, kind, text.strip(), pa)
+    return Pressure(kind, pa, text.strip())
 
 
 def pressure_abs(text: str | float, ambient_pa: float = ATM_PA, what: str = "pressure") -> float:
-    """Absolute pressure [Pa] from a typed string (float input is taken as absolute Pa)."""
+    """Absolute pressure [Pa] from a typed string at the given ambient pressure (float input is
+    taken as absolute Pa)."""
     if isinstance(text, (int, float)):
         return check_finite(float(text), what)
-    return parse_pressure(text, ambient_pa, what).abs_pa
+    return parse_pressure(text, ambient_pa, what).abs_at(ambient_pa)
 
 
 def ambient_from_altitude(altitude_m: float) -> float:
@@ -484,22 +488,109 @@ def parse_flow(text: str, reference: str | None = None, what: str = "flow") -> F
 
 
 # --------------------------------------------------------------------------------------
+# ventilation and amounts
+
+
+@dataclass(frozen=True)
+class Ventilation:
+    """A room's ventilation as typed: air changes per hour, or an actual volume flow [m³/s]."""
+
+    air_changes_per_h: float | None
+    flow_m3_s: float | None
+    text: str
+
+    def m3_s(self, room_volume_m3: float) -> float:
+        """The ventilation as a volume flow [m³/s] for a room of the given volume."""
+        if self.air_changes_per_h is not None:
+            return self.air_changes_per_h * room_volume_m3 / 3600.0
+        assert self.flow_m3_s is not None
+        return self.flow_m3_s
+
+
+def parse_ventilation(text: str, what: str = "ventilation") -> Ventilation:
+    """Parse ventilation: ``"2/h"`` (air changes per hour) or a volume flow (``"120 m3/h"``,
+    ``"2 L/s"``).
+
+    >>> parse_ventilation("2/h").m3_s(50.0) * 3600
+    100.0
+    >>> round(parse_ventilation("120 m3/h").m3_s(50.0) * 3600, 6)
+    120.0
+    """
+    if not isinstance(text, str):
+        raise InputError(f"{what} {text!r}: give air changes per hour (\"2/h\") or a volume flow (\"120 m3/h\")")
+    s = text.strip().lower().replace(" ", "")
+    m = re.fullmatch(r"(.+?)(/h|/hr|ach|1/h|perh)", s)
+    if m and not m.group(1).endswith(("m3", "l", "ft3")):
+        ach, _ = _split(m.group(1) + " x", what)
+        if ach < 0:
+            raise InputError(f"{what} {_short(text)!r} must be zero or more air changes per hour")
+        return Ventilation(ach, None, text.strip())
+    f = parse_flow(text, what=what)
+    if f.kind != "actual":
+        raise InputError(f"{what} {_short(text)!r}: give air changes per hour (\"2/h\") or a volume flow (\"120 m3/h\")")
+    return Ventilation(None, f.value, text.strip())
+
+
+@dataclass(frozen=True)
+class Amount:
+    """An amount of gas as typed: a mass [kg] or a volume [m³]."""
+
+    kind: Literal["mass", "volume"]
+    value: float
+    text: str
+
+
+def parse_amount(text: str, what: str = "amount") -> Amount:
+    """Parse a mass (``"11 kg"``) or a volume (``"9 m3"``).
+
+    >>> parse_amount("11 kg").kind, parse_amount("9 m3").value
+    ('mass', 9.0)
+    """
+    try:
+        return Amount("mass", parse_mass(text, what), text.strip())
+    except InputError:
+        pass
+    try:
+        return Amount("volume", parse_volume(text, what), text.strip())
+    except InputError:
+        raise InputError(f"{what} {_short(str(text))!r} is neither a mass (\"11 kg\") nor a volume (\"9 m3\")") from None
+
+
+# --------------------------------------------------------------------------------------
 # formatting
 
 
+def pressure_factor(unit: str) -> float:
+    """Pascals per one ``unit`` (bar, psi, kPa, MPa, mbar, ...).
+
+    >>> pressure_factor("psi") == PSI_PA
+    True
+    """
+    try:
+        return _PRESSURE_UNITS[unit.lower()]
+    except KeyError:
+        raise InputError(f"unknown pressure unit {unit!r}") from None
+
+
 def fmt_pressure(abs_pa: float, ambient_pa: float = ATM_PA, unit: str = "bar", kind: PressureKind = "gauge") -> str:
-    """Format a pressure with its (g)/(a) mark, e.g. ``"199.0 bar(g)"``.
+    """Format a pressure with its gauge/absolute mark: ``bar(g)``/``bar(a)``, ``psig``/``psia``,
+    ``kPa(g)``/``kPa(a)``.
 
     >>> fmt_pressure(20101325.0)
     '200.0 bar(g)'
     >>> fmt_pressure(15e6, kind="absolute")
     '150.0 bar(a)'
+    >>> fmt_pressure(ATM_PA + 100 * PSI_PA, unit="psi")
+    '100.0 psig'
     """
-    factor = _PRESSURE_UNITS[unit.lower()]
+    factor = pressure_factor(unit)
     v = (abs_pa - ambient_pa if kind == "gauge" else abs_pa) / factor
-    mark = "(g)" if kind == "gauge" else "(a)"
+    if unit.lower() == "psi":
+        label = "psig" if kind == "gauge" else "psia"
+    else:
+        label = unit + ("(g)" if kind == "gauge" else "(a)")
     digits = 1 if abs(v) >= 10 else (2 if abs(v) >= 1 else 3)
-    return f"{v:.{digits}f} {unit}{mark}"
+    return f"{v:.{digits}f} {label}"
 
 
 def fmt_temperature(kelvin: float) -> str:

@@ -6,12 +6,15 @@ from pathlib import Path
 
 import pytest
 
-from gasbench.checklist import LastHoldTest, build_checklist
+from gasbench.checklist import build_checklist, checklist_json
 from gasbench.checklist.render import render_html, render_markdown, render_pdf, render_text
-from gasbench.cli import main, plan_json
+from gasbench.cli import main
 from gasbench.errors import ProfileError
-from gasbench.plan import build_plan
 from gasbench.profile import load_profile, parse_profile
+from gasbench.render.plan import plan_json
+from gasbench.workflows.bench import Assessment, assess, findings_of
+from gasbench.workflows.build import build_plan
+from gasbench.workflows.holds import LastHold
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "profiles" / "demo-teaching-bench.toml"
@@ -26,8 +29,8 @@ def _lookup(d, path):
 @pytest.mark.parametrize("path", sorted((ROOT / "profiles").glob("*.toml")), ids=lambda p: p.name)
 def test_computed_items_carry_the_plan_json_figures(path, capsys):
     prof = load_profile(path)
-    plan = build_plan(prof)
-    cl = build_checklist(prof, plan, path.parent)
+    a = assess(prof)
+    cl = build_checklist(prof, a, path.parent)
     main(["plan", str(path), "--json"])
     pj = json.loads(capsys.readouterr().out)
     checked = 0
@@ -37,19 +40,19 @@ def test_computed_items_carry_the_plan_json_figures(path, capsys):
                 assert _lookup(pj, it.source) == pytest.approx(it.value, rel=1e-6), it.id
                 checked += 1
     assert checked >= 4
-    assert plan_json(plan)["supplies"][0]["id"] == pj["supplies"][0]["id"]
+    assert plan_json(a)["supplies"][0]["id"] == pj["supplies"][0]["id"]
 
 
 def test_statuses_and_leak_status_from_journal():
     prof = load_profile(DEMO)
     plan = build_plan(prof)
     now = dt.datetime(2026, 12, 1, 9, 0).astimezone()
-    fresh = LastHoldTest(now - dt.timedelta(days=1), "no-leak-resolved", 0.2, 0.1)
-    old = LastHoldTest(now - dt.timedelta(days=9), "no-leak-resolved", 0.2, 0.1)
-    leak = LastHoldTest(now - dt.timedelta(days=1), "leak", 12.0, 1.0)
+    fresh = LastHold(now - dt.timedelta(days=1), "n2-A", "no-leak-resolved", 0.2, 0.1, 1.0)
+    old = LastHold(now - dt.timedelta(days=9), "n2-A", "no-leak-resolved", 0.2, 0.1, 9.0)
+    leak = LastHold(now - dt.timedelta(days=1), "n2-A", "leak", 12.0, 1.0, 1.0)
 
     def status(last):
-        cl = build_checklist(prof, plan, DEMO.parent, last, now=now)
+        cl = build_checklist(prof, Assessment(plan, last, findings_of(plan, last)), DEMO.parent, now=now)
         return next(i for s in cl.sections for i in s.items if i.id == "leak-status").status
 
     assert status(None) == "attention"
@@ -65,7 +68,7 @@ def _hostile_checklist():
     text = DEMO.read_text().replace('name = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"',
                                     f"name = '{HOSTILE}'")
     prof = parse_profile(text)
-    return build_checklist(prof, build_plan(prof), DEMO.parent)
+    return build_checklist(prof, assess(prof), DEMO.parent)
 
 
 def test_hostile_bench_name_is_escaped_in_html():
@@ -111,7 +114,7 @@ def test_lab_items_add_remove_and_reword(tmp_path):
         '[[sections]]\nid = "local"\ntitle = "Our own"\nitems = [{ id = "keys", text = "Key cabinet locked" }]\n')
     text = DEMO.read_text() + f'\n[checklist]\nitems = "{items}"\noperator = "A. Example"\nsecond_person = true\n'
     prof = parse_profile(text)
-    cl = build_checklist(prof, build_plan(prof), tmp_path)
+    cl = build_checklist(prof, assess(prof), tmp_path)
     ids = {i.id: i for s in cl.sections for i in s.items}
     assert "laser-goggles" not in ids
     assert ids["estop"].text.startswith("Red mushroom")
@@ -121,11 +124,11 @@ def test_lab_items_add_remove_and_reword(tmp_path):
     bad.write_text('[[sections]]\nid = "x"\nitems = [{ id = "y", computed = "nonsense" }]\n')
     prof2 = parse_profile(DEMO.read_text() + f'\n[checklist]\nitems = "{bad}"\n')
     with pytest.raises(ProfileError, match="unknown computed key"):
-        build_checklist(prof2, build_plan(prof2), tmp_path)
+        build_checklist(prof2, assess(prof2), tmp_path)
 
 
 def test_checklist_cli_formats(tmp_path, capsys):
-    for fmt in ("txt", "md", "html", "pdf"):
+    for fmt in ("txt", "md", "html", "pdf", "json"):
         out = tmp_path / f"c.{fmt}"
         assert main(["checklist", str(DEMO), "--format", fmt, "--output", str(out)]) == 0
         assert out.stat().st_size > 500
@@ -139,3 +142,16 @@ def test_print_without_print_command_says_so(tmp_path, capsys, monkeypatch):
     assert main(["checklist", str(DEMO), "--output", str(out), "--print"]) == 1
     assert "no print command" in capsys.readouterr().err
     assert out.exists()
+
+
+def test_checklist_json_items_carry_finding_codes_and_severities(capsys):
+    assert main(["checklist", str(DEMO), "--format", "json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    items = [it for s in d["sections"] for it in s["items"]]
+    computed = [it for it in items if it["kind"] == "computed"]
+    assert computed and all(it["status"] in ("ok", "stop", "warning", "attention", "info") for it in computed)
+    assert any(it["code"] for it in computed)
+    # the same figures as the Python model
+    prof = load_profile(DEMO)
+    cl = checklist_json(build_checklist(prof, assess(prof), DEMO.parent))
+    assert [it["id"] for s in cl["sections"] for it in s["items"]] == [it["id"] for it in items]

@@ -53,7 +53,10 @@ def test_heat_json(capsys):
                        "--to", "50 degC", "--service", "200 bar", "--test", "300 bar", "--json")
     d = json.loads(out)
     assert code == 0 and d["pressure_gauge_pa"] == pytest.approx(d["pressure_abs_pa"] - 101325)
-    assert d["warnings"]
+    assert d["above_storage_limit"] is False and d["above_service_pressure"] is True
+    code, out, _ = run(capsys, "heat", "--gas", "n2", "--pressure", "200 bar", "--temperature", "15 degC",
+                       "--to", "50 degC", "--service", "200 bar", "--test", "300 bar")
+    assert "exceeds the service pressure" in out
 
 
 def test_runtime_json(capsys):

@@ -24,7 +24,7 @@ from gasbench import flow, gap, hold, regulator, supply
 from gasbench import gas as g
 from gasbench.cli import main
 from gasbench.errors import InputError
-from gasbench.units import parse_pressure, parse_volume
+from gasbench.units import parse_volume, pressure_abs
 
 CO2 = g.parse_gas("co2")
 N2 = g.parse_gas("nitrogen")
@@ -87,7 +87,7 @@ def test_two_phase_mixture_contents_use_a_real_flash(capsys, pr_flash):
     # Regression: the gas branch was forced and gave 158.6 kg/m³. thermo's Peng–Robinson flash
     # of the same state gives ~217 kg/m³ with vapour fraction ~0.64.
     mix = g.parse_gas("co2:0.95,nitrogen:0.05")
-    T, p = 283.15, parse_pressure("50 bar").abs_pa
+    T, p = 283.15, pressure_abs("50 bar")
     ref = pr_flash(["carbon dioxide", "nitrogen"]).flash(T=T, P=p, zs=[0.95, 0.05])
     c = supply.contents(mix, 0.05, p, T)
     assert c.phase == "two-phase"
@@ -407,8 +407,8 @@ def test_thousands_separator_in_a_pressure_is_refused_on_the_command_line(capsys
 def test_co2_vapour_supply_gives_no_solid_stop_in_a_plan():
     # A CO2 cylinder read at 50 bar(g), 21 °C holds only vapour (vapour pressure 58.6 bar(a),
     # Span & Wagner 1996); throttled to a low set point it stays above the sublimation line.
-    from gasbench.plan import build_plan
     from gasbench.profile import demo_profile_text, parse_profile
+    from gasbench.workflows.build import build_plan
 
     text = (demo_profile_text().replace('gas = "nitrogen"', 'gas = "co2"')
             .replace('reading = "64 bar"', 'reading = "50 bar"')

@@ -177,7 +177,9 @@ def test_hold_cli_json_and_errors(capsys, tmp_path):
 
 
 def test_target_leak_rate_in_any_flow_unit():
-    assert h.target_sccm(N2, "2 sccm") == pytest.approx(2.0)
-    assert h.target_sccm(N2, "0.1 slpm") == pytest.approx(100.0)
+    from gasbench.units import parse_flow
+
+    assert h.target_sccm(N2, parse_flow("2 sccm")) == pytest.approx(2.0)
+    assert h.target_sccm(N2, parse_flow("0.1 slpm")) == pytest.approx(100.0)
     # a mass flow: 1 g/h of N2 is 1e-3/3600 kg/s ÷ 1.2504 kg/m³ (0 °C, 1 atm) = 13.33 sccm
-    assert h.target_sccm(N2, "1 g/h") == pytest.approx(1e-3 / 3600 / 1.2504 * 6e7, rel=2e-4)
+    assert h.target_sccm(N2, parse_flow("1 g/h")) == pytest.approx(1e-3 / 3600 / 1.2504 * 6e7, rel=2e-4)

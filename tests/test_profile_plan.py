@@ -9,8 +9,9 @@ import pytest
 from gasbench import gas as g
 from gasbench.cli import main
 from gasbench.errors import ProfileError
-from gasbench.plan import _SupplyModel, build_plan
 from gasbench.profile import demo_profile_text, load_profile, parse_profile
+from gasbench.workflows.build import SupplyModel as _SupplyModel
+from gasbench.workflows.build import build_plan
 
 ROOT = Path(__file__).resolve().parents[1]
 PROFILES = sorted((ROOT / "profiles").glob("*.toml"))

@@ -14,6 +14,7 @@ from scipy.integrate import solve_ivp
 from gasbench import gas as g
 from gasbench import room
 from gasbench.errors import InputError
+from gasbench.units import parse_amount, parse_flow, parse_ventilation
 
 
 def test_release_models_closed_forms():
@@ -84,20 +85,20 @@ def test_exhaust_is_more_conservative_than_supply():
 
 
 def test_ventilation_units_ach_vs_flow():
-    assert room.parse_ventilation("2/h", 60.0) == pytest.approx(120.0 / 3600)
-    assert room.parse_ventilation("2 ACH", 60.0) == pytest.approx(120.0 / 3600)
-    assert room.parse_ventilation("120 m3/h", 60.0) == pytest.approx(120.0 / 3600)
-    assert room.parse_ventilation("2 L/s", 60.0) == pytest.approx(0.002)
+    assert parse_ventilation("2/h").m3_s(60.0) == pytest.approx(120.0 / 3600)
+    assert parse_ventilation("2 ACH").m3_s(60.0) == pytest.approx(120.0 / 3600)
+    assert parse_ventilation("120 m3/h").m3_s(60.0) == pytest.approx(120.0 / 3600)
+    assert parse_ventilation("2 L/s").m3_s(60.0) == pytest.approx(0.002)
     with pytest.raises(InputError):
-        room.parse_ventilation("2 slpm", 60.0)
+        parse_ventilation("2 slpm")
 
 
 def test_standard_leak_converts_to_room_volume():
     # 10 slpm of N2 (0 °C, 1 atm) at 25 °C, 1 atm is 10·(298.15/273.15) L/min within Z effects.
     n2 = g.parse_gas("nitrogen")
-    q = room.leak_volume_flow(n2, "10 slpm", 298.15, 101325.0)
+    q = room.leak_volume_flow(n2, parse_flow("10 slpm"), 298.15, 101325.0)
     assert q * 60e3 == pytest.approx(10 * 298.15 / 273.15, rel=1e-3)
-    assert room.leak_volume_flow(n2, "10 L/min", 298.15, 101325.0) == pytest.approx(10 / 60e3)
+    assert room.leak_volume_flow(n2, parse_flow("10 L/min"), 298.15, 101325.0) == pytest.approx(10 / 60e3)
 
 
 def test_co2_toxic_and_hydrogen_flammable_hazards():
@@ -159,8 +160,8 @@ def test_room_cli_json_keys_and_errors(capsys):
 def test_release_given_as_mass_or_volume():
     # 11 kg of N2 at 20 °C, 1 atm: V = m/ρ with ρ = 1.1649 kg/m³ (real gas, CoolProp HEOS)
     n2 = g.parse_gas("nitrogen")
-    assert room.release_volume(n2, "11 kg", 293.15, 101325.0) == pytest.approx(
+    assert room.release_volume(n2, parse_amount("11 kg"), 293.15, 101325.0) == pytest.approx(
         11.0 / g.density(n2, 293.15, 101325.0))
-    assert room.release_volume(n2, "9 m3", 293.15, 101325.0) == pytest.approx(9.0)
+    assert room.release_volume(n2, parse_amount("9 m3"), 293.15, 101325.0) == pytest.approx(9.0)
     with pytest.raises(InputError):
-        room.release_volume(n2, "9 bar", 293.15, 101325.0)
+        parse_amount("9 bar")

@@ -1,15 +1,18 @@
-"""The pre-session checklist: items from a data file, computed items filled from the plan.
+"""The pre-session checklist: items from a data file, computed items filled from the bench's
+assessment.
 
-Each computed item carries the plan figure it shows (``value``) and where that figure sits in
-``gasbench plan --json`` (``source``), so the checklist never shows a number of its own.
+A computed item shows a plan figure (``value``, and where it sits in ``gasbench plan --json``:
+``source``) and takes its status from the findings about it (``code``: the worst finding's
+code), so the checklist never judges anything itself: its statuses are the findings'
+severities (``stop``, ``warning``, ``attention``, ``info``) or ``ok`` where nothing was found.
 Renderers live in :mod:`gasbench.checklist.render`.
 """
 
 from __future__ import annotations
 
 import datetime as dt
-import math
 import tomllib
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
@@ -17,11 +20,14 @@ from typing import Any, Literal
 
 from gasbench.cautions import DEFER, ESTIMATES, GENERAL, Caution, gas_cautions
 from gasbench.errors import ProfileError
-from gasbench.plan import Plan, hold_test_findings
 from gasbench.profile import Profile
-from gasbench.units import fmt_hours, fmt_pressure
+from gasbench.render.display import Display
+from gasbench.render.findings import describe
+from gasbench.workflows.bench import Assessment
+from gasbench.workflows.findings import SEVERITY_RANK, Finding, counts
 
-Status = Literal["ok", "attention", "stop"]
+#: ``ok`` where no finding applies, else the worst finding's severity.
+Status = Literal["ok", "stop", "warning", "attention", "info"]
 
 
 @dataclass(frozen=True)
@@ -33,6 +39,7 @@ class Item:
     reason: str | None = None
     value: float | None = None
     source: str | None = None
+    code: str | None = None
 
 
 @dataclass(frozen=True)
@@ -54,16 +61,9 @@ class Checklist:
     operator: str | None = None
     second_person: bool = False
     stops: int = 0
+    warnings: int = 0
     attentions: int = 0
     notes: tuple[str, ...] = field(default=())
-
-
-@dataclass(frozen=True)
-class LastHoldTest:
-    at: dt.datetime
-    verdict: str
-    leak_rate_sccm: float
-    uncertainty_sccm: float
 
 
 # ----------------------------------------------------------------------------- item files
@@ -122,136 +122,133 @@ def item_spec(lab_file: str | Path | None = None) -> list[dict[str, Any]]:
 # ----------------------------------------------------------------------------- computed items
 
 
-def _worst(*statuses: Status) -> Status:
-    order = {"ok": 0, "attention": 1, "stop": 2}
-    return max(statuses, key=lambda s: order[s])
+@dataclass(frozen=True)
+class _Ctx:
+    a: Assessment
+    display: Display
+
+    def about(self, subject: str, codes: tuple[str, ...]) -> Finding | None:
+        """The worst finding with one of ``codes`` about ``subject``."""
+        hits = [f for f in self.a.findings if f.code in codes and f.subject == subject]
+        return min(hits, key=lambda f: SEVERITY_RANK[f.severity]) if hits else None
 
 
-def _supply_contents(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
-    amb = plan.ambient_pa
+def _item(ctx: _Ctx, id: str, text: str, figure: str, f: Finding | None, ok_reason: str,
+          value: float | None = None, source: str | None = None) -> Item:
+    """A computed item: its status and reason from the finding about it, or ``ok``."""
+    if f is None:
+        return Item(id, text, "ok", figure, ok_reason, value, source)
+    sentence, _ = describe(f, ctx.display)
+    return Item(id, text, f.severity, figure, sentence, value, source, f.code)
+
+
+def _supply_contents(ctx: _Ctx) -> list[Item]:
+    d = ctx.display
     return [Item(f"supply-contents:{s.id}", f"{s.id} ({s.gas_name}) contents",
                  "ok", f"{s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}"
-                 + ("" if s.liquefied else f"; now {fmt_pressure(s.pressure_abs_pa, amb)}"),
+                 + ("" if s.liquefied else f"; now {d.gauge(s.pressure_abs_pa)}"),
                  "by weight (liquefied)" if s.liquefied else "real gas at the last reading",
                  s.mass_kg, f"supplies[{i}].mass_kg")
-            for i, s in enumerate(plan.supplies)]
+            for i, s in enumerate(ctx.a.plan.supplies)]
 
 
-def _supply_runtime(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
+def _supply_runtime(ctx: _Ctx) -> list[Item]:
+    plan, d = ctx.a.plan, ctx.display
     out = []
     for i, s in enumerate(plan.supplies):
         if s.draw_kg_s <= 0:
-            out.append(Item(f"supply-runtime:{s.id}", f"{s.id}: time to reserve", "ok", "no draw", "nothing draws on it",
-                            None, f"supplies[{i}].hours_to_reserve"))
+            out.append(Item(f"supply-runtime:{s.id}", f"{s.id}: time to reserve", "ok", "no draw",
+                            "nothing draws on it", None, f"supplies[{i}].hours_to_reserve"))
             continue
-        status: Status = "ok"
-        reason = f"lasts past the {fmt_hours(plan.session_hours)} session"
-        if s.hours_to_reserve < plan.session_hours:
-            status, reason = "stop", "reserve before the session ends: swap the cylinder first"
-        elif s.hours_band[0] < plan.session_hours:
-            status, reason = "attention", f"within the gauge's error only {fmt_hours(s.hours_band[0])}"
-        out.append(Item(f"supply-runtime:{s.id}", f"{s.id}: time to reserve at the planned draws", status,
-                        f"{s.hours_to_reserve:.2f} h ({fmt_hours(s.hours_to_reserve)})"
-                        + (f", reserve at {s.reserve_at[11:16]}" if s.reserve_at else ""),
-                        reason, s.hours_to_reserve, f"supplies[{i}].hours_to_reserve"))
+        f = ctx.about(s.id, ("reserve-before-end", "reserve-within-gauge-error", "reserve-before-end-live"))
+        out.append(_item(ctx, f"supply-runtime:{s.id}", f"{s.id}: time to reserve at the planned draws",
+                         f"{d.hours(s.hours_to_reserve)}" + (f", reserve at {s.reserve_at[11:16]}" if s.reserve_at else ""),
+                         f, f"lasts past the {d.hours(plan.session_hours)} session", s.hours_to_reserve,
+                         f"supplies[{i}].hours_to_reserve"))
     return out
 
 
-def _regulator_ratings(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
-    amb = plan.ambient_pa
-    out = []
-    for i, r in enumerate(plan.regulators):
-        status: Status = "ok"
-        reason = "supply within the inlet rating, also on a hot day"
-        if r.inlet_abs_pa > r.inlet_rating_abs_pa:
-            status, reason = "stop", "supply above the regulator's inlet rating"
-        elif r.supply_hot_day_abs_pa > r.inlet_rating_abs_pa:
-            status, reason = "attention", "on a hot day the supply exceeds the inlet rating"
-        out.append(Item(f"regulator-ratings:{r.id}", f"{r.id}: inlet rating against {r.supply_id}", status,
-                        f"hot day {fmt_pressure(r.supply_hot_day_abs_pa, amb)} vs rating "
-                        f"{fmt_pressure(r.inlet_rating_abs_pa, amb)}", reason, r.supply_hot_day_abs_pa,
-                        f"regulators[{i}].supply_hot_day_abs_pa"))
-    return out
+def _regulator_ratings(ctx: _Ctx) -> list[Item]:
+    d = ctx.display
+    return [_item(ctx, f"regulator-ratings:{r.id}", f"{r.id}: inlet rating against {r.supply_id}",
+                  f"hot day {d.gauge(r.supply_hot_day_abs_pa)} vs rating {d.gauge(r.inlet_rating_abs_pa)}",
+                  ctx.about(r.id, ("inlet-rating", "inlet-rating-hot")),
+                  "supply within the inlet rating, also on a hot day", r.supply_hot_day_abs_pa,
+                  f"regulators[{i}].supply_hot_day_abs_pa")
+            for i, r in enumerate(ctx.a.plan.regulators)]
 
 
-def _regulator_outlet(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
-    out = []
-    for i, r in enumerate(plan.regulators):
-        t = r.outlet_temperature_k - 273.15
-        status: Status = "ok"
-        reason = "no icing expected"
-        if r.solid_forms:
-            status, reason = "stop", "solid (dry ice) forms in the regulator"
-        elif r.liquid_forms:
-            status, reason = "attention", "liquid forms at the outlet"
-        elif t < 0:
-            status, reason = "attention", "outlet below 0 °C: frost and a stiff diaphragm"
-        out.append(Item(f"regulator-outlet:{r.id}", f"{r.id}: gas temperature at the outlet", status,
-                        f"{t:.1f} °C", reason, r.outlet_temperature_k, f"regulators[{i}].outlet_temperature_k"))
-    return out
+def _regulator_outlet(ctx: _Ctx) -> list[Item]:
+    d = ctx.display
+    return [_item(ctx, f"regulator-outlet:{r.id}", f"{r.id}: gas temperature at the outlet",
+                  d.temperature(r.outlet_temperature_k),
+                  ctx.about(r.id, ("regulator-solid", "regulator-liquid", "regulator-icing")), "no icing expected",
+                  r.outlet_temperature_k, f"regulators[{i}].outlet_temperature_k")
+            for i, r in enumerate(ctx.a.plan.regulators)]
 
 
-def _leak_status(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
-    last: LastHoldTest | None = ctx.get("last_hold")
-    now: dt.datetime = ctx["now"]
-    age = (now - last.at).total_seconds() / 86400.0 if last else None
-    f = hold_test_findings((last.verdict, last.leak_rate_sccm, last.uncertainty_sccm, age)
-                           if last is not None and age is not None else None)[0]
-    status: Status = {"stop": "stop", "warning": "attention", "attention": "attention", "info": "ok"}[f.severity]  # type: ignore[assignment]
-    return [Item("leak-status", "Hold test of the supply and lines", status, f.figure, f.text, age, None)]
+def _leak_status(ctx: _Ctx) -> list[Item]:
+    f = next(f for f in ctx.a.findings if f.subject == "leaks")
+    sentence, figure = describe(f, ctx.display)
+    status: Status = "ok" if f.severity == "info" else f.severity
+    last = ctx.a.last_hold
+    return [Item("leak-status", "Hold test of the supply and lines", status, figure, sentence,
+                 last.age_days if last else None, "last_hold_test.age_days" if last else None, f.code)]
 
 
-def _room_release(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
-    if plan.room is None:
-        return [Item("room-release", "Room oxygen if a cylinder empties into the room", "attention", "no room in profile",
-                     "add the room to the profile")]
-    r = plan.room.release
-    c = r.o2_percent_after_release
-    status: Status = "ok" if c >= 19.5 else ("attention" if c >= 18.0 or ctx.get("monitor") else "stop")
-    return [Item("room-release", f"Room oxygen if all of {plan.room.release_supply_id} escapes at once", status,
-                 f"{c:.1f} % O2 ({r.model} model)", r.effect or "stays above 19.5 %", c,
-                 "room.release.o2_percent_after_release")]
+def _room_release(ctx: _Ctx) -> list[Item]:
+    room = ctx.a.plan.room
+    if room is None:
+        return [_item(ctx, "room-release", "Room oxygen if a cylinder empties into the room", "no room in profile",
+                      ctx.about("room", ("no-room",)), "")]
+    r = room.release
+    return [_item(ctx, "room-release", f"Room oxygen if all of {room.release_supply_id} escapes at once",
+                  f"{r.o2_percent_after_release:.1f} % O2 ({r.model} model)",
+                  ctx.about("room", ("room-release", "room-toxic", "room-flammable")), "stays above 19.5 %",
+                  r.o2_percent_after_release, "room.release.o2_percent_after_release")]
 
 
-def _room_vented(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
-    if plan.room is None or plan.room.leak is None:
+def _room_vented(ctx: _Ctx) -> list[Item]:
+    room = ctx.a.plan.room
+    if room is None or room.leak is None:
         return []
-    lk = plan.room.leak
-    c = lk.o2_percent_steady
-    status: Status = "ok" if c >= 19.5 else ("attention" if math.isinf(lk.minutes_to_19_5) else "stop")
-    return [Item("room-vented", "Room oxygen with the draws venting into the room", status,
-                 f"{c:.2f} % O2 steady, {plan.room.vented_m3_s * 6e4:.2f} L/min vented", lk.effect or "stays above 19.5 %",
-                 c, "room.leak.o2_percent_steady")]
+    lk = room.leak
+    return [_item(ctx, "room-vented", "Room oxygen with the draws venting into the room",
+                  f"{lk.o2_percent_steady:.2f} % O2 steady, {room.vented_m3_s * 6e4:.2f} L/min vented",
+                  ctx.about("room", ("room-vented",)), "stays above 19.5 %", lk.o2_percent_steady,
+                  "room.leak.o2_percent_steady")]
 
 
-def _gap_margins(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
+def _gap_margins(ctx: _Ctx) -> list[Item]:
     out = []
-    for i, d in enumerate(plan.draws):
+    for i, d in enumerate(ctx.a.plan.draws):
         if d.gap is None:
             continue
-        margins = list(d.gap.margins_start) + list(d.gap.margins_reserve)
-        if not margins:
-            out.append(Item(f"gap-margins:{d.id}", f"{d.id}: firing voltage", "ok",
-                            f"≈ {d.gap.breakdown_start_kv:.1f} kV", "no exposed parts listed", d.gap.breakdown_start_kv,
-                            f"draws[{i}].gap.breakdown_start_kv"))
+        f = ctx.about(d.id, ("flashover", "gap-beyond-method"))
+        if not d.gap.within_validity:
+            out.append(_item(ctx, f"gap-margins:{d.id}", f"{d.id}: firing voltage", "no estimate", f, ""))
             continue
-        worst = min(margins, key=lambda m: m.margin_kv)
-        status: Status = worst.status  # type: ignore[assignment]
-        out.append(Item(f"gap-margins:{d.id}", f"{d.id}: firing voltage against exposed parts", status,
-                        f"≈ {d.gap.breakdown_start_kv:.1f} kV; worst margin {worst.margin_kv:+.1f} kV ({worst.part})",
-                        "estimate; real gaps differ", d.gap.breakdown_start_kv, f"draws[{i}].gap.breakdown_start_kv"))
+        margins = list(d.gap.margins_start) + list(d.gap.margins_reserve)
+        worst = min(margins, key=lambda m: m.margin_kv) if margins else None
+        figure = f"≈ {d.gap.breakdown_start_kv:.1f} kV" + (
+            f"; worst margin {worst.margin_kv:+.1f} kV ({worst.part})" if worst else "")
+        out.append(_item(ctx, f"gap-margins:{d.id}", f"{d.id}: firing voltage against exposed parts", figure, f,
+                         "estimate; real gaps differ" if worst else "no exposed parts listed",
+                         d.gap.breakdown_start_kv, f"draws[{i}].gap.breakdown_start_kv"))
     return out
 
 
-def _open_findings(plan: Plan, ctx: dict[str, Any]) -> list[Item]:
-    stops = sum(f.severity == "stop" for f in plan.findings)
-    warns = sum(f.severity == "warning" for f in plan.findings)
-    status: Status = "stop" if stops else ("attention" if warns else "ok")
-    return [Item("open-findings", "Plan findings resolved or accepted", status,
-                 f"{stops} stop, {warns} warning", "see gasbench plan", float(stops), None)]
+def _open_findings(ctx: _Ctx) -> list[Item]:
+    n = counts(ctx.a.findings)
+    worst = ctx.a.findings[0] if ctx.a.findings else None
+    status: Status = "ok" if worst is None or worst.severity == "info" else worst.severity
+    return [Item("open-findings", "All findings resolved or accepted", status,
+                 f"{n['stop']} stop, {n['warning']} warning, {n['attention']} attention",
+                 "see gasbench plan", float(n["stop"]), "finding_counts.stop",
+                 worst.code if worst is not None and status != "ok" else None)]
 
 
-_COMPUTED = {
+_COMPUTED: dict[str, Callable[[_Ctx], list[Item]]] = {
     "supply-contents": _supply_contents,
     "supply-runtime": _supply_runtime,
     "regulator-ratings": _regulator_ratings,
@@ -264,29 +261,46 @@ _COMPUTED = {
 }
 
 
-def build_checklist(prof: Profile, plan: Plan, profile_dir: Path | None = None, last_hold: LastHoldTest | None = None,
-                    now: dt.datetime | None = None, operator: str | None = None) -> Checklist:
-    """Build the checklist of a bench from its plan (and the last hold test, if any)."""
+def build_checklist(prof: Profile, assessment: Assessment, profile_dir: Path | None = None,
+                    now: dt.datetime | None = None, operator: str | None = None,
+                    display: Display | None = None) -> Checklist:
+    """Build the checklist of a bench from its assessment (plan, last hold test, findings)."""
     now = now or dt.datetime.now().astimezone()
+    plan = assessment.plan
+    display = display or Display(ambient_pa=plan.ambient_pa)
     lab = prof.checklist.items
     lab_path = None
     if lab:
         lab_path = Path(lab) if Path(lab).is_absolute() or profile_dir is None else profile_dir / lab
-    ctx = {"now": now, "last_hold": last_hold, "monitor": prof.room.oxygen_monitor if prof.room else False}
+    ctx = _Ctx(assessment, display)
     sections = []
     for s in item_spec(lab_path):
         items: list[Item] = []
         for it in s["items"]:
             if "computed" in it:
-                items.extend(_COMPUTED[it["computed"]](plan, ctx))
+                items.extend(_COMPUTED[it["computed"]](ctx))
             else:
                 items.append(Item(it["id"], it["text"]))
         if items:
             sections.append(Section(s["id"], s.get("title", s["id"]), tuple(items)))
-    all_items = [i for s in sections for i in s.items]
     cautions = tuple(GENERAL) + tuple(gas_cautions([s.gas for s in prof.supplies]))
+    n = counts(assessment.findings)
     return Checklist(prof.bench.name, now.isoformat(timespec="minutes"),
-                     f"{fmt_hours(plan.session_hours)} from {plan.start[11:16]}", tuple(sections), cautions,
+                     f"{display.hours(plan.session_hours)} from {plan.start[11:16]}", tuple(sections), cautions,
                      operator=operator or prof.checklist.operator, second_person=prof.checklist.second_person,
-                     stops=sum(i.status == "stop" for i in all_items),
-                     attentions=sum(i.status == "attention" for i in all_items))
+                     stops=n["stop"], warnings=n["warning"], attentions=n["attention"])
+
+
+def checklist_json(cl: Checklist) -> dict[str, Any]:
+    """The checklist for scripts: every item with its status, finding code and figure."""
+    return {
+        "bench": cl.bench, "generated_at": cl.generated_at, "session": cl.session,
+        "finding_counts": {"stop": cl.stops, "warning": cl.warnings, "attention": cl.attentions},
+        "sections": [{"id": s.id, "title": s.title, "items": [
+            {"id": it.id, "text": it.text, "kind": "tick" if it.status is None else "computed",
+             "status": it.status, "severity": None if it.status in (None, "ok") else it.status,
+             "code": it.code, "figure": it.figure, "reason": it.reason, "value": it.value, "source": it.source}
+            for it in s.items]} for s in cl.sections],
+        "cautions": [{"topic": c.topic, "text": c.text} for c in cl.cautions],
+        "estimates": cl.estimates, "defer": cl.defer, "operator": cl.operator,
+    }

@@ -14,8 +14,12 @@ from pathlib import Path
 from gasbench.checklist import Checklist, Item
 
 WIDTH = 100
-MARK = {"ok": "OK", "attention": "ATTENTION", "stop": "STOP"}
-SYMBOL = {"ok": "✔", "attention": "●", "stop": "✖"}
+MARK = {"ok": "OK", "info": "INFO", "attention": "ATTENTION", "warning": "WARNING", "stop": "STOP"}
+SYMBOL = {"ok": "✔", "info": "ℹ", "attention": "●", "warning": "▲", "stop": "✖"}
+
+
+def _summary(cl: Checklist) -> str:
+    return f"{cl.stops} stop, {cl.warnings} warning, {cl.attentions} attention"
 
 
 def _box(it: Item) -> str:
@@ -42,7 +46,7 @@ def render_text(cl: Checklist) -> str:
 
     para(f"PRE-SESSION CHECKLIST — {cl.bench}")
     para(f"Generated {cl.generated_at}; planned session {cl.session}.")
-    para(f"Summary: {cl.stops} stop, {cl.attentions} attention.")
+    para(f"Summary: {_summary(cl)}.")
     out.append("")
     for s in cl.sections:
         para(s.title.upper())
@@ -79,7 +83,7 @@ def render_markdown(cl: Checklist) -> str:
     e = md_escape
     out = [f"# Pre-session checklist — {e(cl.bench)}", "",
            f"Generated {e(cl.generated_at)}; planned session {e(cl.session)}. "
-           f"**{cl.stops} stop, {cl.attentions} attention.**", ""]
+           f"**{_summary(cl)}.**", ""]
     for s in cl.sections:
         out += [f"## {e(s.title)}", ""]
         ticks = [it for it in s.items if it.status is None]
@@ -104,7 +108,7 @@ _CSS = """
 body { font-family: 'DejaVu Sans', Arial, sans-serif; font-size: 11pt; margin: 2em; color: #111; }
 h1 { font-size: 16pt; } h2 { font-size: 13pt; margin-top: 1.2em; border-bottom: 1px solid #999; }
 table { border-collapse: collapse; width: 100%; } td, th { border: 1px solid #999; padding: 3px 6px; text-align: left; }
-.stop { font-weight: bold; } .attention { font-style: italic; }
+.stop { font-weight: bold; } .warning { font-weight: bold; } .attention { font-style: italic; }
 ul.ticks { list-style: none; padding-left: 0; } ul.ticks li::before { content: "\\2610  "; }
 .sign { margin-top: 1.5em; } .sign span { display: inline-block; min-width: 14em; border-bottom: 1px solid #000; }
 @media print { body { margin: 0; font-size: 10pt; } h2 { break-after: avoid; } tr, li { break-inside: avoid; }
@@ -118,7 +122,7 @@ def render_html(cl: Checklist) -> str:
            f"<title>Pre-session checklist — {e(cl.bench)}</title><style>{_CSS}</style></head><body>",
            f"<h1>Pre-session checklist — {e(cl.bench)}</h1>",
            f"<p>Generated {e(cl.generated_at)}; planned session {e(cl.session)}. "
-           f"<strong>{cl.stops} stop, {cl.attentions} attention.</strong></p>"]
+           f"<strong>{_summary(cl)}.</strong></p>"]
     for s in cl.sections:
         out.append(f"<h2>{e(s.title)}</h2>")
         ticks = [it for it in s.items if it.status is None]
@@ -166,13 +170,12 @@ def render_pdf(cl: Checklist, path: str | Path) -> Path:
         pdf.ln(gap)
 
     text(f"Pre-session checklist — {cl.bench}", 15, "B", 2)
-    text(f"Generated {cl.generated_at}; planned session {cl.session}. Summary: {cl.stops} stop, "
-         f"{cl.attentions} attention.", 10)
+    text(f"Generated {cl.generated_at}; planned session {cl.session}. Summary: {_summary(cl)}.", 10)
     for s in cl.sections:
         pdf.ln(2)
         text(s.title, 12, "B")
         for it in s.items:
-            text(_line(it), 10, "B" if it.status == "stop" else "", 0.5)
+            text(_line(it), 10, "B" if it.status in ("stop", "warning") else "", 0.5)
     pdf.ln(2)
     text("Cautions", 12, "B")
     for c in cl.cautions:

@@ -9,7 +9,7 @@ from pathlib import Path
 from textual.app import App
 from textual.binding import Binding
 
-from gasbench.session import SessionState, now_local
+from gasbench.workflows.session import SessionState, now_local
 
 
 class GasbenchApp(App[int]):

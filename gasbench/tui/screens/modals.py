@@ -10,7 +10,7 @@ from textual.widgets import Button, Input, Label, Select, Static
 
 from gasbench.cautions import DEFER, ESTIMATES, GENERAL, gas_cautions
 from gasbench.errors import InputError
-from gasbench.session import Reading, SessionState
+from gasbench.workflows.session import Reading, SessionState
 
 
 class ReadingScreen(ModalScreen[Reading | None]):

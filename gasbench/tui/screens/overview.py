@@ -15,9 +15,10 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
 from gasbench.errors import GasbenchError, JournalError
-from gasbench.session import Reading, SessionState
+from gasbench.render.display import profile_display
 from gasbench.tui.widgets import FindingsPanel, bar
 from gasbench.units import fmt_hours, fmt_pressure
+from gasbench.workflows.session import Reading, SessionState
 
 
 class OverviewScreen(Screen[None]):
@@ -135,7 +136,7 @@ class OverviewScreen(Screen[None]):
                     margin = f"{w.margin_kv:+.1f} kV {w.status}"
             dr.add_row(d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin, key=d.id)
         self._observed_line()
-        self.query_one("#findings", FindingsPanel).show(st.findings())
+        self.query_one("#findings", FindingsPanel).show(st.findings(), profile_display(st.profile))
         self.tick()
 
     def _observed_line(self) -> None:

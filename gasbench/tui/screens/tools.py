@@ -15,8 +15,8 @@ from textual.widgets import Button, Footer, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
 from gasbench.errors import GasbenchError, InputError, JournalError
-from gasbench.session import SessionState
 from gasbench.units import fmt_hours, fmt_pressure
+from gasbench.workflows.session import SessionState
 
 
 class _Tool(Screen[None]):
@@ -124,12 +124,11 @@ class HoldScreen(_Tool):
         st = self.state
         if st.journal is None or st.profile is None:
             return "No journal: hold tests are not stored."
-        row = st.journal.last_hold_test(st.profile.bench.name)
-        if row is None:
+        last = st.last_hold_test()
+        if last is None:
             return "No hold test recorded for this bench yet."
-        age = (st.clock() - dt.datetime.fromisoformat(row.at)).total_seconds() / 86400.0
-        return (f"Last hold test: {row.verdict}, {row.leak_rate_sccm:.3g} ± {row.leak_rate_uncertainty_sccm:.2g} sccm, "
-                f"{age:.1f} days ago ({row.supply_id or 'no supply'})")
+        return (f"Last hold test: {last.verdict}, {last.leak_rate_sccm:.3g} ± {last.leak_rate_uncertainty_sccm:.2g} "
+                f"sccm, {last.age_days:.1f} days ago ({last.supply_id or 'no supply'})")
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         if event.button.id == "hold-go":
@@ -140,18 +139,18 @@ class HoldScreen(_Tool):
 
     def compute(self) -> None:
         from gasbench import hold as hd
-        from gasbench.units import parse_duration, parse_pressure, parse_temperature
+        from gasbench.units import parse_duration, parse_temperature, pressure_abs
+        from gasbench.workflows import holds
 
         st = self.state
         assert st.profile is not None
         val = lambda i: self.query_one(f"#{i}", Input).value.strip()  # noqa: E731
         s = st.profile.supply(str(self.query_one("#hold-supply", Select).value))
         amb = st.profile.ambient_pa
-        gauge = hd.GaugeSpec(s.gauge.range.typed_pa, s.gauge.accuracy_class,
-                             s.gauge.resolution.typed_pa if s.gauge.resolution else None) if s.gauge else None
         out = self.query_one("#hold-result", Static)
         fit = None
         try:
+            gauge = holds.profile_gauge_spec(s.gauge)
             if val("hold-log"):
                 try:
                     text = Path(val("hold-log")).expanduser().read_text(encoding="utf-8")
@@ -162,8 +161,8 @@ class HoldScreen(_Tool):
                 r = fit.result
             else:
                 r = hd.hold_two_readings(
-                    s.gas, s.water_volume, parse_pressure(val("hold-start"), amb, "start").abs_pa,
-                    parse_pressure(val("hold-end"), amb, "end").abs_pa, parse_duration(val("hold-duration")),
+                    s.gas, s.water_volume, pressure_abs(val("hold-start"), amb, "start"),
+                    pressure_abs(val("hold-end"), amb, "end"), parse_duration(val("hold-duration")),
                     parse_temperature(val("hold-tstart")) if val("hold-tstart") else None,
                     parse_temperature(val("hold-tend")) if val("hold-tend") else None, gauge,
                     reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
@@ -181,9 +180,8 @@ class HoldScreen(_Tool):
         lines += [f"• {g}" for g in hd.GUIDANCE]
         if st.journal is not None:
             try:
-                st.journal.add_hold_test(st.clock().isoformat(timespec="seconds"), st.profile.bench.name, s.id,
-                                         s.gas.name, r.volume_m3, r.duration_s, r.verdict, r.leak_rate_sccm,
-                                         r.leak_rate_uncertainty_sccm)
+                holds.store(st.journal, holds.record_of(r, st.clock(), st.profile.bench.name, s.id,
+                                                        "log" if fit is not None else "two-readings"))
                 lines.insert(1, "saved to the journal")
             except JournalError as exc:
                 lines.insert(1, f"✖ not saved: {exc}")
@@ -251,11 +249,12 @@ class RoomScreen(_Tool):
                      "accumulate; follow local codes and the supplier's safety data sheet.")
         self.query_one("#room-figures", Static).update("\n".join(lines))
         last = st.last_hold_test()
-        if last is not None and last[1] > 0:
-            self.query_one("#room-leak", Input).value = f"{last[1]:.3g} sccm"
+        if last is not None and last.leak_rate_sccm > 0:
+            self.query_one("#room-leak", Input).value = f"{last.leak_rate_sccm:.3g} sccm"
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         from gasbench import room as rm
+        from gasbench.units import parse_flow
 
         st = self.state
         assert st.plan is not None and st.profile is not None
@@ -265,7 +264,8 @@ class RoomScreen(_Tool):
             return
         gas = st.profile.supply(r.release_supply_id).gas
         try:
-            extra = rm.leak_volume_flow(gas, event.value, st.plan.temperature_k, st.plan.ambient_pa)
+            extra = rm.leak_volume_flow(gas, parse_flow(event.value, what="leak"), st.plan.temperature_k,
+                                        st.plan.ambient_pa)
             lk = rm.leak_o2(r.volume_m3, r.vented_m3_s + extra, r.ventilation_m3_s, r.ventilation_kind,
                             r.release.c0_percent)
         except GasbenchError as exc:
@@ -295,17 +295,13 @@ class ChecklistScreen(_Tool):
         self.query_one("#checklist-text", Static).update(render_text(self.checklist))
 
     def _build(self):  # type: ignore[no-untyped-def]
-        from gasbench.checklist import LastHoldTest, build_checklist
+        from gasbench.checklist import build_checklist
+        from gasbench.render.display import profile_display
 
         st = self.state
         assert st.profile is not None and st.plan is not None
-        last = None
-        if st.journal is not None:
-            row = st.journal.last_hold_test(st.profile.bench.name)
-            if row is not None:
-                last = LastHoldTest(dt.datetime.fromisoformat(row.at), row.verdict, row.leak_rate_sccm,
-                                    row.leak_rate_uncertainty_sccm)
-        return build_checklist(st.profile, st.plan, st.profile_path.parent, last, now=st.clock())
+        return build_checklist(st.profile, st.assessment(), st.profile_path.parent, now=st.clock(),
+                               display=profile_display(st.profile))
 
     def action_export(self) -> None:
         self.export()

@@ -4,7 +4,9 @@ from __future__ import annotations
 
 from textual.widgets import Static
 
-from gasbench.plan import SEVERITY_MARK, Finding
+from gasbench.render.display import Display
+from gasbench.render.findings import SEVERITY_MARK, describe
+from gasbench.workflows.findings import Finding
 
 
 class FindingsPanel(Static):
@@ -14,7 +16,7 @@ class FindingsPanel(Static):
     FindingsPanel { height: auto; padding: 0 1; }
     """
 
-    def show(self, findings: list[Finding]) -> None:
+    def show(self, findings: list[Finding], display: Display | None = None) -> None:
         from rich.text import Text
 
         if not findings:
@@ -25,9 +27,10 @@ class FindingsPanel(Static):
         for i, f in enumerate(findings):
             if i:
                 out.append("\n")
+            text, figure = describe(f, display)
             out.append(f"{SEVERITY_MARK[f.severity]:<12}", style=style[f.severity])
-            out.append(f" {f.subject}: {f.text} ")
-            out.append(f"[{f.figure}]", style="bold")
+            out.append(f" {f.subject}: {text} ")
+            out.append(f"[{figure}]", style="bold")
         self.update(out)
 
 

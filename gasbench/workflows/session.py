@@ -13,11 +13,15 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from gasbench import plan as pl
 from gasbench.errors import InputError, JournalError
 from gasbench.journal import Journal
 from gasbench.profile import Profile, load_profile, with_reading
 from gasbench.units import parse_pressure, parse_temperature
+from gasbench.workflows import build as pl
+from gasbench.workflows.bench import Assessment, findings_of
+from gasbench.workflows.findings import Finding
+from gasbench.workflows.holds import LastHold, last_hold_test, profile_gauge_spec
+from gasbench.workflows.model import Observed, Plan
 
 
 def now_local() -> dt.datetime:
@@ -42,12 +46,12 @@ class SessionState:
     journal: Journal | None
     clock: Callable[[], dt.datetime] = now_local
     profile: Profile | None = None
-    plan: pl.Plan | None = None
+    plan: Plan | None = None
     plan_at: dt.datetime | None = None
     session_id: int | None = None
     started_at: dt.datetime | None = None
     readings: dict[str, list[Reading]] = field(default_factory=dict)
-    observed: dict[str, pl.Observed] = field(default_factory=dict)
+    observed: dict[str, Observed] = field(default_factory=dict)
     unsaved: list[Reading] = field(default_factory=list)
 
     # -- profile and plan
@@ -93,11 +97,8 @@ class SessionState:
             sp = next(x for x in self.plan.supplies if x.id == s.id)
             if len(rs) < 2 or sp.liquefied:
                 continue
-            u_p = 0.0
-            if s.gauge is not None:
-                from gasbench.hold import GaugeSpec
-
-                u_p = GaugeSpec(s.gauge.range.typed_pa, s.gauge.accuracy_class).u_reading_pa
+            gauge = profile_gauge_spec(s.gauge)
+            u_p = gauge.u_reading_pa if gauge is not None else 0.0
             ob = pl.observed_draw(s.gas, s.water_volume, sp.reserve_abs_pa, sp.draw_kg_s,
                                   [(r.at, r.pressure_abs_pa, r.temperature_k) for r in rs], u_p, s.id)
             if ob is not None:
@@ -154,15 +155,16 @@ class SessionState:
         amb = self.profile.ambient_pa
         p = parse_pressure(pressure, amb)
         s = ids[supply_id]
-        if s.test_pressure is not None and p.abs_pa > s.test_pressure.abs_at(amb):
+        p_abs = p.abs_at(amb)
+        if s.test_pressure is not None and p_abs > s.test_pressure.abs_at(amb):
             raise InputError(f"{pressure} is above the cylinder's test pressure {s.test_pressure.text}: check the gauge and unit")
-        if s.gauge is not None and p.abs_pa > s.gauge.range.abs_at(amb) * 1.0001:
+        if s.gauge is not None and p_abs > s.gauge.range.abs_at(amb) * 1.0001:
             raise InputError(f"{pressure} is above the gauge range {s.gauge.range.text}")
         T = parse_temperature(temperature)
         if not 200.0 < T < 350.0:
             raise InputError(f"temperature {temperature} is outside −73 °C to 77 °C; check the unit")
         at = self.parse_time(when)
-        return Reading(supply_id, at, p.abs_pa, p.text, T)
+        return Reading(supply_id, at, p_abs, p.text, T)
 
     def parse_time(self, text: str) -> dt.datetime:
         now = self.clock()
@@ -223,21 +225,20 @@ class SessionState:
             return math.inf
         return sp.hours_to_reserve - (now - self.plan_at).total_seconds() / 3600.0
 
-    def last_hold_test(self) -> tuple[str, float, float, float] | None:
-        """(verdict, leak sccm, its uncertainty, age in days) of the bench's last hold test."""
-        if self.journal is None or self.profile is None:
+    def last_hold_test(self) -> LastHold | None:
+        """The bench's latest hold test in the journal (with its age now)."""
+        if self.profile is None:
             return None
-        try:
-            row = self.journal.last_hold_test(self.profile.bench.name)
-        except JournalError:
-            return None
-        if row is None:
-            return None
-        age = (self.clock() - dt.datetime.fromisoformat(row.at)).total_seconds() / 86400.0
-        return row.verdict, row.leak_rate_sccm, row.leak_rate_uncertainty_sccm, age
+        return last_hold_test(self.journal, self.profile.bench.name, self.clock())
 
-    def findings(self) -> list[pl.Finding]:
+    def assessment(self) -> Assessment:
+        """The bench now, as the command line's ``plan`` and ``checklist`` see it."""
         assert self.plan is not None
-        live = pl.live_findings(self.plan, self.observed, self.session_end) if self.running else []
-        live += pl.hold_test_findings(self.last_hold_test())
-        return sorted(live + list(self.plan.findings), key=lambda f: pl.SEVERITY_RANK[f.severity])
+        last = self.last_hold_test()
+        return Assessment(self.plan, last, findings_of(self.plan, last, self.observed, self.session_end,
+                                                       self.running))
+
+    def findings(self) -> list[Finding]:
+        """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""
+        assert self.plan is not None
+        return list(findings_of(self.plan, self.last_hold_test(), self.observed, self.session_end, self.running))

@@ -1,0 +1,60 @@
+"""Journal commands: ``sessions``, ``export``."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from dataclasses import asdict
+from pathlib import Path
+from typing import Any
+
+from gasbench.cli.common import add_journal, add_json, emit_json, input_error, journal_if_exists
+from gasbench.journal import default_path
+
+
+def configure(sub: Any, name: str) -> None:
+    if name == "sessions":
+        p = sub.add_parser("sessions", help="list the sessions in the journal")
+        add_journal(p)
+        add_json(p)
+        p.set_defaults(func=cmd_sessions)
+    elif name == "export":
+        p = sub.add_parser("export", help="write one session's readings out")
+        p.add_argument("session", type=int, help="session number (see 'gasbench sessions')")
+        p.add_argument("--format", choices=["csv"], default="csv")
+        p.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+        add_journal(p)
+        p.set_defaults(func=cmd_export)
+
+
+def cmd_sessions(args: argparse.Namespace) -> int:
+    j = journal_if_exists(args)
+    rows = j.sessions() if j is not None else []
+    if args.json:
+        emit_json({"journal": str(default_path(getattr(args, "journal", None))), "sessions": [asdict(r) for r in rows]})
+        return 0
+    if not rows:
+        print(f"no sessions in {default_path(getattr(args, 'journal', None))}")
+        return 0
+    print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  bench")
+    for r in rows:
+        print(f"{r.id:>4}  {r.started_at[:16]:<16}  {(r.stopped_at or 'left running')[:16]:<16}  {r.readings:>8}  {r.bench}")
+    return 0
+
+
+def cmd_export(args: argparse.Namespace) -> int:
+    j = journal_if_exists(args)
+    if j is None:
+        raise input_error("no journal yet: start a session in the app first")
+    if j.session(args.session) is None:
+        raise input_error(f"no session {args.session} in the journal (see 'gasbench sessions')")
+    text = j.export_csv(args.session)
+    if args.output:
+        try:
+            Path(args.output).write_text(text, encoding="utf-8")
+        except OSError as exc:
+            raise input_error(f"cannot write {args.output}: {exc.strerror or exc}") from None
+        print(f"session {args.session} written to {args.output}")
+    else:
+        sys.stdout.write(text)
+    return 0

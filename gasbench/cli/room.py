@@ -1,0 +1,94 @@
+"""The ``room`` command: room oxygen after a release or during a leak."""
+
+from __future__ import annotations
+
+import argparse
+from dataclasses import asdict
+from typing import Any
+
+from gasbench import room as rm
+from gasbench.cli.common import (
+    CAUTION,
+    add_ambient,
+    add_display,
+    add_flow_reference,
+    add_gas,
+    add_json,
+    ambient,
+    emit_json,
+    emit_table,
+    gas,
+    input_error,
+)
+from gasbench.units import (
+    fmt_hours,
+    parse_amount,
+    parse_flow,
+    parse_temperature,
+    parse_ventilation,
+    parse_volume,
+)
+
+
+def configure(sub: Any, name: str) -> None:
+    p = sub.add_parser("room", help="room oxygen after a release or during a leak")
+    add_gas(p)
+    p.add_argument("--room-volume", required=True, help="room volume, e.g. '40 m3'")
+    g1 = p.add_mutually_exclusive_group(required=True)
+    g1.add_argument("--release", help="sudden release: free-gas volume at room conditions ('9 m3') or a mass ('11 kg')")
+    g1.add_argument("--leak", help="continuous leak or vented draw: '5 slpm', '2 L/min', '3 g/min'")
+    p.add_argument("--ventilation", help="air changes per hour ('2/h') or a flow ('60 m3/h')")
+    p.add_argument("--ventilation-kind", choices=["exhaust", "supply"], default="exhaust")
+    p.add_argument("--model", choices=["displacement", "mixed", "sealed"], default="displacement",
+                   help="release model (default displacement, the most conservative)")
+    p.add_argument("--temperature", default="20 degC", help="room temperature (default 20 degC)")
+    p.add_argument("--oxygen", type=float, default=20.95, help="initial oxygen, %% (default 20.95)")
+    add_flow_reference(p)
+    add_ambient(p)
+    add_display(p)
+    add_json(p)
+    p.set_defaults(func=cmd_room)
+
+
+def cmd_room(args: argparse.Namespace) -> int:
+    g_ = gas(args)
+    amb = ambient(args)
+    T = parse_temperature(args.temperature, "room temperature")
+    V = parse_volume(args.room_volume, "room volume")
+    if V <= 0:
+        raise input_error(f"room volume {args.room_volume!r} must be greater than zero")
+    Q = parse_ventilation(args.ventilation).m3_s(V) if args.ventilation else 0.0
+    notes = [rm.stratification_note(g_)]
+    if args.release:
+        vg = rm.release_volume(g_, parse_amount(args.release, "release"), T, amb)
+        r = rm.release(V, vg, args.model, args.oxygen)
+        hz = rm.gas_hazards(g_, r.o2_percent_after_release, args.oxygen)
+        if args.json:
+            emit_json(asdict(r) | {"gas": g_.name, "hazards": [asdict(h) for h in hz], "stratification": notes[0]})
+            return 0
+        emit_table("Room oxygen after a sudden release", [
+            ("gas", g_.name), ("room", f"{V:g} m³"), ("released", f"{vg:.3f} m³ at room conditions"),
+            ("oxygen after", f"{r.o2_percent_after_release:.2f} %"), ("effect", r.effect or "none expected (≥ 19.5 %)"),
+            ("model", r.method)], list(r.notes) + [h.text for h in hz] + notes + [CAUTION])
+        return 0
+    if args.ventilation and Q == 0 and args.ventilation_kind == "exhaust":
+        raise input_error(f"ventilation {args.ventilation!r} is zero: leave out --ventilation for an unventilated room")
+    R = rm.leak_volume_flow(g_, parse_flow(args.leak, reference=args.flow_reference, what="leak"), T, amb)
+    lk = rm.leak_o2(V, R, Q, args.ventilation_kind, args.oxygen)
+    hz = rm.gas_hazards(g_, lk.o2_percent_steady, args.oxygen)
+    if args.json:
+        emit_json(asdict(lk) | {"gas": g_.name, "model": lk.method, "hazards": [asdict(h) for h in hz],
+                                "stratification": notes[0]})
+        return 0
+
+    def mins(m: float) -> str:
+        return fmt_hours(m / 60.0)
+
+    emit_table("Room oxygen with a continuous leak", [
+        ("gas", g_.name), ("room", f"{V:g} m³"), ("leak", f"{R * 6e4:.3f} L/min at room conditions"),
+        ("ventilation", f"{Q * 3600:.1f} m³/h ({args.ventilation_kind})" if Q else "none"),
+        ("steady oxygen", f"{lk.o2_percent_steady:.2f} %"), ("to 19.5 %", mins(lk.minutes_to_19_5)),
+        ("to 18 %", mins(lk.minutes_to_18)), ("recovery to 19.5 %", mins(lk.minutes_to_recover)),
+        ("effect", lk.effect or "none expected (≥ 19.5 %)"), ("model", lk.method)],
+        [h.text for h in hz] + notes + [CAUTION])
+    return 0

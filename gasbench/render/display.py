@@ -1,0 +1,87 @@
+"""How numbers are shown: the display unit of pressure and the shared formatters.
+
+Every renderer (text, app, Markdown, HTML, PDF) formats pressures, temperatures and times
+through a :class:`Display`, so a psi display is a setting, not a rewrite. ``--json`` stays SI
+and never passes through here.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+from gasbench.errors import InputError
+from gasbench.units import ATM_PA, T0_K, fmt_hours, fmt_pressure
+
+if TYPE_CHECKING:  # pragma: no cover
+    from gasbench.profile import Profile
+
+__all__ = ["PRESSURE_UNITS", "Display", "display_for", "profile_display"]
+
+#: Pressure units a person can choose for display (gauge marked (g)/psig, absolute (a)/psia).
+PRESSURE_UNITS: tuple[str, ...] = ("bar", "psi", "kPa", "MPa")
+
+
+@dataclass(frozen=True)
+class Display:
+    """Display settings: the pressure unit and the ambient pressure gauge readings refer to."""
+
+    pressure_unit: str = "bar"
+    ambient_pa: float = ATM_PA
+
+    def gauge(self, abs_pa: float) -> str:
+        """A pressure as gauge, e.g. ``"64.0 bar(g)"`` or ``"928 psig"``."""
+        return fmt_pressure(abs_pa, self.ambient_pa, self.pressure_unit, "gauge")
+
+    def absolute(self, abs_pa: float) -> str:
+        """A pressure as absolute, e.g. ``"1.013 bar(a)"`` or ``"14.70 psia"``."""
+        return fmt_pressure(abs_pa, self.ambient_pa, self.pressure_unit, "absolute")
+
+    def both(self, abs_pa: float) -> str:
+        """Gauge and absolute: ``"64.0 bar(g) = 65.0 bar(a)"``; low pressures absolute in mbar."""
+        if abs_pa < 1e4 and self.pressure_unit == "bar":
+            return f"{self.gauge(abs_pa)} = {fmt_pressure(abs_pa, self.ambient_pa, 'mbar', 'absolute')}"
+        return f"{self.gauge(abs_pa)} = {self.absolute(abs_pa)}"
+
+    def difference(self, dp_pa: float) -> str:
+        """A pressure difference (a drop, a band): no (g)/(a) mark."""
+        from gasbench.units import pressure_factor
+
+        v = dp_pa / pressure_factor(self.pressure_unit)
+        digits = 1 if abs(v) >= 10 else (2 if abs(v) >= 1 else 3)
+        return f"{v:.{digits}f} {self.pressure_unit}"
+
+    @staticmethod
+    def temperature(kelvin: float) -> str:
+        return f"{kelvin - T0_K:.1f} °C"
+
+    @staticmethod
+    def temperature_change(dk: float) -> str:
+        """A temperature difference, in kelvin: ``"−31.5 K"``."""
+        return f"{dk:+.1f} K"
+
+    @staticmethod
+    def hours(h: float) -> str:
+        return fmt_hours(h)
+
+    @staticmethod
+    def percent(x: float, digits: int = 1) -> str:
+        return "—" if not math.isfinite(x) else f"{x:.{digits}f} %"
+
+
+def display_for(pressure_unit: str | None, ambient_pa: float = ATM_PA) -> Display:
+    """A :class:`Display`, checking the pressure unit against :data:`PRESSURE_UNITS`."""
+    unit = (pressure_unit or "bar").strip()
+    match = {u.lower(): u for u in PRESSURE_UNITS}.get(unit.lower())
+    if match is None:
+        raise InputError(f"display pressure unit {unit!r} is not one of {', '.join(PRESSURE_UNITS)}")
+    return Display(match, ambient_pa)
+
+
+def profile_display(prof: Profile | None, pressure_unit: str | None = None) -> Display:
+    """The display of a bench: the unit given (e.g. ``--pressure-unit``), else the profile's
+    ``[display] pressure_unit``, with the profile's ambient pressure."""
+    if prof is None:
+        return display_for(pressure_unit)
+    return display_for(pressure_unit or prof.display.pressure_unit, prof.ambient_pa)

@@ -1,0 +1,74 @@
+"""A bench with the journal's state: its plan, its last hold test and every finding.
+
+The command line (``plan``, ``checklist``), the app's overview and the checklist all ask
+:func:`assess` for the same :class:`Assessment`, so they show the same findings.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+from gasbench import gas as g
+from gasbench import room as rm
+from gasbench.errors import GasbenchError
+from gasbench.journal import Journal
+from gasbench.profile import Profile, Supply
+from gasbench.units import Flow
+from gasbench.workflows.build import build_plan
+from gasbench.workflows.findings import Finding, live_findings, ranked
+from gasbench.workflows.holds import LastHold, hold_finding, last_hold_test
+from gasbench.workflows.model import Observed, Plan
+
+__all__ = ["Assessment", "assess", "findings_of", "largest_supply", "leak_volume_flow"]
+
+
+def largest_supply(prof: Profile) -> Supply:
+    """The supply that holds the most gas when full (real-gas mass at its service pressure and
+    15 °C, or its fill weight for a liquefied gas): the one a room assessment assumes escapes."""
+    amb = prof.ambient_pa
+
+    def full_mass(s: Supply) -> float:
+        if s.gross is not None and s.tare is not None:
+            return s.gross - s.tare
+        try:
+            return g.density(s.gas, 288.15, s.service_pressure.abs_at(amb)) * s.water_volume
+        except GasbenchError:
+            return 0.0
+
+    return max(prof.supplies, key=full_mass)
+
+
+def leak_volume_flow(prof: Profile, flow: Flow) -> float:
+    """An extra leak [m³/s at room conditions] of the largest supply's gas into the room."""
+    return rm.leak_volume_flow(largest_supply(prof).gas, flow, prof.ambient.temperature, prof.ambient_pa)
+
+
+@dataclass(frozen=True)
+class Assessment:
+    """A bench at one moment: its plan, its latest hold test, and all findings ranked."""
+
+    plan: Plan
+    last_hold: LastHold | None
+    findings: tuple[Finding, ...]
+
+
+def findings_of(plan: Plan, last_hold: LastHold | None, observed: Mapping[str, Observed] | None = None,
+                session_end: dt.datetime | None = None, running: bool = False) -> tuple[Finding, ...]:
+    """Every finding of a bench: the plan's, the hold test's and, in a running session, the live ones."""
+    out = list(plan.findings) + hold_finding(last_hold)
+    if running:
+        out += live_findings(plan, observed or {}, session_end)
+    return tuple(ranked(out))
+
+
+def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | None = None,
+           extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None,
+           observed: Mapping[str, Observed] | None = None, session_end: dt.datetime | None = None,
+           running: bool = False) -> Assessment:
+    """Plan the bench and judge it with the journal's latest hold test."""
+    now = now or dt.datetime.now().astimezone().replace(second=0, microsecond=0)
+    plan = build_plan(prof, now=now, extra_leak_m3_s=extra_leak_m3_s, start_at=start_at)
+    last = last_hold_test(journal, prof.bench.name, now)
+    return Assessment(plan, last, findings_of(plan, last, observed, session_end, running))
