@@ -14,3 +14,16 @@ settings.load_profile("gasbench")
 @pytest.fixture(autouse=True)
 def _isolated_journal(tmp_path, monkeypatch):
     monkeypatch.setenv("GASBENCH_JOURNAL", str(tmp_path / "isolated-journal.sqlite3"))
+
+
+#: Interface tests (the app, the command line end to end, subprocesses, files on disk); the core
+#: tier (`uv run pytest -m "not slow"`) runs without them in a few seconds.
+SLOW_MODULES = {"test_app", "test_one_truth", "test_journal", "test_cli", "test_checklist", "test_bad_input"}
+
+
+def pytest_collection_modifyitems(config, items):
+    for item in items:
+        module = item.path.stem
+        if (module in SLOW_MODULES or "pr_flash" in getattr(item, "fixturenames", ())
+                or "peng_robinson" in item.name):
+            item.add_marker(pytest.mark.slow)

@@ -43,6 +43,7 @@ def run(capsys, *argv):
 # ----------------------------------------------------------------------------- 1. CoolProp 8
 
 
+@pytest.mark.slow
 def test_coolprop_8_import_prints_nothing_on_stdout():
     # CoolProp 8 announces the disabled superancillaries on standard output (fd 1); --json
     # output must stay pure JSON. Run in a fresh process so the import really happens.
@@ -302,6 +303,7 @@ def test_hold_log_json_does_not_crash(capsys, tmp_path):
     assert code == 0 and isinstance(json.loads(out)["curvature_significant"], bool)
 
 
+@pytest.mark.slow
 def test_json_into_a_closed_pipe_is_quiet():
     # Regression: `gasbench … --json | head -1` ended in a BrokenPipeError traceback.
     proc = subprocess.run(

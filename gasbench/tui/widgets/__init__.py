@@ -16,9 +16,13 @@ class FindingsPanel(Static):
     FindingsPanel { height: auto; padding: 0 1; }
     """
 
+    #: the findings on screen (codes and severities, for tests and other widgets)
+    shown: tuple[Finding, ...] = ()
+
     def show(self, findings: list[Finding], display: Display | None = None) -> None:
         from rich.text import Text
 
+        self.shown = tuple(findings)
         if not findings:
             self.update(Text("✔ no findings", style="green"))
             return
