@@ -99,9 +99,8 @@ def test_every_finding_code_has_words():
 
 
 async def test_same_hold_test_stores_the_same_record_from_app_and_cli(tmp_path):
-    from gasbench.tui.screens.tools import HoldScreen
-
     from gasbench.journal import Journal
+    from gasbench.tui.screens.tools import HoldScreen
 
     journal = tmp_path / "journal.sqlite3"
     Journal(journal).close()
