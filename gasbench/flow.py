@@ -13,7 +13,7 @@ from typing import Any
 
 from gasbench import gas as g
 from gasbench.errors import InputError
-from gasbench.units import check_positive
+from gasbench.units import ATM_PA, T0_K, check_positive, fmt_pressure
 
 heat_capacity_ratio = g.heat_capacity_ratio
 
@@ -129,7 +129,7 @@ def orifice_flow(
         raise InputError(f"discharge coefficient {cd:g} must be > 0 and ≤ 1")
     if p_down >= p_up:
         raise InputError(
-            f"downstream pressure {p_down / 1e5:.4g} bar(a) is not below upstream {p_up / 1e5:.4g} bar(a): no flow"
+            f"downstream pressure {fmt_pressure(p_down, kind='absolute')} is not below upstream {fmt_pressure(p_up, kind='absolute')}: no flow"
         )
     rho1 = g.density(gas, T, p_up)
     k = g.heat_capacity_ratio(gas, T, p_up)
@@ -137,7 +137,7 @@ def orifice_flow(
     G_ideal, _ = ideal_nozzle_mass_flux(rho1, p_up, k, p_down / p_up)
     G, choked, r_crit = real_nozzle_mass_flux(gas, p_up, T, p_down)
     mdot = cd * A * G
-    rho_std = g.density(gas, 273.15, 101325.0)
+    rho_std = g.density(gas, T0_K, ATM_PA)
     return OrificeFlow(mdot, mdot / rho_std * 60e3, choked, r_crit, k, cd * A * G_ideal,
                        "real-gas isentropic nozzle (CoolProp HEOS) with discharge coefficient")
 
@@ -166,7 +166,7 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
     check_positive(kv, "valve Kv", "m³/h")
     if p_down >= p_up:
         raise InputError(
-            f"downstream pressure {p_down / 1e5:.4g} bar(a) is not below upstream {p_up / 1e5:.4g} bar(a): no flow"
+            f"downstream pressure {fmt_pressure(p_down, kind='absolute')} is not below upstream {fmt_pressure(p_up, kind='absolute')}: no flow"
         )
     Z = g.z_factor(gas, T, p_up)
     k = heat_capacity_ratio(gas, T, p_up)
@@ -192,7 +192,7 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
         if hi / lo < 1 + 1e-10:
             break
     Q = math.sqrt(lo * hi)
-    rho_std = g.density(gas, 273.15, 101325.0)
+    rho_std = g.density(gas, T0_K, ATM_PA)
     return ValveFlow(Q * rho_std, Q * 60e3, bool(kv_of(Q)["choked"]),
                      "IEC 60534-2-1 gas sizing (fluids), solved for flow")
 

@@ -22,6 +22,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from gasbench.errors import InputError, PropertyError
+from gasbench.units import fmt_pressure, fmt_temperature
 
 #: Molar mass of dry air, [kg/mol] (Lemmon et al. 2000, J. Phys. Chem. Ref. Data 29, 331).
 AIR_MOLAR_MASS = 0.0289586
@@ -372,21 +373,21 @@ def check_state(gas: Gas, T: float, p: float | None = None) -> None:
     tmin, tmax, pmax = limits(gas)
     if not tmin <= T <= tmax:
         raise InputError(
-            f"temperature {T - T0:.1f} °C is outside the equation of state for {gas.name} "
-            f"({tmin - T0:.1f} °C to {tmax - T0:.0f} °C)"
+            f"temperature {fmt_temperature(T)} is outside the equation of state for {gas.name} "
+            f"({fmt_temperature(tmin)} to {fmt_temperature(tmax)})"
         )
     if p is None:
         return
     if not isinstance(p, (int, float)) or not math.isfinite(p) or p <= 0:
         raise InputError(f"absolute pressure {p!r} Pa must be greater than zero")
     if p > pmax:
-        raise InputError(f"pressure {p / 1e5:.0f} bar(a) is beyond the equation of state for {gas.name} "
-                         f"(up to {pmax / 1e5:.0f} bar(a))")
+        raise InputError(f"pressure {fmt_pressure(p, kind='absolute')} is beyond the equation of state for {gas.name} "
+                         f"(up to {fmt_pressure(pmax, kind='absolute')})")
     Tm = melting_temperature(gas, p)
     if Tm is not None and T < Tm:
         raise InputError(
-            f"{gas.name} is solid at {T - T0:.2f} °C and {p / 1e5:.4g} bar(a) (it melts at "
-            f"{Tm - T0:.2f} °C at that pressure): no gas state there"
+            f"{gas.name} is solid at {fmt_temperature(T)} and {fmt_pressure(p, kind='absolute')} (it melts at "
+            f"{fmt_temperature(Tm)} at that pressure): no gas state there"
         )
 
 
@@ -396,11 +397,11 @@ def _update(gas: Gas, pair: str, a: float, b: float) -> Any:
     try:
         AS.update(getattr(CP, pair), a, b)
     except ValueError:
-        what = {"PT_INPUTS": f"{a / 1e5:.6g} bar(a), {b - T0:.2f} °C",
-                "DmassT_INPUTS": f"{a:.6g} kg/m³, {b - T0:.2f} °C",
-                "HmassP_INPUTS": f"h = {a / 1e3:.6g} kJ/kg, {b / 1e5:.6g} bar(a)",
-                "PSmass_INPUTS": f"{a / 1e5:.6g} bar(a), s = {b / 1e3:.6g} kJ/(kg·K)",
-                "QT_INPUTS": f"saturation at {b - T0:.2f} °C"}.get(pair, "")
+        what = {"PT_INPUTS": f"{fmt_pressure(a, kind='absolute')}, {fmt_temperature(b)}",
+                "DmassT_INPUTS": f"{a:.6g} kg/m³, {fmt_temperature(b)}",
+                "HmassP_INPUTS": f"h = {a / 1e3:.6g} kJ/kg, {fmt_pressure(b, kind='absolute')}",
+                "PSmass_INPUTS": f"{fmt_pressure(a, kind='absolute')}, s = {b / 1e3:.6g} kJ/(kg·K)",
+                "QT_INPUTS": f"saturation at {fmt_temperature(b)}"}.get(pair, "")
         raise PropertyError(f"the equation of state of {gas.name} has no solution at {what}") from None
     return AS
 
@@ -519,7 +520,7 @@ def vapour_enthalpy(gas: Gas, T: float, p: float) -> float:
         AS.update(CP.PT_INPUTS, p, T)
         return float(AS.hmass())
     except ValueError:
-        raise PropertyError(f"no vapour state of {gas.name} at {T - T0:.2f} °C, {p / 1e5:.4g} bar(a)") from None
+        raise PropertyError(f"no vapour state of {gas.name} at {fmt_temperature(T)}, {fmt_pressure(p, kind='absolute')}") from None
     finally:
         AS.unspecify_phase()
 
@@ -590,7 +591,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
     hi = min(tmax, T_guess)
     while f(hi) < 0:
         if hi >= tmax:
-            raise PropertyError(f"no state of {gas.name} at {p / 1e5:.4g} bar(a) up to {tmax - T0:.0f} °C")
+            raise PropertyError(f"no state of {gas.name} at {fmt_pressure(p, kind='absolute')} up to {fmt_temperature(tmax)}")
         hi = min(tmax, hi + 20.0)
     lo: float | None = None
     T, last_ok = hi, hi
@@ -606,7 +607,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
     T_gas = _solve_T(f, lo, last_ok, tol) if lo is not None else math.nan
     if not verify:
         if lo is None:
-            raise PropertyError(f"no gas state of {gas.name} at {p / 1e5:.4g} bar(a)")
+            raise PropertyError(f"no gas state of {gas.name} at {fmt_pressure(p, kind='absolute')}")
         return T_gas
 
     def equilibrium(T: float) -> tuple[bool, float]:
@@ -636,7 +637,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
             raise PropertyError("no bracket")
         return _solve_T(lambda T: equilibrium(T)[1] - target, T_low, T_dew, tol)
     except PropertyError:
-        raise PropertyError(f"the phase equilibrium of {gas.name} cannot be solved at {p / 1e5:.4g} bar(a)") from None
+        raise PropertyError(f"the phase equilibrium of {gas.name} cannot be solved at {fmt_pressure(p, kind='absolute')}") from None
 
 
 def flash_ph(gas: Gas, h: float, p: float, T_guess: float) -> FlashPH:
@@ -723,7 +724,7 @@ def sublimation_pressure(gas: Gas, T: float) -> float:
         raise InputError(f"no sublimation line is known here for {gas.name}")
     Tt, pt, terms = _SUBLIMATION[gas.components[0][0].key]
     if not 0 < T <= Tt:
-        raise InputError(f"temperature {T - T0:.2f} °C is not below the triple point of {gas.name}")
+        raise InputError(f"temperature {fmt_temperature(T)} is not below the triple point of {gas.name}")
     x = 1.0 - T / Tt
     return pt * math.exp(Tt / T * sum(a * x**e for a, e in terms))
 
@@ -739,7 +740,7 @@ def sublimation_temperature(gas: Gas, p: float) -> float:
     if not has_sublimation_line(gas):
         raise InputError(f"no sublimation line is known here for {gas.name}")
     if not 0 < p <= pt:
-        raise InputError(f"pressure {p / 1e5:.4g} bar(a) is not below the triple-point pressure of {gas.name}")
+        raise InputError(f"pressure {fmt_pressure(p, kind='absolute')} is not below the triple-point pressure of {gas.name}")
     lo, hi = 100.0, Tt
     for _ in range(80):
         mid = 0.5 * (lo + hi)

@@ -32,7 +32,7 @@ from dataclasses import dataclass
 
 from gasbench import gas as g
 from gasbench.errors import InputError
-from gasbench.units import ATM_PA, Flow, check_positive
+from gasbench.units import ATM_PA, Flow, check_positive, fmt_pressure, fmt_temperature
 
 #: Standard-flow reference for leak rates: 0 °C, 101.325 kPa.
 T_STD, P_STD = 273.15, 101325.0
@@ -245,14 +245,14 @@ def hold_two_readings(
         raise InputError(f"hold duration {duration_s!r} s must be greater than zero")
     for p, what in ((p_start, "start pressure"), (p_end, "end pressure")):
         if gauge is not None and p - ambient_pa > gauge.span_pa * 1.0001:
-            raise InputError(f"{what} {(p - ambient_pa) / 1e5:.4g} bar(g) is above the gauge range "
+            raise InputError(f"{what} {fmt_pressure(p, ambient_pa)} is above the gauge range "
                              f"{gauge.span_pa / 1e5:.4g} bar")
     notes: list[str] = []
     temps_given = T_start is not None and T_end is not None
     if not temps_given:
         T = T_start or T_end or 293.15
         T_start = T_end = T
-        notes.append(f"no temperatures given: assumed unchanged at {T - 273.15:.1f} °C; a 1 K change at "
+        notes.append(f"no temperatures given: assumed unchanged at {fmt_temperature(T)}; a 1 K change at "
                      "high pressure moves the gauge as much as a real leak — give --t-start and --t-end")
     assert T_start is not None and T_end is not None
     m1, dm1p, dm1T = _dm(gas, volume_m3, T_start, p_start)
@@ -405,7 +405,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
         raise InputError("a log fit needs at least three readings")
     if gauge is not None and float(np.max(p)) - ambient_pa > gauge.span_pa * 1.0001:
         i = int(np.argmax(p))
-        raise InputError(f"log row {i + 2}: pressure {(p[i] - ambient_pa) / 1e5:.4g} bar(g) is above the gauge range")
+        raise InputError(f"log row {i + 2}: pressure {fmt_pressure(p[i], ambient_pa)} is above the gauge range")
     T = np.asarray(log.T_k) if log.T_k is not None else np.full(n, T_default)
     table = g.DensityTable(gas, float(p.min()) * 0.999, float(p.max()) * 1.001, float(T.min()), float(T.max()) + 1e-6)
     m = table.density(p, T) * volume_m3
@@ -427,7 +427,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
     if log.T_k is None:
-        notes.append(f"no temperature column: assumed constant {T_default - 273.15:.1f} °C")
+        notes.append(f"no temperature column: assumed constant {fmt_temperature(T_default)}")
     u_T_eff = u_T if log.T_k is not None else max(u_T, U_T_UNMEASURED)
     u_dm = mass_change_uncertainty(dm1p, dm2p, dm1T, dm2T, u_p, u_T_eff)
     u_rate = math.hypot(se, u_dm / span)

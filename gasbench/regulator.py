@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 from gasbench import gas as g
 from gasbench.errors import InputError, PropertyError
+from gasbench.units import T0_K, fmt_pressure, fmt_temperature
 
 
 @dataclass(frozen=True)
@@ -95,7 +96,7 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     """
     if p_out >= p_in:
         raise InputError(
-            f"outlet {p_out / 1e5:.4g} bar(a) is not below inlet {p_in / 1e5:.4g} bar(a): a regulator only reduces pressure"
+            f"outlet {fmt_pressure(p_out, kind='absolute')} is not below inlet {fmt_pressure(p_in, kind='absolute')}: a regulator only reduces pressure"
         )
     g.check_state(gas, T_in, p_in)
     notes: list[str] = []
@@ -112,7 +113,7 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
             notes.append(f"a component condenses at the outlet (vapour fraction {q if q is not None else 0:.2f} "
                          "by moles): liquid in the regulator and the line, and the delivered gas is leaner "
                          "in the heavy component")
-        if fl.T < 273.15:
+        if fl.T < T0_K:
             notes.append("outlet below 0 °C: moisture freezes on the body; ice can form outside")
         return Throttle(gas.name, p_in, p_out, T_in, fl.T, fl.T - T_in, False, liquid, q, tuple(notes),
                         "isenthalpic, real gas (CoolProp HEOS, phase-equilibrium (h, p) flash)")
@@ -123,34 +124,34 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
         if h <= h_vap_sub:
             solid = min(1.0, (h_vap_sub - h) / sublimation_enthalpy(gas, T_sub))
             notes.append(
-                f"the outlet sits on the sublimation line at {T_sub - 273.15:.1f} °C "
-                f"({p_out / 1e5:.3g} bar(a)): solid {gas.name} (dry ice) forms, about "
+                f"the outlet sits on the sublimation line at {fmt_temperature(T_sub)} "
+                f"({fmt_pressure(p_out, kind='absolute')}): solid {gas.name} (dry ice) forms, about "
                 f"{100 * solid:.0f} % of the flow by mass, and can block the regulator"
             )
             return Throttle(gas.name, p_in, p_out, T_in, T_sub, T_sub - T_in, True, False, 1.0 - solid,
                             tuple(notes), "isenthalpic, real gas (CoolProp HEOS); Span & Wagner 1996 "
                             "sublimation line below the triple point")
         T_out = _vapour_outlet(gas, h, p_out, T_sub, max(T_in, T_sub + 1.0) + 50.0)
-        if T_out < 273.15:
-            notes.append(f"outlet {T_out - 273.15:.1f} °C: moisture freezes on the body; ice can form outside")
+        if T_out < T0_K:
+            notes.append(f"outlet {fmt_temperature(T_out)}: moisture freezes on the body; ice can form outside")
         return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, False, False, None, tuple(notes),
                         "isenthalpic, real gas (CoolProp HEOS, vapour branch)")
     try:
         fl = g.flash_ph(gas, h, p_out, T_in)
     except PropertyError:
-        raise PropertyError(f"no outlet state for {gas.name} throttled to {p_out / 1e5:.3g} bar(a)") from None
+        raise PropertyError(f"no outlet state for {gas.name} throttled to {fmt_pressure(p_out, kind='absolute')}") from None
     T_out = fl.T
     liquid = fl.phase.kind in ("two-phase", "liquid")
     vapour_fraction = fl.phase.vapour_fraction if liquid else None
     solid = False
     if liquid:
         notes.append(f"liquid forms at the outlet (vapour fraction {vapour_fraction or 0.0:.2f}) "
-                     f"at {T_out - 273.15:.1f} °C")
+                     f"at {fmt_temperature(T_out)}")
         if p_out <= pt * 1.02:
             solid = True
             notes.append(f"outlet at the triple point pressure of {gas.name}: solid can form")
-    if T_out < 273.15 and not solid:
-        notes.append(f"outlet {T_out - 273.15:.1f} °C: moisture freezes on the body; ice can form outside")
+    if T_out < T0_K and not solid:
+        notes.append(f"outlet {fmt_temperature(T_out)}: moisture freezes on the body; ice can form outside")
     return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, solid, liquid, vapour_fraction,
                     tuple(notes), "isenthalpic, real gas (CoolProp HEOS)")
 

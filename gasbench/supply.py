@@ -10,7 +10,14 @@ from dataclasses import dataclass
 
 from gasbench import gas as g
 from gasbench.errors import InputError
-from gasbench.units import REFERENCES, Flow, Reference, check_positive
+from gasbench.units import (
+    REFERENCES,
+    Flow,
+    Reference,
+    check_positive,
+    fmt_pressure,
+    fmt_temperature,
+)
 
 #: Highest temperature at which compressed-gas cylinders should be stored, [K]:
 #: 52 °C / 125 °F (CGA P-1 "Safe handling of compressed gases in containers", from memory).
@@ -95,8 +102,8 @@ def contents(
         return Contents(
             gas.name, volume_m3, T, p_abs, True, None, None, None, None, reference, None,
             None, None, None, "liquid-full: no vapour space",
-            (f"STOP: {p_abs / 1e5:.1f} bar(a) is well above the vapour pressure of {gas.name} at "
-             f"{T - 273.15:.1f} °C ({p_sat / 1e5:.1f} bar(a)): the cylinder is full of liquid (overfilled, or "
+            (f"STOP: {fmt_pressure(p_abs, kind='absolute')} is well above the vapour pressure of {gas.name} at "
+             f"{fmt_temperature(T)} ({fmt_pressure(p_sat, kind='absolute')}): the cylinder is full of liquid (overfilled, or "
              "warmer than stated); warming it further raises the pressure steeply — a hydraulic-rupture "
              "hazard. Keep it cool, do not use it, and call the supplier.",),
             phase="liquid-full",
@@ -105,8 +112,8 @@ def contents(
         return Contents(
             gas.name, volume_m3, T, p_abs, True, None, None, None, None, reference, None,
             None, None, None, "liquefied: weigh the cylinder",
-            (f"{gas.name} is liquid in the cylinder at {T - 273.15:.1f} °C (below its critical "
-             f"temperature {g.critical_temperature(gas) - 273.15:.1f} °C): the pressure is its vapour "
+            (f"{gas.name} is liquid in the cylinder at {fmt_temperature(T)} (below its critical "
+             f"temperature {fmt_temperature(g.critical_temperature(gas))}): the pressure is its vapour "
              "pressure and says nothing about how much is left; weigh it (gross − tare).",),
             phase="liquefied",
         )
@@ -122,7 +129,7 @@ def contents(
             "not the filled mixture, and the pressure no longer falls in proportion to the contents"
         )
     elif ph.kind == "liquid":
-        notes.append(f"{gas.name} is a liquid at {T - 273.15:.1f} °C and {p_abs / 1e5:.4g} bar(a), not a gas: "
+        notes.append(f"{gas.name} is a liquid at {fmt_temperature(T)} and {fmt_pressure(p_abs, kind='absolute')}, not a gas: "
                      "check the temperature and pressure you gave")
     if gas.sold_liquefied and T < g.critical_temperature(gas):
         notes.append("below the vapour pressure: no liquid left, only vapour; pressure falls fast from here")
@@ -213,7 +220,7 @@ def heat_up(
     """
     if g.is_liquefied(gas, T1, p_abs):
         raise InputError(
-            f"{gas.name} is liquid in the cylinder at {T1 - 273.15:.1f} °C: its pressure follows the "
+            f"{gas.name} is liquid in the cylinder at {fmt_temperature(T1)}: its pressure follows the "
             "vapour pressure and the fill ratio, not the gas law; use the supplier's filling-ratio data"
         )
     rho = g.density(gas, T1, p_abs)
@@ -270,13 +277,13 @@ def runtime(gas: g.Gas, volume_m3: float, p_abs: float, reserve_abs: float, T: f
     check_positive(volume_m3, "cylinder volume", "m³")
     if reserve_abs >= p_abs:
         raise InputError(
-            f"reserve {reserve_abs / 1e5:.2f} bar(a) is at or above the current pressure "
-            f"{p_abs / 1e5:.2f} bar(a): nothing is usable"
+            f"reserve {fmt_pressure(reserve_abs, kind='absolute')} is at or above the current pressure "
+            f"{fmt_pressure(p_abs, kind='absolute')}: nothing is usable"
         )
     if not math.isfinite(draw_kg_s) or draw_kg_s < 0:
         raise InputError(f"total draw {draw_kg_s!r} kg/s must be zero or more")
     if g.is_liquefied(gas, T, p_abs):
-        raise InputError(f"{gas.name} is liquid in the cylinder at {T - 273.15:.1f} °C; run time needs the weight")
+        raise InputError(f"{gas.name} is liquid in the cylinder at {fmt_temperature(T)}; run time needs the weight")
     m_now = g.density(gas, T, p_abs) * volume_m3
     m_res = g.density(gas, T, reserve_abs) * volume_m3
     usable = m_now - m_res

@@ -28,7 +28,7 @@ from gasbench import regulator as rg
 from gasbench import room as rm
 from gasbench import supply as sp
 from gasbench.profile import Draw, Profile, Supply
-from gasbench.units import REFERENCES
+from gasbench.units import ATM_PA, REFERENCES, T0_K
 from gasbench.workflows import findings as fd
 from gasbench.workflows.model import (
     PROJECTION_POINTS,
@@ -169,7 +169,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         s = prof.supply(r.supply)
         rp = reg_plans[r.id]
         mdot, how, choked = _draw_flow(prof, d, s.gas, rp.set_point_abs_pa)
-        rho_std = g.density(s.gas, 273.15, 101325.0)
+        rho_std = g.density(s.gas, T0_K, ATM_PA)
         gap_plan = None
         if d.kind == "gap" and d.spacing is not None:
             b0 = gp.breakdown(s.gas, d.spacing, rp.set_point_abs_pa, T_amb)

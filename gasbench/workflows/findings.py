@@ -21,6 +21,7 @@ from typing import Literal
 from gasbench import gas as g
 from gasbench import room as rm
 from gasbench.profile import Profile
+from gasbench.units import T0_K
 from gasbench.workflows.model import Observed, Plan, RoomPlan
 
 __all__ = [
@@ -128,7 +129,7 @@ def _regulator_findings(prof: Profile, plan: Plan) -> list[Finding]:
             out.append(Finding("regulator-solid", "stop", r.id, base | t_out))
         elif rp.liquid_forms:
             out.append(Finding("regulator-liquid", "warning", r.id, base | t_out))
-        elif rp.outlet_temperature_k < 273.15:
+        elif rp.outlet_temperature_k < T0_K:
             out.append(Finding("regulator-icing", "attention", r.id, base | t_out))
         if rp.outlet_at_reserve_abs_pa > r.outlet_max.abs_at(amb):
             out.append(Finding("outlet-drift-range", "attention", r.id, base | {
