@@ -541,7 +541,7 @@ class FlashPH:
     density: float
 
 
-def _solve_T(f: Any, lo: float, hi: float, tol: float = 1e-7) -> float:
+def solve_increasing(f: Any, lo: float, hi: float, tol: float = 1e-7) -> float:
     """Root of an increasing f(T) in [lo, hi] by bisection with secant steps (Illinois)."""
     flo, fhi = f(lo), f(hi)
     if flo > 0 or fhi < 0:
@@ -604,7 +604,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
         except PropertyError:
             break
         last_ok = T
-    T_gas = _solve_T(f, lo, last_ok, tol) if lo is not None else math.nan
+    T_gas = solve_increasing(f, lo, last_ok, tol) if lo is not None else math.nan
     if not verify:
         if lo is None:
             raise PropertyError(f"no gas state of {gas.name} at {fmt_pressure(p, kind='absolute')}")
@@ -635,7 +635,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
             T_low = max(tmin, T_low - 5.0)
         else:
             raise PropertyError("no bracket")
-        return _solve_T(lambda T: equilibrium(T)[1] - target, T_low, T_dew, tol)
+        return solve_increasing(lambda T: equilibrium(T)[1] - target, T_low, T_dew, tol)
     except PropertyError:
         raise PropertyError(f"the phase equilibrium of {gas.name} cannot be solved at {fmt_pressure(p, kind='absolute')}") from None
 

@@ -63,7 +63,7 @@ def sublimation_enthalpy(gas: g.Gas, T: float) -> float:
 
 def _vapour_outlet(gas: g.Gas, h: float, p_out: float, T_lo: float, T_hi: float) -> float:
     """Temperature of the vapour with enthalpy h at p_out, between T_lo and T_hi."""
-    return g._solve_T(lambda T: g.vapour_enthalpy(gas, T, p_out) - h, T_lo, T_hi)
+    return g.solve_increasing(lambda T: g.vapour_enthalpy(gas, T, p_out) - h, T_lo, T_hi)
 
 
 def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapour: bool = False) -> Throttle:

@@ -169,3 +169,17 @@ def test_unknown_pressure_unit_is_one_line(capsys):
                  "15 degC", "--pressure-unit", "atm"])
     err = capsys.readouterr().err
     assert code == 2 and err.count("\n") == 1 and "bar, psi, kPa, MPa" in err
+
+
+async def test_app_units_key_cycles_the_pressure_unit(tmp_path):
+    app = make_app(None, tmp_path / "j.sqlite3")
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        table = app.screen.query_one("#supplies")
+        assert "bar(g)" in str(table.get_row_at(0))
+        await pilot.press("u")
+        await pilot.pause()
+        row = str(table.get_row_at(0))
+        assert "psig" in row and "bar(g)" not in row

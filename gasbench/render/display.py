@@ -44,6 +44,20 @@ class Display:
             return f"{self.gauge(abs_pa)} = {fmt_pressure(abs_pa, self.ambient_pa, 'mbar', 'absolute')}"
         return f"{self.gauge(abs_pa)} = {self.absolute(abs_pa)}"
 
+    @property
+    def gauge_label(self) -> str:
+        """The gauge unit label alone: ``bar(g)``, ``psig``, ``kPa(g)``."""
+        return "psig" if self.pressure_unit == "psi" else f"{self.pressure_unit}(g)"
+
+    def gauge_number(self, abs_pa: float) -> str:
+        """A gauge pressure's number alone, in the display unit (for compact tables)."""
+        return self.gauge(abs_pa).rsplit(" ", 1)[0]
+
+    def next_unit(self) -> Display:
+        """The same display in the next pressure unit of :data:`PRESSURE_UNITS` (a key cycles them)."""
+        i = PRESSURE_UNITS.index(self.pressure_unit) if self.pressure_unit in PRESSURE_UNITS else -1
+        return Display(PRESSURE_UNITS[(i + 1) % len(PRESSURE_UNITS)], self.ambient_pa)
+
     def difference(self, dp_pa: float) -> str:
         """A pressure difference (a drop, a band): no (g)/(a) mark."""
         from gasbench.units import pressure_factor

@@ -15,9 +15,9 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
 from gasbench.errors import GasbenchError, JournalError
-from gasbench.render.display import profile_display
+from gasbench.render.display import Display, profile_display
 from gasbench.tui.widgets import FindingsPanel, bar
-from gasbench.units import fmt_hours, fmt_pressure
+from gasbench.units import fmt_hours
 from gasbench.workflows.session import Reading, SessionState
 
 
@@ -30,6 +30,7 @@ class OverviewScreen(Screen[None]):
         Binding("o", "oxygen", "O2"),
         Binding("k", "checklist", "Checklist"),
         Binding("l", "reload", "Reload"),
+        Binding("u", "units", "Units"),
     ]
 
     def __init__(self, state: SessionState) -> None:
@@ -37,6 +38,18 @@ class OverviewScreen(Screen[None]):
         self.state = state
         self.cautions_shown = False
         self._shown: dict[str, object] = {}
+        #: the pressure unit shown; starts from the profile's [display] setting, `u` cycles it
+        self.pressure_unit: str | None = None
+
+    @property
+    def units(self) -> Display:
+        return profile_display(self.state.profile, self.pressure_unit)
+
+    def action_units(self) -> None:
+        """Show pressures in the next unit (bar, psi, kPa, MPa)."""
+        self.pressure_unit = self.units.next_unit().pressure_unit
+        self.refresh_view()
+        self.notify(f"pressures in {self.units.gauge_label}", timeout=3)
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -110,7 +123,7 @@ class OverviewScreen(Screen[None]):
         if st.plan is None or st.profile is None:
             return
         self.app.sub_title = st.plan.bench_name
-        amb = st.plan.ambient_pa
+        disp = self.units
         sup = self.query_one("#supplies", DataTable)
         sup.clear()
         self._shown.clear()
@@ -119,9 +132,9 @@ class OverviewScreen(Screen[None]):
             outlet = "—"
             if regs:
                 coldest = min(r.outlet_temperature_k for r in regs)
-                outlet = ("/".join(fmt_pressure(r.set_point_abs_pa, amb).replace(" bar(g)", "") for r in regs)
-                          + f" bar(g) {coldest - 273.15:.0f}°C")
-            reading = "liquid (by weight)" if s.liquefied else fmt_pressure(s.pressure_abs_pa, amb)
+                outlet = ("/".join(disp.gauge_number(r.set_point_abs_pa) for r in regs)
+                          + f" {disp.gauge_label} {disp.temperature(coldest).replace(' °C', '°C')}")
+            reading = "liquid (by weight)" if s.liquefied else disp.gauge(s.pressure_abs_pa)
             sup.add_row(s.id, s.gas_short[:16], reading, "", "", "", f"{s.mass_kg:.2f} kg",
                         f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
         dr = self.query_one("#draws", DataTable)
@@ -136,7 +149,7 @@ class OverviewScreen(Screen[None]):
                     margin = f"{w.margin_kv:+.1f} kV {w.status}"
             dr.add_row(d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin, key=d.id)
         self._observed_line()
-        self.query_one("#findings", FindingsPanel).show(st.findings(), profile_display(st.profile))
+        self.query_one("#findings", FindingsPanel).show(st.findings(), disp)
         self.tick()
 
     def _observed_line(self) -> None:
