@@ -166,6 +166,8 @@ def test_cost_shots_and_gauge_band_of_the_demo_supply():
 
 
 def test_plan_draws_and_regulators_come_from_the_core_functions():
+    # Consistency (not an outside check): the plan must use the core functions unchanged; the
+    # core functions are checked against outside sources in their own test files.
     from gasbench import flow, regulator, supply
 
     prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
