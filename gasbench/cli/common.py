@@ -124,6 +124,12 @@ def display(args: argparse.Namespace, ambient_pa: float, profile: Any = None) ->
     return display_for(unit, ambient_pa)
 
 
+def computation(args: argparse.Namespace) -> tuple[Gas, float, Display]:
+    """What a computation command starts from: the gas, the ambient pressure, the display."""
+    amb = ambient(args)
+    return gas(args), amb, display(args, amb)
+
+
 def journal_if_exists(args: argparse.Namespace) -> Any:
     """The journal when its file exists (commands that only read or add to it never create one)."""
     from gasbench.journal import Journal, default_path

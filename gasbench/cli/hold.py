@@ -16,11 +16,9 @@ from gasbench.cli.common import (
     add_gas,
     add_journal,
     add_json,
-    ambient,
-    display,
+    computation,
     emit_json,
     emit_table,
-    gas,
     input_error,
     journal_if_exists,
 )
@@ -98,9 +96,7 @@ def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
 
 
 def cmd_hold(args: argparse.Namespace) -> int:
-    g_ = gas(args)
-    amb = ambient(args)
-    d = display(args, amb)
+    g_, amb, d = computation(args)
     if args.volume:
         V = parse_volume(args.volume, "held volume")
     elif args.line_length and args.bore:

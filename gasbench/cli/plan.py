@@ -13,11 +13,10 @@ from gasbench.cli.common import (
     add_gas,
     add_journal,
     add_json,
-    ambient,
+    computation,
     display,
     emit_json,
     emit_table,
-    gas,
     journal_if_exists,
 )
 from gasbench.flow import orifice_flow
@@ -91,9 +90,7 @@ def cmd_plan(args: argparse.Namespace) -> int:
 
 
 def cmd_throttle(args: argparse.Namespace) -> int:
-    g_ = gas(args)
-    amb = ambient(args)
-    d = display(args, amb)
+    g_, amb, d = computation(args)
     p_in = pressure_abs(args.inlet, amb, "inlet pressure")
     p_out = pressure_abs(args.outlet, amb, "outlet pressure")
     t = throttle(g_, p_in, p_out, parse_temperature(args.temperature))
@@ -110,9 +107,7 @@ def cmd_throttle(args: argparse.Namespace) -> int:
 
 
 def cmd_gap(args: argparse.Namespace) -> int:
-    g_ = gas(args)
-    amb = ambient(args)
-    d = display(args, amb)
+    g_, amb, d = computation(args)
     p = pressure_abs(args.pressure, amb, "gap pressure")
     b = breakdown(g_, parse_length(args.spacing, "gap spacing"), p, parse_temperature(args.temperature))
     if args.json:
@@ -138,9 +133,7 @@ def cmd_gap(args: argparse.Namespace) -> int:
 
 
 def cmd_orifice(args: argparse.Namespace) -> int:
-    g_ = gas(args)
-    amb = ambient(args)
-    d = display(args, amb)
+    g_, amb, d = computation(args)
     up = pressure_abs(args.upstream, amb, "upstream pressure")
     down = pressure_abs(args.downstream, amb, "downstream pressure")
     o = orifice_flow(g_, parse_length(args.diameter, "orifice diameter"), up, down,

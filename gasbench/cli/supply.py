@@ -15,11 +15,9 @@ from gasbench.cli.common import (
     add_flow_reference,
     add_gas,
     add_json,
-    ambient,
-    display,
+    computation,
     emit_json,
     emit_table,
-    gas,
     input_error,
 )
 from gasbench.units import (
@@ -74,9 +72,7 @@ def configure(sub: Any, name: str) -> None:
 
 
 def cmd_contents(args: argparse.Namespace) -> int:
-    g_ = gas(args)
-    amb = ambient(args)
-    d = display(args, amb)
+    g_, amb, d = computation(args)
     ref = get_reference(args.reference)
     T = parse_temperature(args.temperature) if args.temperature else 288.15
     if (args.gross is None) != (args.tare is None):
@@ -125,9 +121,7 @@ def cmd_contents(args: argparse.Namespace) -> int:
 
 
 def cmd_heat(args: argparse.Namespace) -> int:
-    g_ = gas(args)
-    amb = ambient(args)
-    d = display(args, amb)
+    g_, amb, d = computation(args)
     p = pressure_abs(args.pressure, amb)
     T1 = parse_temperature(args.temperature)
     T2 = parse_temperature(args.to, "target temperature")
@@ -159,9 +153,7 @@ def cmd_heat(args: argparse.Namespace) -> int:
 
 
 def cmd_runtime(args: argparse.Namespace) -> int:
-    g_ = gas(args)
-    amb = ambient(args)
-    d = display(args, amb)
+    g_, amb, d = computation(args)
     V = parse_volume(args.volume, "cylinder volume")
     p = pressure_abs(args.pressure, amb)
     res = pressure_abs(args.reserve, amb, "reserve")

@@ -1,17 +1,5 @@
 """Build the session plan of a bench profile (records in :mod:`gasbench.workflows.model`,
-findings from :mod:`gasbench.workflows.findings`).
-
-Method summary
---------------
-* Contents and usable mass: real gas (CoolProp HEOS) at the reading and at the reserve,
-  constant temperature (the reading's); liquefied gases by weight, where the pressure stays at
-  the vapour pressure until the liquid is gone.
-* Draws are evaluated at the regulator set point (orifice and valve flows, per-shot refresh) and
-  held constant over the session, so the mass balance is exact: mass at start − draw × time =
-  mass at the reserve at the time to reserve.
-* Projection: supply mass falls linearly; pressure from a Z(ρ) table (see
-  :class:`gasbench.gas.DensityTable`); regulator outlet by the supply-pressure effect; gap
-  firing voltage at that outlet (:mod:`gasbench.gap`).
+whose docstring gives the method summary; findings from :mod:`gasbench.workflows.findings`).
 """
 
 from __future__ import annotations
