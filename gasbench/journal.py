@@ -19,7 +19,7 @@ from typing import Any
 
 from gasbench.errors import JournalError
 
-SCHEMA_VERSION = 2
+SCHEMA_VERSION = 3
 
 _MIGRATIONS: dict[int, str] = {
     1: """
@@ -63,6 +63,49 @@ _MIGRATIONS: dict[int, str] = {
         details TEXT
     );
     """,
+    3: """
+    CREATE TABLE readings_v3 (
+        id INTEGER PRIMARY KEY,
+        session_id INTEGER REFERENCES sessions(id),
+        bench TEXT,
+        supply_id TEXT NOT NULL,
+        at TEXT NOT NULL,
+        pressure_abs_pa REAL,
+        pressure_text TEXT NOT NULL,
+        temperature_k REAL NOT NULL,
+        entered_at TEXT NOT NULL,
+        weight_kg REAL,
+        ambient_pa REAL,
+        struck_at TEXT,
+        struck_reason TEXT
+    );
+    INSERT INTO readings_v3(id, session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,
+                            entered_at)
+        SELECT r.id, r.session_id, s.bench, r.supply_id, r.at, r.pressure_abs_pa, r.pressure_text, r.temperature_k,
+               r.entered_at FROM readings r LEFT JOIN sessions s ON s.id = r.session_id;
+    DROP INDEX readings_session;
+    DROP TABLE readings;
+    ALTER TABLE readings_v3 RENAME TO readings;
+    CREATE INDEX readings_session ON readings(session_id, at);
+    CREATE INDEX readings_supply ON readings(bench, supply_id, at);
+    CREATE TABLE changes (
+        id INTEGER PRIMARY KEY,
+        bench TEXT NOT NULL,
+        supply_id TEXT NOT NULL,
+        at TEXT NOT NULL,
+        pressure_abs_pa REAL,
+        pressure_text TEXT,
+        weight_kg REAL,
+        temperature_k REAL,
+        label TEXT,
+        retest_due TEXT,
+        entered_at TEXT NOT NULL
+    );
+    CREATE INDEX changes_supply ON changes(bench, supply_id, at);
+    ALTER TABLE sessions ADD COLUMN operator TEXT;
+    ALTER TABLE sessions ADD COLUMN shots INTEGER;
+    ALTER TABLE hold_tests ADD COLUMN kind TEXT;
+    """,
 }
 
 
@@ -91,12 +134,37 @@ class SessionRow:
 @dataclass(frozen=True)
 class ReadingRow:
     id: int
-    session_id: int
+    session_id: int | None
     supply_id: str
     at: str
-    pressure_abs_pa: float
+    pressure_abs_pa: float | None
     pressure_text: str
     temperature_k: float
+    bench: str | None = None
+    weight_kg: float | None = None
+    ambient_pa: float | None = None
+    struck_at: str | None = None
+    struck_reason: str | None = None
+
+    @property
+    def struck(self) -> bool:
+        return self.struck_at is not None
+
+
+@dataclass(frozen=True)
+class ChangeRow:
+    """A cylinder change: a new fill on a supply."""
+
+    id: int
+    bench: str
+    supply_id: str
+    at: str
+    pressure_abs_pa: float | None
+    pressure_text: str | None
+    weight_kg: float | None
+    temperature_k: float | None
+    label: str | None
+    retest_due: str | None
 
 
 @dataclass(frozen=True)
@@ -109,6 +177,8 @@ class HoldRow:
     verdict: str
     leak_rate_sccm: float
     leak_rate_uncertainty_sccm: float
+    kind: str | None = None
+    details: str | None = None
 
 
 class Journal:
@@ -172,23 +242,56 @@ class Journal:
     def stop_session(self, session_id: int, at: str) -> None:
         self._write(lambda db: db.execute("UPDATE sessions SET stopped_at = ? WHERE id = ?", (at, session_id)))
 
-    def add_reading(self, session_id: int, supply_id: str, at: str, pressure_abs_pa: float, pressure_text: str,
-                    temperature_k: float, entered_at: str) -> int:
+    def add_reading(self, session_id: int | None, supply_id: str, at: str, pressure_abs_pa: float | None,
+                    pressure_text: str, temperature_k: float, entered_at: str, bench: str | None = None,
+                    weight_kg: float | None = None, ambient_pa: float | None = None) -> int:
+        """Record a reading: in a session, or an idle reading (``session_id`` None) filed under
+        ``bench``; a pressure (absolute, with the ambient it was typed against) or a weight."""
+        if bench is None and session_id is not None:
+            row = self.db.execute("SELECT bench FROM sessions WHERE id = ?", (session_id,)).fetchone()
+            bench = row[0] if row else None
         return int(self._write(lambda db: db.execute(
-            "INSERT INTO readings(session_id, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, entered_at)"
-            " VALUES (?, ?, ?, ?, ?, ?, ?)",
-            (session_id, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, entered_at)).lastrowid))
+            "INSERT INTO readings(session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,"
+            " entered_at, weight_kg, ambient_pa) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, entered_at, weight_kg,
+             ambient_pa)).lastrowid))
+
+    def strike_reading(self, reading_id: int, at: str, reason: str) -> None:
+        """Strike a reading out (kept, marked, with the reason): nothing is ever deleted."""
+        if not reason.strip():
+            raise JournalError("give a reason to strike a reading out")
+        n = self._write(lambda db: db.execute(
+            "UPDATE readings SET struck_at = ?, struck_reason = ? WHERE id = ? AND struck_at IS NULL",
+            (at, reason, reading_id)).rowcount)
+        if not n:
+            raise JournalError(f"no reading {reading_id} to strike out (unknown or already struck)")
+
+    def add_change(self, bench: str, supply_id: str, at: str, entered_at: str, pressure_abs_pa: float | None = None,
+                   pressure_text: str | None = None, weight_kg: float | None = None,
+                   temperature_k: float | None = None, label: str | None = None, retest_due: str | None = None) -> int:
+        """Record a cylinder change (a new fill) on a supply."""
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO changes(bench, supply_id, at, pressure_abs_pa, pressure_text, weight_kg, temperature_k,"
+            " label, retest_due, entered_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (bench, supply_id, at, pressure_abs_pa, pressure_text, weight_kg, temperature_k, label, retest_due,
+             entered_at)).lastrowid))
+
+    def set_session_record(self, session_id: int, operator: str | None = None, shots: int | None = None) -> None:
+        self._write(lambda db: db.execute(
+            "UPDATE sessions SET operator = COALESCE(?, operator), shots = COALESCE(?, shots) WHERE id = ?",
+            (operator, shots, session_id)))
 
     def add_note(self, session_id: int, at: str, text: str) -> int:
         return int(self._write(lambda db: db.execute(
             "INSERT INTO notes(session_id, at, text) VALUES (?, ?, ?)", (session_id, at, text)).lastrowid))
 
     def add_hold_test(self, at: str, bench: str | None, supply_id: str | None, gas: str, volume_m3: float,
-                      duration_s: float, verdict: str, rate_sccm: float, u_sccm: float, details: str = "") -> int:
+                      duration_s: float, verdict: str, rate_sccm: float, u_sccm: float, details: str = "",
+                      kind: str | None = None) -> int:
         return int(self._write(lambda db: db.execute(
             "INSERT INTO hold_tests(at, bench, supply_id, gas, volume_m3, duration_s, verdict, leak_rate_sccm,"
-            " leak_rate_uncertainty_sccm, details) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
-            (at, bench, supply_id, gas, volume_m3, duration_s, verdict, rate_sccm, u_sccm, details)).lastrowid))
+            " leak_rate_uncertainty_sccm, details, kind) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (at, bench, supply_id, gas, volume_m3, duration_s, verdict, rate_sccm, u_sccm, details, kind)).lastrowid))
 
     # -- reads
 
@@ -212,9 +315,38 @@ class Journal:
         rows = [s for s in self.sessions() if s.stopped_at is None and (bench is None or s.bench == bench)]
         return rows[-1] if rows else None
 
+    _READING_COLUMNS = ("id, session_id, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, bench,"
+                        " weight_kg, ambient_pa, struck_at, struck_reason")
+
+    def supply_readings(self, bench: str, supply_id: str) -> list[ReadingRow]:
+        """Every reading of a supply of a bench, in and out of sessions, struck ones included."""
+        return [ReadingRow(*r) for r in self._read(
+            f"SELECT {self._READING_COLUMNS} FROM readings WHERE bench = ? AND supply_id = ? ORDER BY at, id",
+            (bench, supply_id))]
+
+    def changes(self, bench: str, supply_id: str | None = None) -> list[ChangeRow]:
+        sql = ("SELECT id, bench, supply_id, at, pressure_abs_pa, pressure_text, weight_kg, temperature_k, label,"
+               " retest_due FROM changes WHERE bench = ?")
+        args: tuple[Any, ...] = (bench,)
+        if supply_id is not None:
+            sql += " AND supply_id = ?"
+            args += (supply_id,)
+        return [ChangeRow(*r) for r in self._read(sql + " ORDER BY at, id", args)]
+
+    def bench_sessions(self, bench: str) -> list[SessionRow]:
+        return [s for s in self.sessions() if s.bench == bench]
+
+    def hold_tests(self, bench: str | None = None) -> list[HoldRow]:
+        sql = ("SELECT id, at, bench, supply_id, gas, verdict, leak_rate_sccm, leak_rate_uncertainty_sccm, kind,"
+               " details FROM hold_tests")
+        args: tuple[Any, ...] = ()
+        if bench is not None:
+            sql += " WHERE bench = ?"
+            args = (bench,)
+        return [HoldRow(*r) for r in self._read(sql + " ORDER BY at, id", args)]
+
     def readings(self, session_id: int, supply_id: str | None = None) -> list[ReadingRow]:
-        sql = ("SELECT id, session_id, supply_id, at, pressure_abs_pa, pressure_text, temperature_k FROM readings"
-               " WHERE session_id = ?")
+        sql = f"SELECT {self._READING_COLUMNS} FROM readings WHERE session_id = ?"
         args: tuple[Any, ...] = (session_id,)
         if supply_id is not None:
             sql += " AND supply_id = ?"
@@ -225,8 +357,8 @@ class Journal:
         return [(a, t) for a, t in self._read("SELECT at, text FROM notes WHERE session_id = ? ORDER BY id", (session_id,))]
 
     def last_hold_test(self, bench: str | None = None) -> HoldRow | None:
-        sql = ("SELECT id, at, bench, supply_id, gas, verdict, leak_rate_sccm, leak_rate_uncertainty_sccm"
-               " FROM hold_tests")
+        sql = ("SELECT id, at, bench, supply_id, gas, verdict, leak_rate_sccm, leak_rate_uncertainty_sccm, kind,"
+               " details FROM hold_tests")
         args: tuple[Any, ...] = ()
         if bench is not None:
             sql += " WHERE bench = ?"
@@ -245,10 +377,14 @@ class Journal:
         buf = io.StringIO()
         w = csv.writer(buf, lineterminator="\n")
         w.writerow(["session", "bench", "supply", "time", "pressure_abs_pa", "pressure_gauge_pa", "typed",
-                    "temperature_k"])
+                    "temperature_k", "weight_kg", "ambient_pa", "struck_at", "struck_reason"])
         for r in self.readings(session_id):
-            w.writerow([s.id, s.bench, r.supply_id, r.at, f"{r.pressure_abs_pa:.1f}",
-                        f"{r.pressure_abs_pa - ambient_pa:.1f}", r.pressure_text, f"{r.temperature_k:.2f}"])
+            amb = r.ambient_pa if r.ambient_pa is not None else ambient_pa
+            w.writerow([s.id, s.bench, r.supply_id, r.at,
+                        "" if r.pressure_abs_pa is None else f"{r.pressure_abs_pa:.1f}",
+                        "" if r.pressure_abs_pa is None else f"{r.pressure_abs_pa - amb:.1f}", r.pressure_text,
+                        f"{r.temperature_k:.2f}", "" if r.weight_kg is None else f"{r.weight_kg:.3f}",
+                        f"{amb:.1f}", r.struck_at or "", r.struck_reason or ""])
         return buf.getvalue()
 
 

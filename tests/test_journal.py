@@ -28,10 +28,18 @@ def test_migrates_a_version_1_journal(tmp_path):
 
     db.executescript(_MIGRATIONS[1] + "PRAGMA user_version = 1;")
     db.execute("INSERT INTO sessions(bench, started_at) VALUES ('b', '2026-01-01T10:00')")
+    db.execute("INSERT INTO readings(session_id, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,"
+               " entered_at) VALUES (1, 's1', '2026-01-01T10:05', 15e6, '149 bar', 293.15, '2026-01-01T10:05')")
     db.commit()
     db.close()
     with Journal(p) as j:
         assert j.sessions()[0].bench == "b"
+        # version 3: readings carry their bench (from the session) and may be idle or struck
+        (r,) = j.supply_readings("b", "s1")
+        assert r.pressure_abs_pa == 15e6 and r.session_id == 1 and not r.struck
+        j.add_reading(None, "s1", "2026-01-03T10:00", 14.9e6, "148 bar", 293.15, "2026-01-03T10:00", bench="b")
+        j.strike_reading(r.id, "2026-01-03T10:01", "typo")
+        assert [x.struck for x in j.supply_readings("b", "s1")] == [True, False]
         j.add_hold_test("2026-01-02T10:00", "b", None, "nitrogen", 0.05, 3600, "leak", 1.0, 0.1)
         assert j.last_hold_test("b").verdict == "leak"
 

@@ -143,6 +143,8 @@ class SessionState:
         self.started_at = dt.datetime.fromisoformat(row.started_at)
         self.readings = {}
         for r in self.journal.readings(row.id):
+            if r.struck or r.pressure_abs_pa is None:
+                continue
             self.readings.setdefault(r.supply_id, []).append(
                 Reading(r.supply_id, dt.datetime.fromisoformat(r.at), r.pressure_abs_pa, r.pressure_text, r.temperature_k))
 
@@ -199,7 +201,9 @@ class SessionState:
             try:
                 self.journal.add_reading(self.session_id, reading.supply_id, reading.at.isoformat(timespec="seconds"),
                                          reading.pressure_abs_pa, reading.pressure_text, reading.temperature_k,
-                                         self.clock().isoformat(timespec="seconds"))
+                                         self.clock().isoformat(timespec="seconds"),
+                                         bench=self.profile.bench.name if self.profile else None,
+                                         ambient_pa=self.profile.ambient_pa if self.profile else None)
             except JournalError:
                 reading.saved = False
                 self.unsaved.append(reading)
