@@ -320,14 +320,15 @@ class Profile(_Model):
             test = s.test_pressure.abs_at(amb) if s.test_pressure else None
             if test is not None and test < service:
                 raise InputError(f"supply {s.id}: test pressure is below the service pressure")
+            if s.reserve.abs_at(amb) >= service:
+                raise InputError(f"supply {s.id}: reserve {s.reserve.text} is at or above the service pressure "
+                                 f"{s.service_pressure.text}")
             if s.reading is not None:
                 p = s.reading.abs_at(amb)
                 if test is not None and p > test:
                     raise InputError(
                         f"supply {s.id}: reading {s.reading.text} is above the cylinder's test pressure "
                         f"{s.test_pressure.text if s.test_pressure else ''}; check the gauge and the unit")
-                if s.reserve.abs_at(amb) >= p:
-                    raise InputError(f"supply {s.id}: reserve {s.reserve.text} is at or above the reading {s.reading.text}")
                 if s.gauge is not None and p > s.gauge.range.abs_at(amb):
                     raise InputError(f"supply {s.id}: reading {s.reading.text} is above the gauge range {s.gauge.range.text}")
         for r in self.regulators:
@@ -461,4 +462,12 @@ def with_reading(prof: Profile, supply_id: str, pressure: u.Pressure, temperatur
         raise InputError(f"unknown supply {supply_id!r}; known: {', '.join(s.id for s in prof.supplies)}")
     supplies = [s.model_copy(update={"reading": pressure, "reading_temperature": temperature_k})
                 if s.id == supply_id else s for s in prof.supplies]
+    return prof.model_copy(update={"supplies": supplies})
+
+
+def with_weight(prof: Profile, supply_id: str, gross_kg: float) -> Profile:
+    """A copy of the profile with a new gross weight for one supply (a liquefied gas's reading)."""
+    if supply_id not in {s.id for s in prof.supplies}:
+        raise InputError(f"unknown supply {supply_id!r}; known: {', '.join(s.id for s in prof.supplies)}")
+    supplies = [s.model_copy(update={"gross": gross_kg}) if s.id == supply_id else s for s in prof.supplies]
     return prof.model_copy(update={"supplies": supplies})

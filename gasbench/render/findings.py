@@ -46,6 +46,13 @@ TEMPLATES: dict[str, Template] = {
     "reserve-within-gauge-error": lambda f, v, d: (
         f"{f.subject} lasts {d.hours(v['hours'])}, but within the gauge's error it could be only "
         f"{d.hours(v['hours_low'])}, less than the session", f"{v['hours_low']:.2f}–{v['hours_high']:.2f} h"),
+    "at-or-below-reserve": lambda f, v, d: (
+        f"{f.subject} is at or below its reserve: close it and change the cylinder before going on",
+        f"{d.gauge(v['pressure_abs_pa'])} ≤ reserve {d.gauge(v['reserve_abs_pa'])}"),
+    "regulator-not-regulating": lambda f, v, d: (
+        f"{v['supply']} is at or below the set point of {f.subject}: the regulator no longer regulates, its "
+        "outlet and the gaps' firing voltage fall with the cylinder — stop and change the cylinder",
+        f"{d.gauge(v['pressure_abs_pa'])} ≤ set point {d.gauge(v['set_point_abs_pa'])}"),
     "estimated-mixing": lambda f, v, d: (
         f"{v['gas']}: no published mixing parameters for {v['pairs']}; properties use the Lorentz-Berthelot "
         "estimate", "estimate"),
@@ -112,6 +119,9 @@ TEMPLATES: dict[str, Template] = {
     "no-hold-test": lambda f, v, d: ("no hold test recorded for this bench: run one", "none"),
     "hold-test-leak": lambda f, v, d: (
         "the last hold test found a leak: find and fix it first", _hold_figure(v)),
+    "idle-drop-leak": lambda f, v, d: (
+        f"{v['supply']} lost pressure between sessions beyond what temperature and the gauge explain: a leak — "
+        "find and fix it first", _hold_figure(v)),
     "hold-test-inconclusive": lambda f, v, d: (
         "the last hold test could not tell: hold longer or use a finer gauge", _hold_figure(v)),
     "hold-test-old": lambda f, v, d: (

@@ -12,16 +12,17 @@ from dataclasses import dataclass
 
 from gasbench import gas as g
 from gasbench import room as rm
-from gasbench.errors import GasbenchError
+from gasbench.errors import GasbenchError, JournalError
 from gasbench.journal import Journal
 from gasbench.profile import Profile, Supply
 from gasbench.units import Flow
 from gasbench.workflows.build import build_plan
+from gasbench.workflows.cylinder import journal_profile, record_idle_drops
 from gasbench.workflows.findings import Finding, live_findings, ranked
 from gasbench.workflows.holds import LastHold, hold_finding, last_hold_test
 from gasbench.workflows.model import Observed, Plan
 
-__all__ = ["Assessment", "assess", "findings_of", "largest_supply", "leak_volume_flow"]
+__all__ = ["Assessment", "assess", "findings_of", "journal_state", "largest_supply", "leak_volume_flow"]
 
 
 def largest_supply(prof: Profile) -> Supply:
@@ -67,8 +68,23 @@ def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | Non
            extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None,
            observed: Mapping[str, Observed] | None = None, session_end: dt.datetime | None = None,
            running: bool = False) -> Assessment:
-    """Plan the bench and judge it with the journal's latest hold test."""
+    """Plan the bench as the journal records it (each supply's latest reading or fill, see
+    :func:`gasbench.workflows.cylinder.journal_profile`), turn new idle drops into hold tests,
+    and judge it with the latest hold test."""
     now = now or dt.datetime.now().astimezone().replace(second=0, microsecond=0)
+    prof = journal_state(prof, journal, now)
     plan = build_plan(prof, now=now, extra_leak_m3_s=extra_leak_m3_s, start_at=start_at)
     last = last_hold_test(journal, prof.bench.name, now)
     return Assessment(plan, last, findings_of(plan, last, observed, session_end, running))
+
+
+def journal_state(prof: Profile, journal: Journal | None, now: dt.datetime) -> Profile:
+    """The profile as the journal records it, after storing any new idle-drop hold tests (a
+    journal that cannot be written still gives its state)."""
+    jprof = journal_profile(prof, journal)
+    if journal is not None:
+        try:
+            record_idle_drops(journal, jprof, now)
+        except JournalError:
+            pass
+    return jprof

@@ -85,9 +85,13 @@ def _draw_flow(prof: Profile, d: Draw, gas: g.Gas, outlet_abs: float) -> tuple[f
         m = fl.per_shot_mass_flow(gas, d.per_shot, outlet_abs, T, rate)
         return m, f"{d.per_shot * 1e6:g} cm³ per shot at the outlet pressure × {rate:g} Hz", None
     if d.orifice is not None:
+        if outlet_abs <= d.orifice.downstream.abs_at(amb):
+            return 0.0, f"orifice {d.orifice.diameter * 1000:g} mm: no flow (outlet at or below downstream)", None
         o = fl.orifice_flow(gas, d.orifice.diameter, outlet_abs, d.orifice.downstream.abs_at(amb), T, d.orifice.cd)
         return o.mass_flow_kg_s, f"orifice {d.orifice.diameter * 1000:g} mm, Cd {d.orifice.cd:g} ({'choked' if o.choked else 'subcritical'})", o.choked
     assert d.valve is not None
+    if outlet_abs <= d.valve.downstream.abs_at(amb):
+        return 0.0, f"valve Kv {d.valve.kv_value:g}: no flow (outlet at or below downstream)", None
     v = fl.valve_flow(gas, d.valve.kv_value, outlet_abs, d.valve.downstream.abs_at(amb), T, d.valve.xt)
     return v.mass_flow_kg_s, f"valve Kv {d.valve.kv_value:g} (IEC 60534{', choked' if v.choked else ''})", v.choked
 
@@ -143,12 +147,19 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         p_now, T, _ = supply_state[s.id]
         set_abs = r.set_point.abs_at(amb)
         res_abs = s.reserve.abs_at(amb)
-        out_res = rg.outlet_drift(set_abs, p_now, res_abs, r.effects)
-        th = rg.throttle(s.gas, p_now, set_abs, T, saturated_vapour=supply_models[s.id].liquefied)
         hot = _hot_day_pressure(s, prof, p_now, T)
-        reg_plans[r.id] = RegulatorPlan(r.id, s.id, r.stages, p_now, set_abs, out_res, th.outlet_temperature_k,
-                                        th.solid_forms, th.liquid_forms, th.notes, r.inlet_rating.abs_at(amb),
-                                        hot, math.prod(r.effects))
+        # a regulator reduces pressure only while its inlet is above its set point; below that it
+        # stands wide open and its outlet follows the cylinder down (and the gaps' voltage with it)
+        regulating = p_now > set_abs * (1.0 + 1e-9)
+        outlet = set_abs if regulating else p_now
+        out_res = min(rg.outlet_drift(set_abs, p_now, res_abs, r.effects), res_abs)
+        if regulating:
+            th = rg.throttle(s.gas, p_now, set_abs, T, saturated_vapour=supply_models[s.id].liquefied)
+            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.notes
+        else:
+            t_out, solid, liquid, notes = T, False, False, ()
+        reg_plans[r.id] = RegulatorPlan(r.id, s.id, r.stages, p_now, set_abs, out_res, t_out, solid, liquid, notes,
+                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet)
 
     # -- draws
     draw_plans: list[DrawPlan] = []
@@ -156,11 +167,11 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         r = prof.regulator(d.regulator)
         s = prof.supply(r.supply)
         rp = reg_plans[r.id]
-        mdot, how, choked = _draw_flow(prof, d, s.gas, rp.set_point_abs_pa)
+        mdot, how, choked = _draw_flow(prof, d, s.gas, rp.outlet_abs_pa)
         rho_std = g.density(s.gas, T0_K, ATM_PA)
         gap_plan = None
         if d.kind == "gap" and d.spacing is not None:
-            b0 = gp.breakdown(s.gas, d.spacing, rp.set_point_abs_pa, T_amb)
+            b0 = gp.breakdown(s.gas, d.spacing, rp.outlet_abs_pa, T_amb)
             b1 = gp.breakdown(s.gas, d.spacing, rp.outlet_at_reserve_abs_pa, T_amb)
             m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
                        for x in d.exposed)
@@ -189,7 +200,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             mpe = s.gauge.accuracy_class / 100.0 * s.gauge.range.typed_pa
             lo_p, hi_p = max(p_now - mpe, res_abs * 1.0001), p_now + mpe
             h_lo = max(0.0, (model.mass_at(lo_p) - mass_res) / mdot / 3600.0)
-            h_hi = (model.mass_at(hi_p) - mass_res) / mdot / 3600.0
+            h_hi = max(0.0, (model.mass_at(hi_p) - mass_res) / mdot / 3600.0)
             band = (h_lo, h_hi)
         reserve_at = (start + dt.timedelta(hours=hours)).isoformat(timespec="minutes") if math.isfinite(hours) else None
         rates = [dp.rate_hz for dp in draws_here if dp.rate_hz]

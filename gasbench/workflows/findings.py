@@ -93,7 +93,10 @@ def _supply_findings(prof: Profile, plan: Plan) -> list[Finding]:
             if s.gross is None or s.tare is None:
                 out.append(Finding("liquefied-no-weight", "warning", sp.id,
                                    {"gas": sp.gas_name, "temperature_k": sp.temperature_k}))
-        if sp.draw_kg_s > 0 and not sp.fits_session:
+        if not sp.liquefied and sp.pressure_abs_pa <= sp.reserve_abs_pa:
+            out.append(Finding("at-or-below-reserve", "stop", sp.id, {
+                "pressure_abs_pa": sp.pressure_abs_pa, "reserve_abs_pa": sp.reserve_abs_pa}))
+        elif sp.draw_kg_s > 0 and not sp.fits_session:
             sev: Severity = "stop" if sp.hours_to_reserve < RESERVE_STOP_FRACTION * plan.session_hours else "warning"
             out.append(Finding("reserve-before-end", sev, sp.id,
                                {"hours": sp.hours_to_reserve, "session_hours": plan.session_hours}))
@@ -117,6 +120,9 @@ def _regulator_findings(prof: Profile, plan: Plan) -> list[Finding]:
         r = prof.regulator(rp.id)
         s = prof.supply(rp.supply_id)
         base: dict[str, Value] = {"supply": s.id}
+        if not rp.regulating:
+            out.append(Finding("regulator-not-regulating", "stop", r.id, base | {
+                "pressure_abs_pa": rp.inlet_abs_pa, "set_point_abs_pa": rp.set_point_abs_pa}))
         if rp.inlet_abs_pa > rp.inlet_rating_abs_pa:
             out.append(Finding("inlet-rating", "stop", r.id, base | {
                 "pressure_abs_pa": rp.inlet_abs_pa, "rating_abs_pa": rp.inlet_rating_abs_pa}))
@@ -221,14 +227,17 @@ def live_findings(plan: Plan, observed: Mapping[str, Observed], session_end: dt.
 
 
 def hold_test_findings(verdict: str | None, rate_sccm: float = math.nan, u_sccm: float = math.nan,
-                       age_days: float = math.nan) -> list[Finding]:
-    """The finding of the bench's last hold test (verdict None: none recorded)."""
+                       age_days: float = math.nan, kind: str | None = None,
+                       supply_id: str | None = None) -> list[Finding]:
+    """The finding of the bench's last hold test (verdict None: none recorded); an automatic
+    one from an idle drop between sessions that finds a leak is an ``idle-drop-leak``."""
     if verdict is None:
         return [Finding("no-hold-test", "attention", "leaks", {})]
     values: dict[str, Value] = {"verdict": verdict, "leak_rate_sccm": rate_sccm,
-                                "leak_rate_uncertainty_sccm": u_sccm, "age_days": age_days}
+                                "leak_rate_uncertainty_sccm": u_sccm, "age_days": age_days,
+                                "kind": kind, "supply": supply_id}
     if verdict == "leak":
-        return [Finding("hold-test-leak", "stop", "leaks", values)]
+        return [Finding("idle-drop-leak" if kind == "idle-drop" else "hold-test-leak", "stop", "leaks", values)]
     if verdict == "inconclusive":
         return [Finding("hold-test-inconclusive", "attention", "leaks", values)]
     if age_days > HOLD_TEST_MAX_AGE_DAYS:

@@ -67,7 +67,7 @@ class HoldRecord:
     end_temperature_k: float
     target_sccm: float
     method: str
-    kind: str  # "two-readings" | "log"
+    kind: str  # "two-readings" | "log" | "idle-drop"
 
 
 def record_of(result: HoldResult, at: dt.datetime, bench: str | None, supply_id: str | None,
@@ -83,13 +83,13 @@ _DETAIL_KEYS = ("start_abs_pa", "end_abs_pa", "start_temperature_k", "end_temper
                 "kind")
 
 
-def store(journal: Journal, record: HoldRecord) -> int:
+def store(journal: Journal, record: HoldRecord, extra: dict[str, str] | None = None) -> int:
     """Write the record to the journal (one committed transaction); returns its row id."""
     d = asdict(record)
-    details = json.dumps({k: d[k] for k in _DETAIL_KEYS}, sort_keys=True)
+    details = json.dumps({k: d[k] for k in _DETAIL_KEYS} | (extra or {}), sort_keys=True)
     return journal.add_hold_test(record.at, record.bench, record.supply_id, record.gas, record.volume_m3,
                                  record.duration_s, record.verdict, record.leak_rate_sccm,
-                                 record.leak_rate_uncertainty_sccm, details)
+                                 record.leak_rate_uncertainty_sccm, details, record.kind)
 
 
 @dataclass(frozen=True)
@@ -102,6 +102,7 @@ class LastHold:
     leak_rate_sccm: float
     leak_rate_uncertainty_sccm: float
     age_days: float
+    kind: str | None = None
 
 
 def last_hold_test(journal: Journal | None, bench: str, now: dt.datetime) -> LastHold | None:
@@ -119,11 +120,12 @@ def last_hold_test(journal: Journal | None, bench: str, now: dt.datetime) -> Las
     if at.tzinfo is None and now.tzinfo is not None:
         at = at.replace(tzinfo=now.tzinfo)
     age = (now - at).total_seconds() / 86400.0
-    return LastHold(at, row.supply_id, row.verdict, row.leak_rate_sccm, row.leak_rate_uncertainty_sccm, age)
+    return LastHold(at, row.supply_id, row.verdict, row.leak_rate_sccm, row.leak_rate_uncertainty_sccm, age, row.kind)
 
 
 def hold_finding(last: LastHold | None) -> list[Finding]:
     """The finding of the bench's latest hold test (the rule lives in :mod:`findings`)."""
     if last is None:
         return hold_test_findings(None)
-    return hold_test_findings(last.verdict, last.leak_rate_sccm, last.leak_rate_uncertainty_sccm, last.age_days)
+    return hold_test_findings(last.verdict, last.leak_rate_sccm, last.leak_rate_uncertainty_sccm, last.age_days,
+                              last.kind, last.supply_id)

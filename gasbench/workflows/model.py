@@ -71,6 +71,10 @@ class RegulatorPlan:
     inlet_rating_abs_pa: float
     supply_hot_day_abs_pa: float
     effect_total: float
+    #: False when the supply is at or below the set point: the regulator stands open
+    regulating: bool = True
+    #: the outlet pressure now: the set point, or the supply pressure when not regulating
+    outlet_abs_pa: float = 0.0
 
 
 @dataclass(frozen=True)

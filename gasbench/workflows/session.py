@@ -18,7 +18,7 @@ from gasbench.journal import Journal
 from gasbench.profile import Profile, load_profile, with_reading
 from gasbench.units import parse_pressure, parse_temperature
 from gasbench.workflows import build as pl
-from gasbench.workflows.bench import Assessment, findings_of
+from gasbench.workflows.bench import Assessment, findings_of, journal_state
 from gasbench.workflows.findings import Finding
 from gasbench.workflows.holds import LastHold, last_hold_test, profile_gauge_spec
 from gasbench.workflows.model import Observed, Plan
@@ -73,13 +73,12 @@ class SessionState:
             raise
 
     def effective_profile(self) -> Profile:
-        """The profile with each supply's latest session reading applied."""
+        """The profile as the journal records it (every supply's latest reading or fill, new idle
+        drops stored as hold tests), with readings not yet saved applied on top."""
         assert self.profile is not None
-        prof = self.profile
-        for sid, rs in self.readings.items():
-            if rs:
-                last = max(rs, key=lambda r: r.at)
-                prof = with_reading(prof, sid, parse_pressure(f"{last.pressure_abs_pa} Pa(a)"), last.temperature_k)
+        prof = journal_state(self.profile, self.journal, self.clock())
+        for r in sorted(self.unsaved, key=lambda r: r.at):
+            prof = with_reading(prof, r.supply_id, parse_pressure(f"{r.pressure_abs_pa} Pa(a)"), r.temperature_k)
         return prof
 
     def recompute(self) -> None:
