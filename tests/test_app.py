@@ -199,8 +199,10 @@ def _overview_snapshot(snap_compare, tmp_path, size):
     app = make_app(None, tmp_path / "j.sqlite3", clock=Clock())
 
     async def ready(pilot):
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        for _ in range(3):  # the plan worker, then the refresh it schedules, then layout
+            await app.workers.wait_for_complete()
+            await pilot.pause()
+        await pilot.pause(0.2)
 
     return snap_compare(app, terminal_size=size, run_before=ready)
 

@@ -29,6 +29,10 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "checklist": ("checklist", "pre-session checklist filled with this bench's figures"),
     "sessions": ("journal", "list the sessions in the journal"),
     "export": ("journal", "write one session's readings out"),
+    "reading": ("cylinder", "record a gauge reading or a weight of a supply (in or out of a session)"),
+    "swap": ("cylinder", "record a cylinder change: the new fill of a supply"),
+    "strike": ("cylinder", "strike a wrong reading out (kept and marked, with the reason)"),
+    "status": ("cylinder", "where each supply stands: last reading, time to reserve, latest hold test, findings"),
     "open": ("", "open the app on a bench profile"),
 }
 

@@ -205,14 +205,18 @@ def record_reading(journal: Journal, prof: Profile, entry: Entry, session_id: in
 
 def record_change(journal: Journal, prof: Profile, entry: Entry, now: dt.datetime, label: str | None = None,
                   retest_due: dt.date | None = None) -> int:
-    """Write a cylinder change: fits, draws and hold tests never straddle it."""
+    """Write a cylinder change (fits, draws and hold tests never straddle it) and the new fill
+    as the new cylinder's first reading."""
     s = prof.supply(entry.supply_id)
     if entry.weight_kg is not None and s.tare is None:
         raise InputError(f"supply {s.id} has no tare weight in the profile: a fill by weight needs it")
-    return journal.add_change(prof.bench.name, entry.supply_id, entry.at.isoformat(timespec="seconds"),
+    cid = journal.add_change(prof.bench.name, entry.supply_id, entry.at.isoformat(timespec="seconds"),
                               now.isoformat(timespec="seconds"), entry.pressure_abs_pa, entry.pressure_text or None,
                               entry.weight_kg, entry.temperature_k, label,
                               retest_due.isoformat() if retest_due else None)
+    running = journal.unfinished_session(prof.bench.name)
+    record_reading(journal, prof, entry, running.id if running else None, now)
+    return cid
 
 
 # ----------------------------------------------------------------------------- idle drops

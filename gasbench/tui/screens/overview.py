@@ -69,14 +69,16 @@ class OverviewScreen(Screen[None]):
 
     def on_mount(self) -> None:
         sup = self.query_one("#supplies", DataTable)
-        for label, key in (("Supply", "id"), ("Gas", "gas"), ("Reading", "reading"), ("To reserve", "left"),
-                           ("At", "at"), ("", "bar"), ("Contents", "contents"), ("Usable", "usable"),
-                           ("Regulator outlet", "outlet")):
-            sup.add_column(label, key=key)
+        # fixed widths: the layout does not jump as figures change, and is the same every run
+        for label, key, width in (("Supply", "id", 8), ("Gas", "gas", 9), ("Reading", "reading", 12),
+                                  ("To reserve", "left", 10), ("At", "at", 9), ("Left", "bar", 8),
+                                  ("Contents", "contents", 9), ("Usable", "usable", 9),
+                                  ("Regulator outlet", "outlet", 18)):
+            sup.add_column(label, key=key, width=width)
         dr = self.query_one("#draws", DataTable)
-        for label, key in (("Draw", "id"), ("Kind", "kind"), ("Flow", "flow"), ("Fires at", "kv"),
-                           ("Margin", "margin")):
-            dr.add_column(label, key=key)
+        for label, key, width in (("Draw", "id", 12), ("Kind", "kind", 7), ("Flow", "flow", 11),
+                                  ("Fires at", "kv", 8), ("Margin", "margin", 16)):
+            dr.add_column(label, key=key, width=width)
         self.load_plan()
         self.set_interval(1.0, self.tick)
 
