@@ -269,6 +269,8 @@ class Room(_Model):
 class Session(_Model):
     duration: DurationQ
     """Planned length of a session."""
+    alert_before: DurationQ = 1800.0
+    """Alert (bell and banner) when a supply is this close to its reserve (default 30 min)."""
     repetition_rate: FrequencyQ | None = None
     """Shots per second (for per-shot draws and shot counts)."""
     start: str | None = Field(default=None, pattern=r"^([01]?\d|2[0-3]):[0-5]\d$")

@@ -20,7 +20,7 @@ from gasbench.cli.common import (
 from gasbench.journal import Journal, default_path
 from gasbench.profile import Profile, load_profile
 from gasbench.render.display import Display
-from gasbench.render.findings import SEVERITY_MARK, describe, finding_dict
+from gasbench.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
 from gasbench.units import parse_mass, parse_pressure, parse_temperature
 from gasbench.workflows import cylinder as cy
 from gasbench.workflows.bench import assess
@@ -93,19 +93,6 @@ def _entry(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> cy.Entr
     return cy.Entry(args.supply, at, T, weight_kg=w)
 
 
-def _question_text(q: cy.Question, d: Display) -> str:
-    v = q.values
-    if q.code == "rise-without-change":
-        return (f"{d.gauge(float(v['pressure_abs_pa']))} is higher than the last reading "
-                f"{d.gauge(float(v['previous_abs_pa']))} with no cylinder change recorded (use 'swap' for a new fill)")
-    if q.code == "unit-swapped":
-        return (f"{d.gauge(float(v['pressure_abs_pa']))} is {float(v['ratio']):.1f}× the last reading "
-                f"{d.gauge(float(v['previous_abs_pa']))}: was it typed in psi for bar, or bar for psi?")
-    return (f"a drop from {d.gauge(float(v['previous_abs_pa']))} to {d.gauge(float(v['pressure_abs_pa']))} in "
-            f"{d.hours(float(v['hours']))} is {float(v['observed_kg_s']) / float(v['planned_kg_s']):.0f}× faster "
-            "than planned")
-
-
 def cmd_reading(args: argparse.Namespace) -> int:
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
@@ -116,7 +103,7 @@ def cmd_reading(args: argparse.Namespace) -> int:
         planned = next((s.draw_kg_s for s in a.plan.supplies if s.id == entry.supply_id), None)
         questions = cy.check_reading(prof, j, entry, planned)
         if questions and not args.confirm:
-            raise input_error("not recorded: " + "; ".join(_question_text(q, d) for q in questions)
+            raise input_error("not recorded: " + "; ".join(question_text(q, d) for q in questions)
                               + " — check it, and repeat with --confirm to record it")
         running = j.unfinished_session(prof.bench.name)
         rid = cy.record_reading(j, prof, entry, running.id if running else None, now)

@@ -149,3 +149,19 @@ def finding_dict(f: Finding, display: Display | None = None) -> dict[str, Any]:
     text, figure = describe(f, display)
     return {"code": f.code, "severity": f.severity, "subject": f.subject, "values": dict(f.values),
             "text": text, "figure": figure}
+
+
+def question_text(q: Any, d: Display) -> str:
+    """Words for a question an implausible reading raises (see
+    :func:`gasbench.workflows.cylinder.check_reading`)."""
+    v = q.values
+    if q.code == "rise-without-change":
+        return (f"{d.gauge(float(v['pressure_abs_pa']))} is higher than the last reading "
+                f"{d.gauge(float(v['previous_abs_pa']))} with no cylinder change recorded (record a new fill as a "
+                "cylinder change)")
+    if q.code == "unit-swapped":
+        return (f"{d.gauge(float(v['pressure_abs_pa']))} is {float(v['ratio']):.2g}× the last reading "
+                f"{d.gauge(float(v['previous_abs_pa']))}: was it typed in psi for bar, or bar for psi?")
+    return (f"a drop from {d.gauge(float(v['previous_abs_pa']))} to {d.gauge(float(v['pressure_abs_pa']))} in "
+            f"{d.hours(float(v['hours']))} is {float(v['observed_kg_s']) / float(v['planned_kg_s']):.0f}× faster "
+            "than planned")

@@ -40,6 +40,26 @@ class GasbenchApp(App[int]):
         if not isinstance(self.screen, CautionsScreen):
             self.push_screen(CautionsScreen(self.state))
 
+    async def action_quit(self) -> None:
+        """Quit, asking first while a session runs or readings are not saved yet."""
+        from gasbench.tui.screens.modals import ConfirmScreen
+
+        st = self.state
+        if st.unsaved:
+            st.retry_unsaved()
+        worries = []
+        if st.running:
+            worries.append(f"session #{st.session_id} is running (it stays open and is offered again next time)")
+        if st.unsaved:
+            worries.append(f"{len(st.unsaved)} reading(s) are NOT saved to the journal and will be lost")
+        if not worries:
+            self.exit(0)
+            return
+        if isinstance(self.screen, ConfirmScreen):
+            return
+        self.push_screen(ConfirmScreen("Quit? " + "; ".join(worries) + "."),
+                         lambda yes: self.exit(0) if yes else None)
+
     def action_help(self) -> None:
         from gasbench.tui.screens.modals import HelpScreen
 

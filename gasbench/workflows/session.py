@@ -9,16 +9,26 @@ from __future__ import annotations
 
 import datetime as dt
 import math
+import re
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from gasbench.errors import InputError, JournalError
-from gasbench.journal import Journal
+from gasbench.journal import Journal, ReadingRow
 from gasbench.profile import Profile, load_profile, with_reading
-from gasbench.units import parse_pressure, parse_temperature
+from gasbench.units import parse_mass, parse_pressure, parse_temperature
 from gasbench.workflows import build as pl
 from gasbench.workflows.bench import Assessment, findings_of, journal_state
+from gasbench.workflows.cylinder import (
+    Entry,
+    Question,
+    check_reading,
+    parse_at,
+    readings_since_change,
+    record_change,
+    record_reading,
+)
 from gasbench.workflows.findings import Finding
 from gasbench.workflows.holds import LastHold, last_hold_test, profile_gauge_spec
 from gasbench.workflows.model import Observed, Plan
@@ -30,12 +40,20 @@ def now_local() -> dt.datetime:
 
 @dataclass
 class Reading:
+    """A reading typed in the app: a pressure, or a weight (``weight_kg``) of a liquefied supply."""
+
     supply_id: str
     at: dt.datetime
-    pressure_abs_pa: float
+    pressure_abs_pa: float | None
     pressure_text: str
     temperature_k: float
     saved: bool = True
+    weight_kg: float | None = None
+    journal_id: int | None = None
+
+    def entry(self) -> Entry:
+        return Entry(self.supply_id, self.at, self.temperature_k, self.pressure_abs_pa, self.pressure_text,
+                     self.weight_kg)
 
 
 @dataclass
@@ -99,7 +117,8 @@ class SessionState:
             gauge = profile_gauge_spec(s.gauge)
             u_p = gauge.u_reading_pa if gauge is not None else 0.0
             ob = pl.observed_draw(s.gas, s.water_volume, sp.reserve_abs_pa, sp.draw_kg_s,
-                                  [(r.at, r.pressure_abs_pa, r.temperature_k) for r in rs], u_p, s.id)
+                                  [(r.at, r.pressure_abs_pa, r.temperature_k) for r in rs
+                                   if r.pressure_abs_pa is not None], u_p, s.id)
             if ob is not None:
                 self.observed[s.id] = ob
 
@@ -147,67 +166,113 @@ class SessionState:
             self.readings.setdefault(r.supply_id, []).append(
                 Reading(r.supply_id, dt.datetime.fromisoformat(r.at), r.pressure_abs_pa, r.pressure_text, r.temperature_k))
 
-    def parse_reading(self, supply_id: str, pressure: str, temperature: str, when: str) -> Reading:
-        """Check a typed reading (same parser as the command line). Raises InputError, changes nothing."""
+    def parse_reading(self, supply_id: str, value: str, temperature: str, when: str) -> Reading:
+        """Check a typed reading (same parsers as the command line): a gauge pressure, or a gross
+        weight (``74.1 kg``) for a supply with a tare weight. Raises InputError, changes nothing."""
         assert self.profile is not None
         ids = {s.id: s for s in self.profile.supplies}
         if supply_id not in ids:
             raise InputError(f"choose a supply ({', '.join(ids)})")
         amb = self.profile.ambient_pa
-        p = parse_pressure(pressure, amb)
-        s = ids[supply_id]
-        p_abs = p.abs_at(amb)
-        if s.test_pressure is not None and p_abs > s.test_pressure.abs_at(amb):
-            raise InputError(f"{pressure} is above the cylinder's test pressure {s.test_pressure.text}: check the gauge and unit")
-        if s.gauge is not None and p_abs > s.gauge.range.abs_at(amb) * 1.0001:
-            raise InputError(f"{pressure} is above the gauge range {s.gauge.range.text}")
         T = parse_temperature(temperature)
         if not 200.0 < T < 350.0:
             raise InputError(f"temperature {temperature} is outside −73 °C to 77 °C; check the unit")
         at = self.parse_time(when)
-        return Reading(supply_id, at, p_abs, p.text, T)
+        if re.search(r"(kg|lb)\s*$", value.strip(), re.IGNORECASE):
+            w = parse_mass(value, "weight")
+            reading = Reading(supply_id, at, None, value.strip(), T, weight_kg=w)
+        else:
+            p = parse_pressure(value, amb)
+            reading = Reading(supply_id, at, p.abs_at(amb), p.text, T)
+        check_reading(self.profile, None, reading.entry())  # the supply's limits
+        return reading
 
     def parse_time(self, text: str) -> dt.datetime:
-        now = self.clock()
-        t = text.strip().lower()
-        if t in ("", "now"):
-            return now
-        try:
-            if len(t) <= 8 and ":" in t:
-                parts = [int(x) for x in t.split(":")]
-                hh, mm, ss = (parts + [0, 0])[:3]
-                at = now.replace(hour=hh, minute=mm, second=ss)
-            else:
-                at = dt.datetime.fromisoformat(text.strip())
-                if at.tzinfo is None:
-                    at = at.replace(tzinfo=now.tzinfo)
-        except ValueError:
-            raise InputError(f"time {text!r}: use HH:MM, HH:MM:SS, an ISO date-time, or leave it for now") from None
-        if at > now + dt.timedelta(minutes=1):
-            raise InputError(f"time {text} is in the future")
-        if self.started_at is not None and at < self.started_at - dt.timedelta(hours=24):
+        at = parse_at(text, self.clock())
+        if self.started_at is not None and self.running and at < self.started_at - dt.timedelta(hours=24):
             raise InputError(f"time {text} is more than a day before the session started")
         return at
 
+    def questions(self, reading: Reading) -> list[Question]:
+        """What is implausible about a checked reading (a rise without a change, a drop far faster
+        than planned, a unit that looks swapped): ask before :meth:`add_reading`."""
+        assert self.profile is not None and self.plan is not None
+        planned = next((s.draw_kg_s for s in self.plan.supplies if s.id == reading.supply_id), None)
+        return check_reading(self.profile, self.journal, reading.entry(), planned)
+
     def add_reading(self, reading: Reading) -> Reading:
-        """Record a checked reading: journal first (committed), then memory. If the journal write
-        fails the reading is kept in memory, marked unsaved, and the JournalError is raised."""
-        if not self.running:
-            raise InputError("start a session before entering readings")
-        assert self.session_id is not None
-        self.readings.setdefault(reading.supply_id, []).append(reading)
+        """Record a checked reading, in the running session or as an idle reading: journal first
+        (committed), then memory. If the journal write fails the reading is kept in memory,
+        marked unsaved (retried by :meth:`retry_unsaved`), and the JournalError is raised."""
+        assert self.profile is not None
+        if self.running and reading.pressure_abs_pa is not None:
+            self.readings.setdefault(reading.supply_id, []).append(reading)
         if self.journal is not None:
             try:
-                self.journal.add_reading(self.session_id, reading.supply_id, reading.at.isoformat(timespec="seconds"),
-                                         reading.pressure_abs_pa, reading.pressure_text, reading.temperature_k,
-                                         self.clock().isoformat(timespec="seconds"),
-                                         bench=self.profile.bench.name if self.profile else None,
-                                         ambient_pa=self.profile.ambient_pa if self.profile else None)
+                self._write_reading(reading)
             except JournalError:
                 reading.saved = False
                 self.unsaved.append(reading)
                 raise
         return reading
+
+    def _write_reading(self, reading: Reading) -> None:
+        assert self.journal is not None and self.profile is not None
+        record_reading(self.journal, self.profile, reading.entry(), self.session_id if self.running else None,
+                       self.clock())
+
+    def retry_unsaved(self) -> int:
+        """Write the readings the journal refused before; returns how many are still unsaved."""
+        if self.journal is None:
+            return len(self.unsaved)
+        still: list[Reading] = []
+        for r in self.unsaved:
+            try:
+                self._write_reading(r)
+                r.saved = True
+            except JournalError:
+                still.append(r)
+        self.unsaved = still
+        return len(still)
+
+    def change_cylinder(self, reading: Reading, label: str | None, retest_due: dt.date | None) -> None:
+        """Record a cylinder change on the reading's supply (the new fill)."""
+        assert self.profile is not None
+        if self.journal is None:
+            raise JournalError("no journal: a cylinder change cannot be recorded")
+        record_change(self.journal, self.profile, reading.entry(), self.clock(), label, retest_due)
+        self.readings.pop(reading.supply_id, None)
+
+    def history(self, supply_id: str) -> list[ReadingRow]:
+        """The readings of the supply's current cylinder, struck ones included (newest last)."""
+        assert self.profile is not None
+        return readings_since_change(self.journal, self.profile.bench.name, supply_id, include_struck=True)
+
+    def strike(self, reading_id: int, reason: str) -> None:
+        """Strike a reading out (kept, marked, with the reason)."""
+        if self.journal is None:
+            raise JournalError("no journal")
+        self.journal.strike_reading(reading_id, self.clock().isoformat(timespec="seconds"), reason)
+        for rs in self.readings.values():
+            rs[:] = [r for r in rs if r.journal_id != reading_id]
+
+    def close_left_running(self, session_id: int) -> None:
+        """Close a session left running (answer "no" to resuming it): it ends at its last reading,
+        or where it started."""
+        if self.journal is None:
+            return
+        rows = self.journal.readings(session_id)
+        row = self.journal.session(session_id)
+        end = rows[-1].at if rows else (row.started_at if row else self.clock().isoformat(timespec="seconds"))
+        self.journal.stop_session(session_id, end)
+
+    def record_session(self, operator: str | None, shots: int | None, note: str | None) -> None:
+        """The session's record: operator, shots fired and a note (in the journal)."""
+        if self.journal is None or self.session_id is None:
+            return
+        self.journal.set_session_record(self.session_id, operator or None, shots)
+        if note:
+            self.journal.add_note(self.session_id, self.clock().isoformat(timespec="seconds"), note)
 
     def last_reading(self, supply_id: str) -> Reading | None:
         rs = self.readings.get(supply_id)

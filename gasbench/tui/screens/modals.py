@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import datetime as dt
+
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
@@ -32,7 +35,7 @@ class ReadingScreen(ModalScreen[Reading | None]):
             yield Label("Supply")
             yield Select([(s.id, s.id) for s in st.profile.supplies], value=first, allow_blank=False, id="supply",
                          compact=True)
-            yield Label("Gauge pressure (e.g. 142 bar, 2050 psi; bar(a) for absolute)")
+            yield Label("Gauge pressure (142 bar, 2050 psi; bar(a) absolute) or gross weight (74.1 kg)")
             yield Input(placeholder="142 bar", id="pressure", compact=True)
             yield Label("Cylinder temperature")
             yield Input(value=self._last_temperature(first), id="temperature", compact=True)
@@ -75,7 +78,7 @@ class ReadingScreen(ModalScreen[Reading | None]):
                 str(supply), self.query_one("#pressure", Input).value, self.query_one("#temperature", Input).value,
                 self.query_one("#time", Input).value)
         except InputError as exc:
-            self.query_one("#error", Static).update(f"✖ {exc}")
+            self.query_one("#error", Static).update(Text(f"✖ {exc}"))
             return
         self.dismiss(reading)
 
@@ -164,3 +167,103 @@ class ConfirmScreen(ModalScreen[bool]):
 
     def action_no(self) -> None:
         self.dismiss(False)
+
+
+class ChangeScreen(ModalScreen["tuple[Reading, str | None, dt.date | None] | None"]):
+    """A cylinder change: the supply, the new fill (pressure, or gross weight for a liquefied
+    gas), an optional label and retest date. Errors inline; typed values stay."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(self, state: SessionState) -> None:
+        super().__init__()
+        self.state = state
+
+    def compose(self) -> ComposeResult:
+        st = self.state
+        assert st.profile is not None
+        with Vertical(id="dialog", classes="dialog"):
+            yield Static("Cylinder change: the new fill", classes="heading")
+            yield Select([(s.id, s.id) for s in st.profile.supplies], value=st.profile.supplies[0].id,
+                         allow_blank=False, id="supply", compact=True)
+            yield Input(placeholder="new fill: 198 bar, or 75.2 kg gross", id="fill", compact=True)
+            yield Input(placeholder="label or serial (optional)", id="label", compact=True)
+            yield Input(placeholder="retest due YYYY-MM-DD (optional)", id="retest", compact=True)
+            yield Input(value=f"{st.profile.ambient.temperature - 273.15:.1f} degC", id="temperature", compact=True)
+            yield Static("", id="error", classes="error")
+            with Horizontal(classes="buttons"):
+                yield Button("Save", variant="primary", id="save")
+                yield Button("Cancel", id="cancel")
+
+    def on_mount(self) -> None:
+        self.query_one("#fill", Input).focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        self.save()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        if event.button.id == "save":
+            self.save()
+        else:
+            self.dismiss(None)
+
+    def save(self) -> None:
+        val = lambda i: self.query_one(f"#{i}", Input).value.strip()  # noqa: E731
+        try:
+            reading = self.state.parse_reading(str(self.query_one("#supply", Select).value), val("fill"),
+                                               val("temperature"), "now")
+            retest = None
+            if val("retest"):
+                try:
+                    retest = dt.date.fromisoformat(val("retest"))
+                except ValueError:
+                    raise InputError(f"retest date {val('retest')!r}: write it as YYYY-MM-DD") from None
+        except InputError as exc:
+            self.query_one("#error", Static).update(Text(f"✖ {exc}"))
+            return
+        self.dismiss((reading, val("label") or None, retest))
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class StopScreen(ModalScreen["tuple[str, int | None, str] | None"]):
+    """Stopping a session: who ran it, how many shots were fired, a note (all optional)."""
+
+    BINDINGS = [Binding("escape", "cancel", "Keep running")]
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="dialog", classes="dialog"):
+            yield Static("Stop the session? Its record:", classes="heading")
+            yield Input(placeholder="operator (optional)", id="operator", compact=True)
+            yield Input(placeholder="shots fired (optional), e.g. 12000", id="shots", compact=True)
+            yield Input(placeholder="note (optional)", id="note", compact=True)
+            yield Static("", id="error", classes="error")
+            with Horizontal(classes="buttons"):
+                yield Button("Stop session", variant="error", id="stop")
+                yield Button("Keep running", id="cancel")
+
+    def on_mount(self) -> None:
+        self.query_one("#operator", Input).focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        self.save()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        if event.button.id == "stop":
+            self.save()
+        else:
+            self.dismiss(None)
+
+    def save(self) -> None:
+        val = lambda i: self.query_one(f"#{i}", Input).value.strip()  # noqa: E731
+        shots = None
+        if val("shots"):
+            if not val("shots").isdigit() or int(val("shots")) > 10**10:
+                self.query_one("#error", Static).update(Text("✖ shots fired: a whole number, e.g. 12000"))
+                return
+            shots = int(val("shots"))
+        self.dismiss((val("operator")[:100], shots, val("note")[:1000]))
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

@@ -16,8 +16,10 @@ from textual.widgets import DataTable, Footer, Header, Static
 
 from gasbench.errors import GasbenchError, JournalError
 from gasbench.render.display import Display, profile_display
+from gasbench.render.findings import question_text
 from gasbench.tui.widgets import FindingsPanel, bar
 from gasbench.units import fmt_hours
+from gasbench.workflows.findings import Finding
 from gasbench.workflows.session import Reading, SessionState
 
 
@@ -29,6 +31,8 @@ class OverviewScreen(Screen[None]):
         Binding("t", "hold", "Hold"),
         Binding("o", "oxygen", "O2"),
         Binding("k", "checklist", "Checklist"),
+        Binding("n", "change", "New cylinder"),
+        Binding("h", "history", "History"),
         Binding("l", "reload", "Reload"),
         Binding("u", "units", "Units"),
     ]
@@ -40,6 +44,8 @@ class OverviewScreen(Screen[None]):
         self._shown: dict[str, object] = {}
         #: the pressure unit shown; starts from the profile's [display] setting, `u` cycles it
         self.pressure_unit: str | None = None
+        self._findings: list[Finding] = []
+        self._alerted: set[str] = set()
 
     @property
     def units(self) -> Display:
@@ -54,9 +60,11 @@ class OverviewScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield Header()
         yield Static("Loading the bench profile and computing the plan…", id="status")
+        yield Static("", id="banner")
         with VerticalScroll(id="body"):
             yield Static("Supplies", classes="heading")
             yield DataTable(id="supplies", cursor_type="none", zebra_stripes=True)
+            yield DataTable(id="supplies-more", cursor_type="none", zebra_stripes=True)
             yield Static("", id="observed")
             with Horizontal(id="lower"):
                 with Vertical(id="draws-box"):
@@ -70,14 +78,17 @@ class OverviewScreen(Screen[None]):
     def on_mount(self) -> None:
         sup = self.query_one("#supplies", DataTable)
         # fixed widths: the layout does not jump as figures change, and is the same every run
-        for label, key, width in (("Supply", "id", 8), ("Gas", "gas", 9), ("Reading", "reading", 12),
-                                  ("To reserve", "left", 10), ("At", "at", 9), ("Left", "bar", 8),
-                                  ("Contents", "contents", 9), ("Usable", "usable", 9),
-                                  ("Regulator outlet", "outlet", 18)):
+        # two tables so that every figure shows at 80 columns: the countdown, then the contents
+        for label, key, width in (("Supply", "id", 8), ("Reading", "reading", 13), ("To reserve", "left", 10),
+                                  ("At", "at", 9), ("Left", "bar", 8)):
             sup.add_column(label, key=key, width=width)
+        more = self.query_one("#supplies-more", DataTable)
+        for label, key, width in (("Supply", "id", 8), ("Gas", "gas", 9), ("Contents", "contents", 9),
+                                  ("Usable", "usable", 9), ("Regulator outlet", "outlet", 24)):
+            more.add_column(label, key=key, width=width)
         dr = self.query_one("#draws", DataTable)
         for label, key, width in (("Draw", "id", 12), ("Kind", "kind", 7), ("Flow", "flow", 11),
-                                  ("Fires at", "kv", 8), ("Margin", "margin", 16)):
+                                  ("Fires at", "kv", 8), ("Margin", "margin", 19)):
             dr.add_column(label, key=key, width=width)
         self.load_plan()
         self.set_interval(1.0, self.tick)
@@ -107,7 +118,14 @@ class OverviewScreen(Screen[None]):
                 self.app.push_screen(
                     ConfirmScreen(f"Session #{row.id} started {row.started_at[:16].replace('T', ' ')} was left "
                                   f"running with {row.readings} reading(s). Resume it?"),
-                    lambda yes: self._resume(row.id) if yes else None)
+                    lambda yes: self._resume(row.id) if yes else self._close_left_running(row.id))
+
+    def _close_left_running(self, session_id: int) -> None:
+        try:
+            self.state.close_left_running(session_id)
+            self.notify(f"Session #{session_id} closed at its last reading", title="Session")
+        except JournalError as exc:
+            self.notify(str(exc), title="Journal", severity="error", timeout=10, markup=False)
 
     def _resume(self, session_id: int) -> None:
         self.state.resume(session_id)
@@ -127,7 +145,9 @@ class OverviewScreen(Screen[None]):
         self.app.sub_title = st.plan.bench_name
         disp = self.units
         sup = self.query_one("#supplies", DataTable)
+        more = self.query_one("#supplies-more", DataTable)
         sup.clear()
+        more.clear()
         self._shown.clear()
         for s in st.plan.supplies:
             regs = [r for r in st.plan.regulators if r.supply_id == s.id]
@@ -136,9 +156,9 @@ class OverviewScreen(Screen[None]):
                 coldest = min(r.outlet_temperature_k for r in regs)
                 outlet = ("/".join(disp.gauge_number(r.set_point_abs_pa) for r in regs)
                           + f" {disp.gauge_label} {disp.temperature(coldest).replace(' °C', '°C')}")
-            reading = "liquid (by weight)" if s.liquefied else disp.gauge(s.pressure_abs_pa)
-            sup.add_row(s.id, s.gas_short[:16], reading, "", "", "", f"{s.mass_kg:.2f} kg",
-                        f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
+            reading = "by weight" if s.liquefied else disp.gauge(s.pressure_abs_pa)
+            sup.add_row(s.id, reading, "", "", "", key=s.id)
+            more.add_row(s.id, s.gas_short[:9], f"{s.mass_kg:.2f} kg", f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
         dr = self.query_one("#draws", DataTable)
         dr.clear()
         for d in st.plan.draws:
@@ -151,7 +171,8 @@ class OverviewScreen(Screen[None]):
                     margin = f"{w.margin_kv:+.1f} kV {w.status}"
             dr.add_row(d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin, key=d.id)
         self._observed_line()
-        self.query_one("#findings", FindingsPanel).show(st.findings(), disp)
+        self._findings = st.findings()
+        self.query_one("#findings", FindingsPanel).show(self._findings, disp)
         self.tick()
 
     def _observed_line(self) -> None:
@@ -180,10 +201,16 @@ class OverviewScreen(Screen[None]):
             el = (now - st.started_at).total_seconds()
             status = (f"● SESSION #{st.session_id} running {int(el // 3600)}:{int(el % 3600 // 60):02d}:"
                       f"{int(el % 60):02d} of {fmt_hours(st.plan.session_hours)}")
+            over = el / 3600.0 - st.plan.session_hours
+            if over > 0:
+                status += f"   ▲ OVER TIME by {fmt_hours(over)}"
         else:
             status = f"○ no session — press s to start ({fmt_hours(st.plan.session_hours)} planned)"
+        if st.unsaved and int(now.timestamp()) % 10 == 0:
+            st.retry_unsaved()  # the journal may be free again
         if st.unsaved:
-            status += f"   ✖ {len(st.unsaved)} reading(s) NOT saved to the journal"
+            status += f"   ✖ {len(st.unsaved)} reading(s) NOT saved to the journal (retrying)"
+        self._alerts(now)
         self._set("status", status, lambda v: self.query_one("#status", Static).update(str(v)))
         sup = self.query_one("#supplies", DataTable)
         for s in st.plan.supplies:
@@ -216,19 +243,32 @@ class OverviewScreen(Screen[None]):
     # -- actions
 
     def action_toggle_session(self) -> None:
+        from gasbench.tui.screens.modals import StopScreen
+
         st = self.state
         if st.plan is None:
             return
+        if st.running:
+            self.app.push_screen(StopScreen(), self._stop_answered)
+            return
         try:
-            if st.running:
-                st.stop()
-                self.notify("Session stopped and saved", title="Session")
-            else:
-                st.start()
-                self.notify(f"Session #{st.session_id} started", title="Session")
-                if not self.cautions_shown:
-                    self.cautions_shown = True
-                    self.app.call_later(self.app.run_action, "cautions")
+            st.start()
+            self.notify(f"Session #{st.session_id} started", title="Session")
+            if not self.cautions_shown:
+                self.cautions_shown = True
+                self.app.call_later(self.app.run_action, "cautions")
+        except JournalError as exc:
+            self.notify(str(exc), title="Journal", severity="error", timeout=10)
+        self.refresh_view()
+
+    def _stop_answered(self, record: tuple[str, int | None, str] | None) -> None:
+        if record is None:
+            return
+        st = self.state
+        try:
+            st.record_session(*record)
+            st.stop()
+            self.notify("Session stopped and saved", title="Session")
         except JournalError as exc:
             self.notify(str(exc), title="Journal", severity="error", timeout=10)
         self.refresh_view()
@@ -238,23 +278,99 @@ class OverviewScreen(Screen[None]):
 
         if self.state.plan is None:
             return
-        if not self.state.running:
-            self.notify("Start a session first (s)", severity="warning")
-            return
         self.app.push_screen(ReadingScreen(self.state), self._reading_entered)
 
     def _reading_entered(self, reading: Reading | None) -> None:
+        from gasbench.tui.screens.modals import ConfirmScreen
+
         if reading is None:
             return
         try:
-            self.state.add_reading(reading)
-        except JournalError as exc:
-            self.notify(f"{exc}. The reading is kept on screen and marked unsaved.", title="Journal",
-                        severity="error", timeout=15)
+            questions = self.state.questions(reading)
         except GasbenchError as exc:
-            self.notify(str(exc), severity="error")
+            self.notify(str(exc), severity="error", markup=False)
+            return
+        if questions:
+            text = "; ".join(question_text(q, self.units) for q in questions)
+            self.app.push_screen(ConfirmScreen(f"{text}. Record this reading anyway?"),
+                                 lambda yes: self._save_reading(reading) if yes else None)
+            return
+        self._save_reading(reading)
+
+    def _save_reading(self, reading: Reading) -> None:
+        try:
+            self.state.add_reading(reading)
+            if not self.state.running:
+                self.notify("Idle reading saved (no session running)", timeout=4)
+        except JournalError as exc:
+            self.notify(f"{exc}. The reading is kept on screen, marked unsaved, and retried.", title="Journal",
+                        severity="error", timeout=15, markup=False)
+        except GasbenchError as exc:
+            self.notify(str(exc), severity="error", markup=False)
             return
         self.load_plan()
+
+    def action_change(self) -> None:
+        from gasbench.tui.screens.modals import ChangeScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(ChangeScreen(self.state), self._changed)
+
+    def _changed(self, answer: tuple[Reading, str | None, dt.date | None] | None) -> None:
+        from gasbench.tui.screens.modals import ConfirmScreen
+
+        if answer is None:
+            return
+        reading, label, retest = answer
+        try:
+            self.state.change_cylinder(reading, label, retest)
+        except GasbenchError as exc:
+            self.notify(str(exc), title="Cylinder change", severity="error", timeout=10, markup=False)
+            return
+        self.load_plan()
+        self.app.push_screen(ConfirmScreen(f"New cylinder on {reading.supply_id} recorded. Check the new "
+                                           "connection for leaks now with a hold test?"),
+                             lambda yes: self.action_hold() if yes else None)
+
+    def action_history(self) -> None:
+        from gasbench.tui.screens.tools import HistoryScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(HistoryScreen(self.state))
+
+    def on_screen_resume(self) -> None:
+        # back from a tool (a hold test saved, a reading struck): the figures and findings follow
+        if self.state.plan is not None:
+            self.load_plan()
+
+    def _alerts(self, now: dt.datetime) -> None:
+        """Bell and banner: a supply near its reserve, the session over time, a leak or a draw
+        faster than planned among the findings. The bell rings once per new condition."""
+        st = self.state
+        assert st.plan is not None
+        ahead = st.profile.session.alert_before / 3600.0 if st.profile is not None else 0.5
+        alerts: dict[str, str] = {}
+        for s in st.plan.supplies:
+            h = st.hours_left(s.id, now)
+            if s.draw_kg_s > 0 and h <= ahead:
+                alerts[f"reserve:{s.id}"] = (f"{s.id} reaches its reserve in {fmt_hours(h)}" if h > 0
+                                             else f"{s.id} is at its reserve: change the cylinder")
+        if st.running and st.started_at is not None:
+            over = (now - st.started_at).total_seconds() / 3600.0 - st.plan.session_hours
+            if over > 0:
+                alerts["over"] = f"session over its planned time by {fmt_hours(over)}"
+        codes = {f.code for f in self._findings}
+        if codes & {"hold-test-leak", "idle-drop-leak"}:
+            alerts["leak"] = "a leak was found: see the findings"
+        if "faster-than-planned" in codes:
+            alerts["fast"] = "a supply empties faster than planned"
+        text = "   ▲ ".join(alerts.values())
+        banner = self.query_one("#banner", Static)
+        self._set("banner", text, lambda v: banner.update(Text(f"▲ {v}" if v else "")))
+        banner.display = bool(alerts)
+        if set(alerts) - self._alerted:
+            self.app.bell()
+        self._alerted = set(alerts)
 
     def action_reload(self) -> None:
         self.reload_profile()

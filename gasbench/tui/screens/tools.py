@@ -3,9 +3,11 @@
 from __future__ import annotations
 
 import datetime as dt
+import os
 import re
 from pathlib import Path
 
+from rich.text import Text
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -70,15 +72,15 @@ class GraphScreen(_Tool):
         xs = [off + h for h in s.projection_hours]
         plt.plot(xs, [bar_g(p) for p in s.projection_pressure_abs_pa], label="planned", marker="braille")
         plt.hline(bar_g(s.reserve_abs_pa), "red")
-        rs = sorted(st.readings.get(s.id, []), key=lambda r: r.at)
+        rs = sorted((r for r in st.readings.get(s.id, []) if r.pressure_abs_pa is not None), key=lambda r: r.at)
         ob = st.observed.get(s.id)
         if ob is not None and ob.fit_at:
             fx = [(dt.datetime.fromisoformat(a) - origin).total_seconds() / 3600.0 for a in ob.fit_at]
             plt.plot(fx, [bar_g(p) for p in ob.fit_pressure_abs_pa], label="fitted", marker="braille")
         if rs:  # drawn last so they stay visible
-            plt.scatter([(r.at - origin).total_seconds() / 3600.0 for r in rs], [bar_g(r.pressure_abs_pa) for r in rs],
+            plt.scatter([(r.at - origin).total_seconds() / 3600.0 for r in rs], [bar_g(r.pressure_abs_pa or 0.0) for r in rs],
                         label="readings", marker="o")
-        ys = [bar_g(p) for p in s.projection_pressure_abs_pa] + [bar_g(r.pressure_abs_pa) for r in rs]
+        ys = [bar_g(p) for p in s.projection_pressure_abs_pa] + [bar_g(r.pressure_abs_pa or 0.0) for r in rs]
         lo, hi = bar_g(s.reserve_abs_pa), max(ys)
         plt.ylim(min(lo, min(ys)) - 0.05 * (hi - lo), hi + 0.25 * (hi - lo))  # room above for the legend
         plt.xlabel("hours since " + ("session start" if st.started_at else "plan"))
@@ -119,6 +121,7 @@ class HoldScreen(_Tool):
 
     def on_mount(self) -> None:
         self.query_one("#hold-plot").display = False
+        self.query_one("#hold-start", Input).focus()
 
     def _last_line(self) -> str:
         st = self.state
@@ -167,9 +170,9 @@ class HoldScreen(_Tool):
                     parse_temperature(val("hold-tend")) if val("hold-tend") else None, gauge,
                     reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
         except GasbenchError as exc:
-            out.update(f"✖ {exc}")
+            out.update(Text(f"✖ {exc}"))
             return
-        lines = [f"[b]{r.verdict.upper()}[/b]",
+        lines = [f"{r.verdict.upper()}",
                  f"leak rate {r.leak_rate_sccm:.4g} ± {r.leak_rate_uncertainty_sccm:.3g} sccm (1σ, 0 °C, 101.325 kPa)"
                  f" = {r.leak_rate_pa_m3_s:.3g} Pa·m³/s",
                  f"mass loss {r.mass_loss_kg * 1000:.3g} ± {r.mass_loss_uncertainty_kg * 1000:.3g} g; "
@@ -186,7 +189,7 @@ class HoldScreen(_Tool):
             except JournalError as exc:
                 lines.insert(1, f"✖ not saved: {exc}")
             self.query_one("#last-hold", Static).update(self._last_line())
-        out.update("\n".join(lines))
+        out.update(Text("\n".join(lines)))
         self._plot(fit)
 
     def _plot(self, fit: object) -> None:
@@ -229,6 +232,7 @@ class RoomScreen(_Tool):
         st = self.state
         assert st.plan is not None
         r = st.plan.room
+        self.query_one("#room-leak", Input).focus()
         if r is None:
             self.query_one("#room-figures", Static).update("The profile has no [room]: add its volume and ventilation.")
             return
@@ -251,6 +255,7 @@ class RoomScreen(_Tool):
         last = st.last_hold_test()
         if last is not None and last.leak_rate_sccm > 0:
             self.query_one("#room-leak", Input).value = f"{last.leak_rate_sccm:.3g} sccm"
+        self.query_one("#room-leak", Input).focus()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         from gasbench import room as rm
@@ -269,18 +274,18 @@ class RoomScreen(_Tool):
             lk = rm.leak_o2(r.volume_m3, r.vented_m3_s + extra, r.ventilation_m3_s, r.ventilation_kind,
                             r.release.c0_percent)
         except GasbenchError as exc:
-            out.update(f"✖ {exc}")
+            out.update(Text(f"✖ {exc}"))
             return
-        out.update(f"with {event.value} more: steady {lk.o2_percent_steady:.2f} % O2; to 19.5 % "
+        out.update(Text(f"with {event.value} more: steady {lk.o2_percent_steady:.2f} % O2; to 19.5 % "
                    f"{fmt_hours(lk.minutes_to_19_5 / 60)}; recovery {fmt_hours(lk.minutes_to_recover / 60)}; "
-                   f"{lk.effect or 'stays above 19.5 %'}")
+                   f"{lk.effect or 'stays above 19.5 %'}"))
 
 
 # ----------------------------------------------------------------------------- checklist
 
 
 class ChecklistScreen(_Tool):
-    BINDINGS = [Binding("e", "export", "Export HTML+PDF")]
+    BINDINGS = [Binding("e", "export", "Export HTML+PDF next to the profile")]
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -312,9 +317,18 @@ class ChecklistScreen(_Tool):
 
         st = self.state
         slug = re.sub(r"[^A-Za-z0-9]+", "-", self.checklist.bench).strip("-").lower()[:40] or "bench"
-        stamp = st.clock().strftime("%Y%m%d-%H%M")
-        folder = folder or Path.cwd()
+        stamp = st.clock().strftime("%Y%m%d-%H%M%S")
+        if folder is None:  # next to the profile; for the bundled demo, the current folder
+            from gasbench.profile import demo_profile_path
+
+            folder = st.profile_path.resolve().parent
+            if st.profile_path.resolve() == demo_profile_path().resolve() or not os.access(folder, os.W_OK):
+                folder = Path.cwd()
         base = folder / f"checklist-{slug}-{stamp}"
+        n = 2
+        while base.with_suffix(".html").exists() or base.with_suffix(".pdf").exists():  # never overwrite
+            base = folder / f"checklist-{slug}-{stamp}-{n}"
+            n += 1
         try:
             base.with_suffix(".html").write_text(render_html(self.checklist), encoding="utf-8")
             render_pdf(self.checklist, base.with_suffix(".pdf"))
@@ -324,3 +338,109 @@ class ChecklistScreen(_Tool):
         self.last_export = base
         self.app.call_from_thread(self.notify, f"written {base}.html and {base}.pdf", title="Checklist exported",
                                   timeout=10)
+
+
+# ----------------------------------------------------------------------------- history
+
+
+class HistoryScreen(_Tool):
+    """The current cylinder's readings (struck ones marked), past sessions and hold tests; a
+    wrong reading is struck out with a reason (kept, never deleted)."""
+
+    BINDINGS = [Binding("escape", "app.pop_screen", "Back"), Binding("x", "strike", "Strike out")]
+
+    def compose(self) -> ComposeResult:
+        from textual.widgets import DataTable
+
+        st = self.state
+        assert st.profile is not None
+        yield Header()
+        with VerticalScroll():
+            yield Select([(s.id, s.id) for s in st.profile.supplies], value=st.profile.supplies[0].id,
+                         allow_blank=False, id="history-supply", compact=True)
+            yield Static("Readings on the current cylinder (select one and press x to strike it out)",
+                         classes="heading")
+            yield DataTable(id="history-readings", cursor_type="row")
+            yield Input(placeholder="reason for striking the selected reading out, then Enter", id="strike-reason")
+            yield Static("", id="history-result")
+            yield Static("Sessions", classes="heading")
+            yield Static("", id="history-sessions", markup=False)
+            yield Static("Hold tests", classes="heading")
+            yield Static("", id="history-holds", markup=False)
+        yield Footer()
+
+    def on_mount(self) -> None:
+        from textual.widgets import DataTable
+
+        t = self.query_one("#history-readings", DataTable)
+        for label, key, width in (("#", "id", 5), ("Time", "at", 16), ("Reading", "value", 14),
+                                  ("Temp.", "t", 8), ("Where", "where", 10), ("Struck out", "struck", 24)):
+            t.add_column(label, key=key, width=width)
+        self.query_one("#strike-reason", Input).display = False
+        self.fill()
+        t.focus()
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        self.fill()
+
+    def fill(self) -> None:
+        from textual.widgets import DataTable
+
+        from gasbench.render.display import profile_display
+
+        st = self.state
+        assert st.profile is not None
+        d = profile_display(st.profile)
+        sid = str(self.query_one("#history-supply", Select).value)
+        t = self.query_one("#history-readings", DataTable)
+        t.clear()
+        try:
+            rows = st.history(sid)
+        except JournalError as exc:
+            self.query_one("#history-result", Static).update(Text(f"✖ {exc}"))
+            rows = []
+        for r in rows:
+            value = d.gauge(r.pressure_abs_pa) if r.pressure_abs_pa is not None else f"{r.weight_kg:g} kg"
+            t.add_row(str(r.id), r.at[:16].replace("T", " "), value, d.temperature(r.temperature_k),
+                      f"session {r.session_id}" if r.session_id else "idle",
+                      Text(f"✖ {r.struck_reason}") if r.struck else "", key=str(r.id))
+        if st.journal is None:
+            return
+        sessions = st.journal.bench_sessions(st.profile.bench.name)[-8:]
+        self.query_one("#history-sessions", Static).update("\n".join(
+            f"#{s.id}  {s.started_at[:16].replace('T', ' ')} → "
+            f"{(s.stopped_at or 'left running')[:16].replace('T', ' ')}  {s.readings} reading(s)" for s in sessions)
+            or "none yet")
+        holds = st.journal.hold_tests(st.profile.bench.name)[-8:]
+        self.query_one("#history-holds", Static).update("\n".join(
+            f"{h.at[:16].replace('T', ' ')}  {h.supply_id or '—'}  {h.verdict}  {h.leak_rate_sccm:.3g} ± "
+            f"{h.leak_rate_uncertainty_sccm:.2g} sccm  ({h.kind or 'manual'})" for h in holds) or "none yet")
+
+    def action_strike(self) -> None:
+        from textual.widgets import DataTable
+
+        t = self.query_one("#history-readings", DataTable)
+        if t.row_count == 0:
+            return
+        box = self.query_one("#strike-reason", Input)
+        box.display = True
+        box.focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        from textual.widgets import DataTable
+
+        t = self.query_one("#history-readings", DataTable)
+        if event.input.id != "strike-reason" or t.row_count == 0:
+            return
+        key = t.coordinate_to_cell_key(t.cursor_coordinate).row_key.value
+        out = self.query_one("#history-result", Static)
+        try:
+            self.state.strike(int(str(key)), event.value.strip())
+        except (JournalError, ValueError) as exc:
+            out.update(Text(f"✖ {exc}"))
+            return
+        out.update(Text(f"reading {key} struck out: {event.value.strip()}"))
+        event.input.value = ""
+        event.input.display = False
+        self.fill()
+        t.focus()
