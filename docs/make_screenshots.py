@@ -60,6 +60,28 @@ async def shoot() -> None:
             await pilot.press("k")
             await settle()
             app.save_screenshot("checklist.svg", str(OUT))
+            await pilot.press("escape")
+            await pilot.press("h")
+            await settle()
+            app.save_screenshot("history.svg", str(OUT))
+            await pilot.press("escape")
+            await pilot.press("n")
+            await settle()
+            app.screen.query_one("#fill").value = "198 bar"
+            app.screen.query_one("#label").value = "N2-0417"
+            app.save_screenshot("change.svg", str(OUT))
+        # the same bench at 80 x 24, the size the layout is designed for first
+        app = make_app(None, Path(tmp) / "journal.sqlite3", clock=clock)
+        async with app.run_test(size=(80, 24)) as pilot:
+            await pilot.pause()
+            await app.workers.wait_for_complete()
+            await pilot.pause()
+            if type(app.screen).__name__ == "ConfirmScreen":  # the session left running above
+                await pilot.press("y")
+                await pilot.pause()
+                await app.workers.wait_for_complete()
+                await pilot.pause()
+            app.save_screenshot("overview-80x24.svg", str(OUT))
 
 
 if __name__ == "__main__":
