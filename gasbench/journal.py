@@ -8,8 +8,6 @@ left running (a crash or a closed terminal) and is offered for resumption.
 
 from __future__ import annotations
 
-import csv
-import io
 import os
 import sqlite3
 from collections.abc import Callable
@@ -20,6 +18,8 @@ from typing import Any
 from gasbench.errors import JournalError
 
 SCHEMA_VERSION = 3
+#: ``PRAGMA application_id`` of a gasbench journal ("GSBJ"): a foreign SQLite file is refused.
+APPLICATION_ID = 0x4753424A
 
 _MIGRATIONS: dict[int, str] = {
     1: """
@@ -110,12 +110,13 @@ _MIGRATIONS: dict[int, str] = {
 
 
 def default_path(explicit: str | os.PathLike[str] | None = None) -> Path:
-    """Journal location: ``explicit``, else ``$GASBENCH_JOURNAL``, else the user data directory."""
+    """Journal location: ``explicit``, else ``$GASBENCH_JOURNAL``, else the user data directory
+    (``~`` expanded)."""
     if explicit:
-        return Path(explicit)
+        return Path(explicit).expanduser()
     env = os.environ.get("GASBENCH_JOURNAL")
     if env:
-        return Path(env)
+        return Path(env).expanduser()
     from platformdirs import user_data_dir
 
     return Path(user_data_dir("gasbench", appauthor=False)) / "journal.sqlite3"
@@ -184,22 +185,73 @@ class HoldRow:
 class Journal:
     """One open journal file."""
 
-    def __init__(self, path: str | os.PathLike[str]) -> None:
-        self.path = Path(path)
+    def __init__(self, path: str | os.PathLike[str], check: bool = True) -> None:
+        self.path = Path(path).expanduser()
         try:
+            if self.path.exists() and not self.path.is_file():
+                raise JournalError(f"journal {self.path} is not a regular file")
             self.path.parent.mkdir(parents=True, exist_ok=True)
             self.db = sqlite3.connect(self.path, timeout=10.0, isolation_level=None, check_same_thread=False)
+            self._identify()  # before anything is changed: a foreign or newer file stays untouched
             self.db.execute("PRAGMA journal_mode=WAL")
             self.db.execute("PRAGMA synchronous=FULL")
             self.db.execute("PRAGMA foreign_keys=ON")
+            if check:
+                self._check_integrity()
             self._migrate()
+        except JournalError:
+            if hasattr(self, "db"):
+                self.db.close()
+            raise
         except (sqlite3.Error, OSError) as exc:
+            if hasattr(self, "db"):
+                self.db.close()
             raise JournalError(f"cannot open the journal {self.path}: {exc}") from None
+
+    def _identify(self) -> None:
+        """Refuse a SQLite file that is not a gasbench journal, or one from a newer gasbench,
+        before touching it."""
+        try:
+            app_id = self.db.execute("PRAGMA application_id").fetchone()[0]
+            version = self.db.execute("PRAGMA user_version").fetchone()[0]
+            tables = {r[0] for r in self.db.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
+        except sqlite3.DatabaseError as exc:
+            raise JournalError(f"{self.path} is not a gasbench journal ({exc}); point --journal at another "
+                               "file") from None
+        ours = app_id == APPLICATION_ID or (app_id == 0 and (not tables or "sessions" in tables and version >= 1))
+        if not ours:
+            raise JournalError(f"{self.path} is not a gasbench journal (another program's SQLite file); it was "
+                               "left untouched — point --journal at another file")
+        if version > SCHEMA_VERSION:
+            raise JournalError(f"journal {self.path} has schema {version}, newer than this gasbench "
+                               f"({SCHEMA_VERSION}): update gasbench; the file was left untouched")
+
+    def _check_integrity(self) -> None:
+        """A damaged file is refused (nothing is written to it), with how to recover."""
+        try:
+            result = self.db.execute("PRAGMA quick_check").fetchone()[0]
+        except sqlite3.DatabaseError as exc:
+            result = str(exc)
+        if result != "ok":
+            raise JournalError(
+                f"journal {self.path} is damaged ({str(result)[:80]}); nothing was written. Keep a copy, then "
+                f"recover it with: sqlite3 '{self.path}' '.recover' | sqlite3 recovered.sqlite3")
 
     def _migrate(self) -> None:
         version = self.db.execute("PRAGMA user_version").fetchone()[0]
         if version > SCHEMA_VERSION:
             raise JournalError(f"journal {self.path} has schema {version}, newer than this gasbench ({SCHEMA_VERSION})")
+        if 0 < version < SCHEMA_VERSION:
+            # a copy of the journal as it was, before the migration changes it
+            backup = self.path.with_name(f"{self.path.name}.v{version}.bak")
+            if not backup.exists():
+                dst = sqlite3.connect(backup)
+                try:
+                    self.db.backup(dst)
+                finally:
+                    dst.close()
+        if version == 0 or self.db.execute("PRAGMA application_id").fetchone()[0] != APPLICATION_ID:
+            self.db.execute(f"PRAGMA application_id = {APPLICATION_ID}")
         for v in range(version + 1, SCHEMA_VERSION + 1):
             self.db.execute("BEGIN IMMEDIATE")
             try:
@@ -230,10 +282,14 @@ class Journal:
                 self.db.execute("COMMIT")
                 return out
             except BaseException:
-                self.db.execute("ROLLBACK")
+                try:
+                    self.db.execute("ROLLBACK")
+                except sqlite3.Error:
+                    pass  # SQLite already rolled back (a full disk does that)
                 raise
         except sqlite3.Error as exc:
-            raise JournalError(f"journal {self.path}: write failed ({exc}); nothing was recorded") from None
+            why = "the disk is full" if "full" in str(exc).lower() else str(exc)
+            raise JournalError(f"journal {self.path}: write failed ({why}); nothing was recorded") from None
 
     def start_session(self, bench: str, profile_path: str | None, at: str) -> int:
         return int(self._write(lambda db: db.execute(
@@ -369,23 +425,6 @@ class Journal:
     def integrity_ok(self) -> bool:
         return self._read("PRAGMA integrity_check")[0][0] == "ok"
 
-    def export_csv(self, session_id: int, ambient_pa: float = 101325.0) -> str:
-        """One session's readings as CSV (SI columns plus the text as typed)."""
-        s = self.session(session_id)
-        if s is None:
-            raise JournalError(f"no session {session_id} in {self.path}")
-        buf = io.StringIO()
-        w = csv.writer(buf, lineterminator="\n")
-        w.writerow(["session", "bench", "supply", "time", "pressure_abs_pa", "pressure_gauge_pa", "typed",
-                    "temperature_k", "weight_kg", "ambient_pa", "struck_at", "struck_reason"])
-        for r in self.readings(session_id):
-            amb = r.ambient_pa if r.ambient_pa is not None else ambient_pa
-            w.writerow([s.id, s.bench, r.supply_id, r.at,
-                        "" if r.pressure_abs_pa is None else f"{r.pressure_abs_pa:.1f}",
-                        "" if r.pressure_abs_pa is None else f"{r.pressure_abs_pa - amb:.1f}", r.pressure_text,
-                        f"{r.temperature_k:.2f}", "" if r.weight_kg is None else f"{r.weight_kg:.3f}",
-                        f"{amb:.1f}", r.struck_at or "", r.struck_reason or ""])
-        return buf.getvalue()
 
 
 def open_journal(path: str | os.PathLike[str] | None = None) -> Journal:

@@ -432,18 +432,24 @@ def parse_profile(text: str, source: str = "<profile>") -> Profile:
 
 def load_profile(path: str | Path) -> Profile:
     """Load a bench profile file."""
-    p = Path(path)
+    p = Path(path).expanduser()
     try:
-        raw = p.read_bytes()
+        if not p.is_file():
+            raise ProfileError(f"{path}: not a regular file; give a bench profile (.toml)")
+        with open(p, "rb") as fh:  # read with a limit: /dev/zero or a huge file is not a profile
+            raw = fh.read(MAX_PROFILE_BYTES + 1)
     except OSError as exc:
         raise ProfileError(f"{path}: cannot read the profile: {exc.strerror or exc}") from None
-    if len(raw) > 2_000_000:
+    if len(raw) > MAX_PROFILE_BYTES:
         raise ProfileError(f"{path}: file is larger than 2 MB; not a bench profile")
     try:
-        text = raw.decode("utf-8")
+        text = raw.decode("utf-8-sig")  # a byte-order mark is accepted
     except UnicodeDecodeError:
         raise ProfileError(f"{path}: not UTF-8 text") from None
     return parse_profile(text, str(path))
+
+
+MAX_PROFILE_BYTES = 2_000_000
 
 
 DEMO_NAME = "demo-teaching-bench.toml"

@@ -13,6 +13,7 @@ import pytest
 from gasbench.cli import main
 from gasbench.errors import JournalError
 from gasbench.journal import SCHEMA_VERSION, Journal, default_path
+from gasbench.render.files import session_csv
 
 
 def test_schema_version_and_wal(tmp_path):
@@ -60,7 +61,7 @@ def test_sessions_readings_resume_and_export(tmp_path):
         j.add_reading(sid, "n2-A", "2026-12-01T09:31:00", 65e5, "64 bar", 294.15, "2026-12-01T09:31:05")
         j.add_reading(sid, "n2-A", "2026-12-01T10:31:00", 63e5, "62 bar", 294.15, "2026-12-01T10:31:05")
         assert j.unfinished_session("bench A").id == sid
-        csv_text = j.export_csv(sid)
+        csv_text = session_csv(j, sid)
         assert csv_text.count("\n") == 3 and "64 bar" in csv_text
         j.stop_session(sid, "2026-12-01T13:30:00")
         assert j.unfinished_session("bench A") is None

@@ -19,7 +19,9 @@ from gasbench.cli.common import (
     input_error,
     journal_if_exists,
 )
+from gasbench.journal import default_path
 from gasbench.profile import load_profile
+from gasbench.render.files import write_output
 from gasbench.workflows.bench import assess
 
 
@@ -27,7 +29,9 @@ def configure(sub: Any, name: str) -> None:
     p = sub.add_parser("checklist", help="pre-session checklist filled with this bench's figures")
     p.add_argument("profile", help="bench profile (TOML)")
     p.add_argument("--format", choices=["txt", "md", "html", "pdf", "json"], default="txt")
-    p.add_argument("--output", metavar="FILE", help="write to FILE (required for pdf)")
+    p.add_argument("--output", metavar="FILE", help="write to FILE (required for pdf); an existing file is kept "
+                                                   "unless --force")
+    p.add_argument("--force", action="store_true", help="replace an existing --output file")
     p.add_argument("--operator", help="operator's name for the sign-off")
     p.add_argument("--print", action="store_true", help="send the written file to the system's print command")
     add_journal(p)
@@ -52,8 +56,9 @@ def cmd_checklist(args: argparse.Namespace) -> int:
     if args.format == "json" and not args.output:
         emit_json(checklist_json(cl))
         return 0
+    protected = (default_path(getattr(args, "journal", None)), args.profile)
     if args.format == "pdf":
-        out = render_pdf(cl, args.output)
+        out = write_output(args.output, lambda tmp: render_pdf(cl, tmp), force=args.force, protected=protected)
     else:
         if args.format == "json":
             import json
@@ -64,11 +69,7 @@ def cmd_checklist(args: argparse.Namespace) -> int:
         if not args.output:
             sys.stdout.write(text)
             return 0
-        out = Path(args.output)
-        try:
-            out.write_text(text, encoding="utf-8")
-        except OSError as exc:
-            raise input_error(f"cannot write {args.output}: {exc.strerror or exc}") from None
+        out = write_output(args.output, text, force=args.force, protected=protected)
     print(f"checklist written to {out}")
     if args.print:
         cmd = shutil.which("lp") or shutil.which("lpr")

@@ -5,11 +5,11 @@ from __future__ import annotations
 import argparse
 import sys
 from dataclasses import asdict
-from pathlib import Path
 from typing import Any
 
 from gasbench.cli.common import add_journal, add_json, emit_json, input_error, journal_if_exists
 from gasbench.journal import default_path
+from gasbench.render.files import session_csv, write_output
 
 
 def configure(sub: Any, name: str) -> None:
@@ -22,7 +22,9 @@ def configure(sub: Any, name: str) -> None:
         p = sub.add_parser("export", help="write one session's readings out")
         p.add_argument("session", type=int, help="session number (see 'gasbench sessions')")
         p.add_argument("--format", choices=["csv"], default="csv")
-        p.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+        p.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output (kept if it "
+                                                       "exists, unless --force)")
+        p.add_argument("--force", action="store_true", help="replace an existing --output file")
         add_journal(p)
         p.set_defaults(func=cmd_export)
 
@@ -48,13 +50,11 @@ def cmd_export(args: argparse.Namespace) -> int:
         raise input_error("no journal yet: start a session in the app first")
     if j.session(args.session) is None:
         raise input_error(f"no session {args.session} in the journal (see 'gasbench sessions')")
-    text = j.export_csv(args.session)
+    text = session_csv(j, args.session)
     if args.output:
-        try:
-            Path(args.output).write_text(text, encoding="utf-8")
-        except OSError as exc:
-            raise input_error(f"cannot write {args.output}: {exc.strerror or exc}") from None
-        print(f"session {args.session} written to {args.output}")
+        out = write_output(args.output, text, force=args.force,
+                           protected=(default_path(getattr(args, "journal", None)),))
+        print(f"session {args.session} written to {out}")
     else:
         sys.stdout.write(text)
     return 0

@@ -314,6 +314,7 @@ class ChecklistScreen(_Tool):
     @work(thread=True, exclusive=True)
     def export(self, folder: Path | None = None) -> None:
         from gasbench.checklist.render import render_html, render_pdf
+        from gasbench.render.files import write_output
 
         st = self.state
         slug = re.sub(r"[^A-Za-z0-9]+", "-", self.checklist.bench).strip("-").lower()[:40] or "bench"
@@ -330,9 +331,9 @@ class ChecklistScreen(_Tool):
             base = folder / f"checklist-{slug}-{stamp}-{n}"
             n += 1
         try:
-            base.with_suffix(".html").write_text(render_html(self.checklist), encoding="utf-8")
-            render_pdf(self.checklist, base.with_suffix(".pdf"))
-        except OSError as exc:
+            write_output(base.with_suffix(".html"), render_html(self.checklist))
+            write_output(base.with_suffix(".pdf"), lambda tmp: render_pdf(self.checklist, tmp))
+        except (OSError, GasbenchError) as exc:
             self.app.call_from_thread(self.notify, f"export failed: {exc}", severity="error", timeout=10)
             return
         self.last_export = base
