@@ -32,7 +32,10 @@ from dataclasses import dataclass
 
 from gasbench import gas as g
 from gasbench.errors import InputError
-from gasbench.units import ATM_PA, Flow, check_positive, fmt_pressure, fmt_temperature
+from gasbench.units import ATM_PA, Flow, check_positive, check_range, fmt_pressure, fmt_temperature
+
+#: Largest held volume of a hold test [m³].
+MAX_HELD_M3 = 100.0
 
 #: Standard-flow reference for leak rates: 0 °C, 101.325 kPa.
 T_STD, P_STD = 273.15, 101325.0
@@ -240,7 +243,9 @@ def hold_two_readings(
     >>> round(r.mass_loss_kg * 1000, 3), round(r.leak_rate_sccm, 3)
     (0.576, 0.32)
     """
-    check_positive(volume_m3, "held volume", "m³")
+    check_range(volume_m3, "held volume", 0.0, MAX_HELD_M3, "m³", "cylinders, lines and a vessel or two")
+    if target_sccm is not None:
+        check_range(target_sccm, "target leak rate", 0.0, 1e9, "sccm")
     if not math.isfinite(duration_s) or duration_s <= 0:
         raise InputError(f"hold duration {duration_s!r} s must be greater than zero")
     for p, what in ((p_start, "start pressure"), (p_end, "end pressure")):
@@ -397,7 +402,9 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     :func:`hold_two_readings` (first and last reading) over the span, ⊕ the fit's standard error."""
     import numpy as np
 
-    check_positive(volume_m3, "held volume", "m³")
+    check_range(volume_m3, "held volume", 0.0, MAX_HELD_M3, "m³", "cylinders, lines and a vessel or two")
+    if target_sccm is not None:
+        check_range(target_sccm, "target leak rate", 0.0, 1e9, "sccm")
     t = np.asarray(log.t_s)
     p = np.asarray(log.p_abs_pa)
     n = len(t)

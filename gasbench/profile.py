@@ -14,7 +14,15 @@ from importlib import resources
 from pathlib import Path
 from typing import Annotated, Any, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError, model_validator
+from pydantic import (
+    BaseModel,
+    BeforeValidator,
+    ConfigDict,
+    Field,
+    ValidationError,
+    field_validator,
+    model_validator,
+)
 
 from gasbench import units as u
 from gasbench.errors import InputError, ProfileError
@@ -64,8 +72,20 @@ def _positive(value: float, what: str) -> float:
     return value
 
 
+_CONTROL_CHARS = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+
+
 class _Model(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True, arbitrary_types_allowed=True)
+
+    @field_validator("*", mode="before")
+    @classmethod
+    def _no_control_characters(cls, v: Any) -> Any:
+        """Names and notes are shown on terminals and in files: no escape sequences or control
+        characters (a line break in a note is fine)."""
+        if isinstance(v, str) and _CONTROL_CHARS.search(v.replace("\n", "").replace("\t", "")):
+            raise InputError("control characters or escape sequences are not allowed in text")
+        return v
 
 
 # ----------------------------------------------------------------------------- sections

@@ -137,7 +137,8 @@ def leak_o2(room_volume_m3: float, leak_m3_s: float, ventilation_m3_s: float = 0
     """Oxygen level in a room with a continuous leak R and ventilation Q (well mixed).
 
     ``minutes_to_recover`` is the time from the steady state back above 19.5 % once the leak
-    stops, with the ventilation running (``inf`` without ventilation: open doors and windows).
+    stops, with the ventilation running (``inf`` without ventilation: open doors and windows;
+    NaN when the level never falls below 19.5 %).
 
     >>> lk = leak_o2(50.0, 10 / 60000, 100 / 3600)   # 10 L/min into 50 m³ with 2 air changes/h
     >>> round(lk.o2_percent_steady, 3), lk.minutes_to_19_5
@@ -150,6 +151,8 @@ def leak_o2(room_volume_m3: float, leak_m3_s: float, ventilation_m3_s: float = 0
         raise InputError(f"ventilation {ventilation_m3_s!r} m³/s must be zero or more")
     if kind not in ("exhaust", "supply"):
         raise InputError(f"unknown ventilation kind {kind!r}; allowed: exhaust, supply")
+    if not (math.isfinite(c0_percent) and 0 < c0_percent <= 100):
+        raise InputError(f"initial oxygen {c0_percent!r} % must be above 0 and at most 100")
     V, R, Q, C0 = room_volume_m3, leak_m3_s, ventilation_m3_s, c0_percent
     if Q == 0 or (kind == "exhaust" and R >= Q):
         css, k = 0.0, R / V
@@ -164,16 +167,16 @@ def leak_o2(room_volume_m3: float, leak_m3_s: float, ventilation_m3_s: float = 0
         method = "supply-driven ventilation, well mixed: Css = C0·Q/(Q + R), rate (Q + R)/V"
 
     def minutes_to(th: float) -> float:
+        if th >= C0:
+            return 0.0  # the room starts at or below this level
         if css >= th or k == 0:
             return math.inf
-        if th >= C0:
-            return 0.0
         return -math.log((th - css) / (C0 - css)) / k / 60.0
 
     if css >= OSHA_DEFICIENT:
-        recover = 0.0
-    elif Q == 0:
-        recover = math.inf
+        recover = math.nan  # never below 19.5 %: nothing to recover from
+    elif Q == 0 or C0 <= OSHA_DEFICIENT:
+        recover = math.inf  # no fresh air, or the fresh air itself is below 19.5 %
     else:
         recover = math.log((C0 - css) / (C0 - OSHA_DEFICIENT)) / (Q / V) / 60.0
     return Leak(V, R, Q, kind, C0, css, k, minutes_to(OSHA_DEFICIENT), minutes_to(EIGA_HAZARD), recover,

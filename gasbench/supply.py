@@ -15,9 +15,13 @@ from gasbench.units import (
     Flow,
     Reference,
     check_positive,
+    check_range,
     fmt_pressure,
     fmt_temperature,
 )
+
+#: Largest water volume taken as one supply: a cylinder bundle (5 m³).
+MAX_SUPPLY_M3 = 5.0
 
 #: Highest temperature at which compressed-gas cylinders should be stored, [K]:
 #: 52 °C / 125 °F (CGA P-1 "Safe handling of compressed gases in containers", from memory).
@@ -93,7 +97,7 @@ def contents(
     >>> round(c.mass_kg, 2), round(c.free_volume_m3, 2), round(c.z, 4)
     (11.21, 9.46, 1.0485)
     """
-    check_positive(volume_m3, "cylinder volume", "m³")
+    check_range(volume_m3, "cylinder volume", 0.0, MAX_SUPPLY_M3, "m³", "a cylinder bundle at most")
     g.check_state(gas, T, p_abs)
     ideal_free = volume_m3 * (p_abs / reference.pressure_pa) * (reference.temperature_k / T)
     ideal_mass = p_abs * volume_m3 * gas.molar_mass / (g.R * T)
@@ -274,7 +278,7 @@ def runtime(gas: g.Gas, volume_m3: float, p_abs: float, reserve_abs: float, T: f
     >>> round(r.hours_to_reserve, 2)
     68.91
     """
-    check_positive(volume_m3, "cylinder volume", "m³")
+    check_range(volume_m3, "cylinder volume", 0.0, MAX_SUPPLY_M3, "m³", "a cylinder bundle at most")
     if reserve_abs >= p_abs:
         raise InputError(
             f"reserve {fmt_pressure(reserve_abs, kind='absolute')} is at or above the current pressure "

@@ -138,12 +138,44 @@ def check_finite(value: float, what: str) -> float:
     return float(value)
 
 
+def check_range(value: float, what: str, lo: float, hi: float, unit: str, why: str = "") -> float:
+    """Return ``value`` if it is finite and within (lo, hi], else raise :class:`InputError`
+    naming the value and the range allowed.
+
+    >>> check_range(0.05, "cylinder volume", 0.0, 5.0, "m³")
+    0.05
+    """
+    check_finite(value, what)
+    if not lo < value <= hi:
+        raise InputError(f"{what} {value:g} {unit} is outside the range allowed: above {lo:g} and at most {hi:g} "
+                         f"{unit}" + (f" ({why})" if why else ""))
+    return float(value)
+
+
 def check_positive(value: float, what: str, unit: str = "") -> float:
     """Return ``value`` if it is finite and > 0, else raise :class:`InputError`."""
     check_finite(value, what)
     if value <= 0:
         raise InputError(f"{what} must be greater than zero, got {value:g}{(' ' + unit) if unit else ''}")
     return float(value)
+
+
+_CONTROL_TEXT = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+
+
+def check_text(value: str, what: str, max_len: int = 200) -> str:
+    """Free text a person typed (a note, a label, a reason): trimmed, at most ``max_len``
+    characters, no control characters or escape sequences.
+
+    >>> check_text("  N2-0417 ", "label")
+    'N2-0417'
+    """
+    v = value.strip()
+    if _CONTROL_TEXT.search(v):
+        raise InputError(f"{what} contains control characters or escape sequences; type plain text")
+    if len(v) > max_len:
+        raise InputError(f"{what} is {len(v)} characters long; at most {max_len}")
+    return v
 
 
 # --------------------------------------------------------------------------------------

@@ -161,7 +161,7 @@ def test_hold_cli_json_and_errors(capsys, tmp_path):
         (["--duration", "-2 h"], "greater than zero"),
         (["--duration", "0 h"], "greater than zero"),
         (["--start", "300 bar"], "above the gauge range"),
-        (["--volume", "0 L"], "greater than zero"),
+        (["--volume", "0 L"], "above 0"),
     ]:
         base = {"--gas": "n2", "--volume": "50 L", "--start": "152 bar", "--end": "150 bar", "--duration": "14 h",
                 "--gauge-range": "250 bar", "--gauge-class": "1.6"}

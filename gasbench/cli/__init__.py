@@ -83,6 +83,13 @@ def build_parser(argv: Sequence[str] | None = None) -> argparse.ArgumentParser:
 def main(argv: Sequence[str] | None = None) -> int:
     from gasbench.errors import GasbenchError
 
+    for stream in (sys.stdout, sys.stderr):  # a terminal that cannot show °, ± or ³ gets '?'
+        reconfigure = getattr(stream, "reconfigure", None)
+        if reconfigure is not None:
+            try:
+                reconfigure(errors="replace")
+            except (ValueError, OSError):
+                pass
     args = build_parser(argv).parse_args(argv)
     try:
         if args.command is None:

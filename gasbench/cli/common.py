@@ -102,7 +102,11 @@ def ambient(args: argparse.Namespace) -> float:
     from gasbench.units import ATM_PA, ambient_from_altitude, parse_length, pressure_abs
 
     if getattr(args, "ambient", None):
-        return pressure_abs(args.ambient, 0.0, "ambient pressure")
+        amb = pressure_abs(args.ambient, 0.0, "ambient pressure")
+        if not 30e3 <= amb <= 120e3:
+            raise input_error(f"ambient pressure {args.ambient!r} is outside 30 kPa to 120 kPa (sea level is "
+                              "101.325 kPa; the highest labs are near 50 kPa)")
+        return amb
     if getattr(args, "altitude", None) is not None:
         return ambient_from_altitude(parse_length(args.altitude, "altitude"))
     return ATM_PA

@@ -21,7 +21,7 @@ from gasbench.journal import Journal, default_path
 from gasbench.profile import Profile, load_profile
 from gasbench.render.display import Display
 from gasbench.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
-from gasbench.units import parse_mass, parse_pressure, parse_temperature
+from gasbench.units import check_text, parse_mass, parse_pressure, parse_temperature
 from gasbench.workflows import cylinder as cy
 from gasbench.workflows.bench import assess
 
@@ -153,9 +153,9 @@ def cmd_swap(args: argparse.Namespace) -> int:
 def cmd_strike(args: argparse.Namespace) -> int:
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
-    reason = args.reason.strip()
-    if not reason or len(reason) > 200:
-        raise input_error("--reason must say why, in at most 200 characters")
+    reason = check_text(args.reason, "--reason", 200)
+    if not reason:
+        raise input_error("--reason must say why the reading is struck out")
     with _open(args) as j:
         ids = {r.id for s in prof.supplies for r in j.supply_readings(prof.bench.name, s.id)}
         if args.reading_id not in ids:

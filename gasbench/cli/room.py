@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import math
 from dataclasses import asdict
 from typing import Any
 
@@ -53,6 +54,9 @@ def configure(sub: Any, name: str) -> None:
 def cmd_room(args: argparse.Namespace) -> int:
     g_ = gas(args)
     amb = ambient(args)
+    if not (math.isfinite(args.oxygen) and 0 < args.oxygen <= 100):
+        raise input_error(f"--oxygen {args.oxygen!r}: the room's oxygen before the release, a percentage above 0 "
+                          "and at most 100 (air: 20.95)")
     T = parse_temperature(args.temperature, "room temperature")
     V = parse_volume(args.room_volume, "room volume")
     if V <= 0:
@@ -82,7 +86,7 @@ def cmd_room(args: argparse.Namespace) -> int:
         return 0
 
     def mins(m: float) -> str:
-        return fmt_hours(m / 60.0)
+        return "—" if math.isnan(m) else fmt_hours(m / 60.0)
 
     emit_table("Room oxygen with a continuous leak", [
         ("gas", g_.name), ("room", f"{V:g} m³"), ("leak", f"{R * 6e4:.3f} L/min at room conditions"),

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
-import math
 from dataclasses import asdict
 from typing import Any
 
@@ -162,7 +161,7 @@ def cmd_runtime(args: argparse.Namespace) -> int:
     draws = [supply.mass_flow(g_, f) for f in flows]
     r = supply.runtime(g_, V, p, res, T, sum(draws))
     now = dt.datetime.now().astimezone()
-    at = now + dt.timedelta(hours=r.hours_to_reserve) if math.isfinite(r.hours_to_reserve) else None
+    at = now + dt.timedelta(hours=r.hours_to_reserve) if r.hours_to_reserve <= 24 * 366 else None
     if args.json:
         emit_json(asdict(r) | {"draws_kg_s": draws, "reserve_at": at.isoformat(timespec="minutes") if at else None,
                                "pressure_abs_pa": p, "reserve_abs_pa": res})
@@ -172,7 +171,7 @@ def cmd_runtime(args: argparse.Namespace) -> int:
     for f, dr in zip(flows, draws, strict=True):
         rows.append(("draw", f"{f.describe()} = {dr * 60e3:.3f} g/min"))
     rows += [("time to reserve", d.hours(r.hours_to_reserve)),
-             ("reserve reached at", at.strftime("%a %H:%M") if at else "never"),
+             ("reserve reached at", at.strftime("%a %d %b %H:%M") if at else "not within a year"),
              ("method", r.method + " (constant temperature)")]
     emit_table("Run time to reserve", rows)
     return 0

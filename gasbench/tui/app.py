@@ -5,6 +5,7 @@ from __future__ import annotations
 import datetime as dt
 from collections.abc import Callable
 from pathlib import Path
+from typing import Any
 
 from textual.app import App
 from textual.binding import Binding
@@ -39,6 +40,11 @@ class GasbenchApp(App[int]):
 
         if not isinstance(self.screen, CautionsScreen):
             self.push_screen(CautionsScreen(self.state))
+
+    def notify(self, message: str, **kwargs: Any) -> None:  # type: ignore[override]
+        """Notifications are plain text: a typed "[/]" or "[@click=...]" is shown, never run."""
+        kwargs["markup"] = False
+        super().notify(message, **kwargs)
 
     async def action_quit(self) -> None:
         """Quit, asking first while a session runs or readings are not saved yet."""

@@ -72,6 +72,17 @@ class SupplyModel:
         return p
 
 
+#: Beyond this a time to reserve is "not within a year": no clock time is given (gasbench rule).
+HORIZON_HOURS = 24.0 * 366
+
+
+def _clock_after(t0: dt.datetime, hours: float) -> str | None:
+    """The clock time ``hours`` after ``t0``, or None when it is not finite or beyond a year."""
+    if not math.isfinite(hours) or hours > HORIZON_HOURS:
+        return None
+    return (t0 + dt.timedelta(hours=max(hours, 0.0))).isoformat(timespec="minutes")
+
+
 def _draw_rate(prof: Profile, d: Draw) -> float | None:
     return d.repetition_rate if d.repetition_rate is not None else prof.session.repetition_rate
 
@@ -202,7 +213,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             h_lo = max(0.0, (model.mass_at(lo_p) - mass_res) / mdot / 3600.0)
             h_hi = max(0.0, (model.mass_at(hi_p) - mass_res) / mdot / 3600.0)
             band = (h_lo, h_hi)
-        reserve_at = (start + dt.timedelta(hours=hours)).isoformat(timespec="minutes") if math.isfinite(hours) else None
+        reserve_at = _clock_after(start, hours)
         rates = [dp.rate_hz for dp in draws_here if dp.rate_hz]
         shots = hours * 3600.0 * max(rates) if rates and math.isfinite(hours) else None
         cost = None
@@ -319,7 +330,7 @@ def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s
     m_now = float(m[-1])
     m_res = g.density(gas, T_last, reserve_abs) * volume_m3
     hours = (m_now - m_res) / draw / 3600.0 if draw > 0 else math.inf
-    at = (readings[-1][0] + dt.timedelta(hours=hours)).isoformat(timespec="minutes") if math.isfinite(hours) else None
+    at = _clock_after(readings[-1][0], hours)
     # the fitted line as pressures at the first and last reading (for plots)
     fitted = [float(m[0] + slope * 0.0), float(m[0] + slope * span)] if len(t) < 3 else \
         [float(np.polyval(coef, t[0])), float(np.polyval(coef, t[-1]))]

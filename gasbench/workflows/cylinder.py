@@ -26,7 +26,7 @@ from gasbench import hold as hd
 from gasbench.errors import InputError
 from gasbench.journal import ChangeRow, Journal, ReadingRow
 from gasbench.profile import Profile, Supply, with_reading, with_weight
-from gasbench.units import PSI_PA, Pressure
+from gasbench.units import PSI_PA, Pressure, check_text
 from gasbench.workflows.holds import HoldRecord, profile_gauge_spec, record_of, store
 
 __all__ = ["Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
@@ -210,6 +210,7 @@ def record_change(journal: Journal, prof: Profile, entry: Entry, now: dt.datetim
     s = prof.supply(entry.supply_id)
     if entry.weight_kg is not None and s.tare is None:
         raise InputError(f"supply {s.id} has no tare weight in the profile: a fill by weight needs it")
+    label = check_text(label, "cylinder label", 60) or None if label else None
     cid = journal.add_change(prof.bench.name, entry.supply_id, entry.at.isoformat(timespec="seconds"),
                               now.isoformat(timespec="seconds"), entry.pressure_abs_pa, entry.pressure_text or None,
                               entry.weight_kg, entry.temperature_k, label,

@@ -17,7 +17,7 @@ from pathlib import Path
 from gasbench.errors import InputError, JournalError
 from gasbench.journal import Journal, ReadingRow
 from gasbench.profile import Profile, load_profile, with_reading
-from gasbench.units import parse_mass, parse_pressure, parse_temperature
+from gasbench.units import check_text, parse_mass, parse_pressure, parse_temperature
 from gasbench.workflows import build as pl
 from gasbench.workflows.bench import Assessment, findings_of, journal_state
 from gasbench.workflows.cylinder import (
@@ -252,6 +252,9 @@ class SessionState:
         """Strike a reading out (kept, marked, with the reason)."""
         if self.journal is None:
             raise JournalError("no journal")
+        reason = check_text(reason, "reason", 200)
+        if not reason:
+            raise InputError("say why the reading is struck out")
         self.journal.strike_reading(reading_id, self.clock().isoformat(timespec="seconds"), reason)
         for rs in self.readings.values():
             rs[:] = [r for r in rs if r.journal_id != reading_id]
@@ -270,6 +273,8 @@ class SessionState:
         """The session's record: operator, shots fired and a note (in the journal)."""
         if self.journal is None or self.session_id is None:
             return
+        operator = check_text(operator or "", "operator", 100)
+        note = check_text(note or "", "note", 1000)
         self.journal.set_session_record(self.session_id, operator or None, shots)
         if note:
             self.journal.add_note(self.session_id, self.clock().isoformat(timespec="seconds"), note)

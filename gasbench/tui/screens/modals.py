@@ -154,7 +154,7 @@ class ConfirmScreen(ModalScreen[bool]):
 
     def compose(self) -> ComposeResult:
         with Vertical(id="dialog", classes="dialog"):
-            yield Static(self.question)
+            yield Static(self.question, markup=False)
             with Horizontal(classes="buttons"):
                 yield Button("Yes (y)", variant="primary", id="yes")
                 yield Button("No (n)", id="no")

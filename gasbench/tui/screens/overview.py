@@ -133,7 +133,7 @@ class OverviewScreen(Screen[None]):
         self.load_plan()
 
     def _error(self, msg: str) -> None:
-        self.query_one("#status", Static).update(f"✖ {msg}")
+        self.query_one("#status", Static).update(Text(f"✖ {msg}"))
         self.notify(msg, title="Error", severity="error", timeout=10)
 
     # -- display
@@ -189,7 +189,7 @@ class OverviewScreen(Screen[None]):
             parts.append(f"{s.id}: observed {ob.draw_kg_s * 6e4:.3g} ± {ob.draw_uncertainty_kg_s * 6e4:.2g} g/min "
                          f"vs planned {s.draw_kg_s * 6e4:.3g} g/min"
                          + ("  ▲ faster than planned" if ob.faster_than_planned else ""))
-        self.query_one("#observed", Static).update("\n".join(parts))
+        self.query_one("#observed", Static).update(Text("\n".join(parts)))
 
     def tick(self) -> None:
         """Once a second: elapsed time and countdowns (only these cells change)."""
@@ -211,7 +211,7 @@ class OverviewScreen(Screen[None]):
         if st.unsaved:
             status += f"   ✖ {len(st.unsaved)} reading(s) NOT saved to the journal (retrying)"
         self._alerts(now)
-        self._set("status", status, lambda v: self.query_one("#status", Static).update(str(v)))
+        self._set("status", status, lambda v: self.query_one("#status", Static).update(Text(str(v))))
         sup = self.query_one("#supplies", DataTable)
         for s in st.plan.supplies:
             if s.id not in sup.rows:  # the plan was recomputed and the table not yet refreshed

@@ -102,7 +102,7 @@ class HoldScreen(_Tool):
         assert st.profile is not None
         yield Header()
         with VerticalScroll(id="hold-form"):
-            yield Static(self._last_line(), id="last-hold")
+            yield Static(self._last_line(), id="last-hold", markup=False)
             yield Label("Supply (its water volume, gas and gauge are used)")
             yield Select([(s.id, s.id) for s in st.profile.supplies], value=st.profile.supplies[0].id,
                          allow_blank=False, id="hold-supply")
@@ -188,7 +188,7 @@ class HoldScreen(_Tool):
                 lines.insert(1, "saved to the journal")
             except JournalError as exc:
                 lines.insert(1, f"✖ not saved: {exc}")
-            self.query_one("#last-hold", Static).update(self._last_line())
+            self.query_one("#last-hold", Static).update(Text(self._last_line()))
         out.update(Text("\n".join(lines)))
         self._plot(fit)
 
@@ -234,24 +234,25 @@ class RoomScreen(_Tool):
         r = st.plan.room
         self.query_one("#room-leak", Input).focus()
         if r is None:
-            self.query_one("#room-figures", Static).update("The profile has no [room]: add its volume and ventilation.")
+            self.query_one("#room-figures", Static).update(Text("The profile has no [room]: add its volume and "
+                                                                "ventilation."))
             return
         sealed = rm.release(r.volume_m3, r.release.release_volume_m3, "sealed", r.release.c0_percent)
-        lines = [f"[b]Room[/b] {r.volume_m3:g} m³, ventilation {r.ventilation_m3_s * 3600:.0f} m³/h ({r.ventilation_kind})",
-                 f"[b]All of {r.release_supply_id} released[/b] ({r.release.release_volume_m3:.2f} m³ at room conditions):",
+        lines = [f"Room {r.volume_m3:g} m³, ventilation {r.ventilation_m3_s * 3600:.0f} m³/h ({r.ventilation_kind})",
+                 f"All of {r.release_supply_id} released ({r.release.release_volume_m3:.2f} m³ at room conditions):",
                  f"  {r.release.o2_percent_after_release:5.2f} % O2  {r.release.method}",
                  f"  {r.release_mixed.o2_percent_after_release:5.2f} % O2  {r.release_mixed.method}",
                  f"  {sealed.o2_percent_after_release:5.2f} % O2  {sealed.method}",
                  f"  {r.release.effect or 'stays above 19.5 %'}"]
         if r.leak is not None:
             lk = r.leak
-            lines += [f"[b]Draws venting into the room[/b] {r.vented_m3_s * 6e4:.2f} L/min: steady "
+            lines += [f"Draws venting into the room {r.vented_m3_s * 6e4:.2f} L/min: steady "
                       f"{lk.o2_percent_steady:.2f} % O2; to 19.5 % {fmt_hours(lk.minutes_to_19_5 / 60)}; "
                       f"to 18 % {fmt_hours(lk.minutes_to_18 / 60)} ({lk.method})"]
         lines += [f"! {n}" for n in r.notes]
         lines.append("Estimates of a well-mixed room: use a fixed oxygen monitor with alarm where gas can "
                      "accumulate; follow local codes and the supplier's safety data sheet.")
-        self.query_one("#room-figures", Static).update("\n".join(lines))
+        self.query_one("#room-figures", Static).update(Text("\n".join(lines)))
         last = st.last_hold_test()
         if last is not None and last.leak_rate_sccm > 0:
             self.query_one("#room-leak", Input).value = f"{last.leak_rate_sccm:.3g} sccm"
