@@ -13,7 +13,7 @@ from typing import Any
 
 from gasbench import gas as g
 from gasbench.errors import InputError
-from gasbench.units import ATM_PA, T0_K, check_positive, fmt_pressure
+from gasbench.units import ATM_PA, T0_K, check_positive, check_range, fmt_pressure
 
 heat_capacity_ratio = g.heat_capacity_ratio
 
@@ -124,7 +124,7 @@ def orifice_flow(
     >>> r.choked, round(r.standard_flow_slpm, 3)
     (True, 0.652)
     """
-    check_positive(diameter_m, "orifice diameter", "m")
+    check_range(diameter_m, "orifice diameter", 0.0, 0.05, "m", "a bleed orifice or needle-valve bore")
     if not 0 < cd <= 1:
         raise InputError(f"discharge coefficient {cd:g} must be > 0 and ≤ 1")
     if p_down >= p_up:

@@ -26,7 +26,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from gasbench import gas as g
-from gasbench.units import check_positive
+from gasbench.units import check_positive, check_range
 
 TORR_PA = 101325.0 / 760.0
 T_REF = 293.15  # K, reference temperature of the empirical formula
@@ -195,7 +195,7 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     >>> round(b.breakdown_kv, 1), b.method.split(",")[0]
     (36.6, 'empirical uniform-field formula for air (Kuffel')
     """
-    check_positive(spacing_m, "gap spacing", "m")
+    check_range(spacing_m, "gap spacing", 0.0, 0.5, "m", "a spark gap")
     check_positive(p_abs, "gap pressure (absolute)", "Pa")
     g.check_state(gas, T, p_abs)
     pd_bar_cm = p_abs / 1e5 * spacing_m * 100.0 * T_REF / T

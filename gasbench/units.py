@@ -95,7 +95,7 @@ def get_reference(key: str) -> Reference:
 
 _NUM = r"[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?|[-+]?(?:nan|inf|infinity)"
 _SPLIT = re.compile(rf"^\s*({_NUM})\s*(.*?)\s*$", re.IGNORECASE)
-_SEPARATOR = re.compile(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[,_'\u2009\u202f]|\s+)\d")
+_SEPARATOR = re.compile(r"^\s*[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[,_'\u2009\u202f]|\s+)\d")
 
 
 def _split(text: str, what: str) -> tuple[float, str]:
@@ -252,7 +252,7 @@ def parse_pressure(text: str, ambient_pa: float = ATM_PA, what: str = "pressure"
             raise InputError(f"{what} {text!r}: {unit} is an absolute scale; it cannot be gauge")
         marker = "absolute"
     kind: PressureKind = marker or "gauge"
-    pa = value * factor
+    pa = _sane(value * factor, "pressure", text, what)
     abs_pa = pa + ambient_pa if kind == "gauge" else pa
     if abs_pa < 0:
         raise InputError(
@@ -313,8 +313,8 @@ def parse_temperature(text: str, what: str = "temperature") -> float:
     kelvin = {"degC": value + T0_K, "degF": (value - 32.0) * 5.0 / 9.0 + T0_K, "K": value,
               "degR": value * 5.0 / 9.0}[u]
     if kelvin <= 0:
-        raise InputError(f"{what} {text!r} is at or below absolute zero")
-    return kelvin
+        raise InputError(f"{what} {_short(text)!r} is at or below absolute zero")
+    return _sane(kelvin, "temperature", text, what)
 
 
 def parse_temperature_difference(text: str, what: str = "temperature uncertainty") -> float:
@@ -362,19 +362,35 @@ _FAST: dict[str, tuple[str, float]] = {
 }
 
 
+#: Beyond these no bench goes: a larger figure is a slip of the unit or the exponent, refused
+#: at the edge for every quantity (commands and profiles narrow them further).
+SANITY_LIMITS: dict[str, tuple[float, str]] = {
+    "m**3": (1e6, "1e6 m³"), "s": (10 * 366 * 86400.0, "ten years"), "m": (1e4, "10 km"),
+    "kg": (1e5, "100 t"), "Hz": (1e9, "1 GHz"), "V": (1e8, "100 MV"), "flow": (100.0, "100 m³/s"),
+    "pressure": (1e10, "10 GPa"), "temperature": (1e4, "10 000 K"),
+}
+
+
+def _sane(value: float, kind: str, text: str, what: str) -> float:
+    hi, words = SANITY_LIMITS[kind]
+    if abs(value) > hi:
+        raise InputError(f"{what} {_short(text)!r} is beyond {words}, more than any bench uses; check the unit")
+    return value
+
+
 def _parse_dim(text: str, what: str, target: str, examples: str) -> float:
     value, unit = _split(text, what)
     _need_unit(unit, text, what, examples)
     fast = _FAST.get(unit.strip().lower().replace("³", "3").replace("µ", "u"))
     if fast is not None and fast[0] == target:
-        return value * fast[1]
+        return _sane(value * fast[1], target, text, what)
     import pint
 
     q = _pint_quantity(value, unit, text, what)
     try:
-        return float(q.to(target).magnitude)
+        return _sane(float(q.to(target).magnitude), target, text, what)
     except pint.errors.DimensionalityError:
-        raise InputError(f"{what} {text!r} is not a {target_names.get(target, target)}; e.g. {examples}") from None
+        raise InputError(f"{what} {_short(text)!r} is not a {target_names.get(target, target)}; e.g. {examples}") from None
 
 
 target_names = {"m**3": "volume", "s": "duration", "m": "length", "kg": "mass", "m**3/s": "volume flow",
@@ -502,16 +518,16 @@ def parse_flow(text: str, reference: str | None = None, what: str = "flow") -> F
         factor, ref_key = _STANDARD_FLOW_UNITS[key]
         if reference is not None and key.startswith("s") and not key.startswith("scf"):
             ref_key = reference
-        return Flow("standard", value * factor, get_reference(ref_key), text.strip())
+        return Flow("standard", _sane(value * factor, "flow", text, what), get_reference(ref_key), text.strip())
     import pint
 
     q = _pint_quantity(value, unit, text, what)
     try:
-        return Flow("mass", float(q.to("kg/s").magnitude), None, text.strip())
+        return Flow("mass", _sane(float(q.to("kg/s").magnitude), "flow", text, what), None, text.strip())
     except pint.errors.DimensionalityError:
         pass
     try:
-        return Flow("actual", float(q.to("m**3/s").magnitude), None, text.strip())
+        return Flow("actual", _sane(float(q.to("m**3/s").magnitude), "flow", text, what), None, text.strip())
     except pint.errors.DimensionalityError:
         raise InputError(
             f"{what} {text!r} is not a flow; use sccm, slpm, scfh, Nm3/h (standard), g/min (mass) "

@@ -13,7 +13,7 @@ import importlib
 import sys
 from collections.abc import Sequence
 
-from gasbench.cli.common import EXIT_INPUT, Parser
+from gasbench.cli.common import EXIT_INPUT, Parser, one_line
 
 #: name → (module under gasbench.cli, one-line help)
 COMMANDS: dict[str, tuple[str, str]] = {
@@ -91,13 +91,17 @@ def main(argv: Sequence[str] | None = None) -> int:
             except (ValueError, OSError):
                 pass
     args = build_parser(argv).parse_args(argv)
+    for name, value in vars(args).items():
+        if isinstance(value, str) and not value.strip() and name not in ("command",):
+            sys.stderr.write(f"gasbench: error: --{name.replace('_', '-')} is empty: give a value or leave the "
+                             "option out\n")
+            return EXIT_INPUT
     try:
         if args.command is None:
             return _run_app(args, None)
         return int(args.func(args))
     except GasbenchError as exc:
-        msg = str(exc).replace("\n", " ")
-        sys.stderr.write(f"gasbench: error: {msg}\n")
+        sys.stderr.write(one_line(f"gasbench: error: {exc}") + "\n")
         return EXIT_INPUT
     except KeyboardInterrupt:
         return 130

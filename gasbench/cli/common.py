@@ -23,9 +23,23 @@ class Parser(argparse.ArgumentParser):
     """argparse with one-line errors and exit status 2."""
 
     def error(self, message: str) -> NoReturn:
-        sys.stderr.write(f"gasbench: error: {message} (see 'gasbench {self.prog.split()[-1]} --help')\n"
-                         if " " in self.prog else f"gasbench: error: {message}\n")
+        hint = f" (see 'gasbench {self.prog.split()[-1]} --help')" if " " in self.prog else ""
+        sys.stderr.write(one_line(f"gasbench: error: {message}", 199 - len(hint)) + hint + "\n")
         raise SystemExit(EXIT_INPUT)
+
+
+def one_line(msg: str, limit: int = 199) -> str:
+    """An error message as one short, clean line: no control characters, no echo of a long
+    input (a word longer than 40 characters is cut), at most ``limit`` characters."""
+    import re
+
+    from gasbench.render.files import clean
+
+    text = clean(msg.replace("\n", " ").replace("\r", " ")).replace("\x00", "")
+    # a long word is an echoed input (cut it); a path may be longer before it is cut
+    text = re.sub(r"\S{41,}", lambda m: m.group(0) if "/" in m.group(0) and len(m.group(0)) <= 160
+                  else m.group(0)[:38] + "…", text)
+    return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
 def input_error(msg: str) -> Exception:

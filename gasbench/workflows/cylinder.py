@@ -32,6 +32,8 @@ from gasbench.workflows.holds import HoldRecord, profile_gauge_spec, record_of, 
 __all__ = ["Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
            "record_reading", "record_change", "IdleDrop", "idle_drops", "record_idle_drops", "parse_at"]
 
+#: Temperatures a cylinder reading may carry [K] (−73 °C to 77 °C): beyond, the unit slipped.
+READING_T_RANGE = (200.0, 350.0)
 #: A drop this many times faster than planned asks for confirmation (gasbench rule).
 FAST_DROP_FACTOR = 5.0
 
@@ -147,6 +149,9 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
     questions an implausible one raises (empty: record it)."""
     s = prof.supply(entry.supply_id)
     amb = prof.ambient_pa
+    if not READING_T_RANGE[0] < entry.temperature_k < READING_T_RANGE[1]:
+        raise InputError(f"cylinder temperature {entry.temperature_k - 273.15:.1f} °C is outside −73 °C to 77 °C; "
+                         "check the unit")
     if entry.pressure_abs_pa is not None:
         p = entry.pressure_abs_pa
         if s.test_pressure is not None and p > s.test_pressure.abs_at(amb):

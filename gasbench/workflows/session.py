@@ -175,8 +175,6 @@ class SessionState:
             raise InputError(f"choose a supply ({', '.join(ids)})")
         amb = self.profile.ambient_pa
         T = parse_temperature(temperature)
-        if not 200.0 < T < 350.0:
-            raise InputError(f"temperature {temperature} is outside −73 °C to 77 °C; check the unit")
         at = self.parse_time(when)
         if re.search(r"(kg|lb)\s*$", value.strip(), re.IGNORECASE):
             w = parse_mass(value, "weight")
