@@ -185,11 +185,21 @@ class HoldRow:
 class Journal:
     """One open journal file."""
 
-    def __init__(self, path: str | os.PathLike[str], check: bool = True) -> None:
+    def __init__(self, path: str | os.PathLike[str], check: bool = True, readonly: bool = False) -> None:
         self.path = Path(path).expanduser()
         try:
             if self.path.exists() and not self.path.is_file():
                 raise JournalError(f"journal {self.path} is not a regular file")
+            if readonly:
+                # reading only (sessions, status, plan): works in a read-only folder, changes nothing
+                self.db = sqlite3.connect(f"{self.path.resolve().as_uri()}?mode=ro", uri=True, timeout=10.0,
+                                          isolation_level=None, check_same_thread=False)
+                self._identify()
+                if check:
+                    self._check_integrity()
+                if self.db.execute("PRAGMA user_version").fetchone()[0] == SCHEMA_VERSION:
+                    return
+                self.db.close()  # an older schema: open it for writing so that it is migrated
             self.path.parent.mkdir(parents=True, exist_ok=True)
             self.db = sqlite3.connect(self.path, timeout=10.0, isolation_level=None, check_same_thread=False)
             self._identify()  # before anything is changed: a foreign or newer file stays untouched

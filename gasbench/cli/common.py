@@ -148,12 +148,12 @@ def computation(args: argparse.Namespace) -> tuple[Gas, float, Display]:
     return gas(args), amb, display(args, amb)
 
 
-def journal_if_exists(args: argparse.Namespace) -> Any:
+def journal_if_exists(args: argparse.Namespace, readonly: bool = False) -> Any:
     """The journal when its file exists (commands that only read or add to it never create one)."""
     from gasbench.journal import Journal, default_path
 
     path = default_path(getattr(args, "journal", None))
-    return Journal(path) if path.exists() else None
+    return Journal(path, readonly=readonly) if path.exists() else None
 
 
 CAUTION = ("estimate only: use a fixed oxygen monitor with alarm where gas can accumulate; follow local codes "

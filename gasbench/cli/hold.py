@@ -21,7 +21,9 @@ from gasbench.cli.common import (
     emit_table,
     input_error,
     journal_if_exists,
+    one_line,
 )
+from gasbench.errors import JournalError
 from gasbench.render.display import Display
 from gasbench.units import (
     parse_duration,
@@ -181,11 +183,16 @@ def _notes(r: hd.HoldResult, gauge: hd.GaugeSpec | None, d: Display) -> list[str
 
 def _record(args: argparse.Namespace, r: hd.HoldResult, kind: str) -> bool:
     """Store the hold test in the journal when the journal exists (tagged with --bench/--supply)."""
-    j = journal_if_exists(args)
-    if j is None:
+    try:
+        j = journal_if_exists(args)
+        if j is None:
+            return False
+        with j:
+            holds.store(j, holds.record_of(r, dt.datetime.now().astimezone(), args.bench, args.supply, kind))
+    except JournalError as exc:
+        # the result still counts: print it, and say it was not stored
+        sys.stderr.write(one_line(f"gasbench: warning: the hold test was not stored: {exc}") + "\n")
         return False
-    with j:
-        holds.store(j, holds.record_of(r, dt.datetime.now().astimezone(), args.bench, args.supply, kind))
     return True
 
 

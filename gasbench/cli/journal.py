@@ -30,7 +30,7 @@ def configure(sub: Any, name: str) -> None:
 
 
 def cmd_sessions(args: argparse.Namespace) -> int:
-    j = journal_if_exists(args)
+    j = journal_if_exists(args, readonly=True)
     rows = j.sessions() if j is not None else []
     if args.json:
         emit_json({"journal": str(default_path(getattr(args, "journal", None))), "sessions": [asdict(r) for r in rows]})
@@ -46,7 +46,7 @@ def cmd_sessions(args: argparse.Namespace) -> int:
 
 
 def cmd_export(args: argparse.Namespace) -> int:
-    j = journal_if_exists(args)
+    j = journal_if_exists(args, readonly=True)
     if j is None:
         raise input_error("no journal yet: start a session in the app first")
     if j.session(args.session) is None:

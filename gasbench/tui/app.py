@@ -86,11 +86,17 @@ def make_app(profile_path: str | Path | None = None, journal_path: str | Path | 
 
 
 def run_app(profile_path: str | None, journal_path: str | None) -> int:
+    import os
+
+    from gasbench.errors import InputError
     from gasbench.profile import load_profile
 
+    if os.environ.get("TERM", "") in ("dumb", "unknown"):
+        raise InputError("the app needs a full-screen terminal (TERM is 'dumb'); use the commands instead, "
+                         "e.g. 'gasbench status PROFILE'")
     if profile_path:
         load_profile(profile_path)  # a bad profile is a one-line error before the screen opens
-    app = make_app(profile_path, journal_path)
+    app = make_app(profile_path, journal_path)  # a damaged or foreign journal: one line, before the screen
     app.run()
     if app.state.journal is not None:
         app.state.journal.close()
