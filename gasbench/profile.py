@@ -204,6 +204,13 @@ class ExposedPart(_Model):
     rating: VoltageQ | None = None
     """Voltage rating of the part (cable, feedthrough, capacitor)."""
 
+    @model_validator(mode="after")
+    def _check(self) -> ExposedPart:
+        _positive(self.clearance, f"clearance of {self.name}")
+        if self.rating is not None:
+            _positive(self.rating, f"rating of {self.name}")
+        return self
+
 
 class Orifice(_Model):
     diameter: LengthQ

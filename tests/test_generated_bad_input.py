@@ -276,3 +276,17 @@ def test_dumb_terminal_gets_a_message_not_the_full_screen_app(monkeypatch, capsy
     monkeypatch.setenv("TERM", "dumb")
     code, out, err = _run([], capsys)
     assert code == 2 and "terminal" in err
+
+
+def test_zero_rating_and_numbers_in_item_files_are_refused(tmp_path, capsys):
+    text = Path(DEMO).read_text()
+    assert 'rating = "25 kV"' in text
+    prof = tmp_path / "b.toml"
+    prof.write_text(text.replace('rating = "25 kV"', 'rating = "0 kV"', 1))
+    code, _, err = _run(["plan", str(prof)], capsys)
+    assert code == 2 and "rating" in err
+    items = tmp_path / "items.toml"
+    items.write_text('[[sections]]\nid = "x"\nitems = [{ id = "a", text = 5 }]\n')
+    prof.write_text(text + f'\n[checklist]\nitems = "{items}"\n')
+    code, _, err = _run(["checklist", str(prof)], capsys)
+    assert code == 2 and "must be text" in err

@@ -84,6 +84,9 @@ def _load_items(text: str, source: str) -> dict[str, Any]:
         for j, it in enumerate(s.get("items", [])):
             if not isinstance(it, dict) or "id" not in it or not ({"text", "computed"} & set(it)):
                 raise ProfileError(f"{source}: sections[{i}].items[{j}] needs an id and a text (or computed)")
+            bad = [k for k in ("id", "text", "computed") if k in it and not isinstance(it[k], str)]
+            if bad:
+                raise ProfileError(f"{source}: sections[{i}].items[{j}].{bad[0]} must be text in quotes")
             if set(it) - {"id", "text", "computed"}:
                 raise ProfileError(f"{source}: sections[{i}].items[{j}]: unknown key(s) "
                                    f"{', '.join(sorted(set(it) - {'id', 'text', 'computed'}))}")
