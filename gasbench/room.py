@@ -77,6 +77,11 @@ class Release:
     notes: tuple[str, ...]
     method: str
 
+    @property
+    def gas_percent_after_release(self) -> float:
+        """The released gas's own concentration, vol % (what displaced the oxygen: 1 − C/C0)."""
+        return max(0.0, 100.0 * (1.0 - self.o2_percent_after_release / self.c0_percent))
+
 
 _MODEL_TEXT = {
     "displacement": "displaced air leaves first, C = C0·(Vr − Vg)/Vr (BCGA GN11)",
@@ -183,6 +188,46 @@ def leak_o2(room_volume_m3: float, leak_m3_s: float, ventilation_m3_s: float = 0
                 effect_of(css), method)
 
 
+@dataclass(frozen=True)
+class FiniteLeak:
+    """A leak that stops when its cylinder is empty: the oxygen falls until then, and recovers
+    afterwards with the ventilation."""
+
+    leak: Leak
+    minutes_to_empty: float
+    o2_percent_minimum: float
+    minutes_below_19_5: float | None  # None: never below 19.5 %
+    minutes_to_recover: float | None  # from the minimum back to 19.5 % (None: never below)
+
+
+def finite_leak(lk: Leak, gas_volume_m3: float) -> FiniteLeak:
+    """A continuous leak of ``lk.leak_m3_s`` from a cylinder holding ``gas_volume_m3`` (free
+    gas at room conditions): it lasts T = V_gas/R; the oxygen follows the leak's closed-form
+    curve until T (its minimum), then recovers as C(t) = C0 − (C0 − C_T)·e^(−Q(t−T)/V).
+
+    >>> lk = leak_o2(30.0, 10 / 60000, 0.0)
+    >>> f = finite_leak(lk, 1.0)      # 1 m³ of gas at 10 L/min: 100 min
+    >>> round(f.minutes_to_empty), round(f.o2_percent_minimum, 2)
+    (100, 20.26)
+    """
+    check_positive(gas_volume_m3, "gas in the leaking cylinder", "m³")
+    if lk.leak_m3_s <= 0:
+        return FiniteLeak(lk, math.inf, lk.c0_percent, None, None)
+    T = gas_volume_m3 / lk.leak_m3_s
+    c_min = o2_at(lk, T)
+    below = None
+    recover = None
+    if c_min < OSHA_DEFICIENT:
+        t19 = lk.minutes_to_19_5 if lk.minutes_to_19_5 <= T / 60.0 else math.nan
+        Q, V, C0 = lk.ventilation_m3_s, lk.room_volume_m3, lk.c0_percent
+        if Q > 0 and C0 > OSHA_DEFICIENT:
+            recover = math.log((C0 - c_min) / (C0 - OSHA_DEFICIENT)) / (Q / V) / 60.0
+        else:
+            recover = math.inf
+        below = (T / 60.0 - t19) + recover if math.isfinite(t19) else recover
+    return FiniteLeak(lk, T / 60.0, c_min, below, recover)
+
+
 def o2_at(lk: Leak, t_s: float) -> float:
     """Oxygen % at time t after the leak starts (closed-form solution of the model in ``lk``)."""
     return lk.o2_percent_steady + (lk.c0_percent - lk.o2_percent_steady) * math.exp(-lk.rate_per_s * t_s)
@@ -227,6 +272,11 @@ class Hazard:
     text: str
 
 
+def _source(sources: tuple[str, ...], key: str) -> str:
+    """The source of a handling fact, by what it is about (TWA, STEL, LFL)."""
+    return next((x for x in sources if key in x), sources[0] if sources else "")
+
+
 def gas_hazards(gas: g.Gas, o2_percent: float, c0_percent: float = C0_AIR) -> list[Hazard]:
     """Toxic and flammable hazards of the released gas at the concentration that lowers oxygen
     to ``o2_percent`` (released-gas fraction = 1 − C/C0, well mixed).
@@ -241,13 +291,13 @@ def gas_hazards(gas: g.Gas, o2_percent: float, c0_percent: float = C0_AIR) -> li
         if h.exposure_stel_ppm and pct > h.exposure_stel_ppm / 1e4:
             out.append(Hazard("toxic", pct, h.exposure_stel_ppm / 1e4,
                               f"{comp.name} at {pct:.2f} % exceeds its short-term exposure limit "
-                              f"{h.exposure_stel_ppm:.0f} ppm ({h.sources[1] if len(h.sources) > 1 else h.sources[0]})"))
+                              f"{h.exposure_stel_ppm:.0f} ppm ({_source(h.sources, 'STEL')})"))
         elif h.exposure_twa_ppm and pct > h.exposure_twa_ppm / 1e4:
             out.append(Hazard("toxic", pct, h.exposure_twa_ppm / 1e4,
                               f"{comp.name} at {pct:.2f} % exceeds its 8-hour exposure limit "
-                              f"{h.exposure_twa_ppm:.0f} ppm ({h.sources[0]})"))
+                              f"{h.exposure_twa_ppm:.0f} ppm ({_source(h.sources, 'TWA')})"))
         if h.lfl_percent and pct > 0.25 * h.lfl_percent:
             word = "above its lower flammability limit" if pct >= h.lfl_percent else "above 25 % of its LFL"
             out.append(Hazard("flammable", pct, h.lfl_percent,
-                              f"{comp.name} at {pct:.2f} % is {word} ({h.lfl_percent:g} %; {h.sources[-1]})"))
+                              f"{comp.name} at {pct:.2f} % is {word} ({h.lfl_percent:g} %; {_source(h.sources, 'LFL')})"))
     return out

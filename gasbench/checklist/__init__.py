@@ -204,11 +204,13 @@ def _room_release(ctx: _Ctx) -> list[Item]:
     if room is None:
         return [_item(ctx, "room-release", "Room oxygen if a cylinder empties into the room", "no room in profile",
                       ctx.about("room", ("no-room",)), "")]
-    r = room.release
-    return [_item(ctx, "room-release", f"Room oxygen if all of {room.release_supply_id} escapes at once",
-                  f"{r.o2_percent_after_release:.1f} % O2 ({r.model} model)",
+    r = room.worst_case or room.release
+    return [_item(ctx, "room-release",
+                  f"Room oxygen if all of {room.worst_case_supply_id or room.release_supply_id}, full, escapes at once",
+                  f"{r.o2_percent_after_release:.1f} % O2 ({r.model} model; today "
+                  f"{room.release.o2_percent_after_release:.1f} %)",
                   ctx.about("room", ("room-release", "room-toxic", "room-flammable")), "stays above 19.5 %",
-                  r.o2_percent_after_release, "room.release.o2_percent_after_release")]
+                  r.o2_percent_after_release, "room.o2_percent_worst_case")]
 
 
 def _room_vented(ctx: _Ctx) -> list[Item]:

@@ -7,7 +7,9 @@ import math
 from dataclasses import asdict
 from typing import Any
 
+from gasbench import gas as g
 from gasbench import room as rm
+from gasbench import supply
 from gasbench.cli.common import (
     CAUTION,
     add_ambient,
@@ -28,6 +30,7 @@ from gasbench.units import (
     parse_temperature,
     parse_ventilation,
     parse_volume,
+    pressure_abs,
 )
 
 
@@ -44,6 +47,9 @@ def configure(sub: Any, name: str) -> None:
                    help="release model (default displacement, the most conservative)")
     p.add_argument("--temperature", default="20 degC", help="room temperature (default 20 degC)")
     p.add_argument("--oxygen", type=float, default=20.95, help="initial oxygen, %% (default 20.95)")
+    p.add_argument("--supply-volume", help="with --leak: water volume of the cylinder that leaks, e.g. '50 L' "
+                                           "(the leak stops when it is empty)")
+    p.add_argument("--supply-pressure", help="with --leak: its pressure now, e.g. '200 bar'")
     add_flow_reference(p)
     add_ambient(p)
     add_display(p)
@@ -68,21 +74,40 @@ def cmd_room(args: argparse.Namespace) -> int:
         r = rm.release(V, vg, args.model, args.oxygen)
         hz = rm.gas_hazards(g_, r.o2_percent_after_release, args.oxygen)
         if args.json:
-            emit_json(asdict(r) | {"gas": g_.name, "hazards": [asdict(h) for h in hz], "stratification": notes[0]})
+            emit_json(asdict(r) | {"gas": g_.name, "gas_percent_after_release": r.gas_percent_after_release,
+                                   "hazards": [asdict(h) for h in hz], "stratification": notes[0]})
             return 0
-        emit_table("Room oxygen after a sudden release", [
-            ("gas", g_.name), ("room", f"{V:g} m³"), ("released", f"{vg:.3f} m³ at room conditions"),
-            ("oxygen after", f"{r.o2_percent_after_release:.2f} %"), ("effect", r.effect or "none expected (≥ 19.5 %)"),
-            ("model", r.method)], list(r.notes) + [h.text for h in hz] + notes + [CAUTION])
+        rows = [("gas", g_.name), ("room", f"{V:g} m³"), ("released", f"{vg:.3f} m³ at room conditions")]
+        # a toxic or flammable gas is judged by its own concentration first, then by the oxygen
+        rows += [(f"{h.kind.upper()}", h.text) for h in hz]
+        rows += [(f"{g_.short_name} in the room", f"{r.gas_percent_after_release:.2f} %"),
+                 ("oxygen after", f"{r.o2_percent_after_release:.2f} %"),
+                 ("effect of the oxygen", r.effect or "none expected (≥ 19.5 %)"), ("model", r.method)]
+        emit_table("Room after a sudden release", rows, list(r.notes) + notes + [CAUTION])
         return 0
     if args.ventilation and Q == 0 and args.ventilation_kind == "exhaust":
         raise input_error(f"ventilation {args.ventilation!r} is zero: leave out --ventilation for an unventilated room")
     R = rm.leak_volume_flow(g_, parse_flow(args.leak, reference=args.flow_reference, what="leak"), T, amb)
     lk = rm.leak_o2(V, R, Q, args.ventilation_kind, args.oxygen)
-    hz = rm.gas_hazards(g_, lk.o2_percent_steady, args.oxygen)
+    fin = None
+    if (args.supply_volume is None) != (args.supply_pressure is None):
+        raise input_error("--supply-volume and --supply-pressure go together")
+    if args.supply_volume is not None:
+        c = supply.contents(g_, parse_volume(args.supply_volume, "supply volume"),
+                            pressure_abs(args.supply_pressure, amb, "supply pressure"), T)
+        if c.mass_kg is None:
+            raise input_error(c.notes[0])
+        fin = rm.finite_leak(lk, c.mass_kg / g.density(g_, T, amb))
+    worst = fin.o2_percent_minimum if fin is not None else lk.o2_percent_steady
+    hz = rm.gas_hazards(g_, worst, args.oxygen)
     if args.json:
-        emit_json(asdict(lk) | {"gas": g_.name, "model": lk.method, "hazards": [asdict(h) for h in hz],
-                                "stratification": notes[0]})
+        extra: dict[str, object] = {}
+        if fin is not None:
+            extra = {"minutes_to_empty": fin.minutes_to_empty, "o2_percent_minimum": fin.o2_percent_minimum,
+                     "minutes_below_19_5": fin.minutes_below_19_5, "minutes_to_recover_from_minimum":
+                     fin.minutes_to_recover}
+        emit_json(asdict(lk) | extra | {"gas": g_.name, "model": lk.method, "hazards": [asdict(h) for h in hz],
+                                        "stratification": notes[0]})
         return 0
 
     def mins(m: float) -> str:
@@ -92,7 +117,12 @@ def cmd_room(args: argparse.Namespace) -> int:
         ("gas", g_.name), ("room", f"{V:g} m³"), ("leak", f"{R * 6e4:.3f} L/min at room conditions"),
         ("ventilation", f"{Q * 3600:.1f} m³/h ({args.ventilation_kind})" if Q else "none"),
         ("steady oxygen", f"{lk.o2_percent_steady:.2f} %"), ("to 19.5 %", mins(lk.minutes_to_19_5)),
-        ("to 18 %", mins(lk.minutes_to_18)), ("recovery to 19.5 %", mins(lk.minutes_to_recover)),
-        ("effect", lk.effect or "none expected (≥ 19.5 %)"), ("model", lk.method)],
+        ("to 18 %", mins(lk.minutes_to_18)),
+        ("recovery to 19.5 %", "never below it" if math.isnan(lk.minutes_to_recover) else mins(lk.minutes_to_recover)),
+        ("effect", lk.effect or "none expected (≥ 19.5 %)"), ("model", lk.method)]
+        + ([("cylinder empty after", mins(fin.minutes_to_empty)),
+            ("lowest oxygen", f"{fin.o2_percent_minimum:.2f} % (when the cylinder is empty)"),
+            ("back above 19.5 % after", "never below it" if fin.minutes_to_recover is None
+             else mins(fin.minutes_to_recover))] if fin is not None else []),
         [h.text for h in hz] + notes + [CAUTION])
     return 0

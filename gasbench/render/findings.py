@@ -103,7 +103,8 @@ TEMPLATES: dict[str, Template] = {
         + (f" and passes 19.5 % after {v['minutes_to_19_5']:.0f} min" if math.isfinite(v["minutes_to_19_5"]) else "")
         + ": duct the exhaust outside or increase ventilation", f"{v['o2_percent']:.1f} % O2 steady"),
     "room-release": lambda f, v, d: (
-        f"if all of {v['supply']} escapes at once the room falls to {v['o2_percent']:.1f} % oxygen ({v['effect']}); "
+        f"if all of {v['supply']}, full, escapes at once the room falls to {v['o2_percent']:.1f} % oxygen "
+        f"({v['effect']}; {v['o2_percent_today']:.1f} % with today's contents); "
         + ("" if v["monitor"] else "fit an oxygen monitor with alarm, ")
         + "keep only the cylinders in use indoors and ventilate",
         f"{v['o2_percent']:.1f} % O2 ({v['model']} model)"),

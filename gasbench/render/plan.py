@@ -22,6 +22,8 @@ def plan_json(a: Assessment, display: Display | None = None) -> dict[str, Any]:
     d = asdict(a.plan)
     for sp_ in d["supplies"]:
         sp_["hours_band_low"], sp_["hours_band_high"] = sp_.pop("hours_band")
+    if d.get("room") is not None and a.plan.room is not None:
+        d["room"]["o2_percent_worst_case"] = a.plan.room.o2_percent_worst_case
     d["findings"] = [finding_dict(f, display) for f in a.findings]
     d["finding_counts"] = counts(a.findings)
     d["last_hold_test"] = None if a.last_hold is None else asdict(a.last_hold) | {"at": a.last_hold.at.isoformat()}
@@ -70,8 +72,10 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
         rm_ = plan.room
         out += ["", "Room",
                 f"  {rm_.volume_m3:g} m³, ventilation {rm_.ventilation_m3_s * 3600:.0f} m³/h ({rm_.ventilation_kind})",
-                f"  all of {rm_.release_supply_id} released: {rm_.release.o2_percent_after_release:.1f} % O2 "
-                f"({rm_.release.method}); well mixed {rm_.release_mixed.o2_percent_after_release:.1f} %"]
+                f"  worst case, all of {rm_.worst_case_supply_id} full released: {rm_.o2_percent_worst_case:.1f} % O2; "
+                f"every supply kept here: {rm_.all_supplies.o2_percent_after_release if rm_.all_supplies else 0:.1f} %",
+                f"  today's contents of {rm_.release_supply_id} released: {rm_.release.o2_percent_after_release:.1f} % "
+                f"O2 ({rm_.release.method}); well mixed {rm_.release_mixed.o2_percent_after_release:.1f} %"]
         if rm_.leak:
             out.append(f"  vented draws {rm_.vented_m3_s * 6e4:.2f} L/min: steady {rm_.leak.o2_percent_steady:.2f} % O2")
         out += [f"  {n}" for n in rm_.notes]

@@ -10,35 +10,18 @@ import datetime as dt
 from collections.abc import Mapping
 from dataclasses import dataclass
 
-from gasbench import gas as g
 from gasbench import room as rm
-from gasbench.errors import GasbenchError, JournalError
+from gasbench.errors import JournalError
 from gasbench.journal import Journal
-from gasbench.profile import Profile, Supply
+from gasbench.profile import Profile
 from gasbench.units import Flow
-from gasbench.workflows.build import build_plan
+from gasbench.workflows.build import build_plan, largest_supply
 from gasbench.workflows.cylinder import journal_profile, record_idle_drops
 from gasbench.workflows.findings import Finding, live_findings, ranked
 from gasbench.workflows.holds import LastHold, hold_finding, last_hold_test
 from gasbench.workflows.model import Observed, Plan
 
 __all__ = ["Assessment", "assess", "findings_of", "journal_state", "largest_supply", "leak_volume_flow"]
-
-
-def largest_supply(prof: Profile) -> Supply:
-    """The supply that holds the most gas when full (real-gas mass at its service pressure and
-    15 °C, or its fill weight for a liquefied gas): the one a room assessment assumes escapes."""
-    amb = prof.ambient_pa
-
-    def full_mass(s: Supply) -> float:
-        if s.gross is not None and s.tare is not None:
-            return s.gross - s.tare
-        try:
-            return g.density(s.gas, 288.15, s.service_pressure.abs_at(amb)) * s.water_volume
-        except GasbenchError:
-            return 0.0
-
-    return max(prof.supplies, key=full_mass)
 
 
 def leak_volume_flow(prof: Profile, flow: Flow) -> float:

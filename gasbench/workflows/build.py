@@ -15,6 +15,7 @@ from gasbench import gas as g
 from gasbench import regulator as rg
 from gasbench import room as rm
 from gasbench import supply as sp
+from gasbench.errors import GasbenchError
 from gasbench.profile import Draw, Profile, Supply
 from gasbench.units import ATM_PA, REFERENCES, T0_K
 from gasbench.workflows import findings as fd
@@ -286,7 +287,30 @@ def _room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
     rel = rm.release(room.volume, vg, "displacement", room.oxygen_percent)
     rel_mixed = rm.release(room.volume, vg, "mixed", room.oxygen_percent)
     notes.append(rm.stratification_note(gas))
-    return RoomPlan(room.volume, Q, room.ventilation_kind, vented, leak, biggest.id, rel, rel_mixed, tuple(notes))
+    # the safety case: the largest supply full, released at once; and every supply kept in the room
+    full = {s.id: full_mass(prof, s) for s in prof.supplies}
+    largest = largest_supply(prof)
+    v_full = {sid: m / g.density(by_id[sid].gas, T, amb) for sid, m in full.items() if m > 0}
+    worst = rm.release(room.volume, v_full.get(largest.id, vg), "displacement", room.oxygen_percent)
+    every = rm.release(room.volume, sum(v_full.values()) or vg, "displacement", room.oxygen_percent)
+    return RoomPlan(room.volume, Q, room.ventilation_kind, vented, leak, biggest.id, rel, rel_mixed, tuple(notes),
+                    worst, largest.id, every)
+
+
+def full_mass(prof: Profile, s: Supply) -> float:
+    """Mass [kg] of a supply when full: its fill weight (gross − tare) for a gas weighed in, else
+    the real-gas mass at its service pressure and 15 °C (the rating temperature)."""
+    if s.gross is not None and s.tare is not None:
+        return s.gross - s.tare
+    try:
+        return g.density(s.gas, 288.15, s.service_pressure.abs_at(prof.ambient_pa)) * s.water_volume
+    except GasbenchError:
+        return 0.0
+
+
+def largest_supply(prof: Profile) -> Supply:
+    """The supply that holds the most gas when full: the one a room assessment assumes escapes."""
+    return max(prof.supplies, key=lambda s: full_mass(prof, s))
 
 
 # ----------------------------------------------------------------------------- observed draw

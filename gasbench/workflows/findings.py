@@ -186,18 +186,20 @@ def _room_findings(prof: Profile, room: RoomPlan | None) -> list[Finding]:
         out.append(Finding("room-vented", sev, "room", {
             "o2_percent": lk.o2_percent_steady, "minutes_to_19_5": lk.minutes_to_19_5,
             "vented_m3_s": room.vented_m3_s}))
-    rel = room.release
+    # judged on the safety case: the largest supply full, released at once
+    rel = room.worst_case or room.release
+    sid = room.worst_case_supply_id or room.release_supply_id
     c = rel.o2_percent_after_release
     if c < rm.OSHA_DEFICIENT:
         sev2: Severity = "stop" if c < rm.EIGA_HAZARD and not prof.room.oxygen_monitor else "warning"
         out.append(Finding("room-release", sev2, "room", {
-            "supply": room.release_supply_id, "o2_percent": c, "effect": rel.effect,
-            "monitor": prof.room.oxygen_monitor, "model": rel.model}))
-    gas = prof.supply(room.release_supply_id).gas
-    for hz in rm.gas_hazards(gas, c, room.release.c0_percent):
-        out.append(Finding(f"room-{hz.kind}", "warning" if hz.kind == "toxic" else "stop", "room", {
-            "supply": room.release_supply_id, "percent": hz.percent, "limit_percent": hz.limit_percent,
-            "detail": hz.text}))
+            "supply": sid, "o2_percent": c, "effect": rel.effect, "monitor": prof.room.oxygen_monitor,
+            "model": rel.model, "o2_percent_today": room.release.o2_percent_after_release}))
+    gas = prof.supply(sid).gas
+    for hz in rm.gas_hazards(gas, c, rel.c0_percent):
+        # a toxic gas at harmful concentration is as serious as the oxygen figure would be
+        out.append(Finding(f"room-{hz.kind}", "stop", "room", {
+            "supply": sid, "percent": hz.percent, "limit_percent": hz.limit_percent, "detail": hz.text}))
     return out
 
 

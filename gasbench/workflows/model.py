@@ -112,9 +112,19 @@ class RoomPlan:
     vented_m3_s: float
     leak: rm.Leak | None
     release_supply_id: str
+    #: today's contents of the largest supply released at once
     release: rm.Release
     release_mixed: rm.Release
     notes: tuple[str, ...]
+    #: the safety case: the largest supply full (service pressure at 15 °C, or its fill weight)
+    worst_case: rm.Release | None = None
+    worst_case_supply_id: str = ""
+    #: every supply kept in the room, full, released together
+    all_supplies: rm.Release | None = None
+
+    @property
+    def o2_percent_worst_case(self) -> float:
+        return (self.worst_case or self.release).o2_percent_after_release
 
 
 @dataclass(frozen=True)
