@@ -604,6 +604,23 @@ def parse_amount(text: str, what: str = "amount") -> Amount:
         raise InputError(f"{what} {_short(str(text))!r} is neither a mass (\"11 kg\") nor a volume (\"9 m3\")") from None
 
 
+def parse_fraction(text: str, what: str = "fraction") -> float:
+    """A concentration as a mole fraction: ``"10 ppm"``, ``"50 ppb"``, ``"0.5 %"``, or a plain
+    fraction ``"0.001"``.
+
+    >>> parse_fraction("10 ppm"), parse_fraction("0.5 %"), parse_fraction("0.2095")
+    (1e-05, 0.005, 0.2095)
+    """
+    value, unit = _split(text, what)
+    factor = {"": 1.0, "%": 1e-2, "ppm": 1e-6, "ppb": 1e-9, "ppmv": 1e-6, "ppbv": 1e-9}.get(unit.strip().lower())
+    if factor is None:
+        raise InputError(f"{what} {_short(text)!r}: use ppm, ppb, % or a plain fraction, e.g. '10 ppm'")
+    x = value * factor
+    if not 0 <= x <= 1:
+        raise InputError(f"{what} {_short(text)!r} is not between 0 and 100 %")
+    return x
+
+
 # --------------------------------------------------------------------------------------
 # formatting
 

@@ -26,6 +26,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "orifice": ("plan", "flow through a bleed orifice or needle valve bore"),
     "hold": ("hold", "leak rate from an idle pressure drop (hold test)"),
     "room": ("room", "room oxygen after a release or during a leak"),
+    "purge": ("purge", "pressure-cycle purge and flush of a line or channel after a cylinder change"),
     "checklist": ("checklist", "pre-session checklist filled with this bench's figures"),
     "sessions": ("journal", "list the sessions in the journal"),
     "export": ("journal", "write one session's readings out"),
