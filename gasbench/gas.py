@@ -110,7 +110,10 @@ PURE_GASES: dict[str, PureGas] = {
                          sources=("TWA 1000 ppm: OSHA 29 CFR 1910.1000 Table Z-1",
                                   "filling ratio 1.04 kg/L: ADR packing instruction P200 (from memory)",
                                   "liquefied below its critical temperature 45.6 °C (Guder & Wagner 2009)"),
-                         notes="arc by-products (S2F10, SOF2, HF) are toxic: handle used gas as hazardous")),
+                         notes="SF6 that has been through a discharge or an arc contains toxic breakdown products "
+                               "(sulfur fluorides such as S2F10 and SOF2, and HF): vent used gas outside, never "
+                               "into the room; open gaps only ventilated, with gloves and eye protection, and "
+                               "wipe the powdery deposits as the supplier's safety data sheet says")),
     ]
 }
 

@@ -7,6 +7,7 @@ the line and the key. Every model forbids unknown keys. See ``docs/profile.md``.
 
 from __future__ import annotations
 
+import datetime as dt
 import math
 import re
 import tomllib
@@ -156,6 +157,13 @@ class Supply(_Model):
     currency: str = Field(default="EUR", max_length=8)
     gauge: Gauge | None = None
     """The gauge this supply is read with (for uncertainty bands)."""
+    lead_time: DurationQ | None = None
+    """How long the supplier takes to deliver a new cylinder, e.g. "10 d" (for the order-by date)."""
+    spares: int = Field(default=0, ge=0, le=100)
+    """Full spare cylinders of this gas on hand."""
+    retest_due: dt.date | None = None
+    """Periodic-inspection (retest) due date of the cylinder in use (the interval is the maker's or
+    the local rule)."""
 
     @model_validator(mode="after")
     def _check(self) -> Supply:
@@ -184,6 +192,8 @@ class Regulator(_Model):
     """Top of the outlet range (the outlet gauge/spring range)."""
     set_point: PressureQ
     """Outlet pressure as set at the supply's current reading."""
+    service_due: dt.date | None = None
+    """When the regulator is due for service (the maker's interval or the lab's rule)."""
     supply_pressure_effect: list[float] | float = 0.01
     """Outlet rise per unit inlet fall, per stage (e.g. 0.01 = 1 %). Two stages: a list of two."""
     relief_setting: PressureQ | None = None

@@ -125,3 +125,51 @@ def test_purge_command_json(capsys):
     code, out, err = run(capsys, "purge", "--gas", "nitrogen", "--volume", "0.8 L", "--high", "4 bar", "--low",
                          "0 bar", "--target", "10 furlongs")
     assert code == 2 and "ppm" in err
+
+
+def test_order_by_date_from_a_synthetic_journal(tmp_path, capsys):
+    # Readings losing exactly 1.0 kg of nitrogen a week (real-gas mass, CoolProp) for three weeks;
+    # 10 days' lead time, no spares: order-by = now + (usable / (1 kg/week) in days) − 10 days.
+    import datetime as dt
+
+    from gasbench.journal import Journal
+    from gasbench.workflows.cylinder import consumption
+
+    text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text().replace(
+        'currency = "EUR"', 'currency = "EUR"\nlead_time = "10 d"')
+    prof_path = tmp_path / "b.toml"
+    prof_path.write_text(text)
+    prof = load_profile(prof_path)
+    s = prof.supplies[0]
+    amb, T = prof.ambient_pa, 294.15
+    now = dt.datetime.now().astimezone().replace(microsecond=0)
+    m0 = g.density(N2, T, 150e5) * s.water_volume
+    jpath = tmp_path / "j.sqlite3"
+    with Journal(jpath) as j:
+        for week in range(4):
+            m = m0 - 1.0 * week
+            p = g.pressure_from_density(N2, m / s.water_volume, T)
+            at = (now - dt.timedelta(days=7 * (3 - week))).isoformat(timespec="seconds")
+            j.add_reading(None, s.id, at, p, "x", T, at, bench=prof.bench.name, ambient_pa=amb)
+        c = consumption(j, prof, s.id)
+    assert c is not None and c.kg_per_week == pytest.approx(1.0, rel=1e-6) and c.spread_kg_per_week < 1e-6
+    code, out, err = run(capsys, "status", str(prof_path), "--journal", str(jpath), "--json")
+    st = json.loads(out)["supplies"][0]
+    days = st["usable_mass_kg"] / (1.0 / 7.0)
+    expected = (now + dt.timedelta(days=days - 10)).date().isoformat()
+    assert st["consumption_kg_per_week"] == pytest.approx(1.0, rel=1e-6)
+    assert st["order_by"] == expected
+
+
+def test_retest_and_service_dates_are_findings(tmp_path):
+    import datetime as dt
+
+    from gasbench.profile import parse_profile
+
+    text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
+    past = (dt.date.today() - dt.timedelta(days=3)).isoformat()
+    text = text.replace('currency = "EUR"', f'currency = "EUR"\nretest_due = {past}')
+    text = text.replace('id = "reg-gaps"', f'id = "reg-gaps"\nservice_due = {past}')
+    a = assess(parse_profile(text, "b.toml"))
+    codes = {(f.code, f.severity) for f in a.findings}
+    assert ("retest-overdue", "warning") in codes and ("service-overdue", "warning") in codes

@@ -165,6 +165,15 @@ def cmd_strike(args: argparse.Namespace) -> int:
     return 0
 
 
+def _order_date(o: cy.OrderBy | None) -> str | None:
+    return o.order_by.date().isoformat() if o is not None and o.order_by is not None else None
+
+
+def _cons(j: Journal | None, prof: Profile, sid: str) -> float | None:
+    c = cy.consumption(j, prof, sid)
+    return c.kg_per_week if c is not None else None
+
+
 def _seconds(hours: float) -> float | None:
     return hours * 3600.0 if math.isfinite(hours) else None
 
@@ -199,6 +208,9 @@ def cmd_status(args: argparse.Namespace) -> int:
                 "leak_rate_sccm": ht.leak_rate_sccm if ht else None,
                 "leak_rate_uncertainty_sccm": ht.leak_rate_uncertainty_sccm if ht else None,
                 "hold_test_at": ht.at if ht else None, "hold_test_kind": ht.kind if ht else None,
+                "order_by": _order_date(a.orders.get(sp.id)),
+                "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,
+                "consumption_kg_per_week": _cons(j, prof, sp.id),
             }))
     finally:
         if j is not None:
@@ -222,6 +234,8 @@ def cmd_status(args: argparse.Namespace) -> int:
         if s["leak_verdict"]:
             rows.append(("last hold test", f"{s['leak_verdict']}, {s['leak_rate_sccm']:.3g} ± "
                                            f"{s['leak_rate_uncertainty_sccm']:.2g} sccm ({s['hold_test_kind'] or 'manual'})"))
+        if s["order_by"]:
+            rows.append(("order by", f"{s['order_by']} ({s['consumption_kg_per_week']:.3g} kg/week recorded)"))
         if s["cylinder_label"] or s["retest_due"]:
             rows.append(("cylinder", f"{s['cylinder_label'] or ''} retest due {s['retest_due'] or '—'}".strip()))
         emit_table(f"  {s['id']}", rows)

@@ -118,6 +118,23 @@ TEMPLATES: dict[str, Template] = {
         f"{f.subject} reaches its reserve at {_clock(v['reserve_at'])}, before the session's planned end "
         f"{_clock(v['session_end'])}: swap the cylinder or stop early", f"reserve at {_clock(v['reserve_at'])}"),
     "no-hold-test": lambda f, v, d: ("no hold test recorded for this bench: run one", "none"),
+    "retest-overdue": lambda f, v, d: (
+        f"the cylinder on {f.subject} is past its periodic-inspection (retest) date: do not use or refill it; "
+        "return it to the supplier (the interval is the maker's or the local rule)", f"due {v['due']}"),
+    "retest-due-soon": lambda f, v, d: (
+        f"the cylinder on {f.subject} is due for its periodic inspection (retest) in {v['days']:.0f} days",
+        f"due {v['due']}"),
+    "service-overdue": lambda f, v, d: (
+        f"{f.subject} is past its service date: have it serviced before relying on its outlet and relief",
+        f"due {v['due']}"),
+    "service-due-soon": lambda f, v, d: (
+        f"{f.subject} is due for service in {v['days']:.0f} days", f"due {v['due']}"),
+    "order-now": lambda f, v, d: (
+        f"order the next {f.subject} cylinder now: at the recorded consumption the gas and spares last "
+        f"{v['days_of_gas']:.0f} days, less than the supplier's lead time", f"order by {v['order_by']}"),
+    "order-soon": lambda f, v, d: (
+        f"order the next {f.subject} cylinder soon (gas and spares for {v['days_of_gas']:.0f} days at the recorded "
+        "consumption, less the lead time)", f"order by {v['order_by']}"),
     "hold-test-leak": lambda f, v, d: (
         "the last hold test found a leak: find and fix it first", _hold_figure(v)),
     "idle-drop-leak": lambda f, v, d: (

@@ -8,16 +8,23 @@ from __future__ import annotations
 
 import datetime as dt
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
+from gasbench import gas as g
 from gasbench import room as rm
-from gasbench.errors import JournalError
+from gasbench.errors import GasbenchError, JournalError
 from gasbench.journal import Journal
 from gasbench.profile import Profile
 from gasbench.units import Flow
-from gasbench.workflows.build import build_plan, largest_supply
-from gasbench.workflows.cylinder import journal_profile, record_idle_drops
-from gasbench.workflows.findings import Finding, live_findings, ranked
+from gasbench.workflows.build import build_plan, full_mass, largest_supply
+from gasbench.workflows.cylinder import (
+    OrderBy,
+    consumption,
+    journal_profile,
+    order_by,
+    record_idle_drops,
+)
+from gasbench.workflows.findings import Finding, life_findings, live_findings, ranked
 from gasbench.workflows.holds import LastHold, hold_finding, last_hold_test
 from gasbench.workflows.model import Observed, Plan
 
@@ -36,6 +43,7 @@ class Assessment:
     plan: Plan
     last_hold: LastHold | None
     findings: tuple[Finding, ...]
+    orders: Mapping[str, OrderBy] = field(default_factory=dict)
 
 
 def findings_of(plan: Plan, last_hold: LastHold | None, observed: Mapping[str, Observed] | None = None,
@@ -58,7 +66,24 @@ def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | Non
     prof = journal_state(prof, journal, now)
     plan = build_plan(prof, now=now, extra_leak_m3_s=extra_leak_m3_s, start_at=start_at)
     last = last_hold_test(journal, prof.bench.name, now)
-    return Assessment(plan, last, findings_of(plan, last, observed, session_end, running))
+    orders = orders_of(prof, plan, journal, now)
+    extra = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
+    return Assessment(plan, last, tuple(ranked(list(findings_of(plan, last, observed, session_end, running))
+                                               + extra)), orders)
+
+
+def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.datetime) -> dict[str, OrderBy]:
+    """For every supply: the journal's consumption and the date to order the next cylinder."""
+    out: dict[str, OrderBy] = {}
+    for sp in plan.supplies:
+        s = prof.supply(sp.id)
+        try:
+            reserve_kg = g.density(s.gas, sp.temperature_k, sp.reserve_abs_pa) * s.water_volume
+        except GasbenchError:
+            reserve_kg = 0.0
+        full_usable = max(0.0, full_mass(prof, s) - reserve_kg)
+        out[sp.id] = order_by(prof, sp.usable_mass_kg, consumption(journal, prof, sp.id), sp.id, now, full_usable)
+    return out
 
 
 def journal_state(prof: Profile, journal: Journal | None, now: dt.datetime) -> Profile:

@@ -29,7 +29,7 @@ from gasbench.profile import Profile, Supply, with_reading, with_weight
 from gasbench.units import PSI_PA, Pressure, check_text
 from gasbench.workflows.holds import HoldRecord, profile_gauge_spec, record_of, store
 
-__all__ = ["Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
+__all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
            "record_reading", "record_change", "IdleDrop", "idle_drops", "record_idle_drops", "parse_at"]
 
 #: Temperatures a cylinder reading may carry [K] (−73 °C to 77 °C): beyond, the unit slipped.
@@ -305,3 +305,80 @@ def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) 
             store(journal, rec, {"idle_drop": drop.key})
             new.append(rec)
     return new
+
+
+# ----------------------------------------------------------------------------- ordering
+
+
+@dataclass(frozen=True)
+class Consumption:
+    """A supply's consumption from the journal: real-gas mass per week, with its spread."""
+
+    supply_id: str
+    kg_per_week: float
+    spread_kg_per_week: float
+    intervals: int
+    days_covered: float
+
+
+def _mass_of(prof: Profile, s: Supply, r: ReadingRow) -> float | None:
+    if r.weight_kg is not None and s.tare is not None:
+        return r.weight_kg - s.tare
+    if r.pressure_abs_pa is None:
+        return None
+    try:
+        return g.density(s.gas, r.temperature_k, r.pressure_abs_pa) * s.water_volume
+    except Exception:  # noqa: BLE001 - outside the equation of state: the reading is skipped
+        return None
+
+
+def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consumption | None:
+    """Consumption per week from every pair of consecutive readings on the same cylinder (no
+    change between them, none struck): mass used over the time between, weighted by time; the
+    spread is the time-weighted standard deviation of the interval rates. None without at
+    least one interval."""
+    if journal is None:
+        return None
+    s = prof.supply(supply_id)
+    rows = [r for r in journal.supply_readings(prof.bench.name, supply_id) if not r.struck]
+    changes = [_dt(c.at) for c in journal.changes(prof.bench.name, supply_id)]
+    rates: list[tuple[float, float]] = []  # (kg/s, seconds)
+    for a, b in zip(rows, rows[1:], strict=False):
+        ta, tb = _dt(a.at), _dt(b.at)
+        if tb <= ta or any(ta < c <= tb for c in changes):
+            continue
+        ma, mb = _mass_of(prof, s, a), _mass_of(prof, s, b)
+        if ma is None or mb is None or mb > ma:
+            continue
+        dt_s = (tb - ta).total_seconds()
+        rates.append(((ma - mb) / dt_s, dt_s))
+    if not rates:
+        return None
+    total = sum(w for _, w in rates)
+    mean = sum(r * w for r, w in rates) / total
+    var = sum(w * (r - mean) ** 2 for r, w in rates) / total
+    week = 7 * 86400.0
+    return Consumption(supply_id, mean * week, math.sqrt(var) * week, len(rates), total / 86400.0)
+
+
+@dataclass(frozen=True)
+class OrderBy:
+    supply_id: str
+    order_by: dt.datetime | None  # None: no consumption recorded yet
+    days_of_gas: float
+    lead_time_days: float
+    spares: int
+
+
+def order_by(prof: Profile, plan_usable_kg: float, cons: Consumption | None, supply_id: str,
+             now: dt.datetime, full_usable_kg: float) -> OrderBy:
+    """The date by which to order the next cylinder so the bench never waits: the gas left
+    above the reserve plus the spares on hand, at the journal's consumption, less the
+    supplier's lead time."""
+    s = prof.supply(supply_id)
+    lead_days = (s.lead_time or 0.0) / 86400.0
+    if cons is None or cons.kg_per_week <= 0:
+        return OrderBy(supply_id, None, math.inf, lead_days, s.spares)
+    days = (plan_usable_kg + s.spares * full_usable_kg) / (cons.kg_per_week / 7.0)
+    days = min(days, 3650.0)
+    return OrderBy(supply_id, now + dt.timedelta(days=days - lead_days), days, lead_days, s.spares)

@@ -203,6 +203,49 @@ def _room_findings(prof: Profile, room: RoomPlan | None) -> list[Finding]:
     return out
 
 
+# ----------------------------------------------------------------------------- the cylinder's life
+
+
+#: Warn this many days ahead of a retest, a service or an order-by date (gasbench rule).
+DUE_SOON_DAYS = 30.0
+ORDER_SOON_DAYS = 7.0
+
+
+def life_findings(prof: Profile, today: dt.date, orders: Mapping[str, tuple[dt.datetime | None, float]]) -> list[Finding]:
+    """Retest and service dates (the intervals are the maker's or the local rule: the profile
+    holds the due dates), and when to order the next cylinder. ``orders`` maps a supply to
+    (order-by time, days of gas left)."""
+    out: list[Finding] = []
+    for s in prof.supplies:
+        if s.retest_due is not None:
+            days = (s.retest_due - today).days
+            if days < 0:
+                out.append(Finding("retest-overdue", "warning", s.id, {"due": s.retest_due.isoformat(),
+                                                                          "days": float(days)}))
+            elif days <= DUE_SOON_DAYS:
+                out.append(Finding("retest-due-soon", "attention", s.id, {"due": s.retest_due.isoformat(),
+                                                                             "days": float(days)}))
+        at, days_left = orders.get(s.id, (None, math.inf))
+        if at is not None:
+            ahead = (at.date() - today).days
+            if ahead <= 0:
+                out.append(Finding("order-now", "warning", s.id, {"order_by": at.date().isoformat(),
+                                                                   "days_of_gas": days_left}))
+            elif ahead <= ORDER_SOON_DAYS:
+                out.append(Finding("order-soon", "attention", s.id, {"order_by": at.date().isoformat(),
+                                                                      "days_of_gas": days_left}))
+    for r in prof.regulators:
+        if r.service_due is not None:
+            days = (r.service_due - today).days
+            if days < 0:
+                out.append(Finding("service-overdue", "warning", r.id, {"due": r.service_due.isoformat(),
+                                                                           "days": float(days)}))
+            elif days <= DUE_SOON_DAYS:
+                out.append(Finding("service-due-soon", "attention", r.id, {"due": r.service_due.isoformat(),
+                                                                              "days": float(days)}))
+    return out
+
+
 # ----------------------------------------------------------------------------- during a session
 
 
