@@ -218,3 +218,16 @@ async def test_checklist_export_never_overwrites(jpath, tmp_path, monkeypatch):
             await _ready(app, pilot)
     pdfs = sorted(tmp_path.glob("checklist-*.pdf"))
     assert len(pdfs) == 2 and pdfs[0].name.count("-") >= 4  # names carry seconds: ...-YYYYmmdd-HHMMSS
+
+
+async def test_purge_screen_plans_cycles(jpath):
+    app = make_app(None, jpath, clock=Clock())
+    async with app.run_test(size=(100, 32)) as pilot:
+        await _ready(app, pilot)
+        await pilot.press("p")
+        await pilot.pause()
+        assert type(app.screen).__name__ == "PurgeScreen"
+        await pilot.press(*"0.8 L")  # focus is in the volume field
+        await pilot.press("enter")
+        await pilot.pause()
+        assert "7 cycles" in str(app.screen.query_one("#purge-result").render())

@@ -32,6 +32,7 @@ class OverviewScreen(Screen[None]):
         Binding("o", "oxygen", "O2"),
         Binding("k", "checklist", "Checklist"),
         Binding("n", "change", "New cylinder"),
+        Binding("p", "purge", "Purge"),
         Binding("h", "history", "History"),
         Binding("l", "reload", "Reload"),
         Binding("u", "units", "Units"),
@@ -329,8 +330,15 @@ class OverviewScreen(Screen[None]):
             return
         self.load_plan()
         self.app.push_screen(ConfirmScreen(f"New cylinder on {reading.supply_id} recorded. Check the new "
-                                           "connection for leaks now with a hold test?"),
+                                           "connection for leaks now with a hold test? (Then purge the line "
+                                           "of air with p.)"),
                              lambda yes: self.action_hold() if yes else None)
+
+    def action_purge(self) -> None:
+        from gasbench.tui.screens.tools import PurgeScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(PurgeScreen(self.state))
 
     def action_history(self) -> None:
         from gasbench.tui.screens.tools import HistoryScreen

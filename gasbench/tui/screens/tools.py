@@ -238,8 +238,15 @@ class RoomScreen(_Tool):
                                                                 "ventilation."))
             return
         sealed = rm.release(r.volume_m3, r.release.release_volume_m3, "sealed", r.release.c0_percent)
+        worst = r.worst_case or r.release
         lines = [f"Room {r.volume_m3:g} m³, ventilation {r.ventilation_m3_s * 3600:.0f} m³/h ({r.ventilation_kind})",
-                 f"All of {r.release_supply_id} released ({r.release.release_volume_m3:.2f} m³ at room conditions):",
+                 f"WORST CASE (the safety case): all of {r.worst_case_supply_id or r.release_supply_id}, full, released "
+                 f"at once: {worst.o2_percent_after_release:.2f} % O2, {worst.gas_percent_after_release:.2f} % of the "
+                 f"gas — {worst.effect or 'stays above 19.5 %'}",
+                 f"Every supply kept in the room, full: "
+                 f"{(r.all_supplies or worst).o2_percent_after_release:.2f} % O2",
+                 f"Today's contents of {r.release_supply_id} released ({r.release.release_volume_m3:.2f} m³ at room "
+                 "conditions):",
                  f"  {r.release.o2_percent_after_release:5.2f} % O2  {r.release.method}",
                  f"  {r.release_mixed.o2_percent_after_release:5.2f} % O2  {r.release_mixed.method}",
                  f"  {sealed.o2_percent_after_release:5.2f} % O2  {sealed.method}",
@@ -446,3 +453,64 @@ class HistoryScreen(_Tool):
         event.input.display = False
         self.fill()
         t.focus()
+
+
+# ----------------------------------------------------------------------------- purge
+
+
+class PurgeScreen(_Tool):
+    """Purge a line or channel after a cylinder change: pressure cycles and a flush."""
+
+    def compose(self) -> ComposeResult:
+        st = self.state
+        assert st.profile is not None
+        yield Header()
+        with VerticalScroll():
+            yield Label("Supply whose gas purges (its regulator, line and channel)")
+            yield Select([(s.id, s.id) for s in st.profile.supplies], value=st.profile.supplies[0].id,
+                         allow_blank=False, id="purge-supply")
+            with Horizontal(classes="row"):
+                yield Input(placeholder="volume, e.g. 0.8 L", id="purge-volume")
+                yield Input(value="4 bar", id="purge-high")
+                yield Input(value="0 bar", id="purge-low")
+            with Horizontal(classes="row"):
+                yield Input(value="10 ppm", id="purge-target")
+                yield Input(placeholder="flush flow, e.g. 1 slpm (optional)", id="purge-flow")
+            yield Static("", id="purge-result")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self.query_one("#purge-volume", Input).focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        from gasbench import purge as pg
+        from gasbench import supply as sp
+        from gasbench.render.display import profile_display
+        from gasbench.units import parse_flow, parse_fraction, parse_volume, pressure_abs
+
+        st = self.state
+        assert st.profile is not None
+        val = lambda i: self.query_one(f"#{i}", Input).value.strip()  # noqa: E731
+        out = self.query_one("#purge-result", Static)
+        s = st.profile.supply(str(self.query_one("#purge-supply", Select).value))
+        amb, T = st.profile.ambient_pa, st.profile.ambient.temperature
+        d = profile_display(st.profile)
+        try:
+            V = parse_volume(val("purge-volume"), "purged volume")
+            hi, lo = pressure_abs(val("purge-high"), amb, "fill pressure"), pressure_abs(val("purge-low"), amb,
+                                                                                        "vent pressure")
+            target = parse_fraction(val("purge-target"), "target oxygen")
+            c = pg.cycle_purge(s.gas, V, hi, lo, T, pg.O2_IN_AIR, target)
+            lines = [f"{c.cycles} cycles: fill to {d.gauge(hi)}, vent to {d.gauge(lo)}; "
+                     f"{c.gas_standard_litres:.3g} standard L of gas",
+                     "oxygen after each: " + ", ".join(f"{x * 1e6:.3g} ppm" for x in c.fractions)]
+            if val("purge-flow"):
+                f = pg.flush(s.gas, V, sp.mass_flow(s.gas, parse_flow(val("purge-flow"), what="flush flow"), T, amb),
+                             amb, T, pg.O2_IN_AIR, target)
+                lines.append(f"or flush: {fmt_hours(f.time_s / 3600)} well mixed, at least "
+                             f"{fmt_hours(f.plug_flow_time_s / 3600)}; {f.gas_standard_litres:.3g} standard L")
+            lines.append("Vent purge gas outside or into extraction; measure the oxygen where it matters.")
+        except GasbenchError as exc:
+            out.update(Text(f"✖ {exc}"))
+            return
+        out.update(Text("\n".join(lines)))
