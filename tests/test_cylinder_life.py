@@ -158,3 +158,21 @@ def test_a_profile_at_or_below_its_reserve_opens_and_plans(tmp_path, capsys):
     assert code == 0, err
     d = json.loads(out)
     assert any(f["code"] == "at-or-below-reserve" for f in d["findings"])
+
+
+def test_export_reads_back_exactly_what_was_typed_at_altitude(capsys, journal, tmp_path):
+    # regression: export converted stored absolute pressures back with 101 325 Pa although they
+    # were stored with the profile's ambient (0.9989 bar at 120 m, ISO 2533): 146 bar came back
+    # as 145.986 bar(g)
+    import csv
+    import io
+
+    with Journal(journal) as j:
+        sid = j.start_session("Demo: Larkfield teaching lab, bench 2 (N2 laser)", DEMO,
+                              dt.datetime.now().astimezone().isoformat(timespec="seconds"))
+    for p in ("146 bar", "145.5 bar"):
+        assert run(capsys, "reading", DEMO, "n2-A", "--pressure", p, "--journal", journal)[0] == 0
+    code, out, _ = run(capsys, "export", str(sid), "--journal", journal)
+    rows = list(csv.DictReader(io.StringIO(out)))
+    assert [float(r["pressure_gauge_pa"]) / 1e5 for r in rows] == [146.0, 145.5]
+    assert [r["typed"] for r in rows] == ["146 bar", "145.5 bar"]

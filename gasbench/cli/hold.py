@@ -25,6 +25,7 @@ from gasbench.cli.common import (
 )
 from gasbench.errors import JournalError
 from gasbench.render.display import Display
+from gasbench.render.numbers import fmt_uncertain
 from gasbench.units import (
     parse_duration,
     parse_flow,
@@ -152,8 +153,9 @@ def _rows(gas_name: str, V: float, r: hd.HoldResult, fit: hd.LogFit | None, d: D
             ("start", f"{d.both(r.start_abs_pa)} at {d.temperature(r.start_temperature_k)}"),
             ("end", f"{d.both(r.end_abs_pa)} at {d.temperature(r.end_temperature_k)}"),
             ("hold", d.hours(r.duration_s / 3600)),
-            ("mass loss", f"{r.mass_loss_kg * 1000:.3f} ± {r.mass_loss_uncertainty_kg * 1000:.3f} g (1σ)"),
-            ("leak rate", f"{r.leak_rate_sccm:.4g} ± {r.leak_rate_uncertainty_sccm:.3g} sccm (0 °C, 101.325 kPa; 1σ)"),
+            ("mass loss", fmt_uncertain(r.mass_loss_kg * 1000, r.mass_loss_uncertainty_kg * 1000, "g") + " (1σ)"),
+            ("leak rate", fmt_uncertain(r.leak_rate_sccm, r.leak_rate_uncertainty_sccm, "sccm")
+             + " (0 °C, 101.325 kPa; 1σ)"),
             ("", f"{r.leak_rate_pa_m3_s:.3g} Pa·m³/s = {r.leak_rate_mbar_l_s:.3g} mbar·L/s"),
             ("", f"{r.kg_per_day * 1000:.3g} g/day = {r.percent_per_day:.3g} % of contents/day = "
                  f"{d.difference(r.pressure_fall_per_day_pa)}/day at constant temperature"),
@@ -163,8 +165,9 @@ def _rows(gas_name: str, V: float, r: hd.HoldResult, fit: hd.LogFit | None, d: D
     if r.hours_to_reserve is not None:
         rows.append(("to reserve at this rate", d.hours(r.hours_to_reserve)))
     if fit is not None:
-        rows.append(("log fit", f"{fit.n} rows; residual rms {d.difference(fit.residual_rms_pa)}, "
-                                f"max {fit.residual_max_kg * 1000:.3g} g"))
+        rows.append(("log fit", f"{fit.n} rows; residual rms {d.difference(fit.residual_rms_pa)} "
+                                f"(max {d.difference(fit.residual_max_kg * fit.residual_rms_pa / fit.residual_rms_kg)})"
+                                if fit.residual_rms_kg > 0 else f"{fit.n} rows; no residual"))
     rows.append(("method", r.method))
     return rows
 

@@ -12,6 +12,7 @@ from collections.abc import Callable
 from typing import Any
 
 from gasbench.render.display import Display
+from gasbench.render.numbers import fmt_uncertain, fmt_value
 from gasbench.workflows.findings import Finding
 
 __all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "TEMPLATES", "describe", "finding_dict"]
@@ -112,8 +113,8 @@ TEMPLATES: dict[str, Template] = {
     "room-flammable": lambda f, v, d: (f"if all of {v['supply']} escapes: {v['detail']}", f"{v['percent']:.2f} %"),
     "faster-than-planned": lambda f, v, d: (
         f"{f.subject} empties faster than planned: check for leaks or a flow set too high",
-        f"observed {v['observed_kg_s'] * 6e4:.3g} ± {v['uncertainty_kg_s'] * 6e4:.2g} g/min vs planned "
-        f"{v['planned_kg_s'] * 6e4:.3g} g/min"),
+        f"observed {fmt_uncertain(v['observed_kg_s'] * 6e4, v['uncertainty_kg_s'] * 6e4, 'g/min')} vs planned "
+        f"{fmt_value(v['planned_kg_s'] * 6e4)} g/min"),
     "reserve-before-end-live": lambda f, v, d: (
         f"{f.subject} reaches its reserve at {_clock(v['reserve_at'])}, before the session's planned end "
         f"{_clock(v['session_end'])}: swap the cylinder or stop early", f"reserve at {_clock(v['reserve_at'])}"),
@@ -149,8 +150,20 @@ TEMPLATES: dict[str, Template] = {
 
 
 def _hold_figure(v: Any) -> str:
-    return (f"{v['verdict']}, {_num(v['leak_rate_sccm'])} ± {_num(v['leak_rate_uncertainty_sccm'], '.2g')} sccm, "
-            f"{_num(v['age_days'], '.1f')} days ago")
+    return (f"{v['verdict']}, {fmt_uncertain(v['leak_rate_sccm'], v['leak_rate_uncertainty_sccm'], 'sccm')}, "
+            f"{_ago(v['age_days'])}")
+
+
+def _ago(days: float) -> str:
+    """How long ago, in the largest sensible unit."""
+    if not isinstance(days, (int, float)) or not math.isfinite(days):
+        return "—"
+    hours = days * 24
+    if hours < 1:
+        return f"{max(0, round(hours * 60))} min ago"
+    if hours < 48:
+        return f"{round(hours)} h ago"
+    return f"{round(days)} days ago"
 
 
 def describe(f: Finding, display: Display | None = None) -> tuple[str, str]:

@@ -17,6 +17,7 @@ from textual.widgets import DataTable, Footer, Header, Static
 from gasbench.errors import GasbenchError, JournalError
 from gasbench.render.display import Display, profile_display
 from gasbench.render.findings import question_text
+from gasbench.render.numbers import fmt_uncertain, fmt_value
 from gasbench.tui.widgets import FindingsPanel, bar
 from gasbench.units import fmt_hours
 from gasbench.workflows.findings import Finding
@@ -187,8 +188,8 @@ class OverviewScreen(Screen[None]):
                 if st.running:
                     parts.append(f"{s.id}: {n} reading(s); two give the observed draw")
                 continue
-            parts.append(f"{s.id}: observed {ob.draw_kg_s * 6e4:.3g} ± {ob.draw_uncertainty_kg_s * 6e4:.2g} g/min "
-                         f"vs planned {s.draw_kg_s * 6e4:.3g} g/min"
+            parts.append(f"{s.id}: observed {fmt_uncertain(ob.draw_kg_s * 6e4, ob.draw_uncertainty_kg_s * 6e4, 'g/min')}"
+                         f" vs planned {fmt_value(s.draw_kg_s * 6e4)} g/min"
                          + ("  ▲ faster than planned" if ob.faster_than_planned else ""))
         self.query_one("#observed", Static).update(Text("\n".join(parts)))
 

@@ -17,6 +17,7 @@ from textual.widgets import Button, Footer, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
 from gasbench.errors import GasbenchError, InputError, JournalError
+from gasbench.render.numbers import fmt_uncertain
 from gasbench.units import fmt_hours, fmt_pressure
 from gasbench.workflows.session import SessionState
 
@@ -173,9 +174,10 @@ class HoldScreen(_Tool):
             out.update(Text(f"✖ {exc}"))
             return
         lines = [f"{r.verdict.upper()}",
-                 f"leak rate {r.leak_rate_sccm:.4g} ± {r.leak_rate_uncertainty_sccm:.3g} sccm (1σ, 0 °C, 101.325 kPa)"
+                 f"leak rate {fmt_uncertain(r.leak_rate_sccm, r.leak_rate_uncertainty_sccm, 'sccm')} (1σ, 0 °C, "
+                 "101.325 kPa)"
                  f" = {r.leak_rate_pa_m3_s:.3g} Pa·m³/s",
-                 f"mass loss {r.mass_loss_kg * 1000:.3g} ± {r.mass_loss_uncertainty_kg * 1000:.3g} g; "
+                 f"mass loss {fmt_uncertain(r.mass_loss_kg * 1000, r.mass_loss_uncertainty_kg * 1000, 'g')}; "
                  f"{r.percent_per_day:.3g} % of contents per day",
                  f"smallest leak this test resolves: {r.smallest_resolvable_sccm:.3g} sccm; "
                  f"hold needed for the {r.target_sccm:.3g} sccm target ≈ {fmt_hours(r.hold_needed_h)}"]
