@@ -155,3 +155,18 @@ def test_checklist_json_items_carry_finding_codes_and_severities(capsys):
     prof = load_profile(DEMO)
     cl = checklist_json(build_checklist(prof, assess(prof), DEMO.parent))
     assert [it["id"] for s in cl["sections"] for it in s["items"]] == [it["id"] for it in items]
+
+
+def test_printed_checklist_has_header_and_page_numbers_on_every_page(tmp_path):
+    # the PDF rendered to text: bench and date on top, "page x of y" at the foot of every page
+    from pypdf import PdfReader
+
+    prof = load_profile(DEMO)
+    cl = build_checklist(prof, assess(prof), DEMO.parent, operator="A. Example")
+    out = render_pdf(cl, tmp_path / "c.pdf")
+    pages = PdfReader(out).pages
+    n = len(pages)
+    for i, page in enumerate(pages, start=1):
+        lines = [x for x in page.extract_text().splitlines() if x.strip()]
+        assert lines[0].startswith("Pre-session checklist") and prof.bench.name[:20] in lines[0]
+        assert f"page {i} of {n}" in " ".join(lines[-2:])

@@ -129,6 +129,7 @@ def item_spec(lab_file: str | Path | None = None) -> list[dict[str, Any]]:
 class _Ctx:
     a: Assessment
     display: Display
+    now: dt.datetime
 
     def about(self, subject: str, codes: tuple[str, ...]) -> Finding | None:
         """The worst finding with one of ``codes`` about ``subject``."""
@@ -165,7 +166,8 @@ def _supply_runtime(ctx: _Ctx) -> list[Item]:
             continue
         f = ctx.about(s.id, ("reserve-before-end", "reserve-within-gauge-error", "reserve-before-end-live"))
         out.append(_item(ctx, f"supply-runtime:{s.id}", f"{s.id}: time to reserve at the planned draws",
-                         f"{d.hours(s.hours_to_reserve)}" + (f", reserve at {s.reserve_at[11:16]}" if s.reserve_at else ""),
+                         f"{d.hours(s.hours_to_reserve)}"
+                         + (f", reserve at {d.clock(s.reserve_at, ctx.now)}" if s.reserve_at else ""),
                          f, f"lasts past the {d.hours(plan.session_hours)} session", s.hours_to_reserve,
                          f"supplies[{i}].hours_to_reserve"))
     return out
@@ -277,7 +279,7 @@ def build_checklist(prof: Profile, assessment: Assessment, profile_dir: Path | N
     lab_path = None
     if lab:
         lab_path = Path(lab) if Path(lab).is_absolute() or profile_dir is None else profile_dir / lab
-    ctx = _Ctx(assessment, display)
+    ctx = _Ctx(assessment, display, now)
     sections = []
     for s in item_spec(lab_path):
         items: list[Item] = []
@@ -290,8 +292,9 @@ def build_checklist(prof: Profile, assessment: Assessment, profile_dir: Path | N
             sections.append(Section(s["id"], s.get("title", s["id"]), tuple(items)))
     cautions = tuple(GENERAL) + tuple(gas_cautions([s.gas for s in prof.supplies]))
     n = counts(assessment.findings)
-    return Checklist(prof.bench.name, now.isoformat(timespec="minutes"),
-                     f"{display.hours(plan.session_hours)} from {plan.start[11:16]}", tuple(sections), cautions,
+    return Checklist(prof.bench.name, f"{now:%a} {now.day} {now:%b %Y, %H:%M}",
+                     f"{display.hours(plan.session_hours)} from {display.clock(plan.start, now)}", tuple(sections),
+                     cautions,
                      operator=operator or prof.checklist.operator, second_person=prof.checklist.second_person,
                      stops=n["stop"], warnings=n["warning"], attentions=n["attention"])
 

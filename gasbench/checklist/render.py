@@ -153,29 +153,70 @@ def _font_path(bold: bool = False) -> str:
 
 
 def render_pdf(cl: Checklist, path: str | Path) -> Path:
-    """Write the checklist as an A4 PDF (fpdf2, DejaVu Sans)."""
+    """Write the checklist as an A4 PDF (fpdf2, DejaVu Sans): the bench and date in a header and
+    "page x of y" in a footer on every page, drawn boxes to tick and a column for initials,
+    sections never split from their first line, the sign-off kept whole."""
     from fpdf import FPDF
 
-    pdf = FPDF(format="A4")
-    pdf.set_auto_page_break(True, margin=15)
+    class _Pdf(FPDF):
+        def header(self) -> None:
+            self.set_font("DejaVu", "", 8)
+            self.cell(0, 5, f"Pre-session checklist — {cl.bench} — {cl.generated_at}", new_x="LMARGIN",
+                      new_y="NEXT")
+            self.ln(2)
+
+        def footer(self) -> None:
+            self.set_y(-12)
+            self.set_font("DejaVu", "", 8)
+            self.cell(0, 6, f"page {self.page_no()} of {{nb}}", align="R")
+
+    pdf = _Pdf(format="A4")
+    pdf.set_auto_page_break(True, margin=18)
     pdf.add_font("DejaVu", "", _font_path())
     pdf.add_font("DejaVu", "B", _font_path(bold=True))
     pdf.set_title(f"Pre-session checklist — {cl.bench}")
     pdf.add_page()
     w = pdf.epw
+    initials_w = 22.0
 
     def text(t: str, size: float = 10, style: str = "", gap: float = 1.0) -> None:
         pdf.set_font("DejaVu", style, size)
         pdf.multi_cell(w, size * 0.5, t, new_x="LMARGIN", new_y="NEXT")
         pdf.ln(gap)
 
+    def room_for(mm: float) -> None:
+        if pdf.get_y() + mm > pdf.h - pdf.b_margin:
+            pdf.add_page()
+
+    def item(it: Item) -> None:
+        pdf.set_font("DejaVu", "B" if it.status in ("stop", "warning") else "", 10)
+        body = it.text if it.status is None else _line(it)[len(_box(it)) + 1:]
+        lines = pdf.multi_cell(w - 9 - initials_w, 5, body, dry_run=True, output="LINES")
+        room_for(5 * len(lines if isinstance(lines, list) else [body]) + 1.5)
+        x, y = pdf.l_margin, pdf.get_y()
+        if it.status is None:
+            pdf.rect(x, y + 0.8, 3.6, 3.6)  # a box to tick
+        else:
+            pdf.set_font("DejaVu", "B", 7)
+            pdf.text(x, y + 3.8, MARK[it.status][:4])
+            pdf.set_font("DejaVu", "B" if it.status in ("stop", "warning") else "", 10)
+        pdf.set_xy(x + 9, y)
+        pdf.multi_cell(w - 9 - initials_w, 5, body, new_x="LMARGIN", new_y="NEXT")
+        end = pdf.get_y()
+        pdf.line(x + w - initials_w + 4, y + 4.5, x + w, y + 4.5)  # initials
+        pdf.set_y(max(end, y + 5) + 1.5)
+
     text(f"Pre-session checklist — {cl.bench}", 15, "B", 2)
     text(f"Generated {cl.generated_at}; planned session {cl.session}. Summary: {_summary(cl)}.", 10)
-    for s in cl.sections:
+    pdf.set_font("DejaVu", "", 8)
+    pdf.cell(0, 5, "Tick each box when done; initials on the right.", new_x="LMARGIN", new_y="NEXT")
+    for sec in cl.sections:
+        room_for(20)  # a section never starts at the foot of a page
         pdf.ln(2)
-        text(s.title, 12, "B")
-        for it in s.items:
-            text(_line(it), 10, "B" if it.status in ("stop", "warning") else "", 0.5)
+        text(sec.title, 12, "B", 1)
+        for it in sec.items:
+            item(it)
+    room_for(30)
     pdf.ln(2)
     text("Cautions", 12, "B")
     for c in cl.cautions:
@@ -183,6 +224,7 @@ def render_pdf(cl: Checklist, path: str | Path) -> Path:
     pdf.ln(1)
     text(cl.estimates, 9)
     text(cl.defer, 9)
+    room_for(45 if cl.second_person else 30)  # the sign-off block stays whole
     pdf.ln(3)
     text("Sign-off", 12, "B")
     text(f"Operator: {cl.operator or '______________________'}    Date and time: ______________    "

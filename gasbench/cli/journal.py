@@ -9,6 +9,7 @@ from typing import Any
 
 from gasbench.cli.common import add_journal, add_json, emit_json, input_error, journal_if_exists
 from gasbench.journal import default_path
+from gasbench.render.display import Display
 from gasbench.render.files import clean, session_csv, write_output
 
 
@@ -40,8 +41,8 @@ def cmd_sessions(args: argparse.Namespace) -> int:
         return 0
     print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  bench")
     for r in rows:
-        print(f"{r.id:>4}  {r.started_at[:16]:<16}  {(r.stopped_at or 'left running')[:16]:<16}  {r.readings:>8}  "
-              f"{clean(r.bench)}")
+        stop = Display.clock(r.stopped_at) if r.stopped_at else "left running"
+        print(f"{r.id:>4}  {Display.clock(r.started_at):<16}  {stop:<16}  {r.readings:>8}  {clean(r.bench)}")
     return 0
 
 

@@ -7,6 +7,7 @@ and never passes through here.
 
 from __future__ import annotations
 
+import datetime as dt
 import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
@@ -78,6 +79,32 @@ class Display:
     @staticmethod
     def hours(h: float) -> str:
         return fmt_hours(h)
+
+    @staticmethod
+    def clock(when: str | dt.datetime | None, now: dt.datetime | None = None) -> str:
+        """A time for people: ``15:29`` today, ``Wed 15:29`` within a week, ``Wed 9 Dec 15:29``
+        beyond (local time; ISO 8601 stays in machine formats).
+
+        >>> n = dt.datetime(2026, 12, 1, 9, 0)
+        >>> Display.clock("2026-12-01T15:29", n), Display.clock("2026-12-02T15:29", n)
+        ('15:29', 'Wed 15:29')
+        >>> Display.clock("2026-12-09T15:29", n)
+        'Wed 9 Dec 15:29'
+        """
+        if when is None:
+            return "—"
+        t = dt.datetime.fromisoformat(when) if isinstance(when, str) else when
+        now = now or dt.datetime.now(t.tzinfo)
+        if t.tzinfo is not None and now.tzinfo is None:
+            now = now.replace(tzinfo=t.tzinfo)
+        elif t.tzinfo is None and now.tzinfo is not None:
+            t = t.replace(tzinfo=now.tzinfo)
+        days = (t.date() - now.date()).days
+        if days == 0:
+            return t.strftime("%H:%M")
+        if 0 < days < 7:
+            return t.strftime("%a %H:%M")
+        return f"{t:%a} {t.day} {t:%b %H:%M}"
 
     @staticmethod
     def percent(x: float, digits: int = 1) -> str:

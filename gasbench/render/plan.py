@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import datetime as dt
 from dataclasses import asdict
 from typing import Any
 
@@ -30,12 +31,16 @@ def plan_json(a: Assessment, display: Display | None = None) -> dict[str, Any]:
     return d
 
 
+def _start(plan: object) -> dt.datetime:
+    return dt.datetime.fromisoformat(plan.start)  # type: ignore[attr-defined]
+
+
 def format_plan(a: Assessment, display: Display | None = None) -> str:
     """Human-readable plan (aligned text, (g)/(a) marks, in the display's pressure unit)."""
     plan = a.plan
     d = display or Display(ambient_pa=plan.ambient_pa)
     out = [f"Plan: {plan.bench_name}",
-           f"  session {d.hours(plan.session_hours)} from {plan.start[11:16]}; ambient "
+           f"  session {d.hours(plan.session_hours)} from {d.clock(plan.start)}; ambient "
            f"{d.absolute(plan.ambient_pa)}, {d.temperature(plan.temperature_k)}; "
            + ("fits" if plan.fits else "DOES NOT FIT"), "", "Supplies"]
     for s in plan.supplies:
@@ -46,7 +51,7 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
                 f"    contents {s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}; "
                 f"usable {s.usable_mass_kg:.3f} kg",
                 f"    draw {s.draw_kg_s * 6e4:.3f} g/min; to reserve {d.hours(s.hours_to_reserve)}{band}"
-                + (f", at {s.reserve_at[11:16]}" if s.reserve_at else "")]
+                + (f", at {d.clock(s.reserve_at, _start(plan))}" if s.reserve_at else "")]
         if s.shots_to_reserve:
             out.append(f"    shots to reserve {s.shots_to_reserve:,.0f}")
         if s.cost_per_hour is not None:
@@ -57,8 +62,10 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
                    f"{d.gauge(r.outlet_at_reserve_abs_pa)} at reserve; gas leaves at {d.temperature(r.outlet_temperature_k)}")
     out += ["", "Draws"]
     for dr in plan.draws:
-        out.append(f"  {dr.id} ({dr.kind}, {dr.regulator_id}): {dr.how} = {dr.standard_flow_slpm:.3f} slpm "
-                   "(0 °C, 101.325 kPa)" + ("" if dr.vents_to_room else "; not vented to the room"))
+        flow = (dr.how if "(standard, at" in dr.how
+                else f"{dr.how} = {dr.standard_flow_slpm:.3g} slpm (0 °C, 101.325 kPa)")
+        out.append(f"  {dr.id} ({dr.kind}, {dr.regulator_id}): {flow}"
+                   + ("" if dr.vents_to_room else "; not vented to the room"))
         if dr.gap:
             if not dr.gap.within_validity:
                 out.append(f"    firing voltage: no estimate (p·d {dr.gap.pd_bar_cm_max:.0f} bar·cm is beyond the methods)")
