@@ -211,20 +211,27 @@ DUE_SOON_DAYS = 30.0
 ORDER_SOON_DAYS = 7.0
 
 
+def _due(what: str, subject: str, due: dt.date | None, today: dt.date) -> list[Finding]:
+    """``{what}-overdue`` (warning) past the date, ``{what}-due-soon`` (attention) within
+    :data:`DUE_SOON_DAYS`."""
+    if due is None:
+        return []
+    days = (due - today).days
+    values: dict[str, Value] = {"due": due.isoformat(), "days": float(days)}
+    if days < 0:
+        return [Finding(f"{what}-overdue", "warning", subject, values)]
+    if days <= DUE_SOON_DAYS:
+        return [Finding(f"{what}-due-soon", "attention", subject, values)]
+    return []
+
+
 def life_findings(prof: Profile, today: dt.date, orders: Mapping[str, tuple[dt.datetime | None, float]]) -> list[Finding]:
     """Retest and service dates (the intervals are the maker's or the local rule: the profile
     holds the due dates), and when to order the next cylinder. ``orders`` maps a supply to
     (order-by time, days of gas left)."""
     out: list[Finding] = []
     for s in prof.supplies:
-        if s.retest_due is not None:
-            days = (s.retest_due - today).days
-            if days < 0:
-                out.append(Finding("retest-overdue", "warning", s.id, {"due": s.retest_due.isoformat(),
-                                                                          "days": float(days)}))
-            elif days <= DUE_SOON_DAYS:
-                out.append(Finding("retest-due-soon", "attention", s.id, {"due": s.retest_due.isoformat(),
-                                                                             "days": float(days)}))
+        out += _due("retest", s.id, s.retest_due, today)
         at, days_left = orders.get(s.id, (None, math.inf))
         if at is not None:
             ahead = (at.date() - today).days
@@ -235,14 +242,7 @@ def life_findings(prof: Profile, today: dt.date, orders: Mapping[str, tuple[dt.d
                 out.append(Finding("order-soon", "attention", s.id, {"order_by": at.date().isoformat(),
                                                                       "days_of_gas": days_left}))
     for r in prof.regulators:
-        if r.service_due is not None:
-            days = (r.service_due - today).days
-            if days < 0:
-                out.append(Finding("service-overdue", "warning", r.id, {"due": r.service_due.isoformat(),
-                                                                           "days": float(days)}))
-            elif days <= DUE_SOON_DAYS:
-                out.append(Finding("service-due-soon", "attention", r.id, {"due": r.service_due.isoformat(),
-                                                                              "days": float(days)}))
+        out += _due("service", r.id, r.service_due, today)
     return out
 
 

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime as dt
+from typing import Any
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -169,11 +170,32 @@ class ConfirmScreen(ModalScreen[bool]):
         self.dismiss(False)
 
 
-class ChangeScreen(ModalScreen["tuple[Reading, str | None, dt.date | None] | None"]):
-    """A cylinder change: the supply, the new fill (pressure, or gross weight for a liquefied
-    gas), an optional label and retest date. Errors inline; typed values stay."""
+class _Form(ModalScreen[Any]):
+    """A modal form: Enter in a field or the primary button saves, the other button or Escape
+    cancels; errors show inline and the typed values stay."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
+    SAVE_ID = "save"
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        self.save()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        if event.button.id == self.SAVE_ID:
+            self.save()
+        else:
+            self.dismiss(None)
+
+    def save(self) -> None:  # pragma: no cover - every form defines it
+        raise NotImplementedError
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class ChangeScreen(_Form):
+    """A cylinder change: the supply, the new fill (pressure, or gross weight for a liquefied
+    gas), an optional label and retest date. Errors inline; typed values stay."""
 
     def __init__(self, state: SessionState) -> None:
         super().__init__()
@@ -198,15 +220,6 @@ class ChangeScreen(ModalScreen["tuple[Reading, str | None, dt.date | None] | Non
     def on_mount(self) -> None:
         self.query_one("#fill", Input).focus()
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
-        self.save()
-
-    def on_button_pressed(self, event: Button.Pressed) -> None:
-        if event.button.id == "save":
-            self.save()
-        else:
-            self.dismiss(None)
-
     def save(self) -> None:
         val = lambda i: self.query_one(f"#{i}", Input).value.strip()  # noqa: E731
         try:
@@ -223,14 +236,12 @@ class ChangeScreen(ModalScreen["tuple[Reading, str | None, dt.date | None] | Non
             return
         self.dismiss((reading, val("label") or None, retest))
 
-    def action_cancel(self) -> None:
-        self.dismiss(None)
 
-
-class StopScreen(ModalScreen["tuple[str, int | None, str] | None"]):
+class StopScreen(_Form):
     """Stopping a session: who ran it, how many shots were fired, a note (all optional)."""
 
     BINDINGS = [Binding("escape", "cancel", "Keep running")]
+    SAVE_ID = "stop"
 
     def compose(self) -> ComposeResult:
         with Vertical(id="dialog", classes="dialog"):
@@ -246,15 +257,6 @@ class StopScreen(ModalScreen["tuple[str, int | None, str] | None"]):
     def on_mount(self) -> None:
         self.query_one("#operator", Input).focus()
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
-        self.save()
-
-    def on_button_pressed(self, event: Button.Pressed) -> None:
-        if event.button.id == "stop":
-            self.save()
-        else:
-            self.dismiss(None)
-
     def save(self) -> None:
         val = lambda i: self.query_one(f"#{i}", Input).value.strip()  # noqa: E731
         shots = None
@@ -264,6 +266,3 @@ class StopScreen(ModalScreen["tuple[str, int | None, str] | None"]):
                 return
             shots = int(val("shots"))
         self.dismiss((val("operator")[:100], shots, val("note")[:1000]))
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)
