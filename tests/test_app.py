@@ -262,3 +262,37 @@ async def test_hold_screen_imports_a_log_and_plots_it(journal_path, tmp_path):
         await pilot.pause()
         assert "sccm" in str(scr.query_one("#hold-result").render())
         assert scr.query_one("#hold-plot").display
+
+
+def _tool_snapshot(snap_compare, tmp_path, key):
+    clock = Clock()
+    app = make_app(None, tmp_path / "j.sqlite3", clock=clock)
+
+    async def ready(pilot):
+        for _ in range(3):
+            await app.workers.wait_for_complete()
+            await pilot.pause()
+        if key == "g":  # a session with readings, one taken before it started
+            await pilot.press("s")
+            await pilot.pause()
+            await pilot.press("escape")
+            for minutes, p in ((-30, "66 bar"), (0, "64 bar"), (60, "58 bar")):
+                clock.t = T0 + dt.timedelta(minutes=60 + minutes) if minutes >= 0 else T0 + dt.timedelta(minutes=30)
+                await _enter_reading(app, pilot, p, when=(T0 + dt.timedelta(minutes=minutes)).strftime("%H:%M"))
+        await pilot.press(key)
+        for _ in range(2):
+            await app.workers.wait_for_complete()
+            await pilot.pause()
+        await pilot.pause(0.2)
+
+    return snap_compare(app, terminal_size=(80, 24), run_before=ready)
+
+
+def test_checklist_preview_snapshot_80x24(snap_compare, tmp_path):
+    # the preview wraps once, to the window
+    assert _tool_snapshot(snap_compare, tmp_path, "k")
+
+
+def test_graph_snapshot_80x24(snap_compare, tmp_path):
+    # planned end and reserve marked; the reading before the session shown as such (x)
+    assert _tool_snapshot(snap_compare, tmp_path, "g")

@@ -170,3 +170,11 @@ def test_printed_checklist_has_header_and_page_numbers_on_every_page(tmp_path):
         lines = [x for x in page.extract_text().splitlines() if x.strip()]
         assert lines[0].startswith("Pre-session checklist") and prof.bench.name[:20] in lines[0]
         assert f"page {i} of {n}" in " ".join(lines[-2:])
+
+
+def test_markdown_escapes_only_what_markdown_needs():
+    from gasbench.checklist.render import md_escape
+
+    # regression: "\(N2 laser\)" and "\+00:00" were escaped needlessly
+    assert md_escape("bench 2 (N2 laser) +00:00 #3") == "bench 2 (N2 laser) +00:00 #3"
+    assert md_escape("a|b *c* [d](e) <f>") == "a\\|b \\*c\\* \\[d\\](e) &lt;f&gt;"

@@ -36,12 +36,12 @@ def _line(it: Item) -> str:
     return line
 
 
-def render_text(cl: Checklist) -> str:
-    """Plain text for a printed page: no line longer than 100 characters."""
+def render_text(cl: Checklist, width: int = WIDTH) -> str:
+    """Plain text for a printed page: no line longer than ``width`` (100) characters."""
     out: list[str] = []
 
     def para(text: str, indent: str = "", first: str | None = None) -> None:
-        out.extend(textwrap.wrap(text, WIDTH, initial_indent=first if first is not None else indent,
+        out.extend(textwrap.wrap(text, width, initial_indent=first if first is not None else indent,
                                  subsequent_indent=indent, break_long_words=True, break_on_hyphens=False) or [""])
 
     para(f"PRE-SESSION CHECKLIST — {cl.bench}")
@@ -67,16 +67,17 @@ def render_text(cl: Checklist) -> str:
     return "\n".join(out) + "\n"
 
 
-_MD_SPECIAL = re.compile(r"([\\`*_{}\[\]()#+!|>~])")
 
 
 def md_escape(text: str) -> str:
-    """Escape Markdown syntax and HTML in user text (also safe inside table cells).
+    """Escape what Markdown would act on in user text: emphasis, code, links, table pipes, HTML
+    (``&``, ``<``, ``>``); brackets, ``+`` and ``#`` inside a line are left as they are.
 
-    >>> md_escape('<script>a|b & "c"</script>')
-    '&lt;script&gt;a\\\\|b &amp; &quot;c&quot;&lt;/script&gt;'
+    >>> md_escape('<script>a|b & "c"</script> (N2 laser) +00:00')
+    '&lt;script&gt;a\\\\|b &amp; "c"&lt;/script&gt; (N2 laser) +00:00'
     """
-    return _MD_SPECIAL.sub(r"\\\1", html.escape(text.replace("\n", " ")))
+    flat = text.replace("\n", " ").replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
+    return re.sub(r"([\\`*_\[\]|])", r"\\\1", flat)
 
 
 def render_markdown(cl: Checklist) -> str:

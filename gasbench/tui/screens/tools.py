@@ -70,25 +70,34 @@ class GraphScreen(_Tool):
         plt = self.query_one(PlotextPlot).plt
         plt.clear_data()
         plt.clear_figure()
+        floor = bar_g(0.0)  # nothing reads below vacuum: no line is drawn under it
         xs = [off + h for h in s.projection_hours]
-        plt.plot(xs, [bar_g(p) for p in s.projection_pressure_abs_pa], label="planned", marker="braille")
+        plt.plot(xs, [max(floor, bar_g(p)) for p in s.projection_pressure_abs_pa], label="planned",
+                 marker="braille")
         plt.hline(bar_g(s.reserve_abs_pa), "red")
+        plt.vline(st.plan.session_hours + (off if not st.started_at else 0.0), "blue")  # the planned end
         rs = sorted((r for r in st.readings.get(s.id, []) if r.pressure_abs_pa is not None), key=lambda r: r.at)
         ob = st.observed.get(s.id)
         if ob is not None and ob.fit_at:
             fx = [(dt.datetime.fromisoformat(a) - origin).total_seconds() / 3600.0 for a in ob.fit_at]
-            plt.plot(fx, [bar_g(p) for p in ob.fit_pressure_abs_pa], label="fitted", marker="braille")
-        if rs:  # drawn last so they stay visible
-            plt.scatter([(r.at - origin).total_seconds() / 3600.0 for r in rs], [bar_g(r.pressure_abs_pa or 0.0) for r in rs],
-                        label="readings", marker="o")
+            plt.plot(fx, [max(floor, bar_g(p)) for p in ob.fit_pressure_abs_pa], label="fitted", marker="braille")
+        inside = [r for r in rs if (r.at - origin).total_seconds() >= 0]
+        outside = [r for r in rs if (r.at - origin).total_seconds() < 0]
+        if inside:  # drawn last so they stay visible
+            plt.scatter([(r.at - origin).total_seconds() / 3600.0 for r in inside],
+                        [bar_g(r.pressure_abs_pa or 0.0) for r in inside], label="readings", marker="o")
+        if outside:
+            plt.scatter([(r.at - origin).total_seconds() / 3600.0 for r in outside],
+                        [bar_g(r.pressure_abs_pa or 0.0) for r in outside], label="before the session", marker="x")
         ys = [bar_g(p) for p in s.projection_pressure_abs_pa] + [bar_g(r.pressure_abs_pa or 0.0) for r in rs]
         lo, hi = bar_g(s.reserve_abs_pa), max(ys)
         plt.ylim(min(lo, min(ys)) - 0.05 * (hi - lo), hi + 0.25 * (hi - lo))  # room above for the legend
         plt.xlabel("hours since " + ("session start" if st.started_at else "plan"))
         plt.ylabel("bar(g)")
         self.query_one("#graph-title", Static).update(
-            f"{s.id} ({s.gas_name}): supply pressure, bar(g); reserve {fmt_pressure(s.reserve_abs_pa, amb)} (red line)"
-            f" — n: next supply, escape: back")
+            Text(f"{s.id} ({s.gas_name}): supply pressure, bar(g); reserve {fmt_pressure(s.reserve_abs_pa, amb)} "
+                 "(red line), planned end (blue line)" + (f"; {len(outside)} reading(s) before the session (x)"
+                                                         if outside else "") + " — n: next supply, escape: back"))
         self.query_one(PlotextPlot).refresh()
 
 
@@ -307,7 +316,8 @@ class ChecklistScreen(_Tool):
         self.checklist = self._build()
         from gasbench.checklist.render import render_text
 
-        self.query_one("#checklist-text", Static).update(render_text(self.checklist))
+        # wrapped once, to the window (not pre-wrapped for paper and wrapped again)
+        self.query_one("#checklist-text", Static).update(render_text(self.checklist, width=max(40, self.size.width - 4)))
 
     def _build(self):  # type: ignore[no-untyped-def]
         from gasbench.checklist import build_checklist
