@@ -111,8 +111,11 @@ h1 { font-size: 16pt; } h2 { font-size: 13pt; margin-top: 1.2em; border-bottom: 
 table { border-collapse: collapse; width: 100%; } td, th { border: 1px solid #999; padding: 3px 6px; text-align: left; }
 .stop { font-weight: bold; } .warning { font-weight: bold; } .attention { font-style: italic; }
 ul.ticks { list-style: none; padding-left: 0; } ul.ticks li::before { content: "\\2610  "; }
+ul.ticks li { display: flex; } .initials { margin-left: auto; min-width: 5em; border-bottom: 1px solid #000; }
 .sign { margin-top: 1.5em; } .sign span { display: inline-block; min-width: 14em; border-bottom: 1px solid #000; }
-@media print { body { margin: 0; font-size: 10pt; } h2 { break-after: avoid; } tr, li { break-inside: avoid; }
+@media print { @page { @bottom-right { content: "page " counter(page) " of " counter(pages); } }
+  body { margin: 0; font-size: 10pt; } h2 { break-after: avoid; } tr, li { break-inside: avoid; }
+  .sign { break-inside: avoid; }
   a { color: inherit; text-decoration: none; } }
 """
 
@@ -129,13 +132,14 @@ def render_html(cl: Checklist) -> str:
         ticks = [it for it in s.items if it.status is None]
         figs = [it for it in s.items if it.status is not None]
         if ticks:
-            out.append('<ul class="ticks">' + "".join(f"<li>{e(it.text)}</li>" for it in ticks) + "</ul>")
+            out.append('<ul class="ticks">' + "".join(f'<li>{e(it.text)}<span class="initials"></span></li>'
+                                                     for it in ticks) + "</ul>")
         if figs:
-            out.append("<table><tr><th>Item</th><th>Figure</th><th>Status</th><th>Why</th></tr>")
+            out.append("<table><tr><th>Item</th><th>Figure</th><th>Status</th><th>Why</th><th>Initials</th></tr>")
             for it in figs:
                 st = it.status or "ok"
                 out.append(f'<tr class="{st}"><td>{e(it.text)}</td><td>{e(it.figure or "")}</td>'
-                           f"<td>{SYMBOL[st]} {MARK[st]}</td><td>{e(it.reason or '')}</td></tr>")
+                           f"<td>{SYMBOL[st]} {MARK[st]}</td><td>{e(it.reason or '')}</td><td></td></tr>")
             out.append("</table>")
     out.append("<h2>Cautions</h2><ul>" + "".join(f"<li><strong>{e(c.topic)}</strong>: {e(c.text)}</li>"
                                                  for c in cl.cautions) + "</ul>")
