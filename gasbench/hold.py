@@ -32,6 +32,7 @@ from dataclasses import dataclass
 
 from gasbench import gas as g
 from gasbench.errors import InputError
+from gasbench.tables import DensityTable
 from gasbench.units import ATM_PA, Flow, check_positive, check_range, fmt_pressure, fmt_temperature
 
 #: Largest held volume of a hold test [m³].
@@ -393,7 +394,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     the slope is the leak rate, its standard error the scatter part of the uncertainty; the
     gauge's systematic part (MPE over the span of the log, GUM) is added in quadrature.
 
-    Masses come from a Z(p, T) table (:class:`gasbench.gas.DensityTable`, error < 1e-4),
+    Masses come from a Z(p, T) table (:class:`gasbench.tables.DensityTable`, error < 1e-4),
     not from one CoolProp call per row. A quadratic term significant at 3 standard errors
     flags a curved decay (a temperature swing, a step, a leak that changes) only where it
     matters: its departure from the line exceeds what the gauge resolves (one reading's
@@ -414,7 +415,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
         i = int(np.argmax(p))
         raise InputError(f"log row {i + 2}: pressure {fmt_pressure(p[i], ambient_pa)} is above the gauge range")
     T = np.asarray(log.T_k) if log.T_k is not None else np.full(n, T_default)
-    table = g.DensityTable(gas, float(p.min()) * 0.999, float(p.max()) * 1.001, float(T.min()), float(T.max()) + 1e-6)
+    table = DensityTable(gas, float(p.min()) * 0.999, float(p.max()) * 1.001, float(T.min()), float(T.max()) + 1e-6)
     m = table.density(p, T) * volume_m3
     tc = t - t.mean()
     coef, cov = np.polyfit(tc, m, 1, cov="unscaled") if n == 3 else np.polyfit(tc, m, 1, cov=True)

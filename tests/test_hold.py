@@ -13,6 +13,7 @@ from gasbench import gas as g
 from gasbench import hold as h
 from gasbench.cli import main
 from gasbench.errors import InputError
+from gasbench.tables import DensityTable
 
 N2 = g.parse_gas("nitrogen")
 AMB = 101325.0
@@ -116,7 +117,7 @@ def test_curved_decay_is_flagged():
 def test_table_mass_matches_coolprop_per_row():
     # bounded error of the tabulated path: < 1e-4 relative against one CoolProp call per row
     log = _synthetic_log(3e-7, 0.0, n=50, temps=True)
-    tab = g.DensityTable(N2, min(log.p_abs_pa) * 0.999, max(log.p_abs_pa) * 1.001, min(log.T_k), max(log.T_k))
+    tab = DensityTable(N2, min(log.p_abs_pa) * 0.999, max(log.p_abs_pa) * 1.001, min(log.T_k), max(log.T_k))
     direct = np.array([g.density(N2, T, p) for p, T in zip(log.p_abs_pa, log.T_k, strict=True)])
     assert np.max(np.abs(tab.density(np.array(log.p_abs_pa), np.array(log.T_k)) / direct - 1)) < 1e-4
 

@@ -17,6 +17,7 @@ from gasbench import room as rm
 from gasbench import supply as sp
 from gasbench.errors import GasbenchError
 from gasbench.profile import Draw, Profile, Supply
+from gasbench.tables import DensityTable
 from gasbench.units import ATM_PA, REFERENCES, T0_K
 from gasbench.workflows import findings as fd
 from gasbench.workflows.model import (
@@ -57,7 +58,7 @@ class SupplyModel:
         self.liquefied = _is_liquefied(gas, T, p_now)
         self.p_sat = g.saturation_pressure(gas, T) if self.liquefied else math.inf
         top = min(p_hi, self.p_sat * 0.999)
-        self.table = g.DensityTable(gas, min(ambient * 0.5, top * 0.5), top, T, T)
+        self.table = DensityTable(gas, min(ambient * 0.5, top * 0.5), top, T, T)
         self.rho_vsat = g.density(gas, T, self.p_sat * 0.999) if self.liquefied else math.inf
 
     def mass_at(self, p: float) -> float:

@@ -10,7 +10,7 @@ Method summary
   held constant over the session, so the mass balance is exact: mass at start − draw × time =
   mass at the reserve at the time to reserve.
 * Projection: supply mass falls linearly; pressure from a Z(ρ) table (see
-  :class:`gasbench.gas.DensityTable`); regulator outlet by the supply-pressure effect; gap
+  :class:`gasbench.tables.DensityTable`); regulator outlet by the supply-pressure effect; gap
   firing voltage at that outlet (:mod:`gasbench.gap`).
 """
 
