@@ -107,6 +107,22 @@ class Display:
         return f"{t:%a} {t.day} {t:%b %H:%M}"
 
     @staticmethod
+    def ago(days: float) -> str:
+        """How long ago, in the largest sensible unit: ``25 min ago``, ``5 h ago``, ``3 days ago``.
+
+        >>> Display.ago(0.0), Display.ago(0.2), Display.ago(3.4)
+        ('0 min ago', '5 h ago', '3 days ago')
+        """
+        if not isinstance(days, (int, float)) or not math.isfinite(days):
+            return "—"
+        hours = days * 24
+        if hours < 1:
+            return f"{max(0, round(hours * 60))} min ago"
+        if hours < 48:
+            return f"{round(hours)} h ago"
+        return f"{round(days)} days ago"
+
+    @staticmethod
     def percent(x: float, digits: int = 1) -> str:
         return "—" if not math.isfinite(x) else f"{x:.{digits}f} %"
 

@@ -151,19 +151,9 @@ TEMPLATES: dict[str, Template] = {
 
 def _hold_figure(v: Any) -> str:
     return (f"{v['verdict']}, {fmt_uncertain(v['leak_rate_sccm'], v['leak_rate_uncertainty_sccm'], 'sccm')}, "
-            f"{_ago(v['age_days'])}")
+            f"{Display.ago(v['age_days'])}")
 
 
-def _ago(days: float) -> str:
-    """How long ago, in the largest sensible unit."""
-    if not isinstance(days, (int, float)) or not math.isfinite(days):
-        return "—"
-    hours = days * 24
-    if hours < 1:
-        return f"{max(0, round(hours * 60))} min ago"
-    if hours < 48:
-        return f"{round(hours)} h ago"
-    return f"{round(days)} days ago"
 
 
 def describe(f: Finding, display: Display | None = None) -> tuple[str, str]:

@@ -140,8 +140,11 @@ class HoldScreen(_Tool):
         last = st.last_hold_test()
         if last is None:
             return "No hold test recorded for this bench yet."
-        return (f"Last hold test: {last.verdict}, {last.leak_rate_sccm:.3g} ± {last.leak_rate_uncertainty_sccm:.2g} "
-                f"sccm, {last.age_days:.1f} days ago ({last.supply_id or 'no supply'})")
+        from gasbench.render.display import Display
+
+        return (f"Last hold test: {last.verdict}, "
+                f"{fmt_uncertain(last.leak_rate_sccm, last.leak_rate_uncertainty_sccm, 'sccm')}, "
+                f"{Display.ago(last.age_days)} ({last.supply_id or 'no supply'})")
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         if event.button.id == "hold-go":
