@@ -197,3 +197,44 @@ class SerialSource:
 
     def close(self) -> None:
         self.port.close()
+
+
+class ModbusTcpSource:
+    """A pressure transducer (or a gateway) on Modbus/TCP, read with pymodbus: ``value`` in
+    holding (or input) registers from ``register``, in ``fmt``, as ``value × scale + offset``
+    in ``value_unit``. A failure is a bad sample with the reason, never an exception."""
+
+    def __init__(self, host: str, port: int, device: int, register: int, fmt: str, value_unit: str,
+                 ambient_pa: float, scale: float = 1.0, offset: float = 0.0, input_registers: bool = False,
+                 timeout_s: float = 2.0) -> None:
+        import pymodbus  # noqa: F401  (the package first, see gasbench.simulator)
+        from pymodbus.client import ModbusTcpClient
+
+        if fmt not in FORMATS:
+            raise InputError(f"register format {fmt!r} is not one of {', '.join(FORMATS)}")
+        self.client = ModbusTcpClient(host, port=port, timeout=timeout_s, retries=0)
+        self.where = f"{host}:{port} device {device} register {register}"
+        self.device, self.register, self.fmt, self.input = device, register, fmt, input_registers
+        self.unit, self.ambient, self.scale, self.offset = value_unit, ambient_pa, scale, offset
+
+    def read(self, now: dt.datetime) -> Sample:
+        from pymodbus.exceptions import ModbusException
+
+        try:
+            if not self.client.connected and not self.client.connect():
+                return Sample(now, None, False, f"cannot reach {self.where}")
+            call = self.client.read_input_registers if self.input else self.client.read_holding_registers
+            r = call(self.register, count=FORMATS[self.fmt], device_id=self.device)
+        except (ModbusException, OSError) as exc:
+            self.client.close()
+            return Sample(now, None, False, f"{self.where}: {exc}")
+        if r.isError():
+            return Sample(now, None, False, f"{self.where}: the device refused the read ({r})")
+        try:
+            value = decode(r.registers, self.fmt)
+            return Sample(now, to_pressure(value, self.scale, self.offset, self.unit, self.ambient), True)
+        except InputError as exc:
+            return Sample(now, None, False, str(exc))
+
+    def close(self) -> None:
+        self.client.close()

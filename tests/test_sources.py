@@ -85,3 +85,57 @@ def test_out_of_range_and_spikes_are_flagged_not_passed_on():
     assert out[0].good is False and "spike" in out[0].why and out[1].pressure_abs_pa == 149.9e5
     assert f(s(198e5)) == []                          # a new cylinder: jump held back ...
     assert [x.pressure_abs_pa for x in f(s(197.9e5))] == [198e5, 197.9e5]   # ... and confirmed
+
+
+def _free_port() -> int:
+    import socket
+
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+def test_simulator_served_on_loopback_is_read_by_the_modbus_source():
+    # a real pymodbus server on 127.0.0.1 (the simulator) and a real client; bounded in time
+    import asyncio
+    import threading
+    import time
+
+    import pymodbus  # noqa: F401  (imported once here, not by two threads at once)
+
+    from gasbench import gas as g
+    from gasbench.simulator import Cylinder, serve
+    from gasbench.sources import ModbusTcpSource
+
+    n2 = g.parse_gas("nitrogen")
+    port = _free_port()
+    cyl = Cylinder(n2, 0.05, 151.01325e5, 293.15, loss_kg_s=1e-4, speed=600.0)
+    t = threading.Thread(target=lambda: asyncio.run(serve(cyl, port, duration_s=4.0)), daemon=True)
+    t.start()
+    src = ModbusTcpSource("127.0.0.1", port, 1, 0, "float32", "bar", 101325.0, timeout_s=2.0)
+    try:
+        first = None
+        for _ in range(40):  # the server needs a moment to listen
+            first = src.read(NOW)
+            if first.good:
+                break
+            time.sleep(0.05)
+        assert first is not None and first.good, first
+        assert first.pressure_abs_pa == pytest.approx(151.01325e5, abs=0.3e5)
+        time.sleep(1.0)
+        later = src.read(NOW)
+        # 600 s of simulated loss at 0.1 g/s = 60 g of 8.5 kg: about 1 bar lower (real-gas balance)
+        assert later.good and later.pressure_abs_pa < first.pressure_abs_pa - 0.3e5
+        temp = ModbusTcpSource("127.0.0.1", port, 1, 2, "float32", "bar(a)", 101325.0).read(NOW)
+        assert temp.good and temp.pressure_abs_pa == pytest.approx(20.0e5, rel=1e-6)  # 20 degC, read raw
+    finally:
+        src.close()
+        t.join(timeout=10)
+    assert not t.is_alive()
+
+
+def test_unreachable_modbus_device_is_a_bad_sample_not_a_crash():
+    from gasbench.sources import ModbusTcpSource
+
+    s = ModbusTcpSource("127.0.0.1", _free_port(), 1, 0, "float32", "bar", 101325.0, timeout_s=0.5).read(NOW)
+    assert not s.good and "cannot reach" in s.why
