@@ -133,6 +133,51 @@ class Gauge(_Model):
     """Smallest division you can read (default: half the class error)."""
 
 
+class Source(_Model):
+    """Where a supply's live pressure comes from (a transducer)."""
+
+    kind: Literal["modbus-tcp", "modbus-rtu", "serial", "file"]
+    host: str | None = Field(default=None, max_length=255)
+    """Modbus/TCP: the device or gateway's address."""
+    port: int | str | None = None
+    """Modbus/TCP: the TCP port (502 by default); serial and Modbus RTU: the serial port, e.g. "/dev/ttyUSB0"."""
+    device: int = Field(default=1, ge=0, le=247)
+    """Modbus unit id."""
+    register: int = Field(default=0, ge=0, le=65535)
+    input_registers: bool = False
+    """Read input registers instead of holding registers."""
+    format: Literal["int16", "uint16", "int32", "uint32", "float32", "float32-swapped"] = "float32"
+    scale: float = Field(default=1.0, allow_inf_nan=False)
+    offset: float = Field(default=0.0, allow_inf_nan=False)
+    value_unit: str = Field(default="bar", max_length=16)
+    """value × scale + offset is a pressure in this unit (gauge unless marked absolute)."""
+    interval: DurationQ = 1.0
+    """How often to read."""
+    baud: int = Field(default=9600, ge=300, le=4_000_000)
+    parity: Literal["N", "E", "O"] = "N"
+    pattern: str | None = Field(default=None, max_length=200)
+    """Serial or file: a regular expression whose first group is the number."""
+    path: str | None = Field(default=None, max_length=4096)
+    """File: the growing log."""
+    range: PressureQ | None = None
+    """The transducer's full scale: values beyond it are flagged, never used."""
+
+    @model_validator(mode="after")
+    def _check(self) -> Source:
+        need = {"modbus-tcp": ("host",), "modbus-rtu": ("port",), "serial": ("port",), "file": ("path",)}[self.kind]
+        for key in need:
+            if getattr(self, key) in (None, ""):
+                raise InputError(f"a {self.kind} source needs {key}")
+        u.parse_pressure(f"1 {self.value_unit}")  # a pressure unit, gauge or absolute
+        if self.pattern is not None:
+            try:
+                re.compile(self.pattern)
+            except re.error as exc:
+                raise InputError(f"pattern is not a valid regular expression: {exc}") from None
+        _positive(self.interval, "source interval")
+        return self
+
+
 class Supply(_Model):
     id: Id
     gas: GasQ
@@ -164,6 +209,8 @@ class Supply(_Model):
     retest_due: dt.date | None = None
     """Periodic-inspection (retest) due date of the cylinder in use (the interval is the maker's or
     the local rule)."""
+    source: Source | None = None
+    """A transducer that reads this supply's pressure live."""
 
     @model_validator(mode="after")
     def _check(self) -> Supply:

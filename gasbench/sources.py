@@ -20,9 +20,11 @@ from pathlib import Path
 from typing import Literal
 
 from gasbench.errors import InputError
+from gasbench.profile import Source
 from gasbench.units import parse_pressure
 
-__all__ = ["FORMATS", "decode", "Sample", "to_pressure", "SampleFilter", "parse_line", "FileSource", "SerialSource"]
+__all__ = ["FORMATS", "decode", "Sample", "to_pressure", "SampleFilter", "parse_line", "FileSource", "SerialSource",
+           "ModbusTcpSource", "make_source"]
 
 RegisterFormat = Literal["int16", "uint16", "int32", "uint32", "float32", "float32-swapped"]
 #: Register formats and how many 16-bit registers each takes.
@@ -238,3 +240,19 @@ class ModbusTcpSource:
 
     def close(self) -> None:
         self.client.close()
+
+
+def make_source(src: Source, ambient_pa: float) -> ModbusTcpSource | SerialSource | FileSource:
+    """The live source a profile's ``[supplies.source]`` describes (Modbus RTU is not built yet:
+    a clear refusal)."""
+    if src.kind == "modbus-tcp":
+        assert src.host is not None
+        return ModbusTcpSource(src.host, int(src.port or 502), src.device, src.register, src.format, src.value_unit,
+                               ambient_pa, src.scale, src.offset, src.input_registers)
+    if src.kind == "serial":
+        return SerialSource(str(src.port), src.value_unit, ambient_pa, src.baud, src.pattern, src.scale, src.offset)
+    if src.kind == "file":
+        assert src.path is not None
+        return FileSource(src.path, src.value_unit, ambient_pa, src.pattern, src.scale, src.offset)
+    raise InputError("Modbus RTU sources are not supported yet: use a Modbus/TCP gateway, a serial text line or "
+                     "a log file")

@@ -139,3 +139,34 @@ def test_unreachable_modbus_device_is_a_bad_sample_not_a_crash():
 
     s = ModbusTcpSource("127.0.0.1", _free_port(), 1, 0, "float32", "bar", 101325.0, timeout_s=0.5).read(NOW)
     assert not s.good and "cannot reach" in s.why
+
+
+def test_profile_source_section_builds_the_source(tmp_path):
+    # the demo profile with the commented source switched on, as the README's two-terminal demo
+    from pathlib import Path
+
+    from gasbench.errors import ProfileError
+    from gasbench.profile import parse_profile
+    from gasbench.sources import FileSource, ModbusTcpSource, make_source
+
+    demo = (Path(__file__).resolve().parents[1] / "profiles" / "demo-teaching-bench.toml").read_text()
+    section = ('\n[supplies.source]\nkind = "modbus-tcp"\nhost = "127.0.0.1"\nport = 5020\ndevice = 1\n'
+               'register = 0\nformat = "float32"\nscale = 1.0\noffset = 0.0\nvalue_unit = "bar"\ninterval = "1 s"\n')
+    anchor = 'gauge = { range = "315 bar", accuracy_class = 1.6 }\n'
+    prof = parse_profile(demo.replace(anchor, anchor + section), "b.toml")
+    src = prof.supplies[0].source
+    assert src is not None and src.kind == "modbus-tcp" and src.interval == 1.0
+    built = make_source(src, prof.ambient_pa)
+    assert isinstance(built, ModbusTcpSource)
+    built.close()
+    log = tmp_path / "p.log"
+    log.write_text("")
+    filed = parse_profile(demo.replace(anchor, anchor + f'\n[supplies.source]\nkind = "file"\npath = "{log}"\n'),
+                          "b.toml")
+    assert isinstance(make_source(filed.supplies[0].source, 101325.0), FileSource)
+    for bad, words in (('kind = "modbus-tcp"\n', "needs host"), ('kind = "file"\npath = "x"\nvalue_unit = "kg"\n',
+                                                                  "pressure unit"),
+                       ('kind = "serial"\nport = "/dev/x"\npattern = "("\n', "regular expression"),
+                       ('kind = "carrier-pigeon"\n', "kind")):
+        with pytest.raises(ProfileError, match=words):
+            parse_profile(demo.replace(anchor, anchor + "\n[supplies.source]\n" + bad), "b.toml")
