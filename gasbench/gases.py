@@ -12,6 +12,7 @@ import re
 from dataclasses import dataclass, field
 
 from gasbench.errors import InputError
+from gasbench.units import fmt_pressure, fmt_temperature
 
 #: Molar mass of dry air, [kg/mol] (Lemmon et al. 2000, J. Phys. Chem. Ref. Data 29, 331).
 AIR_MOLAR_MASS = 0.0289586
@@ -223,3 +224,52 @@ def parse_gas(text: str) -> Gas:
     return Gas(comps, text)
 
 
+#: Sublimation-pressure equation of carbon dioxide (Span & Wagner 1996, J. Phys. Chem. Ref.
+#: Data 25, 1509, eq. 3.12): ln(p/p_t) = (T_t/T)·Σ a_i·(1 − T/T_t)^t_i, with the triple point
+#: T_t = 216.592 K, p_t = 0.51795 MPa. Coefficients from the paper (from memory; the test
+#: checks the normal sublimation point 194.69 K at 1 atm, NIST Webbook).
+_SUBLIMATION = {
+    "carbon dioxide": (216.592, 0.51795e6, ((-14.740846, 1.0), (2.4327015, 1.9), (-5.3061778, 2.9))),
+}
+
+
+def has_sublimation_line(gas: Gas) -> bool:
+    return not gas.is_mixture and gas.components[0][0].key in _SUBLIMATION
+
+
+def sublimation_pressure(gas: Gas, T: float) -> float:
+    """Sublimation pressure [Pa] of solid CO2 at T [K] below its triple point
+    (Span & Wagner 1996, eq. 3.12).
+
+    >>> round(sublimation_pressure(parse_gas("co2"), 194.686) / 1e3, 2)   # 1 atm
+    101.33
+    """
+    if not has_sublimation_line(gas):
+        raise InputError(f"no sublimation line is known here for {gas.name}")
+    Tt, pt, terms = _SUBLIMATION[gas.components[0][0].key]
+    if not 0 < T <= Tt:
+        raise InputError(f"temperature {fmt_temperature(T)} is not below the triple point of {gas.name}")
+    x = 1.0 - T / Tt
+    return pt * math.exp(Tt / T * sum(a * x**e for a, e in terms))
+
+
+def sublimation_temperature(gas: Gas, p: float) -> float:
+    """Temperature [K] on the sublimation line at absolute pressure p [Pa] (inverse of
+    :func:`sublimation_pressure` by bisection).
+
+    >>> round(sublimation_temperature(parse_gas("co2"), 101325.0) - 273.15, 2)
+    -78.46
+    """
+    Tt, pt, _ = _SUBLIMATION[gas.components[0][0].key] if has_sublimation_line(gas) else (0, 0, ())
+    if not has_sublimation_line(gas):
+        raise InputError(f"no sublimation line is known here for {gas.name}")
+    if not 0 < p <= pt:
+        raise InputError(f"pressure {fmt_pressure(p, kind='absolute')} is not below the triple-point pressure of {gas.name}")
+    lo, hi = 100.0, Tt
+    for _ in range(80):
+        mid = 0.5 * (lo + hi)
+        if sublimation_pressure(gas, mid) < p:
+            lo = mid
+        else:
+            hi = mid
+    return 0.5 * (lo + hi)

@@ -25,6 +25,7 @@ from pydantic import (
     model_validator,
 )
 
+from gasbench import quantities as q
 from gasbench import units as u
 from gasbench.errors import InputError, ProfileError
 from gasbench.gas import Gas, parse_gas
@@ -63,7 +64,7 @@ FrequencyQ = Annotated[float, BeforeValidator(_within(u.parse_frequency, 1e6, "H
 VoltageQ = Annotated[float, BeforeValidator(_within(u.parse_voltage, 1e7, "V"))]
 FlowQ = Annotated[u.Flow, BeforeValidator(_str_only(u.parse_flow))]
 GasQ = Annotated[Gas, BeforeValidator(_str_only(parse_gas))]
-VentilationQ = Annotated[u.Ventilation, BeforeValidator(_str_only(u.parse_ventilation))]
+VentilationQ = Annotated[q.Ventilation, BeforeValidator(_str_only(q.parse_ventilation))]
 Id = Annotated[str, Field(min_length=1, max_length=40, pattern=r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$")]
 
 

@@ -31,7 +31,8 @@ from typing import Literal
 
 from gasbench import gas as g
 from gasbench.errors import InputError
-from gasbench.units import Amount, Flow, check_positive
+from gasbench.quantities import Amount
+from gasbench.units import Flow, check_positive
 
 #: Oxygen in dry air, vol % (common value; 20.946 % in the US Standard Atmosphere 1976).
 C0_AIR = 20.95

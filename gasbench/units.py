@@ -98,7 +98,7 @@ _SPLIT = re.compile(rf"^\s*({_NUM})\s*(.*?)\s*$", re.IGNORECASE)
 _SEPARATOR = re.compile(r"^\s*[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[,_'\u2009\u202f]|\s+)\d")
 
 
-def _split(text: str, what: str) -> tuple[float, str]:
+def split_number(text: str, what: str) -> tuple[float, str]:
     """Split typed text into a number and its unit. A number is written with a decimal point
     and no thousands separators: ``"1,000 L"`` or ``"2,5 bar"`` is refused, never read as
     1 L or 2 bar."""
@@ -106,22 +106,22 @@ def _split(text: str, what: str) -> tuple[float, str]:
         text = str(text)
     if _SEPARATOR.match(text):
         raise InputError(
-            f"{what} {_short(text)!r}: write the number without thousands separators and with a "
+            f"{what} {shorten(text)!r}: write the number without thousands separators and with a "
             "decimal point, e.g. '1000 L' or '2.5 bar'"
         )
     m = _SPLIT.match(text)
     if not m:
-        raise InputError(f"{what} {_short(text)!r} is not a number with a unit")
+        raise InputError(f"{what} {shorten(text)!r} is not a number with a unit")
     try:
         value = float(m.group(1))
     except ValueError:  # pragma: no cover - the pattern only admits floats
-        raise InputError(f"{what} {_short(text)!r}: {m.group(1)!r} is not a number") from None
+        raise InputError(f"{what} {shorten(text)!r}: {m.group(1)!r} is not a number") from None
     if not math.isfinite(value):
-        raise InputError(f"{what} {_short(text)!r} is not a finite number")
+        raise InputError(f"{what} {shorten(text)!r} is not a finite number")
     return value, m.group(2)
 
 
-def _short(text: str, limit: int = 40) -> str:
+def shorten(text: str, limit: int = 40) -> str:
     """Text cut to ``limit`` characters for an error message (never echo a long input)."""
     return text if len(text) <= limit else text[: limit - 1] + "…"
 
@@ -158,24 +158,6 @@ def check_positive(value: float, what: str, unit: str = "") -> float:
     if value <= 0:
         raise InputError(f"{what} must be greater than zero, got {value:g}{(' ' + unit) if unit else ''}")
     return float(value)
-
-
-_CONTROL_TEXT = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
-
-
-def check_text(value: str, what: str, max_len: int = 200) -> str:
-    """Free text a person typed (a note, a label, a reason): trimmed, at most ``max_len``
-    characters, no control characters or escape sequences.
-
-    >>> check_text("  N2-0417 ", "label")
-    'N2-0417'
-    """
-    v = value.strip()
-    if _CONTROL_TEXT.search(v):
-        raise InputError(f"{what} contains control characters or escape sequences; type plain text")
-    if len(v) > max_len:
-        raise InputError(f"{what} is {len(v)} characters long; at most {max_len}")
-    return v
 
 
 # --------------------------------------------------------------------------------------
@@ -244,7 +226,7 @@ def parse_pressure(text: str, ambient_pa: float = ATM_PA, what: str = "pressure"
     >>> round(parse_pressure("14.7 psia").abs_at(101325.0), 1)
     101352.9
     """
-    value, unit = _split(text, what)
+    value, unit = split_number(text, what)
     _need_unit(unit, text, what, '"200 bar" (gauge) or "150 bar(a)"')
     factor, marker, base = _pressure_unit(unit)
     if base in _ALWAYS_ABSOLUTE:
@@ -304,7 +286,7 @@ def parse_temperature(text: str, what: str = "temperature") -> float:
     >>> round(parse_temperature("70 degF"), 3)
     294.261
     """
-    value, unit = _split(text, what)
+    value, unit = split_number(text, what)
     _need_unit(unit, text, what, '"20 degC", "70 degF" or "293 K"')
     u = _TEMP_ALIASES.get(unit.strip().lower())
     if u is None:
@@ -313,7 +295,7 @@ def parse_temperature(text: str, what: str = "temperature") -> float:
     kelvin = {"degC": value + T0_K, "degF": (value - 32.0) * 5.0 / 9.0 + T0_K, "K": value,
               "degR": value * 5.0 / 9.0}[u]
     if kelvin <= 0:
-        raise InputError(f"{what} {_short(text)!r} is at or below absolute zero")
+        raise InputError(f"{what} {shorten(text)!r} is at or below absolute zero")
     return _sane(kelvin, "temperature", text, what)
 
 
@@ -323,7 +305,7 @@ def parse_temperature_difference(text: str, what: str = "temperature uncertainty
     >>> parse_temperature_difference("0.5 degC"), round(parse_temperature_difference("0.9 degF"), 6)
     (0.5, 0.5)
     """
-    value, unit = _split(text, what)
+    value, unit = split_number(text, what)
     _need_unit(unit, text, what, '"0.5 K"')
     u = _TEMP_ALIASES.get(unit.strip().lower())
     if u is None:
@@ -374,12 +356,12 @@ SANITY_LIMITS: dict[str, tuple[float, str]] = {
 def _sane(value: float, kind: str, text: str, what: str) -> float:
     hi, words = SANITY_LIMITS[kind]
     if abs(value) > hi:
-        raise InputError(f"{what} {_short(text)!r} is beyond {words}, more than any bench uses; check the unit")
+        raise InputError(f"{what} {shorten(text)!r} is beyond {words}, more than any bench uses; check the unit")
     return value
 
 
 def _parse_dim(text: str, what: str, target: str, examples: str) -> float:
-    value, unit = _split(text, what)
+    value, unit = split_number(text, what)
     _need_unit(unit, text, what, examples)
     fast = _FAST.get(unit.strip().lower().replace("³", "3").replace("µ", "u"))
     if fast is not None and fast[0] == target:
@@ -390,7 +372,7 @@ def _parse_dim(text: str, what: str, target: str, examples: str) -> float:
     try:
         return _sane(float(q.to(target).magnitude), target, text, what)
     except pint.errors.DimensionalityError:
-        raise InputError(f"{what} {_short(text)!r} is not a {target_names.get(target, target)}; e.g. {examples}") from None
+        raise InputError(f"{what} {shorten(text)!r} is not a {target_names.get(target, target)}; e.g. {examples}") from None
 
 
 target_names = {"m**3": "volume", "s": "duration", "m": "length", "kg": "mass", "m**3/s": "volume flow",
@@ -509,7 +491,7 @@ def parse_flow(text: str, reference: str | None = None, what: str = "flow") -> F
     >>> parse_flow("40 scfh").reference.key
     '70F'
     """
-    value, unit = _split(text, what)
+    value, unit = split_number(text, what)
     _need_unit(unit, text, what, '"2 slpm", "500 sccm", "40 scfh", "3 Nm3/h" or "5 g/min"')
     if value < 0:
         raise InputError(f"{what} {text!r} is negative; a flow must be zero or more")
@@ -533,92 +515,6 @@ def parse_flow(text: str, reference: str | None = None, what: str = "flow") -> F
             f"{what} {text!r} is not a flow; use sccm, slpm, scfh, Nm3/h (standard), g/min (mass) "
             "or L/min (actual volume)"
         ) from None
-
-
-# --------------------------------------------------------------------------------------
-# ventilation and amounts
-
-
-@dataclass(frozen=True)
-class Ventilation:
-    """A room's ventilation as typed: air changes per hour, or an actual volume flow [m³/s]."""
-
-    air_changes_per_h: float | None
-    flow_m3_s: float | None
-    text: str
-
-    def m3_s(self, room_volume_m3: float) -> float:
-        """The ventilation as a volume flow [m³/s] for a room of the given volume."""
-        if self.air_changes_per_h is not None:
-            return self.air_changes_per_h * room_volume_m3 / 3600.0
-        assert self.flow_m3_s is not None
-        return self.flow_m3_s
-
-
-def parse_ventilation(text: str, what: str = "ventilation") -> Ventilation:
-    """Parse ventilation: ``"2/h"`` (air changes per hour) or a volume flow (``"120 m3/h"``,
-    ``"2 L/s"``).
-
-    >>> parse_ventilation("2/h").m3_s(50.0) * 3600
-    100.0
-    >>> round(parse_ventilation("120 m3/h").m3_s(50.0) * 3600, 6)
-    120.0
-    """
-    if not isinstance(text, str):
-        raise InputError(f"{what} {text!r}: give air changes per hour (\"2/h\") or a volume flow (\"120 m3/h\")")
-    s = text.strip().lower().replace(" ", "")
-    m = re.fullmatch(r"(.+?)(/h|/hr|ach|1/h|perh)", s)
-    if m and not m.group(1).endswith(("m3", "l", "ft3")):
-        ach, _ = _split(m.group(1) + " x", what)
-        if ach < 0:
-            raise InputError(f"{what} {_short(text)!r} must be zero or more air changes per hour")
-        return Ventilation(ach, None, text.strip())
-    f = parse_flow(text, what=what)
-    if f.kind != "actual":
-        raise InputError(f"{what} {_short(text)!r}: give air changes per hour (\"2/h\") or a volume flow (\"120 m3/h\")")
-    return Ventilation(None, f.value, text.strip())
-
-
-@dataclass(frozen=True)
-class Amount:
-    """An amount of gas as typed: a mass [kg] or a volume [m³]."""
-
-    kind: Literal["mass", "volume"]
-    value: float
-    text: str
-
-
-def parse_amount(text: str, what: str = "amount") -> Amount:
-    """Parse a mass (``"11 kg"``) or a volume (``"9 m3"``).
-
-    >>> parse_amount("11 kg").kind, parse_amount("9 m3").value
-    ('mass', 9.0)
-    """
-    try:
-        return Amount("mass", parse_mass(text, what), text.strip())
-    except InputError:
-        pass
-    try:
-        return Amount("volume", parse_volume(text, what), text.strip())
-    except InputError:
-        raise InputError(f"{what} {_short(str(text))!r} is neither a mass (\"11 kg\") nor a volume (\"9 m3\")") from None
-
-
-def parse_fraction(text: str, what: str = "fraction") -> float:
-    """A concentration as a mole fraction: ``"10 ppm"``, ``"50 ppb"``, ``"0.5 %"``, or a plain
-    fraction ``"0.001"``.
-
-    >>> parse_fraction("10 ppm"), parse_fraction("0.5 %"), parse_fraction("0.2095")
-    (1e-05, 0.005, 0.2095)
-    """
-    value, unit = _split(text, what)
-    factor = {"": 1.0, "%": 1e-2, "ppm": 1e-6, "ppb": 1e-9, "ppmv": 1e-6, "ppbv": 1e-9}.get(unit.strip().lower())
-    if factor is None:
-        raise InputError(f"{what} {_short(text)!r}: use ppm, ppb, % or a plain fraction, e.g. '10 ppm'")
-    x = value * factor
-    if not 0 <= x <= 1:
-        raise InputError(f"{what} {_short(text)!r} is not between 0 and 100 %")
-    return x
 
 
 # --------------------------------------------------------------------------------------

@@ -5,6 +5,7 @@ import shutil
 from pathlib import Path
 
 import pytest
+from apptools import T0, Clock, settle
 
 from gasbench.journal import Journal
 from gasbench.tui.app import make_app
@@ -12,21 +13,11 @@ from gasbench.tui.screens.modals import CautionsScreen, ConfirmScreen, ReadingSc
 from gasbench.tui.screens.overview import OverviewScreen
 
 ROOT = Path(__file__).resolve().parents[1]
-T0 = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
 
-
-class Clock:
-    def __init__(self, t: dt.datetime = T0) -> None:
-        self.t = t
-
-    def __call__(self) -> dt.datetime:
-        return self.t
 
 
 async def _ready(app, pilot):
-    await pilot.pause()
-    await app.workers.wait_for_complete()
-    await pilot.pause()
+    await settle(app, pilot)
 
 
 async def _start_session(app, pilot):

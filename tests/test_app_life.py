@@ -6,6 +6,7 @@ import datetime as dt
 from pathlib import Path
 
 import pytest
+from apptools import T0, Clock, settle
 
 from gasbench.journal import Journal
 from gasbench.tui.app import make_app
@@ -14,23 +15,12 @@ from gasbench.tui.screens.overview import OverviewScreen
 from gasbench.tui.widgets import FindingsPanel
 
 ROOT = Path(__file__).resolve().parents[1]
-T0 = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
 BENCH = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"
 
 
-class Clock:
-    def __init__(self, t: dt.datetime = T0) -> None:
-        self.t = t
-
-    def __call__(self) -> dt.datetime:
-        return self.t
-
 
 async def _ready(app, pilot):
-    for _ in range(2):
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-    await pilot.pause()
+    await settle(app, pilot)
 
 
 async def _reading(app, pilot, value, when="now"):

@@ -14,7 +14,8 @@ from scipy.integrate import solve_ivp
 from gasbench import gas as g
 from gasbench import room
 from gasbench.errors import InputError
-from gasbench.units import parse_amount, parse_flow, parse_ventilation
+from gasbench.quantities import parse_amount, parse_ventilation
+from gasbench.units import parse_flow
 
 
 def test_release_models_closed_forms():

@@ -19,9 +19,10 @@ from gasbench.cli.common import (
 )
 from gasbench.journal import Journal, default_path
 from gasbench.profile import Profile, load_profile
+from gasbench.quantities import check_text
 from gasbench.render.display import Display
 from gasbench.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
-from gasbench.units import check_text, parse_mass, parse_pressure, parse_temperature
+from gasbench.units import parse_mass, parse_pressure, parse_temperature
 from gasbench.workflows import cylinder as cy
 from gasbench.workflows.bench import assess
 

@@ -18,7 +18,8 @@ from gasbench.cli.common import (
     emit_table,
     input_error,
 )
-from gasbench.units import parse_flow, parse_fraction, parse_temperature, parse_volume, pressure_abs
+from gasbench.quantities import parse_fraction
+from gasbench.units import parse_flow, parse_temperature, parse_volume, pressure_abs
 
 
 def configure(sub: Any, name: str) -> None:

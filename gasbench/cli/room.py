@@ -23,15 +23,8 @@ from gasbench.cli.common import (
     gas,
     input_error,
 )
-from gasbench.units import (
-    fmt_hours,
-    parse_amount,
-    parse_flow,
-    parse_temperature,
-    parse_ventilation,
-    parse_volume,
-    pressure_abs,
-)
+from gasbench.quantities import parse_amount, parse_ventilation
+from gasbench.units import fmt_hours, parse_flow, parse_temperature, parse_volume, pressure_abs
 
 
 def configure(sub: Any, name: str) -> None:

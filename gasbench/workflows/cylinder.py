@@ -26,7 +26,8 @@ from gasbench import hold as hd
 from gasbench.errors import InputError
 from gasbench.journal import ChangeRow, Journal, ReadingRow
 from gasbench.profile import Profile, Supply, with_reading, with_weight
-from gasbench.units import PSI_PA, Pressure, check_text
+from gasbench.quantities import check_text
+from gasbench.units import PSI_PA, Pressure
 from gasbench.workflows.holds import HoldRecord, profile_gauge_spec, record_of, store
 
 __all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",

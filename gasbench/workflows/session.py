@@ -17,7 +17,8 @@ from pathlib import Path
 from gasbench.errors import InputError, JournalError
 from gasbench.journal import Journal, ReadingRow
 from gasbench.profile import Profile, load_profile, with_reading
-from gasbench.units import check_text, parse_mass, parse_pressure, parse_temperature
+from gasbench.quantities import check_text
+from gasbench.units import parse_mass, parse_pressure, parse_temperature
 from gasbench.workflows import build as pl
 from gasbench.workflows.bench import Assessment, findings_of, journal_state
 from gasbench.workflows.cylinder import (

@@ -500,8 +500,9 @@ class PurgeScreen(_Tool):
     def on_input_submitted(self, event: Input.Submitted) -> None:
         from gasbench import purge as pg
         from gasbench import supply as sp
+        from gasbench.quantities import parse_fraction
         from gasbench.render.display import profile_display
-        from gasbench.units import parse_flow, parse_fraction, parse_volume, pressure_abs
+        from gasbench.units import parse_flow, parse_volume, pressure_abs
 
         st = self.state
         assert st.profile is not None

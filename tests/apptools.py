@@ -1,0 +1,25 @@
+"""Shared helpers of the app tests: a settable clock and waiting for the app to settle."""
+
+from __future__ import annotations
+
+import datetime as dt
+
+T0 = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
+
+
+class Clock:
+    """A clock the test sets (``clock.t = ...``)."""
+
+    def __init__(self, t: dt.datetime = T0) -> None:
+        self.t = t
+
+    def __call__(self) -> dt.datetime:
+        return self.t
+
+
+async def settle(app, pilot, rounds: int = 2) -> None:
+    """Let the workers (CoolProp, the journal) finish and the screen refresh."""
+    for _ in range(rounds):
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+    await pilot.pause()
