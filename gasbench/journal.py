@@ -17,7 +17,7 @@ from typing import Any
 
 from gasbench.errors import JournalError
 
-SCHEMA_VERSION = 3
+SCHEMA_VERSION = 4
 #: ``PRAGMA application_id`` of a gasbench journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -106,6 +106,44 @@ _MIGRATIONS: dict[int, str] = {
     ALTER TABLE sessions ADD COLUMN shots INTEGER;
     ALTER TABLE hold_tests ADD COLUMN kind TEXT;
     """,
+    4: """
+    CREATE TABLE streams (
+        id INTEGER PRIMARY KEY,
+        bench TEXT NOT NULL,
+        supply_id TEXT NOT NULL,
+        quantity TEXT NOT NULL,
+        tolerance REAL NOT NULL,
+        UNIQUE (bench, supply_id, quantity)
+    );
+    CREATE TABLE samples (
+        stream INTEGER NOT NULL,
+        t REAL NOT NULL,
+        value REAL,
+        PRIMARY KEY (stream, t)
+    ) WITHOUT ROWID;
+    CREATE TABLE sample_blocks (
+        stream INTEGER NOT NULL,
+        t0 REAL NOT NULL,
+        t1 REAL NOT NULL,
+        n INTEGER NOT NULL,
+        bad INTEGER NOT NULL,
+        vmin REAL,
+        vmax REAL,
+        tolerance REAL NOT NULL,
+        points BLOB NOT NULL,
+        PRIMARY KEY (stream, t0)
+    ) WITHOUT ROWID;
+    CREATE TABLE alarms (
+        id INTEGER PRIMARY KEY,
+        bench TEXT NOT NULL,
+        supply_id TEXT,
+        code TEXT NOT NULL,
+        at TEXT NOT NULL,
+        text TEXT NOT NULL,
+        details TEXT
+    );
+    CREATE INDEX alarms_bench ON alarms(bench, at);
+    """,
 }
 
 
@@ -180,6 +218,17 @@ class HoldRow:
     leak_rate_uncertainty_sccm: float
     kind: str | None = None
     details: str | None = None
+
+
+@dataclass(frozen=True)
+class AlarmRow:
+    id: int
+    bench: str
+    supply_id: str | None
+    code: str
+    at: str
+    text: str
+    details: str | None
 
 
 class Journal:
@@ -301,6 +350,10 @@ class Journal:
             why = "the disk is full" if "full" in str(exc).lower() else str(exc)
             raise JournalError(f"journal {self.path}: write failed ({why}); nothing was recorded") from None
 
+    def write(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
+        """Run ``fn(db)`` as one committed transaction (for the sample store)."""
+        return self._write(fn)
+
     def start_session(self, bench: str, profile_path: str | None, at: str) -> int:
         return int(self._write(lambda db: db.execute(
             "INSERT INTO sessions(bench, profile_path, started_at) VALUES (?, ?, ?)", (bench, profile_path, at)).lastrowid))
@@ -358,6 +411,12 @@ class Journal:
             "INSERT INTO hold_tests(at, bench, supply_id, gas, volume_m3, duration_s, verdict, leak_rate_sccm,"
             " leak_rate_uncertainty_sccm, details, kind) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
             (at, bench, supply_id, gas, volume_m3, duration_s, verdict, rate_sccm, u_sccm, details, kind)).lastrowid))
+
+    def add_alarm(self, bench: str, supply_id: str | None, code: str, at: str, text: str, details: str = "") -> int:
+        """Record an alarm (a condition that needed a person) as a line in the journal."""
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO alarms(bench, supply_id, code, at, text, details) VALUES (?, ?, ?, ?, ?, ?)",
+            (bench, supply_id, code, at, text, details)).lastrowid))
 
     # -- reads
 
@@ -431,6 +490,14 @@ class Journal:
             args = (bench,)
         rows = self._read(sql + " ORDER BY at DESC, id DESC LIMIT 1", args)
         return HoldRow(*rows[0]) if rows else None
+
+    def alarms(self, bench: str, since: str | None = None) -> list[AlarmRow]:
+        sql = "SELECT id, bench, supply_id, code, at, text, details FROM alarms WHERE bench = ?"
+        args: tuple[Any, ...] = (bench,)
+        if since is not None:
+            sql += " AND at >= ?"
+            args += (since,)
+        return [AlarmRow(*r) for r in self._read(sql + " ORDER BY at, id", args)]
 
     def integrity_ok(self) -> bool:
         return self._read("PRAGMA integrity_check")[0][0] == "ok"

@@ -134,8 +134,8 @@ class Gauge(_Model):
     """Smallest division you can read (default: half the class error)."""
 
 
-class Source(_Model):
-    """Where a supply's live pressure comes from (a transducer)."""
+class SourceBase(_Model):
+    """A transducer read live: where it is and how its number becomes a value."""
 
     kind: Literal["modbus-tcp", "modbus-rtu", "serial", "file"]
     host: str | None = Field(default=None, max_length=255)
@@ -144,7 +144,8 @@ class Source(_Model):
     """Modbus/TCP: the TCP port (502 by default); serial and Modbus RTU: the serial port, e.g. "/dev/ttyUSB0"."""
     device: int = Field(default=1, ge=0, le=247)
     """Modbus unit id."""
-    register: int = Field(default=0, ge=0, le=65535)
+    address: int = Field(default=0, ge=0, le=65535, alias="register")
+    """The first register (profile key ``register``)."""
     input_registers: bool = False
     """Read input registers instead of holding registers."""
     format: Literal["int16", "uint16", "int32", "uint32", "float32", "float32-swapped"] = "float32"
@@ -160,16 +161,14 @@ class Source(_Model):
     """Serial or file: a regular expression whose first group is the number."""
     path: str | None = Field(default=None, max_length=4096)
     """File: the growing log."""
-    range: PressureQ | None = None
-    """The transducer's full scale: values beyond it are flagged, never used."""
 
     @model_validator(mode="after")
-    def _check(self) -> Source:
+    def _check(self) -> SourceBase:
         need = {"modbus-tcp": ("host",), "modbus-rtu": ("port",), "serial": ("port",), "file": ("path",)}[self.kind]
         for key in need:
             if getattr(self, key) in (None, ""):
                 raise InputError(f"a {self.kind} source needs {key}")
-        u.parse_pressure(f"1 {self.value_unit}")  # a pressure unit, gauge or absolute
+        self._check_unit()
         if self.pattern is not None:
             try:
                 re.compile(self.pattern)
@@ -177,6 +176,29 @@ class Source(_Model):
                 raise InputError(f"pattern is not a valid regular expression: {exc}") from None
         _positive(self.interval, "source interval")
         return self
+
+    def _check_unit(self) -> None:
+        raise NotImplementedError
+
+
+class Source(SourceBase):
+    """Where a supply's live pressure comes from (a pressure transducer)."""
+
+    range: PressureQ | None = None
+    """The transducer's full scale: values beyond it are flagged, never used."""
+
+    def _check_unit(self) -> None:
+        u.parse_pressure(f"1 {self.value_unit}")  # a pressure unit, gauge or absolute
+
+
+class TemperatureSource(SourceBase):
+    """A temperature sensor read live (a supply's cylinder, or the room), same shape as a
+    pressure source; ``value × scale + offset`` is a temperature in ``value_unit``."""
+
+    value_unit: str = Field(default="degC", max_length=16)
+
+    def _check_unit(self) -> None:
+        u.parse_temperature(f"20 {self.value_unit}", "temperature source value_unit")
 
 
 class Supply(_Model):
@@ -212,6 +234,8 @@ class Supply(_Model):
     the local rule)."""
     source: Source | None = None
     """A transducer that reads this supply's pressure live."""
+    temperature_source: TemperatureSource | None = None
+    """A sensor that reads this cylinder's temperature live (else the room's, else ambient)."""
 
     @model_validator(mode="after")
     def _check(self) -> Supply:
@@ -344,6 +368,8 @@ class Room(_Model):
     oxygen_monitor: bool = False
     """Whether a fixed oxygen monitor with alarm is installed."""
     oxygen_percent: float = Field(default=20.95, gt=0, le=100)
+    temperature_source: TemperatureSource | None = None
+    """A sensor that reads the room's temperature live (for supplies without their own)."""
 
     @model_validator(mode="after")
     def _check(self) -> Room:

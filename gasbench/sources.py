@@ -14,17 +14,17 @@ import datetime as dt
 import math
 import re
 import struct
-from collections.abc import Iterator, Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Literal
+from typing import Any, Literal
 
 from gasbench.errors import InputError
-from gasbench.profile import Source
-from gasbench.units import parse_pressure
+from gasbench.profile import SourceBase, TemperatureSource
+from gasbench.units import parse_pressure, parse_temperature
 
-__all__ = ["FORMATS", "decode", "Sample", "to_pressure", "SampleFilter", "parse_line", "FileSource", "SerialSource",
-           "ModbusTcpSource", "make_source"]
+__all__ = ["FORMATS", "decode", "Sample", "to_pressure", "to_temperature", "converter", "SampleFilter", "parse_line",
+           "FileSource", "SerialSource", "ModbusSource", "modbus_tcp", "modbus_rtu", "LiveSource", "make_source"]
 
 RegisterFormat = Literal["int16", "uint16", "int32", "uint32", "float32", "float32-swapped"]
 #: Register formats and how many 16-bit registers each takes.
@@ -57,13 +57,17 @@ def decode(registers: Sequence[int], fmt: str) -> float:
 
 @dataclass(frozen=True)
 class Sample:
-    """One value read from a source: time, absolute pressure [Pa] (None when bad), and why a
-    bad sample was set aside."""
+    """One value read from a source: time, the value in SI (an absolute pressure [Pa] or a
+    temperature [K]; None when bad), and why a bad sample was set aside."""
 
     at: dt.datetime
-    pressure_abs_pa: float | None
+    value: float | None
     good: bool
     why: str = ""
+
+
+#: Turns a transducer's raw number into SI (raises InputError on nonsense).
+Convert = Callable[[float], float]
 
 
 def to_pressure(value: float, scale: float, offset: float, value_unit: str, ambient_pa: float) -> float:
@@ -73,9 +77,31 @@ def to_pressure(value: float, scale: float, offset: float, value_unit: str, ambi
     >>> round(to_pressure(1500.0, 0.1, 0.0, "bar", 101325.0))   # 150 bar(g)
     15101325
     """
+    _finite(value, scale, offset)
+    return parse_pressure(f"{value * scale + offset!r} {value_unit}", ambient_pa, "transducer value").abs_at(ambient_pa)
+
+
+def to_temperature(value: float, scale: float, offset: float, value_unit: str) -> float:
+    """``value × scale + offset`` in ``value_unit`` (degC, degF, K) as a temperature [K].
+
+    >>> to_temperature(20.0, 1.0, 0.0, "degC")
+    293.15
+    """
+    _finite(value, scale, offset)
+    return parse_temperature(f"{value * scale + offset!r} {value_unit}")
+
+
+def _finite(value: float, scale: float, offset: float) -> None:
     if not all(math.isfinite(x) for x in (value, scale, offset)):
         raise InputError(f"transducer value {value!r} × {scale!r} + {offset!r} is not a finite number")
-    return parse_pressure(f"{value * scale + offset!r} {value_unit}", ambient_pa, "transducer value").abs_at(ambient_pa)
+
+
+def converter(src: SourceBase, ambient_pa: float) -> Convert:
+    """The conversion a profile's source describes: a pressure source to absolute Pa, a
+    temperature source to K."""
+    if isinstance(src, TemperatureSource):
+        return lambda x: to_temperature(x, src.scale, src.offset, src.value_unit)
+    return lambda x: to_pressure(x, src.scale, src.offset, src.value_unit, ambient_pa)
 
 
 class SampleFilter:
@@ -89,13 +115,13 @@ class SampleFilter:
         self.pending: Sample | None = None
 
     def __call__(self, s: Sample) -> list[Sample]:
-        if s.pressure_abs_pa is None or not s.good:
+        if s.value is None or not s.good:
             return [s]
-        p = s.pressure_abs_pa
+        p = s.value
         if not self.lo <= p <= self.hi:
             return [Sample(s.at, None, False, f"outside the transducer's range ({p:.6g} Pa)")]
         if self.last is not None and abs(p - self.last) > self.step:
-            if self.pending is not None and abs(p - (self.pending.pressure_abs_pa or 0.0)) <= self.step:
+            if self.pending is not None and abs(p - (self.pending.value or 0.0)) <= self.step:
                 # the jump held: a real step (a cylinder change, a valve opened)
                 first, self.pending, self.last = self.pending, None, p
                 return [first, s]
@@ -110,9 +136,8 @@ class SampleFilter:
         return out
 
 
-def parse_line(line: str, pattern: str | None, value_unit: str, ambient_pa: float, scale: float = 1.0,
-               offset: float = 0.0) -> float:
-    """The pressure in one line of text from a serial transducer or a log: the first number, or
+def parse_line(line: str, pattern: str | None = None) -> float:
+    """The number in one line of text from a serial transducer or a log: the first number, or
     the regular expression ``pattern``'s first group."""
     text = line.strip()
     if pattern:
@@ -126,35 +151,34 @@ def parse_line(line: str, pattern: str | None, value_unit: str, ambient_pa: floa
             raise InputError(f"no number in the line {text[:40]!r}")
         number = m.group(0)
     try:
-        value = float(number)
+        return float(number)
     except ValueError:
         raise InputError(f"{number[:40]!r} in the line is not a number") from None
-    return to_pressure(value, scale, offset, value_unit, ambient_pa)
 
 
 class FileSource:
     """A CSV or text log that grows: each new complete line is a sample; a first column that is
     an ISO timestamp is used as the sample's time (the log's own timestamps), else the time read."""
 
-    def __init__(self, path: str | Path, value_unit: str, ambient_pa: float, pattern: str | None = None,
-                 scale: float = 1.0, offset: float = 0.0) -> None:
+    def __init__(self, path: str | Path, convert: Convert, pattern: str | None = None) -> None:
         self.path = Path(path).expanduser()
-        self.unit, self.ambient, self.pattern, self.scale, self.offset = value_unit, ambient_pa, pattern, scale, offset
+        self.convert, self.pattern = convert, pattern
+        self.where = str(self.path)
         self.pos = 0
         self.partial = ""
 
-    def poll(self, now: dt.datetime) -> Iterator[Sample]:
+    def poll(self, now: dt.datetime) -> list[Sample]:
         try:
             with open(self.path, encoding="utf-8", errors="replace") as fh:
                 fh.seek(self.pos)
                 chunk = fh.read(1_000_000)
                 self.pos = fh.tell()
         except OSError as exc:
-            yield Sample(now, None, False, f"cannot read {self.path}: {exc.strerror or exc}")
-            return
+            return [Sample(now, None, False, f"cannot read {self.path}: {exc.strerror or exc}")]
         text = self.partial + chunk
         lines = text.split("\n")
         self.partial = lines.pop()  # an incomplete last line waits for the rest
+        out = []
         for line in lines:
             if not line.strip() or line.lstrip().startswith("#"):
                 continue
@@ -169,55 +193,60 @@ class FileSource:
             except ValueError:
                 pass
             try:
-                yield Sample(at, parse_line(rest, self.pattern, self.unit, self.ambient, self.scale, self.offset), True)
+                out.append(Sample(at, self.convert(parse_line(rest, self.pattern)), True))
             except InputError as exc:
-                yield Sample(at, None, False, str(exc))
+                out.append(Sample(at, None, False, str(exc)))
+        return out
+
+    def close(self) -> None:
+        pass
 
 
 class SerialSource:
     """A transducer that prints a line of text per reading on a serial port (pyserial)."""
 
-    def __init__(self, port: str, value_unit: str, ambient_pa: float, baud: int = 9600, pattern: str | None = None,
-                 scale: float = 1.0, offset: float = 0.0, timeout_s: float = 1.0) -> None:
+    def __init__(self, port: str, convert: Convert, baud: int = 9600, pattern: str | None = None,
+                 timeout_s: float = 1.0, parity: str = "N") -> None:
         import serial  # pyserial
 
-        self.unit, self.ambient, self.pattern, self.scale, self.offset = value_unit, ambient_pa, pattern, scale, offset
+        self.convert, self.pattern, self.where = convert, pattern, port
         try:
-            self.port = serial.Serial(port, baudrate=baud, timeout=timeout_s)
-        except (serial.SerialException, OSError) as exc:
+            self.port = serial.Serial(port, baudrate=baud, timeout=timeout_s, parity=parity)
+        except (serial.SerialException, OSError, ValueError) as exc:
             raise InputError(f"cannot open the serial port {port}: {exc}") from None
 
     def read(self, now: dt.datetime) -> Sample:
-        raw = self.port.readline()
+        import serial
+
+        try:
+            raw = self.port.readline()
+        except (serial.SerialException, OSError) as exc:
+            return Sample(now, None, False, f"{self.where}: {exc}")
         if not raw:
             return Sample(now, None, False, "no line within the timeout")
         try:
-            return Sample(now, parse_line(raw.decode("ascii", errors="replace"), self.pattern, self.unit,
-                                          self.ambient, self.scale, self.offset), True)
+            return Sample(now, self.convert(parse_line(raw.decode("ascii", errors="replace"), self.pattern)), True)
         except InputError as exc:
             return Sample(now, None, False, str(exc))
+
+    def poll(self, now: dt.datetime) -> list[Sample]:
+        return [self.read(now)]
 
     def close(self) -> None:
         self.port.close()
 
 
-class ModbusTcpSource:
-    """A pressure transducer (or a gateway) on Modbus/TCP, read with pymodbus: ``value`` in
-    holding (or input) registers from ``register``, in ``fmt``, as ``value × scale + offset``
-    in ``value_unit``. A failure is a bad sample with the reason, never an exception."""
+class ModbusSource:
+    """A transducer (or a gateway) on Modbus, read with pymodbus — over TCP, or over a serial
+    line in RTU framing (RS-485): ``value`` in holding (or input) registers from ``register``,
+    in ``fmt``. A failure is a bad sample with the reason, never an exception."""
 
-    def __init__(self, host: str, port: int, device: int, register: int, fmt: str, value_unit: str,
-                 ambient_pa: float, scale: float = 1.0, offset: float = 0.0, input_registers: bool = False,
-                 timeout_s: float = 2.0) -> None:
-        import pymodbus  # noqa: F401  (the package first, see gasbench.simulator)
-        from pymodbus.client import ModbusTcpClient
-
+    def __init__(self, client: Any, where: str, device: int, register: int, fmt: str, convert: Convert,
+                 input_registers: bool = False) -> None:
         if fmt not in FORMATS:
             raise InputError(f"register format {fmt!r} is not one of {', '.join(FORMATS)}")
-        self.client = ModbusTcpClient(host, port=port, timeout=timeout_s, retries=0)
-        self.where = f"{host}:{port} device {device} register {register}"
+        self.client, self.where, self.convert = client, f"{where} device {device} register {register}", convert
         self.device, self.register, self.fmt, self.input = device, register, fmt, input_registers
-        self.unit, self.ambient, self.scale, self.offset = value_unit, ambient_pa, scale, offset
 
     def read(self, now: dt.datetime) -> Sample:
         from pymodbus.exceptions import ModbusException
@@ -233,26 +262,54 @@ class ModbusTcpSource:
         if r.isError():
             return Sample(now, None, False, f"{self.where}: the device refused the read ({r})")
         try:
-            value = decode(r.registers, self.fmt)
-            return Sample(now, to_pressure(value, self.scale, self.offset, self.unit, self.ambient), True)
+            return Sample(now, self.convert(decode(r.registers, self.fmt)), True)
         except InputError as exc:
             return Sample(now, None, False, str(exc))
+
+    def poll(self, now: dt.datetime) -> list[Sample]:
+        return [self.read(now)]
 
     def close(self) -> None:
         self.client.close()
 
 
-def make_source(src: Source, ambient_pa: float) -> ModbusTcpSource | SerialSource | FileSource:
-    """The live source a profile's ``[supplies.source]`` describes (Modbus RTU is not built yet:
-    a clear refusal)."""
+def modbus_tcp(host: str, port: int, device: int, register: int, fmt: str, convert: Convert,
+               input_registers: bool = False, timeout_s: float = 2.0) -> ModbusSource:
+    """A Modbus/TCP source (pymodbus ``ModbusTcpClient``)."""
+    import pymodbus  # noqa: F401  (the package first, see gasbench.simulator)
+    from pymodbus.client import ModbusTcpClient
+
+    client = ModbusTcpClient(host, port=port, timeout=timeout_s, retries=0)
+    return ModbusSource(client, f"{host}:{port}", device, register, fmt, convert, input_registers)
+
+
+def modbus_rtu(port: str, baud: int, parity: str, device: int, register: int, fmt: str, convert: Convert,
+               input_registers: bool = False, timeout_s: float = 1.0) -> ModbusSource:
+    """A Modbus RTU source on a serial line (pymodbus ``ModbusSerialClient``, RTU framing)."""
+    import pymodbus  # noqa: F401
+    from pymodbus import FramerType
+    from pymodbus.client import ModbusSerialClient
+
+    client = ModbusSerialClient(port, framer=FramerType.RTU, baudrate=baud, parity=parity, bytesize=8, stopbits=1,
+                                timeout=timeout_s, retries=0)
+    return ModbusSource(client, port, device, register, fmt, convert, input_registers)
+
+
+#: Anything :func:`make_source` builds: ``poll(now)`` gives the new samples, ``close()`` lets go.
+LiveSource = ModbusSource | SerialSource | FileSource
+
+
+def make_source(src: SourceBase, ambient_pa: float) -> LiveSource:
+    """The live source a profile's ``[supplies.source]`` (or a temperature source) describes."""
+    convert = converter(src, ambient_pa)
     if src.kind == "modbus-tcp":
         assert src.host is not None
-        return ModbusTcpSource(src.host, int(src.port or 502), src.device, src.register, src.format, src.value_unit,
-                               ambient_pa, src.scale, src.offset, src.input_registers)
+        return modbus_tcp(src.host, int(src.port or 502), src.device, src.address, src.format, convert,
+                          src.input_registers)
+    if src.kind == "modbus-rtu":
+        return modbus_rtu(str(src.port), src.baud, src.parity, src.device, src.address, src.format, convert,
+                          src.input_registers)
     if src.kind == "serial":
-        return SerialSource(str(src.port), src.value_unit, ambient_pa, src.baud, src.pattern, src.scale, src.offset)
-    if src.kind == "file":
-        assert src.path is not None
-        return FileSource(src.path, src.value_unit, ambient_pa, src.pattern, src.scale, src.offset)
-    raise InputError("Modbus RTU sources are not supported yet: use a Modbus/TCP gateway, a serial text line or "
-                     "a log file")
+        return SerialSource(str(src.port), convert, src.baud, src.pattern, parity=src.parity)
+    assert src.path is not None
+    return FileSource(src.path, convert, src.pattern)

@@ -10,7 +10,7 @@ from __future__ import annotations
 import datetime as dt
 import math
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from gasbench.errors import InputError
 from gasbench.units import ATM_PA, T0_K, fmt_hours, fmt_pressure
@@ -142,3 +142,23 @@ def profile_display(prof: Profile | None, pressure_unit: str | None = None) -> D
     if prof is None:
         return display_for(pressure_unit)
     return display_for(pressure_unit or prof.display.pressure_unit, prof.ambient_pa)
+
+
+def live_text(lv: Any, d: Display) -> str:
+    """One line for a supply's live gauge (a :class:`gasbench.workflows.session.LiveSupply`):
+    its latest sample, the leak watch, or that it fell silent."""
+    from gasbench.render.numbers import fmt_uncertain
+
+    parts = []
+    if lv.silent:
+        parts.append(f"gauge SILENT ({lv.silent})")
+    if lv.sample is not None:
+        parts.append(f"live {d.gauge(lv.sample.pressure_abs_pa)} at {lv.sample.at.strftime('%H:%M:%S')}"
+                     + (f", {d.temperature(lv.sample.temperature_k)}" if lv.sample.temperature_k else ""))
+    elif not lv.silent:
+        parts.append("live: waiting for the first sample")
+    if lv.leak is not None:
+        parts.append(f"leak watch {lv.leak.verdict} "
+                     f"{fmt_uncertain(lv.leak.leak_rate_sccm, lv.leak.leak_rate_uncertainty_sccm, 'sccm')} "
+                     f"over {d.hours((lv.leak.until - lv.leak.since).total_seconds() / 3600)}")
+    return "; ".join(parts)

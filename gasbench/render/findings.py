@@ -141,6 +141,21 @@ TEMPLATES: dict[str, Template] = {
     "idle-drop-leak": lambda f, v, d: (
         f"{v['supply']} lost pressure between sessions beyond what temperature and the gauge explain: a leak — "
         "find and fix it first", _hold_figure(v)),
+    "leak-watch-leak": lambda f, v, d: (
+        f"the leak watch on {v['supply']} found a leak while the bench stood idle: find and fix it first",
+        _hold_figure(v)),
+    "alarm-reserve": lambda f, v, d: (
+        f"{f.subject} reaches its reserve in {d.hours(v['hours'])}" if v["hours"] > 0
+        else f"{f.subject} is at its reserve: close it and change the cylinder", f"{v['hours']:.2f} h"),
+    "alarm-over-time": lambda f, v, d: (
+        f"the session is over its planned time by {d.hours(v['over_hours'])}", f"+{v['over_hours']:.2f} h"),
+    "alarm-leak": lambda f, v, d: (
+        (f"the leak watch finds a leak on {f.subject}: close the cylinder and find it" if v["supply"]
+         else "a leak was found: see the findings"),
+        fmt_uncertain(v["leak_rate_sccm"], v["leak_rate_uncertainty_sccm"], "sccm") if v["supply"] else "leak"),
+    "alarm-fast-draw": lambda f, v, d: ("a supply empties faster than planned: see the findings", "faster"),
+    "alarm-gauge-silent": lambda f, v, d: (
+        f"the gauge of {f.subject} is silent: no good sample for several intervals ({v['why']})", "silent"),
     "hold-test-inconclusive": lambda f, v, d: (
         "the last hold test could not tell: hold longer or use a finer gauge", _hold_figure(v)),
     "hold-test-old": lambda f, v, d: (

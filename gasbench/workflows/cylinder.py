@@ -4,7 +4,8 @@ The profile holds the bench's design and the first fill; the journal holds what 
 since: readings (in a session or idle), struck readings, cylinder changes and hold tests.
 
 * :func:`journal_profile` — the profile with each supply's state from the journal: the last
-  reading not struck out since the last cylinder change, else that change's fill.
+  reading not struck out since the last cylinder change, else that change's fill — or the
+  latest live sample of its transducer when that is newer (:func:`latest_state`).
 * :func:`check_reading` — a typed reading against the supply's limits, and the questions an
   implausible one raises (a rise without a change, a drop far faster than planned, a unit that
   looks swapped), each a code with numbers for the interfaces to ask.
@@ -23,11 +24,12 @@ from dataclasses import dataclass, field
 
 from gasbench import gas as g
 from gasbench import hold as hd
-from gasbench.errors import InputError
+from gasbench.errors import InputError, JournalError
 from gasbench.journal import ChangeRow, Journal, ReadingRow
 from gasbench.profile import Profile, Supply, with_reading, with_weight
 from gasbench.quantities import check_text
-from gasbench.units import PSI_PA, Pressure
+from gasbench.samples import SampleStore
+from gasbench.units import PSI_PA, Pressure, fmt_pressure
 from gasbench.workflows.holds import HoldRecord, profile_gauge_spec, record_of, store
 
 __all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
@@ -102,6 +104,39 @@ def _apply(prof: Profile, s: Supply, pressure_abs: float | None, weight: float |
     return prof
 
 
+@dataclass(frozen=True)
+class LatestSample:
+    at: dt.datetime
+    pressure_abs_pa: float
+    temperature_k: float | None
+    text: str
+
+
+def latest_state(journal: Journal | None, prof: Profile, supply_id: str,
+                 tz: dt.tzinfo | None = None) -> LatestSample | None:
+    """The supply's latest good pressure sample (with the latest temperature sample of the
+    supply or the room), or None."""
+    if journal is None:
+        return None
+    store = SampleStore(journal)
+    try:
+        sid = store.stream(prof.bench.name, supply_id, "pressure")
+        got = store.latest(sid) if sid is not None else None
+        if got is None:
+            return None
+        temp = None
+        for owner in (supply_id, "room"):
+            tid = store.stream(prof.bench.name, owner, "temperature")
+            last = store.latest(tid) if tid is not None else None
+            if last is not None:
+                temp = last[1]
+                break
+    except JournalError:
+        return None
+    return LatestSample(dt.datetime.fromtimestamp(got[0], tz).replace(microsecond=0), got[1], temp, fmt_pressure(got[1], prof.ambient_pa))
+
+
+
 def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
     """The profile with every supply's state from the journal (see module docstring)."""
     if journal is None:
@@ -118,6 +153,13 @@ def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
             prof = _apply(prof, s, None, last_w.weight_kg, last_w.temperature_k, "")
         if last_p is not None:
             prof = _apply(prof, s, last_p.pressure_abs_pa, None, last_p.temperature_k, last_p.pressure_text)
+        live = latest_state(journal, prof, s.id)
+        if live is not None and not (s.gas.sold_liquefied and s.gross is not None):
+            newest = max([_dt(x) for x in (last_p.at if last_p else None, change.at if change else None) if x],
+                         default=None)
+            at = live.at if newest is None or newest.tzinfo is not None else live.at.replace(tzinfo=None)
+            if newest is None or at > newest:
+                prof = _apply(prof, s, live.pressure_abs_pa, None, live.temperature_k, live.text)
     return prof
 
 

@@ -282,9 +282,45 @@ def hold_test_findings(verdict: str | None, rate_sccm: float = math.nan, u_sccm:
                                 "leak_rate_uncertainty_sccm": u_sccm, "age_days": age_days,
                                 "kind": kind, "supply": supply_id}
     if verdict == "leak":
-        return [Finding("idle-drop-leak" if kind == "idle-drop" else "hold-test-leak", "stop", "leaks", values)]
+        code = {"idle-drop": "idle-drop-leak", "leak-watch": "leak-watch-leak"}.get(kind or "", "hold-test-leak")
+        return [Finding(code, "stop", "leaks", values)]
     if verdict == "inconclusive":
         return [Finding("hold-test-inconclusive", "attention", "leaks", values)]
     if age_days > HOLD_TEST_MAX_AGE_DAYS:
         return [Finding("hold-test-old", "attention", "leaks", values | {"max_age_days": HOLD_TEST_MAX_AGE_DAYS})]
     return [Finding("hold-test-ok", "info", "leaks", values)]
+
+
+# ----------------------------------------------------------------------------- alarms
+
+#: Findings that raise the leak alarm.
+LEAK_CODES = frozenset({"hold-test-leak", "idle-drop-leak", "leak-watch-leak"})
+
+
+def alarm_findings(hours_left: Mapping[str, float], drawing: Mapping[str, bool], alert_before_h: float,
+                   over_time_h: float | None, finding_codes: Iterable[str], silent: Mapping[str, str],
+                   live_leaks: Mapping[str, tuple[float, float]] | None = None) -> list[Finding]:
+    """The alarms now — conditions that need a person (bell, banner, a line in the journal):
+    a supply that draws gas and reaches its reserve within ``alert_before_h`` (or is there), the
+    session over its planned time (``over_time_h`` > 0), a leak among the findings or found by
+    the leak watch (``live_leaks``: rate and uncertainty [sccm] per supply), a draw faster than
+    planned, and a gauge that fell silent (``silent``: why, per supply). One finding per
+    condition and subject, so an interface rings once when one appears."""
+    out: list[Finding] = []
+    for sid, h in hours_left.items():
+        if drawing.get(sid) and h <= alert_before_h:
+            out.append(Finding("alarm-reserve", "warning", sid, {"hours": max(h, 0.0)}))
+    if over_time_h is not None and over_time_h > 0:
+        out.append(Finding("alarm-over-time", "warning", "session", {"over_hours": over_time_h}))
+    codes = set(finding_codes)
+    if codes & LEAK_CODES:
+        out.append(Finding("alarm-leak", "stop", "leaks", {"supply": None, "leak_rate_sccm": math.nan,
+                                                             "leak_rate_uncertainty_sccm": math.nan}))
+    for sid, (rate, u) in (live_leaks or {}).items():
+        out.append(Finding("alarm-leak", "stop", sid, {"supply": sid, "leak_rate_sccm": rate,
+                                                       "leak_rate_uncertainty_sccm": u}))
+    if "faster-than-planned" in codes:
+        out.append(Finding("alarm-fast-draw", "warning", "draws", {}))
+    for sid, why in silent.items():
+        out.append(Finding("alarm-gauge-silent", "warning", sid, {"why": why}))
+    return ranked(out)

@@ -23,16 +23,26 @@ from gasbench.workflows import build as pl
 from gasbench.workflows.bench import Assessment, findings_of, journal_state
 from gasbench.workflows.cylinder import (
     Entry,
+    LatestSample,
     Question,
     check_reading,
+    latest_state,
     parse_at,
     readings_since_change,
     record_change,
     record_reading,
 )
-from gasbench.workflows.findings import Finding
+from gasbench.workflows.findings import Finding, alarm_findings
 from gasbench.workflows.holds import LastHold, last_hold_test, profile_gauge_spec
 from gasbench.workflows.model import Observed, Plan
+from gasbench.workflows.watch import (
+    AlarmBook,
+    LeakWatch,
+    Watcher,
+    leak_watch,
+    live_draw,
+    record_leak_watch,
+)
 
 
 def now_local() -> dt.datetime:
@@ -57,6 +67,16 @@ class Reading:
                      self.weight_kg)
 
 
+@dataclass(frozen=True)
+class LiveSupply:
+    """What a supply's live gauge says now: its latest sample, the leak watch, silence."""
+
+    supply_id: str
+    sample: LatestSample | None
+    leak: LeakWatch | None
+    silent: str | None
+
+
 @dataclass
 class SessionState:
     """Everything the app shows, kept outside the widgets."""
@@ -72,6 +92,9 @@ class SessionState:
     readings: dict[str, list[Reading]] = field(default_factory=dict)
     observed: dict[str, Observed] = field(default_factory=dict)
     unsaved: list[Reading] = field(default_factory=list)
+    watcher: Watcher | None = None
+    live: dict[str, LiveSupply] = field(default_factory=dict)
+    alarm_book: AlarmBook | None = None
 
     # -- profile and plan
 
@@ -113,7 +136,16 @@ class SessionState:
         for s in self.profile.supplies:
             rs = sorted(self.readings.get(s.id, []), key=lambda r: r.at)
             sp = next(x for x in self.plan.supplies if x.id == s.id)
-            if len(rs) < 2 or sp.liquefied:
+            if sp.liquefied:
+                continue
+            if self.running and self.started_at is not None and s.source is not None:
+                # a live gauge: the samples since the session began give the observed draw
+                live = live_draw(self.journal, self.profile, s.id, self.started_at, self.clock(), sp.draw_kg_s,
+                                 sp.reserve_abs_pa)
+                if live is not None:
+                    self.observed[s.id] = live
+                    continue
+            if len(rs) < 2:
                 continue
             gauge = profile_gauge_spec(s.gauge)
             u_p = gauge.u_reading_pa if gauge is not None else 0.0
@@ -314,3 +346,71 @@ class SessionState:
         """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""
         assert self.plan is not None
         return list(findings_of(self.plan, self.last_hold_test(), self.observed, self.session_end, self.running))
+
+    # -- live gauges
+
+    def start_watching(self, describe: Callable[[Finding], str]) -> bool:
+        """Poll the profile's sources from now on (needs a journal and at least one source);
+        ``describe`` words an alarm for its journal line."""
+        if self.profile is None or self.journal is None:
+            return False
+        if not any(s.source or s.temperature_source for s in self.profile.supplies) and not (
+                self.profile.room is not None and self.profile.room.temperature_source is not None):
+            return False
+        self.stop_watching()
+        self.watcher = Watcher(self.profile, self.journal)
+        self.alarm_book = AlarmBook(self.journal, self.profile.bench.name, describe)
+        return True
+
+    def stop_watching(self) -> None:
+        if self.watcher is not None:
+            self.watcher.close()
+        self.watcher = None
+
+    def poll_sources(self) -> int:
+        """Read the sources that are due and store their samples (blocking: call from a worker)."""
+        return self.watcher.poll(self.clock()) if self.watcher is not None else 0
+
+    def refresh_live(self) -> None:
+        """Recompute the plan from the latest samples, run the leak watch of each idle supply
+        (storing a hold test once it resolves) and note silent gauges (blocking)."""
+        if self.profile is None:
+            return
+        now = self.clock()
+        self.recompute()
+        silent = self.watcher.silent(now) if self.watcher is not None else {}
+        live: dict[str, LiveSupply] = {}
+        for s in self.profile.supplies:
+            if s.source is None:
+                continue
+            lw = None if self.running else leak_watch(self.journal, self.profile, s.id, now)
+            if lw is not None and self.journal is not None:
+                try:
+                    record_leak_watch(self.journal, self.profile, lw)
+                except JournalError:
+                    pass
+            live[s.id] = LiveSupply(s.id, latest_state(self.journal, self.profile, s.id, now.tzinfo), lw,
+                                    silent.get(s.id))
+        self.live = live
+
+    def alarms(self, now: dt.datetime, finding_codes: set[str]) -> list[Finding]:
+        """The alarms now (the rule is :func:`gasbench.workflows.findings.alarm_findings`)."""
+        assert self.plan is not None
+        hours = {s.id: self.hours_left(s.id, now) for s in self.plan.supplies}
+        drawing = {s.id: s.draw_kg_s > 0 for s in self.plan.supplies}
+        ahead = self.profile.session.alert_before / 3600.0 if self.profile is not None else 0.5
+        over = None
+        if self.running and self.started_at is not None:
+            over = (now - self.started_at).total_seconds() / 3600.0 - self.plan.session_hours
+        leaks = {k: (v.leak.leak_rate_sccm, v.leak.leak_rate_uncertainty_sccm) for k, v in self.live.items()
+                 if v.leak is not None and v.leak.verdict == "leak"}
+        silent = {k: v.silent for k, v in self.live.items() if v.silent}
+        if self.watcher is not None:
+            silent |= self.watcher.silent(now)
+        return alarm_findings(hours, drawing, ahead, over, finding_codes, silent, leaks)
+
+    def new_alarms(self, alarms: list[Finding], now: dt.datetime, describe: Callable[[Finding], str]) -> list[Finding]:
+        """Keep the alarms showing; those that are new get a line in the journal (ring for them)."""
+        if self.alarm_book is None:
+            self.alarm_book = AlarmBook(self.journal, self.profile.bench.name if self.profile else "", describe)
+        return self.alarm_book.update(alarms, now)

@@ -15,13 +15,16 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
 from gasbench.errors import GasbenchError, JournalError
-from gasbench.render.display import Display, profile_display
-from gasbench.render.findings import question_text
+from gasbench.render.display import Display, live_text, profile_display
+from gasbench.render.findings import describe, question_text
 from gasbench.render.numbers import fmt_uncertain, fmt_value
 from gasbench.tui.widgets import FindingsPanel, bar
 from gasbench.units import fmt_hours
 from gasbench.workflows.findings import Finding
 from gasbench.workflows.session import Reading, SessionState
+
+#: How often the live figures (plan, leak watch, alarms) are recomputed from new samples [s].
+LIVE_REFRESH_S = 5.0
 
 
 class OverviewScreen(Screen[None]):
@@ -47,7 +50,7 @@ class OverviewScreen(Screen[None]):
         #: the pressure unit shown; starts from the profile's [display] setting, `u` cycles it
         self.pressure_unit: str | None = None
         self._findings: list[Finding] = []
-        self._alerted: set[str] = set()
+        self._live_at: dt.datetime | None = None
 
     @property
     def units(self) -> Display:
@@ -112,6 +115,11 @@ class OverviewScreen(Screen[None]):
     def _plan_ready(self) -> None:
         self.refresh_view()
         st = self.state
+        if st.watcher is None and st.start_watching(lambda f: describe(f, self.units)[0]):
+            assert st.watcher is not None
+            every = min(f.interval_s for f in st.watcher.feeds)
+            self.set_interval(max(0.2, min(every, 5.0)), self.poll_live)
+            self.notify(f"Reading {len(st.watcher.feeds)} live gauge(s)", title="Live")
         if st.journal is not None and st.profile is not None and not st.running:
             row = st.journal.unfinished_session(st.profile.bench.name)
             if row is not None:
@@ -133,6 +141,21 @@ class OverviewScreen(Screen[None]):
         self.state.resume(session_id)
         self.notify(f"Session #{session_id} resumed", title="Session")
         self.load_plan()
+
+    @work(thread=True, exclusive=True, group="live")
+    def poll_live(self) -> None:
+        """Read the live gauges that are due; every few seconds the plan, the leak watch and the
+        alarms follow (in a worker: sources and CoolProp never block the screen)."""
+        st = self.state
+        try:
+            st.poll_sources()
+            now = st.clock()
+            if self._live_at is None or (now - self._live_at).total_seconds() >= LIVE_REFRESH_S:
+                self._live_at = now
+                st.refresh_live()
+                self.app.call_from_thread(self.refresh_view)
+        except GasbenchError as exc:
+            self.app.call_from_thread(self.notify, str(exc), title="Live gauges", severity="error", timeout=10)
 
     def _error(self, msg: str) -> None:
         self.query_one("#status", Static).update(Text(f"✖ {msg}"))
@@ -191,6 +214,8 @@ class OverviewScreen(Screen[None]):
             parts.append(f"{s.id}: observed {fmt_uncertain(ob.draw_kg_s * 6e4, ob.draw_uncertainty_kg_s * 6e4, 'g/min')}"
                          f" vs planned {fmt_value(s.draw_kg_s * 6e4)} g/min"
                          + ("  ▲ faster than planned" if ob.faster_than_planned else ""))
+        for sid, lv in st.live.items():
+            parts.append(f"{sid}: {live_text(lv, self.units)}")
         self.query_one("#observed", Static).update(Text("\n".join(parts)))
 
     def tick(self) -> None:
@@ -353,33 +378,17 @@ class OverviewScreen(Screen[None]):
             self.load_plan()
 
     def _alerts(self, now: dt.datetime) -> None:
-        """Bell and banner: a supply near its reserve, the session over time, a leak or a draw
-        faster than planned among the findings. The bell rings once per new condition."""
+        """Bell and banner for the alarms (the rule lives in the application layer); the bell
+        rings, and the journal gets a line, once per new alarm."""
         st = self.state
-        assert st.plan is not None
-        ahead = st.profile.session.alert_before / 3600.0 if st.profile is not None else 0.5
-        alerts: dict[str, str] = {}
-        for s in st.plan.supplies:
-            h = st.hours_left(s.id, now)
-            if s.draw_kg_s > 0 and h <= ahead:
-                alerts[f"reserve:{s.id}"] = (f"{s.id} reaches its reserve in {fmt_hours(h)}" if h > 0
-                                             else f"{s.id} is at its reserve: change the cylinder")
-        if st.running and st.started_at is not None:
-            over = (now - st.started_at).total_seconds() / 3600.0 - st.plan.session_hours
-            if over > 0:
-                alerts["over"] = f"session over its planned time by {fmt_hours(over)}"
-        codes = {f.code for f in self._findings}
-        if codes & {"hold-test-leak", "idle-drop-leak"}:
-            alerts["leak"] = "a leak was found: see the findings"
-        if "faster-than-planned" in codes:
-            alerts["fast"] = "a supply empties faster than planned"
-        text = "   ▲ ".join(alerts.values())
+        alarms = st.alarms(now, {f.code for f in self._findings})
+        new = st.new_alarms(alarms, now, lambda f: describe(f, self.units)[0])
+        text = "   ▲ ".join(describe(a, self.units)[0] for a in alarms)
         banner = self.query_one("#banner", Static)
         self._set("banner", text, lambda v: banner.update(Text(f"▲ {v}" if v else "")))
-        banner.display = bool(alerts)
-        if set(alerts) - self._alerted:
+        banner.display = bool(alarms)
+        if new:
             self.app.bell()
-        self._alerted = set(alerts)
 
     def action_reload(self) -> None:
         self.reload_profile()
