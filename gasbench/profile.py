@@ -186,9 +186,16 @@ class Source(SourceBase):
 
     range: PressureQ | None = None
     """The transducer's full scale: values beyond it are flagged, never used."""
+    accuracy_class: float | None = Field(default=None, gt=0, le=5)
+    """The transducer's accuracy in % of its range (with ``range``: the leak watch uses it
+    instead of the supply's dial gauge)."""
+    resolution: PressureQ | None = None
+    """The smallest step the transducer reports (samples are stored within it)."""
 
     def _check_unit(self) -> None:
         u.parse_pressure(f"1 {self.value_unit}")  # a pressure unit, gauge or absolute
+        if self.accuracy_class is not None and self.range is None:
+            raise InputError("a source's accuracy_class needs its range (the span it is a percentage of)")
 
 
 class TemperatureSource(SourceBase):

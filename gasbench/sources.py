@@ -236,6 +236,13 @@ class SerialSource:
         self.port.close()
 
 
+def _quiet_pymodbus() -> None:
+    """pymodbus logs every failed connection on its own; a failed read is a bad sample here."""
+    import logging
+
+    logging.getLogger("pymodbus").setLevel(logging.CRITICAL)
+
+
 class ModbusSource:
     """A transducer (or a gateway) on Modbus, read with pymodbus — over TCP, or over a serial
     line in RTU framing (RS-485): ``value`` in holding (or input) registers from ``register``,
@@ -245,6 +252,7 @@ class ModbusSource:
                  input_registers: bool = False) -> None:
         if fmt not in FORMATS:
             raise InputError(f"register format {fmt!r} is not one of {', '.join(FORMATS)}")
+        _quiet_pymodbus()
         self.client, self.where, self.convert = client, f"{where} device {device} register {register}", convert
         self.device, self.register, self.fmt, self.input = device, register, fmt, input_registers
 

@@ -34,6 +34,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "swap": ("cylinder", "record a cylinder change: the new fill of a supply"),
     "strike": ("cylinder", "strike a wrong reading out (kept and marked, with the reason)"),
     "status": ("cylinder", "where each supply stands: last reading, time to reserve, latest hold test, findings"),
+    "watch": ("live", "read a profile's live gauges: samples into the journal, leak watch, alarms"),
     "simulate": ("live", "serve a simulated cylinder as a Modbus/TCP pressure transducer"),
     "open": ("", "open the app on a bench profile"),
 }

@@ -179,6 +179,31 @@ def _seconds(hours: float) -> float | None:
     return hours * 3600.0 if math.isfinite(hours) else None
 
 
+def _live(j: Journal | None, prof: Profile, sid: str, now: dt.datetime, amb: float) -> dict[str, Any] | None:
+    """The supply's latest live sample and leak watch (None without samples); a resolved leak
+    watch is stored as a hold test, as the app and ``watch`` do."""
+    from gasbench.workflows.cylinder import latest_state
+    from gasbench.workflows.watch import leak_watch, record_leak_watch
+
+    sample = latest_state(j, prof, sid, now.tzinfo)
+    if sample is None:
+        return None
+    lw = leak_watch(j, prof, sid, now)
+    if lw is not None and j is not None:
+        record_leak_watch(j, prof, lw)
+    last = cy.readings_since_change(j, prof.bench.name, sid)
+    change = cy.current_change(j, prof.bench.name, sid)
+    stamps = [dt.datetime.fromisoformat(x) for x in (last[-1].at if last else None, change.at if change else None) if x]
+    newest = max((x if x.tzinfo else x.replace(tzinfo=now.tzinfo) for x in stamps), default=None)
+    return {"at": sample.at.isoformat(), "pressure_abs_pa": sample.pressure_abs_pa,
+            "pressure_gauge_pa": sample.pressure_abs_pa - amb, "temperature_k": sample.temperature_k,
+            "current": newest is None or sample.at > newest,
+            "leak_verdict": lw.verdict if lw else None, "leak_rate_sccm": lw.leak_rate_sccm if lw else None,
+            "leak_rate_uncertainty_sccm": lw.leak_rate_uncertainty_sccm if lw else None,
+            "leak_target_sccm": lw.target_sccm if lw else None, "leak_since": lw.since.isoformat() if lw else None,
+            "leak_samples": lw.n if lw else None}
+
+
 def cmd_status(args: argparse.Namespace) -> int:
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
@@ -192,22 +217,29 @@ def cmd_status(args: argparse.Namespace) -> int:
             history = cy.readings_since_change(j, prof.bench.name, sp.id)
             change = cy.current_change(j, prof.bench.name, sp.id)
             last = history[-1] if history else None
+            live = _live(j, prof, sp.id, now, a.plan.ambient_pa)
             tests = [h for h in (j.hold_tests(prof.bench.name) if j else []) if h.supply_id == sp.id]
             ht = tests[-1] if tests else None
+            lv = live or {}
+            from_live = lv.get("leak_verdict") is not None
             supplies.append(cast(dict[str, Any], {
                 "id": sp.id, "gas": sp.gas_name,
                 "pressure_abs_pa": sp.pressure_abs_pa, "pressure_gauge_pa": sp.pressure_abs_pa - a.plan.ambient_pa,
                 "temperature_k": sp.temperature_k, "liquefied": sp.liquefied,
                 "last_reading_at": last.at if last else None, "last_reading_id": last.id if last else None,
-                "reading_source": ("cylinder change" if change and last and last.at == change.at
+                "reading_source": ("live gauge" if live is not None and live["current"]
+                                   else "cylinder change" if change and last and last.at == change.at
                                    else "journal" if last else "profile"),
                 "mass_kg": sp.mass_kg, "usable_mass_kg": sp.usable_mass_kg,
                 "time_to_reserve_s": _seconds(sp.hours_to_reserve), "reserve_at": sp.reserve_at,
                 "cylinder_label": change.label if change else None,
                 "retest_due": change.retest_due if change else None,
-                "leak_verdict": ht.verdict if ht else None,
-                "leak_rate_sccm": ht.leak_rate_sccm if ht else None,
-                "leak_rate_uncertainty_sccm": ht.leak_rate_uncertainty_sccm if ht else None,
+                "leak_verdict": lv["leak_verdict"] if from_live else ht.verdict if ht else None,
+                "leak_rate_sccm": lv["leak_rate_sccm"] if from_live else ht.leak_rate_sccm if ht else None,
+                "leak_rate_uncertainty_sccm": (lv["leak_rate_uncertainty_sccm"] if from_live
+                                               else ht.leak_rate_uncertainty_sccm if ht else None),
+                "leak_source": "leak watch" if from_live else "hold test" if ht else None,
+                "live": live,
                 "hold_test_at": ht.at if ht else None, "hold_test_kind": ht.kind if ht else None,
                 "order_by": _order_date(a.orders.get(sp.id)),
                 "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,
@@ -232,7 +264,13 @@ def cmd_status(args: argparse.Namespace) -> int:
                 ("contents", f"{s['mass_kg']:.3f} kg; usable {s['usable_mass_kg']:.3f} kg"),
                 ("to reserve", d.hours(s["time_to_reserve_s"] / 3600 if s["time_to_reserve_s"] is not None
                                        else math.inf))]
-        if s["leak_verdict"]:
+        if s["live"] is not None:
+            lv = s["live"]
+            rows.append(("live gauge", f"{d.gauge(lv['pressure_abs_pa'])} at {lv['at'][11:19]}"
+                         + (f"; leak watch {lv['leak_verdict']}, {lv['leak_rate_sccm']:.3g} ± "
+                            f"{lv['leak_rate_uncertainty_sccm']:.2g} sccm since {lv['leak_since'][11:16]}"
+                            if lv["leak_verdict"] else "")))
+        if s["leak_verdict"] and s["leak_source"] == "hold test":
             rows.append(("last hold test", f"{s['leak_verdict']}, {s['leak_rate_sccm']:.3g} ± "
                                            f"{s['leak_rate_uncertainty_sccm']:.2g} sccm ({s['hold_test_kind'] or 'manual'})"))
         if s["order_by"]:

@@ -313,7 +313,7 @@ def alarm_findings(hours_left: Mapping[str, float], drawing: Mapping[str, bool],
     if over_time_h is not None and over_time_h > 0:
         out.append(Finding("alarm-over-time", "warning", "session", {"over_hours": over_time_h}))
     codes = set(finding_codes)
-    if codes & LEAK_CODES:
+    if codes & LEAK_CODES and not live_leaks:
         out.append(Finding("alarm-leak", "stop", "leaks", {"supply": None, "leak_rate_sccm": math.nan,
                                                              "leak_rate_uncertainty_sccm": math.nan}))
     for sid, (rate, u) in (live_leaks or {}).items():

@@ -16,10 +16,10 @@ from dataclasses import asdict, dataclass
 from gasbench.errors import InputError, JournalError
 from gasbench.hold import GaugeSpec, HoldResult
 from gasbench.journal import Journal
-from gasbench.profile import Gauge
+from gasbench.profile import Gauge, Supply
 from gasbench.workflows.findings import Finding, hold_test_findings
 
-__all__ = ["gauge_spec", "profile_gauge_spec", "HoldRecord", "record_of", "store", "LastHold",
+__all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "HoldRecord", "record_of", "store", "LastHold",
            "last_hold_test", "hold_finding"]
 
 #: EN 837-1 accuracy classes run from 0.1 to 4; allow a little either side for other standards.
@@ -46,6 +46,16 @@ def profile_gauge_spec(gauge: Gauge | None) -> GaugeSpec | None:
         return None
     return gauge_spec(gauge.range.typed_pa, gauge.accuracy_class,
                       gauge.resolution.typed_pa if gauge.resolution is not None else None)
+
+
+def source_gauge_spec(supply: Supply) -> GaugeSpec | None:
+    """The gauge a supply's live samples are judged with: its transducer's (a source with range
+    and accuracy class), else the supply's gauge."""
+    src = supply.source
+    if src is not None and src.range is not None and src.accuracy_class is not None:
+        return gauge_spec(src.range.typed_pa, src.accuracy_class,
+                          src.resolution.typed_pa if src.resolution is not None else None)
+    return profile_gauge_spec(supply.gauge)
 
 
 @dataclass(frozen=True)

@@ -38,7 +38,7 @@ from gasbench.sources import LiveSource, SampleFilter, make_source
 from gasbench.workflows import build as pl
 from gasbench.workflows.cylinder import current_change
 from gasbench.workflows.findings import Finding
-from gasbench.workflows.holds import HoldRecord, profile_gauge_spec, record_of, store
+from gasbench.workflows.holds import HoldRecord, record_of, source_gauge_spec, store
 from gasbench.workflows.model import Observed
 
 __all__ = ["SILENT_INTERVALS", "BACKOFF_MAX_S", "sample_tolerance", "Feed", "Watcher", "LeakWatch", "leak_watch",
@@ -51,7 +51,7 @@ BACKOFF_MAX_S = 60.0
 #: Temperature samples are kept within this [K] (a good Pt100 resolves 0.01 K; gasbench default).
 TEMPERATURE_TOLERANCE_K = 0.05
 #: The leak watch needs this many samples over at least this span [s] before it says anything.
-LEAK_MIN_SAMPLES, LEAK_MIN_SPAN_S = 10, 600.0
+LEAK_MIN_SAMPLES, LEAK_MIN_SPAN_S = 10, 60.0
 #: The leak watch looks back at most this far [s].
 LEAK_MAX_SPAN_S = 14 * 86400.0
 #: At most this many samples go into a fit (evenly spaced by index beyond it).
@@ -62,9 +62,12 @@ SPAN_RESOLUTION = 1e-4
 
 
 def sample_tolerance(s: Supply) -> float:
-    """How close [Pa] the stored trace of a supply's pressure stays to every sample: the gauge's
-    resolution, else 0.01 % of its span (or of the transducer's range), else 100 Pa."""
-    spec = profile_gauge_spec(s.gauge)
+    """How close [Pa] the stored trace of a supply's pressure stays to every sample: the
+    transducer's (or gauge's) resolution, else 0.01 % of its span (or of the transducer's
+    range), else 100 Pa."""
+    if s.source is not None and s.source.resolution is not None:
+        return s.source.resolution.typed_pa
+    spec = source_gauge_spec(s)
     if spec is not None and spec.resolution_pa is not None:
         return spec.resolution_pa
     if spec is not None:
@@ -304,7 +307,7 @@ def leak_watch(journal: Journal | None, prof: Profile, supply_id: str, now: dt.d
     log = hd.HoldLog(tuple(float(x) for x in t - t[0]), tuple(float(x) for x in p),
                      tuple(float(x) for x in T) if measured else None)
     try:
-        fit = hd.hold_from_log(s.gas, s.water_volume, log, profile_gauge_spec(s.gauge),
+        fit = hd.hold_from_log(s.gas, s.water_volume, log, source_gauge_spec(s),
                                T_default=float(T[0]), reserve_abs=s.reserve.abs_at(amb),
                                ambient_pa=amb)
     except GasbenchError:
@@ -350,7 +353,7 @@ def live_draw(journal: Journal | None, prof: Profile, supply_id: str, since: dt.
     keep = _thin(len(t), 200)
     t, p = t[keep], p[keep]
     T, _ = _temperatures(store, prof, supply_id, t, s.reading_temperature or prof.ambient.temperature)
-    spec = profile_gauge_spec(s.gauge)
+    spec = source_gauge_spec(s)
     rows = [(_dt(float(a), now.tzinfo), float(b), float(c)) for a, b, c in zip(t, p, T, strict=True)]
     try:
         return pl.observed_draw(s.gas, s.water_volume, reserve_abs_pa, planned_kg_s, rows,

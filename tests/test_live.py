@@ -1,0 +1,445 @@
+"""Live gauges end to end: real pymodbus servers on 127.0.0.1 (the simulator, and one serving
+every register format), Modbus RTU through a pseudo-terminal, a growing log file, the watcher,
+the leak watch against ``hold --log``, alarms, ``watch`` and ``status``. Bounded in time."""
+
+from __future__ import annotations
+
+import asyncio
+import datetime as dt
+import json
+import os
+import signal
+import socket
+import sqlite3
+import struct
+import subprocess
+import sys
+import threading
+import time
+from pathlib import Path
+
+import pymodbus  # noqa: F401  (the package once, before threads import its parts)
+import pytest
+
+from gasbench import gas as g
+from gasbench import supply
+from gasbench.cli import main
+from gasbench.journal import Journal
+from gasbench.profile import parse_profile
+from gasbench.samples import SampleStore
+from gasbench.simulator import Cylinder, serve
+from gasbench.units import parse_flow
+from gasbench.workflows.findings import alarm_findings
+from gasbench.workflows.watch import (
+    SILENT_INTERVALS,
+    AlarmBook,
+    Watcher,
+    leak_watch,
+    record_leak_watch,
+)
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
+ANCHOR = 'gauge = { range = "315 bar", accuracy_class = 1.6 }\n'
+BENCH = parse_profile(DEMO, "demo.toml").bench.name
+AMB = 101325.0
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+def _profile(tmp_path: Path, source: str, extra: str = "") -> Path:
+    p = tmp_path / "live.toml"
+    p.write_text(DEMO.replace(ANCHOR, ANCHOR + "\n[supplies.source]\n" + source + extra, 1))
+    return p
+
+
+def _file_source(log: Path, interval: str = "0.2 s") -> str:
+    return (f'kind = "file"\npath = "{log}"\nvalue_unit = "bar"\ninterval = "{interval}"\n'
+            'range = "250 bar"\naccuracy_class = 0.1\nresolution = "0.01 bar"\n')
+
+
+def _serve_in_thread(cyl: Cylinder, port: int, seconds: float) -> threading.Thread:
+    t = threading.Thread(target=lambda: asyncio.run(serve(cyl, port, duration_s=seconds)), daemon=True)
+    t.start()
+    return t
+
+
+# ----------------------------------------------------------------------------- the leak watch
+
+
+def test_leak_watch_agrees_with_hold_log_on_the_same_drop(tmp_path, capsys):
+    # 8 h of a 50 L nitrogen cylinder losing 150 sccm, sampled every 30 s and read to 0.01 bar; the
+    # pressures come from the simulator's own mass balance (CoolProp density inverted), not from
+    # the hold test's Z table
+    n2 = g.parse_gas("nitrogen")
+    loss = supply.mass_flow(n2, parse_flow("150 sccm"))
+    cyl = Cylinder(n2, 0.050, 64e5 + AMB, 294.15, loss)
+    prof = parse_profile(_profile(tmp_path, _file_source(tmp_path / "unused.log")).read_text(), "live.toml")
+    end = dt.datetime(2026, 12, 1, 7, 0, tzinfo=dt.UTC)
+    t0 = end.timestamp() - 8 * 3600
+    times = [t0 + 30.0 * i for i in range(8 * 120 + 1)]
+    ps = [round((cyl.pressure_at(t - t0) - AMB) / 1000.0) * 1000.0 + AMB for t in times]
+    temps = [294.15 + 0.3 * ((i % 240) / 240.0) for i in range(len(times))]  # a slow swing, measured
+    with Journal(tmp_path / "j.sqlite3") as j:
+        store = SampleStore(j)
+        sp = store.stream(BENCH, "n2-A", "pressure", 1000.0)
+        st = store.stream(BENCH, "n2-A", "temperature", 0.0)
+        store.add(sp, list(zip(times, ps, strict=True)))
+        store.add(st, list(zip(times, temps, strict=True)))
+        lw = leak_watch(j, prof, "n2-A", end)
+        assert lw is not None and lw.temperature_measured and lw.n == len(times)
+        rec = record_leak_watch(j, prof, lw)
+        assert rec is not None and rec.kind == "leak-watch"
+        assert record_leak_watch(j, prof, lw) is None  # stored once
+        (row,) = j.hold_tests(BENCH)
+        assert row.leak_rate_sccm == lw.leak_rate_sccm
+    log = tmp_path / "drop.csv"
+    log.write_text("time (s),pressure (bara),temperature (K)\n" + "".join(
+        f"{t - t0!r},{p / 1e5!r},{T!r}\n" for t, p, T in zip(times, ps, temps, strict=True)))
+    assert main(["hold", "--gas", "nitrogen", "--volume", "50 L", "--log", str(log), "--gauge-range", "250 bar",
+                 "--gauge-class", "0.1", "--resolution", "0.01 bar", "--json"]) == 0
+    held = json.loads(capsys.readouterr().out)
+    assert lw.leak_rate_sccm == pytest.approx(held["leak_rate_sccm"], rel=1e-9)
+    assert lw.leak_rate_uncertainty_sccm == pytest.approx(held["leak_rate_uncertainty_sccm"], rel=1e-9)
+    assert lw.verdict == held["verdict"]
+    # and the simulated truth, 150 sccm, lies within the expanded uncertainty
+    assert abs(lw.leak_rate_sccm - 150.0) <= 2 * lw.leak_rate_uncertainty_sccm
+
+
+def test_no_leak_watch_while_a_session_runs_or_with_too_few_samples(tmp_path):
+    prof = parse_profile(_profile(tmp_path, _file_source(tmp_path / "x.log")).read_text(), "live.toml")
+    now = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    with Journal(tmp_path / "j.sqlite3") as j:
+        store = SampleStore(j)
+        sid = store.stream(BENCH, "n2-A", "pressure", 1000.0)
+        store.add(sid, [(now.timestamp() - 3600 + 10 * i, 65e5 - i) for i in range(5)])
+        assert leak_watch(j, prof, "n2-A", now) is None  # five samples say nothing yet
+        store.add(sid, [(now.timestamp() - 3000 + 10 * i, 65e5 - i) for i in range(300)])
+        assert leak_watch(j, prof, "n2-A", now) is not None
+        j.start_session(BENCH, None, (now - dt.timedelta(minutes=30)).isoformat())
+        assert leak_watch(j, prof, "n2-A", now) is None  # drawing gas: the session's fit, not a leak test
+
+
+# ----------------------------------------------------------------------------- real servers
+
+
+def test_every_register_format_from_a_real_modbus_server():
+    from pymodbus.server import ModbusTcpServer
+    from pymodbus.simulator import DataType, SimData, SimDevice
+
+    from gasbench.sources import modbus_tcp
+
+    values = {"int16": -1234, "uint16": 54321, "int32": -123456789, "uint32": 3_000_000_000,
+              "float32": 149.875, "float32-swapped": 149.875}
+    regs: list[int] = []
+    where: dict[str, int] = {}
+    for fmt, v in values.items():  # encoded independently with struct (IEEE 754, two's complement)
+        code = {"int16": ">h", "uint16": ">H", "int32": ">i", "uint32": ">I"}.get(fmt, ">f")
+        raw = struct.pack(code, v)
+        words = [int.from_bytes(raw[i:i + 2], "big") for i in range(0, len(raw), 2)]
+        where[fmt] = len(regs)
+        regs += words[::-1] if fmt.endswith("swapped") else words
+    port = _free_port()
+
+    async def run() -> None:
+        dev = SimDevice(1, simdata=[SimData(0, values=regs, datatype=DataType.REGISTERS)])
+        server = ModbusTcpServer(dev, address=("127.0.0.1", port))
+        task = asyncio.create_task(server.serve_forever())
+        await asyncio.sleep(3.0)
+        await server.shutdown()
+        task.cancel()
+
+    th = threading.Thread(target=lambda: asyncio.run(run()), daemon=True)
+    th.start()
+    try:
+        for fmt, v in values.items():
+            src = modbus_tcp("127.0.0.1", port, 1, where[fmt], fmt, lambda x: x, timeout_s=1.0)
+            got = None
+            for _ in range(40):
+                got = src.read(dt.datetime.now(dt.UTC))
+                if got.good:
+                    break
+                time.sleep(0.05)
+            src.close()
+            assert got is not None and got.good, (fmt, got)
+            assert got.value == pytest.approx(v), fmt
+    finally:
+        th.join(timeout=10)
+
+
+def _crc16_modbus(data: bytes) -> int:
+    # CRC-16/MODBUS written out here (reflected poly 0xA001, init 0xFFFF); its catalogue check
+    # value is 0x4B37 for "123456789" (asserted below)
+    crc = 0xFFFF
+    for b in data:
+        crc ^= b
+        for _ in range(8):
+            crc = (crc >> 1) ^ 0xA001 if crc & 1 else crc >> 1
+    return crc
+
+
+def test_modbus_rtu_through_a_pseudo_terminal():
+    from gasbench.sources import modbus_rtu
+
+    assert _crc16_modbus(b"123456789") == 0x4B37
+    master, slave = os.openpty()
+    served: list[bytes] = []
+    stop = threading.Event()
+
+    def device() -> None:  # a transducer at unit 7 answering "read holding registers"
+        buf = b""
+        while not stop.is_set():
+            import select
+
+            r, _, _ = select.select([master], [], [], 0.1)
+            if not r:
+                continue
+            buf += os.read(master, 256)
+            if len(buf) < 8:
+                continue
+            req, buf = buf[:8], buf[8:]
+            assert _crc16_modbus(req[:6]) == int.from_bytes(req[6:8], "little")
+            served.append(req)
+            unit, fc, addr, count = req[0], req[1], int.from_bytes(req[2:4], "big"), int.from_bytes(req[4:6], "big")
+            data = struct.pack(">f", 148.25)  # bar(g), float32
+            body = bytes([unit, fc, 2 * count]) + data
+            os.write(master, body + _crc16_modbus(body).to_bytes(2, "little"))
+            assert (fc, addr, count) == (3, 10, 2)
+
+    th = threading.Thread(target=device, daemon=True)
+    th.start()
+    src = modbus_rtu(os.ttyname(slave), 19200, "N", 7, 10, "float32",
+                     lambda x: x * 1e5 + AMB, timeout_s=1.0)
+    try:
+        s = src.read(dt.datetime.now(dt.UTC))
+        assert s.good, s
+        assert s.value == pytest.approx(148.25e5 + AMB)
+        assert served and served[0][0] == 7
+    finally:
+        stop.set()
+        src.close()
+        th.join(timeout=5)
+        os.close(master)
+        os.close(slave)
+
+
+def test_a_source_that_dies_gives_gauge_silent_and_loses_no_stored_sample(tmp_path):
+    n2 = g.parse_gas("nitrogen")
+    port = _free_port()
+    cyl = Cylinder(n2, 0.05, 64e5 + AMB, 293.15, loss_kg_s=1e-4, speed=60.0)
+    th = _serve_in_thread(cyl, port, 2.5)
+    src = (f'kind = "modbus-tcp"\nhost = "127.0.0.1"\nport = {port}\nregister = 0\nvalue_unit = "bar"\n'
+           'interval = "0.2 s"\n')
+    temp = (f'\n[supplies.temperature_source]\nkind = "modbus-tcp"\nhost = "127.0.0.1"\nport = {port}\n'
+            'register = 2\nvalue_unit = "degC"\ninterval = "0.5 s"\n')
+    prof = parse_profile(_profile(tmp_path, src, temp).read_text(), "live.toml")
+    with Journal(tmp_path / "j.sqlite3") as j:
+        w = Watcher(prof, j)
+        silent_at = None
+        t_end = time.monotonic() + 6.0
+        while time.monotonic() < t_end:
+            w.poll(dt.datetime.now(dt.UTC))
+            if w.silent(dt.datetime.now(dt.UTC)):
+                silent_at = time.monotonic()
+                break
+            time.sleep(max(0.01, min(w.next_due(), 0.2)))
+        feeds = {f.quantity: f for f in w.feeds}
+        w.close()
+        assert silent_at is not None, "the gauge never went silent"
+        assert "cannot reach" in w.silent(dt.datetime.now(dt.UTC))["n2-A"]
+        store = SampleStore(j)
+        sid = store.stream(BENCH, "n2-A", "pressure")
+        raw, packed, _ = store.counts(sid)
+        assert raw == feeds["pressure"].stored  # every sample the watcher took is in the journal
+        good = len(store.points(sid, 0, 4e9)[0])
+        assert good >= 5  # ~2.5 s at 0.2 s
+        tid = store.stream(BENCH, "n2-A", "temperature")
+        assert store.latest(tid)[1] == pytest.approx(293.15, abs=1e-4)  # 20 °C from register 2
+    th.join(timeout=10)
+
+
+def test_reconnects_back_off():
+    from gasbench.workflows.watch import BACKOFF_MAX_S
+
+    prof = parse_profile(DEMO.replace(ANCHOR, ANCHOR + f'\n[supplies.source]\nkind = "modbus-tcp"\nhost = '
+                                      f'"127.0.0.1"\nport = {_free_port()}\ninterval = "1 s"\n', 1), "x.toml")
+    clock = [0.0]
+
+    class FakeJournal:  # the watcher's scheduling only; no sample reaches the store
+        pass
+
+    import tempfile
+
+    with tempfile.TemporaryDirectory() as d, Journal(Path(d) / "j.sqlite3") as j:
+        w = Watcher(prof, j, monotonic=lambda: clock[0])
+        waits = []
+        for _ in range(9):
+            clock[0] += w.next_due()
+            w.poll(dt.datetime.now(dt.UTC))
+            waits.append(w.feeds[0].due - clock[0])
+        w.close()
+    assert waits[:6] == [1.0, 2.0, 4.0, 8.0, 16.0, 32.0] and max(waits) == BACKOFF_MAX_S
+
+
+# ----------------------------------------------------------------------------- the command line
+
+
+def _count(journal: Path) -> int:
+    try:
+        db = sqlite3.connect(f"file:{journal}?mode=ro", uri=True)
+    except sqlite3.Error:
+        return 0  # not created yet
+    try:
+        return db.execute("SELECT COUNT(*) FROM samples").fetchone()[0]
+    except sqlite3.Error:
+        return 0
+    finally:
+        db.close()
+
+
+def test_watch_runs_for_its_duration_stores_samples_and_status_shows_them(tmp_path, capsys):
+    log = tmp_path / "gauge.log"
+    now = dt.datetime.now().astimezone().replace(microsecond=0)
+    log.write_text("".join(f"{(now - dt.timedelta(seconds=600 - 5 * i)).isoformat()},{64 - 0.002 * i:.3f}\n"
+                           for i in range(120)))
+    prof = _profile(tmp_path, _file_source(log))
+    journal = tmp_path / "j.sqlite3"
+    assert main(["--journal", str(journal), "watch", str(prof), "--for", "1.5 s", "--every", "0.5 s"]) == 0
+    out = capsys.readouterr().out
+    assert "n2-A" in out and "live 63.8 bar(g)" in out and "stopped: 120 sample(s) stored" in out
+    assert _count(journal) == 120
+    assert main(["--journal", str(journal), "status", str(prof), "--json"]) == 0
+    s = json.loads(capsys.readouterr().out)["supplies"][0]
+    for key in ("pressure_gauge_pa", "leak_rate_sccm", "leak_verdict"):
+        assert key in s and key in s["live"]
+    assert s["reading_source"] == "live gauge"
+    assert s["pressure_gauge_pa"] == pytest.approx(63.762e5, abs=1.0)
+    assert s["live"]["leak_verdict"] in ("leak", "inconclusive", "no-leak-resolved")
+    assert s["leak_source"] == "leak watch" and s["live"]["leak_samples"] == 120
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--for", "1 s"], "no [supplies.source]"),
+    (["--every", "0 s"], "--every"),
+    (["--for", "-3 s"], "--for"),
+])
+def test_watch_bad_input_is_one_line_and_exit_2(tmp_path, capsys, argv, words):
+    prof = tmp_path / "p.toml"
+    prof.write_text(DEMO if "no [" in words else _profile(tmp_path, _file_source(tmp_path / "g.log")).read_text())
+    assert main(["watch", str(prof), *argv]) == 2
+    err = capsys.readouterr().err
+    assert words in err and err.count("\n") == 1
+
+
+def test_a_killed_watcher_loses_at_most_the_last_interval(tmp_path):
+    log = tmp_path / "gauge.log"
+    log.write_text("")
+    prof = _profile(tmp_path, _file_source(log, "0.2 s"))
+    journal = tmp_path / "j.sqlite3"
+    env = dict(os.environ, PYTHONUNBUFFERED="1")
+    proc = subprocess.Popen([sys.executable, "-m", "gasbench", "--journal", str(journal), "watch", str(prof),
+                             "--for", "60 s", "--every", "1 s"], stdout=subprocess.DEVNULL,
+                            stderr=subprocess.DEVNULL, env=env)
+    written: list[float] = []
+    stop = threading.Event()
+
+    def writer() -> None:
+        p = 64.0
+        while not stop.is_set():
+            at = dt.datetime.now(dt.UTC)
+            with open(log, "a") as fh:
+                fh.write(f"{at.isoformat()},{p:.3f}\n")
+            written.append(at.timestamp())
+            p -= 0.001
+            time.sleep(0.05)
+
+    th = threading.Thread(target=writer, daemon=True)
+    th.start()
+    try:
+        deadline = time.monotonic() + 30
+        while _count(journal) < 20 and time.monotonic() < deadline:
+            time.sleep(0.1)
+        time.sleep(1.0)
+        killed_at = time.time()
+        proc.send_signal(signal.SIGKILL)
+        proc.wait(timeout=10)
+    finally:
+        stop.set()
+        th.join(timeout=5)
+        if proc.poll() is None:
+            proc.kill()
+    db = sqlite3.connect(journal)
+    stored = {round(t, 3) for (t,) in db.execute("SELECT t FROM samples")}
+    db.close()
+    lost = [t for t in written if t <= killed_at and round(t, 3) not in stored]
+    assert len(stored) >= 20
+    # only lines written within the last polling interval (0.2 s, plus scheduling) can be missing
+    assert all(t > killed_at - 0.2 - 0.3 for t in lost), (len(lost), killed_at - min(lost))
+
+
+# ----------------------------------------------------------------------------- alarms
+
+
+def test_alarm_rules():
+    a = alarm_findings({"n2-A": 0.3, "ar": 0.2, "co2": 5.0}, {"n2-A": True, "ar": False, "co2": True}, 0.5, 0.25,
+                       {"faster-than-planned", "hold-test-leak"}, {"co2": "cannot reach 10.0.0.5:502"})
+    got = {(f.code, f.subject) for f in a}
+    assert got == {("alarm-reserve", "n2-A"), ("alarm-over-time", "session"), ("alarm-leak", "leaks"),
+                   ("alarm-fast-draw", "draws"), ("alarm-gauge-silent", "co2")}
+    assert next(f for f in a if f.code == "alarm-leak").severity == "stop"
+    live = alarm_findings({}, {}, 0.5, None, {"leak-watch-leak"}, {}, {"n2-A": (120.0, 10.0)})
+    assert [(f.code, f.subject) for f in live] == [("alarm-leak", "n2-A")]
+    assert alarm_findings({"n2-A": 3.0}, {"n2-A": True}, 0.5, -0.1, set(), {}) == []
+
+
+def test_an_alarm_gets_one_journal_line_when_it_appears(tmp_path):
+    with Journal(tmp_path / "j.sqlite3") as j:
+        book = AlarmBook(j, BENCH, lambda f: f"words for {f.code}")
+        now = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+        silent = alarm_findings({}, {}, 0.5, None, set(), {"n2-A": "no line within the timeout"})
+        assert len(book.update(silent, now)) == 1
+        assert book.update(silent, now + dt.timedelta(seconds=1)) == []   # still the same alarm
+        assert book.update([], now + dt.timedelta(seconds=2)) == []      # it cleared
+        assert len(book.update(silent, now + dt.timedelta(seconds=3))) == 1  # and came back
+        rows = j.alarms(BENCH)
+        assert [r.code for r in rows] == ["alarm-gauge-silent"] * 2 and rows[0].text.startswith("words for")
+        assert SILENT_INTERVALS >= 3
+
+
+# ----------------------------------------------------------------------------- the app
+
+
+async def test_the_app_reads_a_live_gauge_and_rings_when_it_falls_silent(tmp_path):
+    from apptools import settle
+
+    from gasbench.tui.app import make_app
+
+    log = tmp_path / "gauge.log"
+    now = dt.datetime.now(dt.UTC).replace(microsecond=0)
+    log.write_text("".join(f"{(now - dt.timedelta(seconds=30 - i)).isoformat()},{61.5 - 0.001 * i:.3f}\n"
+                           for i in range(30)))
+    prof = _profile(tmp_path, _file_source(log, "0.2 s"))
+    jpath = tmp_path / "j.sqlite3"
+    app = make_app(str(prof), jpath)
+    async with app.run_test(size=(100, 32)) as pilot:
+        await settle(app, pilot)
+        st = app.screen.state
+        deadline = time.monotonic() + 20
+        while "n2-A" not in st.live and time.monotonic() < deadline:  # the first live refresh
+            await pilot.pause(0.2)
+        await settle(app, pilot)
+        assert st.watcher is not None and st.live["n2-A"].sample is not None
+        assert "live 61.5 bar(g)" in str(app.screen.query_one("#observed").render())
+        assert str(app.screen.query_one("#supplies").get_cell("n2-A", "reading")) == "61.5 bar(g)"
+        log.unlink()  # the logger stops: after a few intervals the gauge is silent
+        deadline = time.monotonic() + 20
+        while "silent" not in str(app.screen.query_one("#banner").render()) and time.monotonic() < deadline:
+            await pilot.pause(0.3)
+        assert "gauge of n2-A is silent" in str(app.screen.query_one("#banner").render())
+    with Journal(jpath) as j:
+        assert [a.code for a in j.alarms(BENCH)] == ["alarm-gauge-silent"]
+        assert SampleStore(j).counts(SampleStore(j).stream(BENCH, "n2-A", "pressure"))[0] >= 30
