@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import os
 import sqlite3
+import threading
 from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
@@ -236,6 +237,9 @@ class Journal:
 
     def __init__(self, path: str | os.PathLike[str], check: bool = True, readonly: bool = False) -> None:
         self.path = Path(path).expanduser()
+        #: one connection shared by the app's threads (the screen, the plan, the live gauges): a
+        #: transaction and a read never interleave with another thread's
+        self.lock = threading.RLock()
         try:
             if self.path.exists() and not self.path.is_file():
                 raise JournalError(f"journal {self.path} is not a regular file")
@@ -334,6 +338,10 @@ class Journal:
     # -- writes: each one committed on its own
 
     def _write(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
+        with self.lock:
+            return self._write_locked(fn)
+
+    def _write_locked(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
         try:
             self.db.execute("BEGIN IMMEDIATE")
             try:
@@ -353,6 +361,10 @@ class Journal:
     def write(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
         """Run ``fn(db)`` as one committed transaction (for the sample store)."""
         return self._write(fn)
+
+    def read(self, sql: str, args: tuple[Any, ...] = ()) -> list[tuple[Any, ...]]:
+        """Rows of a query (for the sample store); a failure is a :class:`JournalError`."""
+        return self._read(sql, args)
 
     def start_session(self, bench: str, profile_path: str | None, at: str) -> int:
         return int(self._write(lambda db: db.execute(
@@ -422,7 +434,8 @@ class Journal:
 
     def _read(self, sql: str, args: tuple[Any, ...] = ()) -> list[tuple[Any, ...]]:
         try:
-            return self.db.execute(sql, args).fetchall()
+            with self.lock:
+                return self.db.execute(sql, args).fetchall()
         except sqlite3.Error as exc:
             raise JournalError(f"journal {self.path}: read failed ({exc})") from None
 

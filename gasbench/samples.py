@@ -24,7 +24,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
-from gasbench.errors import InputError, JournalError
+from gasbench.errors import InputError
 
 if TYPE_CHECKING:
     import numpy as np
@@ -117,7 +117,6 @@ class SampleStore:
 
     def __init__(self, journal: Journal, raw_window_s: float = RAW_WINDOW_S, block_s: float = BLOCK_S) -> None:
         self.journal = journal
-        self.db: sqlite3.Connection = journal.db
         self.raw_window_s, self.block_s = raw_window_s, block_s
         self._ids: dict[tuple[str, str, str], int] = {}
 
@@ -147,10 +146,7 @@ class SampleStore:
         return sid
 
     def _q(self, sql: str, args: tuple[Any, ...] = ()) -> list[tuple[Any, ...]]:
-        try:
-            return self.db.execute(sql, args).fetchall()
-        except sqlite3.Error as exc:
-            raise JournalError(f"journal {self.journal.path}: read failed ({exc})") from None
+        return self.journal.read(sql, args)
 
     # -- writing
 

@@ -167,6 +167,10 @@ def test_every_register_format_from_a_real_modbus_server():
             src.close()
             assert got is not None and got.good, (fmt, got)
             assert got.value == pytest.approx(v), fmt
+        wrong = modbus_tcp("127.0.0.1", port, 1, 900, "float32", lambda x: x, timeout_s=1.0)
+        bad = wrong.read(dt.datetime.now(dt.UTC))
+        wrong.close()
+        assert not bad.good and "register 900" in bad.why and "refused" in bad.why
     finally:
         th.join(timeout=10)
 
@@ -440,6 +444,59 @@ async def test_the_app_reads_a_live_gauge_and_rings_when_it_falls_silent(tmp_pat
         while "silent" not in str(app.screen.query_one("#banner").render()) and time.monotonic() < deadline:
             await pilot.pause(0.3)
         assert "gauge of n2-A is silent" in str(app.screen.query_one("#banner").render())
+        await pilot.press("g")  # the graph plots the live trace, min and max per column
+        await pilot.pause()
+        trace = st.live_trace("n2-A", now - dt.timedelta(minutes=5), now + dt.timedelta(seconds=5), 40)
+        assert trace is not None and float(trace.vmax[trace.vmax == trace.vmax].max()) == pytest.approx(61.5e5 + st.plan.ambient_pa)
     with Journal(jpath) as j:
         assert [a.code for a in j.alarms(BENCH)] == ["alarm-gauge-silent"]
         assert SampleStore(j).counts(SampleStore(j).stream(BENCH, "n2-A", "pressure"))[0] >= 30
+
+
+def test_in_a_session_the_samples_give_the_observed_draw(tmp_path):
+    # a draw of 2 slpm for an hour, sampled every 10 s (the simulator's mass balance), in a session
+    from gasbench.workflows.session import SessionState
+
+    n2 = g.parse_gas("nitrogen")
+    draw = supply.mass_flow(n2, parse_flow("2 slpm"))
+    cyl = Cylinder(n2, 0.050, 64e5 + AMB, 294.15, draw)
+    prof_path = _profile(tmp_path, _file_source(tmp_path / "unused.log"))
+    start = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    now = start + dt.timedelta(hours=1)
+    with Journal(tmp_path / "j.sqlite3") as j:
+        st = SessionState(prof_path, j, clock=lambda: start)
+        st.load()
+        st.start()
+        store = SampleStore(j)
+        sid = store.stream(BENCH, "n2-A", "pressure", 100.0)
+        store.add(sid, [(start.timestamp() + t, cyl.pressure_at(t)) for t in range(0, 3601, 10)])
+        st.clock = lambda: now
+        st.recompute()
+        ob = st.observed["n2-A"]
+        assert ob.draw_kg_s == pytest.approx(draw, rel=2e-3)
+        assert ob.n == 200  # 361 samples thinned to 200 spread over the session
+        # no leak watch while drawing: the fit is the session's
+        st.refresh_live()
+        assert st.live["n2-A"].leak is None and st.live["n2-A"].sample is not None
+
+
+def test_the_room_temperature_sensor_compensates_the_leak_watch(tmp_path):
+    prof = parse_profile(_profile(tmp_path, _file_source(tmp_path / "x.log")).read_text()
+                         .replace('oxygen_monitor = false\n', 'oxygen_monitor = false\n[room.temperature_source]\n'
+                                  'kind = "file"\npath = "t.log"\nvalue_unit = "degC"\n', 1), "live.toml")
+    assert prof.room is not None and prof.room.temperature_source is not None
+    now = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    with Journal(tmp_path / "j.sqlite3") as j:
+        store = SampleStore(j)
+        sid = store.stream(BENCH, "n2-A", "pressure", 100.0)
+        tid = store.stream(BENCH, "room", "temperature", 0.05)
+        # a sealed cylinder warming by 2 K: its pressure rises, its mass does not change
+        n2 = g.parse_gas("nitrogen")
+        rho = g.density(n2, 293.15, 64e5 + AMB)
+        ts = [now.timestamp() - 7200 + 60 * i for i in range(121)]
+        temps = [293.15 + 2.0 * i / 120 for i in range(121)]
+        store.add(sid, [(t, g.pressure_from_density(n2, rho, T)) for t, T in zip(ts, temps, strict=True)])
+        store.add(tid, list(zip(ts, temps, strict=True)))
+        lw = leak_watch(j, prof, "n2-A", now)
+        assert lw is not None and lw.temperature_measured
+        assert abs(lw.leak_rate_sccm) < 0.01 * abs(lw.result.leak_rate_uncertainty_sccm) + 1e-6

@@ -80,10 +80,6 @@ def cmd_simulate(args: argparse.Namespace) -> int:
     return 0
 
 
-#: Compress old samples this often while watching [s].
-COMPACT_EVERY_S = 3600.0
-
-
 def cmd_watch(args: argparse.Namespace) -> int:
     """Poll the profile's sources until --for passes or Ctrl-C; a line per supply every --every,
     alarms on stderr (with the bell), every sample and alarm into the journal. Exit 0 at the end."""
@@ -128,13 +124,9 @@ def cmd_watch(args: argparse.Namespace) -> int:
         start = time.monotonic()
         end = start + duration if duration is not None else float("inf")
         next_line = start + min(every, 1.0)
-        next_compact = start
         while not stop["now"] and time.monotonic() < end:
             state.poll_sources()
             mono = time.monotonic()
-            if mono >= next_compact:
-                state.watcher.compact(state.clock())
-                next_compact = mono + COMPACT_EVERY_S
             if mono >= next_line:
                 next_line = mono + every
                 _report(state, d, describe, live_text, sys.stderr)

@@ -18,6 +18,7 @@ from gasbench.errors import InputError, JournalError
 from gasbench.journal import Journal, ReadingRow
 from gasbench.profile import Profile, load_profile, with_reading
 from gasbench.quantities import check_text
+from gasbench.samples import Columns, SampleStore
 from gasbench.units import parse_mass, parse_pressure, parse_temperature
 from gasbench.workflows import build as pl
 from gasbench.workflows.bench import Assessment, findings_of, journal_state
@@ -43,6 +44,9 @@ from gasbench.workflows.watch import (
     live_draw,
     record_leak_watch,
 )
+
+#: Samples older than the raw window are compressed this often while gauges are read [s].
+COMPACT_EVERY_S = 3600.0
 
 
 def now_local() -> dt.datetime:
@@ -95,6 +99,7 @@ class SessionState:
     watcher: Watcher | None = None
     live: dict[str, LiveSupply] = field(default_factory=dict)
     alarm_book: AlarmBook | None = None
+    _compacted: dt.datetime | None = None
 
     # -- profile and plan
 
@@ -368,8 +373,16 @@ class SessionState:
         self.watcher = None
 
     def poll_sources(self) -> int:
-        """Read the sources that are due and store their samples (blocking: call from a worker)."""
-        return self.watcher.poll(self.clock()) if self.watcher is not None else 0
+        """Read the sources that are due and store their samples; once an hour, compress the
+        samples older than the raw window (blocking: call from a worker)."""
+        if self.watcher is None:
+            return 0
+        now = self.clock()
+        n = self.watcher.poll(now)
+        if self._compacted is None or (now - self._compacted).total_seconds() >= COMPACT_EVERY_S:
+            self._compacted = now
+            self.watcher.compact(now)
+        return n
 
     def refresh_live(self) -> None:
         """Recompute the plan from the latest samples, run the leak watch of each idle supply
@@ -398,6 +411,13 @@ class SessionState:
         assert self.plan is not None
         hours = {s.id: self.hours_left(s.id, now) for s in self.plan.supplies}
         drawing = {s.id: s.draw_kg_s > 0 for s in self.plan.supplies}
+        for sid, lv in self.live.items():
+            # an idle supply that leaks runs down too: the leak watch's time to the reserve
+            lw = lv.leak
+            if lw is not None and lw.verdict == "leak" and lw.result.hours_to_reserve is not None and not self.running:
+                hours[sid] = min(hours.get(sid, math.inf),
+                                 lw.result.hours_to_reserve - (now - lw.until).total_seconds() / 3600.0)
+                drawing[sid] = True
         ahead = self.profile.session.alert_before / 3600.0 if self.profile is not None else 0.5
         over = None
         if self.running and self.started_at is not None:
@@ -414,3 +434,15 @@ class SessionState:
         if self.alarm_book is None:
             self.alarm_book = AlarmBook(self.journal, self.profile.bench.name if self.profile else "", describe)
         return self.alarm_book.update(alarms, now)
+
+    def live_trace(self, supply_id: str, since: dt.datetime, until: dt.datetime, columns: int) -> Columns | None:
+        """The supply's live pressure between two times as minimum and maximum per plot column
+        (absolute Pa; None without samples)."""
+        if self.journal is None or self.profile is None or until <= since:
+            return None
+        store = SampleStore(self.journal)
+        sid = store.stream(self.profile.bench.name, supply_id, "pressure")
+        if sid is None:
+            return None
+        cols = store.columns(sid, since.timestamp(), until.timestamp(), max(1, columns))
+        return cols if bool((cols.vmin == cols.vmin).any()) else None

@@ -33,6 +33,10 @@ class _Tool(Screen[None]):
 # ----------------------------------------------------------------------------- graph
 
 
+#: The graph shows live samples this far back when there is no session [h].
+LIVE_LOOKBACK_H = 24.0
+
+
 class GraphScreen(_Tool):
     """Supply pressure over the session: planned projection, readings, fitted line, reserve."""
 
@@ -81,6 +85,16 @@ class GraphScreen(_Tool):
         if ob is not None and ob.fit_at:
             fx = [(dt.datetime.fromisoformat(a) - origin).total_seconds() / 3600.0 for a in ob.fit_at]
             plt.plot(fx, [max(floor, bar_g(p)) for p in ob.fit_pressure_abs_pa], label="fitted", marker="braille")
+        now = st.clock()
+        since = min(origin, now - dt.timedelta(hours=LIVE_LOOKBACK_H))
+        trace = st.live_trace(s.id, since, now, max(20, self.size.width - 12))
+        live_ys: list[float] = []
+        if trace is not None:  # the live gauge: its lowest and highest sample in each column
+            keep = trace.vmin == trace.vmin
+            tx = [(float(t) - origin.timestamp()) / 3600.0 for t in trace.t[keep]]
+            live_ys = [bar_g(float(p)) for p in trace.vmin[keep]] + [bar_g(float(p)) for p in trace.vmax[keep]]
+            plt.plot(tx, [bar_g(float(p)) for p in trace.vmax[keep]], label="live (max)", marker="braille")
+            plt.plot(tx, [bar_g(float(p)) for p in trace.vmin[keep]], label="live (min)", marker="braille")
         inside = [r for r in rs if (r.at - origin).total_seconds() >= 0]
         outside = [r for r in rs if (r.at - origin).total_seconds() < 0]
         if inside:  # drawn last so they stay visible
@@ -89,7 +103,8 @@ class GraphScreen(_Tool):
         if outside:
             plt.scatter([(r.at - origin).total_seconds() / 3600.0 for r in outside],
                         [bar_g(r.pressure_abs_pa or 0.0) for r in outside], label="before the session", marker="x")
-        ys = [bar_g(p) for p in s.projection_pressure_abs_pa] + [bar_g(r.pressure_abs_pa or 0.0) for r in rs]
+        ys = ([bar_g(p) for p in s.projection_pressure_abs_pa] + [bar_g(r.pressure_abs_pa or 0.0) for r in rs]
+              + live_ys)
         lo, hi = bar_g(s.reserve_abs_pa), max(ys)
         plt.ylim(min(lo, min(ys)) - 0.05 * (hi - lo), hi + 0.25 * (hi - lo))  # room above for the legend
         plt.xlabel("hours since " + ("session start" if st.started_at else "plan"))
