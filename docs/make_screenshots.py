@@ -84,6 +84,39 @@ async def shoot() -> None:
             app.save_screenshot("overview-80x24.svg", str(OUT))
 
 
+async def shoot_live() -> None:
+    """The demo bench with a live gauge: a logger's file with two hours of samples of a leaking
+    cylinder (an invented trace), read by the app; the leak watch and its alarm."""
+    from gasbench.profile import demo_profile_text
+
+    with tempfile.TemporaryDirectory() as tmp:
+        log = Path(tmp) / "n2-A.log"
+        log.write_text("".join(f"{(T0 - dt.timedelta(seconds=7200 - 30 * i)).isoformat()},"
+                               f"{61.80 - 0.005 * i:.2f}\n" for i in range(241)))
+        anchor = 'gauge = { range = "315 bar", accuracy_class = 1.6 }\n'
+        profile = Path(tmp) / "bench.toml"
+        profile.write_text(demo_profile_text().replace(anchor, anchor + (
+            f'[supplies.source]\nkind = "file"\npath = "{log}"\nvalue_unit = "bar"\ninterval = "1 s"\n'
+            'range = "250 bar"\naccuracy_class = 0.1\nresolution = "0.01 bar"\n'), 1))
+        for size, name in (((120, 34), "live.svg"), ((80, 24), "live-80x24.svg")):
+            app = make_app(str(profile), Path(tmp) / f"journal-{size[0]}.sqlite3", clock=Clock())
+            async with app.run_test(size=size) as pilot:
+                for _ in range(60):  # the first poll, then the live refresh
+                    await pilot.pause(0.1)
+                    await app.workers.wait_for_complete()
+                    if app.screen.state.live.get("n2-A") is not None:
+                        break
+                await pilot.pause(0.3)
+                await app.workers.wait_for_complete()
+                await pilot.pause()
+                app.save_screenshot(name, str(OUT))
+                if size[0] == 120:
+                    await pilot.press("g")
+                    await pilot.pause(0.3)
+                    app.save_screenshot("graph-live.svg", str(OUT))
+
+
 if __name__ == "__main__":
     asyncio.run(shoot())
+    asyncio.run(shoot_live())
     print(f"screenshots written to {OUT}")
