@@ -47,6 +47,8 @@ from gasbench.workflows.watch import (
 
 #: Samples older than the raw window are compressed this often while gauges are read [s].
 COMPACT_EVERY_S = 3600.0
+#: The leak watch's fit is redone this often (the latest sample follows every refresh) [s].
+LEAK_REFRESH_S = 30.0
 
 
 def now_local() -> dt.datetime:
@@ -100,6 +102,7 @@ class SessionState:
     live: dict[str, LiveSupply] = field(default_factory=dict)
     alarm_book: AlarmBook | None = None
     _compacted: dt.datetime | None = None
+    _leak_at: dt.datetime | None = None
 
     # -- profile and plan
 
@@ -396,7 +399,14 @@ class SessionState:
         for s in self.profile.supplies:
             if s.source is None:
                 continue
-            lw = None if self.running else leak_watch(self.journal, self.profile, s.id, now)
+            before = self.live.get(s.id)
+            if self.running:
+                lw = None
+            elif (before is not None and before.leak is not None and self._leak_at is not None
+                  and (now - self._leak_at).total_seconds() < LEAK_REFRESH_S):
+                lw = before.leak  # the fit over a long idle stretch costs a few tenths of a second
+            else:
+                lw = leak_watch(self.journal, self.profile, s.id, now)
             if lw is not None and self.journal is not None:
                 try:
                     record_leak_watch(self.journal, self.profile, lw)
@@ -404,6 +414,8 @@ class SessionState:
                     pass
             live[s.id] = LiveSupply(s.id, latest_state(self.journal, self.profile, s.id, now.tzinfo), lw,
                                     silent.get(s.id))
+        if self._leak_at is None or (now - self._leak_at).total_seconds() >= LEAK_REFRESH_S:
+            self._leak_at = now
         self.live = live
 
     def alarms(self, now: dt.datetime, finding_codes: set[str]) -> list[Finding]:
