@@ -31,7 +31,17 @@ class Cylinder:
     started: float = field(default_factory=time.monotonic)
 
     def __post_init__(self) -> None:
+        import math
+
+        from gasbench.supply import contents
+
+        contents(self.gas, self.volume_m3, self.pressure_abs_pa, self.temperature_k)  # volume and state checked
+        if self.pressure_abs_pa <= self.ambient_pa:
+            raise InputError("the simulated cylinder's pressure must be above atmospheric")
         self.m0 = g.density(self.gas, self.temperature_k, self.pressure_abs_pa) * self.volume_m3
+        if not (math.isfinite(self.loss_kg_s) and 0.0 <= self.loss_kg_s <= self.m0):
+            raise InputError(f"leak + draw {self.loss_kg_s * 6e4:.3g} g/min: zero or more, and less than the whole "
+                             f"cylinder ({self.m0:.3g} kg) per second")
         self.m_floor = g.density(self.gas, self.temperature_k, self.ambient_pa) * self.volume_m3
 
     def pressure_at(self, elapsed_s: float) -> float:

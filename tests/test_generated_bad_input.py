@@ -10,6 +10,7 @@ The counts are printed at the end of the run (cases tried, misbehaved)."""
 from __future__ import annotations
 
 import os
+import tempfile
 from pathlib import Path
 
 import pytest
@@ -20,6 +21,12 @@ from gasbench.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = str(ROOT / "profiles" / "demo-teaching-bench.toml")
+
+#: the demo with a live gauge (a logger's file), for ``watch``
+LIVE = Path(tempfile.mkdtemp(prefix="gasbench-live-")) / "live.toml"
+LIVE.write_text(Path(DEMO).read_text().replace(
+    'gauge = { range = "315 bar", accuracy_class = 1.6 }\n',
+    'gauge = { range = "315 bar", accuracy_class = 1.6 }\n[supplies.source]\nkind = "file"\npath = "gauge.log"\n', 1))
 
 #: valid argv per command; the options in VALUED take quantities
 VALID: dict[str, list[str]] = {
@@ -39,6 +46,9 @@ VALID: dict[str, list[str]] = {
     "plan": ["plan", DEMO, "--leak", "5 sccm"],
     "reading": ["reading", DEMO, "n2-A", "--pressure", "60 bar", "--temperature", "20 degC", "--at", "now"],
     "swap": ["swap", DEMO, "n2-A", "--pressure", "190 bar", "--temperature", "20 degC", "--retest", "2031-01-01"],
+    "watch": ["watch", str(LIVE), "--for", "1 s", "--every", "1 s"],
+    "simulate": ["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--temperature", "20 degC",
+                 "--leak", "40 sccm", "--draw", "2 slpm", "--for", "1 s", "--port", "1"],
 }
 VALUED = {
     "contents": ["--gas", "--volume", "--pressure", "--temperature"],
@@ -52,13 +62,16 @@ VALUED = {
     "plan": ["--leak"],
     "reading": ["--pressure", "--temperature", "--at"],
     "swap": ["--pressure", "--temperature", "--retest"],
+    "watch": ["--for", "--every"],
+    "simulate": ["--volume", "--pressure", "--temperature", "--leak", "--draw", "--for"],
 }
 #: the unit each option is written with, for values like "nan <unit>"
 UNIT = {"--volume": "L", "--room-volume": "m3", "--pressure": "bar", "--inlet": "bar", "--outlet": "bar",
         "--upstream": "bar", "--downstream": "bar", "--start": "bar", "--end": "bar", "--reserve": "bar",
         "--gauge-range": "bar", "--temperature": "degC", "--to": "degC", "--t-start": "degC", "--t-end": "degC",
         "--spacing": "mm", "--diameter": "mm", "--duration": "h", "--flow": "slpm", "--leak": "slpm",
-        "--target": "sccm", "--ventilation": "m3/h", "--gas": "", "--at": "", "--retest": ""}
+        "--target": "sccm", "--ventilation": "m3/h", "--gas": "", "--at": "", "--retest": "", "--draw": "slpm",
+        "--for": "s", "--every": "s"}
 
 
 def bad_values(opt: str) -> list[str]:

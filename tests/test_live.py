@@ -500,3 +500,29 @@ def test_the_room_temperature_sensor_compensates_the_leak_watch(tmp_path):
         lw = leak_watch(j, prof, "n2-A", now)
         assert lw is not None and lw.temperature_measured
         assert abs(lw.leak_rate_sccm) < 0.01 * abs(lw.result.leak_rate_uncertainty_sccm) + 1e-6
+
+
+@pytest.mark.parametrize("section, words", [
+    ('[supplies.temperature_source]\nkind = "file"\npath = "t.log"\nvalue_unit = "bar"\n', "temperature"),
+    ('[supplies.source]\nkind = "file"\npath = "p.log"\naccuracy_class = 0.1\n', "needs its range"),
+    ('[supplies.source]\nkind = "modbus-rtu"\nbaud = 19200\n', "needs port"),
+    ('[supplies.source]\nkind = "modbus-rtu"\nport = "/dev/ttyUSB0"\nparity = "X"\n', "parity"),
+])
+def test_bad_source_sections_are_refused_with_the_key(section, words):
+    from gasbench.errors import ProfileError
+
+    with pytest.raises(ProfileError, match=words):
+        parse_profile(DEMO.replace(ANCHOR, ANCHOR + section, 1), "b.toml")
+
+
+def test_a_modbus_rtu_section_builds_a_serial_modbus_source():
+    from gasbench.sources import ModbusSource, make_source
+
+    prof = parse_profile(DEMO.replace(ANCHOR, ANCHOR + '[supplies.source]\nkind = "modbus-rtu"\nport = '
+                                      '"/dev/ttyUSB9"\nbaud = 19200\nparity = "E"\ndevice = 12\nregister = 4\n', 1),
+                         "b.toml")
+    src = make_source(prof.supplies[0].source, prof.ambient_pa)
+    assert isinstance(src, ModbusSource) and "/dev/ttyUSB9 device 12 register 4" in src.where
+    bad = src.read(dt.datetime.now(dt.UTC))  # no such port here: a bad sample, not a crash
+    assert not bad.good and "ttyUSB9" in bad.why
+    src.close()
