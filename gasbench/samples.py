@@ -171,8 +171,14 @@ class SampleStore:
             return 0
 
         def move(db: sqlite3.Connection) -> int:
-            rows = db.execute("SELECT t, value FROM samples WHERE stream = ? AND t < ? ORDER BY t",
-                              (stream, limit)).fetchall()
+            moved = db.execute("SELECT t, value FROM samples WHERE stream = ? AND t < ? ORDER BY t",
+                               (stream, limit)).fetchall()
+            # a log read again from its start (a restarted watcher) replays samples an hour already
+            # compressed holds: only those after the hour's last stored sample join it
+            covered = dict(db.execute("SELECT t0, t1 FROM sample_blocks WHERE stream = ? AND t0 >= ? AND t0 < ?",
+                                      (stream, math.floor(first / self.block_s) * self.block_s, limit)).fetchall())
+            rows = [r for r in moved
+                    if r[0] > covered.get(math.floor(r[0] / self.block_s) * self.block_s, -math.inf)]
             blocks: list[tuple[Any, ...]] = []
             i = 0
             while i < len(rows):
@@ -194,7 +200,7 @@ class SampleStore:
             db.executemany("INSERT OR REPLACE INTO sample_blocks(stream, t0, t1, n, bad, vmin, vmax, tolerance, "
                            "points) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)", merged)
             db.execute("DELETE FROM samples WHERE stream = ? AND t < ?", (stream, limit))
-            return len(rows)
+            return len(moved)
 
         return int(self.journal.write(move))
 

@@ -448,6 +448,11 @@ async def test_the_app_reads_a_live_gauge_and_rings_when_it_falls_silent(tmp_pat
         await pilot.pause()
         trace = st.live_trace("n2-A", now - dt.timedelta(minutes=5), now + dt.timedelta(seconds=5), 40)
         assert trace is not None and float(trace.vmax[trace.vmax == trace.vmax].max()) == pytest.approx(61.5e5 + st.plan.ambient_pa)
+        await pilot.press("escape")
+        prof.write_text(DEMO)  # the transducer taken off the profile, then `l` reloads it
+        await pilot.press("l")
+        await settle(app, pilot)
+        assert st.watcher is None and st.live == {}
     with Journal(jpath) as j:
         assert [a.code for a in j.alarms(BENCH)] == ["alarm-gauge-silent"]
         assert SampleStore(j).counts(SampleStore(j).stream(BENCH, "n2-A", "pressure"))[0] >= 30

@@ -123,3 +123,18 @@ def test_streams_are_separate_and_unknown_ones_are_none(tmp_path):
         assert store.latest(b) is None and store.latest(a) == (T0, 2e6)
     with Journal(tmp_path / "j.sqlite3") as j:  # and they are there after reopening
         assert SampleStore(j).stream("b", "s1", "pressure") == a
+
+
+def test_a_log_read_again_after_compaction_adds_nothing_twice(tmp_path):
+    with Journal(tmp_path / "j.sqlite3") as j:
+        store = SampleStore(j, raw_window_s=3600.0)
+        sid = store.stream("b", "s", "pressure", 10.0)
+        rows = [(T0 + i, 1e6 - 0.5 * i) for i in range(0, 7200)]
+        store.add(sid, rows)
+        store.compact(sid, T0 + 4 * 3600)
+        before = store.counts(sid)
+        store.add(sid, rows)  # a restarted watcher reads the whole log again
+        store.compact(sid, T0 + 4 * 3600)
+        assert store.counts(sid) == before
+        pt, _ = store.points(sid, T0, T0 + 7200)
+        assert np.all(np.diff(pt) > 0)  # no time twice

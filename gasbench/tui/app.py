@@ -98,6 +98,7 @@ def run_app(profile_path: str | None, journal_path: str | None) -> int:
         load_profile(profile_path)  # a bad profile is a one-line error before the screen opens
     app = make_app(profile_path, journal_path)  # a damaged or foreign journal: one line, before the screen
     app.run()
+    app.state.stop_watching()  # the live gauges' connections and serial ports are let go
     if app.state.journal is not None:
         app.state.journal.close()
     return app.return_code or 0

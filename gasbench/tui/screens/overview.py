@@ -12,6 +12,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
+from textual.timer import Timer
 from textual.widgets import DataTable, Footer, Header, Static
 
 from gasbench.errors import GasbenchError, JournalError
@@ -51,6 +52,7 @@ class OverviewScreen(Screen[None]):
         self.pressure_unit: str | None = None
         self._findings: list[Finding] = []
         self._live_at: dt.datetime | None = None
+        self._live_timer: Timer | None = None
 
     @property
     def units(self) -> Display:
@@ -115,11 +117,8 @@ class OverviewScreen(Screen[None]):
     def _plan_ready(self) -> None:
         self.refresh_view()
         st = self.state
-        if st.watcher is None and st.start_watching(lambda f: describe(f, self.units)[0]):
-            assert st.watcher is not None
-            every = min(f.interval_s for f in st.watcher.feeds)
-            self.set_interval(max(0.2, min(every, 5.0)), self.poll_live)
-            self.notify(f"Reading {len(st.watcher.feeds)} live gauge(s)", title="Live")
+        if st.watcher is None:
+            self._start_live()
         if st.journal is not None and st.profile is not None and not st.running:
             row = st.journal.unfinished_session(st.profile.bench.name)
             if row is not None:
@@ -141,6 +140,21 @@ class OverviewScreen(Screen[None]):
         self.state.resume(session_id)
         self.notify(f"Session #{session_id} resumed", title="Session")
         self.load_plan()
+
+    def _start_live(self) -> None:
+        """Read the profile's live gauges (again, after a reload), if it has any."""
+        st = self.state
+        if self._live_timer is not None:
+            self._live_timer.stop()
+            self._live_timer = None
+        st.stop_watching()
+        st.live = {}
+        if st.start_watching(lambda f: describe(f, self.units)[0]):
+            assert st.watcher is not None
+            every = min(f.interval_s for f in st.watcher.feeds)
+            self._live_timer = self.set_interval(max(0.2, min(every, 5.0)), self.poll_live)
+            self._live_at = None
+            self.notify(f"Reading {len(st.watcher.feeds)} live gauge(s)", title="Live")
 
     @work(thread=True, exclusive=True, group="live")
     def poll_live(self) -> None:
@@ -402,6 +416,7 @@ class OverviewScreen(Screen[None]):
                                       title="Profile not reloaded", severity="error", timeout=15)
             return
         self.app.call_from_thread(self.notify, "Profile reloaded", title="Profile")
+        self.app.call_from_thread(self._start_live)  # the sources may have changed
         self.app.call_from_thread(self.refresh_view)
 
     def action_graph(self) -> None:
