@@ -413,6 +413,14 @@ class DisplaySettings(_Model):
     """Unit pressures are shown in (gauge marked (g) or psig, absolute (a) or psia); JSON stays SI."""
 
 
+class _Located(InputError):
+    """A check across sections, with the key it is about (for the line number)."""
+
+    def __init__(self, loc: tuple[str | int, ...], msg: str) -> None:
+        super().__init__(msg)
+        self.loc = loc
+
+
 class Profile(_Model):
     bench: Bench
     ambient: Ambient = Field(default_factory=Ambient)
@@ -428,43 +436,53 @@ class Profile(_Model):
     def _cross(self) -> Profile:
         amb = self.ambient.pressure_pa
         ids: set[str] = set()
-        for kind, items in (("supply", self.supplies), ("regulator", self.regulators), ("draw", self.draws)):
-            for it in items:
-                if it.id in ids:
-                    raise InputError(f"{kind} id {it.id!r} is used twice")
-                ids.add(it.id)
+        every: list[tuple[str, str, list[str]]] = [("supply", "supplies", [x.id for x in self.supplies]),
+                                                    ("regulator", "regulators", [x.id for x in self.regulators]),
+                                                    ("draw", "draws", [x.id for x in self.draws])]
+        for kind, section, names in every:
+            for i, name in enumerate(names):
+                if name in ids:
+                    raise _Located((section, i, "id"), f"{kind} id {name!r} is used twice")
+                ids.add(name)
         sup = {s.id: s for s in self.supplies}
         regs = {r.id: r for r in self.regulators}
-        for s in self.supplies:
+        for i, s in enumerate(self.supplies):
             service = s.service_pressure.abs_at(amb)
             test = s.test_pressure.abs_at(amb) if s.test_pressure else None
             if test is not None and test < service:
-                raise InputError(f"supply {s.id}: test pressure is below the service pressure")
+                raise _Located(("supplies", i, "test_pressure"),
+                               f"supply {s.id}: test pressure is below the service pressure")
             if s.reserve.abs_at(amb) >= service:
-                raise InputError(f"supply {s.id}: reserve {s.reserve.text} is at or above the service pressure "
-                                 f"{s.service_pressure.text}")
+                raise _Located(("supplies", i, "reserve"), f"supply {s.id}: reserve {s.reserve.text} is at or above "
+                                                           f"the service pressure {s.service_pressure.text}")
             if s.reading is not None:
                 p = s.reading.abs_at(amb)
                 if test is not None and p > test:
-                    raise InputError(
-                        f"supply {s.id}: reading {s.reading.text} is above the cylinder's test pressure "
-                        f"{s.test_pressure.text if s.test_pressure else ''}; check the gauge and the unit")
+                    raise _Located(("supplies", i, "reading"),
+                                   f"supply {s.id}: reading {s.reading.text} is above the cylinder's test pressure "
+                                   f"{s.test_pressure.text if s.test_pressure else ''}; check the gauge and the unit")
                 if s.gauge is not None and p > s.gauge.range.abs_at(amb):
-                    raise InputError(f"supply {s.id}: reading {s.reading.text} is above the gauge range {s.gauge.range.text}")
-        for r in self.regulators:
+                    raise _Located(("supplies", i, "reading"), f"supply {s.id}: reading {s.reading.text} is above "
+                                                               f"the gauge range {s.gauge.range.text}")
+        for i, r in enumerate(self.regulators):
             if r.supply not in sup:
-                raise InputError(f"regulator {r.id}: supply {r.supply!r} does not exist (known: {', '.join(sup)})")
+                raise _Located(("regulators", i, "supply"), f"regulator {r.id}: supply {r.supply!r} does not exist "
+                                                            f"(known: {', '.join(sup)})")
             if len(r.effects) != r.stages:
-                raise InputError(f"regulator {r.id}: supply_pressure_effect needs {r.stages} value(s), one per stage")
+                raise _Located(("regulators", i, "supply_pressure_effect"),
+                               f"regulator {r.id}: supply_pressure_effect needs {r.stages} value(s), one per stage")
             sp, lo, hi = (x.abs_at(amb) for x in (r.set_point, r.outlet_min, r.outlet_max))
             if not lo <= sp <= hi:
-                raise InputError(f"regulator {r.id}: set point {r.set_point.text} is outside the outlet range "
-                                 f"{r.outlet_min.text} to {r.outlet_max.text}")
-        for d in self.draws:
+                raise _Located(("regulators", i, "set_point"),
+                               f"regulator {r.id}: set point {r.set_point.text} is outside the outlet range "
+                               f"{r.outlet_min.text} to {r.outlet_max.text}")
+        for i, d in enumerate(self.draws):
             if d.regulator not in regs:
-                raise InputError(f"draw {d.id}: regulator {d.regulator!r} does not exist (known: {', '.join(regs) or 'none'})")
+                raise _Located(("draws", i, "regulator"), f"draw {d.id}: regulator {d.regulator!r} does not exist "
+                                                          f"(known: {', '.join(regs) or 'none'})")
             if d.per_shot is not None and d.repetition_rate is None and self.session.repetition_rate is None:
-                raise InputError(f"draw {d.id}: per_shot needs a repetition_rate (on the draw or the session)")
+                raise _Located(("draws", i, "per_shot"),
+                               f"draw {d.id}: per_shot needs a repetition_rate (on the draw or the session)")
         return self
 
     @property
@@ -534,6 +552,9 @@ def parse_profile(text: str, source: str = "<profile>") -> Profile:
     except ValidationError as exc:
         err = exc.errors()[0]
         loc = tuple(p for p in err["loc"] if not (isinstance(p, str) and p.startswith("function-")))
+        cause = (err.get("ctx") or {}).get("error")
+        if isinstance(cause, _Located):
+            loc = loc + cause.loc  # a check across sections names the key it is about
         msg = str(err.get("msg", "invalid")).removeprefix("Value error, ")
         if err["type"] == "extra_forbidden":
             msg = "unknown key (see docs/profile.md for the keys allowed here)"

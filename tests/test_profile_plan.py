@@ -2,6 +2,7 @@
 
 import json
 import math
+import re
 from pathlib import Path
 
 import pytest
@@ -187,3 +188,22 @@ def test_plan_draws_and_regulators_come_from_the_core_functions():
     assert reg["reg-gaps"].supply_hot_day_abs_pa == pytest.approx(hot.pressure_abs_pa)
     assert reg["reg-channel"].outlet_at_reserve_abs_pa == pytest.approx(
         regulator.outlet_drift(reg["reg-channel"].set_point_abs_pa, p_now, s.reserve.abs_at(amb), (0.012,)))
+
+
+@pytest.mark.parametrize("old, new, line_of, key", [
+    ('reserve = "15 bar"', 'reserve = "250 bar"', 'reserve = "250 bar"', "supplies[0].reserve"),
+    ('supply = "n2-A"', 'supply = "n2-B"', 'supply = "n2-B"', "regulators[0].supply"),
+    ('id = "gap-trigger"', 'id = "gap-main"', 'id = "gap-main"\nkind', "draws[1].id"),
+])
+def test_errors_across_sections_name_the_line_and_key(old, new, line_of, key):
+    # the line is found by searching the edited text, independently of the profile's parser
+    from gasbench.errors import ProfileError
+    from gasbench.profile import parse_profile
+
+    text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text().replace(old, new, 1)
+    first = text.index(line_of)
+    if key == "draws[1].id":
+        first = text.index(new, text.index(new) + 1)  # the second draw named gap-main
+    line = text.count("\n", 0, first) + 1
+    with pytest.raises(ProfileError, match=rf"b\.toml:{line}: {re.escape(key)}: "):
+        parse_profile(text, "b.toml")
