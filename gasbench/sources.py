@@ -202,6 +202,10 @@ class FileSource:
         pass
 
 
+#: A serial source reads at most this many waiting lines per poll.
+MAX_LINES_PER_POLL = 1000
+
+
 class SerialSource:
     """A transducer that prints a line of text per reading on a serial port (pyserial)."""
 
@@ -230,7 +234,15 @@ class SerialSource:
             return Sample(now, None, False, str(exc))
 
     def poll(self, now: dt.datetime) -> list[Sample]:
-        return [self.read(now)]
+        """The next line (waiting up to the timeout), and every further line already waiting —
+        a transducer that prints faster than it is polled never falls behind."""
+        out = [self.read(now)]
+        try:
+            while len(out) < MAX_LINES_PER_POLL and self.port.in_waiting:
+                out.append(self.read(now))
+        except OSError:
+            pass
+        return out
 
     def close(self) -> None:
         self.port.close()

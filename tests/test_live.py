@@ -531,3 +531,34 @@ def test_a_modbus_rtu_section_builds_a_serial_modbus_source():
     bad = src.read(dt.datetime.now(dt.UTC))  # no such port here: a bad sample, not a crash
     assert not bad.good and "ttyUSB9" in bad.why
     src.close()
+
+
+def test_an_unrecorded_new_cylinder_restarts_the_leak_watch(tmp_path):
+    # an hour idle at 40 bar, then the pressure jumps to 180 bar (a swap nobody recorded), then
+    # an hour sealed: the leak watch fits the second hour only and finds no leak
+    prof = parse_profile(_profile(tmp_path, _file_source(tmp_path / "x.log")).read_text(), "live.toml")
+    now = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    t0 = now.timestamp() - 7200
+    rows = [(t0 + 30 * i, 40e5 + AMB) for i in range(120)] + [(t0 + 3600 + 30 * i, 180e5 + AMB) for i in range(121)]
+    with Journal(tmp_path / "j.sqlite3") as j:
+        store = SampleStore(j)
+        store.add(store.stream(BENCH, "n2-A", "pressure", 1000.0), rows)
+        lw = leak_watch(j, prof, "n2-A", now)
+        assert lw is not None and lw.n == 121 and lw.since.timestamp() == t0 + 3600
+        assert lw.leak_rate_sccm == pytest.approx(0.0, abs=1e-9)
+
+
+def test_a_serial_transducer_that_prints_fast_never_falls_behind():
+    from gasbench.sources import SerialSource
+
+    master, slave = os.openpty()
+    src = SerialSource(os.ttyname(slave), lambda x: x, timeout_s=1.0)
+    try:
+        os.write(master, b"".join(f"{100 + i}\n".encode() for i in range(25)))
+        time.sleep(0.2)
+        got = src.poll(dt.datetime.now(dt.UTC))
+        assert [s.value for s in got] == [100.0 + i for i in range(25)]
+    finally:
+        src.close()
+        os.close(master)
+        os.close(slave)

@@ -298,6 +298,12 @@ def leak_watch(journal: Journal | None, prof: Profile, supply_id: str, now: dt.d
     if sid is None or since is None:
         return None
     t, p = store.points(sid, _ts(since), _ts(now))
+    # a rise no temperature explains (a new cylinder nobody recorded, a regulator opened back
+    # into it): the idle stretch starts after it
+    rise = max(5.0 * sample_tolerance(s), 0.01 * float(p[-1])) if len(p) else 0.0
+    jumps = [int(i) for i in (p[1:] - p[:-1] > rise).nonzero()[0]] if len(p) > 1 else []
+    if jumps:
+        t, p = t[jumps[-1] + 1:], p[jumps[-1] + 1:]
     if len(t) < LEAK_MIN_SAMPLES or t[-1] - t[0] < LEAK_MIN_SPAN_S:
         return None
     keep = _thin(len(t), FIT_MAX_POINTS)
