@@ -22,6 +22,7 @@ from gasbench.profile import Profile, load_profile
 from gasbench.quantities import check_text
 from gasbench.render.display import Display
 from gasbench.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
+from gasbench.render.numbers import fmt_uncertain
 from gasbench.units import parse_mass, parse_pressure, parse_temperature
 from gasbench.workflows import cylinder as cy
 from gasbench.workflows.bench import assess
@@ -267,12 +268,13 @@ def cmd_status(args: argparse.Namespace) -> int:
         if s["live"] is not None:
             lv = s["live"]
             rows.append(("live gauge", f"{d.gauge(lv['pressure_abs_pa'])} at {lv['at'][11:19]}"
-                         + (f"; leak watch {lv['leak_verdict']}, {lv['leak_rate_sccm']:.3g} ± "
-                            f"{lv['leak_rate_uncertainty_sccm']:.2g} sccm since {lv['leak_since'][11:16]}"
-                            if lv["leak_verdict"] else "")))
+                         + (f"; leak watch {lv['leak_verdict']}, "
+                            f"{fmt_uncertain(lv['leak_rate_sccm'], lv['leak_rate_uncertainty_sccm'], 'sccm')} "
+                            f"since {lv['leak_since'][11:16]}" if lv["leak_verdict"] else "")))
         if s["leak_verdict"] and s["leak_source"] == "hold test":
-            rows.append(("last hold test", f"{s['leak_verdict']}, {s['leak_rate_sccm']:.3g} ± "
-                                           f"{s['leak_rate_uncertainty_sccm']:.2g} sccm ({s['hold_test_kind'] or 'manual'})"))
+            rows.append(("last hold test", f"{s['leak_verdict']}, "
+                                           f"{fmt_uncertain(s['leak_rate_sccm'], s['leak_rate_uncertainty_sccm'], 'sccm')} "
+                                           f"({s['hold_test_kind'] or 'manual'})"))
         if s["order_by"]:
             rows.append(("order by", f"{s['order_by']} ({s['consumption_kg_per_week']:.3g} kg/week recorded)"))
         if s["cylinder_label"] or s["retest_due"]:
