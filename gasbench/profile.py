@@ -243,6 +243,9 @@ class Supply(_Model):
     """A transducer that reads this supply's pressure live."""
     temperature_source: TemperatureSource | None = None
     """A sensor that reads this cylinder's temperature live (else the room's, else ambient)."""
+    leak_target: FlowQ | None = None
+    """The leak rate that matters on this supply, e.g. "5 sccm": the leak watch and the hold tests
+    of idle drops resolve against it (default: 1 % of the contents per day, at least 1 sccm)."""
 
     @model_validator(mode="after")
     def _check(self) -> Supply:

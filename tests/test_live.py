@@ -562,3 +562,23 @@ def test_a_serial_transducer_that_prints_fast_never_falls_behind():
         src.close()
         os.close(master)
         os.close(slave)
+
+
+def test_a_supply_leak_target_is_what_the_leak_watch_resolves_against(tmp_path):
+    # a sealed cylinder for 2 h, read to 0.01 bar by a class 0.1 transducer: against the default
+    # target (1 % of the contents a day) that says nothing yet; against "500 sccm" it resolves
+    now = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    rows = [(now.timestamp() - 7200 + 60 * i, 62e5 + AMB) for i in range(121)]
+    verdicts = {}
+    for target in ("", 'leak_target = "500 sccm"\n'):
+        text = _profile(tmp_path, _file_source(tmp_path / "x.log")).read_text().replace(
+            'reserve = "15 bar"\n', 'reserve = "15 bar"\n' + target, 1)
+        prof = parse_profile(text, "live.toml")
+        with Journal(tmp_path / f"j{len(target)}.sqlite3") as j:
+            store = SampleStore(j)
+            store.add(store.stream(BENCH, "n2-A", "pressure", 1000.0), rows)
+            lw = leak_watch(j, prof, "n2-A", now)
+            assert lw is not None
+            verdicts[target] = (lw.verdict, lw.target_sccm)
+    assert verdicts[""][0] == "inconclusive"
+    assert verdicts['leak_target = "500 sccm"\n'] == ("no-leak-resolved", pytest.approx(500.0))

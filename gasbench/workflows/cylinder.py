@@ -30,7 +30,13 @@ from gasbench.profile import Profile, Supply, with_reading, with_weight
 from gasbench.quantities import check_text
 from gasbench.samples import SampleStore
 from gasbench.units import PSI_PA, Pressure, fmt_pressure
-from gasbench.workflows.holds import HoldRecord, profile_gauge_spec, record_of, store
+from gasbench.workflows.holds import (
+    HoldRecord,
+    profile_gauge_spec,
+    record_of,
+    store,
+    supply_target_sccm,
+)
 
 __all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
            "record_reading", "record_change", "IdleDrop", "idle_drops", "record_idle_drops", "parse_at"]
@@ -321,7 +327,8 @@ def idle_drop_result(prof: Profile, drop: IdleDrop) -> hd.HoldResult:
     duration = (_dt(drop.last.at) - _dt(drop.first.at)).total_seconds()
     return hd.hold_two_readings(s.gas, s.water_volume, drop.first.pressure_abs_pa, drop.last.pressure_abs_pa,
                                 duration, drop.first.temperature_k, drop.last.temperature_k,
-                                profile_gauge_spec(s.gauge), reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
+                                profile_gauge_spec(s.gauge), target_sccm=supply_target_sccm(s),
+                                reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
 
 
 def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) -> list[HoldRecord]:

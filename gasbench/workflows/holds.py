@@ -19,8 +19,8 @@ from gasbench.journal import Journal
 from gasbench.profile import Gauge, Supply
 from gasbench.workflows.findings import Finding, hold_test_findings
 
-__all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "HoldRecord", "record_of", "store", "LastHold",
-           "last_hold_test", "hold_finding"]
+__all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "HoldRecord",
+           "record_of", "store", "LastHold", "last_hold_test", "hold_finding"]
 
 #: EN 837-1 accuracy classes run from 0.1 to 4; allow a little either side for other standards.
 CLASS_RANGE = (0.01, 5.0)
@@ -56,6 +56,13 @@ def source_gauge_spec(supply: Supply) -> GaugeSpec | None:
         return gauge_spec(src.range.typed_pa, src.accuracy_class,
                           src.resolution.typed_pa if src.resolution is not None else None)
     return profile_gauge_spec(supply.gauge)
+
+
+def supply_target_sccm(supply: Supply) -> float | None:
+    """The supply's leak target [sccm] from its profile, or None for the default."""
+    from gasbench.hold import target_sccm
+
+    return target_sccm(supply.gas, supply.leak_target) if supply.leak_target is not None else None
 
 
 @dataclass(frozen=True)

@@ -38,7 +38,13 @@ from gasbench.sources import LiveSource, SampleFilter, make_source
 from gasbench.workflows import build as pl
 from gasbench.workflows.cylinder import current_change
 from gasbench.workflows.findings import Finding
-from gasbench.workflows.holds import HoldRecord, record_of, source_gauge_spec, store
+from gasbench.workflows.holds import (
+    HoldRecord,
+    record_of,
+    source_gauge_spec,
+    store,
+    supply_target_sccm,
+)
 from gasbench.workflows.model import Observed
 
 __all__ = ["SILENT_INTERVALS", "BACKOFF_MAX_S", "sample_tolerance", "Feed", "Watcher", "LeakWatch", "leak_watch",
@@ -314,8 +320,8 @@ def leak_watch(journal: Journal | None, prof: Profile, supply_id: str, now: dt.d
                      tuple(float(x) for x in T) if measured else None)
     try:
         fit = hd.hold_from_log(s.gas, s.water_volume, log, source_gauge_spec(s),
-                               T_default=float(T[0]), reserve_abs=s.reserve.abs_at(amb),
-                               ambient_pa=amb)
+                               T_default=float(T[0]), target_sccm=supply_target_sccm(s),
+                               reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
     except GasbenchError:
         return None
     r = fit.result
