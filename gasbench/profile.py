@@ -259,6 +259,9 @@ class Supply(_Model):
             raise InputError(f"supply {self.id}: gross weight is below the tare weight")
         if self.reading is None and self.gross is None:
             raise InputError(f"supply {self.id}: give a reading (or gross and tare weights)")
+        if self.leak_target is not None and self.leak_target.kind == "actual":
+            raise _Located(("leak_target",), f"supply {self.id}: leak_target {self.leak_target.text!r} is an actual "
+                                             "volume flow; give a standard or mass flow (sccm, slpm, g/min)")
         return self
 
 

@@ -512,6 +512,7 @@ def test_the_room_temperature_sensor_compensates_the_leak_watch(tmp_path):
     ('[supplies.source]\nkind = "file"\npath = "p.log"\naccuracy_class = 0.1\n', "needs its range"),
     ('[supplies.source]\nkind = "modbus-rtu"\nbaud = 19200\n', "needs port"),
     ('[supplies.source]\nkind = "modbus-rtu"\nport = "/dev/ttyUSB0"\nparity = "X"\n', "parity"),
+    ('leak_target = "2 L/min"\n', r"b\.toml:\d+: supplies\[0\]\.leak_target: .*actual volume flow"),
 ])
 def test_bad_source_sections_are_refused_with_the_key(section, words):
     from gasbench.errors import ProfileError
