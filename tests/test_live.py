@@ -317,7 +317,9 @@ def test_watch_runs_for_its_duration_stores_samples_and_status_shows_them(tmp_pa
     assert "n2-A" in out and "live 63.8 bar(g)" in out and "stopped: 120 sample(s) stored" in out
     assert _count(journal) == 120
     assert main(["--journal", str(journal), "status", str(prof), "--json"]) == 0
-    s = json.loads(capsys.readouterr().out)["supplies"][0]
+    status = json.loads(capsys.readouterr().out)
+    s = status["supplies"][0]
+    assert isinstance(status["alarms"], list)
     for key in ("pressure_gauge_pa", "leak_rate_sccm", "leak_verdict"):
         assert key in s and key in s["live"]
     assert s["reading_source"] == "live gauge"
@@ -400,10 +402,10 @@ def test_alarm_rules():
     assert alarm_findings({"n2-A": 3.0}, {"n2-A": True}, 0.5, -0.1, set(), {}) == []
 
 
-def test_an_alarm_gets_one_journal_line_when_it_appears(tmp_path):
+def test_an_alarm_gets_one_journal_line_when_it_appears(tmp_path, capsys):
     with Journal(tmp_path / "j.sqlite3") as j:
         book = AlarmBook(j, BENCH, lambda f: f"words for {f.code}")
-        now = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+        now = dt.datetime.now(dt.UTC).replace(microsecond=0) - dt.timedelta(minutes=5)
         silent = alarm_findings({}, {}, 0.5, None, set(), {"n2-A": "no line within the timeout"})
         assert len(book.update(silent, now)) == 1
         assert book.update(silent, now + dt.timedelta(seconds=1)) == []   # still the same alarm
@@ -411,7 +413,12 @@ def test_an_alarm_gets_one_journal_line_when_it_appears(tmp_path):
         assert len(book.update(silent, now + dt.timedelta(seconds=3))) == 1  # and came back
         rows = j.alarms(BENCH)
         assert [r.code for r in rows] == ["alarm-gauge-silent"] * 2 and rows[0].text.startswith("words for")
-        assert SILENT_INTERVALS >= 3
+    # `status` lists the journal's alarms of the last day
+    prof = _profile(tmp_path, _file_source(tmp_path / "x.log"))
+    assert main(["--journal", str(tmp_path / "j.sqlite3"), "status", str(prof), "--json"]) == 0
+    alarms = json.loads(capsys.readouterr().out)["alarms"]
+    assert [a["code"] for a in alarms] == ["alarm-gauge-silent"] * 2
+    assert SILENT_INTERVALS >= 3
 
 
 # ----------------------------------------------------------------------------- the app

@@ -21,6 +21,7 @@ from gasbench.journal import Journal, default_path
 from gasbench.profile import Profile, load_profile
 from gasbench.quantities import check_text
 from gasbench.render.display import Display
+from gasbench.render.files import clean
 from gasbench.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
 from gasbench.render.numbers import fmt_uncertain
 from gasbench.units import parse_mass, parse_pressure, parse_temperature
@@ -205,6 +206,10 @@ def _live(j: Journal | None, prof: Profile, sid: str, now: dt.datetime, amb: flo
             "leak_samples": lw.n if lw else None}
 
 
+#: ``status`` lists the alarms the journal recorded this far back [s].
+RECENT_ALARMS_S = 86400.0
+
+
 def cmd_status(args: argparse.Namespace) -> int:
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
@@ -246,13 +251,16 @@ def cmd_status(args: argparse.Namespace) -> int:
                 "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,
                 "consumption_kg_per_week": _cons(j, prof, sp.id),
             }))
+        since = (now - dt.timedelta(seconds=RECENT_ALARMS_S)).isoformat(timespec="seconds")
+        alarms: list[dict[str, str]] = [{"at": r.at, "supply_id": r.supply_id or "", "code": r.code, "text": r.text}
+                  for r in (j.alarms(prof.bench.name, since) if j is not None else [])]
     finally:
         if j is not None:
             j.close()
     findings = [finding_dict(f, d) for f in a.findings]
     if args.json:
         emit_json({"bench": prof.bench.name, "journal": str(path), "ambient_pressure_pa": a.plan.ambient_pa,
-                   "supplies": supplies, "findings": findings,
+                   "supplies": supplies, "findings": findings, "alarms": alarms,
                    "last_hold_test": None if a.last_hold is None else asdict(a.last_hold) | {
                        "at": a.last_hold.at.isoformat()}})
         return 0
@@ -281,6 +289,10 @@ def cmd_status(args: argparse.Namespace) -> int:
             rows.append(("cylinder", f"{s['cylinder_label'] or ''} retest due {s['retest_due'] or '—'}".strip()))
         emit_table(f"  {s['id']}", rows)
     _print_findings(list(a.findings), d)
+    if alarms:
+        print(f"Alarms in the last {RECENT_ALARMS_S / 3600:g} h")
+        for al in alarms:
+            print(f"  {al['at'][:16].replace('T', ' ')}  {clean(al['text'])}")
     return 0
 
 
