@@ -20,7 +20,7 @@ from pathlib import Path
 from typing import Any, Literal
 
 from gasbench.errors import InputError
-from gasbench.profile import SourceBase, TemperatureSource
+from gasbench.profile_fields import SourceBase, TemperatureSource
 from gasbench.units import parse_pressure, parse_temperature
 
 __all__ = ["FORMATS", "decode", "Sample", "to_pressure", "to_temperature", "converter", "SampleFilter", "parse_line",

@@ -32,7 +32,8 @@ from typing import Any
 from gasbench import hold as hd
 from gasbench.errors import GasbenchError, InputError, JournalError
 from gasbench.journal import Journal
-from gasbench.profile import Profile, SourceBase, Supply
+from gasbench.profile import Profile, Supply
+from gasbench.profile_fields import SourceBase
 from gasbench.samples import SampleStore
 from gasbench.sources import LiveSource, SampleFilter, make_source
 from gasbench.workflows import build as pl
