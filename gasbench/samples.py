@@ -151,13 +151,14 @@ class SampleStore:
 
     # -- writing
 
-    def add(self, stream: int, rows: Sequence[tuple[float, float | None]]) -> None:
+    def add(self, stream: int, rows: Sequence[tuple[float, float | None]]) -> int:
         """Store samples (unix time [s], value or None for a bad sample), committed before
-        returning; a sample at a time already stored is ignored."""
-        if rows:
-            self.journal.write(lambda db: db.executemany(
-                "INSERT OR IGNORE INTO samples(stream, t, value) VALUES (?, ?, ?)",
-                [(stream, float(t), v) for t, v in rows]))
+        returning; a sample at a time already stored is ignored. Returns how many were new."""
+        if not rows:
+            return 0
+        return int(self.journal.write(lambda db: db.executemany(
+            "INSERT OR IGNORE INTO samples(stream, t, value) VALUES (?, ?, ?)",
+            [(stream, float(t), v) for t, v in rows]).rowcount))
 
     def compact(self, stream: int, now: float) -> int:
         """Move whole blocks of raw samples older than the raw window into compressed blocks

@@ -590,3 +590,25 @@ def test_a_supply_leak_target_is_what_the_leak_watch_resolves_against(tmp_path):
             verdicts[target] = (lw.verdict, lw.target_sccm)
     assert verdicts[""][0] == "inconclusive"
     assert verdicts['leak_target = "500 sccm"\n'] == ("no-leak-resolved", pytest.approx(500.0))
+
+
+def test_two_samples_in_one_second_are_two_samples(tmp_path):
+    from gasbench.sources import Sample
+
+    class Steady:  # a transducer read twice within a second
+        def poll(self, now):
+            return [Sample(now, 65e5, True)]
+
+        def close(self):
+            pass
+
+    prof = parse_profile(DEMO.replace(ANCHOR, ANCHOR + '[supplies.source]\nkind = "modbus-tcp"\nhost = "127.0.0.1"\n'
+                                      'interval = "0.1 s"\n', 1), "x.toml")
+    clock = [0.0]
+    with Journal(tmp_path / "j.sqlite3") as j:
+        w = Watcher(prof, j, open_source=lambda cfg, amb: Steady(), monotonic=lambda: clock[0])
+        for _ in range(5):
+            w.poll(dt.datetime.now(dt.UTC))
+            clock[0] += 0.1
+        assert w.feeds[0].stored == 5
+        assert SampleStore(j).counts(w.feeds[0].stream)[0] == 5

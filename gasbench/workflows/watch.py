@@ -127,12 +127,16 @@ class Watcher:
     """Polls the sources of a profile and stores every sample (see module docstring).
 
     ``open_source`` builds a source from its profile section (tests pass their own);
-    ``monotonic`` is the clock for scheduling."""
+    ``monotonic`` is the clock for scheduling, ``wallclock`` the time of a sample read."""
 
     def __init__(self, prof: Profile, journal: Journal,
                  open_source: Callable[[SourceBase, float], LiveSource] = make_source,
-                 monotonic: Callable[[], float] = time.monotonic) -> None:
+                 monotonic: Callable[[], float] = time.monotonic,
+                 wallclock: Callable[[], dt.datetime] = lambda: dt.datetime.now().astimezone()) -> None:
         self.prof, self.journal, self.open_source, self.monotonic = prof, journal, open_source, monotonic
+        #: the time a sample without its own timestamp gets (to the microsecond: two samples in
+        #: one second are two samples)
+        self.wallclock = wallclock
         self.store = SampleStore(journal)
         self.feeds: list[Feed] = []
         bench = prof.bench.name
@@ -185,7 +189,7 @@ class Watcher:
                 if f.source is None:
                     f.source = self.open_source(f.config, self.prof.ambient_pa)
                     f.filter = self._filter(f)
-                samples = f.source.poll(now)
+                samples = f.source.poll(self.wallclock())
             except InputError as exc:
                 f.why = str(exc)
                 f.source = None
@@ -201,9 +205,9 @@ class Watcher:
                     else:
                         f.why = smp.why
             if rows:
-                self.store.add(f.stream, rows)  # JournalError goes up: the interface says so
-                f.stored += len(rows)
-                stored += len(rows)
+                added = self.store.add(f.stream, rows)  # JournalError goes up: the interface says so
+                f.stored += added
+                stored += added
             if good or (samples and f.config.kind == "file"):
                 f.failures = 0
                 f.due = mono + f.interval_s
