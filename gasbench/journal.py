@@ -169,6 +169,7 @@ class SessionRow:
     started_at: str
     stopped_at: str | None
     readings: int
+    alarms: int = 0
 
 
 @dataclass(frozen=True)
@@ -441,7 +442,9 @@ class Journal:
 
     def sessions(self) -> list[SessionRow]:
         rows = self._read(
-            "SELECT s.id, s.bench, s.profile_path, s.started_at, s.stopped_at, COUNT(r.id) FROM sessions s"
+            "SELECT s.id, s.bench, s.profile_path, s.started_at, s.stopped_at, COUNT(r.id),"
+            " (SELECT COUNT(*) FROM alarms a WHERE a.bench = s.bench AND a.at >= s.started_at"
+            "  AND (s.stopped_at IS NULL OR a.at <= s.stopped_at)) FROM sessions s"
             " LEFT JOIN readings r ON r.session_id = s.id GROUP BY s.id ORDER BY s.id")
         return [SessionRow(*r) for r in rows]
 

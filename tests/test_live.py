@@ -612,3 +612,15 @@ def test_two_samples_in_one_second_are_two_samples(tmp_path):
             clock[0] += 0.1
         assert w.feeds[0].stored == 5
         assert SampleStore(j).counts(w.feeds[0].stream)[0] == 5
+
+
+def test_sessions_count_the_alarms_raised_during_them(tmp_path, capsys):
+    journal = tmp_path / "j.sqlite3"
+    with Journal(journal) as j:
+        sid = j.start_session(BENCH, None, "2026-12-01T09:00:00+00:00")
+        j.add_alarm(BENCH, "n2-A", "alarm-reserve", "2026-12-01T10:00:00+00:00", "n2-A reaches its reserve")
+        j.add_alarm(BENCH, "n2-A", "alarm-leak", "2026-12-01T13:00:00+00:00", "after the session")
+        j.stop_session(sid, "2026-12-01T12:00:00+00:00")
+    assert main(["--journal", str(journal), "sessions", "--json"]) == 0
+    (row,) = json.loads(capsys.readouterr().out)["sessions"]
+    assert row["alarms"] == 1 and row["readings"] == 0

@@ -39,10 +39,11 @@ def cmd_sessions(args: argparse.Namespace) -> int:
     if not rows:
         print(f"no sessions in {default_path(getattr(args, 'journal', None))}")
         return 0
-    print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  bench")
+    print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  {'alarms':>6}  bench")
     for r in rows:
         stop = Display.clock(r.stopped_at) if r.stopped_at else "left running"
-        print(f"{r.id:>4}  {Display.clock(r.started_at):<16}  {stop:<16}  {r.readings:>8}  {clean(r.bench)}")
+        print(f"{r.id:>4}  {Display.clock(r.started_at):<16}  {stop:<16}  {r.readings:>8}  {r.alarms:>6}  "
+              f"{clean(r.bench)}")
     return 0
 
 
