@@ -410,7 +410,14 @@ def test_an_alarm_gets_one_journal_line_when_it_appears(tmp_path, capsys):
         assert len(book.update(silent, now)) == 1
         assert book.update(silent, now + dt.timedelta(seconds=1)) == []   # still the same alarm
         assert book.update([], now + dt.timedelta(seconds=2)) == []      # it cleared
-        assert len(book.update(silent, now + dt.timedelta(seconds=3))) == 1  # and came back
+        assert len(book.update(silent, now + dt.timedelta(seconds=3))) == 1  # and came back: it rings,
+        assert len(j.alarms(BENCH)) == 1  # but a flapping alarm is one line within two minutes
+        other = AlarmBook(j, BENCH, lambda f: "another watcher")  # `watch` beside the app
+        assert len(other.update(silent, now + dt.timedelta(seconds=4))) == 1  # rings there too ...
+        assert len(j.alarms(BENCH)) == 1  # ... and the journal still has the line once
+        book.update([], now + dt.timedelta(seconds=200))
+        assert len(book.update(silent, now + dt.timedelta(seconds=300))) == 1  # later: a new line
+        assert len(j.alarms(BENCH)) == 2
         rows = j.alarms(BENCH)
         assert [r.code for r in rows] == ["alarm-gauge-silent"] * 2 and rows[0].text.startswith("words for")
     # `status` lists the journal's alarms of the last day

@@ -61,6 +61,8 @@ TEMPERATURE_TOLERANCE_K = 0.05
 LEAK_MIN_SAMPLES, LEAK_MIN_SPAN_S = 10, 60.0
 #: The leak watch looks back at most this far [s].
 LEAK_MAX_SPAN_S = 14 * 86400.0
+#: An alarm already in the journal this recently (from another watcher) is not written again [s].
+ALARM_DEDUP_S = 120.0
 #: At most this many samples go into a fit (evenly spaced by index beyond it).
 FIT_MAX_POINTS = 20_000
 #: Pressure transducers read far finer than their accuracy: without a stated resolution the
@@ -397,8 +399,15 @@ class AlarmBook:
         current = {(a.code, a.subject): a for a in alarms}
         new = [a for k, a in current.items() if k not in self.active]
         self.active = current
+        recent: set[tuple[str, str | None]] = set()
+        if new and self.journal is not None:
+            try:  # another watcher on this journal (the app and `watch`) wrote it a moment ago
+                since = (now - dt.timedelta(seconds=ALARM_DEDUP_S)).isoformat(timespec="seconds")
+                recent = {(r.code, r.supply_id) for r in self.journal.alarms(self.bench, since)}
+            except JournalError:
+                pass
         for a in new:
-            if self.journal is None:
+            if self.journal is None or (a.code, a.subject) in recent:
                 continue
             try:
                 self.journal.add_alarm(self.bench, a.subject, a.code, now.isoformat(timespec="seconds"),
