@@ -184,22 +184,15 @@ def _seconds(hours: float) -> float | None:
 def _live(j: Journal | None, prof: Profile, sid: str, now: dt.datetime, amb: float) -> dict[str, Any] | None:
     """The supply's latest live sample and leak watch (None without samples); a resolved leak
     watch is stored as a hold test, as the app and ``watch`` do."""
-    from gasbench.workflows.cylinder import latest_state
-    from gasbench.workflows.watch import leak_watch, record_leak_watch
+    from gasbench.workflows.watch import leak_watch_recorded
 
-    sample = latest_state(j, prof, sid, now.tzinfo)
+    sample = cy.latest_state(j, prof, sid, now.tzinfo)
     if sample is None:
         return None
-    lw = leak_watch(j, prof, sid, now)
-    if lw is not None and j is not None:
-        record_leak_watch(j, prof, lw)
-    last = cy.readings_since_change(j, prof.bench.name, sid)
-    change = cy.current_change(j, prof.bench.name, sid)
-    stamps = [dt.datetime.fromisoformat(x) for x in (last[-1].at if last else None, change.at if change else None) if x]
-    newest = max((x if x.tzinfo else x.replace(tzinfo=now.tzinfo) for x in stamps), default=None)
+    lw = leak_watch_recorded(j, prof, sid, now)
     return {"at": sample.at.isoformat(), "pressure_abs_pa": sample.pressure_abs_pa,
             "pressure_gauge_pa": sample.pressure_abs_pa - amb, "temperature_k": sample.temperature_k,
-            "current": newest is None or sample.at > newest,
+            "current": cy.live_is_state(j, prof, sid, sample),
             "leak_verdict": lw.verdict if lw else None, "leak_rate_sccm": lw.leak_rate_sccm if lw else None,
             "leak_rate_uncertainty_sccm": lw.leak_rate_uncertainty_sccm if lw else None,
             "leak_target_sccm": lw.target_sccm if lw else None, "leak_since": lw.since.isoformat() if lw else None,

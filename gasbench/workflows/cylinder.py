@@ -160,13 +160,23 @@ def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
         if last_p is not None:
             prof = _apply(prof, s, last_p.pressure_abs_pa, None, last_p.temperature_k, last_p.pressure_text)
         live = latest_state(journal, prof, s.id)
-        if live is not None and not (s.gas.sold_liquefied and s.gross is not None):
-            newest = max([_dt(x) for x in (last_p.at if last_p else None, change.at if change else None) if x],
-                         default=None)
-            at = live.at if newest is None or newest.tzinfo is not None else live.at.replace(tzinfo=None)
-            if newest is None or at > newest:
-                prof = _apply(prof, s, live.pressure_abs_pa, None, live.temperature_k, live.text)
+        if live is not None and not (s.gas.sold_liquefied and s.gross is not None) and _newer(live, last_p, change):
+            prof = _apply(prof, s, live.pressure_abs_pa, None, live.temperature_k, live.text)
     return prof
+
+
+def _newer(live: LatestSample, last_p: ReadingRow | None, change: ChangeRow | None) -> bool:
+    """Whether a live sample is newer than the latest pressure reading and cylinder change."""
+    newest = max([_dt(x) for x in (last_p.at if last_p else None, change.at if change else None) if x], default=None)
+    at = live.at if newest is None or newest.tzinfo is not None else live.at.replace(tzinfo=None)
+    return newest is None or at > newest
+
+
+def live_is_state(journal: Journal | None, prof: Profile, supply_id: str, live: LatestSample) -> bool:
+    """Whether the supply's state is its live sample (see :func:`journal_profile`)."""
+    rows = readings_since_change(journal, prof.bench.name, supply_id)
+    last_p = next((r for r in reversed(rows) if r.pressure_abs_pa is not None), None)
+    return _newer(live, last_p, current_change(journal, prof.bench.name, supply_id))
 
 
 # ----------------------------------------------------------------------------- readings

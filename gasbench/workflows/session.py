@@ -36,14 +36,7 @@ from gasbench.workflows.cylinder import (
 from gasbench.workflows.findings import Finding, alarm_findings
 from gasbench.workflows.holds import LastHold, last_hold_test, profile_gauge_spec
 from gasbench.workflows.model import Observed, Plan
-from gasbench.workflows.watch import (
-    AlarmBook,
-    LeakWatch,
-    Watcher,
-    leak_watch,
-    live_draw,
-    record_leak_watch,
-)
+from gasbench.workflows.watch import AlarmBook, LeakWatch, Watcher, leak_watch_recorded, live_draw
 
 #: Samples older than the raw window are compressed this often while gauges are read [s].
 COMPACT_EVERY_S = 3600.0
@@ -406,12 +399,7 @@ class SessionState:
                   and (now - self._leak_at).total_seconds() < LEAK_REFRESH_S):
                 lw = before.leak  # the fit over a long idle stretch costs a few tenths of a second
             else:
-                lw = leak_watch(self.journal, self.profile, s.id, now)
-            if lw is not None and self.journal is not None:
-                try:
-                    record_leak_watch(self.journal, self.profile, lw)
-                except JournalError:
-                    pass
+                lw = leak_watch_recorded(self.journal, self.profile, s.id, now)
             live[s.id] = LiveSupply(s.id, latest_state(self.journal, self.profile, s.id, now.tzinfo), lw,
                                     silent.get(s.id))
         if self._leak_at is None or (now - self._leak_at).total_seconds() >= LEAK_REFRESH_S:

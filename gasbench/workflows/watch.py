@@ -49,7 +49,7 @@ from gasbench.workflows.holds import (
 from gasbench.workflows.model import Observed
 
 __all__ = ["SILENT_INTERVALS", "BACKOFF_MAX_S", "sample_tolerance", "Feed", "Watcher", "LeakWatch", "leak_watch",
-           "record_leak_watch", "live_draw", "AlarmBook"]
+           "record_leak_watch", "leak_watch_recorded", "live_draw", "AlarmBook"]
 
 #: A gauge is silent after this many intervals without a good sample.
 SILENT_INTERVALS = 5
@@ -352,6 +352,19 @@ def record_leak_watch(journal: Journal, prof: Profile, lw: LeakWatch) -> HoldRec
     rec = record_of(lw.result, lw.until, prof.bench.name, lw.supply_id, "leak-watch")
     store(journal, rec, {"leak_watch": key, "samples": str(lw.n)})
     return rec
+
+
+def leak_watch_recorded(journal: Journal | None, prof: Profile, supply_id: str,
+                        now: dt.datetime) -> LeakWatch | None:
+    """:func:`leak_watch`, stored as a hold test once it resolves (:func:`record_leak_watch`); a
+    journal that cannot be written still gives the estimate."""
+    lw = leak_watch(journal, prof, supply_id, now)
+    if lw is not None and journal is not None:
+        try:
+            record_leak_watch(journal, prof, lw)
+        except JournalError:
+            pass
+    return lw
 
 
 def live_draw(journal: Journal | None, prof: Profile, supply_id: str, since: dt.datetime, now: dt.datetime,
