@@ -1,4 +1,4 @@
-"""Benchmarks compare gasbench with the plain approach in the same run and report the ratio.
+"""Benchmarks compare benchwarden with the plain approach in the same run and report the ratio.
 
 Run: uv run pytest benchmarks   (pytest-benchmark; not part of the test suite's pass/fail).
 Each comparison stores both timings in benchmark.extra_info and prints the ratio at the end.
@@ -21,7 +21,7 @@ def ratio():
 def pytest_terminal_summary(terminalreporter):
     if not RATIOS:
         return
-    terminalreporter.write_sep("-", "gasbench vs plain approach (same run)")
+    terminalreporter.write_sep("-", "benchwarden vs plain approach (same run)")
     for name, ours, plain in RATIOS:
         terminalreporter.write_line(f"{name:<48} ours {ours * 1e3:10.3f} ms   plain {plain * 1e3:10.3f} ms   "
                                     f"ratio {plain / ours:7.1f}x")

@@ -1,4 +1,4 @@
-"""Performance of gasbench against the plain approach, both sides in the same run."""
+"""Performance of benchwarden against the plain approach, both sides in the same run."""
 
 import datetime as dt
 import statistics
@@ -10,10 +10,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from gasbench import gas as g
-from gasbench import hold, supply
-from gasbench.profile import load_profile
-from gasbench.workflows.build import build_plan
+from benchwarden import gas as g
+from benchwarden import hold, supply
+from benchwarden.profile import load_profile
+from benchwarden.workflows.build import build_plan
 
 ROOT = Path(__file__).resolve().parents[1]
 PROFILES = sorted((ROOT / "profiles").glob("*.toml"))
@@ -30,14 +30,14 @@ def _best(fn, n=5):
 
 def test_cli_cold_start_help(benchmark):
     def run():
-        subprocess.run([sys.executable, "-m", "gasbench", "--help"], capture_output=True, check=True)
+        subprocess.run([sys.executable, "-m", "benchwarden", "--help"], capture_output=True, check=True)
 
     benchmark.pedantic(run, rounds=5, iterations=1)
 
 
 def test_cli_cold_start_contents(benchmark):
     def run():
-        subprocess.run([sys.executable, "-m", "gasbench", "contents", "--gas", "n2", "--volume", "50 L",
+        subprocess.run([sys.executable, "-m", "benchwarden", "contents", "--gas", "n2", "--volume", "50 L",
                         "--pressure", "200 bar", "--temperature", "15 degC"], capture_output=True, check=True)
 
     benchmark.pedantic(run, rounds=5, iterations=1)
@@ -132,7 +132,7 @@ def test_hold_log_vs_propssi_per_row(benchmark, ratio, rows):
 def test_app_first_paint_and_reading_latency(benchmark, tmp_path):
     import asyncio
 
-    from gasbench.tui.app import make_app
+    from benchwarden.tui.app import make_app
 
     results = {}
 
@@ -173,7 +173,7 @@ def test_projection_table_vs_propssi(benchmark, ratio):
     """The 200-point pressure projection of the demo supply: Z(ρ) table vs one PropsSI per point."""
     import CoolProp.CoolProp as CP
 
-    from gasbench.workflows.build import SupplyModel as _SupplyModel
+    from benchwarden.workflows.build import SupplyModel as _SupplyModel
 
     prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
     s = prof.supplies[0]

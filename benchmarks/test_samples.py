@@ -1,7 +1,7 @@
 """A year of 1 Hz samples for one supply: the journal's sample store against a plain
 one-row-per-sample SQLite table, built in the same run.
 
-Run: ``uv run pytest benchmarks/test_samples.py -s`` (``GASBENCH_BENCH_DAYS=30`` for a shorter
+Run: ``uv run pytest benchmarks/test_samples.py -s`` (``BENCHWARDEN_BENCH_DAYS=30`` for a shorter
 synthetic span; the default is a whole year, about 31.5 million samples, some minutes and ~1 GB
 of scratch space for the plain table). Reports journal size, ingest rate, open time and a
 window query (min/max per column for a 200-column plot) for a day, a week and the whole span.
@@ -18,10 +18,10 @@ from pathlib import Path
 
 import numpy as np
 
-from gasbench.journal import Journal
-from gasbench.samples import SampleStore
+from benchwarden.journal import Journal
+from benchwarden.samples import SampleStore
 
-DAYS = int(os.environ.get("GASBENCH_BENCH_DAYS", "365"))
+DAYS = int(os.environ.get("BENCHWARDEN_BENCH_DAYS", "365"))
 CHUNK = 86400  # one synthetic day at a time
 RESOLUTION_PA = 1000.0  # a 0–250 bar transducer read to 0.01 bar
 COLUMNS = 200
@@ -130,8 +130,8 @@ def test_leak_watch_refresh(tmp_path, ratio):
 
     from CoolProp.CoolProp import PropsSI
 
-    from gasbench.profile import parse_profile
-    from gasbench.workflows.watch import leak_watch
+    from benchwarden.profile import parse_profile
+    from benchwarden.workflows.watch import leak_watch
 
     demo = (Path(__file__).resolve().parents[1] / "profiles" / "demo-teaching-bench.toml").read_text()
     anchor = 'gauge = { range = "315 bar", accuracy_class = 1.6 }\n'

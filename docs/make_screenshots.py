@@ -8,7 +8,7 @@ import datetime as dt
 import tempfile
 from pathlib import Path
 
-from gasbench.tui.app import make_app
+from benchwarden.tui.app import make_app
 
 OUT = Path(__file__).resolve().parent / "screenshots"
 T0 = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
@@ -87,7 +87,7 @@ async def shoot() -> None:
 async def shoot_live() -> None:
     """The demo bench with a live gauge: a logger's file with two hours of samples of a leaking
     cylinder (an invented trace), read by the app; the leak watch and its alarm."""
-    from gasbench.profile import demo_profile_text
+    from benchwarden.profile import demo_profile_text
 
     with tempfile.TemporaryDirectory() as tmp:
         log = Path(tmp) / "n2-A.log"

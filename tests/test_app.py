@@ -7,10 +7,10 @@ from pathlib import Path
 import pytest
 from apptools import T0, Clock, settle
 
-from gasbench.journal import Journal
-from gasbench.tui.app import make_app
-from gasbench.tui.screens.modals import CautionsScreen, ConfirmScreen, ReadingScreen
-from gasbench.tui.screens.overview import OverviewScreen
+from benchwarden.journal import Journal
+from benchwarden.tui.app import make_app
+from benchwarden.tui.screens.modals import CautionsScreen, ConfirmScreen, ReadingScreen
+from benchwarden.tui.screens.overview import OverviewScreen
 
 ROOT = Path(__file__).resolve().parents[1]
 

@@ -8,11 +8,11 @@ from pathlib import Path
 import pytest
 from apptools import T0, Clock, settle
 
-from gasbench.journal import Journal
-from gasbench.tui.app import make_app
-from gasbench.tui.screens.modals import ChangeScreen, ConfirmScreen, ReadingScreen, StopScreen
-from gasbench.tui.screens.overview import OverviewScreen
-from gasbench.tui.widgets import FindingsPanel
+from benchwarden.journal import Journal
+from benchwarden.tui.app import make_app
+from benchwarden.tui.screens.modals import ChangeScreen, ConfirmScreen, ReadingScreen, StopScreen
+from benchwarden.tui.screens.overview import OverviewScreen
+from benchwarden.tui.widgets import FindingsPanel
 
 ROOT = Path(__file__).resolve().parents[1]
 BENCH = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"

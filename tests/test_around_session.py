@@ -10,11 +10,11 @@ from pathlib import Path
 import pytest
 from scipy.integrate import solve_ivp
 
-from gasbench import gas as g
-from gasbench import purge, room
-from gasbench.cli import main
-from gasbench.profile import load_profile
-from gasbench.workflows.bench import assess
+from benchwarden import gas as g
+from benchwarden import purge, room
+from benchwarden.cli import main
+from benchwarden.profile import load_profile
+from benchwarden.workflows.bench import assess
 
 ROOT = Path(__file__).resolve().parents[1]
 N2 = g.parse_gas("nitrogen")
@@ -132,8 +132,8 @@ def test_order_by_date_from_a_synthetic_journal(tmp_path, capsys):
     # 10 days' lead time, no spares: order-by = now + (usable / (1 kg/week) in days) − 10 days.
     import datetime as dt
 
-    from gasbench.journal import Journal
-    from gasbench.workflows.cylinder import consumption
+    from benchwarden.journal import Journal
+    from benchwarden.workflows.cylinder import consumption
 
     text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text().replace(
         'currency = "EUR"', 'currency = "EUR"\nlead_time = "10 d"')
@@ -164,7 +164,7 @@ def test_order_by_date_from_a_synthetic_journal(tmp_path, capsys):
 def test_retest_and_service_dates_are_findings(tmp_path):
     import datetime as dt
 
-    from gasbench.profile import parse_profile
+    from benchwarden.profile import parse_profile
 
     text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
     past = (dt.date.today() - dt.timedelta(days=3)).isoformat()

@@ -10,9 +10,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from gasbench.cli import main
-from gasbench.errors import GasbenchError
-from gasbench.profile import demo_profile_text, parse_profile
+from benchwarden.cli import main
+from benchwarden.errors import BenchwardenError
+from benchwarden.profile import demo_profile_text, parse_profile
 
 ROOT = Path(__file__).resolve().parents[1]
 C = ["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "200 bar", "--temperature", "15 degC"]
@@ -71,7 +71,7 @@ def test_bad_input_exits_2_with_one_line(argv, capsys):
         code = exc.code
     out, err = capsys.readouterr()
     assert code == 2, (argv, out, err)
-    assert err.count("\n") == 1 and err.startswith("gasbench: error:"), err
+    assert err.count("\n") == 1 and err.startswith("benchwarden: error:"), err
     assert "Traceback" not in err and out == ""
 
 
@@ -118,7 +118,7 @@ def test_hostile_profiles_exit_2(text, tmp_path, capsys):
 def test_fuzz_profile_loader_random_text(text):
     try:
         parse_profile(text, "fuzz.toml")
-    except GasbenchError:
+    except BenchwardenError:
         pass
 
 
@@ -137,5 +137,5 @@ def test_fuzz_profile_loader_mutated_demo(mutations):
             lines[i] = f"{key}= {value}"
     try:
         parse_profile("\n".join(lines), "fuzz.toml")
-    except GasbenchError:
+    except BenchwardenError:
         pass

@@ -6,7 +6,7 @@ import sys
 
 import pytest
 
-from gasbench.cli import main
+from benchwarden.cli import main
 
 
 def run(capsys, *argv):
@@ -99,8 +99,8 @@ def test_bad_input_one_line_exit_2(capsys, argv, fragment):
 
 def test_help_does_not_import_coolprop():
     code = (
-        "import sys, runpy; sys.argv=['gasbench','--help']\n"
-        "try:\n    runpy.run_module('gasbench', run_name='__main__')\nexcept SystemExit: pass\n"
+        "import sys, runpy; sys.argv=['benchwarden','--help']\n"
+        "try:\n    runpy.run_module('benchwarden', run_name='__main__')\nexcept SystemExit: pass\n"
         "assert 'CoolProp' not in sys.modules, 'CoolProp imported by --help'\n"
         "assert 'textual' not in sys.modules\n"
     )

@@ -9,10 +9,10 @@ from pathlib import Path
 
 import pytest
 
-from gasbench.cli import main
-from gasbench.errors import InputError
-from gasbench.journal import Journal
-from gasbench.workflows.cylinder import parse_at
+from benchwarden.cli import main
+from benchwarden.errors import InputError
+from benchwarden.journal import Journal
+from benchwarden.workflows.cylinder import parse_at
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = str(ROOT / "profiles" / "demo-teaching-bench.toml")
@@ -41,7 +41,7 @@ def status(capsys, profile, journal):
 
 def test_idle_drop_becomes_a_hold_test_with_the_same_leak_rate_as_hold(capsys, journal):
     # Friday evening 148 bar at 21 °C, Monday morning 138 bar at 21 °C, no session between:
-    # the app's automatic hold test must equal `gasbench hold` on the same drop (same method,
+    # the app's automatic hold test must equal `benchwarden hold` on the same drop (same method,
     # same gauge budget: the demo's 315 bar class 1.6 gauge, 50 L, ambient at 120 m).
     for p, at in (("148 bar", "2026-11-27T18:00"), ("138 bar", "2026-11-30T08:00")):
         code, _, err = run(capsys, "reading", DEMO, "n2-A", "--pressure", p, "--temperature", "21 degC",

@@ -20,11 +20,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from gasbench import flow, gap, hold, regulator, supply
-from gasbench import gas as g
-from gasbench.cli import main
-from gasbench.errors import InputError
-from gasbench.units import parse_volume, pressure_abs
+from benchwarden import flow, gap, hold, regulator, supply
+from benchwarden import gas as g
+from benchwarden.cli import main
+from benchwarden.errors import InputError
+from benchwarden.units import parse_volume, pressure_abs
 
 CO2 = g.parse_gas("co2")
 N2 = g.parse_gas("nitrogen")
@@ -49,7 +49,7 @@ def test_coolprop_8_import_prints_nothing_on_stdout():
     # output must stay pure JSON. Run in a fresh process so the import really happens.
     env = {k: v for k, v in os.environ.items() if k != g.SUPERANCILLARY_SWITCH}
     out = subprocess.run(
-        [sys.executable, "-m", "gasbench", "contents", "--gas", "co2", "--gross", "75 kg", "--tare",
+        [sys.executable, "-m", "benchwarden", "contents", "--gas", "co2", "--gross", "75 kg", "--tare",
          "68.5 kg", "--json"], capture_output=True, text=True, env=env, cwd=ROOT, timeout=120)
     assert out.returncode == 0, out.stderr
     assert json.loads(out.stdout)["mass_kg"] == pytest.approx(6.5)
@@ -305,9 +305,9 @@ def test_hold_log_json_does_not_crash(capsys, tmp_path):
 
 @pytest.mark.slow
 def test_json_into_a_closed_pipe_is_quiet():
-    # Regression: `gasbench … --json | head -1` ended in a BrokenPipeError traceback.
+    # Regression: `benchwarden … --json | head -1` ended in a BrokenPipeError traceback.
     proc = subprocess.run(
-        f"{sys.executable} -m gasbench contents --gas nitrogen --volume '50 L' --pressure '200 bar' "
+        f"{sys.executable} -m benchwarden contents --gas nitrogen --volume '50 L' --pressure '200 bar' "
         "--temperature '15 degC' --json | head -1", shell=True, capture_output=True, text=True, cwd=ROOT,
         timeout=120)
     assert proc.stdout.strip() == "{" and "Traceback" not in proc.stderr
@@ -409,8 +409,8 @@ def test_thousands_separator_in_a_pressure_is_refused_on_the_command_line(capsys
 def test_co2_vapour_supply_gives_no_solid_stop_in_a_plan():
     # A CO2 cylinder read at 50 bar(g), 21 °C holds only vapour (vapour pressure 58.6 bar(a),
     # Span & Wagner 1996); throttled to a low set point it stays above the sublimation line.
-    from gasbench.profile import demo_profile_text, parse_profile
-    from gasbench.workflows.build import build_plan
+    from benchwarden.profile import demo_profile_text, parse_profile
+    from benchwarden.workflows.build import build_plan
 
     text = (demo_profile_text().replace('gas = "nitrogen"', 'gas = "co2"')
             .replace('reading = "64 bar"', 'reading = "50 bar"')

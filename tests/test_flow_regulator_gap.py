@@ -4,9 +4,9 @@ import math
 
 import pytest
 
-from gasbench import flow, gap, regulator
-from gasbench import gas as g
-from gasbench.errors import InputError
+from benchwarden import flow, gap, regulator
+from benchwarden import gas as g
+from benchwarden.errors import InputError
 
 N2 = g.parse_gas("nitrogen")
 

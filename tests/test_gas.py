@@ -8,8 +8,8 @@ of state from the `thermo`/`chemicals` libraries as a ±5 % sanity band.
 
 import pytest
 
-from gasbench import gas as g
-from gasbench.errors import InputError
+from benchwarden import gas as g
+from benchwarden.errors import InputError
 
 
 def test_span_2000_nitrogen_verification_value():

@@ -17,13 +17,13 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from gasbench.cli import main
+from benchwarden.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = str(ROOT / "profiles" / "demo-teaching-bench.toml")
 
 #: the demo with a live gauge (a logger's file), for ``watch``
-LIVE = Path(tempfile.mkdtemp(prefix="gasbench-live-")) / "live.toml"
+LIVE = Path(tempfile.mkdtemp(prefix="benchwarden-live-")) / "live.toml"
 LIVE.write_text(Path(DEMO).read_text().replace(
     'gauge = { range = "315 bar", accuracy_class = 1.6 }\n',
     'gauge = { range = "315 bar", accuracy_class = 1.6 }\n[supplies.source]\nkind = "file"\npath = "gauge.log"\n', 1))
@@ -120,7 +120,7 @@ def _check(argv: list[str], capsys, workdir: Path, journal_before: bytes | None)
     written = [p.name for p in workdir.iterdir() if p.name != "journal.sqlite3"]
     if written:
         problems.append(f"wrote {written}")
-    journal = Path(os.environ["GASBENCH_JOURNAL"])
+    journal = Path(os.environ["BENCHWARDEN_JOURNAL"])
     if (journal.read_bytes() if journal.exists() else None) != journal_before:
         problems.append("journal changed")
     if problems:
@@ -132,7 +132,7 @@ def _check(argv: list[str], capsys, workdir: Path, journal_before: bytes | None)
 def test_generated_bad_value_is_one_line_exit_2_nothing_written(cmd, opt, value, capsys, workdir):
     argv = list(VALID[cmd])
     argv[argv.index(opt) + 1] = value
-    journal = Path(os.environ["GASBENCH_JOURNAL"])
+    journal = Path(os.environ["BENCHWARDEN_JOURNAL"])
     _check(argv, capsys, workdir, journal.read_bytes() if journal.exists() else None)
 
 
@@ -148,7 +148,7 @@ def test_random_text_in_any_quantity_is_refused_cleanly(cmd, data, capsys, workd
     argv[argv.index(opt) + 1] = value
     if cmd == "contents" and opt == "--gas" and value.strip().lower() in {"n2", "air"}:
         return
-    journal = Path(os.environ["GASBENCH_JOURNAL"])
+    journal = Path(os.environ["BENCHWARDEN_JOURNAL"])
     _check(argv, capsys, workdir, journal.read_bytes() if journal.exists() else None)
 
 
@@ -164,7 +164,7 @@ def test_zz_report_counts():
 def test_output_never_overwrites_without_force_and_never_the_journal_or_profile(tmp_path, capsys):
     # regression: `export 1 --output JOURNAL` turned the journal into CSV; `checklist bench.toml
     # --output bench.toml` overwrote the profile
-    from gasbench.journal import Journal
+    from benchwarden.journal import Journal
 
     journal = tmp_path / "j.sqlite3"
     with Journal(journal) as j:
@@ -195,7 +195,7 @@ def test_foreign_and_newer_databases_are_refused_untouched(tmp_path, capsys):
     db.close()
     before = foreign.read_bytes()
     code, _, err = _run(["sessions", "--journal", str(foreign)], capsys)
-    assert code == 2 and "not a gasbench journal" in err and foreign.read_bytes() == before
+    assert code == 2 and "not a benchwarden journal" in err and foreign.read_bytes() == before
     newer = tmp_path / "newer.sqlite3"
     db = sqlite3.connect(newer)
     db.execute("CREATE TABLE sessions (id INTEGER)")
@@ -209,16 +209,16 @@ def test_foreign_and_newer_databases_are_refused_untouched(tmp_path, capsys):
 
 
 def test_tilde_in_the_journal_path_is_the_home_folder(tmp_path, monkeypatch):
-    from gasbench.journal import default_path
+    from benchwarden.journal import default_path
 
     monkeypatch.setenv("HOME", str(tmp_path))
-    monkeypatch.setenv("GASBENCH_JOURNAL", "~/j.sqlite3")
+    monkeypatch.setenv("BENCHWARDEN_JOURNAL", "~/j.sqlite3")
     assert default_path() == tmp_path / "j.sqlite3"
     assert default_path("~/other.sqlite3") == tmp_path / "other.sqlite3"
 
 
 def test_damaged_journal_is_refused_with_how_to_recover(tmp_path, capsys):
-    from gasbench.journal import Journal
+    from benchwarden.journal import Journal
 
     journal = tmp_path / "j.sqlite3"
     with Journal(journal) as j:
@@ -228,11 +228,11 @@ def test_damaged_journal_is_refused_with_how_to_recover(tmp_path, capsys):
     data[4096 * 3: 4096 * 3 + 200] = b"\xff" * 200  # a corrupt page
     journal.write_bytes(bytes(data))
     code, _, err = _run(["sessions", "--journal", str(journal)], capsys)
-    assert code == 2 and (".recover" in err or "not a gasbench journal" in err or "damaged" in err)
+    assert code == 2 and (".recover" in err or "not a benchwarden journal" in err or "damaged" in err)
 
 
 def test_control_characters_never_reach_the_terminal_or_a_spreadsheet(tmp_path, capsys):
-    from gasbench.render.files import clean, csv_cell
+    from benchwarden.render.files import clean, csv_cell
 
     text = Path(DEMO).read_text().replace('name = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"',
                                           'name = "bench\\u001b]0;owned\\u0007"')
@@ -244,15 +244,15 @@ def test_control_characters_never_reach_the_terminal_or_a_spreadsheet(tmp_path, 
 
 
 def test_a_read_only_journal_does_not_lose_a_computed_hold_test(tmp_path, capsys, monkeypatch):
-    from gasbench.errors import JournalError
-    from gasbench.workflows import holds
+    from benchwarden.errors import JournalError
+    from benchwarden.workflows import holds
 
     def refuse(*a, **k):
         raise JournalError("journal is read-only")
 
     monkeypatch.setattr(holds, "store", refuse)
     (tmp_path / "j.sqlite3").write_bytes(b"")
-    from gasbench.journal import Journal
+    from benchwarden.journal import Journal
 
     Journal(tmp_path / "j2.sqlite3").close()
     code, out, err = _run(["hold", "--gas", "n2", "--volume", "50 L", "--start", "152 bar", "--end", "150 bar",
@@ -264,8 +264,8 @@ def test_three_identical_readings_and_a_tiny_draw_do_not_crash():
     # regression: OverflowError in the observed draw, "date value out of range"
     import datetime as dt
 
-    from gasbench import gas as g
-    from gasbench.workflows.build import observed_draw
+    from benchwarden import gas as g
+    from benchwarden.workflows.build import observed_draw
 
     t0 = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
     rs = [(t0 + dt.timedelta(minutes=10 * i), 61e5, 293.15) for i in range(3)]

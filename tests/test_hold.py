@@ -9,11 +9,11 @@ import math
 import numpy as np
 import pytest
 
-from gasbench import gas as g
-from gasbench import hold as h
-from gasbench.cli import main
-from gasbench.errors import InputError
-from gasbench.tables import DensityTable
+from benchwarden import gas as g
+from benchwarden import hold as h
+from benchwarden.cli import main
+from benchwarden.errors import InputError
+from benchwarden.tables import DensityTable
 
 N2 = g.parse_gas("nitrogen")
 AMB = 101325.0
@@ -178,7 +178,7 @@ def test_hold_cli_json_and_errors(capsys, tmp_path):
 
 
 def test_target_leak_rate_in_any_flow_unit():
-    from gasbench.units import parse_flow
+    from benchwarden.units import parse_flow
 
     assert h.target_sccm(N2, parse_flow("2 sccm")) == pytest.approx(2.0)
     assert h.target_sccm(N2, parse_flow("0.1 slpm")) == pytest.approx(100.0)

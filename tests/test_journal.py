@@ -10,10 +10,10 @@ import textwrap
 
 import pytest
 
-from gasbench.cli import main
-from gasbench.errors import JournalError
-from gasbench.journal import SCHEMA_VERSION, Journal, default_path
-from gasbench.render.files import session_csv
+from benchwarden.cli import main
+from benchwarden.errors import JournalError
+from benchwarden.journal import SCHEMA_VERSION, Journal, default_path
+from benchwarden.render.files import session_csv
 
 
 def test_schema_version_and_wal(tmp_path):
@@ -25,7 +25,7 @@ def test_schema_version_and_wal(tmp_path):
 def test_migrates_a_version_1_journal(tmp_path):
     p = tmp_path / "old.sqlite3"
     db = sqlite3.connect(p)
-    from gasbench.journal import _MIGRATIONS
+    from benchwarden.journal import _MIGRATIONS
 
     db.executescript(_MIGRATIONS[1] + "PRAGMA user_version = 1;")
     db.execute("INSERT INTO sessions(bench, started_at) VALUES ('b', '2026-01-01T10:00')")
@@ -69,14 +69,14 @@ def test_sessions_readings_resume_and_export(tmp_path):
 
 
 def test_env_and_option_choose_the_path(tmp_path, monkeypatch):
-    monkeypatch.setenv("GASBENCH_JOURNAL", str(tmp_path / "env.sqlite3"))
+    monkeypatch.setenv("BENCHWARDEN_JOURNAL", str(tmp_path / "env.sqlite3"))
     assert default_path() == tmp_path / "env.sqlite3"
     assert default_path(tmp_path / "opt.sqlite3") == tmp_path / "opt.sqlite3"
 
 
 WRITER = textwrap.dedent("""
     import sys, time
-    from gasbench.journal import Journal
+    from benchwarden.journal import Journal
     j = Journal(sys.argv[1])
     sid = j.start_session("crash bench", None, "2026-12-01T09:00:00")
     for i in range(10_000):
@@ -169,7 +169,7 @@ def test_full_disk_keeps_journal_consistent_and_says_so(tmp_path):
 async def test_app_tells_the_user_when_the_journal_cannot_write(tmp_path):
     import datetime as dt
 
-    from gasbench.tui.app import make_app
+    from benchwarden.tui.app import make_app
 
     t0 = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
     app = make_app(None, tmp_path / "j.sqlite3", clock=lambda: t0)
@@ -223,3 +223,24 @@ def test_app_writer_and_command_line_on_one_journal(tmp_path, capsys):
         assert len(j.readings(s.id)) == 150
         n = j.db.execute("SELECT COUNT(*) FROM hold_tests WHERE bench = 'shared'").fetchone()[0]
         assert n == 15
+
+
+def test_journal_written_before_the_rename_opens_unchanged(tmp_path, capsys):
+    """Regression (issue 21): a journal made by the release before the project was renamed (kept
+    as a fixture: two idle readings, the idle-drop hold test they formed, a cylinder change) opens
+    with its application id and schema, and `status` reads it as the old release did."""
+    import shutil
+    from pathlib import Path
+
+    fixture = Path(__file__).parent / "fixtures" / "journal-before-rename.sqlite"
+    path = tmp_path / "old.sqlite"
+    shutil.copy(fixture, path)
+    with Journal(path) as j:
+        assert j.db.execute("PRAGMA application_id").fetchone()[0] == 0x4753_424A
+        assert j.db.execute("PRAGMA user_version").fetchone()[0] == SCHEMA_VERSION
+        readings = j.supply_readings("Demo: Larkfield teaching lab, bench 2 (N2 laser)", "n2-A")
+        assert [round(r.pressure_abs_pa - 99891.70147786745) for r in readings] == [15_000_000, 14_950_000, 20_000_000]
+    assert main(["--journal", str(path), "status", "profiles/demo-teaching-bench.toml", "--json"]) == 0
+    (supply,) = json.loads(capsys.readouterr().out)["supplies"]
+    assert supply["cylinder_label"] == "Cyl 4471" and supply["retest_due"] == "2029-05-01"
+    assert supply["pressure_gauge_pa"] == pytest.approx(200e5)

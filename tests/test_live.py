@@ -21,16 +21,16 @@ from pathlib import Path
 import pymodbus  # noqa: F401  (the package once, before threads import its parts)
 import pytest
 
-from gasbench import gas as g
-from gasbench import supply
-from gasbench.cli import main
-from gasbench.journal import Journal
-from gasbench.profile import parse_profile
-from gasbench.samples import SampleStore
-from gasbench.simulator import Cylinder, serve
-from gasbench.units import parse_flow
-from gasbench.workflows.findings import alarm_findings
-from gasbench.workflows.watch import (
+from benchwarden import gas as g
+from benchwarden import supply
+from benchwarden.cli import main
+from benchwarden.journal import Journal
+from benchwarden.profile import parse_profile
+from benchwarden.samples import SampleStore
+from benchwarden.simulator import Cylinder, serve
+from benchwarden.units import parse_flow
+from benchwarden.workflows.findings import alarm_findings
+from benchwarden.workflows.watch import (
     SILENT_INTERVALS,
     AlarmBook,
     Watcher,
@@ -131,7 +131,7 @@ def test_every_register_format_from_a_real_modbus_server():
     from pymodbus.server import ModbusTcpServer
     from pymodbus.simulator import DataType, SimData, SimDevice
 
-    from gasbench.sources import modbus_tcp
+    from benchwarden.sources import modbus_tcp
 
     values = {"int16": -1234, "uint16": 54321, "int32": -123456789, "uint32": 3_000_000_000,
               "float32": 149.875, "float32-swapped": 149.875}
@@ -187,7 +187,7 @@ def _crc16_modbus(data: bytes) -> int:
 
 
 def test_modbus_rtu_through_a_pseudo_terminal():
-    from gasbench.sources import modbus_rtu
+    from benchwarden.sources import modbus_rtu
 
     assert _crc16_modbus(b"123456789") == 0x4B37
     master, slave = os.openpty()
@@ -267,7 +267,7 @@ def test_a_source_that_dies_gives_gauge_silent_and_loses_no_stored_sample(tmp_pa
 
 
 def test_reconnects_back_off():
-    from gasbench.workflows.watch import BACKOFF_MAX_S
+    from benchwarden.workflows.watch import BACKOFF_MAX_S
 
     prof = parse_profile(DEMO.replace(ANCHOR, ANCHOR + f'\n[supplies.source]\nkind = "modbus-tcp"\nhost = '
                                       f'"127.0.0.1"\nport = {_free_port()}\ninterval = "1 s"\n', 1), "x.toml")
@@ -347,7 +347,7 @@ def test_a_killed_watcher_loses_at_most_the_last_interval(tmp_path):
     prof = _profile(tmp_path, _file_source(log, "0.2 s"))
     journal = tmp_path / "j.sqlite3"
     env = dict(os.environ, PYTHONUNBUFFERED="1")
-    proc = subprocess.Popen([sys.executable, "-m", "gasbench", "--journal", str(journal), "watch", str(prof),
+    proc = subprocess.Popen([sys.executable, "-m", "benchwarden", "--journal", str(journal), "watch", str(prof),
                              "--for", "60 s", "--every", "1 s"], stdout=subprocess.DEVNULL,
                             stderr=subprocess.DEVNULL, env=env)
     written: list[float] = []
@@ -434,7 +434,7 @@ def test_an_alarm_gets_one_journal_line_when_it_appears(tmp_path, capsys):
 async def test_the_app_reads_a_live_gauge_and_rings_when_it_falls_silent(tmp_path):
     from apptools import settle
 
-    from gasbench.tui.app import make_app
+    from benchwarden.tui.app import make_app
 
     log = tmp_path / "gauge.log"
     now = dt.datetime.now(dt.UTC).replace(microsecond=0)
@@ -474,7 +474,7 @@ async def test_the_app_reads_a_live_gauge_and_rings_when_it_falls_silent(tmp_pat
 
 def test_in_a_session_the_samples_give_the_observed_draw(tmp_path):
     # a draw of 2 slpm for an hour, sampled every 10 s (the simulator's mass balance), in a session
-    from gasbench.workflows.session import SessionState
+    from benchwarden.workflows.session import SessionState
 
     n2 = g.parse_gas("nitrogen")
     draw = supply.mass_flow(n2, parse_flow("2 slpm"))
@@ -529,14 +529,14 @@ def test_the_room_temperature_sensor_compensates_the_leak_watch(tmp_path):
     ('leak_target = "2 L/min"\n', r"b\.toml:\d+: supplies\[0\]\.leak_target: .*actual volume flow"),
 ])
 def test_bad_source_sections_are_refused_with_the_key(section, words):
-    from gasbench.errors import ProfileError
+    from benchwarden.errors import ProfileError
 
     with pytest.raises(ProfileError, match=words):
         parse_profile(DEMO.replace(ANCHOR, ANCHOR + section, 1), "b.toml")
 
 
 def test_a_modbus_rtu_section_builds_a_serial_modbus_source():
-    from gasbench.sources import ModbusSource, make_source
+    from benchwarden.sources import ModbusSource, make_source
 
     prof = parse_profile(DEMO.replace(ANCHOR, ANCHOR + '[supplies.source]\nkind = "modbus-rtu"\nport = '
                                       '"/dev/ttyUSB9"\nbaud = 19200\nparity = "E"\ndevice = 12\nregister = 4\n', 1),
@@ -564,7 +564,7 @@ def test_an_unrecorded_new_cylinder_restarts_the_leak_watch(tmp_path):
 
 
 def test_a_serial_transducer_that_prints_fast_never_falls_behind():
-    from gasbench.sources import SerialSource
+    from benchwarden.sources import SerialSource
 
     master, slave = os.openpty()
     src = SerialSource(os.ttyname(slave), lambda x: x, timeout_s=1.0)
@@ -600,7 +600,7 @@ def test_a_supply_leak_target_is_what_the_leak_watch_resolves_against(tmp_path):
 
 
 def test_two_samples_in_one_second_are_two_samples(tmp_path):
-    from gasbench.sources import Sample
+    from benchwarden.sources import Sample
 
     class Steady:  # a transducer read twice within a second
         def poll(self, now):

@@ -4,7 +4,7 @@ issue tracker."""
 
 import pytest
 
-from gasbench.render.numbers import fmt_uncertain, fmt_value
+from benchwarden.render.numbers import fmt_uncertain, fmt_value
 
 
 @pytest.mark.parametrize("x, u, unit, expected", [

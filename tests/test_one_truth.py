@@ -12,10 +12,10 @@ from pathlib import Path
 
 import pytest
 
-from gasbench.cli import main
-from gasbench.render.findings import TEMPLATES
-from gasbench.tui.app import make_app
-from gasbench.tui.widgets import FindingsPanel
+from benchwarden.cli import main
+from benchwarden.render.findings import TEMPLATES
+from benchwarden.tui.app import make_app
+from benchwarden.tui.widgets import FindingsPanel
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
@@ -40,7 +40,7 @@ def _bench(tmp_path: Path, state: str) -> tuple[Path, Path]:
     prof = tmp_path / f"{state}.toml"
     prof.write_text(text)
     journal = tmp_path / "journal.sqlite3"
-    from gasbench.journal import Journal
+    from benchwarden.journal import Journal
 
     Journal(journal).close()
     if state == "leak":
@@ -93,14 +93,14 @@ async def test_plan_checklist_app_and_cli_agree(state, tmp_path, capsys):
 
 
 def test_every_finding_code_has_words():
-    src = (ROOT / "gasbench" / "workflows" / "findings.py").read_text()
+    src = (ROOT / "benchwarden" / "workflows" / "findings.py").read_text()
     codes = set(re.findall(r'Finding\("([a-z0-9-]+)"', src)) | {f"room-{k}" for k in ("toxic", "flammable")}
     assert codes and codes <= set(TEMPLATES), codes - set(TEMPLATES)
 
 
 async def test_same_hold_test_stores_the_same_record_from_app_and_cli(tmp_path):
-    from gasbench.journal import Journal
-    from gasbench.tui.screens.tools import HoldScreen
+    from benchwarden.journal import Journal
+    from benchwarden.tui.screens.tools import HoldScreen
 
     journal = tmp_path / "journal.sqlite3"
     Journal(journal).close()

@@ -6,9 +6,9 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from gasbench import gas as g
-from gasbench import hold, supply
-from gasbench.units import ATM_PA, parse_flow, parse_pressure, pressure_abs
+from benchwarden import gas as g
+from benchwarden import hold, supply
+from benchwarden.units import ATM_PA, parse_flow, parse_pressure, pressure_abs
 
 N2 = g.parse_gas("nitrogen")
 GASES = ["nitrogen", "argon", "helium", "air", "oxygen", "hydrogen"]

@@ -11,11 +11,11 @@ import math
 import pytest
 from scipy.integrate import solve_ivp
 
-from gasbench import gas as g
-from gasbench import room
-from gasbench.errors import InputError
-from gasbench.quantities import parse_amount, parse_ventilation
-from gasbench.units import parse_flow
+from benchwarden import gas as g
+from benchwarden import room
+from benchwarden.errors import InputError
+from benchwarden.quantities import parse_amount, parse_ventilation
+from benchwarden.units import parse_flow
 
 
 def test_release_models_closed_forms():
@@ -135,7 +135,7 @@ def test_bad_room_input(call):
 def test_room_cli_json_keys_and_errors(capsys):
     import json
 
-    from gasbench.cli import main
+    from benchwarden.cli import main
 
     assert main(["room", "--gas", "n2", "--room-volume", "30 m3", "--release", "9 m3", "--json"]) == 0
     d = json.loads(capsys.readouterr().out)

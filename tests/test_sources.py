@@ -9,8 +9,8 @@ import struct
 
 import pytest
 
-from gasbench.errors import InputError
-from gasbench.sources import FileSource, Sample, SampleFilter, SerialSource, decode, to_pressure
+from benchwarden.errors import InputError
+from benchwarden.sources import FileSource, Sample, SampleFilter, SerialSource, decode, to_pressure
 
 
 def BAR(x):
@@ -111,9 +111,9 @@ def test_simulator_served_on_loopback_is_read_by_the_modbus_source():
 
     import pymodbus  # noqa: F401  (imported once here, not by two threads at once)
 
-    from gasbench import gas as g
-    from gasbench.simulator import Cylinder, serve
-    from gasbench.sources import modbus_tcp
+    from benchwarden import gas as g
+    from benchwarden.simulator import Cylinder, serve
+    from benchwarden.sources import modbus_tcp
 
     n2 = g.parse_gas("nitrogen")
     port = _free_port()
@@ -143,7 +143,7 @@ def test_simulator_served_on_loopback_is_read_by_the_modbus_source():
 
 
 def test_unreachable_modbus_device_is_a_bad_sample_not_a_crash():
-    from gasbench.sources import modbus_tcp
+    from benchwarden.sources import modbus_tcp
 
     s = modbus_tcp("127.0.0.1", _free_port(), 1, 0, "float32", BAR, timeout_s=0.5).read(NOW)
     assert not s.good and "cannot reach" in s.why
@@ -153,9 +153,9 @@ def test_profile_source_section_builds_the_source(tmp_path):
     # the demo profile with the commented source switched on, as the README's two-terminal demo
     from pathlib import Path
 
-    from gasbench.errors import ProfileError
-    from gasbench.profile import parse_profile
-    from gasbench.sources import FileSource, ModbusSource, make_source
+    from benchwarden.errors import ProfileError
+    from benchwarden.profile import parse_profile
+    from benchwarden.sources import FileSource, ModbusSource, make_source
 
     demo = (Path(__file__).resolve().parents[1] / "profiles" / "demo-teaching-bench.toml").read_text()
     section = ('\n[supplies.source]\nkind = "modbus-tcp"\nhost = "127.0.0.1"\nport = 5020\ndevice = 1\n'

@@ -9,10 +9,10 @@ import math
 
 import pytest
 
-from gasbench import gas as g
-from gasbench import supply
-from gasbench.errors import InputError
-from gasbench.units import ATM_PA, REFERENCES, parse_flow
+from benchwarden import gas as g
+from benchwarden import supply
+from benchwarden.errors import InputError
+from benchwarden.units import ATM_PA, REFERENCES, parse_flow
 
 N2 = g.parse_gas("nitrogen")
 HE = g.parse_gas("helium")

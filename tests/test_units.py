@@ -7,8 +7,8 @@ import math
 
 import pytest
 
-from gasbench.errors import InputError
-from gasbench.units import (
+from benchwarden.errors import InputError
+from benchwarden.units import (
     ATM_PA,
     REFERENCES,
     ambient_from_altitude,
@@ -166,7 +166,7 @@ def test_errors_are_also_value_errors():
 
 def test_fast_unit_factors_agree_with_pint():
     # the fast path's exact factors must be pint's (the one registry stays the reference)
-    from gasbench.units import _FAST, Q_
+    from benchwarden.units import _FAST, Q_
 
     for unit, (target, factor) in _FAST.items():
         pint_unit = {"l": "L", "ml": "mL", "cm3": "cm**3", "cc": "cm**3", "m3": "m**3", "ft3": "ft**3",
@@ -176,7 +176,7 @@ def test_fast_unit_factors_agree_with_pint():
 
 
 def test_temperature_arithmetic_agrees_with_pint():
-    from gasbench.units import Q_
+    from benchwarden.units import Q_
 
     for text, unit in (("21.5 degC", "degC"), ("-40 degF", "degF"), ("300 K", "K"), ("500 degR", "degR")):
         v = float(text.split()[0])

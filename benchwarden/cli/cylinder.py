@@ -1,0 +1,297 @@
+"""Cylinder-life commands: ``reading``, ``swap``, ``status`` (a scriptable journal)."""
+
+from __future__ import annotations
+
+import argparse
+import datetime as dt
+import math
+from dataclasses import asdict
+from typing import Any, cast
+
+from benchwarden.cli.common import (
+    add_display,
+    add_journal,
+    add_json,
+    display,
+    emit_json,
+    emit_table,
+    input_error,
+)
+from benchwarden.journal import Journal, default_path
+from benchwarden.profile import Profile, load_profile
+from benchwarden.quantities import check_text
+from benchwarden.render.display import Display
+from benchwarden.render.files import clean
+from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
+from benchwarden.render.numbers import fmt_uncertain
+from benchwarden.units import parse_mass, parse_pressure, parse_temperature
+from benchwarden.workflows import cylinder as cy
+from benchwarden.workflows.bench import assess
+
+AT_HELP = "when it was read: 'HH:MM' today (or last night), an ISO date-time, or now (default)"
+
+
+def configure(sub: Any, name: str) -> None:
+    if name == "reading":
+        p = sub.add_parser("reading", help="record a gauge reading or a weight of a supply (in or out of a session)")
+        _entry_args(p)
+        p.add_argument("--confirm", action="store_true",
+                       help="record a reading that looks implausible (a rise without a change, a very fast drop, "
+                            "a unit that looks swapped)")
+        add_journal(p)
+        add_display(p)
+        add_json(p)
+        p.set_defaults(func=cmd_reading)
+    elif name == "swap":
+        p = sub.add_parser("swap", help="record a cylinder change: the new fill of a supply")
+        _entry_args(p)
+        p.add_argument("--label", help="label or serial number of the new cylinder")
+        p.add_argument("--retest", metavar="DATE", help="periodic-inspection (retest) due date, e.g. 2031-05-01")
+        add_journal(p)
+        add_display(p)
+        add_json(p)
+        p.set_defaults(func=cmd_swap)
+    elif name == "strike":
+        p = sub.add_parser("strike", help="strike a wrong reading out (kept and marked, with the reason)")
+        p.add_argument("profile", help="bench profile (TOML)")
+        p.add_argument("reading_id", type=int, help="the reading's number (see 'status --json' or 'reading --json')")
+        p.add_argument("--reason", required=True, help="why, e.g. 'typed psi for bar'")
+        add_journal(p)
+        p.set_defaults(func=cmd_strike)
+    elif name == "status":
+        p = sub.add_parser("status", help="where each supply stands: last reading, contents, time to reserve, "
+                                          "latest hold test, findings")
+        p.add_argument("profile", help="bench profile (TOML)")
+        add_journal(p)
+        add_display(p)
+        add_json(p)
+        p.set_defaults(func=cmd_status)
+
+
+def _entry_args(p: argparse.ArgumentParser) -> None:
+    p.add_argument("profile", help="bench profile (TOML)")
+    p.add_argument("supply", help="supply id, as in the profile")
+    what = p.add_mutually_exclusive_group(required=True)
+    what.add_argument("--pressure", help="gauge reading, e.g. '146 bar' (or '147 bar(a)')")
+    what.add_argument("--weight", help="gross weight on the scale (liquefied gases), e.g. '74.1 kg'")
+    p.add_argument("--temperature", help="cylinder temperature (default: the profile's ambient)")
+    p.add_argument("--at", help=AT_HELP)
+
+
+def _open(args: argparse.Namespace) -> Journal:
+    return Journal(default_path(getattr(args, "journal", None)))
+
+
+def _entry(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> cy.Entry:
+    if args.supply not in {s.id for s in prof.supplies}:
+        raise input_error(f"unknown supply {args.supply!r}; known: {', '.join(s.id for s in prof.supplies)}")
+    T = parse_temperature(args.temperature, "cylinder temperature") if args.temperature else prof.ambient.temperature
+    at = cy.parse_at(args.at, now)
+    if args.pressure is not None:
+        p = parse_pressure(args.pressure, prof.ambient_pa)
+        return cy.Entry(args.supply, at, T, pressure_abs_pa=p.abs_at(prof.ambient_pa), pressure_text=p.text)
+    w = parse_mass(args.weight, "weight")
+    if not 0 < w <= 1e3:
+        raise input_error(f"weight {args.weight!r} must be above zero and at most 1000 kg")
+    return cy.Entry(args.supply, at, T, weight_kg=w)
+
+
+def cmd_reading(args: argparse.Namespace) -> int:
+    prof = load_profile(args.profile)
+    now = dt.datetime.now().astimezone().replace(microsecond=0)
+    d = display(args, prof.ambient_pa, prof)
+    entry = _entry(args, prof, now)
+    with _open(args) as j:
+        a = assess(prof, j, now)
+        planned = next((s.draw_kg_s for s in a.plan.supplies if s.id == entry.supply_id), None)
+        questions = cy.check_reading(prof, j, entry, planned)
+        if questions and not args.confirm:
+            raise input_error("not recorded: " + "; ".join(question_text(q, d) for q in questions)
+                              + " — check it, and repeat with --confirm to record it")
+        running = j.unfinished_session(prof.bench.name)
+        rid = cy.record_reading(j, prof, entry, running.id if running else None, now)
+        a = assess(prof, j, now)
+    sp = next(s for s in a.plan.supplies if s.id == entry.supply_id)
+    if args.json:
+        emit_json({"reading_id": rid, "supply": entry.supply_id, "at": entry.at.isoformat(),
+                   "session_id": running.id if running else None, "pressure_abs_pa": entry.pressure_abs_pa,
+                   "weight_kg": entry.weight_kg, "temperature_k": entry.temperature_k,
+                   "time_to_reserve_s": _seconds(sp.hours_to_reserve),
+                   "findings": [finding_dict(f, d) for f in a.findings if f.subject in (entry.supply_id, "leaks")]})
+        return 0
+    what = d.gauge(entry.pressure_abs_pa) if entry.pressure_abs_pa is not None else f"{entry.weight_kg:g} kg"
+    print(f"recorded {entry.supply_id} {what} at {entry.at:%a %H:%M}"
+          + (f" in session #{running.id}" if running else " (idle reading)"))
+    _print_findings([f for f in a.findings if f.subject in (entry.supply_id, "leaks")], d)
+    return 0
+
+
+def cmd_swap(args: argparse.Namespace) -> int:
+    prof = load_profile(args.profile)
+    now = dt.datetime.now().astimezone().replace(microsecond=0)
+    d = display(args, prof.ambient_pa, prof)
+    entry = _entry(args, prof, now)
+    retest = None
+    if args.retest:
+        try:
+            retest = dt.date.fromisoformat(args.retest.strip())
+        except ValueError:
+            raise input_error(f"retest date {args.retest!r}: write it as YYYY-MM-DD") from None
+    cy.check_reading(prof, None, entry)  # limits only: a new fill may be higher
+    with _open(args) as j:
+        cid = cy.record_change(j, prof, entry, now, args.label, retest)
+    if args.json:
+        emit_json({"change_id": cid, "supply": entry.supply_id, "at": entry.at.isoformat(),
+                   "pressure_abs_pa": entry.pressure_abs_pa, "weight_kg": entry.weight_kg,
+                   "label": args.label, "retest_due": retest.isoformat() if retest else None})
+        return 0
+    what = d.gauge(entry.pressure_abs_pa) if entry.pressure_abs_pa is not None else f"{entry.weight_kg:g} kg"
+    print(f"cylinder change recorded on {entry.supply_id}: new fill {what}"
+          + (f", {args.label}" if args.label else "") + (f", retest due {retest}" if retest else ""))
+    print("  check the new connection for leaks: a hold test (benchwarden hold) or leak-detection solution "
+          "on every fitting you disturbed")
+    return 0
+
+
+def cmd_strike(args: argparse.Namespace) -> int:
+    prof = load_profile(args.profile)
+    now = dt.datetime.now().astimezone().replace(microsecond=0)
+    reason = check_text(args.reason, "--reason", 200)
+    if not reason:
+        raise input_error("--reason must say why the reading is struck out")
+    with _open(args) as j:
+        ids = {r.id for s in prof.supplies for r in j.supply_readings(prof.bench.name, s.id)}
+        if args.reading_id not in ids:
+            raise input_error(f"no reading {args.reading_id} of bench {prof.bench.name!r} in the journal")
+        j.strike_reading(args.reading_id, now.isoformat(timespec="seconds"), reason)
+    print(f"reading {args.reading_id} struck out ({reason}); it stays in the journal, marked")
+    return 0
+
+
+def _order_date(o: cy.OrderBy | None) -> str | None:
+    return o.order_by.date().isoformat() if o is not None and o.order_by is not None else None
+
+
+def _cons(j: Journal | None, prof: Profile, sid: str) -> float | None:
+    c = cy.consumption(j, prof, sid)
+    return c.kg_per_week if c is not None else None
+
+
+def _seconds(hours: float) -> float | None:
+    return hours * 3600.0 if math.isfinite(hours) else None
+
+
+def _live(j: Journal | None, prof: Profile, sid: str, now: dt.datetime, amb: float) -> dict[str, Any] | None:
+    """The supply's latest live sample and leak watch (None without samples); a resolved leak
+    watch is stored as a hold test, as the app and ``watch`` do."""
+    from benchwarden.workflows.watch import leak_watch_recorded
+
+    sample = cy.latest_state(j, prof, sid, now.tzinfo)
+    if sample is None:
+        return None
+    lw = leak_watch_recorded(j, prof, sid, now)
+    return {"at": sample.at.isoformat(), "pressure_abs_pa": sample.pressure_abs_pa,
+            "pressure_gauge_pa": sample.pressure_abs_pa - amb, "temperature_k": sample.temperature_k,
+            "current": cy.live_is_state(j, prof, sid, sample),
+            "leak_verdict": lw.verdict if lw else None, "leak_rate_sccm": lw.leak_rate_sccm if lw else None,
+            "leak_rate_uncertainty_sccm": lw.leak_rate_uncertainty_sccm if lw else None,
+            "leak_target_sccm": lw.target_sccm if lw else None, "leak_since": lw.since.isoformat() if lw else None,
+            "leak_samples": lw.n if lw else None}
+
+
+#: ``status`` lists the alarms the journal recorded this far back [s].
+RECENT_ALARMS_S = 86400.0
+
+
+def cmd_status(args: argparse.Namespace) -> int:
+    prof = load_profile(args.profile)
+    now = dt.datetime.now().astimezone().replace(microsecond=0)
+    d = display(args, prof.ambient_pa, prof)
+    path = default_path(getattr(args, "journal", None))
+    j = Journal(path) if path.exists() else None
+    try:
+        a = assess(prof, j, now)
+        supplies: list[dict[str, Any]] = []
+        for sp in a.plan.supplies:
+            history = cy.readings_since_change(j, prof.bench.name, sp.id)
+            change = cy.current_change(j, prof.bench.name, sp.id)
+            last = history[-1] if history else None
+            live = _live(j, prof, sp.id, now, a.plan.ambient_pa)
+            tests = [h for h in (j.hold_tests(prof.bench.name) if j else []) if h.supply_id == sp.id]
+            ht = tests[-1] if tests else None
+            lv = live or {}
+            from_live = lv.get("leak_verdict") is not None
+            supplies.append(cast(dict[str, Any], {
+                "id": sp.id, "gas": sp.gas_name,
+                "pressure_abs_pa": sp.pressure_abs_pa, "pressure_gauge_pa": sp.pressure_abs_pa - a.plan.ambient_pa,
+                "temperature_k": sp.temperature_k, "liquefied": sp.liquefied,
+                "last_reading_at": last.at if last else None, "last_reading_id": last.id if last else None,
+                "reading_source": ("live gauge" if live is not None and live["current"]
+                                   else "cylinder change" if change and last and last.at == change.at
+                                   else "journal" if last else "profile"),
+                "mass_kg": sp.mass_kg, "usable_mass_kg": sp.usable_mass_kg,
+                "time_to_reserve_s": _seconds(sp.hours_to_reserve), "reserve_at": sp.reserve_at,
+                "cylinder_label": change.label if change else None,
+                "retest_due": change.retest_due if change else None,
+                "leak_verdict": lv["leak_verdict"] if from_live else ht.verdict if ht else None,
+                "leak_rate_sccm": lv["leak_rate_sccm"] if from_live else ht.leak_rate_sccm if ht else None,
+                "leak_rate_uncertainty_sccm": (lv["leak_rate_uncertainty_sccm"] if from_live
+                                               else ht.leak_rate_uncertainty_sccm if ht else None),
+                "leak_source": "leak watch" if from_live else "hold test" if ht else None,
+                "live": live,
+                "hold_test_at": ht.at if ht else None, "hold_test_kind": ht.kind if ht else None,
+                "order_by": _order_date(a.orders.get(sp.id)),
+                "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,
+                "consumption_kg_per_week": _cons(j, prof, sp.id),
+            }))
+        since = (now - dt.timedelta(seconds=RECENT_ALARMS_S)).isoformat(timespec="seconds")
+        alarms: list[dict[str, str]] = [{"at": r.at, "supply_id": r.supply_id or "", "code": r.code, "text": r.text}
+                  for r in (j.alarms(prof.bench.name, since) if j is not None else [])]
+    finally:
+        if j is not None:
+            j.close()
+    findings = [finding_dict(f, d) for f in a.findings]
+    if args.json:
+        emit_json({"bench": prof.bench.name, "journal": str(path), "ambient_pressure_pa": a.plan.ambient_pa,
+                   "supplies": supplies, "findings": findings, "alarms": alarms,
+                   "last_hold_test": None if a.last_hold is None else asdict(a.last_hold) | {
+                       "at": a.last_hold.at.isoformat()}})
+        return 0
+    print(f"Status: {prof.bench.name}")
+    for s in supplies:
+        rows = [("gas", s["gas"]),
+                ("now", "liquid (by weight)" if s["liquefied"] else d.gauge(s["pressure_abs_pa"])),
+                ("from", f"{s['reading_source']}" + (f", read {s['last_reading_at'][:16].replace('T', ' ')}"
+                                                    if s["last_reading_at"] else "")),
+                ("contents", f"{s['mass_kg']:.3f} kg; usable {s['usable_mass_kg']:.3f} kg"),
+                ("to reserve", d.hours(s["time_to_reserve_s"] / 3600 if s["time_to_reserve_s"] is not None
+                                       else math.inf))]
+        if s["live"] is not None:
+            lv = s["live"]
+            rows.append(("live gauge", f"{d.gauge(lv['pressure_abs_pa'])} at {lv['at'][11:19]}"
+                         + (f"; leak watch {lv['leak_verdict']}, "
+                            f"{fmt_uncertain(lv['leak_rate_sccm'], lv['leak_rate_uncertainty_sccm'], 'sccm')} "
+                            f"since {lv['leak_since'][11:16]}" if lv["leak_verdict"] else "")))
+        if s["leak_verdict"] and s["leak_source"] == "hold test":
+            rows.append(("last hold test", f"{s['leak_verdict']}, "
+                                           f"{fmt_uncertain(s['leak_rate_sccm'], s['leak_rate_uncertainty_sccm'], 'sccm')} "
+                                           f"({s['hold_test_kind'] or 'manual'})"))
+        if s["order_by"]:
+            rows.append(("order by", f"{s['order_by']} ({s['consumption_kg_per_week']:.3g} kg/week recorded)"))
+        if s["cylinder_label"] or s["retest_due"]:
+            rows.append(("cylinder", f"{s['cylinder_label'] or ''} retest due {s['retest_due'] or '—'}".strip()))
+        emit_table(f"  {s['id']}", rows)
+    _print_findings(list(a.findings), d)
+    if alarms:
+        print(f"Alarms in the last {RECENT_ALARMS_S / 3600:g} h")
+        for al in alarms:
+            print(f"  {al['at'][:16].replace('T', ' ')}  {clean(al['text'])}")
+    return 0
+
+
+def _print_findings(findings: list[Any], d: Display) -> None:
+    if not findings:
+        print("  no findings")
+    for f in findings:
+        text, figure = describe(f, d)
+        print(f"  {SEVERITY_MARK[f.severity]:<12} {f.subject}: {text} [{figure}]")

@@ -1,0 +1,211 @@
+"""The ``hold`` command: a leak rate from an idle pressure drop."""
+
+from __future__ import annotations
+
+import argparse
+import datetime as dt
+import sys
+from dataclasses import asdict
+from pathlib import Path
+from typing import Any
+
+from benchwarden import hold as hd
+from benchwarden.cli.common import (
+    add_ambient,
+    add_display,
+    add_gas,
+    add_journal,
+    add_json,
+    computation,
+    emit_json,
+    emit_table,
+    input_error,
+    journal_if_exists,
+    one_line,
+)
+from benchwarden.errors import JournalError
+from benchwarden.render.display import Display
+from benchwarden.render.numbers import fmt_uncertain
+from benchwarden.units import (
+    parse_duration,
+    parse_flow,
+    parse_length,
+    parse_temperature,
+    parse_temperature_difference,
+    parse_volume,
+    pressure_abs,
+)
+from benchwarden.workflows import holds
+
+HOLD_LOG_FORMAT = """\
+log file (--log): CSV with a header row, comma-separated, decimal points (a semicolon-separated
+file is read too; decimal commas and thousands separators are refused), '#' lines ignored:
+  time       elapsed time with its unit in the header ('time (min)', 'elapsed_h'; s, min, h, d)
+             or ISO 8601 timestamps ('2026-11-27T18:00', all with or all without a UTC offset)
+  pressure   gauge unless the unit says absolute: 'pressure (bar)', 'pressure (psia)', 'p_bar'
+             (or give --log-unit)
+  temperature  optional: 'temperature (degC)', 'T_K'; without it the temperature is taken as
+             constant (--t-start, default 20 degC) with 1 K uncertainty
+example (examples/hold-log.csv in the source):
+  time (h),pressure (bar),temperature (degC)
+  0,152.0,21.0
+  6,151.3,19.5
+Uncertainty (GUM): each reading MPE/sqrt(3) from --gauge-class x --gauge-range, (+) --resolution/sqrt(12)
+when given, each temperature --t-uncertainty; the log fit adds its standard error.
+"""
+
+
+def configure(sub: Any, name: str) -> None:
+    p = sub.add_parser("hold", help="leak rate from an idle pressure drop (hold test)",
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=HOLD_LOG_FORMAT)
+    add_gas(p)
+    p.add_argument("--volume", help="held volume: cylinder water volume or trapped line volume, e.g. '50 L'")
+    p.add_argument("--line-length", help="or compute the line volume: tube length, e.g. '3 m'")
+    p.add_argument("--bore", help="... and inner diameter, e.g. '4 mm'")
+    p.add_argument("--start", help="gauge reading at the start, e.g. '152 bar'")
+    p.add_argument("--end", help="gauge reading at the end, e.g. '150 bar'")
+    p.add_argument("--duration", help="hold time, e.g. '14 h'")
+    p.add_argument("--t-start", help="temperature at the start, e.g. '21 degC'")
+    p.add_argument("--t-end", help="temperature at the end, e.g. '17 degC'")
+    p.add_argument("--t-uncertainty", default=None,
+                   help="standard uncertainty of each temperature (default 0.5 K; 1 K when no temperatures are given)")
+    p.add_argument("--gauge-range", help="gauge full scale, e.g. '250 bar'")
+    p.add_argument("--gauge-class", type=float, help="gauge accuracy class (EN 837-1), e.g. 1.6")
+    p.add_argument("--resolution", help="smallest reading step, e.g. '1 bar'; adds resolution/√12 to each "
+                                        "reading's MPE/√3 (default: none beyond the class)")
+    p.add_argument("--target", help="leak rate that matters, e.g. '10 sccm' (default 1 %% of contents per day)")
+    p.add_argument("--reserve", help="reserve pressure, for time to reserve at this leak")
+    p.add_argument("--log", metavar="FILE.csv", help="logged series instead of two readings (format below)")
+    p.add_argument("--log-unit", help="pressure unit of the log if not in its header, e.g. 'bar' or 'psia'")
+    p.add_argument("--bench", help="bench name to file the test under in the journal (as in the profile)")
+    p.add_argument("--supply", help="supply id to file the test under in the journal")
+    add_journal(p)
+    add_ambient(p)
+    add_display(p)
+    add_json(p)
+    p.set_defaults(func=cmd_hold)
+
+
+def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
+    if (args.gauge_range is None) != (args.gauge_class is None):
+        raise input_error("--gauge-range and --gauge-class go together")
+    if args.gauge_range is None:
+        if args.resolution:
+            raise input_error("--resolution needs --gauge-range and --gauge-class")
+        return None
+    span = pressure_abs(args.gauge_range, amb, "gauge range") - amb
+    res = pressure_abs(args.resolution, 0.0, "resolution") if args.resolution else None
+    return holds.gauge_spec(span, args.gauge_class, res)
+
+
+def cmd_hold(args: argparse.Namespace) -> int:
+    g_, amb, d = computation(args)
+    if args.volume:
+        V = parse_volume(args.volume, "held volume")
+    elif args.line_length and args.bore:
+        V = hd.line_volume(parse_length(args.line_length, "line length"), parse_length(args.bore, "bore"))
+    else:
+        raise input_error("give the held --volume, or --line-length and --bore of the line")
+    gauge = _gauge(args, amb)
+    u_T = parse_temperature_difference(args.t_uncertainty) if args.t_uncertainty else hd.U_T_DEFAULT
+    target = hd.target_sccm(g_, parse_flow(args.target, what="target leak rate")) if args.target else None
+    reserve = pressure_abs(args.reserve, amb, "reserve") if args.reserve else None
+    fit = None
+    if args.log:
+        try:
+            text = Path(args.log).expanduser().read_text(encoding="utf-8-sig")
+        except (OSError, UnicodeDecodeError) as exc:
+            raise input_error(f"cannot read log {args.log}: {getattr(exc, 'strerror', None) or exc}") from None
+        T_def = parse_temperature(args.t_start) if args.t_start else 293.15
+        fit = hd.hold_from_log(g_, V, hd.parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
+                               reserve, amb)
+        r = fit.result
+    else:
+        if not (args.start and args.end and args.duration):
+            raise input_error("give --start, --end and --duration (or --log FILE.csv)")
+        r = hd.hold_two_readings(
+            g_, V, pressure_abs(args.start, amb, "start pressure"),
+            pressure_abs(args.end, amb, "end pressure"), parse_duration(args.duration, "hold duration"),
+            parse_temperature(args.t_start, "start temperature") if args.t_start else None,
+            parse_temperature(args.t_end, "end temperature") if args.t_end else None,
+            gauge, u_T, target, reserve, amb)
+    saved = _record(args, r, "log" if fit is not None else "two-readings")
+    if args.json:
+        out = asdict(r) | {"saved_to_journal": saved}
+        if fit is not None:
+            out |= {"log_rows": fit.n, "slope_se_kg_s": fit.slope_se_kg_s, "residual_rms_kg": fit.residual_rms_kg,
+                    "residual_max_kg": fit.residual_max_kg, "residual_rms_pa": fit.residual_rms_pa,
+                    "curvature_significant": bool(fit.curvature_significant)}
+        emit_json(out | {"guidance": list(hd.GUIDANCE)})
+        return 0
+    emit_table("Hold test", _rows(g_.name, V, r, fit, d), _notes(r, gauge, d) + list(hd.GUIDANCE[-2:]))
+    if fit is not None and sys.stdout.isatty():
+        _terminal_plot(fit)
+    return 0
+
+
+def _rows(gas_name: str, V: float, r: hd.HoldResult, fit: hd.LogFit | None, d: Display) -> list[tuple[str, str]]:
+    words = {"leak": "LEAK: the mass loss is larger than its uncertainty",
+             "no-leak-resolved": f"no leak above {r.leak_rate_sccm + r.smallest_resolvable_sccm:.3g} sccm "
+                                 f"(smallest this test resolves: {r.smallest_resolvable_sccm:.3g} sccm)",
+             "inconclusive": "INCONCLUSIVE: this gauge cannot tell; hold longer or use a finer gauge"}
+    rows = [("gas", gas_name), ("volume", f"{V * 1000:.4g} L"),
+            ("start", f"{d.both(r.start_abs_pa)} at {d.temperature(r.start_temperature_k)}"),
+            ("end", f"{d.both(r.end_abs_pa)} at {d.temperature(r.end_temperature_k)}"),
+            ("hold", d.hours(r.duration_s / 3600)),
+            ("mass loss", fmt_uncertain(r.mass_loss_kg * 1000, r.mass_loss_uncertainty_kg * 1000, "g") + " (1σ)"),
+            ("leak rate", fmt_uncertain(r.leak_rate_sccm, r.leak_rate_uncertainty_sccm, "sccm")
+             + " (0 °C, 101.325 kPa; 1σ)"),
+            ("", f"{r.leak_rate_pa_m3_s:.3g} Pa·m³/s = {r.leak_rate_mbar_l_s:.3g} mbar·L/s"),
+            ("", f"{r.kg_per_day * 1000:.3g} g/day = {r.percent_per_day:.3g} % of contents/day = "
+                 f"{d.difference(r.pressure_fall_per_day_pa)}/day at constant temperature"),
+            ("verdict", words[r.verdict]),
+            ("target", f"{r.target_sccm:.3g} sccm; hold needed to resolve it ≈ {d.hours(r.hold_needed_h)}"),
+            ("to empty at this rate", d.hours(r.hours_to_empty) if r.leak_rate_kg_s > 0 else "—")]
+    if r.hours_to_reserve is not None:
+        rows.append(("to reserve at this rate", d.hours(r.hours_to_reserve)))
+    if fit is not None:
+        rows.append(("log fit", f"{fit.n} rows; residual rms {d.difference(fit.residual_rms_pa)} "
+                                f"(max {d.difference(fit.residual_max_kg * fit.residual_rms_pa / fit.residual_rms_kg)})"
+                                if fit.residual_rms_kg > 0 else f"{fit.n} rows; no residual"))
+    rows.append(("method", r.method))
+    return rows
+
+
+def _notes(r: hd.HoldResult, gauge: hd.GaugeSpec | None, d: Display) -> list[str]:
+    notes = list(r.notes)
+    if gauge is not None and r.astm_resolution_ok is False:
+        res = gauge.resolution_pa if gauge.resolution_pa is not None else gauge.mpe_pa
+        notes.append(f"ASTM E2930 rule: resolution {d.difference(res)} should be ≤ 1/10 of the "
+                     f"{d.difference(r.target_pressure_change_pa)} the target leak causes in this hold")
+    if gauge is not None and r.astm_accuracy_ok is False:
+        notes.append(f"ASTM E2930 rule: accuracy ±{d.difference(gauge.mpe_pa)} should be ≤ 1/4 of "
+                     f"{d.difference(r.target_pressure_change_pa)}")
+    return notes
+
+
+def _record(args: argparse.Namespace, r: hd.HoldResult, kind: str) -> bool:
+    """Store the hold test in the journal when the journal exists (tagged with --bench/--supply)."""
+    try:
+        j = journal_if_exists(args)
+        if j is None:
+            return False
+        with j:
+            holds.store(j, holds.record_of(r, dt.datetime.now().astimezone(), args.bench, args.supply, kind))
+    except JournalError as exc:
+        # the result still counts: print it, and say it was not stored
+        sys.stderr.write(one_line(f"benchwarden: warning: the hold test was not stored: {exc}") + "\n")
+        return False
+    return True
+
+
+def _terminal_plot(fit: hd.LogFit) -> None:
+    import plotext as plt
+
+    hours = [t / 3600 for t in fit.t_s]
+    plt.clear_figure()
+    plt.plot_size(80, 18)
+    plt.scatter(hours, [m * 1000 for m in fit.mass_kg], label="held mass (g)")
+    plt.plot(hours, [m * 1000 for m in fit.fit_kg], label="least-squares fit")
+    plt.xlabel("hours")
+    plt.show()

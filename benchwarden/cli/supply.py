@@ -1,0 +1,177 @@
+"""Supply commands: ``contents``, ``heat``, ``runtime``."""
+
+from __future__ import annotations
+
+import argparse
+import datetime as dt
+from dataclasses import asdict
+from typing import Any
+
+from benchwarden import supply
+from benchwarden.cli.common import (
+    add_ambient,
+    add_display,
+    add_flow_reference,
+    add_gas,
+    add_json,
+    computation,
+    emit_json,
+    emit_table,
+    input_error,
+)
+from benchwarden.units import (
+    get_reference,
+    parse_flow,
+    parse_mass,
+    parse_temperature,
+    parse_volume,
+    pressure_abs,
+)
+
+
+def configure(sub: Any, name: str) -> None:
+    if name == "contents":
+        p = sub.add_parser("contents", help="mass and free-gas volume in a cylinder (real gas)")
+        add_gas(p)
+        p.add_argument("--volume", help="cylinder water volume, e.g. '50 L'")
+        p.add_argument("--pressure", help="gauge reading, e.g. '200 bar' (or '150 bar(a)')")
+        p.add_argument("--temperature", help="gas temperature, e.g. '20 degC'")
+        p.add_argument("--gross", help="gross weight (liquefied gases), e.g. '75.2 kg'")
+        p.add_argument("--tare", help="tare weight stamped on the cylinder, e.g. '68.5 kg'")
+        p.add_argument("--reference", default="15C", help="free-gas reference: 0C, 15C (default), 20C, 70F")
+        add_ambient(p)
+        add_display(p)
+        add_json(p)
+        p.set_defaults(func=cmd_contents)
+    elif name == "heat":
+        p = sub.add_parser("heat", help="pressure of a closed cylinder at another temperature")
+        add_gas(p)
+        p.add_argument("--pressure", required=True, help="reading now, e.g. '200 bar'")
+        p.add_argument("--temperature", required=True, help="temperature now, e.g. '15 degC'")
+        p.add_argument("--to", required=True, help="temperature to evaluate, e.g. '50 degC'")
+        p.add_argument("--service", help="service (working) pressure, e.g. '200 bar'")
+        p.add_argument("--test", help="test pressure stamped on the cylinder, e.g. '300 bar'")
+        add_ambient(p)
+        add_display(p)
+        add_json(p)
+        p.set_defaults(func=cmd_heat)
+    elif name == "runtime":
+        p = sub.add_parser("runtime", help="hours until the reserve at given draws")
+        add_gas(p)
+        p.add_argument("--volume", required=True)
+        p.add_argument("--pressure", required=True)
+        p.add_argument("--temperature", required=True)
+        p.add_argument("--reserve", required=True, help="pressure at which to close or swap, e.g. '10 bar'")
+        p.add_argument("--flow", required=True, action="append", help="a draw, e.g. '2 slpm'; repeat for more")
+        add_flow_reference(p)
+        add_ambient(p)
+        add_display(p)
+        add_json(p)
+        p.set_defaults(func=cmd_runtime)
+
+
+def cmd_contents(args: argparse.Namespace) -> int:
+    g_, amb, d = computation(args)
+    ref = get_reference(args.reference)
+    T = parse_temperature(args.temperature) if args.temperature else 288.15
+    if (args.gross is None) != (args.tare is None):
+        raise input_error("--gross and --tare go together: give both weights")
+    if args.gross is not None:
+        c = supply.contents_by_weight(g_, parse_mass(args.gross, "gross weight"), parse_mass(args.tare, "tare weight"),
+                                      ref, T, parse_volume(args.volume) if args.volume else None)
+    else:
+        if not (args.volume and args.pressure and args.temperature):
+            raise input_error("contents needs --volume, --pressure and --temperature (or --gross and --tare)")
+        c = supply.contents(g_, parse_volume(args.volume, "cylinder volume"), pressure_abs(args.pressure, amb), T, ref)
+    if c.mass_kg is None:
+        # no pressure-based contents: the same one line and exit status in text and JSON modes
+        if c.phase == "liquid-full":
+            raise input_error(c.notes[0])
+        raise input_error(c.notes[0] + " Use --gross and --tare.")
+    if args.json:
+        out = asdict(c)
+        out["reference_temperature_k"] = ref.temperature_k
+        out["reference_pressure_pa"] = ref.pressure_pa
+        out["reference"] = ref.label
+        out["ambient_pressure_pa"] = amb
+        out["pressure_gauge_pa"] = None if c.pressure_abs_pa is None else c.pressure_abs_pa - amb
+        emit_json(out)
+        return 0
+    rows = [("gas", c.gas_name)]
+    if c.pressure_abs_pa is not None:
+        rows.append(("pressure", d.both(c.pressure_abs_pa)))
+    rows.append(("temperature", d.temperature(c.temperature_k)))
+    assert c.free_volume_m3 is not None
+    if c.density_kg_m3 is not None:
+        rows += [("density", f"{c.density_kg_m3:.3f} kg/m³"), ("Z", f"{c.z:.4f}")]
+    if c.phase == "two-phase":
+        rows.append(("phase", f"two-phase: vapour fraction {c.vapour_fraction:.2f} (by moles)"))
+    if c.filling_ratio_kg_l is not None:
+        rows.append(("filling ratio", f"{c.filling_ratio_kg_l:.3f} kg/L" + (" (OVERFILLED)" if c.overfilled else "")))
+    rows += [
+        ("mass", f"{c.mass_kg:.3f} kg"),
+        ("free gas", f"{c.free_volume_m3:.3f} m³ = {c.free_volume_m3 * 1000:.0f} L at {ref.label}"),
+    ]
+    if c.ideal_free_volume_m3 is not None:
+        rows.append(("ideal gas (p·V/T)", f"{c.ideal_free_volume_m3:.3f} m³; real differs by {c.real_vs_ideal_percent:+.1f} %"))
+    rows.append(("method", c.method))
+    emit_table("Cylinder contents", rows, c.notes)
+    return 0
+
+
+def cmd_heat(args: argparse.Namespace) -> int:
+    g_, amb, d = computation(args)
+    p = pressure_abs(args.pressure, amb)
+    T1 = parse_temperature(args.temperature)
+    T2 = parse_temperature(args.to, "target temperature")
+    service = pressure_abs(args.service, amb, "service pressure") if args.service else None
+    test = pressure_abs(args.test, amb, "test pressure") if args.test else None
+    h = supply.heat_up(g_, p, T1, T2, amb, service, test)
+    if args.json:
+        emit_json(asdict(h) | {"ambient_pressure_pa": amb})
+        return 0
+    rows = [
+        ("gas", h.gas_name),
+        ("from", f"{d.both(h.pressure_from_abs_pa)} at {d.temperature(T1)}"),
+        ("to", f"{d.both(h.pressure_abs_pa)} at {d.temperature(T2)}"),
+        ("ideal gas would say", d.both(h.ideal_pressure_abs_pa)),
+        ("method", h.method),
+    ]
+    warnings = []
+    if h.above_storage_limit:
+        warnings.append(f"{d.temperature(T2)} is above the 52 °C (125 °F) limit for storing cylinders (CGA P-1, "
+                        "from memory): keep cylinders out of sun and away from heat")
+    if h.above_test_pressure and h.test_abs_pa is not None:
+        warnings.append(f"STOP: {d.gauge(h.pressure_abs_pa)} exceeds the test pressure {d.gauge(h.test_abs_pa)}; "
+                        "never heat a cylinder")
+    elif h.above_service_pressure and h.service_abs_pa is not None:
+        warnings.append(f"{d.gauge(h.pressure_abs_pa)} exceeds the service pressure {d.gauge(h.service_abs_pa)} "
+                        "(rated at 15 °C); check the regulator's inlet rating")
+    emit_table("Closed cylinder heated or cooled", rows, warnings)
+    return 0
+
+
+def cmd_runtime(args: argparse.Namespace) -> int:
+    g_, amb, d = computation(args)
+    V = parse_volume(args.volume, "cylinder volume")
+    p = pressure_abs(args.pressure, amb)
+    res = pressure_abs(args.reserve, amb, "reserve")
+    T = parse_temperature(args.temperature)
+    flows = [parse_flow(f, reference=args.flow_reference) for f in args.flow]
+    draws = [supply.mass_flow(g_, f) for f in flows]
+    r = supply.runtime(g_, V, p, res, T, sum(draws))
+    now = dt.datetime.now().astimezone()
+    at = now + dt.timedelta(hours=r.hours_to_reserve) if r.hours_to_reserve <= 24 * 366 else None
+    if args.json:
+        emit_json(asdict(r) | {"draws_kg_s": draws, "reserve_at": at.isoformat(timespec="minutes") if at else None,
+                               "pressure_abs_pa": p, "reserve_abs_pa": res})
+        return 0
+    rows = [("gas", r.gas_name), ("now", d.both(p)), ("reserve", d.both(res)),
+            ("usable above reserve", f"{r.usable_mass_kg:.3f} kg")]
+    for f, dr in zip(flows, draws, strict=True):
+        rows.append(("draw", f"{f.describe()} = {dr * 60e3:.3f} g/min"))
+    rows += [("time to reserve", d.hours(r.hours_to_reserve)),
+             ("reserve reached at", at.strftime("%a %d %b %H:%M") if at else "not within a year"),
+             ("method", r.method + " (constant temperature)")]
+    emit_table("Run time to reserve", rows)
+    return 0

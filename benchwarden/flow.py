@@ -1,0 +1,206 @@
+"""Draw flows: per-shot refresh, bleed orifices and needle valves.
+
+A draw's flow is a standard flow (see :mod:`benchwarden.units`), a volume per shot times the
+repetition rate, an orifice at the regulated pressure, or a valve of known flow coefficient
+(IEC 60534 through the `fluids` library).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+from benchwarden import gas as g
+from benchwarden.errors import InputError
+from benchwarden.units import ATM_PA, T0_K, check_positive, check_range, fmt_pressure
+
+heat_capacity_ratio = g.heat_capacity_ratio
+
+
+def critical_pressure_ratio(k: float) -> float:
+    """Critical (choking) pressure ratio p*/p0 = (2/(k+1))^(k/(k−1)) of an isentropic nozzle.
+
+    >>> round(critical_pressure_ratio(1.4), 4)
+    0.5283
+    """
+    return (2.0 / (k + 1.0)) ** (k / (k - 1.0))
+
+
+def ideal_nozzle_mass_flux(rho1: float, p1: float, k: float, r: float) -> tuple[float, bool]:
+    """Mass flux [kg/(m²·s)] of an ideal-gas isentropic nozzle and whether it is choked.
+
+    Subcritical (r = p2/p1 > r*): G = √(2·ρ1·p1·k/(k−1)·[r^(2/k) − r^((k+1)/k)]);
+    choked (r ≤ r* = (2/(k+1))^(k/(k−1))): G = √(k·ρ1·p1·(2/(k+1))^((k+1)/(k−1)))
+    (Shapiro 1953, ch. 4). Kept as the labelled comparison for the real-gas nozzle.
+
+    >>> round(ideal_nozzle_mass_flux(1.2, 1e5, 1.4, 0.3)[0], 2)   # choked: 0.6847·√(ρ·p)
+    237.19
+    """
+    r_crit = critical_pressure_ratio(k)
+    if r <= r_crit:
+        return math.sqrt(k * rho1 * p1 * (2.0 / (k + 1.0)) ** ((k + 1.0) / (k - 1.0))), True
+    return math.sqrt(2.0 * rho1 * p1 * k / (k - 1.0) * (r ** (2.0 / k) - r ** ((k + 1.0) / k))), False
+
+
+def _golden_max(f: Any, lo: float, hi: float, rel: float = 1e-6) -> tuple[float, float]:
+    """Maximum of a unimodal f on [lo, hi] by golden-section search: (x, f(x))."""
+    phi = (math.sqrt(5.0) - 1.0) / 2.0
+    a, b = lo, hi
+    c, d = b - phi * (b - a), a + phi * (b - a)
+    fc, fd = f(c), f(d)
+    while b - a > rel * hi:
+        if fc > fd:
+            b, d, fd = d, c, fc
+            c = b - phi * (b - a)
+            fc = f(c)
+        else:
+            a, c, fc = c, d, fd
+            d = a + phi * (b - a)
+            fd = f(d)
+    return (c, fc) if fc > fd else (d, fd)
+
+
+def real_nozzle_mass_flux(gas: g.Gas, p1: float, T1: float, p2: float) -> tuple[float, bool, float]:
+    """Mass flux [kg/(m²·s)] of a real-gas isentropic nozzle from rest at (p1, T1) to p2:
+    (G, choked, critical pressure ratio).
+
+    Method: along the isentrope s = s(T1, p1), G(p) = ρ(p, s)·√(2·(h1 − h(p, s))) with ρ and h
+    from the equation of state (CoolProp HEOS; a two-phase throat is taken in homogeneous
+    equilibrium). The flow chokes at the pressure p* where G is largest (there the velocity
+    equals the real speed of sound); below p* the flux stays G(p*). This is the real-gas form
+    of the nozzle equation used for critical-flow nozzles (ISO 9300 computes its real-gas
+    critical flow function C* the same way).
+    """
+    h1 = g.enthalpy(gas, T1, p1)
+    s1 = g.entropy(gas, T1, p1)
+
+    def flux(p: float, verify: bool = False) -> float:
+        h, rho, _ = g.isentrope(gas, s1, p, T1 * (p / p1) ** 0.25, verify)
+        return rho * math.sqrt(max(0.0, 2.0 * (h1 - h)))
+
+    # p* lies well inside (0.15·p1, 0.95·p1) for every gas and state of a bench; a mixture is
+    # followed on its gas branch and its phase checked once, at the state that sets the flow
+    p_star, G_star = _golden_max(flux, 0.15 * p1, 0.95 * p1, rel=1e-4)
+    if p2 <= p_star:
+        return (flux(p_star, True) if gas.is_mixture else G_star), True, p_star / p1
+    return flux(p2, True), False, p_star / p1
+
+
+@dataclass(frozen=True)
+class OrificeFlow:
+    mass_flow_kg_s: float
+    standard_flow_slpm: float
+    choked: bool
+    critical_ratio: float
+    k: float
+    ideal_mass_flow_kg_s: float
+    method: str
+
+
+def orifice_flow(
+    gas: g.Gas, diameter_m: float, p_up: float, p_down: float, T: float, cd: float = 0.62,
+) -> OrificeFlow:
+    """Mass flow through a sharp-edged orifice or small nozzle: a real-gas isentropic nozzle
+    (:func:`real_nozzle_mass_flux`) times a discharge coefficient, ṁ = Cd·A·G.
+
+    Parameters
+    ----------
+    diameter_m : Orifice bore, [m]
+    p_up, p_down : Absolute pressures upstream and downstream, [Pa]
+    T : Upstream temperature, [K]
+    cd : Discharge coefficient, [-] (0.61–0.62 for a sharp-edged orifice, common practice)
+
+    Notes
+    -----
+    The ideal-gas nozzle with the inlet density and cp/cv (Shapiro 1953, ch. 4) is returned as
+    ``ideal_mass_flow_kg_s`` for comparison: it agrees within 0.5 % at a few bar and is off by
+    several percent at cylinder pressure (CO2 near saturation, hydrogen at hundreds of bar).
+    The standard flow is at 0 °C, 101.325 kPa.
+
+    Examples
+    --------
+    >>> r = orifice_flow(g.parse_gas("nitrogen"), 0.2e-3, 3.0e5, 1.0e5, 293.15)
+    >>> r.choked, round(r.standard_flow_slpm, 3)
+    (True, 0.652)
+    """
+    check_range(diameter_m, "orifice diameter", 0.0, 0.05, "m", "a bleed orifice or needle-valve bore")
+    if not 0 < cd <= 1:
+        raise InputError(f"discharge coefficient {cd:g} must be > 0 and ≤ 1")
+    if p_down >= p_up:
+        raise InputError(
+            f"downstream pressure {fmt_pressure(p_down, kind='absolute')} is not below upstream {fmt_pressure(p_up, kind='absolute')}: no flow"
+        )
+    rho1 = g.density(gas, T, p_up)
+    k = g.heat_capacity_ratio(gas, T, p_up)
+    A = math.pi * diameter_m**2 / 4.0
+    G_ideal, _ = ideal_nozzle_mass_flux(rho1, p_up, k, p_down / p_up)
+    G, choked, r_crit = real_nozzle_mass_flux(gas, p_up, T, p_down)
+    mdot = cd * A * G
+    rho_std = g.density(gas, T0_K, ATM_PA)
+    return OrificeFlow(mdot, mdot / rho_std * 60e3, choked, r_crit, k, cd * A * G_ideal,
+                       "real-gas isentropic nozzle (CoolProp HEOS) with discharge coefficient")
+
+
+@dataclass(frozen=True)
+class ValveFlow:
+    mass_flow_kg_s: float
+    standard_flow_slpm: float
+    choked: bool
+    method: str
+
+
+def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: float = 0.7) -> ValveFlow:
+    """Flow through a valve of flow coefficient Kv [m³/h] by IEC 60534-2-1 (gas, turbulent),
+    solved for the flow with `fluids.control_valve.size_control_valve_g` (Caleb Bell's
+    implementation of the standard), bracketing the standard flow until Kv matches.
+
+    Cv (US) = 1.156·Kv. ``xT`` is the valve's pressure-differential ratio factor at choked flow.
+
+    >>> v = valve_flow(g.parse_gas("nitrogen"), 0.01, 5e5, 1e5, 293.15)
+    >>> v.choked, round(v.standard_flow_slpm, 1)
+    (True, 12.7)
+    """
+    from fluids.control_valve import size_control_valve_g
+
+    check_positive(kv, "valve Kv", "m³/h")
+    if p_down >= p_up:
+        raise InputError(
+            f"downstream pressure {fmt_pressure(p_down, kind='absolute')} is not below upstream {fmt_pressure(p_up, kind='absolute')}: no flow"
+        )
+    Z = g.z_factor(gas, T, p_up)
+    k = heat_capacity_ratio(gas, T, p_up)
+    MW = gas.molar_mass * 1000.0
+
+    def kv_of(Q: float) -> dict[str, Any]:
+        out = size_control_valve_g(T=T, MW=MW, mu=1.8e-5, gamma=k, Z=Z, P1=p_up, P2=p_down, Q=Q,
+                                   xT=xT, allow_laminar=False, full_output=True)
+        assert isinstance(out, dict)
+        return out
+
+    lo, hi = 1e-12, 1.0
+    while kv_of(hi)["Kv"] < kv:
+        hi *= 10.0
+        if hi > 1e6:  # pragma: no cover - defensive
+            raise InputError(f"valve Kv {kv:g} gives no finite flow")
+    for _ in range(200):
+        mid = math.sqrt(lo * hi)
+        if kv_of(mid)["Kv"] < kv:
+            lo = mid
+        else:
+            hi = mid
+        if hi / lo < 1 + 1e-10:
+            break
+    Q = math.sqrt(lo * hi)
+    rho_std = g.density(gas, T0_K, ATM_PA)
+    return ValveFlow(Q * rho_std, Q * 60e3, bool(kv_of(Q)["choked"]),
+                     "IEC 60534-2-1 gas sizing (fluids), solved for flow")
+
+
+def per_shot_mass_flow(gas: g.Gas, volume_m3: float, p_abs: float, T: float, rate_hz: float) -> float:
+    """Mass flow [kg/s] of a draw that replaces ``volume_m3`` of gas at (T, p) on every shot:
+    ṁ = ρ(T, p)·V_shot·f (real density, CoolProp HEOS)."""
+    check_positive(volume_m3, "volume per shot", "m³")
+    if not math.isfinite(rate_hz) or rate_hz < 0:
+        raise InputError(f"repetition rate {rate_hz!r} Hz must be zero or more")
+    return g.density(gas, T, p_abs) * volume_m3 * rate_hz

@@ -1,0 +1,257 @@
+"""Spark-gap self-breakdown (firing) voltage and flashover margins.
+
+Methods
+-------
+* Air and nitrogen, p·d ≥ 0.1 bar·cm (density-corrected to 20 °C): the empirical
+  uniform-field formula for air, U_b = 6.72·√(p·d) + 24.36·(p·d) kV with p·d in bar·cm at
+  20 °C (Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed., 2000,
+  eq. 2.80 — equation number from memory).
+* Below that: Paschen's law, V = B·p·d / (ln(A·p·d) − ln(ln(1 + 1/γ))), with A and B for
+  each gas from Raizer, "Gas Discharge Physics", 1991, Table 4.1 (values from memory) and
+  γ = 0.01.
+* Other gases at high p·d: the air formula times the gas's relative dielectric strength
+  (SF6 ≈ 2.5 common practice; noble gases far below air), for mixtures the mole-fraction
+  weighted strength, which is a rough estimate (mixtures are not linear).
+
+Real gaps differ: electrode shape (field utilisation factor), surface condition, ageing,
+polarity, irradiation and the rise time of the pulse (overvolted, impulse breakdown) all move
+the firing voltage, often by tens of percent. Treat the figure as the static, uniform-field
+self-breakdown estimate.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+from benchwarden import gas as g
+from benchwarden.units import check_positive, check_range
+
+TORR_PA = 101325.0 / 760.0
+T_REF = 293.15  # K, reference temperature of the empirical formula
+
+#: Paschen constants (A [1/(cm·Torr)], B [V/(cm·Torr)]) from Raizer (1991) Table 4.1, from memory.
+PASCHEN: dict[str, tuple[float, float]] = {
+    "air": (15.0, 365.0),
+    "nitrogen": (12.0, 342.0),
+    "carbon dioxide": (20.0, 466.0),
+    "hydrogen": (5.0, 130.0),
+    "helium": (3.0, 34.0),
+    "neon": (4.0, 100.0),
+    "argon": (12.0, 180.0),
+    "krypton": (17.0, 240.0),
+    "xenon": (26.0, 350.0),
+}
+#: Secondary emission coefficient used with the Paschen constants (common practice).
+GAMMA = 0.01
+
+#: Dielectric strength relative to air at the same density in near-uniform fields at high p·d
+#: (common practice; values from memory, ±20 %).
+RELATIVE_STRENGTH: dict[str, float] = {
+    "air": 1.0,
+    "nitrogen": 1.0,
+    "oxygen": 0.9,
+    "carbon dioxide": 0.9,
+    "sulfur hexafluoride": 2.5,
+    "hydrogen": 0.55,
+    "argon": 0.2,
+    "helium": 0.15,
+    "neon": 0.25,
+    "krypton": 0.3,
+    "xenon": 0.45,
+}
+
+#: Flashover strength of a short, non-uniform air clearance: about 1 kV per mm (common practice).
+AIR_FLASHOVER_KV_PER_MM = 1.0
+
+
+def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA) -> float:
+    """Paschen's law breakdown voltage [V] at p·d [Torr·cm] (Townsend criterion).
+
+    Returns ``inf`` left of the Paschen minimum's asymptote, where no breakdown occurs.
+
+    >>> round(paschen_voltage(1.0, 15.0, 365.0))
+    310
+    """
+    denom = math.log(A * pd_torr_cm) - math.log(math.log(1.0 + 1.0 / gamma))
+    if denom <= 0:
+        return math.inf
+    return B * pd_torr_cm / denom
+
+
+def paschen_minimum(A: float, B: float, gamma: float = GAMMA) -> tuple[float, float]:
+    """(p·d at the minimum [Torr·cm], minimum voltage [V]) of Paschen's law:
+    (pd)_min = e·ln(1 + 1/γ)/A, V_min = B·(pd)_min."""
+    pd = math.e * math.log(1.0 + 1.0 / gamma) / A
+    return pd, B * pd
+
+
+def air_uniform_field_kv(pd_bar_cm_20c: float) -> float:
+    """Empirical breakdown voltage [kV] of air in a uniform field, p·d in bar·cm at 20 °C:
+    U = 6.72·√(pd) + 24.36·pd (Kuffel, Zaengl & Kuffel 2000).
+
+    >>> round(air_uniform_field_kv(1.01325), 1)   # 1 cm at 1 atm, 20 °C: about 31 kV
+    31.4
+    """
+    return 6.72 * math.sqrt(pd_bar_cm_20c) + 24.36 * pd_bar_cm_20c
+
+
+def relative_strength(gas: g.Gas) -> float:
+    """Mole-fraction-weighted dielectric strength relative to air (rough for mixtures)."""
+    return sum(x * RELATIVE_STRENGTH.get(c.key, 1.0) for c, x in gas.components)
+
+
+#: Where Paschen's law hands over to the high-p·d rule, [bar·cm at 20 °C] (0.1 bar·cm =
+#: 75 Torr·cm, the lower end of the empirical air formula's range).
+PD_JOIN = 0.1
+#: Upper end of the uniform-field methods' stated validity, [bar·cm at 20 °C].
+PD_MAX = 100.0
+_LN_LN = math.log(math.log(1.0 + 1.0 / GAMMA))
+
+
+def _high_pd_kv(gas: g.Gas, pd: Any) -> Any:
+    import numpy as np
+
+    pd = np.asarray(pd, dtype=float)
+    return (6.72 * np.sqrt(np.clip(pd, 0.0, None)) + 24.36 * pd) * relative_strength(gas)
+
+
+def _paschen_kv(A: float, B: float, pd_bar_cm: Any) -> Any:
+    import numpy as np
+
+    pd_torr = np.asarray(pd_bar_cm, dtype=float) * 1e5 / TORR_PA
+    with np.errstate(divide="ignore", invalid="ignore"):
+        denom = np.log(A * pd_torr) - _LN_LN
+        return np.where(denom > 0, B * pd_torr / denom / 1000.0, np.inf)
+
+
+def join_parameters(gas: g.Gas) -> tuple[float, float] | None:
+    """(c, n) of the join between Paschen's law and the high-p·d rule, or None where the gas
+    has no Paschen constants (the high-p·d rule is then used throughout).
+
+    Below p·d_j = 0.1 bar·cm the Paschen voltage is multiplied by 1 + c·(pd/pd_j)^n with
+    c = V_high(pd_j)/V_Paschen(pd_j) − 1, so the two methods meet at pd_j and Paschen's law
+    is recovered towards the minimum. The exponent n ≤ 1 is chosen so that the joined curve
+    keeps rising at pd_j (where c < 0 it must not exceed the Paschen curve's logarithmic slope
+    × (1 + c)/(−c)); the join is an interpolation of ours between two published methods.
+    """
+    pure = None if gas.is_mixture else gas.components[0][0].key
+    if pure not in PASCHEN:
+        return None
+    A, B = PASCHEN[pure]
+    v_p = float(_paschen_kv(A, B, PD_JOIN))
+    v_h = float(_high_pd_kv(gas, PD_JOIN))
+    c = v_h / v_p - 1.0
+    if c >= 0:
+        return c, 1.0
+    pd_torr = PD_JOIN * 1e5 / TORR_PA
+    log_slope = 1.0 - 1.0 / (math.log(A * pd_torr) - _LN_LN)
+    return c, min(1.0, 0.8 * log_slope * (1.0 + c) / -c)
+
+
+def breakdown_series(gas: g.Gas, spacing_m: float, p_abs: Any, T: float = T_REF) -> Any:
+    """Self-breakdown voltages [kV] for an array of absolute pressures [Pa] (numpy): the one
+    implementation of the methods in the module docstring, joined continuously at
+    p·d = 0.1 bar·cm (:func:`join_parameters`). ``inf`` where Paschen's law predicts no
+    breakdown (left of its asymptote)."""
+    import numpy as np
+
+    check_positive(spacing_m, "gap spacing", "m")
+    p = np.asarray(p_abs, dtype=float)
+    pd = p / 1e5 * spacing_m * 100.0 * T_REF / T
+    high = _high_pd_kv(gas, pd)
+    join = join_parameters(gas)
+    if join is None:
+        return high
+    c, n = join
+    A, B = PASCHEN[gas.components[0][0].key]
+    with np.errstate(invalid="ignore"):
+        low = _paschen_kv(A, B, pd) * (1.0 + c * np.clip(pd / PD_JOIN, 0.0, 1.0) ** n)
+    return np.where(pd >= PD_JOIN, high, low)
+
+
+@dataclass(frozen=True)
+class Breakdown:
+    gas_name: str
+    spacing_m: float
+    pressure_abs_pa: float
+    temperature_k: float
+    pd_bar_cm_20c: float
+    breakdown_kv: float
+    within_validity: bool
+    method: str
+    validity: str
+
+
+def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> Breakdown:
+    """Estimated self-breakdown voltage of a uniform-field gap (see module docstring).
+
+    The gas density enters through p·d scaled to 20 °C: (p·d)·(293.15 K / T). Above
+    p·d = 100 bar·cm the methods are outside their stated validity: ``within_validity`` is
+    False and the figure must not be shown as a firing voltage.
+
+    >>> b = breakdown(g.parse_gas("nitrogen"), 3e-3, 4.0e5)
+    >>> round(b.breakdown_kv, 1), b.method.split(",")[0]
+    (36.6, 'empirical uniform-field formula for air (Kuffel')
+    """
+    check_range(spacing_m, "gap spacing", 0.0, 0.5, "m", "a spark gap")
+    check_positive(p_abs, "gap pressure (absolute)", "Pa")
+    g.check_state(gas, T, p_abs)
+    pd_bar_cm = p_abs / 1e5 * spacing_m * 100.0 * T_REF / T
+    kv = float(breakdown_series(gas, spacing_m, p_abs, T))
+    pure = None if gas.is_mixture else gas.components[0][0].key
+    if pd_bar_cm >= PD_JOIN or pure not in PASCHEN:
+        if pure in ("air", "nitrogen"):
+            method = "empirical uniform-field formula for air (Kuffel, Zaengl & Kuffel 2000)"
+        else:
+            method = ("air formula × relative dielectric strength "
+                      f"{relative_strength(gas):.2f} (common practice, rough)")
+        validity = "uniform field, 0.1 to ~100 bar·cm; static breakdown"
+        if pd_bar_cm < PD_JOIN:
+            validity = "below 0.1 bar·cm the air formula is extrapolated: rough"
+    else:
+        A, B = PASCHEN[pure]
+        method = (f"Paschen's law, A = {A:g}, B = {B:g} (Raizer 1991), γ = {GAMMA:g}, joined "
+                  "continuously to the high-p·d rule at 0.1 bar·cm")
+        validity = "uniform field, p·d below 0.1 bar·cm (75 Torr·cm); no breakdown left of the asymptote"
+    within = pd_bar_cm <= PD_MAX
+    if not within:
+        validity = (f"p·d = {pd_bar_cm:.0f} bar·cm is beyond the ~{PD_MAX:.0f} bar·cm the methods cover: "
+                    "no estimate")
+    return Breakdown(gas.name, spacing_m, p_abs, T, pd_bar_cm, kv, within, method, validity)
+
+
+@dataclass(frozen=True)
+class Margin:
+    part: str
+    clearance_m: float
+    rating_kv: float | None
+    withstand_kv: float
+    margin_kv: float
+    margin_percent: float
+    status: str  # "ok" | "attention" | "stop"
+    method: str
+
+
+def flashover_margin(part: str, breakdown_kv: float, clearance_m: float, rating_kv: float | None) -> Margin:
+    """Margin of an exposed high-voltage part against the gap's firing voltage.
+
+    Withstand = min(clearance × 1 kV/mm (short non-uniform air gaps, common practice), rating).
+    Status: ``stop`` when the firing voltage reaches the withstand, ``attention`` below 20 %
+    margin, else ``ok``.
+
+    >>> m = flashover_margin("feedthrough", 30.0, 25e-3, 40.0)
+    >>> m.withstand_kv, m.margin_kv, m.status
+    (25.0, -5.0, 'stop')
+    """
+    check_positive(clearance_m, f"air clearance of {part}", "m")
+    flash = clearance_m * 1000.0 * AIR_FLASHOVER_KV_PER_MM
+    withstand = min(flash, rating_kv) if rating_kv is not None else flash
+    margin = withstand - breakdown_kv
+    pct = 100.0 * margin / breakdown_kv if breakdown_kv > 0 else math.inf
+    status = "stop" if margin <= 0 else ("attention" if pct < 20.0 else "ok")
+    return Margin(part, clearance_m, rating_kv, withstand, margin, pct, status,
+                  "clearance × 1 kV/mm (common practice) or rating, whichever is lower")
+
+

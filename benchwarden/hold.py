@@ -1,0 +1,483 @@
+"""Hold tests: a leak rate from an idle pressure drop, temperature-compensated, with its
+uncertainty, or the honest answer that the gauge cannot tell.
+
+Method
+------
+Pressure-change (pressure-decay) method as in EN 13184 and ASTM E2930: the gas mass held in a
+known volume is computed at the start and the end of the hold from pressure and temperature,
+here with the real-gas density (CoolProp HEOS) instead of the ideal gas law, so a temperature
+change is compensated: m = ρ(T, p)·V, leak = (m1 − m2)/Δt.
+
+Uncertainty (GUM, JCGM 100:2008): the gauge's maximum permitted error from its accuracy class
+(EN 837-1: class = maximum error in % of the span) is taken as a rectangular distribution,
+u = MPE/√3; reading resolution as u = r/(2√3); temperature readings u_T each. The two readings
+are taken as uncorrelated, which is conservative for one gauge (its zero error cancels in a
+difference, its hysteresis and non-linearity do not). Sensitivities ∂m/∂p, ∂m/∂T come from the
+equation of state. The verdict uses an expanded uncertainty U = 2u (about 95 %).
+
+Verdict: ``leak`` when the rate exceeds U; ``no-leak-resolved`` when even rate + U is below the
+target leak rate (so a leak of that size would have shown); otherwise ``inconclusive``.
+The ASTM E2930 rules of thumb are reported: the pressure resolution should be ten times and the
+accuracy four times finer than the pressure change the target leak causes over the hold.
+"""
+
+from __future__ import annotations
+
+import csv
+import datetime as dt
+import io
+import math
+import re
+from dataclasses import dataclass
+
+from benchwarden import gas as g
+from benchwarden.errors import InputError
+from benchwarden.tables import DensityTable
+from benchwarden.units import (
+    ATM_PA,
+    Flow,
+    check_positive,
+    check_range,
+    fmt_pressure,
+    fmt_temperature,
+)
+
+#: Largest held volume of a hold test [m³].
+MAX_HELD_M3 = 100.0
+
+#: Standard-flow reference for leak rates: 0 °C, 101.325 kPa.
+T_STD, P_STD = 273.15, 101325.0
+SQRT3 = math.sqrt(3.0)
+K_EXPANDED = 2.0
+
+
+@dataclass(frozen=True)
+class GaugeSpec:
+    """A gauge: span [Pa] (full scale minus zero), accuracy class [% of span], resolution [Pa]."""
+
+    span_pa: float
+    accuracy_class: float
+    resolution_pa: float | None = None
+
+    @property
+    def mpe_pa(self) -> float:
+        """Maximum permitted error (EN 837-1): class % of span."""
+        return self.accuracy_class / 100.0 * self.span_pa
+
+    @property
+    def u_reading_pa(self) -> float:
+        """Standard uncertainty of one reading (GUM, JCGM 100:2008, rectangular distributions):
+        MPE/√3 from the accuracy class, ⊕ resolution/√12 where a resolution is given (a
+        resolution not given is taken as already inside the class's MPE).
+
+        >>> round(GaugeSpec(250e5, 1.0).u_reading_pa)            # 2.5 bar MPE / √3
+        144338
+        >>> round(GaugeSpec(250e5, 1.0, 0.5e5).u_reading_pa)     # ⊕ 0.5 bar / √12
+        145057
+        """
+        u = self.mpe_pa / SQRT3
+        if self.resolution_pa is not None:
+            u = math.hypot(u, self.resolution_pa / (2.0 * SQRT3))
+        return u
+
+
+def standard_density(gas: g.Gas) -> float:
+    """Real density at 0 °C, 101.325 kPa [kg/m³] (CoolProp HEOS)."""
+    return g.density(gas, T_STD, P_STD)
+
+
+def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
+    """Mass flow [kg/s] as sccm at 0 °C, 101.325 kPa (real density at the reference)."""
+    return mdot / standard_density(gas) * 60e6
+
+
+def target_sccm(gas: g.Gas, flow: Flow) -> float:
+    """A target leak rate (any standard or mass flow) as sccm at 0 °C, 101.325 kPa."""
+    from benchwarden.supply import mass_flow
+
+    return sccm_from_kg_s(gas, mass_flow(gas, flow))
+
+
+def pa_m3_s_from_sccm(sccm: float) -> float:
+    """pV throughput [Pa·m³/s] of a standard flow at 101.325 kPa: 1 sccm = 101325/6e7 Pa·m³/s.
+
+    >>> round(pa_m3_s_from_sccm(1.0), 8)
+    0.00168875
+    """
+    return sccm * P_STD / 60e6
+
+
+def line_volume(length_m: float, bore_m: float) -> float:
+    """Trapped volume of a tube [m³]: π/4·d²·L.
+
+    >>> round(line_volume(2.0, 4e-3) * 1e6, 2)   # 2 m of 4 mm bore: 25.13 cm³
+    25.13
+    """
+    check_positive(length_m, "line length", "m")
+    check_positive(bore_m, "line bore", "m")
+    return math.pi / 4.0 * bore_m**2 * length_m
+
+
+def _dm(gas: g.Gas, V: float, T: float, p: float) -> tuple[float, float, float]:
+    """mass, ∂m/∂p, ∂m/∂T at (T, p) by central differences of the real density."""
+    dp = max(p * 1e-5, 1.0)
+    dT = 0.01
+    m = g.density(gas, T, p) * V
+    dmdp = (g.density(gas, T, p + dp) - g.density(gas, T, p - dp)) * V / (2 * dp)
+    dmdT = (g.density(gas, T + dT, p) - g.density(gas, T - dT, p)) * V / (2 * dT)
+    return m, dmdp, dmdT
+
+
+#: Default standard uncertainty of a temperature reading [K] when temperatures are given, and
+#: the larger one used when they are not (an unmeasured change of about 1 K is common).
+U_T_DEFAULT = 0.5
+U_T_UNMEASURED = 1.0
+
+
+def mass_change_uncertainty(dm1p: float, dm2p: float, dm1T: float, dm2T: float, u_p: float,
+                            u_T: float) -> float:
+    """Standard uncertainty [kg] of the held mass change m1 − m2 (GUM law of propagation, the
+    one budget of both hold-test modes): each of the two pressure readings contributes
+    ∂m/∂p·u_p and each temperature ∂m/∂T·u_T, taken as uncorrelated (conservative for one
+    gauge: its zero error cancels in a difference, its hysteresis and non-linearity do not).
+
+    >>> round(mass_change_uncertainty(1.0, 1.0, 0.0, 0.0, 3.0, 0.5), 4)    # √2 · 3
+    4.2426
+    """
+    return math.sqrt((dm1p * u_p) ** 2 + (dm2p * u_p) ** 2 + (dm1T * u_T) ** 2 + (dm2T * u_T) ** 2)
+
+
+@dataclass(frozen=True)
+class HoldResult:
+    gas_name: str
+    volume_m3: float
+    duration_s: float
+    start_abs_pa: float
+    end_abs_pa: float
+    start_temperature_k: float
+    end_temperature_k: float
+    temperatures_given: bool
+    mass_start_kg: float
+    mass_end_kg: float
+    mass_loss_kg: float
+    mass_loss_uncertainty_kg: float
+    leak_rate_kg_s: float
+    leak_rate_uncertainty_kg_s: float
+    leak_rate_sccm: float
+    leak_rate_uncertainty_sccm: float
+    leak_rate_pa_m3_s: float
+    leak_rate_mbar_l_s: float
+    kg_per_day: float
+    percent_per_day: float
+    pressure_fall_per_day_pa: float
+    smallest_resolvable_sccm: float
+    target_sccm: float
+    verdict: str
+    hours_to_reserve: float | None
+    hours_to_empty: float
+    hold_needed_h: float
+    astm_resolution_ok: bool | None
+    astm_accuracy_ok: bool | None
+    notes: tuple[str, ...]
+    method: str
+    #: pressure change the target leak causes over this hold [Pa] (ASTM E2930 rules compare the
+    #: gauge's resolution and accuracy with it)
+    target_pressure_change_pa: float = math.nan
+
+
+def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: float, T2: float,
+            mdot: float, u_mdot: float, u_dm: float, m1: float, m2: float, dmdp_end: float,
+            gauge: GaugeSpec | None, target_sccm: float | None, reserve_abs: float | None,
+            ambient: float, temps_given: bool, notes: list[str], method: str) -> HoldResult:
+    rho_std = standard_density(gas)
+    sccm = mdot / rho_std * 60e6
+    u_sccm = u_mdot / rho_std * 60e6
+    if target_sccm is None:
+        # default target: a leak losing 1 % of the contents per day, but not below 1 sccm
+        # (benchwarden defaults; give --target for your own criterion)
+        target_sccm = max(0.01 * m1 / 86400.0 / rho_std * 60e6, 1.0)
+        notes.append(f"target leak rate not given: using 1 % of the contents per day, at least 1 sccm "
+                     f"= {target_sccm:.3g} sccm")
+    U = K_EXPANDED * u_sccm
+    if sccm > U:
+        verdict = "leak"
+    elif sccm + U < target_sccm:
+        verdict = "no-leak-resolved"
+    else:
+        verdict = "inconclusive"
+    # ASTM E2930 rules of thumb against the pressure change of the target leak over the hold
+    res_ok = acc_ok = None
+    target_kg_s = target_sccm / 60e6 * rho_std
+    dp_target = target_kg_s * duration / dmdp_end if dmdp_end > 0 else math.inf
+    if gauge is not None:
+        res = gauge.resolution_pa if gauge.resolution_pa is not None else gauge.mpe_pa
+        res_ok = res * 10.0 <= dp_target
+        acc_ok = gauge.mpe_pa * 4.0 <= dp_target
+    if p1 > 0 and (p1 - p2) / (p1 - ambient if p1 > ambient else p1) > 0.1:
+        notes.append("the drop is more than 10 % of the start pressure: the decay is not linear; "
+                     "the rate is an average over the hold")
+    # hold time needed for U to fall to half the target (t scales as 1/t for a fixed u(Δm))
+    hold_needed = 2.0 * K_EXPANDED * u_dm / target_kg_s / 3600.0 if target_kg_s > 0 else math.inf
+    if gauge is not None:
+        res = gauge.resolution_pa if gauge.resolution_pa is not None else gauge.mpe_pa
+        dpdt_target = target_kg_s / dmdp_end
+        hold_needed = max(hold_needed, 10.0 * res / dpdt_target / 3600.0)
+    h_res = None
+    if reserve_abs is not None and mdot > 0:
+        h_res = max(0.0, (m2 - g.density(gas, T2, reserve_abs) * V) / mdot / 3600.0)
+    h_empty = (m2 - g.density(gas, T2, ambient) * V) / mdot / 3600.0 if mdot > 0 else math.inf
+    return HoldResult(
+        gas.name, V, duration, p1, p2, T1, T2, temps_given, m1, m2, m1 - m2, u_dm, mdot, u_mdot, sccm, u_sccm,
+        pa_m3_s_from_sccm(sccm), pa_m3_s_from_sccm(sccm) * 10.0, mdot * 86400.0,
+        100.0 * mdot * 86400.0 / m1 if m1 > 0 else math.nan, mdot / dmdp_end * 86400.0 if dmdp_end > 0 else math.nan,
+        U, target_sccm, verdict, h_res, max(0.0, h_empty), hold_needed, res_ok, acc_ok, tuple(notes), method,
+        dp_target)
+
+
+def hold_two_readings(
+    gas: g.Gas, volume_m3: float, p_start: float, p_end: float, duration_s: float,
+    T_start: float | None = None, T_end: float | None = None, gauge: GaugeSpec | None = None,
+    u_T: float = U_T_DEFAULT, target_sccm: float | None = None, reserve_abs: float | None = None,
+    ambient_pa: float = ATM_PA,
+) -> HoldResult:
+    """Leak rate from two readings (see module docstring for method and uncertainty).
+
+    Examples
+    --------
+    A 10 L volume at 5 bar(a) losing 0.05 bar over 24 h at constant 20 °C; ideal-gas hand
+    calculation (EN 13184 pressure-change method): Δm = Δp·V·M/(R·T) = 0.57 g.
+
+    >>> r = hold_two_readings(g.parse_gas("nitrogen"), 0.010, 5.0e5, 4.95e5, 86400, 293.15, 293.15)
+    >>> round(r.mass_loss_kg * 1000, 3), round(r.leak_rate_sccm, 3)
+    (0.576, 0.32)
+    """
+    check_range(volume_m3, "held volume", 0.0, MAX_HELD_M3, "m³", "cylinders, lines and a vessel or two")
+    if target_sccm is not None:
+        check_range(target_sccm, "target leak rate", 0.0, 1e9, "sccm")
+    if not math.isfinite(duration_s) or duration_s <= 0:
+        raise InputError(f"hold duration {duration_s!r} s must be greater than zero")
+    for p, what in ((p_start, "start pressure"), (p_end, "end pressure")):
+        if gauge is not None and p - ambient_pa > gauge.span_pa * 1.0001:
+            raise InputError(f"{what} {fmt_pressure(p, ambient_pa)} is above the gauge range "
+                             f"{gauge.span_pa / 1e5:.4g} bar")
+    notes: list[str] = []
+    temps_given = T_start is not None and T_end is not None
+    if not temps_given:
+        T = T_start or T_end or 293.15
+        T_start = T_end = T
+        notes.append(f"no temperatures given: assumed unchanged at {fmt_temperature(T)}; a 1 K change at "
+                     "high pressure moves the gauge as much as a real leak — give --t-start and --t-end")
+    assert T_start is not None and T_end is not None
+    m1, dm1p, dm1T = _dm(gas, volume_m3, T_start, p_start)
+    m2, dm2p, dm2T = _dm(gas, volume_m3, T_end, p_end)
+    u_p = gauge.u_reading_pa if gauge is not None else 0.0
+    if gauge is None:
+        notes.append("no gauge range and class given: pressure uncertainty not included")
+    u_T_eff = u_T if temps_given else max(u_T, U_T_UNMEASURED)
+    u_dm = mass_change_uncertainty(dm1p, dm2p, dm1T, dm2T, u_p, u_T_eff)
+    mdot = (m1 - m2) / duration_s
+    return _common(gas, volume_m3, duration_s, p_start, p_end, T_start, T_end, mdot, u_dm / duration_s, u_dm,
+                   m1, m2, dm2p, gauge, target_sccm, reserve_abs, ambient_pa, temps_given, notes,
+                   "pressure-change method (EN 13184 / ASTM E2930), real gas (CoolProp HEOS), GUM uncertainty")
+
+
+# ----------------------------------------------------------------------------- logged series
+
+
+@dataclass(frozen=True)
+class HoldLog:
+    t_s: tuple[float, ...]
+    p_abs_pa: tuple[float, ...]
+    T_k: tuple[float, ...] | None
+
+
+_TIME_UNITS = {"s": 1.0, "sec": 1.0, "min": 60.0, "h": 3600.0, "hr": 3600.0, "d": 86400.0, "day": 86400.0}
+
+
+def _header_unit(name: str) -> tuple[str, str | None]:
+    n = name.strip()
+    m = re.fullmatch(r"(.*?)\s*[\(\[]\s*([^\)\]]+)\s*[\)\]]\s*", n)
+    if m:
+        return m.group(1).strip().lower(), m.group(2).strip()
+    m = re.fullmatch(r"([A-Za-z]+)_(.+)", n)
+    if m:
+        return m.group(1).lower(), m.group(2)
+    return n.lower(), None
+
+
+def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = ATM_PA) -> HoldLog:
+    """Parse a hold-test log (CSV): a time column (elapsed with a unit, or ISO timestamps), a
+    pressure column (gauge unless the unit is marked absolute; unit in the header, e.g.
+    ``pressure (bar)``/``pressure_psi``, or given as ``pressure_unit``) and an optional
+    temperature column (``temperature (degC)``, ``T_K``). Errors name the row."""
+    from benchwarden.units import parse_temperature, pressure_abs
+
+    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
+    if not lines:
+        raise InputError("the log is empty; it needs a header row and at least two readings")
+    delimiter = ";" if lines[0].count(";") > lines[0].count(",") else ","
+    rows = list(csv.reader(io.StringIO("\n".join(lines)), delimiter=delimiter))
+    rows = [r for r in rows if r and any(c.strip() for c in r)]
+    if len(rows) < 3:
+        raise InputError("the log needs a header row and at least two readings")
+    width = len(rows[0])
+    for n, r in enumerate(rows[1:], start=2):
+        if len(r) != width:
+            raise InputError(f"log row {n} has {len(r)} fields where the header has {width}: write numbers with a "
+                             "decimal point and no thousands separators")
+        if delimiter == ";" and any("," in c for c in r):
+            raise InputError(f"log row {n}: decimal commas are not read; write decimal points (e.g. 150.5)")
+    header = [_header_unit(h) for h in rows[0]]
+    idx_t = idx_p = idx_T = None
+    for i, (name, _) in enumerate(header):
+        if idx_t is None and name in ("t", "time", "elapsed", "timestamp", "datetime", "date"):
+            idx_t = i
+        elif idx_p is None and name in ("p", "pressure", "reading", "gauge"):
+            idx_p = i
+        elif idx_T is None and (name in ("temperature", "temp", "t_c", "t_k") or (name == "t" and idx_t is not None)):
+            idx_T = i
+    if idx_t is None or idx_p is None:
+        raise InputError("log header needs a time column (time/elapsed/timestamp) and a pressure column "
+                         f"(pressure/p); got {', '.join(rows[0])}")
+    t_unit = header[idx_t][1]
+    p_unit = pressure_unit or header[idx_p][1]
+    if not p_unit:
+        raise InputError("the pressure unit is missing: put it in the header, e.g. 'pressure (bar)', or use --pressure-unit")
+    T_unit = header[idx_T][1] if idx_T is not None else None
+    ts: list[float] = []
+    ps: list[float] = []
+    Ts: list[float] = []
+    t0: dt.datetime | None = None
+    for n, r in enumerate(rows[1:], start=2):
+        try:
+            raw_t = r[idx_t].strip()
+            if t_unit and t_unit.lower() in _TIME_UNITS:
+                tv = float(raw_t) * _TIME_UNITS[t_unit.lower()]
+            else:
+                try:
+                    stamp = dt.datetime.fromisoformat(raw_t)
+                except ValueError:
+                    raise InputError("time is neither a number with a unit in the header nor an ISO timestamp") from None
+                if t0 is not None and (stamp.tzinfo is None) != (t0.tzinfo is None):
+                    raise InputError("timestamps mix local times and times with a UTC offset; give all one way")
+                t0 = t0 or stamp
+                tv = (stamp - t0).total_seconds()
+            pv = pressure_abs(f"{r[idx_p].strip()} {p_unit}", ambient_pa)
+            if idx_T is not None and r[idx_T].strip():
+                Tu = T_unit or "degC"
+                Ts.append(parse_temperature(f"{r[idx_T].strip()} {Tu}"))
+            elif idx_T is not None:
+                raise InputError("temperature is empty")
+        except (InputError, ValueError, IndexError) as exc:
+            raise InputError(f"log row {n}: {exc}") from None
+        if not math.isfinite(tv):
+            raise InputError(f"log row {n}: time is not a finite number")
+        if ts and tv <= ts[-1]:
+            raise InputError(f"log row {n}: time {raw_t} is not after the previous row's")
+        ts.append(tv)
+        ps.append(pv)
+    return HoldLog(tuple(ts), tuple(ps), tuple(Ts) if idx_T is not None else None)
+
+
+@dataclass(frozen=True)
+class LogFit:
+    result: HoldResult
+    n: int
+    slope_kg_s: float
+    slope_se_kg_s: float
+    residual_rms_kg: float
+    residual_max_kg: float
+    residual_rms_pa: float
+    curvature_significant: bool
+    t_s: tuple[float, ...]
+    mass_kg: tuple[float, ...]
+    fit_kg: tuple[float, ...]
+
+
+def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec | None = None,
+                  T_default: float = 293.15, u_T: float = U_T_DEFAULT, target_sccm: float | None = None,
+                  reserve_abs: float | None = None, ambient_pa: float = ATM_PA) -> LogFit:
+    """Fit the held mass against time by least squares (numpy ``polyfit`` with its covariance):
+    the slope is the leak rate, its standard error the scatter part of the uncertainty; the
+    gauge's systematic part (MPE over the span of the log, GUM) is added in quadrature.
+
+    Masses come from a Z(p, T) table (:class:`benchwarden.tables.DensityTable`, error < 1e-4),
+    not from one CoolProp call per row. A quadratic term significant at 3 standard errors
+    flags a curved decay (a temperature swing, a step, a leak that changes) only where it
+    matters: its departure from the line exceeds what the gauge resolves (one reading's
+    uncertainty, or the log's smallest pressure step without a gauge), or the curve's end
+    slopes would give another verdict. The uncertainty budget is the one of
+    :func:`hold_two_readings` (first and last reading) over the span, ⊕ the fit's standard error."""
+    import numpy as np
+
+    check_range(volume_m3, "held volume", 0.0, MAX_HELD_M3, "m³", "cylinders, lines and a vessel or two")
+    if target_sccm is not None:
+        check_range(target_sccm, "target leak rate", 0.0, 1e9, "sccm")
+    t = np.asarray(log.t_s)
+    p = np.asarray(log.p_abs_pa)
+    n = len(t)
+    if n < 3:
+        raise InputError("a log fit needs at least three readings")
+    if gauge is not None and float(np.max(p)) - ambient_pa > gauge.span_pa * 1.0001:
+        i = int(np.argmax(p))
+        raise InputError(f"log row {i + 2}: pressure {fmt_pressure(p[i], ambient_pa)} is above the gauge range")
+    T = np.asarray(log.T_k) if log.T_k is not None else np.full(n, T_default)
+    table = DensityTable(gas, float(p.min()) * 0.999, float(p.max()) * 1.001, float(T.min()), float(T.max()) + 1e-6)
+    m = table.density(p, T) * volume_m3
+    tc = t - t.mean()
+    coef, cov = np.polyfit(tc, m, 1, cov="unscaled") if n == 3 else np.polyfit(tc, m, 1, cov=True)
+    slope = -float(coef[0])
+    fit = np.polyval(coef, tc)
+    resid = m - fit
+    dof = max(1, n - 2)
+    s2 = float(resid @ resid) / dof
+    se = math.sqrt(float(cov[0, 0]) * (s2 if n == 3 else 1.0))
+    notes: list[str] = []
+    m1, dm1p, dm1T = _dm(gas, volume_m3, float(T[0]), float(p[0]))
+    m2, dm2p, dm2T = _dm(gas, volume_m3, float(T[-1]), float(p[-1]))
+    span = float(t[-1] - t[0])
+    # the same GUM budget as two readings (first and last), spread over the span of the log,
+    # plus the scatter about the fitted line (its standard error) in quadrature
+    u_p = gauge.u_reading_pa if gauge is not None else 0.0
+    if gauge is None:
+        notes.append("no gauge range and class given: pressure uncertainty not included")
+    if log.T_k is None:
+        notes.append(f"no temperature column: assumed constant {fmt_temperature(T_default)}")
+    u_T_eff = u_T if log.T_k is not None else max(u_T, U_T_UNMEASURED)
+    u_dm = mass_change_uncertainty(dm1p, dm2p, dm1T, dm2T, u_p, u_T_eff)
+    u_rate = math.hypot(se, u_dm / span)
+    curved = False
+    if n >= 5:
+        c2, cov2 = np.polyfit(tc, m, 2, cov=True)
+        significant = cov2[0, 0] > 0 and abs(c2[0]) > 3.0 * math.sqrt(cov2[0, 0])
+        # how far the curve departs from the line over the log, as mass [kg]
+        departure = float(np.max(np.abs(np.polyval(c2, tc) - fit)))
+        # what the gauge can resolve, as mass: one reading's uncertainty, or without a gauge
+        # the smallest step between the log's own distinct pressures
+        steps = np.diff(np.unique(p))
+        resolvable_pa = u_p if gauge is not None else (float(steps.min()) if steps.size else 0.0)
+        resolvable = dm2p * resolvable_pa
+        # the end slopes of the curve against the fitted rate: does it change the verdict?
+        slope_ends = [-(2.0 * c2[0] * x + c2[1]) for x in (tc[0], tc[-1])]
+        U = K_EXPANDED * u_rate
+        verdict_changes = any((s > U) != (slope > U) for s in slope_ends)
+        curved = bool(significant and (departure > resolvable or verdict_changes))
+    rms = float(np.sqrt(np.mean(resid**2)))
+    res = _common(gas, volume_m3, span, float(p[0]), float(p[-1]), float(T[0]), float(T[-1]), slope, u_rate,
+                  u_rate * span, float(m[0]), float(m[-1]), dm2p, gauge, target_sccm, reserve_abs, ambient_pa,
+                  log.T_k is not None, notes,
+                  "least-squares fit of real-gas mass vs time (EN 13184 / ASTM E2930 pressure decay), GUM uncertainty")
+    return LogFit(res, n, slope, se, rms, float(np.max(np.abs(resid))), rms / dm2p if dm2p > 0 else math.nan, curved,
+                  tuple(float(x) for x in t), tuple(float(x) for x in m), tuple(float(x) for x in fit))
+
+
+GUIDANCE: tuple[str, ...] = (
+    "High-pressure side: close the cylinder valve with the regulator pressurised and its outlet closed; "
+    "a falling inlet gauge means the valve spindle, the regulator inlet connection or the regulator seat.",
+    "Regulator seat: cylinder valve open, outlet valve closed; a rising outlet gauge (creep) means the seat leaks.",
+    "Low-pressure side: pressurise the line, close the regulator and the outlet valve; a falling line gauge "
+    "means fittings, hoses or the consumer.",
+    "Find the leak with leak-detection solution on every fitting (common practice); bubbles show where.",
+    "Never tighten a fitting under pressure: close the cylinder, vent the line, then work on it.",
+    "A leaking cylinder valve is the supplier's to fix: close it, label the cylinder and move it outdoors.",
+)

@@ -1,0 +1,524 @@
+"""The session journal: an embedded SQLite store of sessions, readings, notes and hold tests.
+
+Every write is its own committed transaction (WAL mode, ``synchronous=FULL``), so a reading
+that was acknowledged survives the app or the laptop dying. The schema carries a version
+(``PRAGMA user_version``) and is migrated forward on open. A session without a stop time was
+left running (a crash or a closed terminal) and is offered for resumption.
+"""
+
+from __future__ import annotations
+
+import os
+import sqlite3
+import threading
+from collections.abc import Callable
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from benchwarden.errors import JournalError
+
+SCHEMA_VERSION = 4
+#: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
+APPLICATION_ID = 0x4753424A
+
+_MIGRATIONS: dict[int, str] = {
+    1: """
+    CREATE TABLE sessions (
+        id INTEGER PRIMARY KEY,
+        bench TEXT NOT NULL,
+        profile_path TEXT,
+        started_at TEXT NOT NULL,
+        stopped_at TEXT
+    );
+    CREATE TABLE readings (
+        id INTEGER PRIMARY KEY,
+        session_id INTEGER NOT NULL REFERENCES sessions(id),
+        supply_id TEXT NOT NULL,
+        at TEXT NOT NULL,
+        pressure_abs_pa REAL NOT NULL,
+        pressure_text TEXT NOT NULL,
+        temperature_k REAL NOT NULL,
+        entered_at TEXT NOT NULL
+    );
+    CREATE INDEX readings_session ON readings(session_id, at);
+    CREATE TABLE notes (
+        id INTEGER PRIMARY KEY,
+        session_id INTEGER NOT NULL REFERENCES sessions(id),
+        at TEXT NOT NULL,
+        text TEXT NOT NULL
+    );
+    """,
+    2: """
+    CREATE TABLE hold_tests (
+        id INTEGER PRIMARY KEY,
+        at TEXT NOT NULL,
+        bench TEXT,
+        supply_id TEXT,
+        gas TEXT NOT NULL,
+        volume_m3 REAL NOT NULL,
+        duration_s REAL NOT NULL,
+        verdict TEXT NOT NULL,
+        leak_rate_sccm REAL NOT NULL,
+        leak_rate_uncertainty_sccm REAL NOT NULL,
+        details TEXT
+    );
+    """,
+    3: """
+    CREATE TABLE readings_v3 (
+        id INTEGER PRIMARY KEY,
+        session_id INTEGER REFERENCES sessions(id),
+        bench TEXT,
+        supply_id TEXT NOT NULL,
+        at TEXT NOT NULL,
+        pressure_abs_pa REAL,
+        pressure_text TEXT NOT NULL,
+        temperature_k REAL NOT NULL,
+        entered_at TEXT NOT NULL,
+        weight_kg REAL,
+        ambient_pa REAL,
+        struck_at TEXT,
+        struck_reason TEXT
+    );
+    INSERT INTO readings_v3(id, session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,
+                            entered_at)
+        SELECT r.id, r.session_id, s.bench, r.supply_id, r.at, r.pressure_abs_pa, r.pressure_text, r.temperature_k,
+               r.entered_at FROM readings r LEFT JOIN sessions s ON s.id = r.session_id;
+    DROP INDEX readings_session;
+    DROP TABLE readings;
+    ALTER TABLE readings_v3 RENAME TO readings;
+    CREATE INDEX readings_session ON readings(session_id, at);
+    CREATE INDEX readings_supply ON readings(bench, supply_id, at);
+    CREATE TABLE changes (
+        id INTEGER PRIMARY KEY,
+        bench TEXT NOT NULL,
+        supply_id TEXT NOT NULL,
+        at TEXT NOT NULL,
+        pressure_abs_pa REAL,
+        pressure_text TEXT,
+        weight_kg REAL,
+        temperature_k REAL,
+        label TEXT,
+        retest_due TEXT,
+        entered_at TEXT NOT NULL
+    );
+    CREATE INDEX changes_supply ON changes(bench, supply_id, at);
+    ALTER TABLE sessions ADD COLUMN operator TEXT;
+    ALTER TABLE sessions ADD COLUMN shots INTEGER;
+    ALTER TABLE hold_tests ADD COLUMN kind TEXT;
+    """,
+    4: """
+    CREATE TABLE streams (
+        id INTEGER PRIMARY KEY,
+        bench TEXT NOT NULL,
+        supply_id TEXT NOT NULL,
+        quantity TEXT NOT NULL,
+        tolerance REAL NOT NULL,
+        UNIQUE (bench, supply_id, quantity)
+    );
+    CREATE TABLE samples (
+        stream INTEGER NOT NULL,
+        t REAL NOT NULL,
+        value REAL,
+        PRIMARY KEY (stream, t)
+    ) WITHOUT ROWID;
+    CREATE TABLE sample_blocks (
+        stream INTEGER NOT NULL,
+        t0 REAL NOT NULL,
+        t1 REAL NOT NULL,
+        n INTEGER NOT NULL,
+        bad INTEGER NOT NULL,
+        vmin REAL,
+        vmax REAL,
+        tolerance REAL NOT NULL,
+        points BLOB NOT NULL,
+        PRIMARY KEY (stream, t0)
+    ) WITHOUT ROWID;
+    CREATE TABLE alarms (
+        id INTEGER PRIMARY KEY,
+        bench TEXT NOT NULL,
+        supply_id TEXT,
+        code TEXT NOT NULL,
+        at TEXT NOT NULL,
+        text TEXT NOT NULL,
+        details TEXT
+    );
+    CREATE INDEX alarms_bench ON alarms(bench, at);
+    """,
+}
+
+
+def default_path(explicit: str | os.PathLike[str] | None = None) -> Path:
+    """Journal location: ``explicit``, else ``$BENCHWARDEN_JOURNAL``, else the user data directory
+    (``~`` expanded)."""
+    if explicit:
+        return Path(explicit).expanduser()
+    env = os.environ.get("BENCHWARDEN_JOURNAL")
+    if env:
+        return Path(env).expanduser()
+    from platformdirs import user_data_dir
+
+    return Path(user_data_dir("benchwarden", appauthor=False)) / "journal.sqlite3"
+
+
+@dataclass(frozen=True)
+class SessionRow:
+    id: int
+    bench: str
+    profile_path: str | None
+    started_at: str
+    stopped_at: str | None
+    readings: int
+    alarms: int = 0
+
+
+@dataclass(frozen=True)
+class ReadingRow:
+    id: int
+    session_id: int | None
+    supply_id: str
+    at: str
+    pressure_abs_pa: float | None
+    pressure_text: str
+    temperature_k: float
+    bench: str | None = None
+    weight_kg: float | None = None
+    ambient_pa: float | None = None
+    struck_at: str | None = None
+    struck_reason: str | None = None
+
+    @property
+    def struck(self) -> bool:
+        return self.struck_at is not None
+
+
+@dataclass(frozen=True)
+class ChangeRow:
+    """A cylinder change: a new fill on a supply."""
+
+    id: int
+    bench: str
+    supply_id: str
+    at: str
+    pressure_abs_pa: float | None
+    pressure_text: str | None
+    weight_kg: float | None
+    temperature_k: float | None
+    label: str | None
+    retest_due: str | None
+
+
+@dataclass(frozen=True)
+class HoldRow:
+    id: int
+    at: str
+    bench: str | None
+    supply_id: str | None
+    gas: str
+    verdict: str
+    leak_rate_sccm: float
+    leak_rate_uncertainty_sccm: float
+    kind: str | None = None
+    details: str | None = None
+
+
+@dataclass(frozen=True)
+class AlarmRow:
+    id: int
+    bench: str
+    supply_id: str | None
+    code: str
+    at: str
+    text: str
+    details: str | None
+
+
+class Journal:
+    """One open journal file."""
+
+    def __init__(self, path: str | os.PathLike[str], check: bool = True, readonly: bool = False) -> None:
+        self.path = Path(path).expanduser()
+        #: one connection shared by the app's threads (the screen, the plan, the live gauges): a
+        #: transaction and a read never interleave with another thread's
+        self.lock = threading.RLock()
+        try:
+            if self.path.exists() and not self.path.is_file():
+                raise JournalError(f"journal {self.path} is not a regular file")
+            if readonly:
+                # reading only (sessions, status, plan): works in a read-only folder, changes nothing
+                self.db = sqlite3.connect(f"{self.path.resolve().as_uri()}?mode=ro", uri=True, timeout=10.0,
+                                          isolation_level=None, check_same_thread=False)
+                self._identify()
+                if check:
+                    self._check_integrity()
+                if self.db.execute("PRAGMA user_version").fetchone()[0] == SCHEMA_VERSION:
+                    return
+                self.db.close()  # an older schema: open it for writing so that it is migrated
+            self.path.parent.mkdir(parents=True, exist_ok=True)
+            self.db = sqlite3.connect(self.path, timeout=10.0, isolation_level=None, check_same_thread=False)
+            self._identify()  # before anything is changed: a foreign or newer file stays untouched
+            self.db.execute("PRAGMA journal_mode=WAL")
+            self.db.execute("PRAGMA synchronous=FULL")
+            self.db.execute("PRAGMA foreign_keys=ON")
+            if check:
+                self._check_integrity()
+            self._migrate()
+        except JournalError:
+            if hasattr(self, "db"):
+                self.db.close()
+            raise
+        except (sqlite3.Error, OSError) as exc:
+            if hasattr(self, "db"):
+                self.db.close()
+            raise JournalError(f"cannot open the journal {self.path}: {exc}") from None
+
+    def _identify(self) -> None:
+        """Refuse a SQLite file that is not a benchwarden journal, or one from a newer benchwarden,
+        before touching it."""
+        try:
+            app_id = self.db.execute("PRAGMA application_id").fetchone()[0]
+            version = self.db.execute("PRAGMA user_version").fetchone()[0]
+            tables = {r[0] for r in self.db.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
+        except sqlite3.DatabaseError as exc:
+            raise JournalError(f"{self.path} is not a benchwarden journal ({exc}); point --journal at another "
+                               "file") from None
+        ours = app_id == APPLICATION_ID or (app_id == 0 and (not tables or "sessions" in tables and version >= 1))
+        if not ours:
+            raise JournalError(f"{self.path} is not a benchwarden journal (another program's SQLite file); it was "
+                               "left untouched — point --journal at another file")
+        if version > SCHEMA_VERSION:
+            raise JournalError(f"journal {self.path} has schema {version}, newer than this benchwarden "
+                               f"({SCHEMA_VERSION}): update benchwarden; the file was left untouched")
+
+    def _check_integrity(self) -> None:
+        """A damaged file is refused (nothing is written to it), with how to recover."""
+        try:
+            result = self.db.execute("PRAGMA quick_check").fetchone()[0]
+        except sqlite3.DatabaseError as exc:
+            result = str(exc)
+        if result != "ok":
+            raise JournalError(
+                f"journal {self.path} is damaged ({str(result)[:80]}); nothing was written. Keep a copy, then "
+                f"recover it with: sqlite3 '{self.path}' '.recover' | sqlite3 recovered.sqlite3")
+
+    def _migrate(self) -> None:
+        version = self.db.execute("PRAGMA user_version").fetchone()[0]
+        if version > SCHEMA_VERSION:
+            raise JournalError(f"journal {self.path} has schema {version}, newer than this benchwarden ({SCHEMA_VERSION})")
+        if 0 < version < SCHEMA_VERSION:
+            # a copy of the journal as it was, before the migration changes it
+            backup = self.path.with_name(f"{self.path.name}.v{version}.bak")
+            if not backup.exists():
+                dst = sqlite3.connect(backup)
+                try:
+                    self.db.backup(dst)
+                finally:
+                    dst.close()
+        if version == 0 or self.db.execute("PRAGMA application_id").fetchone()[0] != APPLICATION_ID:
+            self.db.execute(f"PRAGMA application_id = {APPLICATION_ID}")
+        for v in range(version + 1, SCHEMA_VERSION + 1):
+            self.db.execute("BEGIN IMMEDIATE")
+            try:
+                for stmt in filter(str.strip, _MIGRATIONS[v].split(";")):
+                    self.db.execute(stmt)
+                self.db.execute(f"PRAGMA user_version = {v}")
+                self.db.execute("COMMIT")
+            except sqlite3.Error:
+                self.db.execute("ROLLBACK")
+                raise
+
+    def close(self) -> None:
+        self.db.close()
+
+    def __enter__(self) -> Journal:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()
+
+    # -- writes: each one committed on its own
+
+    def _write(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
+        with self.lock:
+            return self._write_locked(fn)
+
+    def _write_locked(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
+        try:
+            self.db.execute("BEGIN IMMEDIATE")
+            try:
+                out = fn(self.db)
+                self.db.execute("COMMIT")
+                return out
+            except BaseException:
+                try:
+                    self.db.execute("ROLLBACK")
+                except sqlite3.Error:
+                    pass  # SQLite already rolled back (a full disk does that)
+                raise
+        except sqlite3.Error as exc:
+            why = "the disk is full" if "full" in str(exc).lower() else str(exc)
+            raise JournalError(f"journal {self.path}: write failed ({why}); nothing was recorded") from None
+
+    def write(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
+        """Run ``fn(db)`` as one committed transaction (for the sample store)."""
+        return self._write(fn)
+
+    def read(self, sql: str, args: tuple[Any, ...] = ()) -> list[tuple[Any, ...]]:
+        """Rows of a query (for the sample store); a failure is a :class:`JournalError`."""
+        return self._read(sql, args)
+
+    def start_session(self, bench: str, profile_path: str | None, at: str) -> int:
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO sessions(bench, profile_path, started_at) VALUES (?, ?, ?)", (bench, profile_path, at)).lastrowid))
+
+    def stop_session(self, session_id: int, at: str) -> None:
+        self._write(lambda db: db.execute("UPDATE sessions SET stopped_at = ? WHERE id = ?", (at, session_id)))
+
+    def add_reading(self, session_id: int | None, supply_id: str, at: str, pressure_abs_pa: float | None,
+                    pressure_text: str, temperature_k: float, entered_at: str, bench: str | None = None,
+                    weight_kg: float | None = None, ambient_pa: float | None = None) -> int:
+        """Record a reading: in a session, or an idle reading (``session_id`` None) filed under
+        ``bench``; a pressure (absolute, with the ambient it was typed against) or a weight."""
+        if bench is None and session_id is not None:
+            row = self.db.execute("SELECT bench FROM sessions WHERE id = ?", (session_id,)).fetchone()
+            bench = row[0] if row else None
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO readings(session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,"
+            " entered_at, weight_kg, ambient_pa) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, entered_at, weight_kg,
+             ambient_pa)).lastrowid))
+
+    def strike_reading(self, reading_id: int, at: str, reason: str) -> None:
+        """Strike a reading out (kept, marked, with the reason): nothing is ever deleted."""
+        if not reason.strip():
+            raise JournalError("give a reason to strike a reading out")
+        n = self._write(lambda db: db.execute(
+            "UPDATE readings SET struck_at = ?, struck_reason = ? WHERE id = ? AND struck_at IS NULL",
+            (at, reason, reading_id)).rowcount)
+        if not n:
+            raise JournalError(f"no reading {reading_id} to strike out (unknown or already struck)")
+
+    def add_change(self, bench: str, supply_id: str, at: str, entered_at: str, pressure_abs_pa: float | None = None,
+                   pressure_text: str | None = None, weight_kg: float | None = None,
+                   temperature_k: float | None = None, label: str | None = None, retest_due: str | None = None) -> int:
+        """Record a cylinder change (a new fill) on a supply."""
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO changes(bench, supply_id, at, pressure_abs_pa, pressure_text, weight_kg, temperature_k,"
+            " label, retest_due, entered_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (bench, supply_id, at, pressure_abs_pa, pressure_text, weight_kg, temperature_k, label, retest_due,
+             entered_at)).lastrowid))
+
+    def set_session_record(self, session_id: int, operator: str | None = None, shots: int | None = None) -> None:
+        self._write(lambda db: db.execute(
+            "UPDATE sessions SET operator = COALESCE(?, operator), shots = COALESCE(?, shots) WHERE id = ?",
+            (operator, shots, session_id)))
+
+    def add_note(self, session_id: int, at: str, text: str) -> int:
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO notes(session_id, at, text) VALUES (?, ?, ?)", (session_id, at, text)).lastrowid))
+
+    def add_hold_test(self, at: str, bench: str | None, supply_id: str | None, gas: str, volume_m3: float,
+                      duration_s: float, verdict: str, rate_sccm: float, u_sccm: float, details: str = "",
+                      kind: str | None = None) -> int:
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO hold_tests(at, bench, supply_id, gas, volume_m3, duration_s, verdict, leak_rate_sccm,"
+            " leak_rate_uncertainty_sccm, details, kind) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (at, bench, supply_id, gas, volume_m3, duration_s, verdict, rate_sccm, u_sccm, details, kind)).lastrowid))
+
+    def add_alarm(self, bench: str, supply_id: str | None, code: str, at: str, text: str, details: str = "") -> int:
+        """Record an alarm (a condition that needed a person) as a line in the journal."""
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO alarms(bench, supply_id, code, at, text, details) VALUES (?, ?, ?, ?, ?, ?)",
+            (bench, supply_id, code, at, text, details)).lastrowid))
+
+    # -- reads
+
+    def _read(self, sql: str, args: tuple[Any, ...] = ()) -> list[tuple[Any, ...]]:
+        try:
+            with self.lock:
+                return self.db.execute(sql, args).fetchall()
+        except sqlite3.Error as exc:
+            raise JournalError(f"journal {self.path}: read failed ({exc})") from None
+
+    def sessions(self) -> list[SessionRow]:
+        rows = self._read(
+            "SELECT s.id, s.bench, s.profile_path, s.started_at, s.stopped_at, COUNT(r.id),"
+            " (SELECT COUNT(*) FROM alarms a WHERE a.bench = s.bench AND a.at >= s.started_at"
+            "  AND (s.stopped_at IS NULL OR a.at <= s.stopped_at)) FROM sessions s"
+            " LEFT JOIN readings r ON r.session_id = s.id GROUP BY s.id ORDER BY s.id")
+        return [SessionRow(*r) for r in rows]
+
+    def session(self, session_id: int) -> SessionRow | None:
+        return next((s for s in self.sessions() if s.id == session_id), None)
+
+    def unfinished_session(self, bench: str | None = None) -> SessionRow | None:
+        """The latest session left running (no stop time), for resumption."""
+        rows = [s for s in self.sessions() if s.stopped_at is None and (bench is None or s.bench == bench)]
+        return rows[-1] if rows else None
+
+    _READING_COLUMNS = ("id, session_id, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, bench,"
+                        " weight_kg, ambient_pa, struck_at, struck_reason")
+
+    def supply_readings(self, bench: str, supply_id: str) -> list[ReadingRow]:
+        """Every reading of a supply of a bench, in and out of sessions, struck ones included."""
+        return [ReadingRow(*r) for r in self._read(
+            f"SELECT {self._READING_COLUMNS} FROM readings WHERE bench = ? AND supply_id = ? ORDER BY at, id",
+            (bench, supply_id))]
+
+    def changes(self, bench: str, supply_id: str | None = None) -> list[ChangeRow]:
+        sql = ("SELECT id, bench, supply_id, at, pressure_abs_pa, pressure_text, weight_kg, temperature_k, label,"
+               " retest_due FROM changes WHERE bench = ?")
+        args: tuple[Any, ...] = (bench,)
+        if supply_id is not None:
+            sql += " AND supply_id = ?"
+            args += (supply_id,)
+        return [ChangeRow(*r) for r in self._read(sql + " ORDER BY at, id", args)]
+
+    def bench_sessions(self, bench: str) -> list[SessionRow]:
+        return [s for s in self.sessions() if s.bench == bench]
+
+    def hold_tests(self, bench: str | None = None) -> list[HoldRow]:
+        sql = ("SELECT id, at, bench, supply_id, gas, verdict, leak_rate_sccm, leak_rate_uncertainty_sccm, kind,"
+               " details FROM hold_tests")
+        args: tuple[Any, ...] = ()
+        if bench is not None:
+            sql += " WHERE bench = ?"
+            args = (bench,)
+        return [HoldRow(*r) for r in self._read(sql + " ORDER BY at, id", args)]
+
+    def readings(self, session_id: int, supply_id: str | None = None) -> list[ReadingRow]:
+        sql = f"SELECT {self._READING_COLUMNS} FROM readings WHERE session_id = ?"
+        args: tuple[Any, ...] = (session_id,)
+        if supply_id is not None:
+            sql += " AND supply_id = ?"
+            args += (supply_id,)
+        return [ReadingRow(*r) for r in self._read(sql + " ORDER BY at, id", args)]
+
+    def notes(self, session_id: int) -> list[tuple[str, str]]:
+        return [(a, t) for a, t in self._read("SELECT at, text FROM notes WHERE session_id = ? ORDER BY id", (session_id,))]
+
+    def last_hold_test(self, bench: str | None = None) -> HoldRow | None:
+        sql = ("SELECT id, at, bench, supply_id, gas, verdict, leak_rate_sccm, leak_rate_uncertainty_sccm, kind,"
+               " details FROM hold_tests")
+        args: tuple[Any, ...] = ()
+        if bench is not None:
+            sql += " WHERE bench = ?"
+            args = (bench,)
+        rows = self._read(sql + " ORDER BY at DESC, id DESC LIMIT 1", args)
+        return HoldRow(*rows[0]) if rows else None
+
+    def alarms(self, bench: str, since: str | None = None) -> list[AlarmRow]:
+        sql = "SELECT id, bench, supply_id, code, at, text, details FROM alarms WHERE bench = ?"
+        args: tuple[Any, ...] = (bench,)
+        if since is not None:
+            sql += " AND at >= ?"
+            args += (since,)
+        return [AlarmRow(*r) for r in self._read(sql + " ORDER BY at, id", args)]
+
+    def integrity_ok(self) -> bool:
+        return self._read("PRAGMA integrity_check")[0][0] == "ok"
+
+
+
+def open_journal(path: str | os.PathLike[str] | None = None) -> Journal:
+    return Journal(default_path(path))

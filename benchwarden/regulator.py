@@ -1,0 +1,189 @@
+"""Regulators: outlet temperature by isenthalpic throttling, outlet drift, rating checks.
+
+Throttling across a regulator is taken as adiabatic and isenthalpic (h_out = h_in), the
+steady-flow energy balance with negligible kinetic energy; the outlet temperature follows from
+the real-gas enthalpy (CoolProp HEOS). Nitrogen, argon and CO2 cool (positive Joule–Thomson
+coefficient near room temperature); helium, hydrogen and neon warm (they are above their
+inversion temperature). A real regulator body exchanges heat with the room, so the figure is
+the coldest (or warmest) the gas can come out in steady flow.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from benchwarden import gas as g
+from benchwarden.errors import InputError, PropertyError
+from benchwarden.units import T0_K, fmt_pressure, fmt_temperature
+
+
+@dataclass(frozen=True)
+class Throttle:
+    gas_name: str
+    inlet_abs_pa: float
+    outlet_abs_pa: float
+    inlet_temperature_k: float
+    outlet_temperature_k: float
+    temperature_change_k: float
+    solid_forms: bool
+    liquid_forms: bool
+    vapour_fraction: float | None
+    notes: tuple[str, ...]
+    method: str
+
+
+#: Density of solid CO2 near its normal sublimation point, [kg/m³] (about 1.56 g/cm³,
+#: CRC Handbook of Chemistry and Physics, from memory); only its reciprocal enters, as a small
+#: correction to the vapour volume in the Clausius–Clapeyron equation.
+DRY_ICE_DENSITY = 1562.0
+
+
+def sublimation_enthalpy(gas: g.Gas, T: float) -> float:
+    """Enthalpy of sublimation [J/kg] of CO2 at T [K] below its triple point, by the
+    Clausius–Clapeyron equation Δh = T·(v_vap − v_solid)·dp/dT on the sublimation line
+    (Span & Wagner 1996, eq. 3.12), with the vapour volume from the equation of state.
+
+    >>> round(sublimation_enthalpy(g.parse_gas("co2"), 194.69) / 1e3)   # handbooks: ≈ 571 kJ/kg
+    574
+    """
+    p = g.sublimation_pressure(gas, T)
+    dT = 1e-3
+    dpdT = (g.sublimation_pressure(gas, T + dT) - g.sublimation_pressure(gas, T - dT)) / (2 * dT)
+    CP = g.coolprop()
+    AS = g.state(gas)
+    AS.specify_phase(CP.iphase_gas)
+    try:
+        AS.update(CP.PT_INPUTS, p, T)
+        v_vap = 1.0 / float(AS.rhomass())
+    finally:
+        AS.unspecify_phase()
+    return T * (v_vap - 1.0 / DRY_ICE_DENSITY) * dpdT
+
+
+def _vapour_outlet(gas: g.Gas, h: float, p_out: float, T_lo: float, T_hi: float) -> float:
+    """Temperature of the vapour with enthalpy h at p_out, between T_lo and T_hi."""
+    return g.solve_increasing(lambda T: g.vapour_enthalpy(gas, T, p_out) - h, T_lo, T_hi)
+
+
+def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapour: bool = False) -> Throttle:
+    """Outlet state of an isenthalpic expansion from (p_in, T_in) to p_out.
+
+    Pure gases use CoolProp's (h, p) flash, which finds liquid forming (two-phase outlet).
+    Below the triple-point pressure (CO2: 5.18 bar(a)) the coldest the vapour can be is the
+    sublimation temperature at the outlet pressure (Span & Wagner 1996 sublimation line): when
+    the inlet enthalpy is below that of the vapour there, the outlet sits on the sublimation
+    line and solid (dry ice) forms, its mass fraction from the enthalpy balance with the
+    Clausius–Clapeyron sublimation enthalpy. Otherwise the outlet is vapour, evaluated on the
+    vapour branch of the equation of state also below the triple-point temperature.
+    Mixtures use a phase-equilibrium (h, p) flash (:func:`benchwarden.gas.flash_ph`) that says
+    when a component condenses. Freezing is a result, not an error.
+
+    Examples
+    --------
+    Nitrogen from 200 bar(a), 20 °C to 5 bar(a) cools by about 30 K (CoolProp HEOS):
+
+    >>> t = throttle(g.parse_gas("nitrogen"), 200e5, 5e5, 293.15)
+    >>> round(t.temperature_change_k, 1)
+    -31.5
+
+    CO2 vapour drawn off the liquid at 20 °C and expanded to 1.51 bar(a) leaves on the
+    sublimation line at about −73.5 °C, with dry ice forming:
+
+    >>> t = throttle(g.parse_gas("co2"), 58.01e5, 1.5133e5, 293.15)
+    >>> round(t.outlet_temperature_k - 273.15, 1), t.solid_forms
+    (-73.5, True)
+    """
+    if p_out >= p_in:
+        raise InputError(
+            f"outlet {fmt_pressure(p_out, kind='absolute')} is not below inlet {fmt_pressure(p_in, kind='absolute')}: a regulator only reduces pressure"
+        )
+    g.check_state(gas, T_in, p_in)
+    notes: list[str] = []
+    if not saturated_vapour and g.is_liquefied(gas, T_in, p_in):
+        saturated_vapour = True
+        notes.append(f"{gas.name} is liquefied at the inlet: taken as vapour drawn off the liquid "
+                     "(a dip-tube cylinder delivering liquid forms far more solid)")
+    h = g.saturated_vapour_enthalpy(gas, T_in) if saturated_vapour else g.enthalpy(gas, T_in, p_in)
+    if gas.is_mixture:
+        fl = g.flash_ph(gas, h, p_out, T_in)
+        liquid = fl.phase.kind in ("two-phase", "liquid")
+        q = fl.phase.vapour_fraction if liquid else None
+        if liquid:
+            notes.append(f"a component condenses at the outlet (vapour fraction {q if q is not None else 0:.2f} "
+                         "by moles): liquid in the regulator and the line, and the delivered gas is leaner "
+                         "in the heavy component")
+        if fl.T < T0_K:
+            notes.append("outlet below 0 °C: moisture freezes on the body; ice can form outside")
+        return Throttle(gas.name, p_in, p_out, T_in, fl.T, fl.T - T_in, False, liquid, q, tuple(notes),
+                        "isenthalpic, real gas (CoolProp HEOS, phase-equilibrium (h, p) flash)")
+    Tt, pt = g.triple_point(gas)
+    if p_out < pt and g.has_sublimation_line(gas):
+        T_sub = g.sublimation_temperature(gas, p_out)
+        h_vap_sub = g.vapour_enthalpy(gas, T_sub, p_out)
+        if h <= h_vap_sub:
+            solid = min(1.0, (h_vap_sub - h) / sublimation_enthalpy(gas, T_sub))
+            notes.append(
+                f"the outlet sits on the sublimation line at {fmt_temperature(T_sub)} "
+                f"({fmt_pressure(p_out, kind='absolute')}): solid {gas.name} (dry ice) forms, about "
+                f"{100 * solid:.0f} % of the flow by mass, and can block the regulator"
+            )
+            return Throttle(gas.name, p_in, p_out, T_in, T_sub, T_sub - T_in, True, False, 1.0 - solid,
+                            tuple(notes), "isenthalpic, real gas (CoolProp HEOS); Span & Wagner 1996 "
+                            "sublimation line below the triple point")
+        T_out = _vapour_outlet(gas, h, p_out, T_sub, max(T_in, T_sub + 1.0) + 50.0)
+        if T_out < T0_K:
+            notes.append(f"outlet {fmt_temperature(T_out)}: moisture freezes on the body; ice can form outside")
+        return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, False, False, None, tuple(notes),
+                        "isenthalpic, real gas (CoolProp HEOS, vapour branch)")
+    try:
+        fl = g.flash_ph(gas, h, p_out, T_in)
+    except PropertyError:
+        raise PropertyError(f"no outlet state for {gas.name} throttled to {fmt_pressure(p_out, kind='absolute')}") from None
+    T_out = fl.T
+    liquid = fl.phase.kind in ("two-phase", "liquid")
+    vapour_fraction = fl.phase.vapour_fraction if liquid else None
+    solid = False
+    if liquid:
+        notes.append(f"liquid forms at the outlet (vapour fraction {vapour_fraction or 0.0:.2f}) "
+                     f"at {fmt_temperature(T_out)}")
+        if p_out <= pt * 1.02:
+            solid = True
+            notes.append(f"outlet at the triple point pressure of {gas.name}: solid can form")
+    if T_out < T0_K and not solid:
+        notes.append(f"outlet {fmt_temperature(T_out)}: moisture freezes on the body; ice can form outside")
+    return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, solid, liquid, vapour_fraction,
+                    tuple(notes), "isenthalpic, real gas (CoolProp HEOS)")
+
+
+def joule_thomson_coefficient(gas: g.Gas, T: float, p: float, dp: float = 1e3) -> float:
+    """Joule–Thomson coefficient μ_JT = (∂T/∂p)_h [K/Pa], by a small isenthalpic step."""
+    h = g.enthalpy(gas, T, p)
+    T1 = g.flash_ph(gas, h, p - dp, T).T
+    T2 = g.flash_ph(gas, h, p + dp, T).T
+    return (T2 - T1) / (2 * dp)
+
+
+def outlet_drift(set_point_abs: float, inlet_at_setting_abs: float, inlet_abs: float,
+                 effects: tuple[float, ...]) -> float:
+    """Regulator outlet [Pa abs] at another inlet pressure, by the supply-pressure effect.
+
+    The supply-pressure effect (SPE) of a stage is the outlet rise per unit fall of its inlet
+    (manufacturers quote it as e.g. "0.02 bar per bar" or a percentage). For two stages the
+    effect at the outlet is the product of the stages' effects (the first stage's drift is the
+    second stage's inlet change):
+
+        p_out = p_set + Π(SPE_i)·(p_in,set − p_in)
+
+    >>> round(outlet_drift(5e5, 150e5, 20e5, (0.01,)) / 1e5, 2)
+    6.3
+    >>> round(outlet_drift(5e5, 150e5, 20e5, (0.01, 0.02)) / 1e5, 3)
+    5.026
+    """
+    if not effects:
+        return set_point_abs
+    for e in effects:
+        if not math.isfinite(e) or e < 0 or e > 1:
+            raise InputError(f"supply-pressure effect {e!r} must be between 0 and 1 (outlet change per inlet change)")
+    total = math.prod(effects)
+    return set_point_abs + total * (inlet_at_setting_abs - inlet_abs)

@@ -1,0 +1,114 @@
+"""Writing output files safely, and text safe for a terminal or a spreadsheet.
+
+* :func:`write_output` — atomic (temporary file in the same folder, flush, fsync, rename), never
+  over an existing file without ``force``, never over the journal or the profile in use; every
+  failure is one line naming the path.
+* :func:`clean` — control characters and escape sequences out of text bound for a terminal.
+* :func:`csv_cell` — a cell a spreadsheet will not run as a formula.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+import tempfile
+from collections.abc import Callable, Iterable
+from pathlib import Path
+
+from benchwarden.errors import InputError
+from benchwarden.journal import Journal
+
+__all__ = ["write_output", "clean", "csv_cell", "session_csv"]
+
+_CONTROL = re.compile(r"\x1b\[[0-?]*[ -/]*[@-~]|\x1b\][^\x07\x1b]*(?:\x07|\x1b\\)?|\x1b.|[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+
+
+def clean(text: str) -> str:
+    """Text without escape sequences or control characters (newlines and tabs kept), so a
+    bench name or a note cannot retitle, clear or recolour the terminal.
+
+    >>> clean("bench\\x1b]0;owned\\x07 2\\x1b[2J")
+    'bench 2'
+    """
+    return _CONTROL.sub("", text)
+
+
+def csv_cell(value: object) -> object:
+    """A CSV cell that a spreadsheet shows as text: a leading ``=``, ``+``, ``-`` or ``@`` in text
+    is quoted with an apostrophe (numbers stay numbers).
+
+    >>> csv_cell("=HYPERLINK(1)"), csv_cell("-0.5 bar"), csv_cell(3.5)
+    ("'=HYPERLINK(1)", "'-0.5 bar", 3.5)
+    """
+    if isinstance(value, str):
+        value = clean(value)
+        if value[:1] in ("=", "+", "-", "@"):
+            return "'" + value
+    return value
+
+
+def write_output(path: str | os.PathLike[str], data: bytes | str | Callable[[Path], object], *, force: bool = False,
+                 protected: Iterable[str | os.PathLike[str] | None] = ()) -> Path:
+    """Write ``data`` (bytes, text, or a function that writes a given temporary path) to
+    ``path`` atomically. Refuses an existing file unless ``force``, and the ``protected`` files
+    (the journal, the profile) always."""
+    out = Path(path).expanduser()
+    try:
+        target = out.resolve()
+    except OSError as exc:
+        raise InputError(f"output {out}: {exc.strerror or exc}") from None
+    for p in protected:
+        if p is not None and Path(p).expanduser().exists() and Path(p).expanduser().resolve() == target:
+            raise InputError(f"output {out} is the journal or the profile in use: choose another file")
+    if out.is_dir():
+        raise InputError(f"output {out} is a folder: give a file name")
+    if not out.parent.is_dir():
+        raise InputError(f"output {out}: the folder {out.parent} does not exist")
+    if out.exists() and not force:
+        raise InputError(f"output {out} exists: choose another name, or add --force to replace it")
+    fd, tmp_name = tempfile.mkstemp(prefix=f".{out.name}.", suffix=".tmp", dir=out.parent)
+    tmp = Path(tmp_name)
+    try:
+        if callable(data):
+            os.close(fd)
+            data(tmp)
+            with open(tmp, "rb+") as fh:
+                os.fsync(fh.fileno())
+        else:
+            with os.fdopen(fd, "wb") as fh:
+                fh.write(data.encode("utf-8") if isinstance(data, str) else data)
+                fh.flush()
+                os.fsync(fh.fileno())
+        os.replace(tmp, out)
+    except OSError as exc:
+        tmp.unlink(missing_ok=True)
+        raise InputError(f"cannot write {out}: {exc.strerror or exc}; nothing was written") from None
+    except BaseException:
+        tmp.unlink(missing_ok=True)
+        raise
+    return out
+
+
+def session_csv(journal: Journal, session_id: int, ambient_pa: float = 101325.0) -> str:
+    """One session's readings as CSV: SI columns, the text as typed, and each gauge pressure
+    converted back with the ambient it was typed against (so an export reads back exactly what
+    was typed). Text cells are spreadsheet-safe (:func:`csv_cell`)."""
+    import csv
+    import io
+
+    s = journal.session(session_id)
+    if s is None:
+        raise InputError(f"no session {session_id} in {journal.path}")
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["session", "bench", "supply", "time", "pressure_abs_pa", "pressure_gauge_pa", "typed",
+                "temperature_k", "weight_kg", "ambient_pa", "struck_at", "struck_reason"])
+    for r in journal.readings(session_id):
+        amb = r.ambient_pa if r.ambient_pa is not None else ambient_pa
+        w.writerow([csv_cell(x) for x in (
+            s.id, s.bench, r.supply_id, r.at,
+            "" if r.pressure_abs_pa is None else f"{r.pressure_abs_pa:.1f}",
+            "" if r.pressure_abs_pa is None else f"{r.pressure_abs_pa - amb:.1f}", r.pressure_text,
+            f"{r.temperature_k:.2f}", "" if r.weight_kg is None else f"{r.weight_kg:.3f}",
+            f"{amb:.1f}", r.struck_at or "", r.struck_reason or "")])
+    return buf.getvalue()

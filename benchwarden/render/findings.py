@@ -1,0 +1,203 @@
+"""Findings in words: one sentence and one figure per finding code, in the display units.
+
+The rules live in :mod:`benchwarden.workflows.findings`; this module only words them. Every code
+the rules can produce has a template here (a test checks it).
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+from collections.abc import Callable
+from typing import Any
+
+from benchwarden.render.display import Display
+from benchwarden.render.numbers import fmt_uncertain, fmt_value
+from benchwarden.workflows.findings import Finding
+
+__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "TEMPLATES", "describe", "finding_dict"]
+
+SEVERITY_MARK: dict[str, str] = {"stop": "✖ STOP", "warning": "▲ WARNING", "attention": "● ATTENTION",
+                                 "info": "ℹ INFO"}
+SEVERITY_WORD: dict[str, str] = {"stop": "STOP", "warning": "WARNING", "attention": "ATTENTION", "info": "INFO"}
+
+Template = Callable[[Finding, Any, Display], tuple[str, str]]
+
+
+def _clock(iso: str) -> str:
+    return dt.datetime.fromisoformat(iso).strftime("%H:%M")
+
+
+def _num(x: Any, fmt: str = ".3g") -> str:
+    return "—" if x is None or (isinstance(x, float) and not math.isfinite(x)) else format(x, fmt)
+
+
+TEMPLATES: dict[str, Template] = {
+    "liquefied-reading": lambda f, v, d: (
+        f"reading {d.gauge(v['reading_abs_pa'])} differs from the vapour pressure of {v['gas']} at "
+        f"{d.temperature(v['temperature_k'])} by more than 15 %: check the gauge or the temperature",
+        f"vapour pressure {d.gauge(v['vapour_pressure_abs_pa'])}"),
+    "liquefied-no-weight": lambda f, v, d: (
+        f"{v['gas']} is liquid in the cylinder at {d.temperature(v['temperature_k'])}: its pressure says nothing "
+        "about the contents; add gross and tare weights", "no weights"),
+    "reserve-before-end": lambda f, v, d: (
+        f"{f.subject} reaches its reserve after {d.hours(v['hours'])}, before the planned "
+        f"{d.hours(v['session_hours'])} session ends: swap the cylinder first or shorten the session",
+        f"{v['hours']:.2f} h of {v['session_hours']:.2f} h"),
+    "reserve-within-gauge-error": lambda f, v, d: (
+        f"{f.subject} lasts {d.hours(v['hours'])}, but within the gauge's error it could be only "
+        f"{d.hours(v['hours_low'])}, less than the session", f"{v['hours_low']:.2f}–{v['hours_high']:.2f} h"),
+    "at-or-below-reserve": lambda f, v, d: (
+        f"{f.subject} is at or below its reserve: close it and change the cylinder before going on",
+        f"{d.gauge(v['pressure_abs_pa'])} ≤ reserve {d.gauge(v['reserve_abs_pa'])}"),
+    "regulator-not-regulating": lambda f, v, d: (
+        f"{v['supply']} is at or below the set point of {f.subject}: the regulator no longer regulates, its "
+        "outlet and the gaps' firing voltage fall with the cylinder — stop and change the cylinder",
+        f"{d.gauge(v['pressure_abs_pa'])} ≤ set point {d.gauge(v['set_point_abs_pa'])}"),
+    "estimated-mixing": lambda f, v, d: (
+        f"{v['gas']}: no published mixing parameters for {v['pairs']}; properties use the Lorentz-Berthelot "
+        "estimate", "estimate"),
+    "no-gauge": lambda f, v, d: (
+        f"{f.subject} has no gauge in the profile: run time has no uncertainty band", "no band"),
+    "inlet-rating": lambda f, v, d: (
+        f"{v['supply']} at {d.gauge(v['pressure_abs_pa'])} is above the inlet rating of {f.subject}",
+        f"{d.gauge(v['pressure_abs_pa'])} > {d.gauge(v['rating_abs_pa'])}"),
+    "inlet-rating-hot": lambda f, v, d: (
+        f"on a {d.temperature(v['temperature_k'])} day {v['supply']} would reach {d.gauge(v['pressure_abs_pa'])}, "
+        f"above the inlet rating of {f.subject}", f"{d.gauge(v['pressure_abs_pa'])} > {d.gauge(v['rating_abs_pa'])}"),
+    "regulator-solid": lambda f, v, d: (
+        f"{v['gas']} expanding to the set point forms solid (dry ice) in {f.subject}: it can block and then "
+        "release suddenly — use a regulator made for this service or a higher outlet pressure",
+        f"outlet at {d.temperature(v['temperature_k'])}"),
+    "regulator-liquid": lambda f, v, d: (
+        f"liquid {v['gas']} forms at the outlet of {f.subject}", f"outlet at {d.temperature(v['temperature_k'])}"),
+    "regulator-icing": lambda f, v, d: (
+        f"gas leaves {f.subject} at about {d.temperature(v['temperature_k'])} in steady flow: frost on the body, "
+        "stiff diaphragm; a heated regulator or lower flow helps", d.temperature(v["temperature_k"])),
+    "outlet-drift-range": lambda f, v, d: (
+        f"{f.subject}'s outlet drifts above its range as {v['supply']} empties",
+        f"{d.gauge(v['pressure_abs_pa'])} at reserve"),
+    "outlet-drift-rating": lambda f, v, d: (
+        f"{f.subject}'s outlet drifts above the downstream rating as {v['supply']} empties",
+        f"{d.gauge(v['pressure_abs_pa'])} > {d.gauge(v['limit_abs_pa'])}"),
+    "no-relief": lambda f, v, d: (
+        f"{f.subject} has no relief valve: a failed regulator puts the full cylinder pressure on the downstream "
+        "parts", f"downstream rated {d.gauge(v['limit_abs_pa'])}"),
+    "relief-above-rating": lambda f, v, d: (
+        f"the relief of {f.subject} opens above the downstream working pressure",
+        f"{d.gauge(v['relief_abs_pa'])} > {d.gauge(v['limit_abs_pa'])}"),
+    "relief-below-set-point": lambda f, v, d: (
+        f"the relief of {f.subject} is at or below its set point: it will vent",
+        f"{d.gauge(v['relief_abs_pa'])} ≤ {d.gauge(v['set_point_abs_pa'])}"),
+    "gap-beyond-method": lambda f, v, d: (
+        f"gap {f.subject} works at p·d = {v['pd_bar_cm']:.0f} bar·cm, beyond the ~100 bar·cm the breakdown "
+        "methods cover: no firing-voltage estimate", "no estimate"),
+    "flashover": lambda f, v, d: (
+        f"gap {f.subject} fires near {v['breakdown_kv']:.1f} kV; {v['part']} withstands about "
+        f"{v['withstand_kv']:.1f} kV ({'at the reserve (regulator drift)' if v['at_reserve'] else 'at the start'}): "
+        + ("it will flash over — lower the gap pressure or increase the clearance" if f.severity == "stop"
+           else "little margin — consider a lower gap pressure"),
+        f"margin {v['margin_kv']:+.1f} kV ({v['margin_percent']:+.0f} %)"),
+    "no-room": lambda f, v, d: ("the profile has no room: oxygen figures are not evaluated", "no room"),
+    "room-vented": lambda f, v, d: (
+        f"gas vented by the draws lowers the room's oxygen to {v['o2_percent']:.1f} %"
+        + (f" and passes 19.5 % after {v['minutes_to_19_5']:.0f} min" if math.isfinite(v["minutes_to_19_5"]) else "")
+        + ": duct the exhaust outside or increase ventilation", f"{v['o2_percent']:.1f} % O2 steady"),
+    "room-release": lambda f, v, d: (
+        f"if all of {v['supply']}, full, escapes at once the room falls to {v['o2_percent']:.1f} % oxygen "
+        f"({v['effect']}; {v['o2_percent_today']:.1f} % with today's contents); "
+        + ("" if v["monitor"] else "fit an oxygen monitor with alarm, ")
+        + "keep only the cylinders in use indoors and ventilate",
+        f"{v['o2_percent']:.1f} % O2 ({v['model']} model)"),
+    "room-toxic": lambda f, v, d: (f"if all of {v['supply']} escapes: {v['detail']}", f"{v['percent']:.2f} %"),
+    "room-flammable": lambda f, v, d: (f"if all of {v['supply']} escapes: {v['detail']}", f"{v['percent']:.2f} %"),
+    "faster-than-planned": lambda f, v, d: (
+        f"{f.subject} empties faster than planned: check for leaks or a flow set too high",
+        f"observed {fmt_uncertain(v['observed_kg_s'] * 6e4, v['uncertainty_kg_s'] * 6e4, 'g/min')} vs planned "
+        f"{fmt_value(v['planned_kg_s'] * 6e4)} g/min"),
+    "reserve-before-end-live": lambda f, v, d: (
+        f"{f.subject} reaches its reserve at {_clock(v['reserve_at'])}, before the session's planned end "
+        f"{_clock(v['session_end'])}: swap the cylinder or stop early", f"reserve at {_clock(v['reserve_at'])}"),
+    "no-hold-test": lambda f, v, d: ("no hold test recorded for this bench: run one", "none"),
+    "retest-overdue": lambda f, v, d: (
+        f"the cylinder on {f.subject} is past its periodic-inspection (retest) date: do not use or refill it; "
+        "return it to the supplier (the interval is the maker's or the local rule)", f"due {v['due']}"),
+    "retest-due-soon": lambda f, v, d: (
+        f"the cylinder on {f.subject} is due for its periodic inspection (retest) in {v['days']:.0f} days",
+        f"due {v['due']}"),
+    "service-overdue": lambda f, v, d: (
+        f"{f.subject} is past its service date: have it serviced before relying on its outlet and relief",
+        f"due {v['due']}"),
+    "service-due-soon": lambda f, v, d: (
+        f"{f.subject} is due for service in {v['days']:.0f} days", f"due {v['due']}"),
+    "order-now": lambda f, v, d: (
+        f"order the next {f.subject} cylinder now: at the recorded consumption the gas and spares last "
+        f"{v['days_of_gas']:.0f} days, less than the supplier's lead time", f"order by {v['order_by']}"),
+    "order-soon": lambda f, v, d: (
+        f"order the next {f.subject} cylinder soon (gas and spares for {v['days_of_gas']:.0f} days at the recorded "
+        "consumption, less the lead time)", f"order by {v['order_by']}"),
+    "hold-test-leak": lambda f, v, d: (
+        "the last hold test found a leak: find and fix it first", _hold_figure(v)),
+    "idle-drop-leak": lambda f, v, d: (
+        f"{v['supply']} lost pressure between sessions beyond what temperature and the gauge explain: a leak — "
+        "find and fix it first", _hold_figure(v)),
+    "leak-watch-leak": lambda f, v, d: (
+        f"the leak watch on {v['supply']} found a leak while the bench stood idle: find and fix it first",
+        _hold_figure(v)),
+    "alarm-reserve": lambda f, v, d: (
+        f"{f.subject} reaches its reserve in {d.hours(v['hours'])}" if v["hours"] > 0
+        else f"{f.subject} is at its reserve: close it and change the cylinder", f"{v['hours']:.2f} h"),
+    "alarm-over-time": lambda f, v, d: (
+        f"the session is over its planned time by {d.hours(v['over_hours'])}", f"+{v['over_hours']:.2f} h"),
+    "alarm-leak": lambda f, v, d: (
+        (f"the leak watch finds a leak on {f.subject}: close the cylinder and find it" if v["supply"]
+         else "a leak was found: see the findings"),
+        fmt_uncertain(v["leak_rate_sccm"], v["leak_rate_uncertainty_sccm"], "sccm") if v["supply"] else "leak"),
+    "alarm-fast-draw": lambda f, v, d: ("a supply empties faster than planned: see the findings", "faster"),
+    "alarm-gauge-silent": lambda f, v, d: (
+        f"the gauge of {f.subject} is silent: no good sample for several intervals ({v['why']})", "silent"),
+    "hold-test-inconclusive": lambda f, v, d: (
+        "the last hold test could not tell: hold longer or use a finer gauge", _hold_figure(v)),
+    "hold-test-old": lambda f, v, d: (
+        f"the last hold test is older than {v['max_age_days']:.0f} days: repeat it", _hold_figure(v)),
+    "hold-test-ok": lambda f, v, d: ("last hold test resolved no leak", _hold_figure(v)),
+}
+
+
+def _hold_figure(v: Any) -> str:
+    return (f"{v['verdict']}, {fmt_uncertain(v['leak_rate_sccm'], v['leak_rate_uncertainty_sccm'], 'sccm')}, "
+            f"{Display.ago(v['age_days'])}")
+
+
+
+
+def describe(f: Finding, display: Display | None = None) -> tuple[str, str]:
+    """(sentence, figure) of a finding in the display units."""
+    d = display or Display()
+    template = TEMPLATES.get(f.code)
+    if template is None:  # pragma: no cover - a test checks every code has a template
+        return f.code, ", ".join(f"{k}={v}" for k, v in f.values.items())
+    return template(f, f.values, d)
+
+
+def finding_dict(f: Finding, display: Display | None = None) -> dict[str, Any]:
+    """A finding for JSON: code, severity, subject, its SI numbers, and the words for people."""
+    text, figure = describe(f, display)
+    return {"code": f.code, "severity": f.severity, "subject": f.subject, "values": dict(f.values),
+            "text": text, "figure": figure}
+
+
+def question_text(q: Any, d: Display) -> str:
+    """Words for a question an implausible reading raises (see
+    :func:`benchwarden.workflows.cylinder.check_reading`)."""
+    v = q.values
+    if q.code == "rise-without-change":
+        return (f"{d.gauge(float(v['pressure_abs_pa']))} is higher than the last reading "
+                f"{d.gauge(float(v['previous_abs_pa']))} with no cylinder change recorded (record a new fill as a "
+                "cylinder change)")
+    if q.code == "unit-swapped":
+        return (f"{d.gauge(float(v['pressure_abs_pa']))} is {float(v['ratio']):.2g}× the last reading "
+                f"{d.gauge(float(v['previous_abs_pa']))}: was it typed in psi for bar, or bar for psi?")
+    return (f"a drop from {d.gauge(float(v['previous_abs_pa']))} to {d.gauge(float(v['pressure_abs_pa']))} in "
+            f"{d.hours(float(v['hours']))} is {float(v['observed_kg_s']) / float(v['planned_kg_s']):.0f}× faster "
+            "than planned")

@@ -1,0 +1,304 @@
+"""Room oxygen: what a sudden release or a continuous leak does to the air.
+
+Sudden release of a free-gas volume Vg (at room conditions) into a room of volume Vr:
+
+* ``displacement`` (default, most conservative): the released gas pushes out an equal volume of
+  room air before mixing, C = C0·(Vr − Vg)/Vr (BCGA Guidance Note GN11, "Reduced oxygen
+  atmospheres"; appendix and formula from memory).
+* ``mixed``: continuously well mixed while room air escapes, C = C0·exp(−Vg/Vr).
+* ``sealed``: nothing escapes (room pressure rises), C = C0·Vr/(Vr + Vg).
+
+Continuous leak R [m³/s at room conditions] with ventilation Q [m³/s], well mixed, O2 balance
+V·dC/dt = inflow·C0 − outflow·C:
+
+* exhaust-driven (fan extracts Q; make-up air Q − R): C(t) = Css + (C0 − Css)·e^(−Q·t/V),
+  Css = C0·(1 − R/Q) (default, more conservative);
+* supply-driven (fan supplies Q of fresh air; Q + R leaves): Css = C0·Q/(Q + R), rate (Q + R)/V;
+* no ventilation (displaced air leaves, nothing enters): C(t) = C0·e^(−R·t/V).
+
+These are the well-mixed models of laboratory oxygen-deficiency-hazard procedures (e.g. the
+CERN and Fermilab ODH assessment notes, from memory; method as in BCGA GN11). The tests check
+them against a direct numerical integration of the mixing equation. Gases heavier than air
+(argon, CO2, SF6) collect near the floor and in pits, lighter ones (helium, hydrogen) under the
+ceiling: there the well-mixed figure is optimistic.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Literal
+
+from benchwarden import gas as g
+from benchwarden.errors import InputError
+from benchwarden.quantities import Amount
+from benchwarden.units import Flow, check_positive
+
+#: Oxygen in dry air, vol % (common value; 20.946 % in the US Standard Atmosphere 1976).
+C0_AIR = 20.95
+#: Oxygen-deficient atmosphere: below 19.5 % (OSHA 29 CFR 1910.134(b)).
+OSHA_DEFICIENT = 19.5
+#: Below 18 %: EIGA Doc 44 treats the atmosphere as hazardous; do not enter without measures
+#: (from memory).
+EIGA_HAZARD = 18.0
+
+#: Effects of low oxygen on a person at rest (own summary of the table in EIGA Doc 44
+#: "Hazards of inert gases and oxygen depletion", from memory). (upper bound %, text)
+EFFECTS: tuple[tuple[float, str], ...] = (
+    (19.5, "below the 19.5 % limit for an oxygen-deficient atmosphere (29 CFR 1910.134)"),
+    (18.0, "hazardous (EIGA Doc 44): no entry without protection; monitor"),
+    (15.0, "poorer coordination and judgement, faster breathing and pulse; not noticed by the person"),
+    (12.0, "dizziness, headache, quickly tiring; judgement badly impaired; lips may turn blue"),
+    (10.0, "nausea, vomiting, collapse and loss of consciousness possible"),
+    (8.0, "loss of consciousness within minutes; death within minutes without rescue"),
+    (6.0, "collapse within a breath or two; coma and death"),
+)
+
+ReleaseModel = Literal["displacement", "mixed", "sealed"]
+VentKind = Literal["exhaust", "supply"]
+
+
+def effect_of(c_percent: float) -> str:
+    """Words for the effect of an oxygen level (see :data:`EFFECTS`); ``""`` if ≥ 19.5 %."""
+    text = ""
+    for bound, words in EFFECTS:
+        if c_percent < bound:
+            text = words
+    return text
+
+
+@dataclass(frozen=True)
+class Release:
+    model: ReleaseModel
+    room_volume_m3: float
+    release_volume_m3: float
+    c0_percent: float
+    o2_percent_after_release: float
+    effect: str
+    notes: tuple[str, ...]
+    method: str
+
+    @property
+    def gas_percent_after_release(self) -> float:
+        """The released gas's own concentration, vol % (what displaced the oxygen: 1 − C/C0)."""
+        return max(0.0, 100.0 * (1.0 - self.o2_percent_after_release / self.c0_percent))
+
+
+_MODEL_TEXT = {
+    "displacement": "displaced air leaves first, C = C0·(Vr − Vg)/Vr (BCGA GN11)",
+    "mixed": "well mixed, room air escaping, C = C0·exp(−Vg/Vr)",
+    "sealed": "sealed room, C = C0·Vr/(Vr + Vg)",
+}
+
+
+def release(room_volume_m3: float, release_volume_m3: float, model: str = "displacement",
+            c0_percent: float = C0_AIR) -> Release:
+    """Oxygen level after a sudden release (see module docstring for the three models).
+
+    >>> round(release(50.0, 9.5).o2_percent_after_release, 2)   # 9.5 m³ into 50 m³
+    16.97
+    >>> round(release(50.0, 9.5, "mixed").o2_percent_after_release, 2)
+    17.33
+    >>> round(release(50.0, 9.5, "sealed").o2_percent_after_release, 2)
+    17.6
+    """
+    check_positive(room_volume_m3, "room volume", "m³")
+    check_positive(release_volume_m3, "release volume", "m³")
+    if model not in _MODEL_TEXT:
+        raise InputError(f"unknown release model {model!r}; allowed: {', '.join(_MODEL_TEXT)}")
+    if not 0 < c0_percent <= 100:
+        raise InputError(f"initial oxygen {c0_percent:g} % must be between 0 and 100")
+    notes: list[str] = []
+    Vr, Vg = room_volume_m3, release_volume_m3
+    if model == "displacement":
+        c = c0_percent * (Vr - Vg) / Vr
+        if c < 0:
+            c = 0.0
+            notes.append("the release is larger than the room: all room air is displaced (0 % oxygen)")
+    elif model == "mixed":
+        c = c0_percent * math.exp(-Vg / Vr)
+    else:
+        c = c0_percent * Vr / (Vr + Vg)
+    return Release(model, Vr, Vg, c0_percent, c, effect_of(c), tuple(notes), _MODEL_TEXT[model])  # type: ignore[arg-type]
+
+
+@dataclass(frozen=True)
+class Leak:
+    room_volume_m3: float
+    leak_m3_s: float
+    ventilation_m3_s: float
+    ventilation_kind: str
+    c0_percent: float
+    o2_percent_steady: float
+    rate_per_s: float
+    minutes_to_19_5: float
+    minutes_to_18: float
+    minutes_to_recover: float
+    effect: str
+    method: str
+
+
+def leak_o2(room_volume_m3: float, leak_m3_s: float, ventilation_m3_s: float = 0.0,
+            kind: str = "exhaust", c0_percent: float = C0_AIR) -> Leak:
+    """Oxygen level in a room with a continuous leak R and ventilation Q (well mixed).
+
+    ``minutes_to_recover`` is the time from the steady state back above 19.5 % once the leak
+    stops, with the ventilation running (``inf`` without ventilation: open doors and windows;
+    NaN when the level never falls below 19.5 %).
+
+    >>> lk = leak_o2(50.0, 10 / 60000, 100 / 3600)   # 10 L/min into 50 m³ with 2 air changes/h
+    >>> round(lk.o2_percent_steady, 3), lk.minutes_to_19_5
+    (20.824, inf)
+    """
+    check_positive(room_volume_m3, "room volume", "m³")
+    if not math.isfinite(leak_m3_s) or leak_m3_s < 0:
+        raise InputError(f"leak {leak_m3_s!r} m³/s must be zero or more")
+    if not math.isfinite(ventilation_m3_s) or ventilation_m3_s < 0:
+        raise InputError(f"ventilation {ventilation_m3_s!r} m³/s must be zero or more")
+    if kind not in ("exhaust", "supply"):
+        raise InputError(f"unknown ventilation kind {kind!r}; allowed: exhaust, supply")
+    if not (math.isfinite(c0_percent) and 0 < c0_percent <= 100):
+        raise InputError(f"initial oxygen {c0_percent!r} % must be above 0 and at most 100")
+    V, R, Q, C0 = room_volume_m3, leak_m3_s, ventilation_m3_s, c0_percent
+    if Q == 0 or (kind == "exhaust" and R >= Q):
+        css, k = 0.0, R / V
+        method = "no effective ventilation: C = C0·exp(−R·t/V)"
+        if Q > 0:
+            method = "leak exceeds the extract: room overflows, C = C0·exp(−R·t/V)"
+    elif kind == "exhaust":
+        css, k = C0 * (1.0 - R / Q), Q / V
+        method = "exhaust-driven ventilation, well mixed: Css = C0·(1 − R/Q), rate Q/V"
+    else:
+        css, k = C0 * Q / (Q + R), (Q + R) / V
+        method = "supply-driven ventilation, well mixed: Css = C0·Q/(Q + R), rate (Q + R)/V"
+
+    def minutes_to(th: float) -> float:
+        if th >= C0:
+            return 0.0  # the room starts at or below this level
+        if css >= th or k == 0:
+            return math.inf
+        return -math.log((th - css) / (C0 - css)) / k / 60.0
+
+    if css >= OSHA_DEFICIENT:
+        recover = math.nan  # never below 19.5 %: nothing to recover from
+    elif Q == 0 or C0 <= OSHA_DEFICIENT:
+        recover = math.inf  # no fresh air, or the fresh air itself is below 19.5 %
+    else:
+        recover = math.log((C0 - css) / (C0 - OSHA_DEFICIENT)) / (Q / V) / 60.0
+    return Leak(V, R, Q, kind, C0, css, k, minutes_to(OSHA_DEFICIENT), minutes_to(EIGA_HAZARD), recover,
+                effect_of(css), method)
+
+
+@dataclass(frozen=True)
+class FiniteLeak:
+    """A leak that stops when its cylinder is empty: the oxygen falls until then, and recovers
+    afterwards with the ventilation."""
+
+    leak: Leak
+    minutes_to_empty: float
+    o2_percent_minimum: float
+    minutes_below_19_5: float | None  # None: never below 19.5 %
+    minutes_to_recover: float | None  # from the minimum back to 19.5 % (None: never below)
+
+
+def finite_leak(lk: Leak, gas_volume_m3: float) -> FiniteLeak:
+    """A continuous leak of ``lk.leak_m3_s`` from a cylinder holding ``gas_volume_m3`` (free
+    gas at room conditions): it lasts T = V_gas/R; the oxygen follows the leak's closed-form
+    curve until T (its minimum), then recovers as C(t) = C0 − (C0 − C_T)·e^(−Q(t−T)/V).
+
+    >>> lk = leak_o2(30.0, 10 / 60000, 0.0)
+    >>> f = finite_leak(lk, 1.0)      # 1 m³ of gas at 10 L/min: 100 min
+    >>> round(f.minutes_to_empty), round(f.o2_percent_minimum, 2)
+    (100, 20.26)
+    """
+    check_positive(gas_volume_m3, "gas in the leaking cylinder", "m³")
+    if lk.leak_m3_s <= 0:
+        return FiniteLeak(lk, math.inf, lk.c0_percent, None, None)
+    T = gas_volume_m3 / lk.leak_m3_s
+    c_min = o2_at(lk, T)
+    below = None
+    recover = None
+    if c_min < OSHA_DEFICIENT:
+        t19 = lk.minutes_to_19_5 if lk.minutes_to_19_5 <= T / 60.0 else math.nan
+        Q, V, C0 = lk.ventilation_m3_s, lk.room_volume_m3, lk.c0_percent
+        if Q > 0 and C0 > OSHA_DEFICIENT:
+            recover = math.log((C0 - c_min) / (C0 - OSHA_DEFICIENT)) / (Q / V) / 60.0
+        else:
+            recover = math.inf
+        below = (T / 60.0 - t19) + recover if math.isfinite(t19) else recover
+    return FiniteLeak(lk, T / 60.0, c_min, below, recover)
+
+
+def o2_at(lk: Leak, t_s: float) -> float:
+    """Oxygen % at time t after the leak starts (closed-form solution of the model in ``lk``)."""
+    return lk.o2_percent_steady + (lk.c0_percent - lk.o2_percent_steady) * math.exp(-lk.rate_per_s * t_s)
+
+
+def leak_volume_flow(gas: g.Gas, f: Flow, T_room: float, p_room: float) -> float:
+    """A leak as actual volume flow at room conditions [m³/s]: a standard flow via the gas's real
+    density at its reference and at the room (CoolProp HEOS), a mass flow via the density at the
+    room, a plain volume flow as given (taken at room conditions)."""
+    if f.kind == "actual":
+        return f.value
+    from benchwarden.supply import mass_flow
+
+    return mass_flow(gas, f) / g.density(gas, T_room, p_room)
+
+
+def release_volume(gas: g.Gas, amount: Amount, T_room: float, p_room: float) -> float:
+    """A release as a volume at room conditions [m³]: a mass through the gas's real density at
+    the room (CoolProp HEOS), a volume as given."""
+    if amount.kind == "volume":
+        return check_positive(amount.value, "release volume", "m³")
+    return check_positive(amount.value, "release mass", "kg") / g.density(gas, T_room, p_room)
+
+
+def stratification_note(gas: g.Gas) -> str:
+    """Where the gas collects, from its density relative to air (ideal-gas ratio of molar masses)."""
+    rd = gas.relative_density_to_air
+    if rd > 1.1:
+        return (f"{gas.name} is {rd:.1f}× as dense as air: it collects at floor level, in pits and "
+                "trenches, where the well-mixed figure is optimistic")
+    if rd < 0.9:
+        return (f"{gas.name} is {rd:.2f}× as dense as air: it rises and collects under the ceiling, "
+                "where the well-mixed figure is optimistic")
+    return f"{gas.name} has about the density of air and mixes readily"
+
+
+@dataclass(frozen=True)
+class Hazard:
+    kind: str  # "toxic" | "flammable"
+    percent: float
+    limit_percent: float
+    text: str
+
+
+def _source(sources: tuple[str, ...], key: str) -> str:
+    """The source of a handling fact, by what it is about (TWA, STEL, LFL)."""
+    return next((x for x in sources if key in x), sources[0] if sources else "")
+
+
+def gas_hazards(gas: g.Gas, o2_percent: float, c0_percent: float = C0_AIR) -> list[Hazard]:
+    """Toxic and flammable hazards of the released gas at the concentration that lowers oxygen
+    to ``o2_percent`` (released-gas fraction = 1 − C/C0, well mixed).
+
+    CO2 is toxic long before it displaces oxygen (OSHA TWA 5000 ppm = 0.5 %); hydrogen is
+    flammable from 4 % (its LFL)."""
+    frac = max(0.0, 1.0 - o2_percent / c0_percent) * 100.0
+    out: list[Hazard] = []
+    for comp, x in gas.components:
+        h = comp.handling
+        pct = frac * x
+        if h.exposure_stel_ppm and pct > h.exposure_stel_ppm / 1e4:
+            out.append(Hazard("toxic", pct, h.exposure_stel_ppm / 1e4,
+                              f"{comp.name} at {pct:.2f} % exceeds its short-term exposure limit "
+                              f"{h.exposure_stel_ppm:.0f} ppm ({_source(h.sources, 'STEL')})"))
+        elif h.exposure_twa_ppm and pct > h.exposure_twa_ppm / 1e4:
+            out.append(Hazard("toxic", pct, h.exposure_twa_ppm / 1e4,
+                              f"{comp.name} at {pct:.2f} % exceeds its 8-hour exposure limit "
+                              f"{h.exposure_twa_ppm:.0f} ppm ({_source(h.sources, 'TWA')})"))
+        if h.lfl_percent and pct > 0.25 * h.lfl_percent:
+            word = "above its lower flammability limit" if pct >= h.lfl_percent else "above 25 % of its LFL"
+            out.append(Hazard("flammable", pct, h.lfl_percent,
+                              f"{comp.name} at {pct:.2f} % is {word} ({h.lfl_percent:g} %; {_source(h.sources, 'LFL')})"))
+    return out

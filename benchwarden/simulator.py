@@ -1,0 +1,89 @@
+"""A simulated cylinder served as a Modbus/TCP device, for trying live gauges without hardware.
+
+Register map (holding registers, device 1): 0–1 the pressure in bar(g) as float32 (big-endian
+words), 2–3 the gas temperature in °C as float32. The cylinder loses gas by the real-gas mass
+balance m(t) = m0 − (ṁ_leak + ṁ_draw)·t (CoolProp HEOS: p from ρ = m/V at the set temperature);
+``speed`` runs its clock N times faster, so a night's hold test takes a minute.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import struct
+import time
+from dataclasses import dataclass, field
+
+from benchwarden import gas as g
+from benchwarden.errors import InputError
+
+__all__ = ["Cylinder", "serve"]
+
+
+@dataclass
+class Cylinder:
+    gas: g.Gas
+    volume_m3: float
+    pressure_abs_pa: float
+    temperature_k: float
+    loss_kg_s: float
+    speed: float = 1.0
+    ambient_pa: float = 101325.0
+    started: float = field(default_factory=time.monotonic)
+
+    def __post_init__(self) -> None:
+        import math
+
+        from benchwarden.supply import contents
+
+        contents(self.gas, self.volume_m3, self.pressure_abs_pa, self.temperature_k)  # volume and state checked
+        if self.pressure_abs_pa <= self.ambient_pa:
+            raise InputError("the simulated cylinder's pressure must be above atmospheric")
+        self.m0 = g.density(self.gas, self.temperature_k, self.pressure_abs_pa) * self.volume_m3
+        if not (math.isfinite(self.loss_kg_s) and 0.0 <= self.loss_kg_s <= self.m0):
+            raise InputError(f"leak + draw {self.loss_kg_s * 6e4:.3g} g/min: zero or more, and less than the whole "
+                             f"cylinder ({self.m0:.3g} kg) per second")
+        self.m_floor = g.density(self.gas, self.temperature_k, self.ambient_pa) * self.volume_m3
+
+    def pressure_at(self, elapsed_s: float) -> float:
+        """Absolute pressure [Pa] after ``elapsed_s`` of simulated time (never below ambient)."""
+        m = max(self.m_floor, self.m0 - self.loss_kg_s * elapsed_s)
+        return g.pressure_from_density(self.gas, m / self.volume_m3, self.temperature_k)
+
+    def now_pressure(self) -> float:
+        return self.pressure_at((time.monotonic() - self.started) * self.speed)
+
+
+def _words(value: float) -> list[int]:
+    raw = struct.pack(">f", value)
+    return [int.from_bytes(raw[0:2], "big"), int.from_bytes(raw[2:4], "big")]
+
+
+async def serve(cyl: Cylinder, port: int, host: str = "127.0.0.1", duration_s: float | None = None) -> None:
+    """Serve the cylinder on ``host:port`` until ``duration_s`` passes (or forever)."""
+    import pymodbus  # noqa: F401  (the package first: importing pymodbus.server first is circular in 3.16)
+    from pymodbus.server import ModbusTcpServer
+    from pymodbus.simulator import DataType, SimData, SimDevice
+
+    if not 0 < port < 65536:
+        raise InputError(f"port {port} must be between 1 and 65535")
+
+    async def action(function_code: int, start_address: int, address: int, count: int,
+                     current: list[int], set_registers: object) -> None:
+        regs = _words((cyl.now_pressure() - cyl.ambient_pa) / 1e5) + _words(cyl.temperature_k - 273.15)
+        for i in range(len(current)):
+            if start_address + i < len(regs):
+                current[i] = regs[start_address + i]
+        return None
+
+    device = SimDevice(1, simdata=[SimData(0, count=4, values=0, datatype=DataType.REGISTERS)],
+                       action=action)  # type: ignore[arg-type]
+    server = ModbusTcpServer(device, address=(host, port))
+    cyl.started = time.monotonic()  # the simulated clock starts with the server
+    task = asyncio.create_task(server.serve_forever())
+    try:
+        if duration_s is None:
+            await task
+        else:
+            await asyncio.sleep(duration_s)
+    finally:
+        await server.shutdown()

@@ -1,0 +1,104 @@
+"""The Textual app: ``make_app`` builds it exactly as the command line runs it."""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any
+
+from textual.app import App
+from textual.binding import Binding
+
+from benchwarden.workflows.session import SessionState, now_local
+
+
+class BenchwardenApp(App[int]):
+    """benchwarden: the bench overview and its tools."""
+
+    CSS_PATH = "benchwarden.tcss"
+    TITLE = "benchwarden"
+    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (120, "-wide")]
+    ENABLE_COMMAND_PALETTE = False
+    BINDINGS = [
+        Binding("c", "cautions", "Cautions"),  # not priority: a focused input keeps its "c"
+        Binding("question_mark", "help", "Help", key_display="?"),
+        Binding("q", "quit", "Quit"),
+    ]
+
+    def __init__(self, state: SessionState) -> None:
+        super().__init__()
+        self.state = state
+
+    def on_mount(self) -> None:
+        from benchwarden.tui.screens.overview import OverviewScreen
+
+        self.push_screen(OverviewScreen(self.state))
+
+    def action_cautions(self) -> None:
+        from benchwarden.tui.screens.modals import CautionsScreen
+
+        if not isinstance(self.screen, CautionsScreen):
+            self.push_screen(CautionsScreen(self.state))
+
+    def notify(self, message: str, **kwargs: Any) -> None:  # type: ignore[override]
+        """Notifications are plain text: a typed "[/]" or "[@click=...]" is shown, never run."""
+        kwargs["markup"] = False
+        super().notify(message, **kwargs)
+
+    async def action_quit(self) -> None:
+        """Quit, asking first while a session runs or readings are not saved yet."""
+        from benchwarden.tui.screens.modals import ConfirmScreen
+
+        st = self.state
+        if st.unsaved:
+            st.retry_unsaved()
+        worries = []
+        if st.running:
+            worries.append(f"session #{st.session_id} is running (it stays open and is offered again next time)")
+        if st.unsaved:
+            worries.append(f"{len(st.unsaved)} reading(s) are NOT saved to the journal and will be lost")
+        if not worries:
+            self.exit(0)
+            return
+        if isinstance(self.screen, ConfirmScreen):
+            return
+        self.push_screen(ConfirmScreen("Quit? " + "; ".join(worries) + "."),
+                         lambda yes: self.exit(0) if yes else None)
+
+    def action_help(self) -> None:
+        from benchwarden.tui.screens.modals import HelpScreen
+
+        if not isinstance(self.screen, HelpScreen):
+            self.push_screen(HelpScreen())
+
+
+def make_app(profile_path: str | Path | None = None, journal_path: str | Path | None = None,
+             clock: Callable[[], dt.datetime] = now_local) -> BenchwardenApp:
+    """Build the app for a profile (default: the bundled demo bench) and a journal file
+    (default: ``$BENCHWARDEN_JOURNAL`` or the user data directory)."""
+    from benchwarden.journal import open_journal
+    from benchwarden.profile import demo_profile_path
+
+    path = Path(profile_path) if profile_path else demo_profile_path()
+    journal = open_journal(journal_path)
+    return BenchwardenApp(SessionState(path, journal, clock))
+
+
+def run_app(profile_path: str | None, journal_path: str | None) -> int:
+    import os
+
+    from benchwarden.errors import InputError
+    from benchwarden.profile import load_profile
+
+    if os.environ.get("TERM", "") in ("dumb", "unknown"):
+        raise InputError("the app needs a full-screen terminal (TERM is 'dumb'); use the commands instead, "
+                         "e.g. 'benchwarden status PROFILE'")
+    if profile_path:
+        load_profile(profile_path)  # a bad profile is a one-line error before the screen opens
+    app = make_app(profile_path, journal_path)  # a damaged or foreign journal: one line, before the screen
+    app.run()
+    app.state.stop_watching()  # the live gauges' connections and serial ports are let go
+    if app.state.journal is not None:
+        app.state.journal.close()
+    return app.return_code or 0

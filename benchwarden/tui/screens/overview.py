@@ -1,0 +1,444 @@
+"""The bench overview: supplies with countdowns, draws and gaps, ranked findings."""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+from collections.abc import Callable
+
+from rich.text import Text
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import Screen
+from textual.timer import Timer
+from textual.widgets import DataTable, Footer, Header, Static
+
+from benchwarden.errors import BenchwardenError, JournalError
+from benchwarden.render.display import Display, live_text, profile_display
+from benchwarden.render.findings import describe, question_text
+from benchwarden.render.numbers import fmt_uncertain, fmt_value
+from benchwarden.tui.widgets import FindingsPanel, bar
+from benchwarden.units import fmt_hours
+from benchwarden.workflows.findings import Finding
+from benchwarden.workflows.session import Reading, SessionState
+
+#: How often the live figures (plan, leak watch, alarms) are recomputed from new samples [s].
+LIVE_REFRESH_S = 5.0
+
+
+class OverviewScreen(Screen[None]):
+    BINDINGS = [
+        Binding("s", "toggle_session", "Session"),
+        Binding("r", "reading", "Reading"),
+        Binding("g", "graph", "Graph"),
+        Binding("t", "hold", "Hold"),
+        Binding("o", "oxygen", "O2"),
+        Binding("k", "checklist", "Checklist"),
+        Binding("n", "change", "New cylinder"),
+        Binding("p", "purge", "Purge"),
+        Binding("h", "history", "History"),
+        Binding("l", "reload", "Reload"),
+        Binding("u", "units", "Units"),
+    ]
+
+    def __init__(self, state: SessionState) -> None:
+        super().__init__()
+        self.state = state
+        self.cautions_shown = False
+        self._shown: dict[str, object] = {}
+        #: the pressure unit shown; starts from the profile's [display] setting, `u` cycles it
+        self.pressure_unit: str | None = None
+        self._findings: list[Finding] = []
+        self._live_at: dt.datetime | None = None
+        self._live_timer: Timer | None = None
+
+    @property
+    def units(self) -> Display:
+        return profile_display(self.state.profile, self.pressure_unit)
+
+    def action_units(self) -> None:
+        """Show pressures in the next unit (bar, psi, kPa, MPa)."""
+        self.pressure_unit = self.units.next_unit().pressure_unit
+        self.refresh_view()
+        self.notify(f"pressures in {self.units.gauge_label}", timeout=3)
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        yield Static("Loading the bench profile and computing the plan…", id="status")
+        yield Static("", id="banner")
+        with VerticalScroll(id="body"):
+            yield Static("Supplies", classes="heading")
+            yield DataTable(id="supplies", cursor_type="none", zebra_stripes=True)
+            yield DataTable(id="supplies-more", cursor_type="none", zebra_stripes=True)
+            yield Static("", id="observed")
+            with Horizontal(id="lower"):
+                with Vertical(id="draws-box"):
+                    yield Static("Draws and gaps", classes="heading")
+                    yield DataTable(id="draws", cursor_type="row")
+                with Vertical(id="findings-box"):
+                    yield Static("Findings", classes="heading")
+                    yield FindingsPanel(id="findings")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        sup = self.query_one("#supplies", DataTable)
+        # fixed widths: the layout does not jump as figures change, and is the same every run
+        # two tables so that every figure shows at 80 columns: the countdown, then the contents
+        for label, key, width in (("Supply", "id", 8), ("Reading", "reading", 13), ("To reserve", "left", 10),
+                                  ("At", "at", 9), ("Left", "bar", 8)):
+            sup.add_column(label, key=key, width=width)
+        more = self.query_one("#supplies-more", DataTable)
+        for label, key, width in (("Supply", "id", 8), ("Gas", "gas", 9), ("Contents", "contents", 9),
+                                  ("Usable", "usable", 9), ("Regulator outlet", "outlet", 24)):
+            more.add_column(label, key=key, width=width)
+        dr = self.query_one("#draws", DataTable)
+        for label, key, width in (("Draw", "id", 12), ("Kind", "kind", 7), ("Flow", "flow", 11),
+                                  ("Fires at", "kv", 8), ("Margin", "margin", 19)):
+            dr.add_column(label, key=key, width=width)
+        self.load_plan()
+        self.set_interval(1.0, self.tick)
+
+    # -- workers: CoolProp and the journal never block the screen
+
+    @work(thread=True, exclusive=True, group="plan")
+    def load_plan(self) -> None:
+        try:
+            if self.state.profile is None:
+                self.state.load()
+            else:
+                self.state.recompute()
+        except BenchwardenError as exc:
+            self.app.call_from_thread(self._error, str(exc))
+            return
+        self.app.call_from_thread(self._plan_ready)
+
+    def _plan_ready(self) -> None:
+        self.refresh_view()
+        st = self.state
+        if st.watcher is None:
+            self._start_live()
+        if st.journal is not None and st.profile is not None and not st.running:
+            row = st.journal.unfinished_session(st.profile.bench.name)
+            if row is not None:
+                from benchwarden.tui.screens.modals import ConfirmScreen
+
+                self.app.push_screen(
+                    ConfirmScreen(f"Session #{row.id} started {row.started_at[:16].replace('T', ' ')} was left "
+                                  f"running with {row.readings} reading(s). Resume it?"),
+                    lambda yes: self._resume(row.id) if yes else self._close_left_running(row.id))
+
+    def _close_left_running(self, session_id: int) -> None:
+        try:
+            self.state.close_left_running(session_id)
+            self.notify(f"Session #{session_id} closed at its last reading", title="Session")
+        except JournalError as exc:
+            self.notify(str(exc), title="Journal", severity="error", timeout=10, markup=False)
+
+    def _resume(self, session_id: int) -> None:
+        self.state.resume(session_id)
+        self.notify(f"Session #{session_id} resumed", title="Session")
+        self.load_plan()
+
+    def _start_live(self) -> None:
+        """Read the profile's live gauges (again, after a reload), if it has any."""
+        st = self.state
+        if self._live_timer is not None:
+            self._live_timer.stop()
+            self._live_timer = None
+        st.stop_watching()
+        st.live = {}
+        if st.start_watching(lambda f: describe(f, self.units)[0]):
+            assert st.watcher is not None
+            every = min(f.interval_s for f in st.watcher.feeds)
+            self._live_timer = self.set_interval(max(0.2, min(every, 5.0)), self.poll_live)
+            self._live_at = None
+            self.notify(f"Reading {len(st.watcher.feeds)} live gauge(s)", title="Live")
+
+    @work(thread=True, exclusive=True, group="live")
+    def poll_live(self) -> None:
+        """Read the live gauges that are due; every few seconds the plan, the leak watch and the
+        alarms follow (in a worker: sources and CoolProp never block the screen)."""
+        st = self.state
+        try:
+            st.poll_sources()
+            now = st.clock()
+            if self._live_at is None or (now - self._live_at).total_seconds() >= LIVE_REFRESH_S:
+                self._live_at = now
+                st.refresh_live()
+                self.app.call_from_thread(self.refresh_view)
+        except BenchwardenError as exc:
+            self.app.call_from_thread(self.notify, str(exc), title="Live gauges", severity="error", timeout=10)
+
+    def _error(self, msg: str) -> None:
+        self.query_one("#status", Static).update(Text(f"✖ {msg}"))
+        self.notify(msg, title="Error", severity="error", timeout=10)
+
+    # -- display
+
+    def refresh_view(self) -> None:
+        st = self.state
+        if st.plan is None or st.profile is None:
+            return
+        self.app.sub_title = st.plan.bench_name
+        disp = self.units
+        sup = self.query_one("#supplies", DataTable)
+        more = self.query_one("#supplies-more", DataTable)
+        sup.clear()
+        more.clear()
+        self._shown.clear()
+        for s in st.plan.supplies:
+            regs = [r for r in st.plan.regulators if r.supply_id == s.id]
+            outlet = "—"
+            if regs:
+                coldest = min(r.outlet_temperature_k for r in regs)
+                outlet = ("/".join(disp.gauge_number(r.set_point_abs_pa) for r in regs)
+                          + f" {disp.gauge_label} {disp.temperature(coldest).replace(' °C', '°C')}")
+            reading = "by weight" if s.liquefied else disp.gauge(s.pressure_abs_pa)
+            sup.add_row(s.id, reading, "", "", "", key=s.id)
+            more.add_row(s.id, s.gas_short[:9], f"{s.mass_kg:.2f} kg", f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
+        dr = self.query_one("#draws", DataTable)
+        dr.clear()
+        for d in st.plan.draws:
+            kv = margin = "—"
+            if d.gap is not None:
+                kv = f"{d.gap.breakdown_start_kv:.1f} kV"
+                ms = list(d.gap.margins_start) + list(d.gap.margins_reserve)
+                if ms:
+                    w = min(ms, key=lambda m: m.margin_kv)
+                    margin = f"{w.margin_kv:+.1f} kV {w.status}"
+            dr.add_row(d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin, key=d.id)
+        self._observed_line()
+        self._findings = st.findings()
+        self.query_one("#findings", FindingsPanel).show(self._findings, disp)
+        self.tick()
+
+    def _observed_line(self) -> None:
+        st = self.state
+        assert st.plan is not None
+        parts = []
+        for s in st.plan.supplies:
+            ob = st.observed.get(s.id)
+            if ob is None:
+                n = len(st.readings.get(s.id, []))
+                if st.running:
+                    parts.append(f"{s.id}: {n} reading(s); two give the observed draw")
+                continue
+            parts.append(f"{s.id}: observed {fmt_uncertain(ob.draw_kg_s * 6e4, ob.draw_uncertainty_kg_s * 6e4, 'g/min')}"
+                         f" vs planned {fmt_value(s.draw_kg_s * 6e4)} g/min"
+                         + ("  ▲ faster than planned" if ob.faster_than_planned else ""))
+        for sid, lv in st.live.items():
+            parts.append(f"{sid}: {live_text(lv, self.units)}")
+        self.query_one("#observed", Static).update(Text("\n".join(parts)))
+
+    def tick(self) -> None:
+        """Once a second: elapsed time and countdowns (only these cells change)."""
+        st = self.state
+        if st.plan is None:
+            return
+        now = st.clock()
+        if st.running and st.started_at is not None:
+            el = (now - st.started_at).total_seconds()
+            status = (f"● SESSION #{st.session_id} running {int(el // 3600)}:{int(el % 3600 // 60):02d}:"
+                      f"{int(el % 60):02d} of {fmt_hours(st.plan.session_hours)}")
+            over = el / 3600.0 - st.plan.session_hours
+            if over > 0:
+                status += f"   ▲ OVER TIME by {fmt_hours(over)}"
+        else:
+            status = f"○ no session — press s to start ({fmt_hours(st.plan.session_hours)} planned)"
+        if st.unsaved and int(now.timestamp()) % 10 == 0:
+            st.retry_unsaved()  # the journal may be free again
+        if st.unsaved:
+            status += f"   ✖ {len(st.unsaved)} reading(s) NOT saved to the journal (retrying)"
+        self._alerts(now)
+        self._set("status", status, lambda v: self.query_one("#status", Static).update(Text(str(v))))
+        sup = self.query_one("#supplies", DataTable)
+        for s in st.plan.supplies:
+            if s.id not in sup.rows:  # the plan was recomputed and the table not yet refreshed
+                continue
+            h = st.hours_left(s.id, now)
+            at = now + dt.timedelta(hours=h) if math.isfinite(h) else None
+            left = (st.session_end - now).total_seconds() / 3600.0 if st.session_end else st.plan.session_hours
+            colour = "green" if h >= left else ("yellow" if h >= 0.5 * left else "red")
+            b = bar(h / st.plan.session_hours if st.plan.session_hours else 0.0, 8)
+            for col, val in (("left", fmt_hours(h)), ("bar", (b, colour)),
+                             ("at", (at.strftime("%H:%M") if at.date() == now.date() else at.strftime("%a %H:%M"))
+                                     if at else "never")):
+                self._set(f"{s.id}/{col}", val, self._cell_setter(sup, s.id, col))
+
+    @staticmethod
+    def _cell_setter(table: DataTable[object], row: str, col: str) -> Callable[[object], object]:
+        def apply(v: object) -> None:
+            shown = Text(str(v[0]), style=str(v[1])) if isinstance(v, tuple) else v
+            table.update_cell(row, col, shown, update_width=False)
+
+        return apply
+
+    def _set(self, key: str, value: object, apply: Callable[[object], object]) -> None:
+        """Apply a display change only when the shown value changes (keeps the idle app quiet)."""
+        if self._shown.get(key) != value:
+            self._shown[key] = value
+            apply(value)
+
+    # -- actions
+
+    def action_toggle_session(self) -> None:
+        from benchwarden.tui.screens.modals import StopScreen
+
+        st = self.state
+        if st.plan is None:
+            return
+        if st.running:
+            self.app.push_screen(StopScreen(), self._stop_answered)
+            return
+        try:
+            st.start()
+            self.notify(f"Session #{st.session_id} started", title="Session")
+            if not self.cautions_shown:
+                self.cautions_shown = True
+                self.app.call_later(self.app.run_action, "cautions")
+        except JournalError as exc:
+            self.notify(str(exc), title="Journal", severity="error", timeout=10)
+        self.refresh_view()
+
+    def _stop_answered(self, record: tuple[str, int | None, str] | None) -> None:
+        if record is None:
+            return
+        st = self.state
+        try:
+            st.record_session(*record)
+            st.stop()
+            self.notify("Session stopped and saved", title="Session")
+        except JournalError as exc:
+            self.notify(str(exc), title="Journal", severity="error", timeout=10)
+        self.refresh_view()
+
+    def action_reading(self) -> None:
+        from benchwarden.tui.screens.modals import ReadingScreen
+
+        if self.state.plan is None:
+            return
+        self.app.push_screen(ReadingScreen(self.state), self._reading_entered)
+
+    def _reading_entered(self, reading: Reading | None) -> None:
+        from benchwarden.tui.screens.modals import ConfirmScreen
+
+        if reading is None:
+            return
+        try:
+            questions = self.state.questions(reading)
+        except BenchwardenError as exc:
+            self.notify(str(exc), severity="error", markup=False)
+            return
+        if questions:
+            text = "; ".join(question_text(q, self.units) for q in questions)
+            self.app.push_screen(ConfirmScreen(f"{text}. Record this reading anyway?"),
+                                 lambda yes: self._save_reading(reading) if yes else None)
+            return
+        self._save_reading(reading)
+
+    def _save_reading(self, reading: Reading) -> None:
+        try:
+            self.state.add_reading(reading)
+            if not self.state.running:
+                self.notify("Idle reading saved (no session running)", timeout=4)
+        except JournalError as exc:
+            self.notify(f"{exc}. The reading is kept on screen, marked unsaved, and retried.", title="Journal",
+                        severity="error", timeout=15, markup=False)
+        except BenchwardenError as exc:
+            self.notify(str(exc), severity="error", markup=False)
+            return
+        self.load_plan()
+
+    def action_change(self) -> None:
+        from benchwarden.tui.screens.modals import ChangeScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(ChangeScreen(self.state), self._changed)
+
+    def _changed(self, answer: tuple[Reading, str | None, dt.date | None] | None) -> None:
+        from benchwarden.tui.screens.modals import ConfirmScreen
+
+        if answer is None:
+            return
+        reading, label, retest = answer
+        try:
+            self.state.change_cylinder(reading, label, retest)
+        except BenchwardenError as exc:
+            self.notify(str(exc), title="Cylinder change", severity="error", timeout=10, markup=False)
+            return
+        self.load_plan()
+        self.app.push_screen(ConfirmScreen(f"New cylinder on {reading.supply_id} recorded. Check the new "
+                                           "connection for leaks now with a hold test? (Then purge the line "
+                                           "of air with p.)"),
+                             lambda yes: self.action_hold() if yes else None)
+
+    def action_purge(self) -> None:
+        from benchwarden.tui.screens.tools import PurgeScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(PurgeScreen(self.state))
+
+    def action_history(self) -> None:
+        from benchwarden.tui.screens.tools import HistoryScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(HistoryScreen(self.state))
+
+    def on_screen_resume(self) -> None:
+        # back from a tool (a hold test saved, a reading struck): the figures and findings follow
+        if self.state.plan is not None:
+            self.load_plan()
+
+    def _alerts(self, now: dt.datetime) -> None:
+        """Bell and banner for the alarms (the rule lives in the application layer); the bell
+        rings, and the journal gets a line, once per new alarm."""
+        st = self.state
+        alarms = st.alarms(now, {f.code for f in self._findings})
+        new = st.new_alarms(alarms, now, lambda f: describe(f, self.units)[0])
+        text = "   ▲ ".join(describe(a, self.units)[0] for a in alarms)
+        banner = self.query_one("#banner", Static)
+        self._set("banner", text, lambda v: banner.update(Text(f"▲ {v}" if v else "")))
+        banner.display = bool(alarms)
+        if new:
+            self.app.bell()
+
+    def action_reload(self) -> None:
+        self.reload_profile()
+
+    @work(thread=True, exclusive=True, group="plan")
+    def reload_profile(self) -> None:
+        try:
+            self.state.reload()
+        except BenchwardenError as exc:
+            self.app.call_from_thread(self.notify, f"{exc} — the profile loaded before stays in use.",
+                                      title="Profile not reloaded", severity="error", timeout=15)
+            return
+        self.app.call_from_thread(self.notify, "Profile reloaded", title="Profile")
+        self.app.call_from_thread(self._start_live)  # the sources may have changed
+        self.app.call_from_thread(self.refresh_view)
+
+    def action_graph(self) -> None:
+        from benchwarden.tui.screens.tools import GraphScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(GraphScreen(self.state))
+
+    def action_hold(self) -> None:
+        from benchwarden.tui.screens.tools import HoldScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(HoldScreen(self.state))
+
+    def action_oxygen(self) -> None:
+        from benchwarden.tui.screens.tools import RoomScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(RoomScreen(self.state))
+
+    def action_checklist(self) -> None:
+        from benchwarden.tui.screens.tools import ChecklistScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(ChecklistScreen(self.state))

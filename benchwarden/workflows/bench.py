@@ -1,0 +1,98 @@
+"""A bench with the journal's state: its plan, its last hold test and every finding.
+
+The command line (``plan``, ``checklist``), the app's overview and the checklist all ask
+:func:`assess` for the same :class:`Assessment`, so they show the same findings.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+
+from benchwarden import gas as g
+from benchwarden import room as rm
+from benchwarden.errors import BenchwardenError, JournalError
+from benchwarden.journal import Journal
+from benchwarden.profile import Profile
+from benchwarden.units import Flow
+from benchwarden.workflows.build import build_plan, full_mass, largest_supply
+from benchwarden.workflows.cylinder import (
+    OrderBy,
+    consumption,
+    journal_profile,
+    order_by,
+    record_idle_drops,
+)
+from benchwarden.workflows.findings import Finding, life_findings, live_findings, ranked
+from benchwarden.workflows.holds import LastHold, hold_finding, last_hold_test
+from benchwarden.workflows.model import Observed, Plan
+
+__all__ = ["Assessment", "assess", "findings_of", "journal_state", "largest_supply", "leak_volume_flow"]
+
+
+def leak_volume_flow(prof: Profile, flow: Flow) -> float:
+    """An extra leak [m³/s at room conditions] of the largest supply's gas into the room."""
+    return rm.leak_volume_flow(largest_supply(prof).gas, flow, prof.ambient.temperature, prof.ambient_pa)
+
+
+@dataclass(frozen=True)
+class Assessment:
+    """A bench at one moment: its plan, its latest hold test, and all findings ranked."""
+
+    plan: Plan
+    last_hold: LastHold | None
+    findings: tuple[Finding, ...]
+    orders: Mapping[str, OrderBy] = field(default_factory=dict)
+
+
+def findings_of(plan: Plan, last_hold: LastHold | None, observed: Mapping[str, Observed] | None = None,
+                session_end: dt.datetime | None = None, running: bool = False) -> tuple[Finding, ...]:
+    """Every finding of a bench: the plan's, the hold test's and, in a running session, the live ones."""
+    out = list(plan.findings) + hold_finding(last_hold)
+    if running:
+        out += live_findings(plan, observed or {}, session_end)
+    return tuple(ranked(out))
+
+
+def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | None = None,
+           extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None,
+           observed: Mapping[str, Observed] | None = None, session_end: dt.datetime | None = None,
+           running: bool = False) -> Assessment:
+    """Plan the bench as the journal records it (each supply's latest reading or fill, see
+    :func:`benchwarden.workflows.cylinder.journal_profile`), turn new idle drops into hold tests,
+    and judge it with the latest hold test."""
+    now = now or dt.datetime.now().astimezone().replace(second=0, microsecond=0)
+    prof = journal_state(prof, journal, now)
+    plan = build_plan(prof, now=now, extra_leak_m3_s=extra_leak_m3_s, start_at=start_at)
+    last = last_hold_test(journal, prof.bench.name, now)
+    orders = orders_of(prof, plan, journal, now)
+    extra = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
+    return Assessment(plan, last, tuple(ranked(list(findings_of(plan, last, observed, session_end, running))
+                                               + extra)), orders)
+
+
+def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.datetime) -> dict[str, OrderBy]:
+    """For every supply: the journal's consumption and the date to order the next cylinder."""
+    out: dict[str, OrderBy] = {}
+    for sp in plan.supplies:
+        s = prof.supply(sp.id)
+        try:
+            reserve_kg = g.density(s.gas, sp.temperature_k, sp.reserve_abs_pa) * s.water_volume
+        except BenchwardenError:
+            reserve_kg = 0.0
+        full_usable = max(0.0, full_mass(prof, s) - reserve_kg)
+        out[sp.id] = order_by(prof, sp.usable_mass_kg, consumption(journal, prof, sp.id), sp.id, now, full_usable)
+    return out
+
+
+def journal_state(prof: Profile, journal: Journal | None, now: dt.datetime) -> Profile:
+    """The profile as the journal records it, after storing any new idle-drop hold tests (a
+    journal that cannot be written still gives its state)."""
+    jprof = journal_profile(prof, journal)
+    if journal is not None:
+        try:
+            record_idle_drops(journal, jprof, now)
+        except JournalError:
+            pass
+    return jprof

@@ -1,0 +1,365 @@
+"""Build the session plan of a bench profile (records in :mod:`benchwarden.workflows.model`,
+whose docstring gives the method summary; findings from :mod:`benchwarden.workflows.findings`).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import datetime as dt
+import math
+from typing import Any
+
+from benchwarden import flow as fl
+from benchwarden import gap as gp
+from benchwarden import gas as g
+from benchwarden import regulator as rg
+from benchwarden import room as rm
+from benchwarden import supply as sp
+from benchwarden.errors import BenchwardenError
+from benchwarden.profile import Draw, Profile, Supply
+from benchwarden.tables import DensityTable
+from benchwarden.units import ATM_PA, REFERENCES, T0_K
+from benchwarden.workflows import findings as fd
+from benchwarden.workflows.model import (
+    PROJECTION_POINTS,
+    DrawPlan,
+    GapPlan,
+    Observed,
+    Plan,
+    RegulatorPlan,
+    RoomPlan,
+    SupplyPlan,
+)
+
+__all__ = ["build_plan", "observed_draw", "SupplyModel"]
+
+
+# ----------------------------------------------------------------------------- helpers
+
+
+def _supply_T(prof: Profile, s: Supply) -> float:
+    return s.reading_temperature if s.reading_temperature is not None else prof.ambient.temperature
+
+
+def _is_liquefied(gas: g.Gas, T: float, p: float | None = None) -> bool:
+    """A gas sold liquefied below its critical temperature holds liquid, unless a reading
+    well below its vapour pressure says only vapour is left (:func:`benchwarden.gas.is_liquefied`)."""
+    if p is not None:
+        return g.is_liquefied(gas, T, p)
+    return gas.sold_liquefied and T < g.critical_temperature(gas)
+
+
+class SupplyModel:
+    """Mass ↔ pressure of one supply at constant temperature (table-based, see module doc)."""
+
+    def __init__(self, gas: g.Gas, V: float, T: float, p_hi: float, ambient: float,
+                 p_now: float | None = None) -> None:
+        self.gas, self.V, self.T = gas, V, T
+        self.liquefied = _is_liquefied(gas, T, p_now)
+        self.p_sat = g.saturation_pressure(gas, T) if self.liquefied else math.inf
+        top = min(p_hi, self.p_sat * 0.999)
+        self.table = DensityTable(gas, min(ambient * 0.5, top * 0.5), top, T, T)
+        self.rho_vsat = g.density(gas, T, self.p_sat * 0.999) if self.liquefied else math.inf
+
+    def mass_at(self, p: float) -> float:
+        return float(self.table.density([p], self.T)[0]) * self.V if p < self.p_sat * 0.999 else math.nan
+
+    def pressures(self, masses: Any) -> Any:
+        import numpy as np
+
+        rho = np.clip(np.asarray(masses, dtype=float) / self.V, 1e-9, None)
+        p = self.table.pressure(rho, self.T)
+        if self.liquefied:
+            p = np.where(rho >= self.rho_vsat, self.p_sat, p)
+        return p
+
+
+#: Beyond this a time to reserve is "not within a year": no clock time is given (benchwarden rule).
+HORIZON_HOURS = 24.0 * 366
+
+
+def _clock_after(t0: dt.datetime, hours: float) -> str | None:
+    """The clock time ``hours`` after ``t0``, or None when it is not finite or beyond a year."""
+    if not math.isfinite(hours) or hours > HORIZON_HOURS:
+        return None
+    return (t0 + dt.timedelta(hours=max(hours, 0.0))).isoformat(timespec="minutes")
+
+
+def _draw_rate(prof: Profile, d: Draw) -> float | None:
+    return d.repetition_rate if d.repetition_rate is not None else prof.session.repetition_rate
+
+
+def _draw_flow(prof: Profile, d: Draw, gas: g.Gas, outlet_abs: float) -> tuple[float, str, bool | None]:
+    amb, T = prof.ambient_pa, prof.ambient.temperature
+    if d.flow is not None:
+        return sp.mass_flow(gas, d.flow), d.flow.describe(), None
+    if d.per_shot is not None:
+        rate = _draw_rate(prof, d) or 0.0
+        m = fl.per_shot_mass_flow(gas, d.per_shot, outlet_abs, T, rate)
+        return m, f"{d.per_shot * 1e6:g} cm³ per shot at the outlet pressure × {rate:g} Hz", None
+    if d.orifice is not None:
+        if outlet_abs <= d.orifice.downstream.abs_at(amb):
+            return 0.0, f"orifice {d.orifice.diameter * 1000:g} mm: no flow (outlet at or below downstream)", None
+        o = fl.orifice_flow(gas, d.orifice.diameter, outlet_abs, d.orifice.downstream.abs_at(amb), T, d.orifice.cd)
+        return o.mass_flow_kg_s, f"orifice {d.orifice.diameter * 1000:g} mm, Cd {d.orifice.cd:g} ({'choked' if o.choked else 'subcritical'})", o.choked
+    assert d.valve is not None
+    if outlet_abs <= d.valve.downstream.abs_at(amb):
+        return 0.0, f"valve Kv {d.valve.kv_value:g}: no flow (outlet at or below downstream)", None
+    v = fl.valve_flow(gas, d.valve.kv_value, outlet_abs, d.valve.downstream.abs_at(amb), T, d.valve.xt)
+    return v.mass_flow_kg_s, f"valve Kv {d.valve.kv_value:g} (IEC 60534{', choked' if v.choked else ''})", v.choked
+
+
+# ----------------------------------------------------------------------------- main
+
+
+def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJECTION_POINTS,
+               extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None) -> Plan:
+    """Compute the session plan of a bench profile (see module docstring for the methods).
+
+    The clock times count from ``start_at`` when given (a running session), else from the
+    profile's planned start time today, else from ``now``."""
+    import numpy as np
+
+    amb = prof.ambient_pa
+    T_amb = prof.ambient.temperature
+    session_h = prof.session.duration / 3600.0
+    now = now or dt.datetime.now().astimezone().replace(second=0, microsecond=0)
+    start = start_at or now
+    if start_at is None and prof.session.start:
+        hh, mm = (int(x) for x in prof.session.start.split(":"))
+        start = now.replace(hour=hh, minute=mm)
+    ref = REFERENCES["15C"]
+
+    # -- regulators: outlet at start
+    reg_plans: dict[str, RegulatorPlan] = {}
+    supply_models: dict[str, SupplyModel] = {}
+    supply_state: dict[str, tuple[float, float, float]] = {}  # p_now, T, mass_now
+    for s in prof.supplies:
+        gas = s.gas
+        T = _supply_T(prof, s)
+        liquefied = _is_liquefied(gas, T, None if s.reading is None else s.reading.abs_at(amb))
+        if liquefied:
+            p_now = g.saturation_pressure(gas, T)
+        else:
+            assert s.reading is not None
+            p_now = s.reading.abs_at(amb)
+        model = SupplyModel(gas, s.water_volume, T, max(p_now, s.service_pressure.abs_at(amb)) * 1.02, amb,
+                             None if s.reading is None else p_now)
+        supply_models[s.id] = model
+        if liquefied:
+            if s.gross is None or s.tare is None:
+                mass_now = model.rho_vsat * s.water_volume
+            else:
+                mass_now = s.gross - s.tare
+        else:
+            mass_now = g.density(gas, T, p_now) * s.water_volume
+        supply_state[s.id] = (p_now, T, mass_now)
+
+    for r in prof.regulators:
+        s = prof.supply(r.supply)
+        p_now, T, _ = supply_state[s.id]
+        set_abs = r.set_point.abs_at(amb)
+        res_abs = s.reserve.abs_at(amb)
+        hot = _hot_day_pressure(s, prof, p_now, T)
+        # a regulator reduces pressure only while its inlet is above its set point; below that it
+        # stands wide open and its outlet follows the cylinder down (and the gaps' voltage with it)
+        regulating = p_now > set_abs * (1.0 + 1e-9)
+        outlet = set_abs if regulating else p_now
+        out_res = min(rg.outlet_drift(set_abs, p_now, res_abs, r.effects), res_abs)
+        if regulating:
+            th = rg.throttle(s.gas, p_now, set_abs, T, saturated_vapour=supply_models[s.id].liquefied)
+            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.notes
+        else:
+            t_out, solid, liquid, notes = T, False, False, ()
+        reg_plans[r.id] = RegulatorPlan(r.id, s.id, r.stages, p_now, set_abs, out_res, t_out, solid, liquid, notes,
+                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet)
+
+    # -- draws
+    draw_plans: list[DrawPlan] = []
+    for d in prof.draws:
+        r = prof.regulator(d.regulator)
+        s = prof.supply(r.supply)
+        rp = reg_plans[r.id]
+        mdot, how, choked = _draw_flow(prof, d, s.gas, rp.outlet_abs_pa)
+        rho_std = g.density(s.gas, T0_K, ATM_PA)
+        gap_plan = None
+        if d.kind == "gap" and d.spacing is not None:
+            b0 = gp.breakdown(s.gas, d.spacing, rp.outlet_abs_pa, T_amb)
+            b1 = gp.breakdown(s.gas, d.spacing, rp.outlet_at_reserve_abs_pa, T_amb)
+            m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
+                       for x in d.exposed)
+            m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
+                       for x in d.exposed)
+            gap_plan = GapPlan(d.spacing, b0.breakdown_kv, b1.breakdown_kv, b0.method, b0.validity, m0, m1,
+                               b0.within_validity and b1.within_validity, max(b0.pd_bar_cm_20c, b1.pd_bar_cm_20c))
+        draw_plans.append(DrawPlan(d.id, d.kind, r.id, s.id, how, mdot, mdot / rho_std * 60e3, d.vents_to_room,
+                                   choked, _draw_rate(prof, d), gap_plan))
+
+    # -- supplies
+    supply_plans: list[SupplyPlan] = []
+    for s in prof.supplies:
+        p_now, T, mass_now = supply_state[s.id]
+        model = supply_models[s.id]
+        res_abs = s.reserve.abs_at(amb)
+        mass_res = model.mass_at(res_abs)
+        if math.isnan(mass_res):  # reserve above the vapour pressure of a liquefied gas
+            mass_res = model.rho_vsat * s.water_volume
+        usable = max(0.0, mass_now - mass_res)
+        draws_here = [dp for dp in draw_plans if dp.supply_id == s.id]
+        mdot = sum(dp.mass_flow_kg_s for dp in draws_here)
+        hours = usable / mdot / 3600.0 if mdot > 0 else math.inf
+        band = (hours, hours)
+        if s.gauge is not None and not model.liquefied and mdot > 0:
+            mpe = s.gauge.accuracy_class / 100.0 * s.gauge.range.typed_pa
+            lo_p, hi_p = max(p_now - mpe, res_abs * 1.0001), p_now + mpe
+            h_lo = max(0.0, (model.mass_at(lo_p) - mass_res) / mdot / 3600.0)
+            h_hi = max(0.0, (model.mass_at(hi_p) - mass_res) / mdot / 3600.0)
+            band = (h_lo, h_hi)
+        reserve_at = _clock_after(start, hours)
+        rates = [dp.rate_hz for dp in draws_here if dp.rate_hz]
+        shots = hours * 3600.0 * max(rates) if rates and math.isfinite(hours) else None
+        cost = None
+        if s.fill_price is not None:
+            if model.liquefied and s.gross is not None and s.tare is not None:
+                full = s.gross - s.tare
+            else:
+                full = g.density(s.gas, 288.15, s.service_pressure.abs_at(amb)) * s.water_volume
+            cost = s.fill_price / full * mdot * 3600.0
+        fits = hours >= session_h
+        # projection
+        t_h = np.linspace(0.0, session_h, points)
+        masses = np.clip(mass_now - mdot * t_h * 3600.0, 1e-6 * max(mass_now, 1e-9), None)
+        p_proj = model.pressures(masses)
+        outlets: dict[str, tuple[float, ...]] = {}
+        gap_kv: dict[str, tuple[float, ...]] = {}
+        for r in prof.regulators:
+            if r.supply != s.id:
+                continue
+            rp = reg_plans[r.id]
+            o = rp.set_point_abs_pa + rp.effect_total * (p_now - p_proj)
+            outlets[r.id] = tuple(float(x) for x in o)
+            for dp in draw_plans:
+                if dp.regulator_id == r.id and dp.gap is not None:
+                    gap_kv[dp.id] = tuple(float(x) for x in gp.breakdown_series(s.gas, dp.gap.spacing_m, o, T_amb))
+        fv = sp.free_volume(s.gas, mass_now, ref) if mass_now > 0 else 0.0
+        supply_plans.append(SupplyPlan(
+            s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
+            band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
+            tuple(float(x) for x in p_proj), outlets, gap_kv))
+    room_plan = _room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s)
+    fits = all(sp_.fits_session or sp_.draw_kg_s == 0 for sp_ in supply_plans)
+    plan = Plan(prof.bench.name, amb, T_amb, session_h, start.isoformat(timespec="minutes"), tuple(supply_plans),
+                tuple(reg_plans.values()), tuple(draw_plans), room_plan, (), fits)
+    return dataclasses.replace(plan, findings=tuple(fd.plan_findings(prof, plan)))
+
+
+def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float:
+    """Supply pressure on the profile's hot day: isochoric heat-up of the gas (real gas), or for
+    a liquefied gas its vapour pressure — above the critical temperature the pressure of the
+    whole fill at its mean density (steep: this is why fill ratios are regulated)."""
+    hot = prof.ambient.hot_day
+    if not _is_liquefied(s.gas, T, p_now):
+        return sp.heat_up(s.gas, p_now, T, hot, prof.ambient_pa).pressure_abs_pa
+    if _is_liquefied(s.gas, hot):
+        return g.saturation_pressure(s.gas, hot)
+    if s.gross is None or s.tare is None:
+        return math.inf
+    return g.pressure_from_density(s.gas, (s.gross - s.tare) / s.water_volume, hot)
+
+
+def _room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
+               extra_leak_m3_s: float) -> RoomPlan | None:
+    if prof.room is None:
+        return None
+    room = prof.room
+    T, amb = prof.ambient.temperature, prof.ambient_pa
+    Q = room.ventilation.m3_s(room.volume) if room.ventilation else 0.0
+    vented = extra_leak_m3_s
+    by_id = {s.id: s for s in prof.supplies}
+    for dp in draws:
+        if dp.vents_to_room:
+            vented += dp.mass_flow_kg_s / g.density(by_id[dp.supply_id].gas, T, amb)
+    notes: list[str] = []
+    leak = rm.leak_o2(room.volume, vented, Q, room.ventilation_kind, room.oxygen_percent) if vented > 0 else None
+    # largest supply released at once
+    biggest = max(supplies, key=lambda x: x.free_volume_m3)
+    gas = by_id[biggest.id].gas
+    vg = biggest.mass_kg / g.density(gas, T, amb)
+    rel = rm.release(room.volume, vg, "displacement", room.oxygen_percent)
+    rel_mixed = rm.release(room.volume, vg, "mixed", room.oxygen_percent)
+    notes.append(rm.stratification_note(gas))
+    # the safety case: the largest supply full, released at once; and every supply kept in the room
+    full = {s.id: full_mass(prof, s) for s in prof.supplies}
+    largest = largest_supply(prof)
+    v_full = {sid: m / g.density(by_id[sid].gas, T, amb) for sid, m in full.items() if m > 0}
+    worst = rm.release(room.volume, v_full.get(largest.id, vg), "displacement", room.oxygen_percent)
+    every = rm.release(room.volume, sum(v_full.values()) or vg, "displacement", room.oxygen_percent)
+    return RoomPlan(room.volume, Q, room.ventilation_kind, vented, leak, biggest.id, rel, rel_mixed, tuple(notes),
+                    worst, largest.id, every)
+
+
+def full_mass(prof: Profile, s: Supply) -> float:
+    """Mass [kg] of a supply when full: its fill weight (gross − tare) for a gas weighed in, else
+    the real-gas mass at its service pressure and 15 °C (the rating temperature)."""
+    if s.gross is not None and s.tare is not None:
+        return s.gross - s.tare
+    try:
+        return g.density(s.gas, 288.15, s.service_pressure.abs_at(prof.ambient_pa)) * s.water_volume
+    except BenchwardenError:
+        return 0.0
+
+
+def largest_supply(prof: Profile) -> Supply:
+    """The supply that holds the most gas when full: the one a room assessment assumes escapes."""
+    return max(prof.supplies, key=lambda s: full_mass(prof, s))
+
+
+# ----------------------------------------------------------------------------- observed draw
+
+
+def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s: float,
+                  readings: list[tuple[dt.datetime, float, float]], u_p: float = 0.0, supply_id: str = "",
+                  ) -> Observed | None:
+    """Fit the real-gas mass against time from (time, p_abs, T) readings by least squares.
+
+    Mass per reading m = ρ(T, p)·V (CoolProp HEOS); the slope's uncertainty combines the fit's
+    standard error (numpy ``polyfit`` covariance, with two readings none) and the gauge's
+    reading uncertainty ``u_p`` on the first and last reading (GUM). ``faster_than_planned``
+    when the observed draw exceeds the plan by more than twice that uncertainty.
+    Returns None with fewer than two readings or no elapsed time.
+    """
+    import numpy as np
+
+    if len(readings) < 2:
+        return None
+    t0 = readings[0][0]
+    t = np.array([(r[0] - t0).total_seconds() for r in readings])
+    if t[-1] - t[0] <= 0:
+        return None
+    m = np.array([g.density(gas, T, p) * volume_m3 for _, p, T in readings])
+    if len(t) >= 3:
+        coef, cov = np.polyfit(t, m, 1, cov="unscaled")
+        resid = m - np.polyval(coef, t)
+        s2 = float(resid @ resid) / (len(t) - 2) if len(t) > 2 else 0.0
+        se = math.sqrt(max(0.0, float(cov[0, 0]) * s2))
+        slope = float(coef[0])
+    else:
+        slope = float((m[-1] - m[0]) / (t[-1] - t[0]))
+        se = 0.0
+    span = float(t[-1] - t[0])
+    p_last, T_last = readings[-1][1], readings[-1][2]
+    dp = max(p_last * 1e-5, 1.0)
+    dmdp = (g.density(gas, T_last, p_last + dp) - g.density(gas, T_last, p_last - dp)) * volume_m3 / (2 * dp)
+    u = math.hypot(se, math.sqrt(2.0) * dmdp * u_p / span)
+    draw = -slope
+    m_now = float(m[-1])
+    m_res = g.density(gas, T_last, reserve_abs) * volume_m3
+    hours = (m_now - m_res) / draw / 3600.0 if draw > 0 else math.inf
+    at = _clock_after(readings[-1][0], hours)
+    # the fitted line as pressures at the first and last reading (for plots)
+    fitted = [float(m[0] + slope * 0.0), float(m[0] + slope * span)] if len(t) < 3 else \
+        [float(np.polyval(coef, t[0])), float(np.polyval(coef, t[-1]))]
+    fit_p = tuple(g.pressure_from_density(gas, max(x, 1e-9) / volume_m3, T_last) for x in fitted)
+    fit_at = (readings[0][0].isoformat(timespec="seconds"), readings[-1][0].isoformat(timespec="seconds"))
+    return Observed(supply_id, len(readings), draw, u, planned_kg_s, draw - planned_kg_s > 2.0 * u, m_now,
+                    max(hours, 0.0), at, "least-squares fit of real-gas mass vs time (CoolProp HEOS)", fit_at, fit_p)

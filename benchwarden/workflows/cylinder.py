@@ -1,0 +1,444 @@
+"""A cylinder's whole life, with the journal as the record.
+
+The profile holds the bench's design and the first fill; the journal holds what happened
+since: readings (in a session or idle), struck readings, cylinder changes and hold tests.
+
+* :func:`journal_profile` — the profile with each supply's state from the journal: the last
+  reading not struck out since the last cylinder change, else that change's fill — or the
+  latest live sample of its transducer when that is newer (:func:`latest_state`).
+* :func:`check_reading` — a typed reading against the supply's limits, and the questions an
+  implausible one raises (a rise without a change, a drop far faster than planned, a unit that
+  looks swapped), each a code with numbers for the interfaces to ask.
+* :func:`record_reading`, :func:`record_change` — write them (journal first).
+* :func:`idle_drops` — two readings of a supply that bracket a time with no session and no
+  change form an idle drop; :func:`record_idle_drops` turns each into a hold test (the same
+  method, budget and record as ``hold``), stored once.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+import math
+from dataclasses import dataclass, field
+
+from benchwarden import gas as g
+from benchwarden import hold as hd
+from benchwarden.errors import InputError, JournalError
+from benchwarden.journal import ChangeRow, Journal, ReadingRow
+from benchwarden.profile import Profile, Supply, with_reading, with_weight
+from benchwarden.quantities import check_text
+from benchwarden.samples import SampleStore
+from benchwarden.units import PSI_PA, Pressure, fmt_pressure
+from benchwarden.workflows.holds import (
+    HoldRecord,
+    profile_gauge_spec,
+    record_of,
+    store,
+    supply_target_sccm,
+)
+
+__all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
+           "record_reading", "record_change", "IdleDrop", "idle_drops", "record_idle_drops", "parse_at"]
+
+#: Temperatures a cylinder reading may carry [K] (−73 °C to 77 °C): beyond, the unit slipped.
+READING_T_RANGE = (200.0, 350.0)
+#: A drop this many times faster than planned asks for confirmation (benchwarden rule).
+FAST_DROP_FACTOR = 5.0
+
+
+def _dt(text: str) -> dt.datetime:
+    return dt.datetime.fromisoformat(text)
+
+
+def parse_at(text: str | None, now: dt.datetime) -> dt.datetime:
+    """A time a person typed: ``None``/``now``, ``HH:MM`` (today; yesterday when that is more
+    than an hour ahead, so 23:55 typed at 00:10 is last night), or an ISO date-time."""
+    t = (text or "").strip().lower()
+    if t in ("", "now"):
+        return now
+    try:
+        if len(t) <= 8 and ":" in t and "-" not in t:
+            parts = [int(x) for x in t.split(":")]
+            if len(parts) not in (2, 3):
+                raise ValueError
+            hh, mm, ss = (parts + [0])[:3]
+            at = now.replace(hour=hh, minute=mm, second=ss, microsecond=0)
+            if at > now + dt.timedelta(hours=1):
+                at -= dt.timedelta(days=1)
+        else:
+            at = dt.datetime.fromisoformat((text or "").strip())
+            if at.tzinfo is None:
+                at = at.replace(tzinfo=now.tzinfo)
+    except ValueError:
+        raise InputError(f"time {text!r}: use HH:MM, an ISO date-time (2026-12-01T09:30) or 'now'") from None
+    if at > now + dt.timedelta(minutes=1):
+        raise InputError(f"time {text} is in the future")
+    return at
+
+
+def current_change(journal: Journal | None, bench: str, supply_id: str) -> ChangeRow | None:
+    """The latest cylinder change of the supply, or None (still the profile's first fill)."""
+    if journal is None:
+        return None
+    rows = journal.changes(bench, supply_id)
+    return rows[-1] if rows else None
+
+
+def readings_since_change(journal: Journal | None, bench: str, supply_id: str,
+                          include_struck: bool = False) -> list[ReadingRow]:
+    """The supply's readings on its current cylinder (after the latest change), oldest first."""
+    if journal is None:
+        return []
+    change = current_change(journal, bench, supply_id)
+    rows = journal.supply_readings(bench, supply_id)
+    if change is not None:
+        rows = [r for r in rows if r.at >= change.at]
+    return [r for r in rows if include_struck or not r.struck]
+
+
+def _apply(prof: Profile, s: Supply, pressure_abs: float | None, weight: float | None, T: float | None,
+           text: str) -> Profile:
+    T = T if T is not None else (s.reading_temperature or prof.ambient.temperature)
+    if weight is not None:
+        prof = with_weight(prof, s.id, weight)
+        if pressure_abs is None:
+            return prof.model_copy(update={"supplies": [
+                x.model_copy(update={"reading_temperature": T}) if x.id == s.id else x for x in prof.supplies]})
+    if pressure_abs is not None:
+        prof = with_reading(prof, s.id, Pressure("absolute", pressure_abs, text), T)
+    return prof
+
+
+@dataclass(frozen=True)
+class LatestSample:
+    at: dt.datetime
+    pressure_abs_pa: float
+    temperature_k: float | None
+    text: str
+
+
+def latest_state(journal: Journal | None, prof: Profile, supply_id: str,
+                 tz: dt.tzinfo | None = None) -> LatestSample | None:
+    """The supply's latest good pressure sample (with the latest temperature sample of the
+    supply or the room), or None."""
+    if journal is None:
+        return None
+    store = SampleStore(journal)
+    try:
+        sid = store.stream(prof.bench.name, supply_id, "pressure")
+        got = store.latest(sid) if sid is not None else None
+        if got is None:
+            return None
+        temp = None
+        for owner in (supply_id, "room"):
+            tid = store.stream(prof.bench.name, owner, "temperature")
+            last = store.latest(tid) if tid is not None else None
+            if last is not None:
+                temp = last[1]
+                break
+    except JournalError:
+        return None
+    return LatestSample(dt.datetime.fromtimestamp(got[0], tz).replace(microsecond=0), got[1], temp, fmt_pressure(got[1], prof.ambient_pa))
+
+
+
+def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
+    """The profile with every supply's state from the journal (see module docstring)."""
+    if journal is None:
+        return prof
+    for s in prof.supplies:
+        rows = readings_since_change(journal, prof.bench.name, s.id)
+        change = current_change(journal, prof.bench.name, s.id)
+        if change is not None:
+            prof = _apply(prof, s, change.pressure_abs_pa, change.weight_kg, change.temperature_k,
+                          change.pressure_text or "")
+        last_p = next((r for r in reversed(rows) if r.pressure_abs_pa is not None), None)
+        last_w = next((r for r in reversed(rows) if r.weight_kg is not None), None)
+        if last_w is not None:
+            prof = _apply(prof, s, None, last_w.weight_kg, last_w.temperature_k, "")
+        if last_p is not None:
+            prof = _apply(prof, s, last_p.pressure_abs_pa, None, last_p.temperature_k, last_p.pressure_text)
+        live = latest_state(journal, prof, s.id)
+        if live is not None and not (s.gas.sold_liquefied and s.gross is not None) and _newer(live, last_p, change):
+            prof = _apply(prof, s, live.pressure_abs_pa, None, live.temperature_k, live.text)
+    return prof
+
+
+def _newer(live: LatestSample, last_p: ReadingRow | None, change: ChangeRow | None) -> bool:
+    """Whether a live sample is newer than the latest pressure reading and cylinder change."""
+    newest = max([_dt(x) for x in (last_p.at if last_p else None, change.at if change else None) if x], default=None)
+    at = live.at if newest is None or newest.tzinfo is not None else live.at.replace(tzinfo=None)
+    return newest is None or at > newest
+
+
+def live_is_state(journal: Journal | None, prof: Profile, supply_id: str, live: LatestSample) -> bool:
+    """Whether the supply's state is its live sample (see :func:`journal_profile`)."""
+    rows = readings_since_change(journal, prof.bench.name, supply_id)
+    last_p = next((r for r in reversed(rows) if r.pressure_abs_pa is not None), None)
+    return _newer(live, last_p, current_change(journal, prof.bench.name, supply_id))
+
+
+# ----------------------------------------------------------------------------- readings
+
+
+@dataclass(frozen=True)
+class Entry:
+    """A reading or a fill a person typed, checked and converted (SI)."""
+
+    supply_id: str
+    at: dt.datetime
+    temperature_k: float
+    pressure_abs_pa: float | None = None
+    pressure_text: str = ""
+    weight_kg: float | None = None
+
+
+@dataclass(frozen=True)
+class Question:
+    """Something implausible about an entry, to confirm before it is recorded."""
+
+    code: str  # "rise-without-change" | "fast-drop" | "unit-swapped"
+    values: dict[str, float | str] = field(default_factory=dict)
+
+
+def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_kg_s: float | None = None,
+                  ) -> list[Question]:
+    """Check an entry against the supply's limits (raises :class:`InputError`) and return the
+    questions an implausible one raises (empty: record it)."""
+    s = prof.supply(entry.supply_id)
+    amb = prof.ambient_pa
+    if not READING_T_RANGE[0] < entry.temperature_k < READING_T_RANGE[1]:
+        raise InputError(f"cylinder temperature {entry.temperature_k - 273.15:.1f} °C is outside −73 °C to 77 °C; "
+                         "check the unit")
+    if entry.pressure_abs_pa is not None:
+        p = entry.pressure_abs_pa
+        if s.test_pressure is not None and p > s.test_pressure.abs_at(amb):
+            raise InputError(f"{entry.pressure_text or 'the reading'} is above the cylinder's test pressure "
+                             f"{s.test_pressure.text}: check the gauge and the unit")
+        if s.gauge is not None and p > s.gauge.range.abs_at(amb) * 1.0001:
+            raise InputError(f"{entry.pressure_text or 'the reading'} is above the gauge range {s.gauge.range.text}")
+    if entry.weight_kg is not None:
+        if s.tare is None:
+            raise InputError(f"supply {s.id} has no tare weight in the profile: a weight reading needs it")
+        if entry.weight_kg < s.tare:
+            raise InputError(f"weight {entry.weight_kg:g} kg is below the tare weight {s.tare:g} kg of {s.id}")
+    rows = [r for r in readings_since_change(journal, prof.bench.name, s.id) if r.pressure_abs_pa is not None]
+    if entry.pressure_abs_pa is None or not rows:
+        return []
+    prev = max((r for r in rows if _dt(r.at) <= entry.at), key=lambda r: r.at, default=None)
+    if prev is None or prev.pressure_abs_pa is None:
+        return []
+    out: list[Question] = []
+    p0, p1 = prev.pressure_abs_pa, entry.pressure_abs_pa
+    gauge = profile_gauge_spec(s.gauge)
+    tol = 2.0 * gauge.u_reading_pa * math.sqrt(2.0) if gauge is not None else 0.005 * p0
+    # a warmer cylinder reads higher: allow the isochoric rise of the temperature difference
+    warm = 0.0
+    if entry.temperature_k > prev.temperature_k:
+        try:
+            warm = g.pressure_from_density(s.gas, g.density(s.gas, prev.temperature_k, p0), entry.temperature_k) - p0
+        except Exception:  # noqa: BLE001 - outside the equation of state: no allowance
+            warm = 0.0
+    if p1 > p0 + tol + warm:
+        out.append(Question("rise-without-change", {"previous_abs_pa": p0, "pressure_abs_pa": p1,
+                                                    "previous_at": prev.at}))
+    ratio = (p1 - amb) / (p0 - amb) if p0 - amb > 0 else math.nan
+    if math.isfinite(ratio) and (abs(ratio - PSI_PA / 1e5) < 0.1 * PSI_PA / 1e5
+                                 or abs(ratio - 1e5 / PSI_PA) < 0.1 * 1e5 / PSI_PA):
+        out.append(Question("unit-swapped", {"previous_abs_pa": p0, "pressure_abs_pa": p1, "ratio": ratio}))
+    hours = (entry.at - _dt(prev.at)).total_seconds() / 3600.0
+    if planned_kg_s and planned_kg_s > 0 and hours > 0 and p1 < p0 - tol:
+        T = entry.temperature_k
+        lost = (g.density(s.gas, T, p0) - g.density(s.gas, T, p1)) * s.water_volume
+        rate = lost / (hours * 3600.0)
+        if rate > FAST_DROP_FACTOR * planned_kg_s:
+            out.append(Question("fast-drop", {"previous_abs_pa": p0, "pressure_abs_pa": p1, "hours": hours,
+                                              "observed_kg_s": rate, "planned_kg_s": planned_kg_s}))
+    return out
+
+
+def record_reading(journal: Journal, prof: Profile, entry: Entry, session_id: int | None, now: dt.datetime) -> int:
+    """Write a checked reading to the journal (in a session, or idle)."""
+    return journal.add_reading(session_id, entry.supply_id, entry.at.isoformat(timespec="seconds"),
+                               entry.pressure_abs_pa, entry.pressure_text or (
+                                   f"{entry.weight_kg:g} kg" if entry.weight_kg is not None else ""),
+                               entry.temperature_k, now.isoformat(timespec="seconds"), bench=prof.bench.name,
+                               weight_kg=entry.weight_kg, ambient_pa=prof.ambient_pa)
+
+
+def record_change(journal: Journal, prof: Profile, entry: Entry, now: dt.datetime, label: str | None = None,
+                  retest_due: dt.date | None = None) -> int:
+    """Write a cylinder change (fits, draws and hold tests never straddle it) and the new fill
+    as the new cylinder's first reading."""
+    s = prof.supply(entry.supply_id)
+    if entry.weight_kg is not None and s.tare is None:
+        raise InputError(f"supply {s.id} has no tare weight in the profile: a fill by weight needs it")
+    label = check_text(label, "cylinder label", 60) or None if label else None
+    cid = journal.add_change(prof.bench.name, entry.supply_id, entry.at.isoformat(timespec="seconds"),
+                              now.isoformat(timespec="seconds"), entry.pressure_abs_pa, entry.pressure_text or None,
+                              entry.weight_kg, entry.temperature_k, label,
+                              retest_due.isoformat() if retest_due else None)
+    running = journal.unfinished_session(prof.bench.name)
+    record_reading(journal, prof, entry, running.id if running else None, now)
+    return cid
+
+
+# ----------------------------------------------------------------------------- idle drops
+
+
+@dataclass(frozen=True)
+class IdleDrop:
+    """Two readings of a supply with no session and no cylinder change between them."""
+
+    supply_id: str
+    first: ReadingRow
+    last: ReadingRow
+
+    @property
+    def key(self) -> str:
+        return f"{self.first.id}-{self.last.id}"
+
+
+def _in_session(journal: Journal, bench: str, a: dt.datetime, b: dt.datetime, now: dt.datetime) -> bool:
+    for s in journal.bench_sessions(bench):
+        start = _dt(s.started_at)
+        stop = _dt(s.stopped_at) if s.stopped_at else now
+        if start < b and stop > a:
+            return True
+    return False
+
+
+def idle_drops(journal: Journal | None, prof: Profile, supply_id: str, now: dt.datetime) -> list[IdleDrop]:
+    """Consecutive pressure readings of the supply's current cylinder that bracket a time with
+    no session running (readings taken in a session may open or close one)."""
+    if journal is None:
+        return []
+    rows = [r for r in readings_since_change(journal, prof.bench.name, supply_id) if r.pressure_abs_pa is not None]
+    out: list[IdleDrop] = []
+    for a, b in zip(rows, rows[1:], strict=False):
+        ta, tb = _dt(a.at), _dt(b.at)
+        if tb <= ta:
+            continue
+        # strictly inside the interval: a session that ended at the first reading or began at the last is fine
+        inner_a, inner_b = ta + dt.timedelta(seconds=1), tb - dt.timedelta(seconds=1)
+        if inner_b > inner_a and _in_session(journal, prof.bench.name, inner_a, inner_b, now):
+            continue
+        out.append(IdleDrop(supply_id, a, b))
+    return out
+
+
+def idle_drop_result(prof: Profile, drop: IdleDrop) -> hd.HoldResult:
+    """The hold test of an idle drop: :func:`benchwarden.hold.hold_two_readings` on the supply's
+    water volume, gas and gauge, temperature-compensated with the readings' temperatures."""
+    s = prof.supply(drop.supply_id)
+    assert drop.first.pressure_abs_pa is not None and drop.last.pressure_abs_pa is not None
+    amb = prof.ambient_pa
+    duration = (_dt(drop.last.at) - _dt(drop.first.at)).total_seconds()
+    return hd.hold_two_readings(s.gas, s.water_volume, drop.first.pressure_abs_pa, drop.last.pressure_abs_pa,
+                                duration, drop.first.temperature_k, drop.last.temperature_k,
+                                profile_gauge_spec(s.gauge), target_sccm=supply_target_sccm(s),
+                                reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
+
+
+def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) -> list[HoldRecord]:
+    """Turn every idle drop of every supply into a stored hold test (once each); returns the new
+    records."""
+    if journal is None:
+        return []
+    done = set()
+    for h in journal.hold_tests(prof.bench.name):
+        if h.kind == "idle-drop" and h.details:
+            try:
+                done.add(json.loads(h.details).get("idle_drop"))
+            except ValueError:
+                continue
+    new: list[HoldRecord] = []
+    for s in prof.supplies:
+        if s.gas.sold_liquefied and s.gross is not None:
+            continue  # a liquefied gas's pressure is its vapour pressure: no hold test from it
+        for drop in idle_drops(journal, prof, s.id, now):
+            if drop.key in done:
+                continue
+            r = idle_drop_result(prof, drop)
+            rec = record_of(r, _dt(drop.last.at), prof.bench.name, s.id, "idle-drop")
+            store(journal, rec, {"idle_drop": drop.key})
+            new.append(rec)
+    return new
+
+
+# ----------------------------------------------------------------------------- ordering
+
+
+@dataclass(frozen=True)
+class Consumption:
+    """A supply's consumption from the journal: real-gas mass per week, with its spread."""
+
+    supply_id: str
+    kg_per_week: float
+    spread_kg_per_week: float
+    intervals: int
+    days_covered: float
+
+
+def _mass_of(prof: Profile, s: Supply, r: ReadingRow) -> float | None:
+    if r.weight_kg is not None and s.tare is not None:
+        return r.weight_kg - s.tare
+    if r.pressure_abs_pa is None:
+        return None
+    try:
+        return g.density(s.gas, r.temperature_k, r.pressure_abs_pa) * s.water_volume
+    except Exception:  # noqa: BLE001 - outside the equation of state: the reading is skipped
+        return None
+
+
+def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consumption | None:
+    """Consumption per week from every pair of consecutive readings on the same cylinder (no
+    change between them, none struck): mass used over the time between, weighted by time; the
+    spread is the time-weighted standard deviation of the interval rates. None without at
+    least one interval."""
+    if journal is None:
+        return None
+    s = prof.supply(supply_id)
+    rows = [r for r in journal.supply_readings(prof.bench.name, supply_id) if not r.struck]
+    changes = [_dt(c.at) for c in journal.changes(prof.bench.name, supply_id)]
+    rates: list[tuple[float, float]] = []  # (kg/s, seconds)
+    for a, b in zip(rows, rows[1:], strict=False):
+        ta, tb = _dt(a.at), _dt(b.at)
+        if tb <= ta or any(ta < c <= tb for c in changes):
+            continue
+        ma, mb = _mass_of(prof, s, a), _mass_of(prof, s, b)
+        if ma is None or mb is None or mb > ma:
+            continue
+        dt_s = (tb - ta).total_seconds()
+        rates.append(((ma - mb) / dt_s, dt_s))
+    if not rates:
+        return None
+    total = sum(w for _, w in rates)
+    mean = sum(r * w for r, w in rates) / total
+    var = sum(w * (r - mean) ** 2 for r, w in rates) / total
+    week = 7 * 86400.0
+    return Consumption(supply_id, mean * week, math.sqrt(var) * week, len(rates), total / 86400.0)
+
+
+@dataclass(frozen=True)
+class OrderBy:
+    supply_id: str
+    order_by: dt.datetime | None  # None: no consumption recorded yet
+    days_of_gas: float
+    lead_time_days: float
+    spares: int
+
+
+def order_by(prof: Profile, plan_usable_kg: float, cons: Consumption | None, supply_id: str,
+             now: dt.datetime, full_usable_kg: float) -> OrderBy:
+    """The date by which to order the next cylinder so the bench never waits: the gas left
+    above the reserve plus the spares on hand, at the journal's consumption, less the
+    supplier's lead time."""
+    s = prof.supply(supply_id)
+    lead_days = (s.lead_time or 0.0) / 86400.0
+    if cons is None or cons.kg_per_week <= 0:
+        return OrderBy(supply_id, None, math.inf, lead_days, s.spares)
+    days = (plan_usable_kg + s.spares * full_usable_kg) / (cons.kg_per_week / 7.0)
+    days = min(days, 3650.0)
+    return OrderBy(supply_id, now + dt.timedelta(days=days - lead_days), days, lead_days, s.spares)

@@ -1,0 +1,326 @@
+"""Findings: every rule that judges a bench, each in one place.
+
+A finding is a code, a severity, its subject and its numbers (SI, the unit in the key name:
+``hours``, ``pressure_abs_pa``, ``temperature_k`` ...). No sentence is built here: the
+renderers in :mod:`benchwarden.render` turn a finding into words in the display units, so the
+plan, the checklist, the app and the command line show the same finding with the same
+severity.
+
+Severities, most severe first: ``stop`` (do not start, or stop now), ``warning`` (act before
+or during the session), ``attention`` (check it), ``info``.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+from collections.abc import Iterable, Mapping
+from dataclasses import dataclass, field
+from typing import Literal
+
+from benchwarden import gas as g
+from benchwarden import room as rm
+from benchwarden.profile import Profile
+from benchwarden.units import T0_K
+from benchwarden.workflows.model import Observed, Plan, RoomPlan
+
+__all__ = [
+    "SEVERITIES", "SEVERITY_RANK", "Finding", "Severity", "HOLD_TEST_MAX_AGE_DAYS", "plan_findings",
+    "live_findings", "hold_test_findings", "ranked", "counts",
+]
+
+Severity = Literal["stop", "warning", "attention", "info"]
+SEVERITIES: tuple[Severity, ...] = ("stop", "warning", "attention", "info")
+SEVERITY_RANK: dict[str, int] = {s: i for i, s in enumerate(SEVERITIES)}
+
+Value = float | int | str | bool | None
+
+#: A hold test older than this asks for a new one (benchwarden default).
+HOLD_TEST_MAX_AGE_DAYS = 7.0
+#: A reserve reached before half the session is over is a stop, later a warning (benchwarden rule).
+RESERVE_STOP_FRACTION = 0.5
+#: Flashover margin below which a gap needs attention, % of its firing voltage (common practice).
+FLASHOVER_ATTENTION_PERCENT = 20.0
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One judgement: ``code`` names the rule, ``values`` carries its numbers (SI)."""
+
+    code: str
+    severity: Severity
+    subject: str
+    values: Mapping[str, Value] = field(default_factory=dict)
+
+
+def ranked(findings: Iterable[Finding]) -> list[Finding]:
+    """Findings sorted most severe first (stable within a severity)."""
+    return sorted(findings, key=lambda f: SEVERITY_RANK[f.severity])
+
+
+def counts(findings: Iterable[Finding]) -> dict[str, int]:
+    """How many findings of each severity."""
+    out: dict[str, int] = dict.fromkeys(SEVERITIES, 0)
+    for f in findings:
+        out[f.severity] += 1
+    return out
+
+
+# ----------------------------------------------------------------------------- plan
+
+
+def plan_findings(prof: Profile, plan: Plan) -> list[Finding]:
+    """Every finding of a planned bench: supplies, regulators, gaps, the room."""
+    out: list[Finding] = []
+    out += _supply_findings(prof, plan)
+    out += _regulator_findings(prof, plan)
+    out += _gap_findings(plan)
+    out += _room_findings(prof, plan.room)
+    return ranked(out)
+
+
+def _supply_findings(prof: Profile, plan: Plan) -> list[Finding]:
+    out: list[Finding] = []
+    amb = plan.ambient_pa
+    for sp in plan.supplies:
+        s = prof.supply(sp.id)
+        if sp.liquefied:
+            p_sat = g.saturation_pressure(s.gas, sp.temperature_k)
+            if s.reading is not None and abs(s.reading.abs_at(amb) - p_sat) > 0.15 * p_sat:
+                out.append(Finding("liquefied-reading", "attention", sp.id, {
+                    "reading_abs_pa": s.reading.abs_at(amb), "vapour_pressure_abs_pa": p_sat,
+                    "temperature_k": sp.temperature_k, "gas": sp.gas_name}))
+            if s.gross is None or s.tare is None:
+                out.append(Finding("liquefied-no-weight", "warning", sp.id,
+                                   {"gas": sp.gas_name, "temperature_k": sp.temperature_k}))
+        if not sp.liquefied and sp.pressure_abs_pa <= sp.reserve_abs_pa:
+            out.append(Finding("at-or-below-reserve", "stop", sp.id, {
+                "pressure_abs_pa": sp.pressure_abs_pa, "reserve_abs_pa": sp.reserve_abs_pa}))
+        elif sp.draw_kg_s > 0 and not sp.fits_session:
+            sev: Severity = "stop" if sp.hours_to_reserve < RESERVE_STOP_FRACTION * plan.session_hours else "warning"
+            out.append(Finding("reserve-before-end", sev, sp.id,
+                               {"hours": sp.hours_to_reserve, "session_hours": plan.session_hours}))
+        elif sp.draw_kg_s > 0 and sp.hours_band[0] < plan.session_hours:
+            out.append(Finding("reserve-within-gauge-error", "attention", sp.id, {
+                "hours": sp.hours_to_reserve, "hours_low": sp.hours_band[0], "hours_high": sp.hours_band[1],
+                "session_hours": plan.session_hours}))
+        pairs = g.estimated_pairs(s.gas)
+        if pairs:
+            out.append(Finding("estimated-mixing", "info", sp.id, {
+                "gas": sp.gas_name, "pairs": ", ".join(f"{a}–{b}" for a, b in pairs)}))
+        if s.gauge is None and not sp.liquefied:
+            out.append(Finding("no-gauge", "info", sp.id, {}))
+    return out
+
+
+def _regulator_findings(prof: Profile, plan: Plan) -> list[Finding]:
+    out: list[Finding] = []
+    amb = plan.ambient_pa
+    for rp in plan.regulators:
+        r = prof.regulator(rp.id)
+        s = prof.supply(rp.supply_id)
+        base: dict[str, Value] = {"supply": s.id}
+        if not rp.regulating:
+            out.append(Finding("regulator-not-regulating", "stop", r.id, base | {
+                "pressure_abs_pa": rp.inlet_abs_pa, "set_point_abs_pa": rp.set_point_abs_pa}))
+        if rp.inlet_abs_pa > rp.inlet_rating_abs_pa:
+            out.append(Finding("inlet-rating", "stop", r.id, base | {
+                "pressure_abs_pa": rp.inlet_abs_pa, "rating_abs_pa": rp.inlet_rating_abs_pa}))
+        elif rp.supply_hot_day_abs_pa > rp.inlet_rating_abs_pa:
+            out.append(Finding("inlet-rating-hot", "warning", r.id, base | {
+                "pressure_abs_pa": rp.supply_hot_day_abs_pa, "rating_abs_pa": rp.inlet_rating_abs_pa,
+                "temperature_k": prof.ambient.hot_day}))
+        t_out: dict[str, Value] = {"temperature_k": rp.outlet_temperature_k, "gas": s.gas.name}
+        if rp.solid_forms:
+            out.append(Finding("regulator-solid", "stop", r.id, base | t_out))
+        elif rp.liquid_forms:
+            out.append(Finding("regulator-liquid", "warning", r.id, base | t_out))
+        elif rp.outlet_temperature_k < T0_K:
+            out.append(Finding("regulator-icing", "attention", r.id, base | t_out))
+        if rp.outlet_at_reserve_abs_pa > r.outlet_max.abs_at(amb):
+            out.append(Finding("outlet-drift-range", "attention", r.id, base | {
+                "pressure_abs_pa": rp.outlet_at_reserve_abs_pa, "limit_abs_pa": r.outlet_max.abs_at(amb)}))
+        if r.downstream_rating is not None:
+            down = r.downstream_rating.abs_at(amb)
+            if rp.outlet_at_reserve_abs_pa > down:
+                out.append(Finding("outlet-drift-rating", "warning", r.id, base | {
+                    "pressure_abs_pa": rp.outlet_at_reserve_abs_pa, "limit_abs_pa": down}))
+            if r.relief_setting is None:
+                out.append(Finding("no-relief", "attention", r.id, base | {"limit_abs_pa": down}))
+            elif r.relief_setting.abs_at(amb) > down:
+                out.append(Finding("relief-above-rating", "warning", r.id, base | {
+                    "relief_abs_pa": r.relief_setting.abs_at(amb), "limit_abs_pa": down}))
+        if r.relief_setting is not None and r.relief_setting.abs_at(amb) <= rp.set_point_abs_pa:
+            out.append(Finding("relief-below-set-point", "warning", r.id, base | {
+                "relief_abs_pa": r.relief_setting.abs_at(amb), "set_point_abs_pa": rp.set_point_abs_pa}))
+    return out
+
+
+def _gap_findings(plan: Plan) -> list[Finding]:
+    out: list[Finding] = []
+    for d in plan.draws:
+        if d.gap is None:
+            continue
+        if not d.gap.within_validity:
+            out.append(Finding("gap-beyond-method", "attention", d.id, {"pd_bar_cm": d.gap.pd_bar_cm_max}))
+            continue
+        for a, b in zip(d.gap.margins_start, d.gap.margins_reserve, strict=True):
+            worst = a if a.margin_kv < b.margin_kv else b
+            if worst.status == "ok":
+                continue
+            out.append(Finding("flashover", "stop" if worst.status == "stop" else "attention", d.id, {
+                "part": worst.part, "breakdown_kv": max(d.gap.breakdown_start_kv, d.gap.breakdown_reserve_kv),
+                "withstand_kv": worst.withstand_kv, "margin_kv": worst.margin_kv,
+                "margin_percent": worst.margin_percent, "at_reserve": worst is b}))
+    return out
+
+
+def _room_findings(prof: Profile, room: RoomPlan | None) -> list[Finding]:
+    if prof.room is None or room is None:
+        return [Finding("no-room", "attention", "room", {})]
+    out: list[Finding] = []
+    session_min = prof.session.duration / 60.0
+    lk = room.leak
+    if lk is not None and lk.o2_percent_steady < rm.OSHA_DEFICIENT:
+        sev: Severity = "stop" if lk.minutes_to_19_5 < session_min else "warning"
+        out.append(Finding("room-vented", sev, "room", {
+            "o2_percent": lk.o2_percent_steady, "minutes_to_19_5": lk.minutes_to_19_5,
+            "vented_m3_s": room.vented_m3_s}))
+    # judged on the safety case: the largest supply full, released at once
+    rel = room.worst_case or room.release
+    sid = room.worst_case_supply_id or room.release_supply_id
+    c = rel.o2_percent_after_release
+    if c < rm.OSHA_DEFICIENT:
+        sev2: Severity = "stop" if c < rm.EIGA_HAZARD and not prof.room.oxygen_monitor else "warning"
+        out.append(Finding("room-release", sev2, "room", {
+            "supply": sid, "o2_percent": c, "effect": rel.effect, "monitor": prof.room.oxygen_monitor,
+            "model": rel.model, "o2_percent_today": room.release.o2_percent_after_release}))
+    gas = prof.supply(sid).gas
+    for hz in rm.gas_hazards(gas, c, rel.c0_percent):
+        # a toxic gas at harmful concentration is as serious as the oxygen figure would be
+        out.append(Finding(f"room-{hz.kind}", "stop", "room", {
+            "supply": sid, "percent": hz.percent, "limit_percent": hz.limit_percent, "detail": hz.text}))
+    return out
+
+
+# ----------------------------------------------------------------------------- the cylinder's life
+
+
+#: Warn this many days ahead of a retest, a service or an order-by date (benchwarden rule).
+DUE_SOON_DAYS = 30.0
+ORDER_SOON_DAYS = 7.0
+
+
+def _due(what: str, subject: str, due: dt.date | None, today: dt.date) -> list[Finding]:
+    """``{what}-overdue`` (warning) past the date, ``{what}-due-soon`` (attention) within
+    :data:`DUE_SOON_DAYS`."""
+    if due is None:
+        return []
+    days = (due - today).days
+    values: dict[str, Value] = {"due": due.isoformat(), "days": float(days)}
+    if days < 0:
+        return [Finding(f"{what}-overdue", "warning", subject, values)]
+    if days <= DUE_SOON_DAYS:
+        return [Finding(f"{what}-due-soon", "attention", subject, values)]
+    return []
+
+
+def life_findings(prof: Profile, today: dt.date, orders: Mapping[str, tuple[dt.datetime | None, float]]) -> list[Finding]:
+    """Retest and service dates (the intervals are the maker's or the local rule: the profile
+    holds the due dates), and when to order the next cylinder. ``orders`` maps a supply to
+    (order-by time, days of gas left)."""
+    out: list[Finding] = []
+    for s in prof.supplies:
+        out += _due("retest", s.id, s.retest_due, today)
+        at, days_left = orders.get(s.id, (None, math.inf))
+        if at is not None:
+            ahead = (at.date() - today).days
+            if ahead <= 0:
+                out.append(Finding("order-now", "warning", s.id, {"order_by": at.date().isoformat(),
+                                                                   "days_of_gas": days_left}))
+            elif ahead <= ORDER_SOON_DAYS:
+                out.append(Finding("order-soon", "attention", s.id, {"order_by": at.date().isoformat(),
+                                                                      "days_of_gas": days_left}))
+    for r in prof.regulators:
+        out += _due("service", r.id, r.service_due, today)
+    return out
+
+
+# ----------------------------------------------------------------------------- during a session
+
+
+def live_findings(plan: Plan, observed: Mapping[str, Observed], session_end: dt.datetime | None) -> list[Finding]:
+    """Findings during a session: a draw faster than planned beyond its uncertainty, and a
+    reserve (planned or observed) that arrives before the planned end of the session."""
+    out: list[Finding] = []
+    for s in plan.supplies:
+        ob = observed.get(s.id)
+        if ob is not None and ob.faster_than_planned:
+            out.append(Finding("faster-than-planned", "warning", s.id, {
+                "observed_kg_s": ob.draw_kg_s, "uncertainty_kg_s": ob.draw_uncertainty_kg_s,
+                "planned_kg_s": ob.planned_kg_s}))
+        if session_end is None:
+            continue
+        at = ob.reserve_at if ob is not None and ob.reserve_at else s.reserve_at
+        if at is not None and dt.datetime.fromisoformat(at) < session_end:
+            out.append(Finding("reserve-before-end-live", "warning", s.id, {
+                "reserve_at": at, "session_end": session_end.isoformat(timespec="minutes")}))
+    return ranked(out)
+
+
+# ----------------------------------------------------------------------------- hold tests
+
+
+def hold_test_findings(verdict: str | None, rate_sccm: float = math.nan, u_sccm: float = math.nan,
+                       age_days: float = math.nan, kind: str | None = None,
+                       supply_id: str | None = None) -> list[Finding]:
+    """The finding of the bench's last hold test (verdict None: none recorded); an automatic
+    one from an idle drop between sessions that finds a leak is an ``idle-drop-leak``."""
+    if verdict is None:
+        return [Finding("no-hold-test", "attention", "leaks", {})]
+    values: dict[str, Value] = {"verdict": verdict, "leak_rate_sccm": rate_sccm,
+                                "leak_rate_uncertainty_sccm": u_sccm, "age_days": age_days,
+                                "kind": kind, "supply": supply_id}
+    if verdict == "leak":
+        code = {"idle-drop": "idle-drop-leak", "leak-watch": "leak-watch-leak"}.get(kind or "", "hold-test-leak")
+        return [Finding(code, "stop", "leaks", values)]
+    if verdict == "inconclusive":
+        return [Finding("hold-test-inconclusive", "attention", "leaks", values)]
+    if age_days > HOLD_TEST_MAX_AGE_DAYS:
+        return [Finding("hold-test-old", "attention", "leaks", values | {"max_age_days": HOLD_TEST_MAX_AGE_DAYS})]
+    return [Finding("hold-test-ok", "info", "leaks", values)]
+
+
+# ----------------------------------------------------------------------------- alarms
+
+#: Findings that raise the leak alarm.
+LEAK_CODES = frozenset({"hold-test-leak", "idle-drop-leak", "leak-watch-leak"})
+
+
+def alarm_findings(hours_left: Mapping[str, float], drawing: Mapping[str, bool], alert_before_h: float,
+                   over_time_h: float | None, finding_codes: Iterable[str], silent: Mapping[str, str],
+                   live_leaks: Mapping[str, tuple[float, float]] | None = None) -> list[Finding]:
+    """The alarms now — conditions that need a person (bell, banner, a line in the journal):
+    a supply that draws gas and reaches its reserve within ``alert_before_h`` (or is there), the
+    session over its planned time (``over_time_h`` > 0), a leak among the findings or found by
+    the leak watch (``live_leaks``: rate and uncertainty [sccm] per supply), a draw faster than
+    planned, and a gauge that fell silent (``silent``: why, per supply). One finding per
+    condition and subject, so an interface rings once when one appears."""
+    out: list[Finding] = []
+    for sid, h in hours_left.items():
+        if drawing.get(sid) and h <= alert_before_h:
+            out.append(Finding("alarm-reserve", "warning", sid, {"hours": max(h, 0.0)}))
+    if over_time_h is not None and over_time_h > 0:
+        out.append(Finding("alarm-over-time", "warning", "session", {"over_hours": over_time_h}))
+    codes = set(finding_codes)
+    if codes & LEAK_CODES and not live_leaks:
+        out.append(Finding("alarm-leak", "stop", "leaks", {"supply": None, "leak_rate_sccm": math.nan,
+                                                             "leak_rate_uncertainty_sccm": math.nan}))
+    for sid, (rate, u) in (live_leaks or {}).items():
+        out.append(Finding("alarm-leak", "stop", sid, {"supply": sid, "leak_rate_sccm": rate,
+                                                       "leak_rate_uncertainty_sccm": u}))
+    if "faster-than-planned" in codes:
+        out.append(Finding("alarm-fast-draw", "warning", "draws", {}))
+    for sid, why in silent.items():
+        out.append(Finding("alarm-gauge-silent", "warning", sid, {"why": why}))
+    return ranked(out)

@@ -1,0 +1,148 @@
+"""Hold tests as a workflow: the gauge specification, one record, storing it, reading it back.
+
+The command line, the app and (later) automatic idle-drop tests all build the gauge
+specification with :func:`gauge_spec`, turn a :class:`benchwarden.hold.HoldResult` into the one
+:class:`HoldRecord` with :func:`record_of`, store it with :func:`store` and read the bench's
+latest with :func:`last_hold_test`, so the same test stores the same record whoever ran it.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+import math
+from dataclasses import asdict, dataclass
+
+from benchwarden.errors import InputError, JournalError
+from benchwarden.hold import GaugeSpec, HoldResult
+from benchwarden.journal import Journal
+from benchwarden.profile import Gauge, Supply
+from benchwarden.workflows.findings import Finding, hold_test_findings
+
+__all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "HoldRecord",
+           "record_of", "store", "LastHold", "last_hold_test", "hold_finding"]
+
+#: EN 837-1 accuracy classes run from 0.1 to 4; allow a little either side for other standards.
+CLASS_RANGE = (0.01, 5.0)
+
+
+def gauge_spec(span_pa: float, accuracy_class: float, resolution_pa: float | None = None) -> GaugeSpec:
+    """The gauge of a hold test or a reading: span [Pa] (full scale), accuracy class [% of
+    span, EN 837-1], optional resolution [Pa]. The one place where a gauge is checked."""
+    if not math.isfinite(span_pa) or span_pa <= 0:
+        raise InputError(f"gauge range {span_pa / 1e5:g} bar must be above zero")
+    lo, hi = CLASS_RANGE
+    if not (math.isfinite(accuracy_class) and lo <= accuracy_class <= hi):
+        raise InputError(f"gauge class {accuracy_class:g} must be between {lo:g} and {hi:g} "
+                         "(EN 837-1 classes 0.1 to 4)")
+    if resolution_pa is not None and not (math.isfinite(resolution_pa) and 0 < resolution_pa <= span_pa):
+        raise InputError(f"gauge resolution {resolution_pa / 1e5:g} bar must be above zero and within the range")
+    return GaugeSpec(span_pa, accuracy_class, resolution_pa)
+
+
+def profile_gauge_spec(gauge: Gauge | None) -> GaugeSpec | None:
+    """The :class:`GaugeSpec` of a supply's gauge in a bench profile (None without one)."""
+    if gauge is None:
+        return None
+    return gauge_spec(gauge.range.typed_pa, gauge.accuracy_class,
+                      gauge.resolution.typed_pa if gauge.resolution is not None else None)
+
+
+def source_gauge_spec(supply: Supply) -> GaugeSpec | None:
+    """The gauge a supply's live samples are judged with: its transducer's (a source with range
+    and accuracy class), else the supply's gauge."""
+    src = supply.source
+    if src is not None and src.range is not None and src.accuracy_class is not None:
+        return gauge_spec(src.range.typed_pa, src.accuracy_class,
+                          src.resolution.typed_pa if src.resolution is not None else None)
+    return profile_gauge_spec(supply.gauge)
+
+
+def supply_target_sccm(supply: Supply) -> float | None:
+    """The supply's leak target [sccm] from its profile, or None for the default."""
+    from benchwarden.hold import target_sccm
+
+    return target_sccm(supply.gas, supply.leak_target) if supply.leak_target is not None else None
+
+
+@dataclass(frozen=True)
+class HoldRecord:
+    """A hold test as stored in the journal (one payload for every way of running one)."""
+
+    at: str
+    bench: str | None
+    supply_id: str | None
+    gas: str
+    volume_m3: float
+    duration_s: float
+    verdict: str
+    leak_rate_sccm: float
+    leak_rate_uncertainty_sccm: float
+    start_abs_pa: float
+    end_abs_pa: float
+    start_temperature_k: float
+    end_temperature_k: float
+    target_sccm: float
+    method: str
+    kind: str  # "two-readings" | "log" | "idle-drop"
+
+
+def record_of(result: HoldResult, at: dt.datetime, bench: str | None, supply_id: str | None,
+              kind: str = "two-readings") -> HoldRecord:
+    """The record of a computed hold test."""
+    return HoldRecord(at.isoformat(timespec="seconds"), bench, supply_id, result.gas_name, result.volume_m3,
+                      result.duration_s, result.verdict, result.leak_rate_sccm, result.leak_rate_uncertainty_sccm,
+                      result.start_abs_pa, result.end_abs_pa, result.start_temperature_k, result.end_temperature_k,
+                      result.target_sccm, result.method, kind)
+
+
+_DETAIL_KEYS = ("start_abs_pa", "end_abs_pa", "start_temperature_k", "end_temperature_k", "target_sccm", "method",
+                "kind")
+
+
+def store(journal: Journal, record: HoldRecord, extra: dict[str, str] | None = None) -> int:
+    """Write the record to the journal (one committed transaction); returns its row id."""
+    d = asdict(record)
+    details = json.dumps({k: d[k] for k in _DETAIL_KEYS} | (extra or {}), sort_keys=True)
+    return journal.add_hold_test(record.at, record.bench, record.supply_id, record.gas, record.volume_m3,
+                                 record.duration_s, record.verdict, record.leak_rate_sccm,
+                                 record.leak_rate_uncertainty_sccm, details, record.kind)
+
+
+@dataclass(frozen=True)
+class LastHold:
+    """The bench's latest hold test and its age."""
+
+    at: dt.datetime
+    supply_id: str | None
+    verdict: str
+    leak_rate_sccm: float
+    leak_rate_uncertainty_sccm: float
+    age_days: float
+    kind: str | None = None
+
+
+def last_hold_test(journal: Journal | None, bench: str, now: dt.datetime) -> LastHold | None:
+    """The latest hold test filed under ``bench`` (None without a journal, a test, or when the
+    journal cannot be read)."""
+    if journal is None:
+        return None
+    try:
+        row = journal.last_hold_test(bench)
+    except JournalError:
+        return None
+    if row is None:
+        return None
+    at = dt.datetime.fromisoformat(row.at)
+    if at.tzinfo is None and now.tzinfo is not None:
+        at = at.replace(tzinfo=now.tzinfo)
+    age = (now - at).total_seconds() / 86400.0
+    return LastHold(at, row.supply_id, row.verdict, row.leak_rate_sccm, row.leak_rate_uncertainty_sccm, age, row.kind)
+
+
+def hold_finding(last: LastHold | None) -> list[Finding]:
+    """The finding of the bench's latest hold test (the rule lives in :mod:`findings`)."""
+    if last is None:
+        return hold_test_findings(None)
+    return hold_test_findings(last.verdict, last.leak_rate_sccm, last.leak_rate_uncertainty_sccm, last.age_days,
+                              last.kind, last.supply_id)

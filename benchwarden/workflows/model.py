@@ -1,0 +1,161 @@
+"""The session plan's records: every supply, regulator, draw and gap of a bench, projected over
+the planned session (built by :mod:`benchwarden.workflows.build`).
+
+Method summary
+--------------
+* Contents and usable mass: real gas (CoolProp HEOS) at the reading and at the reserve,
+  constant temperature (the reading's); liquefied gases by weight, where the pressure stays at
+  the vapour pressure until the liquid is gone.
+* Draws are evaluated at the regulator set point (orifice and valve flows, per-shot refresh) and
+  held constant over the session, so the mass balance is exact: mass at start − draw × time =
+  mass at the reserve at the time to reserve.
+* Projection: supply mass falls linearly; pressure from a Z(ρ) table (see
+  :class:`benchwarden.tables.DensityTable`); regulator outlet by the supply-pressure effect; gap
+  firing voltage at that outlet (:mod:`benchwarden.gap`).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
+
+from benchwarden import gap as gp
+from benchwarden import room as rm
+
+if TYPE_CHECKING:  # pragma: no cover
+    from benchwarden.workflows.findings import Finding
+
+PROJECTION_POINTS = 200
+
+
+@dataclass(frozen=True)
+class GapPlan:
+    spacing_m: float
+    breakdown_start_kv: float
+    breakdown_reserve_kv: float
+    method: str
+    validity: str
+    margins_start: tuple[gp.Margin, ...]
+    margins_reserve: tuple[gp.Margin, ...]
+    within_validity: bool = True
+    pd_bar_cm_max: float = 0.0
+
+
+@dataclass(frozen=True)
+class DrawPlan:
+    id: str
+    kind: str
+    regulator_id: str
+    supply_id: str
+    how: str
+    mass_flow_kg_s: float
+    standard_flow_slpm: float
+    vents_to_room: bool
+    choked: bool | None
+    rate_hz: float | None
+    gap: GapPlan | None
+
+
+@dataclass(frozen=True)
+class RegulatorPlan:
+    id: str
+    supply_id: str
+    stages: int
+    inlet_abs_pa: float
+    set_point_abs_pa: float
+    outlet_at_reserve_abs_pa: float
+    outlet_temperature_k: float
+    solid_forms: bool
+    liquid_forms: bool
+    throttle_notes: tuple[str, ...]
+    inlet_rating_abs_pa: float
+    supply_hot_day_abs_pa: float
+    effect_total: float
+    #: False when the supply is at or below the set point: the regulator stands open
+    regulating: bool = True
+    #: the outlet pressure now: the set point, or the supply pressure when not regulating
+    outlet_abs_pa: float = 0.0
+
+
+@dataclass(frozen=True)
+class SupplyPlan:
+    id: str
+    gas_name: str
+    gas_short: str
+    liquefied: bool
+    pressure_abs_pa: float
+    temperature_k: float
+    reserve_abs_pa: float
+    mass_kg: float
+    free_volume_m3: float
+    reference_label: str
+    usable_mass_kg: float
+    draw_kg_s: float
+    hours_to_reserve: float
+    hours_band: tuple[float, float]
+    reserve_at: str | None
+    shots_to_reserve: float | None
+    cost_per_hour: float | None
+    currency: str
+    fits_session: bool
+    projection_hours: tuple[float, ...]
+    projection_pressure_abs_pa: tuple[float, ...]
+    projection_outlets_abs_pa: dict[str, tuple[float, ...]] = field(default_factory=dict)
+    projection_gap_kv: dict[str, tuple[float, ...]] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class RoomPlan:
+    volume_m3: float
+    ventilation_m3_s: float
+    ventilation_kind: str
+    vented_m3_s: float
+    leak: rm.Leak | None
+    release_supply_id: str
+    #: today's contents of the largest supply released at once
+    release: rm.Release
+    release_mixed: rm.Release
+    notes: tuple[str, ...]
+    #: the safety case: the largest supply full (service pressure at 15 °C, or its fill weight)
+    worst_case: rm.Release | None = None
+    worst_case_supply_id: str = ""
+    #: every supply kept in the room, full, released together
+    all_supplies: rm.Release | None = None
+
+    @property
+    def o2_percent_worst_case(self) -> float:
+        return (self.worst_case or self.release).o2_percent_after_release
+
+
+@dataclass(frozen=True)
+class Plan:
+    bench_name: str
+    ambient_pa: float
+    temperature_k: float
+    session_hours: float
+    start: str
+    supplies: tuple[SupplyPlan, ...]
+    regulators: tuple[RegulatorPlan, ...]
+    draws: tuple[DrawPlan, ...]
+    room: RoomPlan | None
+    findings: tuple[Finding, ...]
+    fits: bool
+    method: str = __doc__.split("Method summary")[1].strip() if __doc__ else ""
+
+
+@dataclass(frozen=True)
+class Observed:
+    """Actual draw of a supply fitted from readings during a session."""
+
+    supply_id: str
+    n: int
+    draw_kg_s: float
+    draw_uncertainty_kg_s: float
+    planned_kg_s: float
+    faster_than_planned: bool
+    mass_now_kg: float
+    hours_to_reserve: float
+    reserve_at: str | None
+    method: str
+    fit_at: tuple[str, ...] = ()
+    fit_pressure_abs_pa: tuple[float, ...] = ()

@@ -1,0 +1,454 @@
+"""A running session: the profile, its plan, the readings typed so far and the journal.
+
+This is the app's model (no widgets, no formulas): it parses what a person typed with the same
+parser as the command line, stores each reading in the journal the moment it is accepted, and
+asks the core for the plan, the observed draw and the live findings.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+import re
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from benchwarden.errors import InputError, JournalError
+from benchwarden.journal import Journal, ReadingRow
+from benchwarden.profile import Profile, load_profile, with_reading
+from benchwarden.quantities import check_text
+from benchwarden.samples import Columns, SampleStore
+from benchwarden.units import parse_mass, parse_pressure, parse_temperature
+from benchwarden.workflows import build as pl
+from benchwarden.workflows.bench import Assessment, findings_of, journal_state
+from benchwarden.workflows.cylinder import (
+    Entry,
+    LatestSample,
+    Question,
+    check_reading,
+    latest_state,
+    parse_at,
+    readings_since_change,
+    record_change,
+    record_reading,
+)
+from benchwarden.workflows.findings import Finding, alarm_findings
+from benchwarden.workflows.holds import LastHold, last_hold_test, profile_gauge_spec
+from benchwarden.workflows.model import Observed, Plan
+from benchwarden.workflows.watch import (
+    AlarmBook,
+    LeakWatch,
+    Watcher,
+    leak_watch_recorded,
+    live_draw,
+)
+
+#: Samples older than the raw window are compressed this often while gauges are read [s].
+COMPACT_EVERY_S = 3600.0
+#: The leak watch's fit is redone this often (the latest sample follows every refresh) [s].
+LEAK_REFRESH_S = 30.0
+
+
+def now_local() -> dt.datetime:
+    return dt.datetime.now().astimezone().replace(microsecond=0)
+
+
+@dataclass
+class Reading:
+    """A reading typed in the app: a pressure, or a weight (``weight_kg``) of a liquefied supply."""
+
+    supply_id: str
+    at: dt.datetime
+    pressure_abs_pa: float | None
+    pressure_text: str
+    temperature_k: float
+    saved: bool = True
+    weight_kg: float | None = None
+    journal_id: int | None = None
+
+    def entry(self) -> Entry:
+        return Entry(self.supply_id, self.at, self.temperature_k, self.pressure_abs_pa, self.pressure_text,
+                     self.weight_kg)
+
+
+@dataclass(frozen=True)
+class LiveSupply:
+    """What a supply's live gauge says now: its latest sample, the leak watch, silence."""
+
+    supply_id: str
+    sample: LatestSample | None
+    leak: LeakWatch | None
+    silent: str | None
+
+
+@dataclass
+class SessionState:
+    """Everything the app shows, kept outside the widgets."""
+
+    profile_path: Path
+    journal: Journal | None
+    clock: Callable[[], dt.datetime] = now_local
+    profile: Profile | None = None
+    plan: Plan | None = None
+    plan_at: dt.datetime | None = None
+    session_id: int | None = None
+    started_at: dt.datetime | None = None
+    readings: dict[str, list[Reading]] = field(default_factory=dict)
+    observed: dict[str, Observed] = field(default_factory=dict)
+    unsaved: list[Reading] = field(default_factory=list)
+    watcher: Watcher | None = None
+    live: dict[str, LiveSupply] = field(default_factory=dict)
+    alarm_book: AlarmBook | None = None
+    _compacted: dt.datetime | None = None
+    _leak_at: dt.datetime | None = None
+
+    # -- profile and plan
+
+    def load(self) -> None:
+        """Load the profile and compute the plan (blocking: CoolProp; call from a worker)."""
+        self.profile = load_profile(self.profile_path)
+        self.recompute()
+
+    def reload(self) -> None:
+        """Reload the edited profile; on error the old one stays in use and the error is raised."""
+        new = load_profile(self.profile_path)
+        old = self.profile
+        self.profile = new
+        try:
+            self.recompute()
+        except Exception:
+            self.profile = old
+            raise
+
+    def effective_profile(self) -> Profile:
+        """The profile as the journal records it (every supply's latest reading or fill, new idle
+        drops stored as hold tests), with readings not yet saved applied on top."""
+        assert self.profile is not None
+        prof = journal_state(self.profile, self.journal, self.clock())
+        for r in sorted(self.unsaved, key=lambda r: r.at):
+            prof = with_reading(prof, r.supply_id, parse_pressure(f"{r.pressure_abs_pa} Pa(a)"), r.temperature_k)
+        return prof
+
+    def recompute(self) -> None:
+        now = self.clock()
+        latest = max((r.at for rs in self.readings.values() for r in rs), default=None)
+        self.plan_at = latest or now
+        self.plan = pl.build_plan(self.effective_profile(), now=self.plan_at, start_at=self.plan_at)
+        self._observe()
+
+    def _observe(self) -> None:
+        assert self.profile is not None and self.plan is not None
+        self.observed = {}
+        for s in self.profile.supplies:
+            rs = sorted(self.readings.get(s.id, []), key=lambda r: r.at)
+            sp = next(x for x in self.plan.supplies if x.id == s.id)
+            if sp.liquefied:
+                continue
+            if self.running and self.started_at is not None and s.source is not None:
+                # a live gauge: the samples since the session began give the observed draw
+                live = live_draw(self.journal, self.profile, s.id, self.started_at, self.clock(), sp.draw_kg_s,
+                                 sp.reserve_abs_pa)
+                if live is not None:
+                    self.observed[s.id] = live
+                    continue
+            if len(rs) < 2:
+                continue
+            gauge = profile_gauge_spec(s.gauge)
+            u_p = gauge.u_reading_pa if gauge is not None else 0.0
+            ob = pl.observed_draw(s.gas, s.water_volume, sp.reserve_abs_pa, sp.draw_kg_s,
+                                  [(r.at, r.pressure_abs_pa, r.temperature_k) for r in rs
+                                   if r.pressure_abs_pa is not None], u_p, s.id)
+            if ob is not None:
+                self.observed[s.id] = ob
+
+    # -- session
+
+    @property
+    def running(self) -> bool:
+        return self.session_id is not None
+
+    @property
+    def session_end(self) -> dt.datetime | None:
+        if self.started_at is None or self.profile is None:
+            return None
+        return self.started_at + dt.timedelta(seconds=self.profile.session.duration)
+
+    def start(self) -> int:
+        assert self.profile is not None
+        self.started_at = self.clock()
+        self.readings = {}
+        self.observed = {}
+        if self.journal is not None:
+            self.session_id = self.journal.start_session(self.profile.bench.name, str(self.profile_path),
+                                                         self.started_at.isoformat(timespec="seconds"))
+        else:
+            self.session_id = 0
+        return self.session_id
+
+    def stop(self) -> None:
+        if self.session_id is not None and self.journal is not None:
+            self.journal.stop_session(self.session_id, self.clock().isoformat(timespec="seconds"))
+        self.session_id = None
+
+    def resume(self, session_id: int) -> None:
+        """Continue a session left running (its readings come back from the journal)."""
+        assert self.journal is not None
+        row = self.journal.session(session_id)
+        if row is None:
+            raise InputError(f"no session {session_id} in the journal")
+        self.session_id = row.id
+        self.started_at = dt.datetime.fromisoformat(row.started_at)
+        self.readings = {}
+        for r in self.journal.readings(row.id):
+            if r.struck or r.pressure_abs_pa is None:
+                continue
+            self.readings.setdefault(r.supply_id, []).append(
+                Reading(r.supply_id, dt.datetime.fromisoformat(r.at), r.pressure_abs_pa, r.pressure_text, r.temperature_k))
+
+    def parse_reading(self, supply_id: str, value: str, temperature: str, when: str) -> Reading:
+        """Check a typed reading (same parsers as the command line): a gauge pressure, or a gross
+        weight (``74.1 kg``) for a supply with a tare weight. Raises InputError, changes nothing."""
+        assert self.profile is not None
+        ids = {s.id: s for s in self.profile.supplies}
+        if supply_id not in ids:
+            raise InputError(f"choose a supply ({', '.join(ids)})")
+        amb = self.profile.ambient_pa
+        T = parse_temperature(temperature)
+        at = self.parse_time(when)
+        if re.search(r"(kg|lb)\s*$", value.strip(), re.IGNORECASE):
+            w = parse_mass(value, "weight")
+            reading = Reading(supply_id, at, None, value.strip(), T, weight_kg=w)
+        else:
+            p = parse_pressure(value, amb)
+            reading = Reading(supply_id, at, p.abs_at(amb), p.text, T)
+        check_reading(self.profile, None, reading.entry())  # the supply's limits
+        return reading
+
+    def parse_time(self, text: str) -> dt.datetime:
+        at = parse_at(text, self.clock())
+        if self.started_at is not None and self.running and at < self.started_at - dt.timedelta(hours=24):
+            raise InputError(f"time {text} is more than a day before the session started")
+        return at
+
+    def questions(self, reading: Reading) -> list[Question]:
+        """What is implausible about a checked reading (a rise without a change, a drop far faster
+        than planned, a unit that looks swapped): ask before :meth:`add_reading`."""
+        assert self.profile is not None and self.plan is not None
+        planned = next((s.draw_kg_s for s in self.plan.supplies if s.id == reading.supply_id), None)
+        return check_reading(self.profile, self.journal, reading.entry(), planned)
+
+    def add_reading(self, reading: Reading) -> Reading:
+        """Record a checked reading, in the running session or as an idle reading: journal first
+        (committed), then memory. If the journal write fails the reading is kept in memory,
+        marked unsaved (retried by :meth:`retry_unsaved`), and the JournalError is raised."""
+        assert self.profile is not None
+        if self.running and reading.pressure_abs_pa is not None:
+            self.readings.setdefault(reading.supply_id, []).append(reading)
+        if self.journal is not None:
+            try:
+                self._write_reading(reading)
+            except JournalError:
+                reading.saved = False
+                self.unsaved.append(reading)
+                raise
+        return reading
+
+    def _write_reading(self, reading: Reading) -> None:
+        assert self.journal is not None and self.profile is not None
+        record_reading(self.journal, self.profile, reading.entry(), self.session_id if self.running else None,
+                       self.clock())
+
+    def retry_unsaved(self) -> int:
+        """Write the readings the journal refused before; returns how many are still unsaved."""
+        if self.journal is None:
+            return len(self.unsaved)
+        still: list[Reading] = []
+        for r in self.unsaved:
+            try:
+                self._write_reading(r)
+                r.saved = True
+            except JournalError:
+                still.append(r)
+        self.unsaved = still
+        return len(still)
+
+    def change_cylinder(self, reading: Reading, label: str | None, retest_due: dt.date | None) -> None:
+        """Record a cylinder change on the reading's supply (the new fill)."""
+        assert self.profile is not None
+        if self.journal is None:
+            raise JournalError("no journal: a cylinder change cannot be recorded")
+        record_change(self.journal, self.profile, reading.entry(), self.clock(), label, retest_due)
+        self.readings.pop(reading.supply_id, None)
+
+    def history(self, supply_id: str) -> list[ReadingRow]:
+        """The readings of the supply's current cylinder, struck ones included (newest last)."""
+        assert self.profile is not None
+        return readings_since_change(self.journal, self.profile.bench.name, supply_id, include_struck=True)
+
+    def strike(self, reading_id: int, reason: str) -> None:
+        """Strike a reading out (kept, marked, with the reason)."""
+        if self.journal is None:
+            raise JournalError("no journal")
+        reason = check_text(reason, "reason", 200)
+        if not reason:
+            raise InputError("say why the reading is struck out")
+        self.journal.strike_reading(reading_id, self.clock().isoformat(timespec="seconds"), reason)
+        for rs in self.readings.values():
+            rs[:] = [r for r in rs if r.journal_id != reading_id]
+
+    def close_left_running(self, session_id: int) -> None:
+        """Close a session left running (answer "no" to resuming it): it ends at its last reading,
+        or where it started."""
+        if self.journal is None:
+            return
+        rows = self.journal.readings(session_id)
+        row = self.journal.session(session_id)
+        end = rows[-1].at if rows else (row.started_at if row else self.clock().isoformat(timespec="seconds"))
+        self.journal.stop_session(session_id, end)
+
+    def record_session(self, operator: str | None, shots: int | None, note: str | None) -> None:
+        """The session's record: operator, shots fired and a note (in the journal)."""
+        if self.journal is None or self.session_id is None:
+            return
+        operator = check_text(operator or "", "operator", 100)
+        note = check_text(note or "", "note", 1000)
+        self.journal.set_session_record(self.session_id, operator or None, shots)
+        if note:
+            self.journal.add_note(self.session_id, self.clock().isoformat(timespec="seconds"), note)
+
+    def last_reading(self, supply_id: str) -> Reading | None:
+        rs = self.readings.get(supply_id)
+        return max(rs, key=lambda r: r.at) if rs else None
+
+    # -- what the overview shows
+
+    def hours_left(self, supply_id: str, now: dt.datetime | None = None) -> float:
+        """Hours to the reserve now: the observed projection where there is one, else the plan's,
+        counted down from when it was made."""
+        assert self.plan is not None and self.plan_at is not None
+        now = now or self.clock()
+        ob = self.observed.get(supply_id)
+        if ob is not None and ob.reserve_at is not None:
+            return (dt.datetime.fromisoformat(ob.reserve_at) - now).total_seconds() / 3600.0
+        sp = next(x for x in self.plan.supplies if x.id == supply_id)
+        if not math.isfinite(sp.hours_to_reserve):
+            return math.inf
+        return sp.hours_to_reserve - (now - self.plan_at).total_seconds() / 3600.0
+
+    def last_hold_test(self) -> LastHold | None:
+        """The bench's latest hold test in the journal (with its age now)."""
+        if self.profile is None:
+            return None
+        return last_hold_test(self.journal, self.profile.bench.name, self.clock())
+
+    def assessment(self) -> Assessment:
+        """The bench now, as the command line's ``plan`` and ``checklist`` see it."""
+        assert self.plan is not None
+        last = self.last_hold_test()
+        return Assessment(self.plan, last, findings_of(self.plan, last, self.observed, self.session_end,
+                                                       self.running))
+
+    def findings(self) -> list[Finding]:
+        """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""
+        assert self.plan is not None
+        return list(findings_of(self.plan, self.last_hold_test(), self.observed, self.session_end, self.running))
+
+    # -- live gauges
+
+    def start_watching(self, describe: Callable[[Finding], str]) -> bool:
+        """Poll the profile's sources from now on (needs a journal and at least one source);
+        ``describe`` words an alarm for its journal line."""
+        if self.profile is None or self.journal is None:
+            return False
+        if not any(s.source or s.temperature_source for s in self.profile.supplies) and not (
+                self.profile.room is not None and self.profile.room.temperature_source is not None):
+            return False
+        self.stop_watching()
+        self.watcher = Watcher(self.profile, self.journal)
+        self.alarm_book = AlarmBook(self.journal, self.profile.bench.name, describe)
+        return True
+
+    def stop_watching(self) -> None:
+        if self.watcher is not None:
+            self.watcher.close()
+        self.watcher = None
+
+    def poll_sources(self) -> int:
+        """Read the sources that are due and store their samples; once an hour, compress the
+        samples older than the raw window (blocking: call from a worker)."""
+        if self.watcher is None:
+            return 0
+        now = self.clock()
+        n = self.watcher.poll(now)
+        if self._compacted is None or (now - self._compacted).total_seconds() >= COMPACT_EVERY_S:
+            self._compacted = now
+            self.watcher.compact(now)
+        return n
+
+    def refresh_live(self) -> None:
+        """Recompute the plan from the latest samples, run the leak watch of each idle supply
+        (storing a hold test once it resolves) and note silent gauges (blocking)."""
+        if self.profile is None:
+            return
+        now = self.clock()
+        self.recompute()
+        silent = self.watcher.silent(now) if self.watcher is not None else {}
+        live: dict[str, LiveSupply] = {}
+        for s in self.profile.supplies:
+            if s.source is None:
+                continue
+            before = self.live.get(s.id)
+            if self.running:
+                lw = None
+            elif (before is not None and before.leak is not None and self._leak_at is not None
+                  and (now - self._leak_at).total_seconds() < LEAK_REFRESH_S):
+                lw = before.leak  # the fit over a long idle stretch costs a few tenths of a second
+            else:
+                lw = leak_watch_recorded(self.journal, self.profile, s.id, now)
+            live[s.id] = LiveSupply(s.id, latest_state(self.journal, self.profile, s.id, now.tzinfo), lw,
+                                    silent.get(s.id))
+        if self._leak_at is None or (now - self._leak_at).total_seconds() >= LEAK_REFRESH_S:
+            self._leak_at = now
+        self.live = live
+
+    def alarms(self, now: dt.datetime, finding_codes: set[str]) -> list[Finding]:
+        """The alarms now (the rule is :func:`benchwarden.workflows.findings.alarm_findings`)."""
+        assert self.plan is not None
+        hours = {s.id: self.hours_left(s.id, now) for s in self.plan.supplies}
+        drawing = {s.id: s.draw_kg_s > 0 for s in self.plan.supplies}
+        for sid, lv in self.live.items():
+            # an idle supply that leaks runs down too: the leak watch's time to the reserve
+            lw = lv.leak
+            if lw is not None and lw.verdict == "leak" and lw.result.hours_to_reserve is not None and not self.running:
+                hours[sid] = min(hours.get(sid, math.inf),
+                                 lw.result.hours_to_reserve - (now - lw.until).total_seconds() / 3600.0)
+                drawing[sid] = True
+        ahead = self.profile.session.alert_before / 3600.0 if self.profile is not None else 0.5
+        over = None
+        if self.running and self.started_at is not None:
+            over = (now - self.started_at).total_seconds() / 3600.0 - self.plan.session_hours
+        leaks = {k: (v.leak.leak_rate_sccm, v.leak.leak_rate_uncertainty_sccm) for k, v in self.live.items()
+                 if v.leak is not None and v.leak.verdict == "leak"}
+        silent = {k: v.silent for k, v in self.live.items() if v.silent}
+        if self.watcher is not None:
+            silent |= self.watcher.silent(now)
+        return alarm_findings(hours, drawing, ahead, over, finding_codes, silent, leaks)
+
+    def new_alarms(self, alarms: list[Finding], now: dt.datetime, describe: Callable[[Finding], str]) -> list[Finding]:
+        """Keep the alarms showing; those that are new get a line in the journal (ring for them)."""
+        if self.alarm_book is None:
+            self.alarm_book = AlarmBook(self.journal, self.profile.bench.name if self.profile else "", describe)
+        return self.alarm_book.update(alarms, now)
+
+    def live_trace(self, supply_id: str, since: dt.datetime, until: dt.datetime, columns: int) -> Columns | None:
+        """The supply's live pressure between two times as minimum and maximum per plot column
+        (absolute Pa; None without samples)."""
+        if self.journal is None or self.profile is None or until <= since:
+            return None
+        store = SampleStore(self.journal)
+        sid = store.stream(self.profile.bench.name, supply_id, "pressure")
+        if sid is None:
+            return None
+        cols = store.columns(sid, since.timestamp(), until.timestamp(), max(1, columns))
+        return cols if bool((cols.vmin == cols.vmin).any()) else None
