@@ -10,9 +10,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from benchwarden import gas as g
-from benchwarden import hold, supply
-from benchwarden.profile import load_profile
+from benchwarden.core import gas as g
+from benchwarden.core import hold, supply
+from benchwarden.storage.profile import load_profile
 from benchwarden.workflows.build import build_plan
 
 ROOT = Path(__file__).resolve().parents[1]

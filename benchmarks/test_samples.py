@@ -18,8 +18,8 @@ from pathlib import Path
 
 import numpy as np
 
-from benchwarden.journal import Journal
-from benchwarden.samples import SampleStore
+from benchwarden.storage.journal import Journal
+from benchwarden.storage.samples import SampleStore
 
 DAYS = int(os.environ.get("BENCHWARDEN_BENCH_DAYS", "365"))
 CHUNK = 86400  # one synthetic day at a time
@@ -130,7 +130,7 @@ def test_leak_watch_refresh(tmp_path, ratio):
 
     from CoolProp.CoolProp import PropsSI
 
-    from benchwarden.profile import parse_profile
+    from benchwarden.storage.profile import parse_profile
     from benchwarden.workflows.watch import leak_watch
 
     demo = (Path(__file__).resolve().parents[1] / "profiles" / "demo-teaching-bench.toml").read_text()

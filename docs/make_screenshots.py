@@ -87,7 +87,7 @@ async def shoot() -> None:
 async def shoot_live() -> None:
     """The demo bench with a live gauge: a logger's file with two hours of samples of a leaking
     cylinder (an invented trace), read by the app; the leak watch and its alarm."""
-    from benchwarden.profile import demo_profile_text
+    from benchwarden.storage.profile import demo_profile_text
 
     with tempfile.TemporaryDirectory() as tmp:
         log = Path(tmp) / "n2-A.log"

@@ -8,7 +8,7 @@ from pathlib import Path
 import pytest
 from apptools import T0, Clock, settle
 
-from benchwarden.journal import Journal
+from benchwarden.storage.journal import Journal
 from benchwarden.tui.app import make_app
 from benchwarden.tui.screens.modals import ChangeScreen, ConfirmScreen, ReadingScreen, StopScreen
 from benchwarden.tui.screens.overview import OverviewScreen

@@ -10,10 +10,10 @@ from pathlib import Path
 import pytest
 from scipy.integrate import solve_ivp
 
-from benchwarden import gas as g
-from benchwarden import purge, room
 from benchwarden.cli import main
-from benchwarden.profile import load_profile
+from benchwarden.core import gas as g
+from benchwarden.core import purge, room
+from benchwarden.storage.profile import load_profile
 from benchwarden.workflows.bench import assess
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -132,7 +132,7 @@ def test_order_by_date_from_a_synthetic_journal(tmp_path, capsys):
     # 10 days' lead time, no spares: order-by = now + (usable / (1 kg/week) in days) − 10 days.
     import datetime as dt
 
-    from benchwarden.journal import Journal
+    from benchwarden.storage.journal import Journal
     from benchwarden.workflows.cylinder import consumption
 
     text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text().replace(
@@ -164,7 +164,7 @@ def test_order_by_date_from_a_synthetic_journal(tmp_path, capsys):
 def test_retest_and_service_dates_are_findings(tmp_path):
     import datetime as dt
 
-    from benchwarden.profile import parse_profile
+    from benchwarden.storage.profile import parse_profile
 
     text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
     past = (dt.date.today() - dt.timedelta(days=3)).isoformat()

@@ -12,7 +12,7 @@ from hypothesis import strategies as st
 
 from benchwarden.cli import main
 from benchwarden.errors import BenchwardenError
-from benchwarden.profile import demo_profile_text, parse_profile
+from benchwarden.storage.profile import demo_profile_text, parse_profile
 
 ROOT = Path(__file__).resolve().parents[1]
 C = ["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "200 bar", "--temperature", "15 degC"]

@@ -6,12 +6,17 @@ from pathlib import Path
 
 import pytest
 
-from benchwarden.checklist import build_checklist, checklist_json
-from benchwarden.checklist.render import render_html, render_markdown, render_pdf, render_text
 from benchwarden.cli import main
 from benchwarden.errors import ProfileError
-from benchwarden.profile import load_profile, parse_profile
+from benchwarden.render.checklist import build_checklist, checklist_json
+from benchwarden.render.checklist.render import (
+    render_html,
+    render_markdown,
+    render_pdf,
+    render_text,
+)
 from benchwarden.render.plan import plan_json
+from benchwarden.storage.profile import load_profile, parse_profile
 from benchwarden.workflows.bench import Assessment, assess, findings_of
 from benchwarden.workflows.build import build_plan
 from benchwarden.workflows.holds import LastHold
@@ -173,7 +178,7 @@ def test_printed_checklist_has_header_and_page_numbers_on_every_page(tmp_path):
 
 
 def test_markdown_escapes_only_what_markdown_needs():
-    from benchwarden.checklist.render import md_escape
+    from benchwarden.render.checklist.render import md_escape
 
     # regression: "\(N2 laser\)" and "\+00:00" were escaped needlessly
     assert md_escape("bench 2 (N2 laser) +00:00 #3") == "bench 2 (N2 laser) +00:00 #3"

@@ -11,7 +11,7 @@ import pytest
 
 from benchwarden.cli import main
 from benchwarden.errors import InputError
-from benchwarden.journal import Journal
+from benchwarden.storage.journal import Journal
 from benchwarden.workflows.cylinder import parse_at
 
 ROOT = Path(__file__).resolve().parents[1]

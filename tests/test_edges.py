@@ -20,9 +20,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from benchwarden import flow, gap, hold, regulator, supply
-from benchwarden import gas as g
 from benchwarden.cli import main
+from benchwarden.core import flow, gap, hold, regulator, supply
+from benchwarden.core import gas as g
 from benchwarden.errors import InputError
 from benchwarden.units import parse_volume, pressure_abs
 
@@ -409,7 +409,7 @@ def test_thousands_separator_in_a_pressure_is_refused_on_the_command_line(capsys
 def test_co2_vapour_supply_gives_no_solid_stop_in_a_plan():
     # A CO2 cylinder read at 50 bar(g), 21 °C holds only vapour (vapour pressure 58.6 bar(a),
     # Span & Wagner 1996); throttled to a low set point it stays above the sublimation line.
-    from benchwarden.profile import demo_profile_text, parse_profile
+    from benchwarden.storage.profile import demo_profile_text, parse_profile
     from benchwarden.workflows.build import build_plan
 
     text = (demo_profile_text().replace('gas = "nitrogen"', 'gas = "co2"')

@@ -4,8 +4,8 @@ import math
 
 import pytest
 
-from benchwarden import flow, gap, regulator
-from benchwarden import gas as g
+from benchwarden.core import flow, gap, regulator
+from benchwarden.core import gas as g
 from benchwarden.errors import InputError
 
 N2 = g.parse_gas("nitrogen")

@@ -8,7 +8,7 @@ of state from the `thermo`/`chemicals` libraries as a ±5 % sanity band.
 
 import pytest
 
-from benchwarden import gas as g
+from benchwarden.core import gas as g
 from benchwarden.errors import InputError
 
 

@@ -164,7 +164,7 @@ def test_zz_report_counts():
 def test_output_never_overwrites_without_force_and_never_the_journal_or_profile(tmp_path, capsys):
     # regression: `export 1 --output JOURNAL` turned the journal into CSV; `checklist bench.toml
     # --output bench.toml` overwrote the profile
-    from benchwarden.journal import Journal
+    from benchwarden.storage.journal import Journal
 
     journal = tmp_path / "j.sqlite3"
     with Journal(journal) as j:
@@ -209,7 +209,7 @@ def test_foreign_and_newer_databases_are_refused_untouched(tmp_path, capsys):
 
 
 def test_tilde_in_the_journal_path_is_the_home_folder(tmp_path, monkeypatch):
-    from benchwarden.journal import default_path
+    from benchwarden.storage.journal import default_path
 
     monkeypatch.setenv("HOME", str(tmp_path))
     monkeypatch.setenv("BENCHWARDEN_JOURNAL", "~/j.sqlite3")
@@ -218,7 +218,7 @@ def test_tilde_in_the_journal_path_is_the_home_folder(tmp_path, monkeypatch):
 
 
 def test_damaged_journal_is_refused_with_how_to_recover(tmp_path, capsys):
-    from benchwarden.journal import Journal
+    from benchwarden.storage.journal import Journal
 
     journal = tmp_path / "j.sqlite3"
     with Journal(journal) as j:
@@ -252,7 +252,7 @@ def test_a_read_only_journal_does_not_lose_a_computed_hold_test(tmp_path, capsys
 
     monkeypatch.setattr(holds, "store", refuse)
     (tmp_path / "j.sqlite3").write_bytes(b"")
-    from benchwarden.journal import Journal
+    from benchwarden.storage.journal import Journal
 
     Journal(tmp_path / "j2.sqlite3").close()
     code, out, err = _run(["hold", "--gas", "n2", "--volume", "50 L", "--start", "152 bar", "--end", "150 bar",
@@ -264,7 +264,7 @@ def test_three_identical_readings_and_a_tiny_draw_do_not_crash():
     # regression: OverflowError in the observed draw, "date value out of range"
     import datetime as dt
 
-    from benchwarden import gas as g
+    from benchwarden.core import gas as g
     from benchwarden.workflows.build import observed_draw
 
     t0 = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)

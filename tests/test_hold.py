@@ -9,11 +9,11 @@ import math
 import numpy as np
 import pytest
 
-from benchwarden import gas as g
-from benchwarden import hold as h
 from benchwarden.cli import main
+from benchwarden.core import gas as g
+from benchwarden.core import hold as h
+from benchwarden.core.tables import DensityTable
 from benchwarden.errors import InputError
-from benchwarden.tables import DensityTable
 
 N2 = g.parse_gas("nitrogen")
 AMB = 101325.0

@@ -12,8 +12,8 @@ import pytest
 
 from benchwarden.cli import main
 from benchwarden.errors import JournalError
-from benchwarden.journal import SCHEMA_VERSION, Journal, default_path
 from benchwarden.render.files import session_csv
+from benchwarden.storage.journal import SCHEMA_VERSION, Journal, default_path
 
 
 def test_schema_version_and_wal(tmp_path):
@@ -25,7 +25,7 @@ def test_schema_version_and_wal(tmp_path):
 def test_migrates_a_version_1_journal(tmp_path):
     p = tmp_path / "old.sqlite3"
     db = sqlite3.connect(p)
-    from benchwarden.journal import _MIGRATIONS
+    from benchwarden.storage.journal import _MIGRATIONS
 
     db.executescript(_MIGRATIONS[1] + "PRAGMA user_version = 1;")
     db.execute("INSERT INTO sessions(bench, started_at) VALUES ('b', '2026-01-01T10:00')")
@@ -76,7 +76,7 @@ def test_env_and_option_choose_the_path(tmp_path, monkeypatch):
 
 WRITER = textwrap.dedent("""
     import sys, time
-    from benchwarden.journal import Journal
+    from benchwarden.storage.journal import Journal
     j = Journal(sys.argv[1])
     sid = j.start_session("crash bench", None, "2026-12-01T09:00:00")
     for i in range(10_000):

@@ -21,13 +21,13 @@ from pathlib import Path
 import pymodbus  # noqa: F401  (the package once, before threads import its parts)
 import pytest
 
-from benchwarden import gas as g
-from benchwarden import supply
 from benchwarden.cli import main
-from benchwarden.journal import Journal
-from benchwarden.profile import parse_profile
-from benchwarden.samples import SampleStore
-from benchwarden.simulator import Cylinder, serve
+from benchwarden.core import gas as g
+from benchwarden.core import supply
+from benchwarden.live.simulator import Cylinder, serve
+from benchwarden.storage.journal import Journal
+from benchwarden.storage.profile import parse_profile
+from benchwarden.storage.samples import SampleStore
 from benchwarden.units import parse_flow
 from benchwarden.workflows.findings import alarm_findings
 from benchwarden.workflows.watch import (
@@ -131,7 +131,7 @@ def test_every_register_format_from_a_real_modbus_server():
     from pymodbus.server import ModbusTcpServer
     from pymodbus.simulator import DataType, SimData, SimDevice
 
-    from benchwarden.sources import modbus_tcp
+    from benchwarden.live.sources import modbus_tcp
 
     values = {"int16": -1234, "uint16": 54321, "int32": -123456789, "uint32": 3_000_000_000,
               "float32": 149.875, "float32-swapped": 149.875}
@@ -187,7 +187,7 @@ def _crc16_modbus(data: bytes) -> int:
 
 
 def test_modbus_rtu_through_a_pseudo_terminal():
-    from benchwarden.sources import modbus_rtu
+    from benchwarden.live.sources import modbus_rtu
 
     assert _crc16_modbus(b"123456789") == 0x4B37
     master, slave = os.openpty()
@@ -536,7 +536,7 @@ def test_bad_source_sections_are_refused_with_the_key(section, words):
 
 
 def test_a_modbus_rtu_section_builds_a_serial_modbus_source():
-    from benchwarden.sources import ModbusSource, make_source
+    from benchwarden.live.sources import ModbusSource, make_source
 
     prof = parse_profile(DEMO.replace(ANCHOR, ANCHOR + '[supplies.source]\nkind = "modbus-rtu"\nport = '
                                       '"/dev/ttyUSB9"\nbaud = 19200\nparity = "E"\ndevice = 12\nregister = 4\n', 1),
@@ -564,7 +564,7 @@ def test_an_unrecorded_new_cylinder_restarts_the_leak_watch(tmp_path):
 
 
 def test_a_serial_transducer_that_prints_fast_never_falls_behind():
-    from benchwarden.sources import SerialSource
+    from benchwarden.live.sources import SerialSource
 
     master, slave = os.openpty()
     src = SerialSource(os.ttyname(slave), lambda x: x, timeout_s=1.0)
@@ -600,7 +600,7 @@ def test_a_supply_leak_target_is_what_the_leak_watch_resolves_against(tmp_path):
 
 
 def test_two_samples_in_one_second_are_two_samples(tmp_path):
-    from benchwarden.sources import Sample
+    from benchwarden.live.sources import Sample
 
     class Steady:  # a transducer read twice within a second
         def poll(self, now):

@@ -40,7 +40,7 @@ def _bench(tmp_path: Path, state: str) -> tuple[Path, Path]:
     prof = tmp_path / f"{state}.toml"
     prof.write_text(text)
     journal = tmp_path / "journal.sqlite3"
-    from benchwarden.journal import Journal
+    from benchwarden.storage.journal import Journal
 
     Journal(journal).close()
     if state == "leak":
@@ -99,7 +99,7 @@ def test_every_finding_code_has_words():
 
 
 async def test_same_hold_test_stores_the_same_record_from_app_and_cli(tmp_path):
-    from benchwarden.journal import Journal
+    from benchwarden.storage.journal import Journal
     from benchwarden.tui.screens.tools import HoldScreen
 
     journal = tmp_path / "journal.sqlite3"

@@ -7,10 +7,10 @@ from pathlib import Path
 
 import pytest
 
-from benchwarden import gas as g
 from benchwarden.cli import main
+from benchwarden.core import gas as g
 from benchwarden.errors import ProfileError
-from benchwarden.profile import demo_profile_text, load_profile, parse_profile
+from benchwarden.storage.profile import demo_profile_text, load_profile, parse_profile
 from benchwarden.workflows.build import SupplyModel as _SupplyModel
 from benchwarden.workflows.build import build_plan
 
@@ -169,7 +169,7 @@ def test_cost_shots_and_gauge_band_of_the_demo_supply():
 def test_plan_draws_and_regulators_come_from_the_core_functions():
     # Consistency (not an outside check): the plan must use the core functions unchanged; the
     # core functions are checked against outside sources in their own test files.
-    from benchwarden import flow, regulator, supply
+    from benchwarden.core import flow, regulator, supply
 
     prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
     plan = build_plan(prof)
@@ -198,7 +198,7 @@ def test_plan_draws_and_regulators_come_from_the_core_functions():
 def test_errors_across_sections_name_the_line_and_key(old, new, line_of, key):
     # the line is found by searching the edited text, independently of the profile's parser
     from benchwarden.errors import ProfileError
-    from benchwarden.profile import parse_profile
+    from benchwarden.storage.profile import parse_profile
 
     text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text().replace(old, new, 1)
     first = text.index(line_of)

@@ -6,8 +6,8 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from benchwarden import gas as g
-from benchwarden import hold, supply
+from benchwarden.core import gas as g
+from benchwarden.core import hold, supply
 from benchwarden.units import ATM_PA, parse_flow, parse_pressure, pressure_abs
 
 N2 = g.parse_gas("nitrogen")

@@ -11,11 +11,11 @@ import math
 import pytest
 from scipy.integrate import solve_ivp
 
-from benchwarden import gas as g
-from benchwarden import room
+from benchwarden.core import gas as g
+from benchwarden.core import room
 from benchwarden.errors import InputError
-from benchwarden.quantities import parse_amount, parse_ventilation
 from benchwarden.units import parse_flow
+from benchwarden.units.quantities import parse_amount, parse_ventilation
 
 
 def test_release_models_closed_forms():

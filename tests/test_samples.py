@@ -9,8 +9,8 @@ import math
 import numpy as np
 import pytest
 
-from benchwarden.journal import Journal
-from benchwarden.samples import BLOCK_S, RAW_WINDOW_S, SampleStore, swinging_door
+from benchwarden.storage.journal import Journal
+from benchwarden.storage.samples import BLOCK_S, RAW_WINDOW_S, SampleStore, swinging_door
 
 T0 = 1_780_000_000.0  # a day boundary is not assumed anywhere
 

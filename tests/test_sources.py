@@ -10,7 +10,14 @@ import struct
 import pytest
 
 from benchwarden.errors import InputError
-from benchwarden.sources import FileSource, Sample, SampleFilter, SerialSource, decode, to_pressure
+from benchwarden.live.sources import (
+    FileSource,
+    Sample,
+    SampleFilter,
+    SerialSource,
+    decode,
+    to_pressure,
+)
 
 
 def BAR(x):
@@ -111,9 +118,9 @@ def test_simulator_served_on_loopback_is_read_by_the_modbus_source():
 
     import pymodbus  # noqa: F401  (imported once here, not by two threads at once)
 
-    from benchwarden import gas as g
-    from benchwarden.simulator import Cylinder, serve
-    from benchwarden.sources import modbus_tcp
+    from benchwarden.core import gas as g
+    from benchwarden.live.simulator import Cylinder, serve
+    from benchwarden.live.sources import modbus_tcp
 
     n2 = g.parse_gas("nitrogen")
     port = _free_port()
@@ -143,7 +150,7 @@ def test_simulator_served_on_loopback_is_read_by_the_modbus_source():
 
 
 def test_unreachable_modbus_device_is_a_bad_sample_not_a_crash():
-    from benchwarden.sources import modbus_tcp
+    from benchwarden.live.sources import modbus_tcp
 
     s = modbus_tcp("127.0.0.1", _free_port(), 1, 0, "float32", BAR, timeout_s=0.5).read(NOW)
     assert not s.good and "cannot reach" in s.why
@@ -154,8 +161,8 @@ def test_profile_source_section_builds_the_source(tmp_path):
     from pathlib import Path
 
     from benchwarden.errors import ProfileError
-    from benchwarden.profile import parse_profile
-    from benchwarden.sources import FileSource, ModbusSource, make_source
+    from benchwarden.live.sources import FileSource, ModbusSource, make_source
+    from benchwarden.storage.profile import parse_profile
 
     demo = (Path(__file__).resolve().parents[1] / "profiles" / "demo-teaching-bench.toml").read_text()
     section = ('\n[supplies.source]\nkind = "modbus-tcp"\nhost = "127.0.0.1"\nport = 5020\ndevice = 1\n'

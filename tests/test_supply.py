@@ -9,8 +9,8 @@ import math
 
 import pytest
 
-from benchwarden import gas as g
-from benchwarden import supply
+from benchwarden.core import gas as g
+from benchwarden.core import supply
 from benchwarden.errors import InputError
 from benchwarden.units import ATM_PA, REFERENCES, parse_flow
 

@@ -166,7 +166,7 @@ def test_errors_are_also_value_errors():
 
 def test_fast_unit_factors_agree_with_pint():
     # the fast path's exact factors must be pint's (the one registry stays the reference)
-    from benchwarden.units import _FAST, Q_
+    from benchwarden.units.parse import _FAST, Q_
 
     for unit, (target, factor) in _FAST.items():
         pint_unit = {"l": "L", "ml": "mL", "cm3": "cm**3", "cc": "cm**3", "m3": "m**3", "ft3": "ft**3",

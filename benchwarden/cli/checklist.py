@@ -9,8 +9,6 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from benchwarden.checklist import build_checklist, checklist_json
-from benchwarden.checklist.render import render_html, render_markdown, render_pdf, render_text
 from benchwarden.cli.common import (
     add_display,
     add_journal,
@@ -19,9 +17,16 @@ from benchwarden.cli.common import (
     input_error,
     journal_if_exists,
 )
-from benchwarden.journal import default_path
-from benchwarden.profile import load_profile
+from benchwarden.render.checklist import build_checklist, checklist_json
+from benchwarden.render.checklist.render import (
+    render_html,
+    render_markdown,
+    render_pdf,
+    render_text,
+)
 from benchwarden.render.files import write_output
+from benchwarden.storage.journal import default_path
+from benchwarden.storage.profile import load_profile
 from benchwarden.workflows.bench import assess
 
 

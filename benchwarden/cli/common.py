@@ -13,7 +13,7 @@ from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any, NoReturn
 
 if TYPE_CHECKING:  # pragma: no cover
-    from benchwarden.gas import Gas
+    from benchwarden.core.gas import Gas
     from benchwarden.render.display import Display
 
 EXIT_INPUT = 2
@@ -127,7 +127,7 @@ def ambient(args: argparse.Namespace) -> float:
 
 
 def gas(args: argparse.Namespace) -> Gas:
-    from benchwarden.gas import parse_gas
+    from benchwarden.core.gas import parse_gas
 
     return parse_gas(args.gas)
 
@@ -150,7 +150,7 @@ def computation(args: argparse.Namespace) -> tuple[Gas, float, Display]:
 
 def journal_if_exists(args: argparse.Namespace, readonly: bool = False) -> Any:
     """The journal when its file exists (commands that only read or add to it never create one)."""
-    from benchwarden.journal import Journal, default_path
+    from benchwarden.storage.journal import Journal, default_path
 
     path = default_path(getattr(args, "journal", None))
     return Journal(path, readonly=readonly) if path.exists() else None

@@ -17,14 +17,14 @@ from benchwarden.cli.common import (
     emit_table,
     input_error,
 )
-from benchwarden.journal import Journal, default_path
-from benchwarden.profile import Profile, load_profile
-from benchwarden.quantities import check_text
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
 from benchwarden.render.numbers import fmt_uncertain
+from benchwarden.storage.journal import Journal, default_path
+from benchwarden.storage.profile import Profile, load_profile
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
+from benchwarden.units.quantities import check_text
 from benchwarden.workflows import cylinder as cy
 from benchwarden.workflows.bench import assess
 

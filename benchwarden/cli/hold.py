@@ -9,7 +9,6 @@ from dataclasses import asdict
 from pathlib import Path
 from typing import Any
 
-from benchwarden import hold as hd
 from benchwarden.cli.common import (
     add_ambient,
     add_display,
@@ -23,6 +22,7 @@ from benchwarden.cli.common import (
     journal_if_exists,
     one_line,
 )
+from benchwarden.core import hold as hd
 from benchwarden.errors import JournalError
 from benchwarden.render.display import Display
 from benchwarden.render.numbers import fmt_uncertain

@@ -8,9 +8,9 @@ from dataclasses import asdict
 from typing import Any
 
 from benchwarden.cli.common import add_journal, add_json, emit_json, input_error, journal_if_exists
-from benchwarden.journal import default_path
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean, session_csv, write_output
+from benchwarden.storage.journal import default_path
 
 
 def configure(sub: Any, name: str) -> None:

@@ -7,9 +7,9 @@ import argparse
 import asyncio
 from typing import Any
 
-from benchwarden import supply
 from benchwarden.cli.common import add_display, add_gas, add_journal, computation, input_error
-from benchwarden.simulator import Cylinder, serve
+from benchwarden.core import supply
+from benchwarden.live.simulator import Cylinder, serve
 from benchwarden.units import (
     parse_duration,
     parse_flow,
@@ -95,10 +95,10 @@ def cmd_watch(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from benchwarden.cli.common import display
-    from benchwarden.journal import Journal, default_path
-    from benchwarden.profile import load_profile
     from benchwarden.render.display import live_text
     from benchwarden.render.findings import describe
+    from benchwarden.storage.journal import Journal, default_path
+    from benchwarden.storage.profile import load_profile
     from benchwarden.workflows.session import SessionState
 
     prof = load_profile(args.profile)

@@ -19,11 +19,11 @@ from benchwarden.cli.common import (
     emit_table,
     journal_if_exists,
 )
-from benchwarden.flow import orifice_flow
-from benchwarden.gap import breakdown
-from benchwarden.profile import load_profile
-from benchwarden.regulator import throttle
+from benchwarden.core.flow import orifice_flow
+from benchwarden.core.gap import breakdown
+from benchwarden.core.regulator import throttle
 from benchwarden.render.plan import format_plan, plan_json
+from benchwarden.storage.profile import load_profile
 from benchwarden.units import parse_flow, parse_length, parse_temperature, pressure_abs
 from benchwarden.workflows.bench import assess, leak_volume_flow
 

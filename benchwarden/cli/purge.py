@@ -6,8 +6,6 @@ import argparse
 from dataclasses import asdict
 from typing import Any
 
-from benchwarden import purge as pg
-from benchwarden import supply
 from benchwarden.cli.common import (
     add_ambient,
     add_display,
@@ -18,8 +16,10 @@ from benchwarden.cli.common import (
     emit_table,
     input_error,
 )
-from benchwarden.quantities import parse_fraction
+from benchwarden.core import purge as pg
+from benchwarden.core import supply
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
+from benchwarden.units.quantities import parse_fraction
 
 
 def configure(sub: Any, name: str) -> None:

@@ -7,9 +7,6 @@ import math
 from dataclasses import asdict
 from typing import Any
 
-from benchwarden import gas as g
-from benchwarden import room as rm
-from benchwarden import supply
 from benchwarden.cli.common import (
     CAUTION,
     add_ambient,
@@ -23,8 +20,11 @@ from benchwarden.cli.common import (
     gas,
     input_error,
 )
-from benchwarden.quantities import parse_amount, parse_ventilation
+from benchwarden.core import gas as g
+from benchwarden.core import room as rm
+from benchwarden.core import supply
 from benchwarden.units import fmt_hours, parse_flow, parse_temperature, parse_volume, pressure_abs
+from benchwarden.units.quantities import parse_amount, parse_ventilation
 
 
 def configure(sub: Any, name: str) -> None:

@@ -7,7 +7,6 @@ import datetime as dt
 from dataclasses import asdict
 from typing import Any
 
-from benchwarden import supply
 from benchwarden.cli.common import (
     add_ambient,
     add_display,
@@ -19,6 +18,7 @@ from benchwarden.cli.common import (
     emit_table,
     input_error,
 )
+from benchwarden.core import supply
 from benchwarden.units import (
     get_reference,
     parse_flow,

@@ -16,7 +16,7 @@ from benchwarden.errors import InputError
 from benchwarden.units import ATM_PA, T0_K, fmt_hours, fmt_pressure
 
 if TYPE_CHECKING:  # pragma: no cover
-    from benchwarden.profile import Profile
+    from benchwarden.storage.profile import Profile
 
 __all__ = ["PRESSURE_UNITS", "Display", "display_for", "profile_display"]
 

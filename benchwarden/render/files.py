@@ -16,7 +16,7 @@ from collections.abc import Callable, Iterable
 from pathlib import Path
 
 from benchwarden.errors import InputError
-from benchwarden.journal import Journal
+from benchwarden.storage.journal import Journal
 
 __all__ = ["write_output", "clean", "csv_cell", "session_csv"]
 

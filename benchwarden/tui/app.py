@@ -77,8 +77,8 @@ def make_app(profile_path: str | Path | None = None, journal_path: str | Path | 
              clock: Callable[[], dt.datetime] = now_local) -> BenchwardenApp:
     """Build the app for a profile (default: the bundled demo bench) and a journal file
     (default: ``$BENCHWARDEN_JOURNAL`` or the user data directory)."""
-    from benchwarden.journal import open_journal
-    from benchwarden.profile import demo_profile_path
+    from benchwarden.storage.journal import open_journal
+    from benchwarden.storage.profile import demo_profile_path
 
     path = Path(profile_path) if profile_path else demo_profile_path()
     journal = open_journal(journal_path)
@@ -89,7 +89,7 @@ def run_app(profile_path: str | None, journal_path: str | None) -> int:
     import os
 
     from benchwarden.errors import InputError
-    from benchwarden.profile import load_profile
+    from benchwarden.storage.profile import load_profile
 
     if os.environ.get("TERM", "") in ("dumb", "unknown"):
         raise InputError("the app needs a full-screen terminal (TERM is 'dumb'); use the commands instead, "

@@ -10,11 +10,11 @@ import datetime as dt
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
-from benchwarden import gas as g
-from benchwarden import room as rm
+from benchwarden.core import gas as g
+from benchwarden.core import room as rm
 from benchwarden.errors import BenchwardenError, JournalError
-from benchwarden.journal import Journal
-from benchwarden.profile import Profile
+from benchwarden.storage.journal import Journal
+from benchwarden.storage.profile import Profile
 from benchwarden.units import Flow
 from benchwarden.workflows.build import build_plan, full_mass, largest_supply
 from benchwarden.workflows.cylinder import (

@@ -9,15 +9,15 @@ import datetime as dt
 import math
 from typing import Any
 
-from benchwarden import flow as fl
-from benchwarden import gap as gp
-from benchwarden import gas as g
-from benchwarden import regulator as rg
-from benchwarden import room as rm
-from benchwarden import supply as sp
+from benchwarden.core import flow as fl
+from benchwarden.core import gap as gp
+from benchwarden.core import gas as g
+from benchwarden.core import regulator as rg
+from benchwarden.core import room as rm
+from benchwarden.core import supply as sp
+from benchwarden.core.tables import DensityTable
 from benchwarden.errors import BenchwardenError
-from benchwarden.profile import Draw, Profile, Supply
-from benchwarden.tables import DensityTable
+from benchwarden.storage.profile import Draw, Profile, Supply
 from benchwarden.units import ATM_PA, REFERENCES, T0_K
 from benchwarden.workflows import findings as fd
 from benchwarden.workflows.model import (
@@ -43,7 +43,7 @@ def _supply_T(prof: Profile, s: Supply) -> float:
 
 def _is_liquefied(gas: g.Gas, T: float, p: float | None = None) -> bool:
     """A gas sold liquefied below its critical temperature holds liquid, unless a reading
-    well below its vapour pressure says only vapour is left (:func:`benchwarden.gas.is_liquefied`)."""
+    well below its vapour pressure says only vapour is left (:func:`benchwarden.core.gas.is_liquefied`)."""
     if p is not None:
         return g.is_liquefied(gas, T, p)
     return gas.sold_liquefied and T < g.critical_temperature(gas)

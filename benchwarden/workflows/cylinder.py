@@ -22,14 +22,14 @@ import json
 import math
 from dataclasses import dataclass, field
 
-from benchwarden import gas as g
-from benchwarden import hold as hd
+from benchwarden.core import gas as g
+from benchwarden.core import hold as hd
 from benchwarden.errors import InputError, JournalError
-from benchwarden.journal import ChangeRow, Journal, ReadingRow
-from benchwarden.profile import Profile, Supply, with_reading, with_weight
-from benchwarden.quantities import check_text
-from benchwarden.samples import SampleStore
+from benchwarden.storage.journal import ChangeRow, Journal, ReadingRow
+from benchwarden.storage.profile import Profile, Supply, with_reading, with_weight
+from benchwarden.storage.samples import SampleStore
 from benchwarden.units import PSI_PA, Pressure, fmt_pressure
+from benchwarden.units.quantities import check_text
 from benchwarden.workflows.holds import (
     HoldRecord,
     profile_gauge_spec,
@@ -329,7 +329,7 @@ def idle_drops(journal: Journal | None, prof: Profile, supply_id: str, now: dt.d
 
 
 def idle_drop_result(prof: Profile, drop: IdleDrop) -> hd.HoldResult:
-    """The hold test of an idle drop: :func:`benchwarden.hold.hold_two_readings` on the supply's
+    """The hold test of an idle drop: :func:`benchwarden.core.hold.hold_two_readings` on the supply's
     water volume, gas and gauge, temperature-compensated with the readings' temperatures."""
     s = prof.supply(drop.supply_id)
     assert drop.first.pressure_abs_pa is not None and drop.last.pressure_abs_pa is not None

@@ -18,9 +18,9 @@ from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
 from typing import Literal
 
-from benchwarden import gas as g
-from benchwarden import room as rm
-from benchwarden.profile import Profile
+from benchwarden.core import gas as g
+from benchwarden.core import room as rm
+from benchwarden.storage.profile import Profile
 from benchwarden.units import T0_K
 from benchwarden.workflows.model import Observed, Plan, RoomPlan
 

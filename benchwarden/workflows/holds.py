@@ -1,7 +1,7 @@
 """Hold tests as a workflow: the gauge specification, one record, storing it, reading it back.
 
 The command line, the app and (later) automatic idle-drop tests all build the gauge
-specification with :func:`gauge_spec`, turn a :class:`benchwarden.hold.HoldResult` into the one
+specification with :func:`gauge_spec`, turn a :class:`benchwarden.core.hold.HoldResult` into the one
 :class:`HoldRecord` with :func:`record_of`, store it with :func:`store` and read the bench's
 latest with :func:`last_hold_test`, so the same test stores the same record whoever ran it.
 """
@@ -13,10 +13,10 @@ import json
 import math
 from dataclasses import asdict, dataclass
 
+from benchwarden.core.hold import GaugeSpec, HoldResult
 from benchwarden.errors import InputError, JournalError
-from benchwarden.hold import GaugeSpec, HoldResult
-from benchwarden.journal import Journal
-from benchwarden.profile import Gauge, Supply
+from benchwarden.storage.journal import Journal
+from benchwarden.storage.profile import Gauge, Supply
 from benchwarden.workflows.findings import Finding, hold_test_findings
 
 __all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "HoldRecord",
@@ -60,7 +60,7 @@ def source_gauge_spec(supply: Supply) -> GaugeSpec | None:
 
 def supply_target_sccm(supply: Supply) -> float | None:
     """The supply's leak target [sccm] from its profile, or None for the default."""
-    from benchwarden.hold import target_sccm
+    from benchwarden.core.hold import target_sccm
 
     return target_sccm(supply.gas, supply.leak_target) if supply.leak_target is not None else None
 

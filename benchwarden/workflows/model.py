@@ -10,8 +10,8 @@ Method summary
   held constant over the session, so the mass balance is exact: mass at start − draw × time =
   mass at the reserve at the time to reserve.
 * Projection: supply mass falls linearly; pressure from a Z(ρ) table (see
-  :class:`benchwarden.tables.DensityTable`); regulator outlet by the supply-pressure effect; gap
-  firing voltage at that outlet (:mod:`benchwarden.gap`).
+  :class:`benchwarden.core.tables.DensityTable`); regulator outlet by the supply-pressure effect; gap
+  firing voltage at that outlet (:mod:`benchwarden.core.gap`).
 """
 
 from __future__ import annotations
@@ -19,8 +19,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
-from benchwarden import gap as gp
-from benchwarden import room as rm
+from benchwarden.core import gap as gp
+from benchwarden.core import room as rm
 
 if TYPE_CHECKING:  # pragma: no cover
     from benchwarden.workflows.findings import Finding

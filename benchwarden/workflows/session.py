@@ -15,11 +15,11 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from benchwarden.errors import InputError, JournalError
-from benchwarden.journal import Journal, ReadingRow
-from benchwarden.profile import Profile, load_profile, with_reading
-from benchwarden.quantities import check_text
-from benchwarden.samples import Columns, SampleStore
+from benchwarden.storage.journal import Journal, ReadingRow
+from benchwarden.storage.profile import Profile, load_profile, with_reading
+from benchwarden.storage.samples import Columns, SampleStore
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
+from benchwarden.units.quantities import check_text
 from benchwarden.workflows import build as pl
 from benchwarden.workflows.bench import Assessment, findings_of, journal_state
 from benchwarden.workflows.cylinder import (

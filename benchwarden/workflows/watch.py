@@ -9,7 +9,7 @@ intervals makes the gauge **silent**.
 
 :func:`leak_watch` is the continuous hold test: while a supply stands idle (no session since
 its last cylinder change or the end of the last session), the real-gas mass of its samples is
-fitted against time with :func:`benchwarden.hold.hold_from_log` — the very function of
+fitted against time with :func:`benchwarden.core.hold.hold_from_log` — the very function of
 ``benchwarden hold --log`` — temperature-compensated with the temperature samples. When the data
 resolve the leak against the target, :func:`record_leak_watch` stores one hold test (kind
 ``leak-watch``, the same record as every other). During a session :func:`live_draw` fits the
@@ -29,13 +29,13 @@ from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field
 from typing import Any
 
-from benchwarden import hold as hd
+from benchwarden.core import hold as hd
 from benchwarden.errors import BenchwardenError, InputError, JournalError
-from benchwarden.journal import Journal
-from benchwarden.profile import Profile, Supply
-from benchwarden.profile_fields import SourceBase
-from benchwarden.samples import SampleStore
-from benchwarden.sources import LiveSource, SampleFilter, make_source
+from benchwarden.live.sources import LiveSource, SampleFilter, make_source
+from benchwarden.storage.journal import Journal
+from benchwarden.storage.profile import Profile, Supply
+from benchwarden.storage.profile_fields import SourceBase
+from benchwarden.storage.samples import SampleStore
 from benchwarden.workflows import build as pl
 from benchwarden.workflows.cylinder import current_change
 from benchwarden.workflows.findings import Finding

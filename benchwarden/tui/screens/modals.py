@@ -12,7 +12,7 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, Select, Static
 
-from benchwarden.cautions import DEFER, ESTIMATES, GENERAL, gas_cautions
+from benchwarden.core.cautions import DEFER, ESTIMATES, GENERAL, gas_cautions
 from benchwarden.errors import InputError
 from benchwarden.workflows.session import Reading, SessionState
 

@@ -169,7 +169,7 @@ class HoldScreen(_Tool):
         self.compute()
 
     def compute(self) -> None:
-        from benchwarden import hold as hd
+        from benchwarden.core import hold as hd
         from benchwarden.units import parse_duration, parse_temperature, pressure_abs
         from benchwarden.workflows import holds
 
@@ -227,7 +227,7 @@ class HoldScreen(_Tool):
         widget.display = fit is not None
         if fit is None:
             return
-        from benchwarden.hold import LogFit
+        from benchwarden.core.hold import LogFit
 
         assert isinstance(fit, LogFit)
         hours = [t / 3600.0 for t in fit.t_s]
@@ -256,7 +256,7 @@ class RoomScreen(_Tool):
         yield Footer()
 
     def on_mount(self) -> None:
-        from benchwarden import room as rm
+        from benchwarden.core import room as rm
 
         st = self.state
         assert st.plan is not None
@@ -295,7 +295,7 @@ class RoomScreen(_Tool):
         self.query_one("#room-leak", Input).focus()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
-        from benchwarden import room as rm
+        from benchwarden.core import room as rm
         from benchwarden.units import parse_flow
 
         st = self.state
@@ -332,13 +332,13 @@ class ChecklistScreen(_Tool):
 
     def on_mount(self) -> None:
         self.checklist = self._build()
-        from benchwarden.checklist.render import render_text
+        from benchwarden.render.checklist.render import render_text
 
         # wrapped once, to the window (not pre-wrapped for paper and wrapped again)
         self.query_one("#checklist-text", Static).update(render_text(self.checklist, width=max(40, self.size.width - 4)))
 
     def _build(self):  # type: ignore[no-untyped-def]
-        from benchwarden.checklist import build_checklist
+        from benchwarden.render.checklist import build_checklist
         from benchwarden.render.display import profile_display
 
         st = self.state
@@ -351,14 +351,14 @@ class ChecklistScreen(_Tool):
 
     @work(thread=True, exclusive=True)
     def export(self, folder: Path | None = None) -> None:
-        from benchwarden.checklist.render import render_html, render_pdf
+        from benchwarden.render.checklist.render import render_html, render_pdf
         from benchwarden.render.files import write_output
 
         st = self.state
         slug = re.sub(r"[^A-Za-z0-9]+", "-", self.checklist.bench).strip("-").lower()[:40] or "bench"
         stamp = st.clock().strftime("%Y%m%d-%H%M%S")
         if folder is None:  # next to the profile; for the bundled demo, the current folder
-            from benchwarden.profile import demo_profile_path
+            from benchwarden.storage.profile import demo_profile_path
 
             folder = st.profile_path.resolve().parent
             if st.profile_path.resolve() == demo_profile_path().resolve() or not os.access(folder, os.W_OK):
@@ -513,11 +513,11 @@ class PurgeScreen(_Tool):
         self.query_one("#purge-volume", Input).focus()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
-        from benchwarden import purge as pg
-        from benchwarden import supply as sp
-        from benchwarden.quantities import parse_fraction
+        from benchwarden.core import purge as pg
+        from benchwarden.core import supply as sp
         from benchwarden.render.display import profile_display
         from benchwarden.units import parse_flow, parse_volume, pressure_abs
+        from benchwarden.units.quantities import parse_fraction
 
         st = self.state
         assert st.profile is not None

@@ -13,7 +13,7 @@ import struct
 import time
 from dataclasses import dataclass, field
 
-from benchwarden import gas as g
+from benchwarden.core import gas as g
 from benchwarden.errors import InputError
 
 __all__ = ["Cylinder", "serve"]
@@ -33,7 +33,7 @@ class Cylinder:
     def __post_init__(self) -> None:
         import math
 
-        from benchwarden.supply import contents
+        from benchwarden.core.supply import contents
 
         contents(self.gas, self.volume_m3, self.pressure_abs_pa, self.temperature_k)  # volume and state checked
         if self.pressure_abs_pa <= self.ambient_pa:

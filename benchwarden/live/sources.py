@@ -20,7 +20,7 @@ from pathlib import Path
 from typing import Any, Literal
 
 from benchwarden.errors import InputError
-from benchwarden.profile_fields import SourceBase, TemperatureSource
+from benchwarden.storage.profile_fields import SourceBase, TemperatureSource
 from benchwarden.units import parse_pressure, parse_temperature
 
 __all__ = ["FORMATS", "decode", "Sample", "to_pressure", "to_temperature", "converter", "SampleFilter", "parse_line",
@@ -296,7 +296,7 @@ class ModbusSource:
 def modbus_tcp(host: str, port: int, device: int, register: int, fmt: str, convert: Convert,
                input_registers: bool = False, timeout_s: float = 2.0) -> ModbusSource:
     """A Modbus/TCP source (pymodbus ``ModbusTcpClient``)."""
-    import pymodbus  # noqa: F401  (the package first, see benchwarden.simulator)
+    import pymodbus  # noqa: F401  (the package first, see benchwarden.live.simulator)
     from pymodbus.client import ModbusTcpClient
 
     client = ModbusTcpClient(host, port=port, timeout=timeout_s, retries=0)

@@ -11,7 +11,7 @@ import textwrap
 from importlib import resources
 from pathlib import Path
 
-from benchwarden.checklist import Checklist, Item
+from benchwarden.render.checklist import Checklist, Item
 
 WIDTH = 100
 MARK = {"ok": "OK", "info": "INFO", "attention": "ATTENTION", "warning": "WARNING", "stop": "STOP"}

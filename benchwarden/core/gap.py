@@ -25,7 +25,7 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from benchwarden import gas as g
+from benchwarden.core import gas as g
 from benchwarden.units import check_positive, check_range
 
 TORR_PA = 101325.0 / 760.0

@@ -11,7 +11,7 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from benchwarden import gas as g
+from benchwarden.core import gas as g
 from benchwarden.errors import InputError
 from benchwarden.units import ATM_PA, T0_K, check_positive, check_range, fmt_pressure
 

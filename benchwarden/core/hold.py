@@ -30,9 +30,9 @@ import math
 import re
 from dataclasses import dataclass
 
-from benchwarden import gas as g
+from benchwarden.core import gas as g
+from benchwarden.core.tables import DensityTable
 from benchwarden.errors import InputError
-from benchwarden.tables import DensityTable
 from benchwarden.units import (
     ATM_PA,
     Flow,
@@ -93,7 +93,7 @@ def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
 
 def target_sccm(gas: g.Gas, flow: Flow) -> float:
     """A target leak rate (any standard or mass flow) as sccm at 0 °C, 101.325 kPa."""
-    from benchwarden.supply import mass_flow
+    from benchwarden.core.supply import mass_flow
 
     return sccm_from_kg_s(gas, mass_flow(gas, flow))
 
@@ -401,7 +401,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     the slope is the leak rate, its standard error the scatter part of the uncertainty; the
     gauge's systematic part (MPE over the span of the log, GUM) is added in quadrature.
 
-    Masses come from a Z(p, T) table (:class:`benchwarden.tables.DensityTable`, error < 1e-4),
+    Masses come from a Z(p, T) table (:class:`benchwarden.core.tables.DensityTable`, error < 1e-4),
     not from one CoolProp call per row. A quadratic term significant at 3 standard errors
     flags a curved decay (a temperature swing, a step, a leak that changes) only where it
     matters: its departure from the line exceeds what the gauge resolves (one reading's

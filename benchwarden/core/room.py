@@ -29,10 +29,10 @@ import math
 from dataclasses import dataclass
 from typing import Literal
 
-from benchwarden import gas as g
+from benchwarden.core import gas as g
 from benchwarden.errors import InputError
-from benchwarden.quantities import Amount
 from benchwarden.units import Flow, check_positive
+from benchwarden.units.quantities import Amount
 
 #: Oxygen in dry air, vol % (common value; 20.946 % in the US Standard Atmosphere 1976).
 C0_AIR = 20.95
@@ -240,7 +240,7 @@ def leak_volume_flow(gas: g.Gas, f: Flow, T_room: float, p_room: float) -> float
     room, a plain volume flow as given (taken at room conditions)."""
     if f.kind == "actual":
         return f.value
-    from benchwarden.supply import mass_flow
+    from benchwarden.core.supply import mass_flow
 
     return mass_flow(gas, f) / g.density(gas, T_room, p_room)
 

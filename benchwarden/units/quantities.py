@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from typing import Literal
 
 from benchwarden.errors import InputError
-from benchwarden.units import parse_flow, parse_mass, parse_volume, shorten, split_number
+from benchwarden.units.parse import parse_flow, parse_mass, parse_volume, shorten, split_number
 
 __all__ = ["check_text", "Ventilation", "parse_ventilation", "Amount", "parse_amount", "parse_fraction"]
 

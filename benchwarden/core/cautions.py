@@ -7,7 +7,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from benchwarden.gas import Gas
+from benchwarden.core.gas import Gas
 
 DEFER = ("Follow local codes and regulations, the gas supplier's safety data sheet and your lab's own "
          "procedures and licensed practice; they take precedence over anything shown here.")

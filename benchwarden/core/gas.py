@@ -1,4 +1,4 @@
-"""Real-gas properties from CoolProp (the catalogue is in :mod:`benchwarden.gases`, re-exported
+"""Real-gas properties from CoolProp (the catalogue is in :mod:`benchwarden.core.gases`, re-exported
 here).
 
 Real-gas properties come from CoolProp's HEOS backend (the reference multiparameter
@@ -22,8 +22,7 @@ import threading
 from dataclasses import dataclass
 from typing import Any
 
-from benchwarden.errors import InputError, PropertyError
-from benchwarden.gases import (
+from benchwarden.core.gases import (
     AIR_MOLAR_MASS,
     PURE_GASES,
     T0,
@@ -37,6 +36,7 @@ from benchwarden.gases import (
     sublimation_pressure,
     sublimation_temperature,
 )
+from benchwarden.errors import InputError, PropertyError
 from benchwarden.units import fmt_pressure, fmt_temperature
 
 __all__ = ["has_sublimation_line", "sublimation_pressure", "sublimation_temperature", "AIR_MOLAR_MASS", "PURE_GASES", "R", "T0", "Gas", "Handling", "PureGas", "parse_gas", "pure_gas"]

@@ -1,7 +1,7 @@
 """The gas catalogue: pure gases with their handling facts (each with its source), mixtures by
 mole fraction, and the parser for what a person types (``co2``, ``"he:0.8,n2:0.2"``).
 
-Properties (densities, phases, flashes) live in :mod:`benchwarden.gas`, which re-exports these
+Properties (densities, phases, flashes) live in :mod:`benchwarden.core.gas`, which re-exports these
 names.
 """
 

@@ -22,7 +22,7 @@ from pydantic import (
 
 from benchwarden import units as u
 from benchwarden.errors import InputError, ProfileError
-from benchwarden.profile_fields import (
+from benchwarden.storage.profile_fields import (
     DurationQ,
     FlowQ,
     FrequencyQ,
@@ -38,8 +38,8 @@ from benchwarden.profile_fields import (
     VoltageQ,
     VolumeQ,
 )
-from benchwarden.profile_fields import ProfileModel as _Model
-from benchwarden.profile_fields import positive as _positive
+from benchwarden.storage.profile_fields import ProfileModel as _Model
+from benchwarden.storage.profile_fields import positive as _positive
 
 # ----------------------------------------------------------------------------- sections
 

@@ -5,7 +5,7 @@ A computed item shows a plan figure (``value``, and where it sits in ``benchward
 ``source``) and takes its status from the findings about it (``code``: the worst finding's
 code), so the checklist never judges anything itself: its statuses are the findings'
 severities (``stop``, ``warning``, ``attention``, ``info``) or ``ok`` where nothing was found.
-Renderers live in :mod:`benchwarden.checklist.render`.
+Renderers live in :mod:`benchwarden.render.checklist.render`.
 """
 
 from __future__ import annotations
@@ -18,11 +18,11 @@ from importlib import resources
 from pathlib import Path
 from typing import Any, Literal
 
-from benchwarden.cautions import DEFER, ESTIMATES, GENERAL, Caution, gas_cautions
+from benchwarden.core.cautions import DEFER, ESTIMATES, GENERAL, Caution, gas_cautions
 from benchwarden.errors import ProfileError
-from benchwarden.profile import Profile
 from benchwarden.render.display import Display
 from benchwarden.render.findings import describe
+from benchwarden.storage.profile import Profile
 from benchwarden.workflows.bench import Assessment
 from benchwarden.workflows.findings import SEVERITY_RANK, Finding, counts
 

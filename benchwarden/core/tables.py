@@ -5,8 +5,8 @@ from __future__ import annotations
 
 from typing import Any
 
+from benchwarden.core.gas import Gas, R, density, gas_branch_densities
 from benchwarden.errors import InputError
-from benchwarden.gas import Gas, R, density, gas_branch_densities
 
 __all__ = ["DensityTable"]
 

@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from benchwarden import gas as g
+from benchwarden.core import gas as g
 from benchwarden.errors import InputError, PropertyError
 from benchwarden.units import T0_K, fmt_pressure, fmt_temperature
 
@@ -76,7 +76,7 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     line and solid (dry ice) forms, its mass fraction from the enthalpy balance with the
     Clausius–Clapeyron sublimation enthalpy. Otherwise the outlet is vapour, evaluated on the
     vapour branch of the equation of state also below the triple-point temperature.
-    Mixtures use a phase-equilibrium (h, p) flash (:func:`benchwarden.gas.flash_ph`) that says
+    Mixtures use a phase-equilibrium (h, p) flash (:func:`benchwarden.core.gas.flash_ph`) that says
     when a component condenses. Freezing is a result, not an error.
 
     Examples

@@ -30,7 +30,7 @@ from benchwarden.errors import InputError
 if TYPE_CHECKING:
     import numpy as np
 
-    from benchwarden.journal import Journal
+    from benchwarden.storage.journal import Journal
 
 __all__ = ["RAW_WINDOW_S", "BLOCK_S", "swinging_door", "SampleStore", "Columns"]
 

@@ -21,7 +21,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from benchwarden import gas as g
+from benchwarden.core import gas as g
 from benchwarden.errors import InputError
 from benchwarden.units import ATM_PA, T0_K, check_range
 

@@ -11,10 +11,10 @@ from typing import Annotated, Any, Literal
 
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
 
-from benchwarden import quantities as q
 from benchwarden import units as u
+from benchwarden.core.gas import Gas, parse_gas
 from benchwarden.errors import InputError
-from benchwarden.gas import Gas, parse_gas
+from benchwarden.units import quantities as q
 
 # ----------------------------------------------------------------------------- field types
 
