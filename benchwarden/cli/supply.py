@@ -27,6 +27,7 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
+from benchwarden.units.constants import T_FULL_K
 
 
 def configure(sub: Any, name: str) -> None:
@@ -73,7 +74,7 @@ def configure(sub: Any, name: str) -> None:
 def cmd_contents(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     ref = get_reference(args.reference)
-    T = parse_temperature(args.temperature) if args.temperature else 288.15
+    T = parse_temperature(args.temperature) if args.temperature else T_FULL_K
     if (args.gross is None) != (args.tare is None):
         raise input_error("--gross and --tare go together: give both weights")
     if args.gross is not None:

@@ -27,8 +27,8 @@ from typing import Any
 
 from benchwarden.core import gas as g
 from benchwarden.units import check_positive, check_range
+from benchwarden.units.constants import BAR_PA, TORR_PA
 
-TORR_PA = 101325.0 / 760.0
 T_REF = 293.15  # K, reference temperature of the empirical formula
 
 #: Paschen constants (A [1/(cm·Torr)], B [V/(cm·Torr)]) from Raizer (1991) Table 4.1, from memory.
@@ -120,7 +120,7 @@ def _high_pd_kv(gas: g.Gas, pd: Any) -> Any:
 def _paschen_kv(A: float, B: float, pd_bar_cm: Any) -> Any:
     import numpy as np
 
-    pd_torr = np.asarray(pd_bar_cm, dtype=float) * 1e5 / TORR_PA
+    pd_torr = np.asarray(pd_bar_cm, dtype=float) * BAR_PA / TORR_PA
     with np.errstate(divide="ignore", invalid="ignore"):
         denom = np.log(A * pd_torr) - _LN_LN
         return np.where(denom > 0, B * pd_torr / denom / 1000.0, np.inf)
@@ -145,7 +145,7 @@ def join_parameters(gas: g.Gas) -> tuple[float, float] | None:
     c = v_h / v_p - 1.0
     if c >= 0:
         return c, 1.0
-    pd_torr = PD_JOIN * 1e5 / TORR_PA
+    pd_torr = PD_JOIN * BAR_PA / TORR_PA
     log_slope = 1.0 - 1.0 / (math.log(A * pd_torr) - _LN_LN)
     return c, min(1.0, 0.8 * log_slope * (1.0 + c) / -c)
 
@@ -159,7 +159,7 @@ def breakdown_series(gas: g.Gas, spacing_m: float, p_abs: Any, T: float = T_REF)
 
     check_positive(spacing_m, "gap spacing", "m")
     p = np.asarray(p_abs, dtype=float)
-    pd = p / 1e5 * spacing_m * 100.0 * T_REF / T
+    pd = p / BAR_PA * spacing_m * 100.0 * T_REF / T
     high = _high_pd_kv(gas, pd)
     join = join_parameters(gas)
     if join is None:
@@ -198,7 +198,7 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     check_range(spacing_m, "gap spacing", 0.0, 0.5, "m", "a spark gap")
     check_positive(p_abs, "gap pressure (absolute)", "Pa")
     g.check_state(gas, T, p_abs)
-    pd_bar_cm = p_abs / 1e5 * spacing_m * 100.0 * T_REF / T
+    pd_bar_cm = p_abs / BAR_PA * spacing_m * 100.0 * T_REF / T
     kv = float(breakdown_series(gas, spacing_m, p_abs, T))
     pure = None if gas.is_mixture else gas.components[0][0].key
     if pd_bar_cm >= PD_JOIN or pure not in PASCHEN:

@@ -13,13 +13,13 @@ from dataclasses import dataclass, field
 
 from benchwarden.errors import InputError
 from benchwarden.units import fmt_pressure, fmt_temperature
+from benchwarden.units.constants import T0_K
 
 #: Molar mass of dry air, [kg/mol] (Lemmon et al. 2000, J. Phys. Chem. Ref. Data 29, 331).
 AIR_MOLAR_MASS = 0.0289586
 #: Molar gas constant, [J/(mol·K)] (CODATA 2018, exact).
 R = 8.314462618
-#: 0 °C in kelvin.
-T0 = 273.15
+T0 = T0_K  # kept as the catalogue's short name
 
 
 @dataclass(frozen=True)

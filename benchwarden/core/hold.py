@@ -34,19 +34,19 @@ from benchwarden.core import gas as g
 from benchwarden.core.tables import DensityTable
 from benchwarden.errors import InputError
 from benchwarden.units import (
-    ATM_PA,
     Flow,
     check_positive,
     check_range,
     fmt_pressure,
     fmt_temperature,
 )
+from benchwarden.units.constants import ATM_PA, BAR_PA, SCCM_PER_M3_S, SECONDS_PER_DAY, T0_K
 
 #: Largest held volume of a hold test [m³].
 MAX_HELD_M3 = 100.0
 
 #: Standard-flow reference for leak rates: 0 °C, 101.325 kPa.
-T_STD, P_STD = 273.15, 101325.0
+T_STD, P_STD = T0_K, ATM_PA
 SQRT3 = math.sqrt(3.0)
 K_EXPANDED = 2.0
 
@@ -88,7 +88,7 @@ def standard_density(gas: g.Gas) -> float:
 
 def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
     """Mass flow [kg/s] as sccm at 0 °C, 101.325 kPa (real density at the reference)."""
-    return mdot / standard_density(gas) * 60e6
+    return mdot / standard_density(gas) * SCCM_PER_M3_S
 
 
 def target_sccm(gas: g.Gas, flow: Flow) -> float:
@@ -104,7 +104,7 @@ def pa_m3_s_from_sccm(sccm: float) -> float:
     >>> round(pa_m3_s_from_sccm(1.0), 8)
     0.00168875
     """
-    return sccm * P_STD / 60e6
+    return sccm * P_STD / SCCM_PER_M3_S
 
 
 def line_volume(length_m: float, bore_m: float) -> float:
@@ -190,12 +190,12 @@ def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: flo
             gauge: GaugeSpec | None, target_sccm: float | None, reserve_abs: float | None,
             ambient: float, temps_given: bool, notes: list[str], method: str) -> HoldResult:
     rho_std = standard_density(gas)
-    sccm = mdot / rho_std * 60e6
-    u_sccm = u_mdot / rho_std * 60e6
+    sccm = mdot / rho_std * SCCM_PER_M3_S
+    u_sccm = u_mdot / rho_std * SCCM_PER_M3_S
     if target_sccm is None:
         # default target: a leak losing 1 % of the contents per day, but not below 1 sccm
         # (benchwarden defaults; give --target for your own criterion)
-        target_sccm = max(0.01 * m1 / 86400.0 / rho_std * 60e6, 1.0)
+        target_sccm = max(0.01 * m1 / SECONDS_PER_DAY / rho_std * SCCM_PER_M3_S, 1.0)
         notes.append(f"target leak rate not given: using 1 % of the contents per day, at least 1 sccm "
                      f"= {target_sccm:.3g} sccm")
     U = K_EXPANDED * u_sccm
@@ -207,7 +207,7 @@ def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: flo
         verdict = "inconclusive"
     # ASTM E2930 rules of thumb against the pressure change of the target leak over the hold
     res_ok = acc_ok = None
-    target_kg_s = target_sccm / 60e6 * rho_std
+    target_kg_s = target_sccm / SCCM_PER_M3_S * rho_std
     dp_target = target_kg_s * duration / dmdp_end if dmdp_end > 0 else math.inf
     if gauge is not None:
         res = gauge.resolution_pa if gauge.resolution_pa is not None else gauge.mpe_pa
@@ -228,8 +228,8 @@ def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: flo
     h_empty = (m2 - g.density(gas, T2, ambient) * V) / mdot / 3600.0 if mdot > 0 else math.inf
     return HoldResult(
         gas.name, V, duration, p1, p2, T1, T2, temps_given, m1, m2, m1 - m2, u_dm, mdot, u_mdot, sccm, u_sccm,
-        pa_m3_s_from_sccm(sccm), pa_m3_s_from_sccm(sccm) * 10.0, mdot * 86400.0,
-        100.0 * mdot * 86400.0 / m1 if m1 > 0 else math.nan, mdot / dmdp_end * 86400.0 if dmdp_end > 0 else math.nan,
+        pa_m3_s_from_sccm(sccm), pa_m3_s_from_sccm(sccm) * 10.0, mdot * SECONDS_PER_DAY,
+        100.0 * mdot * SECONDS_PER_DAY / m1 if m1 > 0 else math.nan, mdot / dmdp_end * SECONDS_PER_DAY if dmdp_end > 0 else math.nan,
         U, target_sccm, verdict, h_res, max(0.0, h_empty), hold_needed, res_ok, acc_ok, tuple(notes), method,
         dp_target)
 
@@ -259,7 +259,7 @@ def hold_two_readings(
     for p, what in ((p_start, "start pressure"), (p_end, "end pressure")):
         if gauge is not None and p - ambient_pa > gauge.span_pa * 1.0001:
             raise InputError(f"{what} {fmt_pressure(p, ambient_pa)} is above the gauge range "
-                             f"{gauge.span_pa / 1e5:.4g} bar")
+                             f"{gauge.span_pa / BAR_PA:.4g} bar")
     notes: list[str] = []
     temps_given = T_start is not None and T_end is not None
     if not temps_given:
@@ -291,7 +291,7 @@ class HoldLog:
     T_k: tuple[float, ...] | None
 
 
-_TIME_UNITS = {"s": 1.0, "sec": 1.0, "min": 60.0, "h": 3600.0, "hr": 3600.0, "d": 86400.0, "day": 86400.0}
+_TIME_UNITS = {"s": 1.0, "sec": 1.0, "min": 60.0, "h": 3600.0, "hr": 3600.0, "d": SECONDS_PER_DAY, "day": SECONDS_PER_DAY}
 
 
 def _header_unit(name: str) -> tuple[str, str | None]:

@@ -19,16 +19,17 @@ from benchwarden.units import (
     fmt_pressure,
     fmt_temperature,
 )
+from benchwarden.units.constants import ATM_PA, T0_K, T_FULL_K
 
 #: Largest water volume taken as one supply: a cylinder bundle (5 m³).
 MAX_SUPPLY_M3 = 5.0
 
 #: Highest temperature at which compressed-gas cylinders should be stored, [K]:
 #: 52 °C / 125 °F (CGA P-1 "Safe handling of compressed gases in containers", from memory).
-STORAGE_LIMIT_K = 52.0 + 273.15
+STORAGE_LIMIT_K = 52.0 + T0_K
 #: Temperature at which the developed pressure must not exceed the test pressure, [K]:
 #: 65 °C (ADR/RID packing instruction P200 and EN ISO 11114 filling rules, from memory).
-DEVELOPED_PRESSURE_K = 65.0 + 273.15
+DEVELOPED_PRESSURE_K = 65.0 + T0_K
 
 
 @dataclass(frozen=True)
@@ -151,7 +152,7 @@ def contents(
 
 def contents_by_weight(
     gas: g.Gas, gross_kg: float, tare_kg: float, reference: Reference = REFERENCES["15C"],
-    T: float = 288.15, volume_m3: float | None = None,
+    T: float = T_FULL_K, volume_m3: float | None = None,
 ) -> Contents:
     """Contents of a cylinder from its weights: m = gross − tare (the method for liquefied gases).
 
@@ -209,7 +210,7 @@ class HeatUp:
 
 
 def heat_up(
-    gas: g.Gas, p_abs: float, T1: float, T2: float, ambient_pa: float = 101325.0,
+    gas: g.Gas, p_abs: float, T1: float, T2: float, ambient_pa: float = ATM_PA,
     service_abs: float | None = None, test_abs: float | None = None,
 ) -> HeatUp:
     """Pressure of a closed cylinder taken from T1 to T2 at constant density (isochoric).

@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 
 from benchwarden.core import gas as g
 from benchwarden.errors import InputError
+from benchwarden.units.constants import ATM_PA, BAR_PA, T0_K
 
 __all__ = ["Cylinder", "serve"]
 
@@ -27,7 +28,7 @@ class Cylinder:
     temperature_k: float
     loss_kg_s: float
     speed: float = 1.0
-    ambient_pa: float = 101325.0
+    ambient_pa: float = ATM_PA
     started: float = field(default_factory=time.monotonic)
 
     def __post_init__(self) -> None:
@@ -69,7 +70,7 @@ async def serve(cyl: Cylinder, port: int, host: str = "127.0.0.1", duration_s: f
 
     async def action(function_code: int, start_address: int, address: int, count: int,
                      current: list[int], set_registers: object) -> None:
-        regs = _words((cyl.now_pressure() - cyl.ambient_pa) / 1e5) + _words(cyl.temperature_k - 273.15)
+        regs = _words((cyl.now_pressure() - cyl.ambient_pa) / BAR_PA) + _words(cyl.temperature_k - T0_K)
         for i in range(len(current)):
             if start_address + i < len(regs):
                 current[i] = regs[start_address + i]

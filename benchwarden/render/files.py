@@ -17,6 +17,7 @@ from pathlib import Path
 
 from benchwarden.errors import InputError
 from benchwarden.storage.journal import Journal
+from benchwarden.units.constants import ATM_PA
 
 __all__ = ["write_output", "clean", "csv_cell", "session_csv"]
 
@@ -89,7 +90,7 @@ def write_output(path: str | os.PathLike[str], data: bytes | str | Callable[[Pat
     return out
 
 
-def session_csv(journal: Journal, session_id: int, ambient_pa: float = 101325.0) -> str:
+def session_csv(journal: Journal, session_id: int, ambient_pa: float = ATM_PA) -> str:
     """One session's readings as CSV: SI columns, the text as typed, and each gauge pressure
     converted back with the ambient it was typed against (so an export reads back exactly what
     was typed). Text cells are spreadsheet-safe (:func:`csv_cell`)."""

@@ -24,16 +24,11 @@ from functools import lru_cache
 from typing import TYPE_CHECKING, Literal
 
 from benchwarden.errors import InputError
+from benchwarden.units.constants import ATM_PA, BAR_PA, PSI_PA, T0_K, T_FULL_K
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
 
-#: Standard atmosphere, [Pa] (ISO 2533; also the definition of 1 atm).
-ATM_PA = 101325.0
-#: Pounds per square inch in pascal (exact from the definitions of the pound-force and inch).
-PSI_PA = 6894.757293168361
-#: 0 °C in kelvin.
-T0_K = 273.15
 
 
 @lru_cache(maxsize=1)
@@ -71,8 +66,8 @@ class Reference:
 
 #: Named reference conditions. ``key`` is what users type.
 REFERENCES: dict[str, Reference] = {
-    "0C": Reference("0C", 273.15, ATM_PA, "0 °C, 101.325 kPa", "DIN 1343 normal conditions"),
-    "15C": Reference("15C", 288.15, ATM_PA, "15 °C, 101.325 kPa", "ISO 13443 standard reference conditions"),
+    "0C": Reference("0C", T0_K, ATM_PA, "0 °C, 101.325 kPa", "DIN 1343 normal conditions"),
+    "15C": Reference("15C", T_FULL_K, ATM_PA, "15 °C, 101.325 kPa", "ISO 13443 standard reference conditions"),
     "20C": Reference("20C", 293.15, ATM_PA, "20 °C, 101.325 kPa", "20 °C / 1 atm (NTP, common practice)"),
     "70F": Reference(
         "70F", (70.0 - 32.0) * 5.0 / 9.0 + T0_K, 14.696 * PSI_PA, "70 °F, 14.696 psia",
@@ -165,7 +160,7 @@ def check_positive(value: float, what: str, unit: str = "") -> float:
 
 _PRESSURE_UNITS = {
     "pa": 1.0, "hpa": 100.0, "kpa": 1e3, "mpa": 1e6, "gpa": 1e9,
-    "bar": 1e5, "mbar": 100.0, "kbar": 1e8,
+    "bar": BAR_PA, "mbar": 100.0, "kbar": 1e8,
     "psi": PSI_PA, "ksi": 1000 * PSI_PA,
     "atm": ATM_PA, "torr": ATM_PA / 760.0, "mmhg": 133.322387415, "inhg": 3386.389,
 }
@@ -238,7 +233,7 @@ def parse_pressure(text: str, ambient_pa: float = ATM_PA, what: str = "pressure"
     abs_pa = pa + ambient_pa if kind == "gauge" else pa
     if abs_pa < 0:
         raise InputError(
-            f"{what} {text!r} is below vacuum (absolute {abs_pa / 1e5:.4g} bar(a)); "
+            f"{what} {text!r} is below vacuum (absolute {abs_pa / BAR_PA:.4g} bar(a)); "
             "a gauge reading cannot be lower than minus the ambient pressure"
         )
     return Pressure(kind, pa, text.strip())

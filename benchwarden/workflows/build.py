@@ -19,6 +19,7 @@ from benchwarden.core.tables import DensityTable
 from benchwarden.errors import BenchwardenError
 from benchwarden.storage.profile import Draw, Profile, Supply
 from benchwarden.units import ATM_PA, REFERENCES, T0_K
+from benchwarden.units.constants import T_FULL_K
 from benchwarden.workflows import findings as fd
 from benchwarden.workflows.model import (
     PROJECTION_POINTS,
@@ -223,7 +224,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             if model.liquefied and s.gross is not None and s.tare is not None:
                 full = s.gross - s.tare
             else:
-                full = g.density(s.gas, 288.15, s.service_pressure.abs_at(amb)) * s.water_volume
+                full = g.density(s.gas, T_FULL_K, s.service_pressure.abs_at(amb)) * s.water_volume
             cost = s.fill_price / full * mdot * 3600.0
         fits = hours >= session_h
         # projection
@@ -304,7 +305,7 @@ def full_mass(prof: Profile, s: Supply) -> float:
     if s.gross is not None and s.tare is not None:
         return s.gross - s.tare
     try:
-        return g.density(s.gas, 288.15, s.service_pressure.abs_at(prof.ambient_pa)) * s.water_volume
+        return g.density(s.gas, T_FULL_K, s.service_pressure.abs_at(prof.ambient_pa)) * s.water_volume
     except BenchwardenError:
         return 0.0
 

@@ -29,6 +29,7 @@ from benchwarden.storage.journal import ChangeRow, Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply, with_reading, with_weight
 from benchwarden.storage.samples import SampleStore
 from benchwarden.units import PSI_PA, Pressure, fmt_pressure
+from benchwarden.units.constants import BAR_PA, T0_K
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows.holds import (
     HoldRecord,
@@ -209,7 +210,7 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
     s = prof.supply(entry.supply_id)
     amb = prof.ambient_pa
     if not READING_T_RANGE[0] < entry.temperature_k < READING_T_RANGE[1]:
-        raise InputError(f"cylinder temperature {entry.temperature_k - 273.15:.1f} °C is outside −73 °C to 77 °C; "
+        raise InputError(f"cylinder temperature {entry.temperature_k - T0_K:.1f} °C is outside −73 °C to 77 °C; "
                          "check the unit")
     if entry.pressure_abs_pa is not None:
         p = entry.pressure_abs_pa
@@ -244,8 +245,8 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
         out.append(Question("rise-without-change", {"previous_abs_pa": p0, "pressure_abs_pa": p1,
                                                     "previous_at": prev.at}))
     ratio = (p1 - amb) / (p0 - amb) if p0 - amb > 0 else math.nan
-    if math.isfinite(ratio) and (abs(ratio - PSI_PA / 1e5) < 0.1 * PSI_PA / 1e5
-                                 or abs(ratio - 1e5 / PSI_PA) < 0.1 * 1e5 / PSI_PA):
+    if math.isfinite(ratio) and (abs(ratio - PSI_PA / BAR_PA) < 0.1 * PSI_PA / BAR_PA
+                                 or abs(ratio - BAR_PA / PSI_PA) < 0.1 * BAR_PA / PSI_PA):
         out.append(Question("unit-swapped", {"previous_abs_pa": p0, "pressure_abs_pa": p1, "ratio": ratio}))
     hours = (entry.at - _dt(prev.at)).total_seconds() / 3600.0
     if planned_kg_s and planned_kg_s > 0 and hours > 0 and p1 < p0 - tol:

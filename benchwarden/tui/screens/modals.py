@@ -14,6 +14,7 @@ from textual.widgets import Button, Input, Label, Select, Static
 
 from benchwarden.core.cautions import DEFER, ESTIMATES, GENERAL, gas_cautions
 from benchwarden.errors import InputError
+from benchwarden.units.constants import T0_K
 from benchwarden.workflows.session import Reading, SessionState
 
 
@@ -51,10 +52,10 @@ class ReadingScreen(ModalScreen[Reading | None]):
         st = self.state
         last = st.last_reading(supply_id)
         if last is not None:
-            return f"{last.temperature_k - 273.15:.1f} degC"
+            return f"{last.temperature_k - T0_K:.1f} degC"
         assert st.plan is not None
         sp = next(s for s in st.plan.supplies if s.id == supply_id)
-        return f"{sp.temperature_k - 273.15:.1f} degC"
+        return f"{sp.temperature_k - T0_K:.1f} degC"
 
     def on_mount(self) -> None:
         self.query_one("#pressure", Input).focus()
@@ -211,7 +212,7 @@ class ChangeScreen(_Form):
             yield Input(placeholder="new fill: 198 bar, or 75.2 kg gross", id="fill", compact=True)
             yield Input(placeholder="label or serial (optional)", id="label", compact=True)
             yield Input(placeholder="retest due YYYY-MM-DD (optional)", id="retest", compact=True)
-            yield Input(value=f"{st.profile.ambient.temperature - 273.15:.1f} degC", id="temperature", compact=True)
+            yield Input(value=f"{st.profile.ambient.temperature - T0_K:.1f} degC", id="temperature", compact=True)
             yield Static("", id="error", classes="error")
             with Horizontal(classes="buttons"):
                 yield Button("Save", variant="primary", id="save")

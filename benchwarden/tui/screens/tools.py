@@ -19,6 +19,7 @@ from textual_plotext import PlotextPlot
 from benchwarden.errors import BenchwardenError, InputError, JournalError
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.units import fmt_hours, fmt_pressure
+from benchwarden.units.constants import BAR_PA
 from benchwarden.workflows.session import SessionState
 
 
@@ -69,7 +70,7 @@ class GraphScreen(_Tool):
         off = (st.plan_at - origin).total_seconds() / 3600.0
 
         def bar_g(p: float) -> float:
-            return (p - amb) / 1e5
+            return (p - amb) / BAR_PA
 
         plt = self.query_one(PlotextPlot).plt
         plt.clear_data()
