@@ -284,6 +284,10 @@ def hold_test_findings(verdict: str | None, rate_sccm: float = math.nan, u_sccm:
     if verdict == "leak":
         code = {"idle-drop": "idle-drop-leak", "leak-watch": "leak-watch-leak"}.get(kind or "", "hold-test-leak")
         return [Finding(code, "stop", "leaks", values)]
+    if verdict == "likely-leak":
+        return [Finding("hold-test-likely-leak", "warning", "leaks", values)]
+    if verdict == "pressure-rose":
+        return [Finding("hold-test-pressure-rose", "attention", "leaks", values)]
     if verdict == "inconclusive":
         return [Finding("hold-test-inconclusive", "attention", "leaks", values)]
     if age_days > HOLD_TEST_MAX_AGE_DAYS:
