@@ -90,6 +90,12 @@ def standard_density(gas: g.Gas) -> float:
     return g.density(gas, T_STD, P_STD)
 
 
+def kg_s_from_sccm(gas: g.Gas, sccm: float) -> float:
+    """Standard flow [sccm at 0 °C, 101.325 kPa] as a mass flow [kg/s] (real density at the
+    reference); the inverse of :func:`sccm_from_kg_s`."""
+    return sccm / SCCM_PER_M3_S * standard_density(gas) if sccm else 0.0
+
+
 def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
     """Mass flow [kg/s] as sccm at 0 °C, 101.325 kPa (real density at the reference)."""
     return mdot / standard_density(gas) * SCCM_PER_M3_S

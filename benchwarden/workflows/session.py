@@ -34,7 +34,7 @@ from benchwarden.workflows.cylinder import (
     record_reading,
 )
 from benchwarden.workflows.findings import Finding, alarm_findings
-from benchwarden.workflows.holds import LastHold, last_hold_test, profile_gauge_spec
+from benchwarden.workflows.holds import LastHold, last_hold_test, profile_gauge_spec, standing_leaks
 from benchwarden.workflows.model import Observed, Plan
 from benchwarden.workflows.watch import (
     AlarmBook,
@@ -134,7 +134,9 @@ class SessionState:
         now = self.clock()
         latest = max((r.at for rs in self.readings.values() for r in rs), default=None)
         self.plan_at = latest or now
-        self.plan = pl.build_plan(self.effective_profile(), now=self.plan_at, start_at=self.plan_at)
+        prof = self.effective_profile()
+        self.plan = pl.build_plan(prof, now=self.plan_at, start_at=self.plan_at,
+                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name))
         self._observe()
 
     def _observe(self) -> None:
@@ -204,7 +206,8 @@ class SessionState:
             if r.struck or r.pressure_abs_pa is None:
                 continue
             self.readings.setdefault(r.supply_id, []).append(
-                Reading(r.supply_id, dt.datetime.fromisoformat(r.at), r.pressure_abs_pa, r.pressure_text, r.temperature_k))
+                Reading(r.supply_id, dt.datetime.fromisoformat(r.at), r.pressure_abs_pa, r.pressure_text, r.temperature_k,
+                        journal_id=r.id))
 
     def parse_reading(self, supply_id: str, value: str, temperature: str, when: str) -> Reading:
         """Check a typed reading (same parsers as the command line): a gauge pressure, or a gross
@@ -256,8 +259,8 @@ class SessionState:
 
     def _write_reading(self, reading: Reading) -> None:
         assert self.journal is not None and self.profile is not None
-        record_reading(self.journal, self.profile, reading.entry(), self.session_id if self.running else None,
-                       self.clock())
+        reading.journal_id = record_reading(self.journal, self.profile, reading.entry(),
+                                            self.session_id if self.running else None, self.clock())
 
     def retry_unsaved(self) -> int:
         """Write the readings the journal refused before; returns how many are still unsaved."""

@@ -227,7 +227,8 @@ class OverviewScreen(Screen[None]):
                 continue
             parts.append(f"{s.id}: observed {fmt_uncertain(ob.draw_kg_s * 6e4, ob.draw_uncertainty_kg_s * 6e4, 'g/min')}"
                          f" vs planned {fmt_value(s.draw_kg_s * 6e4)} g/min"
-                         + ("  ▲ faster than planned" if ob.faster_than_planned else ""))
+                         + ("  ▲ faster than planned" if ob.faster_than_planned else "")
+                         + ("" if ob.resolved else "  (not resolved yet: the plan's projection stands)"))
         for sid, lv in st.live.items():
             parts.append(f"{sid}: {live_text(lv, self.units)}")
         self.query_one("#observed", Static).update(Text("\n".join(parts)))
