@@ -10,11 +10,13 @@ from typing import Any, cast
 
 from benchwarden.cli.common import (
     add_display,
+    add_fail_on,
     add_journal,
     add_json,
     display,
     emit_json,
     emit_table,
+    exit_for,
     input_error,
 )
 from benchwarden.render.display import Display
@@ -66,6 +68,7 @@ def configure(sub: Any, name: str) -> None:
         add_journal(p)
         add_display(p)
         add_json(p)
+        add_fail_on(p)
         p.set_defaults(func=cmd_status)
 
 
@@ -266,7 +269,7 @@ def cmd_status(args: argparse.Namespace) -> int:
                    "supplies": supplies, "findings": findings, "alarms": alarms,
                    "last_hold_test": None if a.last_hold is None else asdict(a.last_hold) | {
                        "at": a.last_hold.at.isoformat(), "withdrawn": False}})
-        return 0
+        return exit_for(args, a.findings)
     print(f"Status: {prof.bench.name}")
     for s in supplies:
         rows = [("gas", s["gas"]),
@@ -296,7 +299,7 @@ def cmd_status(args: argparse.Namespace) -> int:
         print(f"Alarms in the last {RECENT_ALARMS_S / 3600:g} h")
         for al in alarms:
             print(f"  {al['at'][:16].replace('T', ' ')}  {clean(al['text'])}")
-    return 0
+    return exit_for(args, a.findings)
 
 
 def _print_findings(findings: list[Any], d: Display) -> None:
