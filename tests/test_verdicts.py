@@ -20,7 +20,7 @@ AMB = 101325.0
 
 
 def _pr_mass(T, p, V):
-    from thermo import ChemicalConstantsPackage, CEOSGas, PRMIX
+    from thermo import PRMIX, CEOSGas, ChemicalConstantsPackage
 
     consts, props = ChemicalConstantsPackage.from_IDs(["nitrogen"])
     kw = {"Tcs": consts.Tcs, "Pcs": consts.Pcs, "omegas": consts.omegas}
