@@ -156,6 +156,9 @@ def test_readings_a_minute_apart_store_no_hold_test(capsys, tmp_path):
     _cli(capsys, j, "reading", PROFILE, "n2-A", "--pressure", "150 bar", "--at", "2026-11-30T08:01")
     st = _status(capsys, j)
     assert st["supplies"][0]["hold_tests"] == [] and st["last_hold_test"] is None
+    # ... and says how long a hold would need: long enough for the target's pressure change to be
+    # ten times the class 1.6 gauge's resolution (ASTM E2930 rule of thumb) — days, not minutes
+    assert st["supplies"][0]["idle_drop_hold_needed_s"] > 86400
 
 
 def test_a_found_leak_counts_as_a_draw_in_the_time_to_reserve(capsys, tmp_path):

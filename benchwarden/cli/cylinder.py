@@ -181,6 +181,12 @@ def _cons(j: Journal | None, prof: Profile, sid: str) -> float | None:
     return c.kg_per_week if c is not None else None
 
 
+def _needed(j: Journal | None, prof: Profile, sid: str, now: dt.datetime) -> float | None:
+    """How long a hold would need, when the latest idle drop was too short to tell [s]."""
+    r = cy.unresolved_idle_drop(j, prof, sid, now)
+    return _seconds(r.hold_needed_h) if r is not None else None
+
+
 def _seconds(hours: float) -> float | None:
     return hours * 3600.0 if math.isfinite(hours) else None
 
@@ -239,6 +245,7 @@ def cmd_status(args: argparse.Namespace) -> int:
                 "mass_kg": sp.mass_kg, "usable_mass_kg": sp.usable_mass_kg,
                 "time_to_reserve_s": _seconds(sp.hours_to_reserve), "reserve_at": sp.reserve_at,
                 "leak_included_sccm": sp.leak_sccm,
+                "idle_drop_hold_needed_s": _needed(j, prof, sp.id, now),
                 "cylinder_label": change.label if change else None,
                 "retest_due": change.retest_due if change else None,
                 "leak_verdict": lv["leak_verdict"] if from_live else ht.verdict if ht else None,
@@ -289,6 +296,9 @@ def cmd_status(args: argparse.Namespace) -> int:
             rows.append(("last hold test", f"{s['leak_verdict']}, "
                                            f"{fmt_uncertain(s['leak_rate_sccm'], s['leak_rate_uncertainty_sccm'], 'sccm')} "
                                            f"({s['hold_test_kind'] or 'manual'})"))
+        if s["idle_drop_hold_needed_s"] is not None:
+            rows.append(("idle readings", "too close together to resolve the target leak with this gauge: "
+                                          f"a hold of about {d.hours(s['idle_drop_hold_needed_s'] / 3600)} would"))
         if s["order_by"]:
             rows.append(("order by", f"{s['order_by']} ({s['consumption_kg_per_week']:.3g} kg/week recorded)"))
         if s["cylinder_label"] or s["retest_due"]:

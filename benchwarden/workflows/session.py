@@ -34,7 +34,14 @@ from benchwarden.workflows.cylinder import (
     record_reading,
 )
 from benchwarden.workflows.findings import Finding, alarm_findings, life_findings, ranked
-from benchwarden.workflows.holds import LastHold, last_hold_test, profile_gauge_spec, standing_leaks
+from benchwarden.workflows.holds import (
+    JudgedHold,
+    LastHold,
+    judged_hold_tests,
+    last_hold_test,
+    profile_gauge_spec,
+    standing_leaks,
+)
 from benchwarden.workflows.model import Observed, Plan
 from benchwarden.workflows.record import StopsStand, standing_stops, start_session
 from benchwarden.workflows.watch import (
@@ -354,6 +361,12 @@ class SessionState:
         if not math.isfinite(sp.hours_to_reserve):
             return math.inf
         return sp.hours_to_reserve - (now - self.plan_at).total_seconds() / 3600.0
+
+    def judged_hold_tests(self) -> list[JudgedHold]:
+        """The bench's hold tests, each marked withdrawn or of an earlier cylinder (oldest first)."""
+        if self.journal is None or self.profile is None:
+            return []
+        return judged_hold_tests(self.journal, self.profile.bench.name)
 
     def last_hold_test(self) -> LastHold | None:
         """The bench's latest hold test in the journal (with its age now)."""
