@@ -179,3 +179,24 @@ def test_a_found_leak_counts_as_a_draw_in_the_time_to_reserve(capsys, tmp_path):
     leak_kg_s = s["leak_included_sccm"] / 60e6 * 1.2506
     assert s["time_to_reserve_s"] == pytest.approx(s["usable_mass_kg"] / (planned_kg_s + leak_kg_s), rel=2e-3)
     assert s["time_to_reserve_s"] < f["time_to_reserve_s"]
+
+
+def test_an_observed_draw_not_resolved_projects_no_reserve_and_raises_nothing():
+    # issue 23 case: readings minutes apart with a class 1.6 gauge of 315 bar (EN 837-1: MPE
+    # ±5.04 bar, u = MPE/√3 per reading) cannot tell a draw of ~0.7 kg/min from none
+    import datetime as dt
+
+    from benchwarden.workflows.build import observed_draw
+
+    t0 = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    u_p = 0.016 * 315e5 / math.sqrt(3)
+    readings = [(t0, 64e5 + AMB, 294.15), (t0 + dt.timedelta(minutes=3), 63e5 + AMB, 294.15)]
+    ob = observed_draw(N2, 0.050, 15e5 + AMB, 1e-4, readings, u_p, "n2-A")
+    assert ob is not None and ob.draw_kg_s > 0
+    assert ob.draw_kg_s < 2 * ob.draw_uncertainty_kg_s
+    assert not ob.resolved and ob.reserve_at is None and math.isinf(ob.hours_to_reserve)
+    assert not ob.faster_than_planned
+    # the same drop over six hours is resolved and projects a reserve time
+    slow = [(t0, 64e5 + AMB, 294.15), (t0 + dt.timedelta(hours=6), 44e5 + AMB, 294.15)]
+    ob2 = observed_draw(N2, 0.050, 15e5 + AMB, 1e-4, slow, u_p, "n2-A")
+    assert ob2 is not None and ob2.resolved and ob2.reserve_at is not None
