@@ -9,6 +9,7 @@ from dataclasses import asdict
 from typing import Any, cast
 
 from benchwarden.cli.common import (
+    EXIT_INPUT,
     add_display,
     add_fail_on,
     add_journal,
@@ -18,6 +19,7 @@ from benchwarden.cli.common import (
     emit_table,
     exit_for,
     input_error,
+    read_text_file,
 )
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean
@@ -30,6 +32,7 @@ from benchwarden.units.quantities import check_text
 from benchwarden.workflows import cylinder as cy
 from benchwarden.workflows.bench import assess
 from benchwarden.workflows.holds import judged_hold_tests
+from benchwarden.workflows.importing import MAX_IMPORT_BYTES, import_readings
 
 AT_HELP = "when it was read: 'HH:MM' today (or last night), an ISO date-time, or now (default)"
 
@@ -37,7 +40,7 @@ AT_HELP = "when it was read: 'HH:MM' today (or last night), an ISO date-time, or
 def configure(sub: Any, name: str) -> None:
     if name == "reading":
         p = sub.add_parser("reading", help="record a gauge reading or a weight of a supply (in or out of a session)")
-        _entry_args(p)
+        _entry_args(p, bulk=True)
         p.add_argument("--confirm", action="store_true",
                        help="record a reading that looks implausible (a rise without a change, a very fast drop, "
                             "a unit that looks swapped)")
@@ -72,12 +75,16 @@ def configure(sub: Any, name: str) -> None:
         p.set_defaults(func=cmd_status)
 
 
-def _entry_args(p: argparse.ArgumentParser) -> None:
+def _entry_args(p: argparse.ArgumentParser, bulk: bool = False) -> None:
     p.add_argument("profile", help="bench profile (TOML)")
     p.add_argument("supply", help="supply id, as in the profile")
     what = p.add_mutually_exclusive_group(required=True)
     what.add_argument("--pressure", help="gauge reading, e.g. '146 bar' (or '147 bar(a)')")
     what.add_argument("--weight", help="gross weight on the scale (liquefied gases), e.g. '74.1 kg'")
+    if bulk:
+        what.add_argument("--from", dest="from_file", metavar="FILE.csv",
+                          help="import many readings: a CSV with a header naming time (ISO 8601), pressure "
+                               "('62 bar') or weight ('74.1 kg'), and optionally temperature ('19 degC') and note")
     p.add_argument("--temperature", help="cylinder temperature (default: the profile's ambient)")
     p.add_argument("--at", help=AT_HELP)
 
@@ -100,9 +107,38 @@ def _entry(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> cy.Entr
     return cy.Entry(args.supply, at, T, weight_kg=w)
 
 
+def cmd_import(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> int:
+    """``reading --from FILE.csv``: many readings in one transaction (all or nothing)."""
+    if args.temperature or args.at:
+        raise input_error("--from takes the time and temperature from the file's columns: leave out "
+                          "--at and --temperature")
+    text = read_text_file(args.from_file, "--from", MAX_IMPORT_BYTES)
+    d = display(args, prof.ambient_pa, prof)
+    with _open(args) as j:
+        a = assess(prof, j, now)
+        planned = next((s.draw_kg_s for s in a.plan.supplies if s.id == args.supply), None)
+        r = import_readings(j, prof, args.supply, text, now, args.confirm, planned)
+    refused = [{"line": n, "reason": why} for n, why in r.refused]
+    if not r.refused and not args.confirm:
+        refused += [{"line": n, "reason": "implausible: " + question_text(q, d) + " (record it with --confirm)"}
+                    for n, q in r.questions]
+    if args.json:
+        emit_json({"recorded": r.recorded, "skipped": r.skipped, "refused": refused})
+    else:
+        print(f"{args.from_file}: {r.recorded} recorded, {r.skipped} skipped (already in the journal), "
+              f"{len(refused)} refused" + (" — nothing was recorded" if refused else ""))
+        for x in refused[:20]:
+            print(f"  line {x['line']}: {clean(str(x['reason']))}")
+        if len(refused) > 20:
+            print(f"  … and {len(refused) - 20} more")
+    return EXIT_INPUT if refused else 0
+
+
 def cmd_reading(args: argparse.Namespace) -> int:
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
+    if getattr(args, "from_file", None):
+        return cmd_import(args, prof, now)
     d = display(args, prof.ambient_pa, prof)
     entry = _entry(args, prof, now)
     with _open(args) as j:

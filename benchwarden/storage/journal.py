@@ -157,6 +157,7 @@ _MIGRATIONS: dict[int, str] = {
         reason TEXT NOT NULL
     );
     CREATE INDEX accepted_stops_session ON accepted_stops(session_id);
+    ALTER TABLE readings ADD COLUMN note TEXT;
     """,
 }
 
@@ -214,6 +215,7 @@ class ReadingRow:
     ambient_pa: float | None = None
     struck_at: str | None = None
     struck_reason: str | None = None
+    note: str | None = None
 
     @property
     def struck(self) -> bool:
@@ -435,6 +437,21 @@ class Journal:
             (session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, entered_at, weight_kg,
              ambient_pa)).lastrowid))
 
+    def add_readings(self, rows: Sequence[tuple[Any, ...]]) -> int:
+        """Record many idle readings in one transaction (all or none): each row is (bench,
+        supply_id, at, pressure_abs_pa, pressure_text, temperature_k, entered_at, weight_kg,
+        ambient_pa, note). Returns how many were written."""
+        self._write(lambda db: db.executemany(
+            "INSERT INTO readings(session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,"
+            " entered_at, weight_kg, ambient_pa, note) VALUES (NULL, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", rows))
+        return len(rows)
+
+    def reading_keys(self, bench: str, supply_id: str) -> set[tuple[str, float | None, float | None]]:
+        """(time, absolute pressure, weight) of every reading of a supply: what a bulk import
+        compares with so that importing a file twice adds nothing."""
+        return {(a, p, w) for a, p, w in self._read(
+            "SELECT at, pressure_abs_pa, weight_kg FROM readings WHERE bench = ? AND supply_id = ?", (bench, supply_id))}
+
     def strike_reading(self, reading_id: int, at: str, reason: str) -> None:
         """Strike a reading out (kept, marked, with the reason): nothing is ever deleted."""
         if not reason.strip():
@@ -504,7 +521,7 @@ class Journal:
         return rows[-1] if rows else None
 
     _READING_COLUMNS = ("id, session_id, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, bench,"
-                        " weight_kg, ambient_pa, struck_at, struck_reason")
+                        " weight_kg, ambient_pa, struck_at, struck_reason, note")
 
     def supply_readings(self, bench: str, supply_id: str) -> list[ReadingRow]:
         """Every reading of a supply of a bench, in and out of sessions, struck ones included."""

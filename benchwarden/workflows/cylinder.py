@@ -207,6 +207,21 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
                   ) -> list[Question]:
     """Check an entry against the supply's limits (raises :class:`InputError`) and return the
     questions an implausible one raises (empty: record it)."""
+    check_limits(prof, entry)
+    s = prof.supply(entry.supply_id)
+    rows = [r for r in readings_since_change(journal, prof.bench.name, s.id) if r.pressure_abs_pa is not None]
+    if entry.pressure_abs_pa is None or not rows:
+        return []
+    prev = max((r for r in rows if _dt(r.at) <= entry.at), key=lambda r: r.at, default=None)
+    if prev is None or prev.pressure_abs_pa is None:
+        return []
+    return questions_after(prof, Entry(s.id, _dt(prev.at), prev.temperature_k, prev.pressure_abs_pa), entry,
+                           planned_kg_s, prev.at)
+
+
+def check_limits(prof: Profile, entry: Entry) -> None:
+    """An entry against its supply's limits: temperature, test pressure, gauge range, tare
+    (raises :class:`InputError`)."""
     s = prof.supply(entry.supply_id)
     amb = prof.ambient_pa
     if not READING_T_RANGE[0] < entry.temperature_k < READING_T_RANGE[1]:
@@ -224,11 +239,16 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
             raise InputError(f"supply {s.id} has no tare weight in the profile: a weight reading needs it")
         if entry.weight_kg < s.tare:
             raise InputError(f"weight {entry.weight_kg:g} kg is below the tare weight {s.tare:g} kg of {s.id}")
-    rows = [r for r in readings_since_change(journal, prof.bench.name, s.id) if r.pressure_abs_pa is not None]
-    if entry.pressure_abs_pa is None or not rows:
-        return []
-    prev = max((r for r in rows if _dt(r.at) <= entry.at), key=lambda r: r.at, default=None)
-    if prev is None or prev.pressure_abs_pa is None:
+
+
+def questions_after(prof: Profile, prev: Entry, entry: Entry, planned_kg_s: float | None = None,
+                    prev_at: str | None = None) -> list[Question]:
+    """What is implausible about a pressure entry after the previous pressure on the same
+    cylinder: a rise beyond the gauge and the temperature, a unit that looks swapped, a drop far
+    faster than planned (empty: record it)."""
+    s = prof.supply(entry.supply_id)
+    amb = prof.ambient_pa
+    if entry.pressure_abs_pa is None or prev.pressure_abs_pa is None:
         return []
     out: list[Question] = []
     p0, p1 = prev.pressure_abs_pa, entry.pressure_abs_pa
@@ -243,12 +263,12 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
             warm = 0.0
     if p1 > p0 + tol + warm:
         out.append(Question("rise-without-change", {"previous_abs_pa": p0, "pressure_abs_pa": p1,
-                                                    "previous_at": prev.at}))
+                                                    "previous_at": prev_at or prev.at.isoformat()}))
     ratio = (p1 - amb) / (p0 - amb) if p0 - amb > 0 else math.nan
     if math.isfinite(ratio) and (abs(ratio - PSI_PA / BAR_PA) < 0.1 * PSI_PA / BAR_PA
                                  or abs(ratio - BAR_PA / PSI_PA) < 0.1 * BAR_PA / PSI_PA):
         out.append(Question("unit-swapped", {"previous_abs_pa": p0, "pressure_abs_pa": p1, "ratio": ratio}))
-    hours = (entry.at - _dt(prev.at)).total_seconds() / 3600.0
+    hours = (entry.at - prev.at).total_seconds() / 3600.0
     if planned_kg_s and planned_kg_s > 0 and hours > 0 and p1 < p0 - tol:
         T = entry.temperature_k
         lost = (g.density(s.gas, T, p0) - g.density(s.gas, T, p1)) * s.water_volume
