@@ -212,9 +212,8 @@ def _order_date(o: cy.OrderBy | None) -> str | None:
     return o.order_by.date().isoformat() if o is not None and o.order_by is not None else None
 
 
-def _cons(j: Journal | None, prof: Profile, sid: str) -> float | None:
-    c = cy.consumption(j, prof, sid)
-    return c.kg_per_week if c is not None else None
+def _cons(o: cy.OrderBy | None) -> float | None:
+    return o.consumption.kg_per_week if o is not None and o.consumption is not None else None
 
 
 def _needed(j: Journal | None, prof: Profile, sid: str, now: dt.datetime) -> float | None:
@@ -261,9 +260,8 @@ def cmd_status(args: argparse.Namespace) -> int:
         all_judged = judged_hold_tests(j, prof.bench.name) if j is not None else []
         for sp in a.plan.supplies:
             judged = all_judged
-            history = cy.readings_since_change(j, prof.bench.name, sp.id)
             change = cy.current_change(j, prof.bench.name, sp.id)
-            last = history[-1] if history else None
+            last = cy.last_reading(j, prof.bench.name, sp.id)
             live = _live(j, prof, sp.id, now, a.plan.ambient_pa)
             judged = [h for h in judged if h.row.supply_id == sp.id and not h.earlier_cylinder]
             counting = [h.row for h in judged if h.counts]
@@ -298,7 +296,7 @@ def cmd_status(args: argparse.Namespace) -> int:
                                for h in judged],
                 "order_by": _order_date(a.orders.get(sp.id)),
                 "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,
-                "consumption_kg_per_week": _cons(j, prof, sp.id),
+                "consumption_kg_per_week": _cons(a.orders.get(sp.id)),
             }))
         since = (now - dt.timedelta(seconds=RECENT_ALARMS_S)).isoformat(timespec="seconds")
         alarms: list[dict[str, str]] = [{"at": r.at, "supply_id": r.supply_id or "", "code": r.code, "text": r.text}

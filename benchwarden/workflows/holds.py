@@ -155,12 +155,9 @@ def judged_hold_tests(journal: Journal, bench: str) -> list[JudgedHold]:
     """Every hold test of the bench, oldest first, each judged: withdrawn (a struck reading) or
     from an earlier cylinder. The one rule every output takes (status, checklist, history)."""
     rows = journal.hold_tests(bench)
-    struck: dict[int, str] = {}
+    struck = {rd.id: rd.struck_reason or "struck out" for rd in journal.struck_readings(bench)}
     last_change: dict[str, str] = {}
     for sid in {r.supply_id for r in rows if r.supply_id}:
-        for rd in journal.supply_readings(bench, sid):
-            if rd.struck:
-                struck[rd.id] = rd.struck_reason or "struck out"
         changes = journal.changes(bench, sid)
         if changes:
             last_change[sid] = changes[-1].at
