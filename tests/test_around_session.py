@@ -172,4 +172,5 @@ def test_retest_and_service_dates_are_findings(tmp_path):
     text = text.replace('id = "reg-gaps"', f'id = "reg-gaps"\nservice_due = {past}')
     a = assess(parse_profile(text, "b.toml"))
     codes = {(f.code, f.severity) for f in a.findings}
-    assert ("retest-overdue", "warning") in codes and ("service-overdue", "warning") in codes
+    # a cylinder past its periodic test must not be used or refilled: a stop (issue 25 item 6)
+    assert ("retest-overdue", "stop") in codes and ("service-overdue", "warning") in codes
