@@ -107,9 +107,9 @@ TEMPLATES: dict[str, Template] = {
         + ": duct the exhaust outside or increase ventilation", f"{v['o2_percent']:.1f} % O2 steady"),
     "room-release": lambda f, v, d: (
         f"if all of {v['supply']}, full, escapes at once "
-        + ("its gas is toxic before the oxygen matters (see the toxicity finding); the oxygen falls to "
-           if v.get("lead") == "toxic" else "the room falls to ")
-        + f"{v['o2_percent']:.1f} % oxygen ({v['effect']}; {v['o2_percent_today']:.1f} % with today's contents of "
+        + ("its gas is toxic before the oxygen matters (see the toxicity finding); the room's oxygen falls to "
+           if v.get("lead") == "toxic" else "the room's oxygen falls to ")
+        + f"{v['o2_percent']:.1f} % ({v['effect']}; {v['o2_percent_today']:.1f} % with today's contents of "
         f"{v['supply']}); "
         + (("an oxygen monitor detects this, it does not prevent it: " if v["o2_percent"] < IMPAIRED_O2 else "")
            if v["monitor"] else "fit an oxygen monitor with alarm, ")
@@ -143,10 +143,11 @@ TEMPLATES: dict[str, Template] = {
         f"{v['lfl_percent']:.3g} %): duct it outside, away from any spark; {LFL_RULE}",
         f"{v['percent_of_lfl']:.0f} % of LFL ({v['supply']})"),
     "room-pooling": lambda f, v, d: (
-        f"{v['supply']}'s gas is {v['relative_density']:.1f}× as dense as air: released at once it pools at floor "
-        f"level, in pits and under benches; held in the lowest {v['layer_m']:g} m of a room taken as "
-        f"{v['assumed_height_m']:g} m high (an assumption) the oxygen there falls to {v['o2_percent_floor']:.1f} % "
-        f"(well mixed {v['o2_percent_mixed']:.1f} %): place the oxygen sensor low and keep out of pits",
+        f"the gas of {v['supply']} is {v['relative_density']:.1f}× as dense as air: released at once it pools at "
+        f"floor level, in pits and under benches; held in the lowest {v['layer_m']:g} m of a room taken as "
+        f"{v['assumed_height_m']:g} m high (an assumption) it makes up {v['gas_percent_floor']:.0f} % of the air "
+        f"there and the oxygen falls to {v['o2_percent_floor']:.1f} % (well mixed {v['o2_percent_mixed']:.1f} %): "
+        "place the oxygen sensor low and keep out of pits",
         f"{v['o2_percent_floor']:.1f} % O2 at floor level ({v['supply']})"),
     "gap-fuel": lambda f, v, d: (
         f"gap {f.subject} is fed with flammable {v['fuels']} from {v['supply']} and fires a spark: purge the air out "
