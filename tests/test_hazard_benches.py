@@ -252,3 +252,92 @@ def test_room_tool_bands_co2_and_leads_with_toxicity(capsys):
     assert main(["room", "--gas", "co2", "--room-volume", "30 m3", "--release", "7 kg"]) == 0
     text = capsys.readouterr().out
     assert text.index("TOXIC") < text.index("oxygen after")
+
+
+CO2_BENCH = """
+[bench]
+name = "Test: a CO2 cylinder in a small room"
+[session]
+duration = "2 h"
+[room]
+volume = "30 m3"
+oxygen_monitor = true
+[[supplies]]
+id = "co2"
+gas = "co2"
+water_volume = "10 L"
+service_pressure = "60 bar"
+gross = "25 kg"
+tare = "18 kg"
+reserve = "5 bar"
+retest_due = 2000-01-01
+"""
+
+
+def test_co2_bench_toxicity_leads_in_plan_and_checklist(tmp_path, capsys):
+    # issue 24 item 4 on a bench: 7 kg of CO2 (its fill, gross − tare) in 30 m³ — 12.7 % CO2,
+    # incapacitating, worse than the 18.3 % O2 it leaves; the monitor does not detect CO2.
+    path = tmp_path / "co2.toml"
+    path.write_text(CO2_BENCH)
+    plan = _plan(capsys, path)
+    f = _by_code(plan)
+    tox = f["room-toxic"]
+    assert tox["severity"] == "stop" and tox["values"]["band"] == "incapacitating"
+    assert tox["values"]["supply"] == "co2" and tox["values"]["lead"] == "toxic"
+    assert "CO2 detector" in tox["text"]
+    # the toxic finding comes before the oxygen one, and the oxygen one says so
+    codes = [x["code"] for x in plan["findings"]]
+    assert codes.index("room-toxic") < codes.index("room-release")
+    assert f["room-release"]["values"]["lead"] == "toxic"
+    # a cylinder past its periodic test: do not use or refill it — a stop (issue 25 item 6)
+    assert f["retest-overdue"]["severity"] == "stop"
+    assert main(["checklist", str(path), "--format", "json"]) == 0
+    items = {it["id"]: it for s in json.loads(capsys.readouterr().out)["sections"] for it in s["items"]}
+    assert items["room-toxic"]["status"] == "stop" and "incapacitating" in items["room-toxic"]["figure"]
+    assert "a CO2 detector for co2" in items["oxygen-monitor"]["figure"]
+    assert "cold-burn gloves for co2" in items["protection"]["figure"]
+
+
+def test_checklist_cautions_are_built_for_the_premix_as_it_is(capsys):
+    capsys.readouterr()
+    assert main(["checklist", str(ROOT / "profiles" / "premix-switch-bench.toml"), "--format", "json"]) == 0
+    cautions = {c["topic"]: c["text"] for c in json.loads(capsys.readouterr().out)["cautions"]}
+    premix = cautions[g.parse_gas("helium:0.78,nitrogen:0.14,carbon dioxide:0.08").name]
+    assert "liquefied" not in premix and "floor level" not in premix
+    sf6 = cautions["sulfur hexafluoride"]
+    assert "filtered vacuum" in sf6 and "dry ice" not in sf6
+
+
+def test_leak_alarm_acts_only_where_the_air_is_safe():
+    from benchwarden.render.findings import describe
+    from benchwarden.workflows.findings import alarm_findings
+
+    f = alarm_findings({}, {}, 1.0, None, (), {}, {"n2-A": (40.0, 5.0)})[0]
+    assert f.code == "alarm-leak" and "only where the air is safe" in describe(f)[0]
+
+
+async def test_app_room_screen_and_cautions_name_the_toxicity(tmp_path):
+    from textual.widgets import Static
+
+    from benchwarden.storage.journal import Journal
+    from benchwarden.tui.app import make_app
+
+    path = tmp_path / "co2.toml"
+    path.write_text(CO2_BENCH)
+    journal = tmp_path / "journal.sqlite3"
+    Journal(journal).close()
+    app = make_app(path, journal)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await pilot.press("o")
+        await pilot.pause()
+        room_text = str(app.screen.query_one("#room-figures", Static).render())
+        assert "co2 (7.00 kg" in room_text and "incapacitating" in room_text
+        await pilot.press("escape")
+        await pilot.pause()
+        await pilot.press("c")
+        await pilot.pause()
+        text = " ".join(str(w.render()) for w in app.screen.query(Static))
+        assert "breathlessness" in text and "dry ice" in text and "CO2 detector" in text

@@ -91,7 +91,7 @@ def _release(args: argparse.Namespace, g_: Any, V: float, T: float, amb: float) 
     lead = [(h["kind"].upper(), h["text"]) for h in hz]
     rows += (lead + o2_rows if ck.lead == "toxic" or any(h["kind"] == "flammable" for h in hz)
              else o2_rows + lead)
-    rows += [(f"{g_.short_name} in the room", f"{r.gas_percent_after_release:.2f} %"), ("model", r.method)]
+    rows += [(f"released {g_.short_name} in the room", f"{r.gas_percent_after_release:.2f} %"), ("model", r.method)]
     emit_table("Room after a sudden release", rows, list(r.notes) + [ck.stratification, CAUTION])
     return 0
 
