@@ -89,7 +89,7 @@ def _release(args: argparse.Namespace, g_: Any, V: float, T: float, amb: float) 
         o2_rows.append(("effect of the oxygen", release_oxygen_words(r.o2_percent_after_release, r.effect)))
     # the worse of the two hazards leads: the gas's own toxicity or the oxygen it leaves
     lead = [(h["kind"].upper(), h["text"]) for h in hz]
-    rows += (lead + o2_rows if ck.lead == "toxic" or any(h["kind"] == "flammable" for h in hz)
+    rows += (lead + o2_rows if ck.lead == "toxic" or any(h["kind"] in ("flammable", "oxygen-enrichment") for h in hz)
              else o2_rows + lead)
     rows += [(f"released {g_.short_name} in the room", f"{r.gas_percent_after_release:.2f} %"), ("model", r.method)]
     emit_table("Room after a sudden release", rows, list(r.notes) + [ck.stratification, CAUTION])

@@ -125,7 +125,7 @@ def _releases(prof: Profile, room: RoomPlan, co2: bool) -> list[Finding]:
             "supply": c.supply, "o2_percent": o2, "effect": c.release.effect, "monitor": monitor,
             "model": c.release.model, "o2_percent_today": c.o2_percent_today,
             "gas_percent": c.release.gas_percent_after_release,
-            "lead": hz.lead_hazard(o2, c.toxic), "co2_detector": co2}))
+            "lead": hz.lead_hazard(o2, _short_term(c.toxic)), "co2_detector": co2}))
     rich = [c for c in cases if c.release.o2_percent_after_release > hz.ENRICHED_O2]
     if rich:
         c = max(rich, key=lambda x: x.release.o2_percent_after_release)
@@ -137,10 +137,16 @@ def _releases(prof: Profile, room: RoomPlan, co2: bool) -> list[Finding]:
         c = max(toxic, key=lambda x: (x.toxic.rank, x.toxic.percent) if x.toxic else (0, 0.0))
         t = c.toxic
         assert t is not None
-        out.append(_finding("room-toxic", "stop" if t.rank >= 3 else "warning", {
+        lead = hz.lead_hazard(c.release.o2_percent_after_release, t)
+        tox_f = _finding("room-toxic", "stop" if t.rank >= 3 else "warning", {
             "supply": c.supply, "component": t.component, "band": t.band, "percent": t.percent,
             "limit_percent": t.limit_percent, "o2_percent": c.release.o2_percent_after_release,
-            "lead": hz.lead_hazard(c.release.o2_percent_after_release, t), "co2_detector": co2}))
+            "lead": lead, "co2_detector": co2})
+        # the worse of the two hazards leads the words
+        if lead == "toxic":
+            out.insert(0, tox_f)
+        else:
+            out.append(tox_f)
     burn = [c for c in cases if c.flammable is not None]
     if burn:
         c = max(burn, key=lambda x: x.flammable.percent_of_lfl if x.flammable else 0.0)
@@ -157,6 +163,11 @@ def _releases(prof: Profile, room: RoomPlan, co2: bool) -> list[Finding]:
                 "fuels": ", ".join(x.supply for x in burn)}))
     out += _pooling(prof, room)
     return out
+
+
+def _short_term(t: hz.Toxic | None) -> hz.Toxic | None:
+    """A release is judged on short-term limits: below the STEL its toxicity does not lead."""
+    return t if t is not None and t.rank >= 2 else None
 
 
 def _pooling(prof: Profile, room: RoomPlan) -> list[Finding]:
