@@ -188,6 +188,12 @@ def test_bundled_premix_bench_keeps_its_cylinder_outside(capsys):
     assert not any(c == "room-release" for c, _ in codes)
     # its draws still vent where they vent: the premix channel is in the vented figure
     assert plan["room"]["vented_by_supply"].keys() == {"premix"}
+    # its CO2 in the room: exhaust-driven steady state, gas fraction R/Q (well mixed; the 3 h
+    # session is 8.4 air changes, e^-8.4 from steady) × 8 % CO2 — below its 8-hour limit
+    v = plan["room"]["vented"][0]
+    r_q = plan["room"]["vented_m3_s"] / plan["room"]["ventilation_m3_s"]
+    assert v["gas_percent"] == pytest.approx(100 * r_q, rel=1e-3)
+    assert v["toxic"]["percent"] == pytest.approx(8 * r_q, rel=1e-3) and v["toxic"]["band"] == "below-twa"
 
 
 def test_checklist_of_the_hydrogen_bench(tmp_path, capsys):

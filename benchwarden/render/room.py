@@ -88,4 +88,10 @@ def room_lines(r: Any) -> list[str]:
                      f"({r.release.method}); well mixed {r.release_mixed.o2_percent_after_release:.1f} %")
     if r.leak is not None:
         lines.append(f"vented draws {r.vented_m3_s * 6e4:.2f} L/min: steady {r.leak.o2_percent_steady:.2f} % O2")
+        for v in r.vented:
+            if v.toxic is not None or v.flammable is not None:
+                lines.append(f"  {v.supply} by the end of the session: {v.gas_percent:.3g} % of the air"
+                             + (f", {v.toxic.component} {v.toxic.percent:.3g} % ({v.toxic.band})" if v.toxic else "")
+                             + (f", {v.flammable.percent_of_lfl:.0f} % of its LFL {v.flammable.lfl_percent:.3g} %"
+                                if v.flammable else ""))
     return lines + list(r.notes)

@@ -72,16 +72,6 @@ def room_findings(prof: Profile, room: RoomPlan | None, draws: tuple[DrawPlan, .
     return out
 
 
-def _vented_percent(prof: Profile, room: RoomPlan) -> float:
-    """The vented gas's share of the room's air by the end of the planned session (or its steady
-    state, if reached sooner), vol %."""
-    lk = room.leak
-    if lk is None:
-        return 0.0
-    c = rm.o2_at(lk, prof.session.duration)
-    return max(0.0, 100.0 * (1.0 - c / lk.c0_percent))
-
-
 def _vented(prof: Profile, room: RoomPlan, co2: bool) -> list[Finding]:
     assert prof.room is not None
     out: list[Finding] = []
@@ -95,19 +85,15 @@ def _vented(prof: Profile, room: RoomPlan, co2: bool) -> list[Finding]:
         out.append(_finding("room-vented", sev, {
             "supply": main, "supplies": ", ".join(per), "o2_percent": lk.o2_percent_steady,
             "minutes_to_19_5": lk.minutes_to_19_5, "vented_m3_s": room.vented_m3_s}))
-    total = _vented_percent(prof, room)
-    for sid, q in per.items():
-        gas = prof.supply(sid).gas
-        pct = total * q / room.vented_m3_s if room.vented_m3_s > 0 else 0.0
-        tox = hz.toxic(gas, pct)
+    for v in room.vented:
+        tox, fl = v.toxic, v.flammable
         if tox is not None and tox.rank >= 1:
             out.append(_finding("room-vented-toxic", "stop" if tox.rank >= 2 else "warning", {
-                "supply": sid, "component": tox.component, "band": tox.band, "percent": tox.percent,
-                "limit_percent": tox.limit_percent, "co2_detector": co2 and hz.uses_co2(gas)}))
-        fl = hz.flammable(gas, pct)
+                "supply": v.supply, "component": tox.component, "band": tox.band, "percent": tox.percent,
+                "limit_percent": tox.limit_percent, "co2_detector": co2 and hz.uses_co2(prof.supply(v.supply).gas)}))
         if fl is not None and fl.percent_of_lfl > 100 * hz.LFL_ALARM_FRACTION:
             out.append(_finding("room-vented-flammable", "stop", {
-                "supply": sid, "fuels": fl.fuels, "percent": fl.percent, "lfl_percent": fl.lfl_percent,
+                "supply": v.supply, "fuels": fl.fuels, "percent": fl.percent, "lfl_percent": fl.lfl_percent,
                 "percent_of_lfl": fl.percent_of_lfl}))
     return out
 
@@ -188,14 +174,12 @@ def _pooling(prof: Profile, room: RoomPlan) -> list[Finding]:
 
 def _gap_fuel(prof: Profile, room: RoomPlan, draws: tuple[DrawPlan, ...]) -> list[Finding]:
     out: list[Finding] = []
-    total = _vented_percent(prof, room)
+    vented = {v.supply: v.gas_percent for v in room.vented}
     for d in draws:
         if d.kind != "gap":
             continue
         gas = prof.supply(d.supply_id).gas
-        q = room.vented_by_supply.get(d.supply_id, 0.0)
-        pct = total * q / room.vented_m3_s if room.vented_m3_s > 0 and d.vents_to_room else 0.0
-        fl = hz.flammable(gas, pct)
+        fl = hz.flammable(gas, vented.get(d.supply_id, 0.0) if d.vents_to_room else 0.0)
         if fl is not None:
             out.append(_finding("gap-fuel", "warning", {
                 "supply": d.supply_id, "fuels": fl.fuels, "lfl_percent": fl.lfl_percent,

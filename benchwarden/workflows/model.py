@@ -124,6 +124,18 @@ class RoomCase:
 
 
 @dataclass(frozen=True)
+class VentedGas:
+    """One supply's gas vented into the room by its draws, by the end of the planned session (or
+    at its steady state, if reached sooner)."""
+
+    supply: str
+    m3_s: float
+    gas_percent: float
+    toxic: hz.Toxic | None
+    flammable: hz.Flammable | None
+
+
+@dataclass(frozen=True)
 class RoomPlan:
     volume_m3: float
     ventilation_m3_s: float
@@ -145,6 +157,8 @@ class RoomPlan:
     cases: tuple[RoomCase, ...] = ()
     #: gas vented into the room by each supply's draws [m³/s at room conditions]
     vented_by_supply: dict[str, float] = field(default_factory=dict)
+    #: each supply's vented gas judged for toxicity and flammability (in the order of the supplies)
+    vented: tuple[VentedGas, ...] = ()
     #: the room's oxygen before anything escapes, vol %
     c0_percent: float = 20.95
     #: supplies whose cylinder stands outside the room (no part in a release)

@@ -11,7 +11,7 @@ from benchwarden.core import room as rm
 from benchwarden.errors import BenchwardenError
 from benchwarden.storage.profile import Profile, Supply
 from benchwarden.units.constants import T_FULL_K
-from benchwarden.workflows.model import DrawPlan, RoomCase, RoomPlan, SupplyPlan
+from benchwarden.workflows.model import DrawPlan, RoomCase, RoomPlan, SupplyPlan, VentedGas
 
 __all__ = ["room_plan", "full_mass", "largest_supply", "in_room"]
 
@@ -57,6 +57,21 @@ def _case(prof: Profile, s: Supply, sp: SupplyPlan) -> RoomCase | None:
                     hz.flammable(s.gas, rel.gas_percent_after_release))
 
 
+def _vented_gases(prof: Profile, leak: rm.Leak | None, per: dict[str, float]) -> tuple[VentedGas, ...]:
+    """Each vented gas's share of the room's air by the end of the planned session (well mixed:
+    the total from the leak's closed form, shared by volume flow), its toxicity and flammability."""
+    if leak is None or leak.leak_m3_s <= 0:
+        return ()
+    c = rm.o2_at(leak, prof.session.duration)
+    total = max(0.0, 100.0 * (1.0 - c / leak.c0_percent))
+    out = []
+    for sid, q in per.items():
+        gas = prof.supply(sid).gas
+        pct = total * q / leak.leak_m3_s
+        out.append(VentedGas(sid, q, pct, hz.toxic(gas, pct), hz.flammable(gas, pct)))
+    return tuple(out)
+
+
 def room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
               extra_leak_m3_s: float) -> RoomPlan | None:
     """The room's figures: the vented draws' leak, and every cylinder in the room released."""
@@ -72,13 +87,14 @@ def room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
             per[dp.supply_id] = per.get(dp.supply_id, 0.0) + dp.mass_flow_kg_s / g.density(by_id[dp.supply_id].gas, T, amb)
     vented = extra_leak_m3_s + sum(per.values())
     leak = rm.leak_o2(room.volume, vented, Q, room.ventilation_kind, room.oxygen_percent) if vented > 0 else None
+    gases = _vented_gases(prof, leak, per)
     plans = {sp.id: sp for sp in supplies}
     cases = tuple(c for s in prof.supplies if in_room(s) if (c := _case(prof, s, plans[s.id])) is not None)
     outside = tuple(s.id for s in prof.supplies if not in_room(s))
     notes = [rm.stratification_note(by_id[c.supply].gas) for c in cases]
     if not cases:
         return RoomPlan(room.volume, Q, room.ventilation_kind, vented, leak, "", None, None, tuple(notes),
-                        vented_by_supply=per, c0_percent=room.oxygen_percent, outside=outside)
+                        vented_by_supply=per, vented=gases, c0_percent=room.oxygen_percent, outside=outside)
     # the oxygen safety case: the cylinder whose full release lowers the oxygen most
     worst = min(cases, key=lambda c: c.release.o2_percent_after_release)
     s = by_id[worst.supply]
@@ -92,4 +108,4 @@ def room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
     every = rm.release(room.volume, sum(c.release.release_volume_m3 for c in cases), "displacement",
                        room.oxygen_percent)
     return RoomPlan(room.volume, Q, room.ventilation_kind, vented, leak, worst.supply, rel, rel_mixed, tuple(notes),
-                    worst.release, worst.supply, every, cases, per, room.oxygen_percent, outside)
+                    worst.release, worst.supply, every, cases, per, gases, room.oxygen_percent, outside)

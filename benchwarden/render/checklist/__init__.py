@@ -242,9 +242,13 @@ def _room_vented(ctx: _Ctx) -> list[Item]:
     if room is None or room.leak is None:
         return []
     lk = room.leak
+    gases = "".join(
+        (f"; {v.supply}: {v.toxic.component} {v.toxic.percent:.3g} % ({v.toxic.band})" if v.toxic else "")
+        + (f"; {v.supply}: {v.flammable.percent_of_lfl:.0f} % of its LFL" if v.flammable else "")
+        for v in room.vented)
     return [_item(ctx, "room-vented", "Room air with the draws venting into the room",
                   f"{lk.o2_percent_steady:.2f} % O2 steady, {room.vented_m3_s * 6e4:.2f} L/min vented from "
-                  f"{', '.join(room.vented_by_supply) or 'an extra leak'}",
+                  f"{', '.join(room.vented_by_supply) or 'an extra leak'}{gases}",
                   ctx.about("room", ("room-vented", "room-vented-toxic", "room-vented-flammable")),
                   "stays above 19.5 %, below exposure limits and 25 % of any LFL", lk.o2_percent_steady,
                   "room.leak.o2_percent_steady")]
