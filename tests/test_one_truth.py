@@ -24,7 +24,7 @@ DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
 STATES = {
     "reserve-before-end": ({'reading = "64 bar"': 'reading = "22 bar"'}, "reserve-before-end"),
     "near-empty": ({'reading = "64 bar"': 'reading = "15.5 bar"'}, "reserve-before-end"),
-    "low-room-oxygen": ({'volume = "36 m3"': 'volume = "8 m3"'}, "room-release"),
+    "low-room-oxygen": ({'volume = "48 m3"': 'volume = "8 m3"'}, "room-release"),
     "hot-day-rating": ({'inlet_rating = "230 bar"': 'inlet_rating = "66 bar"'}, "inlet-rating-hot"),
     "flashover-margin": ({}, "flashover"),
     "leak": ({}, "hold-test-leak"),

@@ -17,6 +17,8 @@ if TYPE_CHECKING:  # pragma: no cover
     from benchwarden.render.display import Display
 
 EXIT_INPUT = 2
+#: Exit status of a report with a finding at or above ``--fail-on``.
+EXIT_FINDING = 3
 
 
 class Parser(argparse.ArgumentParser):
@@ -158,3 +160,17 @@ def journal_if_exists(args: argparse.Namespace, readonly: bool = False) -> Any:
 
 CAUTION = ("estimate only: use a fixed oxygen monitor with alarm where gas can accumulate; follow local codes "
            "and the gas supplier's safety data sheet")
+
+
+def add_fail_on(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--fail-on", choices=("stop", "warning", "attention"), default=None,
+                   help="exit with status 3 when a finding at or above this severity stands (the output is "
+                        "written as usual)")
+
+
+def exit_for(args: argparse.Namespace, findings: Any) -> int:
+    """0, or 3 when ``--fail-on`` is given and a finding at or above it stands."""
+    from benchwarden.workflows.findings import at_or_above
+
+    level = getattr(args, "fail_on", None)
+    return EXIT_FINDING if level is not None and at_or_above(findings, level) else 0

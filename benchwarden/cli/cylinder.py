@@ -10,11 +10,13 @@ from typing import Any, cast
 
 from benchwarden.cli.common import (
     add_display,
+    add_fail_on,
     add_journal,
     add_json,
     display,
     emit_json,
     emit_table,
+    exit_for,
     input_error,
 )
 from benchwarden.render.display import Display
@@ -27,6 +29,7 @@ from benchwarden.units import parse_mass, parse_pressure, parse_temperature
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows import cylinder as cy
 from benchwarden.workflows.bench import assess
+from benchwarden.workflows.holds import judged_hold_tests
 
 AT_HELP = "when it was read: 'HH:MM' today (or last night), an ISO date-time, or now (default)"
 
@@ -65,6 +68,7 @@ def configure(sub: Any, name: str) -> None:
         add_journal(p)
         add_display(p)
         add_json(p)
+        add_fail_on(p)
         p.set_defaults(func=cmd_status)
 
 
@@ -177,6 +181,12 @@ def _cons(j: Journal | None, prof: Profile, sid: str) -> float | None:
     return c.kg_per_week if c is not None else None
 
 
+def _needed(j: Journal | None, prof: Profile, sid: str, now: dt.datetime) -> float | None:
+    """How long a hold would need, when the latest idle drop was too short to tell [s]."""
+    r = cy.unresolved_idle_drop(j, prof, sid, now)
+    return _seconds(r.hold_needed_h) if r is not None else None
+
+
 def _seconds(hours: float) -> float | None:
     return hours * 3600.0 if math.isfinite(hours) else None
 
@@ -212,13 +222,16 @@ def cmd_status(args: argparse.Namespace) -> int:
     try:
         a = assess(prof, j, now)
         supplies: list[dict[str, Any]] = []
+        all_judged = judged_hold_tests(j, prof.bench.name) if j is not None else []
         for sp in a.plan.supplies:
+            judged = all_judged
             history = cy.readings_since_change(j, prof.bench.name, sp.id)
             change = cy.current_change(j, prof.bench.name, sp.id)
             last = history[-1] if history else None
             live = _live(j, prof, sp.id, now, a.plan.ambient_pa)
-            tests = [h for h in (j.hold_tests(prof.bench.name) if j else []) if h.supply_id == sp.id]
-            ht = tests[-1] if tests else None
+            judged = [h for h in judged if h.row.supply_id == sp.id and not h.earlier_cylinder]
+            counting = [h.row for h in judged if h.counts]
+            ht = counting[-1] if counting else None
             lv = live or {}
             from_live = lv.get("leak_verdict") is not None
             supplies.append(cast(dict[str, Any], {
@@ -231,6 +244,8 @@ def cmd_status(args: argparse.Namespace) -> int:
                                    else "journal" if last else "profile"),
                 "mass_kg": sp.mass_kg, "usable_mass_kg": sp.usable_mass_kg,
                 "time_to_reserve_s": _seconds(sp.hours_to_reserve), "reserve_at": sp.reserve_at,
+                "leak_included_sccm": sp.leak_sccm,
+                "idle_drop_hold_needed_s": _needed(j, prof, sp.id, now),
                 "cylinder_label": change.label if change else None,
                 "retest_due": change.retest_due if change else None,
                 "leak_verdict": lv["leak_verdict"] if from_live else ht.verdict if ht else None,
@@ -240,6 +255,11 @@ def cmd_status(args: argparse.Namespace) -> int:
                 "leak_source": "leak watch" if from_live else "hold test" if ht else None,
                 "live": live,
                 "hold_test_at": ht.at if ht else None, "hold_test_kind": ht.kind if ht else None,
+                "hold_tests": [{"id": h.row.id, "at": h.row.at, "kind": h.row.kind, "verdict": h.row.verdict,
+                                "leak_rate_sccm": h.row.leak_rate_sccm,
+                                "leak_rate_uncertainty_sccm": h.row.leak_rate_uncertainty_sccm,
+                                "withdrawn": h.withdrawn, "withdrawn_reason": h.withdrawn_reason}
+                               for h in judged],
                 "order_by": _order_date(a.orders.get(sp.id)),
                 "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,
                 "consumption_kg_per_week": _cons(j, prof, sp.id),
@@ -255,8 +275,8 @@ def cmd_status(args: argparse.Namespace) -> int:
         emit_json({"bench": prof.bench.name, "journal": str(path), "ambient_pressure_pa": a.plan.ambient_pa,
                    "supplies": supplies, "findings": findings, "alarms": alarms,
                    "last_hold_test": None if a.last_hold is None else asdict(a.last_hold) | {
-                       "at": a.last_hold.at.isoformat()}})
-        return 0
+                       "at": a.last_hold.at.isoformat(), "withdrawn": False}})
+        return exit_for(args, a.findings)
     print(f"Status: {prof.bench.name}")
     for s in supplies:
         rows = [("gas", s["gas"]),
@@ -276,6 +296,9 @@ def cmd_status(args: argparse.Namespace) -> int:
             rows.append(("last hold test", f"{s['leak_verdict']}, "
                                            f"{fmt_uncertain(s['leak_rate_sccm'], s['leak_rate_uncertainty_sccm'], 'sccm')} "
                                            f"({s['hold_test_kind'] or 'manual'})"))
+        if s["idle_drop_hold_needed_s"] is not None:
+            rows.append(("idle readings", "too close together to resolve the target leak with this gauge: "
+                                          f"a hold of about {d.hours(s['idle_drop_hold_needed_s'] / 3600)} would"))
         if s["order_by"]:
             rows.append(("order by", f"{s['order_by']} ({s['consumption_kg_per_week']:.3g} kg/week recorded)"))
         if s["cylinder_label"] or s["retest_due"]:
@@ -286,7 +309,7 @@ def cmd_status(args: argparse.Namespace) -> int:
         print(f"Alarms in the last {RECENT_ALARMS_S / 3600:g} h")
         for al in alarms:
             print(f"  {al['at'][:16].replace('T', ' ')}  {clean(al['text'])}")
-    return 0
+    return exit_for(args, a.findings)
 
 
 def _print_findings(findings: list[Any], d: Display) -> None:

@@ -17,7 +17,7 @@ from benchwarden.render.hazards import BAND_WORDS, CO2_DETECTOR, ENRICHMENT_TEXT
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.workflows.findings import Finding
 
-__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "TEMPLATES", "describe", "finding_dict"]
+__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "TEMPLATES", "VERDICT_WORDS", "describe", "finding_dict", "verdict_words"]
 
 SEVERITY_MARK: dict[str, str] = {"stop": "✖ STOP", "warning": "▲ WARNING", "attention": "● ATTENTION",
                                  "info": "ℹ INFO"}
@@ -208,10 +208,38 @@ TEMPLATES: dict[str, Template] = {
         f"the gauge of {f.subject} is silent: no good sample for several intervals ({v['why']})", "silent"),
     "hold-test-inconclusive": lambda f, v, d: (
         "the last hold test could not tell: hold longer or use a finer gauge", _hold_figure(v)),
+    "hold-test-likely-leak": lambda f, v, d: (
+        f"{'the last hold test' if not v.get('supply') else 'the last hold test on ' + str(v['supply'])} points to "
+        "a likely leak (above the target, not yet resolved): tighten the fittings, leak-detect them and repeat "
+        "the hold for longer", _hold_figure(v)),
+    "hold-test-pressure-rose": lambda f, v, d: (
+        f"{'the last hold test' if not v.get('supply') else 'the last hold test on ' + str(v['supply'])}: "
+        + VERDICT_WORDS["pressure-rose"], _hold_figure(v)),
     "hold-test-old": lambda f, v, d: (
         f"the last hold test is older than {v['max_age_days']:.0f} days: repeat it", _hold_figure(v)),
     "hold-test-ok": lambda f, v, d: ("last hold test resolved no leak", _hold_figure(v)),
 }
+
+
+#: Words for each hold-test verdict (the set of :data:`benchwarden.core.hold.VERDICTS`).
+VERDICT_WORDS: dict[str, str] = {
+    "leak": "LEAK: the mass loss is larger than its expanded uncertainty — find and fix it before use",
+    "likely-leak": ("LIKELY LEAK: the estimate is above the target and above its uncertainty, but not yet "
+                    "resolved — tighten, leak-detect the joints and repeat the hold for longer"),
+    "pressure-rose": ("the pressure ROSE beyond what the gauge and the temperature explain — a cylinder change "
+                      "not recorded, warming not captured, or a wrong reading; check and repeat (this is not a "
+                      "result of no leak)"),
+    "inconclusive": "INCONCLUSIVE: this gauge cannot tell; hold longer or use a finer gauge",
+    "no-leak-resolved": "no leak at or above the target: the test resolves it",
+}
+
+
+def verdict_words(verdict: str, rate_sccm: float, resolvable_sccm: float, target_sccm: float) -> str:
+    """The verdict of one hold test in words, with the rate it resolves where it resolves one."""
+    if verdict == "no-leak-resolved":
+        return (f"no leak above {max(rate_sccm, 0.0) + resolvable_sccm:.3g} sccm (target {target_sccm:.3g} sccm; "
+                f"smallest this test resolves: {resolvable_sccm:.3g} sccm)")
+    return VERDICT_WORDS.get(verdict, verdict)
 
 
 def _hold_figure(v: Any) -> str:

@@ -51,7 +51,9 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
                 f"    now {d.gauge(s.pressure_abs_pa)}, {d.temperature(s.temperature_k)}; reserve {d.gauge(s.reserve_abs_pa)}",
                 f"    contents {s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}; "
                 f"usable {s.usable_mass_kg:.3f} kg",
-                f"    draw {s.draw_kg_s * 6e4:.3f} g/min; to reserve {d.hours(s.hours_to_reserve)}{band}"
+                f"    draw {s.draw_kg_s * 6e4:.3f} g/min"
+                + (f" (including the leak found, {s.leak_sccm:.3g} sccm)" if s.leak_sccm > 0 else "")
+                + f"; to reserve {d.hours(s.hours_to_reserve)}{band}"
                 + (f", at {d.clock(s.reserve_at, _start(plan))}" if s.reserve_at else "")]
         if s.shots_to_reserve:
             out.append(f"    shots to reserve {s.shots_to_reserve:,.0f}")

@@ -11,14 +11,14 @@ from __future__ import annotations
 import os
 import sqlite3
 import threading
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 from benchwarden.errors import JournalError
 
-SCHEMA_VERSION = 4
+SCHEMA_VERSION = 5
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -145,6 +145,19 @@ _MIGRATIONS: dict[int, str] = {
     );
     CREATE INDEX alarms_bench ON alarms(bench, at);
     """,
+    5: """
+    CREATE TABLE accepted_stops (
+        id INTEGER PRIMARY KEY,
+        session_id INTEGER NOT NULL REFERENCES sessions(id),
+        at TEXT NOT NULL,
+        operator TEXT,
+        code TEXT NOT NULL,
+        subject TEXT NOT NULL,
+        text TEXT NOT NULL,
+        reason TEXT NOT NULL
+    );
+    CREATE INDEX accepted_stops_session ON accepted_stops(session_id);
+    """,
 }
 
 
@@ -170,6 +183,21 @@ class SessionRow:
     stopped_at: str | None
     readings: int
     alarms: int = 0
+    operator: str | None = None
+    shots: int | None = None
+
+
+@dataclass(frozen=True)
+class AcceptedStop:
+    """A STOP finding that stood when a session was started, accepted by a person with a reason."""
+
+    session_id: int
+    at: str
+    operator: str | None
+    code: str
+    subject: str
+    text: str
+    reason: str
 
 
 @dataclass(frozen=True)
@@ -367,9 +395,28 @@ class Journal:
         """Rows of a query (for the sample store); a failure is a :class:`JournalError`."""
         return self._read(sql, args)
 
-    def start_session(self, bench: str, profile_path: str | None, at: str) -> int:
-        return int(self._write(lambda db: db.execute(
-            "INSERT INTO sessions(bench, profile_path, started_at) VALUES (?, ?, ?)", (bench, profile_path, at)).lastrowid))
+    def start_session(self, bench: str, profile_path: str | None, at: str, operator: str | None = None,
+                      accepted: Sequence[tuple[str, str, str]] = (), reason: str | None = None) -> int:
+        """Start a session; ``accepted``: the STOP findings (code, subject, words) that stood and
+        that ``operator`` accepted for ``reason`` — recorded in the same transaction."""
+        def insert(db: sqlite3.Connection) -> int:
+            sid = int(db.execute("INSERT INTO sessions(bench, profile_path, started_at, operator) VALUES (?, ?, ?, ?)",
+                                 (bench, profile_path, at, operator)).lastrowid or 0)
+            db.executemany("INSERT INTO accepted_stops(session_id, at, operator, code, subject, text, reason)"
+                           " VALUES (?, ?, ?, ?, ?, ?, ?)",
+                           [(sid, at, operator, c, s, t, reason or "") for c, s, t in accepted])
+            return sid
+        return int(self._write(insert))
+
+    def accepted_stops(self, session_id: int | None = None) -> list[AcceptedStop]:
+        if not self._read("SELECT 1 FROM sqlite_master WHERE name = 'accepted_stops'"):
+            return []  # a journal opened read-only before its migration
+        sql = "SELECT session_id, at, operator, code, subject, text, reason FROM accepted_stops"
+        args: tuple[Any, ...] = ()
+        if session_id is not None:
+            sql += " WHERE session_id = ?"
+            args = (session_id,)
+        return [AcceptedStop(*r) for r in self._read(sql + " ORDER BY id", args)]
 
     def stop_session(self, session_id: int, at: str) -> None:
         self._write(lambda db: db.execute("UPDATE sessions SET stopped_at = ? WHERE id = ?", (at, session_id)))
@@ -444,7 +491,7 @@ class Journal:
         rows = self._read(
             "SELECT s.id, s.bench, s.profile_path, s.started_at, s.stopped_at, COUNT(r.id),"
             " (SELECT COUNT(*) FROM alarms a WHERE a.bench = s.bench AND a.at >= s.started_at"
-            "  AND (s.stopped_at IS NULL OR a.at <= s.stopped_at)) FROM sessions s"
+            "  AND (s.stopped_at IS NULL OR a.at <= s.stopped_at)), s.operator, s.shots FROM sessions s"
             " LEFT JOIN readings r ON r.session_id = s.id GROUP BY s.id ORDER BY s.id")
         return [SessionRow(*r) for r in rows]
 

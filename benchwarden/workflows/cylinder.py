@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 
 from benchwarden.core import gas as g
 from benchwarden.core import hold as hd
-from benchwarden.errors import InputError, JournalError
+from benchwarden.errors import BenchwardenError, InputError, JournalError
 from benchwarden.storage.journal import ChangeRow, Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply, with_reading, with_weight
 from benchwarden.storage.samples import SampleStore
@@ -39,7 +39,7 @@ from benchwarden.workflows.holds import (
     supply_target_sccm,
 )
 
-__all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
+__all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "idle_drop_counts", "unresolved_idle_drop", "journal_profile", "check_reading",
            "record_reading", "record_change", "IdleDrop", "idle_drops", "record_idle_drops", "parse_at"]
 
 #: Temperatures a cylinder reading may carry [K] (−73 °C to 77 °C): beyond, the unit slipped.
@@ -342,6 +342,32 @@ def idle_drop_result(prof: Profile, drop: IdleDrop) -> hd.HoldResult:
                                 reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
 
 
+def idle_drop_counts(r: hd.HoldResult) -> bool:
+    """An idle drop becomes a hold test only when its span could resolve the target leak with
+    this gauge (expanded uncertainty below the target), or when it shows something regardless:
+    a leak beyond the uncertainty, or a pressure that rose beyond it (always recorded). Two
+    readings a minute apart tell nothing and are not stored as a test."""
+    return r.verdict in ("leak", "pressure-rose") or r.smallest_resolvable_sccm < r.target_sccm
+
+
+def unresolved_idle_drop(journal: Journal | None, prof: Profile, supply_id: str,
+                         now: dt.datetime) -> hd.HoldResult | None:
+    """The supply's latest idle drop when it was too short to resolve the target leak (so no
+    hold test was stored from it): its result says how long a hold would need
+    (``hold_needed_h``). None when the latest drop counted or there is none."""
+    s = prof.supply(supply_id)
+    if s.gas.sold_liquefied and s.gross is not None:
+        return None
+    drops = idle_drops(journal, prof, supply_id, now)
+    if not drops:
+        return None
+    try:
+        r = idle_drop_result(prof, drops[-1])
+    except BenchwardenError:
+        return None
+    return None if idle_drop_counts(r) else r
+
+
 def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) -> list[HoldRecord]:
     """Turn every idle drop of every supply into a stored hold test (once each); returns the new
     records."""
@@ -362,6 +388,8 @@ def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) 
             if drop.key in done:
                 continue
             r = idle_drop_result(prof, drop)
+            if not idle_drop_counts(r):
+                continue
             rec = record_of(r, _dt(drop.last.at), prof.bench.name, s.id, "idle-drop")
             store(journal, rec, {"idle_drop": drop.key})
             new.append(rec)

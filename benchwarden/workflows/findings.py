@@ -26,7 +26,7 @@ from benchwarden.workflows.model import Observed, Plan
 
 __all__ = [
     "SEVERITIES", "SEVERITY_RANK", "Finding", "Severity", "HOLD_TEST_MAX_AGE_DAYS", "plan_findings",
-    "live_findings", "hold_test_findings", "ranked", "counts",
+    "live_findings", "hold_test_findings", "ranked", "counts", "at_or_above",
 ]
 
 Severity = Literal["stop", "warning", "attention", "info"]
@@ -51,6 +51,13 @@ class Finding:
     severity: Severity
     subject: str
     values: Mapping[str, Value] = field(default_factory=dict)
+
+
+def at_or_above(findings: Iterable[Finding], severity: str) -> list[Finding]:
+    """The findings at or above a severity (``stop`` ≥ ``warning`` ≥ ``attention`` ≥ ``info``):
+    what ``--fail-on`` and the session start's STOP check look at."""
+    limit = SEVERITY_RANK[severity]
+    return [f for f in findings if SEVERITY_RANK[f.severity] <= limit]
 
 
 def ranked(findings: Iterable[Finding]) -> list[Finding]:
@@ -261,6 +268,10 @@ def hold_test_findings(verdict: str | None, rate_sccm: float = math.nan, u_sccm:
     if verdict == "leak":
         code = {"idle-drop": "idle-drop-leak", "leak-watch": "leak-watch-leak"}.get(kind or "", "hold-test-leak")
         return [Finding(code, "stop", "leaks", values)]
+    if verdict == "likely-leak":
+        return [Finding("hold-test-likely-leak", "warning", "leaks", values)]
+    if verdict == "pressure-rose":
+        return [Finding("hold-test-pressure-rose", "attention", "leaks", values)]
     if verdict == "inconclusive":
         return [Finding("hold-test-inconclusive", "attention", "leaks", values)]
     if age_days > HOLD_TEST_MAX_AGE_DAYS:

@@ -103,6 +103,9 @@ class SupplyPlan:
     projection_pressure_abs_pa: tuple[float, ...]
     projection_outlets_abs_pa: dict[str, tuple[float, ...]] = field(default_factory=dict)
     projection_gap_kv: dict[str, tuple[float, ...]] = field(default_factory=dict)
+    #: a leak found on the current cylinder (latest hold test ``leak`` or ``likely-leak``),
+    #: counted as a draw in ``draw_kg_s`` and everything projected from it [sccm, 0 °C, 101.325 kPa]
+    leak_sccm: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -202,3 +205,5 @@ class Observed:
     method: str
     fit_at: tuple[str, ...] = ()
     fit_pressure_abs_pa: tuple[float, ...] = ()
+    #: the draw is resolved beyond its expanded uncertainty (only then does it project a reserve)
+    resolved: bool = True

@@ -443,10 +443,12 @@ class HistoryScreen(_Tool):
             f"#{s.id}  {s.started_at[:16].replace('T', ' ')} → "
             f"{(s.stopped_at or 'left running')[:16].replace('T', ' ')}  {s.readings} reading(s)" for s in sessions)
             or "none yet")
-        holds = st.journal.hold_tests(st.profile.bench.name)[-8:]
+        holds = st.judged_hold_tests()[-8:]
         self.query_one("#history-holds", Static).update("\n".join(
-            f"{h.at[:16].replace('T', ' ')}  {h.supply_id or '—'}  {h.verdict}  {h.leak_rate_sccm:.3g} ± "
-            f"{h.leak_rate_uncertainty_sccm:.2g} sccm  ({h.kind or 'manual'})" for h in holds) or "none yet")
+            f"{h.row.at[:16].replace('T', ' ')}  {h.row.supply_id or '—'}  {h.row.verdict}  "
+            f"{h.row.leak_rate_sccm:.3g} ± {h.row.leak_rate_uncertainty_sccm:.2g} sccm  ({h.row.kind or 'manual'})"
+            + (f"  ✖ WITHDRAWN: {h.withdrawn_reason}" if h.withdrawn else "")
+            + ("  (earlier cylinder)" if h.earlier_cylinder else "") for h in holds) or "none yet")
 
     def action_strike(self) -> None:
         from textual.widgets import DataTable
