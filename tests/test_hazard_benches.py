@@ -347,3 +347,19 @@ async def test_app_room_screen_and_cautions_name_the_toxicity(tmp_path):
         await pilot.pause()
         text = " ".join(str(w.render()) for w in app.screen.query(Static))
         assert "breathlessness" in text and "dry ice" in text and "CO2 detector" in text
+
+
+def test_room_tool_judges_an_sf6_release_on_what_fits_a_release(capsys):
+    # issue 25 item 5: 9.5 kg of SF6 into 32 m³ — no "toxic" verdict on its 8-hour limit; its
+    # floor layer (lowest 1 m of a room taken as 2.5 m high, an assumption) by displacement:
+    # C = C0·(1 − Vg/(0.4·Vr)) (BCGA GN11 model on the layer)
+    capsys.readouterr()
+    assert main(["room", "--gas", "sf6", "--room-volume", "32 m3", "--release", "9.5 kg", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    tox = d["hazards"][0]
+    assert tox["band"] == "above-twa" and tox["judged"] is False and tox["criterion"] == "short-term"
+    assert d["lead"] == "oxygen"
+    assert d["o2_percent_floor"] == pytest.approx(20.95 * (1 - d["release_volume_m3"] / (0.4 * 32)), rel=1e-9)
+    assert main(["room", "--gas", "sf6", "--room-volume", "32 m3", "--release", "9.5 kg"]) == 0
+    text = capsys.readouterr().out
+    assert "TOXIC" not in text and "at floor level" in text

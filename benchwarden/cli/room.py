@@ -21,7 +21,7 @@ from benchwarden.cli.common import (
     input_error,
 )
 from benchwarden.render.hazards import hazard_items
-from benchwarden.render.room import leak_rows, release_oxygen_words
+from benchwarden.render.room import floor_words, leak_rows, release_oxygen_words
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
 from benchwarden.units.quantities import parse_amount, parse_ventilation
 from benchwarden.workflows.roomcheck import leak_check, release_check
@@ -79,20 +79,26 @@ def cmd_room(args: argparse.Namespace) -> int:
 def _release(args: argparse.Namespace, g_: Any, V: float, T: float, amb: float) -> int:
     ck = release_check(g_, V, parse_amount(args.release, "release"), args.model, args.oxygen, T, amb)
     r = ck.release
-    hz = hazard_items(ck.toxic, ck.flammable, r.o2_percent_after_release)
+    hz = hazard_items(ck.toxic, ck.flammable, r.o2_percent_after_release, release=True)
+    floor = ({"o2_percent_floor": ck.floor.o2_percent_after_release,
+              "gas_percent_floor": ck.floor.gas_percent_after_release} if ck.floor is not None else {})
     if args.json:
-        emit_json(asdict(r) | {"gas": g_.name, "hazards": hz, "lead": ck.lead, "stratification": ck.stratification})
+        emit_json(asdict(r) | floor | {"gas": g_.name, "hazards": hz, "lead": ck.lead,
+                                       "stratification": ck.stratification})
         return 0
     rows = [("gas", g_.name), ("room", f"{V:g} m³"), ("released", f"{r.release_volume_m3:.3f} m³ at room conditions")]
     o2_rows = [("oxygen after", f"{r.o2_percent_after_release:.2f} %")]
     if not any(h["kind"] == "oxygen-enrichment" for h in hz):
         o2_rows.append(("effect of the oxygen", release_oxygen_words(r.o2_percent_after_release, r.effect)))
     # the worse of the two hazards leads: the gas's own toxicity or the oxygen it leaves
-    lead = [(h["kind"].upper(), h["text"]) for h in hz]
+    lead = [(h["kind"].upper(), h["text"]) for h in hz if h.get("judged", True)]
+    notes = [h["text"] for h in hz if not h.get("judged", True)]
     rows += (lead + o2_rows if ck.lead == "toxic" or any(h["kind"] in ("flammable", "oxygen-enrichment") for h in hz)
              else o2_rows + lead)
     rows += [(f"released {g_.short_name} in the room", f"{r.gas_percent_after_release:.2f} %"), ("model", r.method)]
-    emit_table("Room after a sudden release", rows, list(r.notes) + [ck.stratification, CAUTION])
+    if ck.floor is not None:
+        rows.append(("at floor level", floor_words(ck.floor)))
+    emit_table("Room after a sudden release", rows, list(r.notes) + notes + [ck.stratification, CAUTION])
     return 0
 
 

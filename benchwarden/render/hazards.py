@@ -36,8 +36,13 @@ def _limits(t: Toxic) -> str:
     return "; ".join(parts) + (f" ({'; '.join(srcs)})" if srcs else "")
 
 
-def toxic_text(t: Toxic) -> str:
-    """``carbon dioxide at 12.70 % is in the range where …; TWA 0.5 %, STEL 3 % … (sources)``."""
+def toxic_text(t: Toxic, release: bool = False) -> str:
+    """``carbon dioxide at 12.70 % is in the range where …; TWA 0.5 %, STEL 3 % … (sources)``.
+    A one-off release is judged on short-term limits: below the STEL its 8-hour limit is named as
+    what it is, a limit for continuous exposure."""
+    if release and t.rank < 2:
+        return (f"{t.component} at {t.percent:.2f} %: a one-off release is judged on short-term limits; its 8-hour "
+                f"limit applies to continuous leaks and vented gas; {_limits(t)}")
     return f"{t.component} at {t.percent:.2f} % is {BAND_WORDS[t.band]}; {_limits(t)}"
 
 
@@ -57,8 +62,10 @@ def flammable_text(f: Flammable) -> str:
             f"{f.method}{src}); {LFL_RULE}")
 
 
-def hazard_items(tox: Toxic | None, fl: Flammable | None, o2_percent: float) -> list[dict[str, Any]]:
-    """The hazards for JSON: ``kind``, ``band`` and the figures, with the words."""
+def hazard_items(tox: Toxic | None, fl: Flammable | None, o2_percent: float,
+                 release: bool = False) -> list[dict[str, Any]]:
+    """The hazards for JSON: ``kind``, ``band`` and the figures, with the words; ``criterion``
+    says which limits judge it (``short-term`` for a release, ``time-weighted`` for a leak)."""
     out: list[dict[str, Any]] = []
     if o2_percent > ENRICHED_O2:
         out.append({"kind": "oxygen-enrichment", "band": "enriched", "o2_percent": o2_percent,
@@ -67,7 +74,9 @@ def hazard_items(tox: Toxic | None, fl: Flammable | None, o2_percent: float) -> 
         out.append({"kind": "toxic", "band": tox.band, "component": tox.component, "percent": tox.percent,
                     "limit_percent": tox.limit_percent, "twa_percent": tox.twa_percent,
                     "stel_percent": tox.stel_percent, "idlh_percent": tox.idlh_percent,
-                    "incapacitating_percent": tox.incapacitating_percent, "text": toxic_text(tox)})
+                    "incapacitating_percent": tox.incapacitating_percent,
+                    "criterion": "short-term" if release else "time-weighted",
+                    "judged": not release or tox.rank >= 2, "text": toxic_text(tox, release)})
     if fl is not None:
         out.append({"kind": "flammable", "band": flammable_band(fl), "fuels": fl.fuels, "percent": fl.percent,
                     "lfl_percent": fl.lfl_percent, "percent_of_lfl": fl.percent_of_lfl,

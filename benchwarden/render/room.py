@@ -9,7 +9,7 @@ from benchwarden.core.hazards import ENRICHED_O2
 from benchwarden.render.hazards import ENRICHMENT_TEXT
 from benchwarden.units import fmt_hours
 
-__all__ = ["leak_rows", "release_oxygen_words", "minutes", "case_line", "room_lines"]
+__all__ = ["floor_words", "leak_rows", "release_oxygen_words", "minutes", "case_line", "room_lines"]
 
 
 def minutes(m: float | None, never: str = "—") -> str:
@@ -25,6 +25,12 @@ def release_oxygen_words(o2_percent: float, effect: str) -> str:
     if o2_percent > ENRICHED_O2:
         return ENRICHMENT_TEXT
     return effect or "none expected (≥ 19.5 %)"
+
+
+def floor_words(floor: Any) -> str:
+    """A dense gas held in the floor layer (``floor``: the release into that layer)."""
+    return (f"{floor.o2_percent_after_release:.1f} % O2, {floor.gas_percent_after_release:.0f} % of the gas, if it "
+            "stays in the lowest 1 m of a room taken as 2.5 m high (an assumption): it pools in pits and under benches")
 
 
 def leak_rows(ck: Any, V: float, Q: float, kind: str) -> list[tuple[str, str]]:

@@ -19,6 +19,11 @@ from benchwarden.core import supply
 from benchwarden.errors import InputError
 from benchwarden.units import Flow
 from benchwarden.units.quantities import Amount
+from benchwarden.workflows.findings_room import (
+    ASSUMED_HEIGHT_M,
+    FLOOR_LAYER_M,
+    POOLING_RELATIVE_DENSITY,
+)
 
 __all__ = ["ReleaseCheck", "LeakCheck", "release_check", "leak_check"]
 
@@ -31,6 +36,8 @@ class ReleaseCheck:
     flammable: hz.Flammable | None
     lead: Literal["toxic", "oxygen"]
     stratification: str
+    #: a dense gas held in the floor layer (see :mod:`benchwarden.workflows.findings_room`)
+    floor: rm.Release | None = None
 
 
 @dataclass(frozen=True)
@@ -54,8 +61,14 @@ def release_check(gas: g.Gas, room_volume_m3: float, amount: Amount, model: str,
     vg = rm.release_volume(gas, amount, T, p_room)
     r = rm.release(room_volume_m3, vg, model, c0_percent, hz.gas_o2_percent(gas))
     tox = hz.toxic(gas, r.gas_percent_after_release)
+    floor = None
+    if gas.relative_density_to_air >= POOLING_RELATIVE_DENSITY:
+        layer = room_volume_m3 * FLOOR_LAYER_M / ASSUMED_HEIGHT_M
+        floor = rm.release(layer, vg, "displacement", c0_percent, hz.gas_o2_percent(gas))
+    # a release is judged on short-term limits: below the STEL its toxicity does not lead
+    short = tox if tox is not None and tox.rank >= 2 else None
     return ReleaseCheck(gas, r, tox, hz.flammable(gas, r.gas_percent_after_release),
-                        hz.lead_hazard(r.o2_percent_after_release, tox), rm.stratification_note(gas))
+                        hz.lead_hazard(r.o2_percent_after_release, short), rm.stratification_note(gas), floor)
 
 
 def leak_check(gas: g.Gas, room_volume_m3: float, flow: Flow, ventilation_m3_s: float, kind: str,
