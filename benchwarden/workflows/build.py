@@ -14,11 +14,9 @@ from benchwarden.core import flow as fl
 from benchwarden.core import gap as gp
 from benchwarden.core import gas as g
 from benchwarden.core import regulator as rg
-from benchwarden.core import room as rm
 from benchwarden.core import supply as sp
 from benchwarden.core.hold import kg_s_from_sccm
 from benchwarden.core.tables import DensityTable
-from benchwarden.errors import BenchwardenError
 from benchwarden.storage.profile import Draw, Profile, Supply
 from benchwarden.units import ATM_PA, REFERENCES, T0_K
 from benchwarden.units.constants import T_FULL_K
@@ -30,11 +28,11 @@ from benchwarden.workflows.model import (
     Observed,
     Plan,
     RegulatorPlan,
-    RoomPlan,
     SupplyPlan,
 )
+from benchwarden.workflows.roomplan import full_mass, largest_supply, room_plan
 
-__all__ = ["build_plan", "observed_draw", "SupplyModel"]
+__all__ = ["build_plan", "observed_draw", "SupplyModel", "full_mass", "largest_supply"]
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -253,10 +251,10 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
             band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
             tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm))
-    room_plan = _room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s)
+    room_plan_ = room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s)
     fits = all(sp_.fits_session or sp_.draw_kg_s == 0 for sp_ in supply_plans)
     plan = Plan(prof.bench.name, amb, T_amb, session_h, start.isoformat(timespec="minutes"), tuple(supply_plans),
-                tuple(reg_plans.values()), tuple(draw_plans), room_plan, (), fits)
+                tuple(reg_plans.values()), tuple(draw_plans), room_plan_, (), fits)
     return dataclasses.replace(plan, findings=tuple(fd.plan_findings(prof, plan)))
 
 
@@ -272,53 +270,6 @@ def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float
     if s.gross is None or s.tare is None:
         return math.inf
     return g.pressure_from_density(s.gas, (s.gross - s.tare) / s.water_volume, hot)
-
-
-def _room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
-               extra_leak_m3_s: float) -> RoomPlan | None:
-    if prof.room is None:
-        return None
-    room = prof.room
-    T, amb = prof.ambient.temperature, prof.ambient_pa
-    Q = room.ventilation.m3_s(room.volume) if room.ventilation else 0.0
-    vented = extra_leak_m3_s
-    by_id = {s.id: s for s in prof.supplies}
-    for dp in draws:
-        if dp.vents_to_room:
-            vented += dp.mass_flow_kg_s / g.density(by_id[dp.supply_id].gas, T, amb)
-    notes: list[str] = []
-    leak = rm.leak_o2(room.volume, vented, Q, room.ventilation_kind, room.oxygen_percent) if vented > 0 else None
-    # largest supply released at once
-    biggest = max(supplies, key=lambda x: x.free_volume_m3)
-    gas = by_id[biggest.id].gas
-    vg = biggest.mass_kg / g.density(gas, T, amb)
-    rel = rm.release(room.volume, vg, "displacement", room.oxygen_percent)
-    rel_mixed = rm.release(room.volume, vg, "mixed", room.oxygen_percent)
-    notes.append(rm.stratification_note(gas))
-    # the safety case: the largest supply full, released at once; and every supply kept in the room
-    full = {s.id: full_mass(prof, s) for s in prof.supplies}
-    largest = largest_supply(prof)
-    v_full = {sid: m / g.density(by_id[sid].gas, T, amb) for sid, m in full.items() if m > 0}
-    worst = rm.release(room.volume, v_full.get(largest.id, vg), "displacement", room.oxygen_percent)
-    every = rm.release(room.volume, sum(v_full.values()) or vg, "displacement", room.oxygen_percent)
-    return RoomPlan(room.volume, Q, room.ventilation_kind, vented, leak, biggest.id, rel, rel_mixed, tuple(notes),
-                    worst, largest.id, every)
-
-
-def full_mass(prof: Profile, s: Supply) -> float:
-    """Mass [kg] of a supply when full: its fill weight (gross − tare) for a gas weighed in, else
-    the real-gas mass at its service pressure and 15 °C (the rating temperature)."""
-    if s.gross is not None and s.tare is not None:
-        return s.gross - s.tare
-    try:
-        return g.density(s.gas, T_FULL_K, s.service_pressure.abs_at(prof.ambient_pa)) * s.water_volume
-    except BenchwardenError:
-        return 0.0
-
-
-def largest_supply(prof: Profile) -> Supply:
-    """The supply that holds the most gas when full: the one a room assessment assumes escapes."""
-    return max(prof.supplies, key=lambda s: full_mass(prof, s))
 
 
 # ----------------------------------------------------------------------------- observed draw
