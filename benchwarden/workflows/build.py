@@ -25,10 +25,12 @@ from benchwarden.workflows.model import (
     PROJECTION_POINTS,
     DrawPlan,
     GapPlan,
+    Memo,
     Observed,
     Plan,
     RegulatorPlan,
     SupplyPlan,
+    memo_get,
 )
 from benchwarden.workflows.roomplan import full_mass, largest_supply, room_plan
 
@@ -48,6 +50,10 @@ def _is_liquefied(gas: g.Gas, T: float, p: float | None = None) -> bool:
     if p is not None:
         return g.is_liquefied(gas, T, p)
     return gas.sold_liquefied and T < g.critical_temperature(gas)
+
+
+_memo = memo_get
+
 
 
 class SupplyModel:
@@ -115,7 +121,7 @@ def _draw_flow(prof: Profile, d: Draw, gas: g.Gas, outlet_abs: float) -> tuple[f
 
 def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJECTION_POINTS,
                extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None,
-               leaks_sccm: Mapping[str, float] | None = None) -> Plan:
+               leaks_sccm: Mapping[str, float] | None = None, memo: Memo | None = None) -> Plan:
     """Compute the session plan of a bench profile (see module docstring for the methods).
 
     The clock times count from ``start_at`` when given (a running session), else from the
@@ -141,14 +147,17 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
     for s in prof.supplies:
         gas = s.gas
         T = _supply_T(prof, s)
-        liquefied = _is_liquefied(gas, T, None if s.reading is None else s.reading.abs_at(amb))
+        p_read = None if s.reading is None else s.reading.abs_at(amb)
+        liquefied = _memo(memo, ("liquefied", gas.key, T, p_read), _is_liquefied, gas, T, p_read)
         if liquefied:
             p_now = g.saturation_pressure(gas, T)
         else:
             assert s.reading is not None
             p_now = s.reading.abs_at(amb)
-        model = SupplyModel(gas, s.water_volume, T, max(p_now, s.service_pressure.abs_at(amb)) * 1.02, amb,
-                             None if s.reading is None else p_now)
+        p_hi = max(p_now, s.service_pressure.abs_at(amb)) * 1.02
+        p_arg = None if s.reading is None else p_now
+        model = _memo(memo, ("model", gas.key, s.water_volume, T, p_hi, amb, liquefied),
+                      SupplyModel, gas, s.water_volume, T, p_hi, amb, p_arg)
         supply_models[s.id] = model
         if liquefied:
             if s.gross is None or s.tare is None:
@@ -156,7 +165,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             else:
                 mass_now = s.gross - s.tare
         else:
-            mass_now = g.density(gas, T, p_now) * s.water_volume
+            mass_now = _memo(memo, ("rho", gas.key, T, p_now), g.density, gas, T, p_now) * s.water_volume
         supply_state[s.id] = (p_now, T, mass_now)
 
     for r in prof.regulators:
@@ -164,14 +173,17 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         p_now, T, _ = supply_state[s.id]
         set_abs = r.set_point.abs_at(amb)
         res_abs = s.reserve.abs_at(amb)
-        hot = _hot_day_pressure(s, prof, p_now, T)
+        hot = _memo(memo, ("hot", s.gas.key, s.water_volume, T, p_now, prof.ambient.hot_day, amb),
+                    _hot_day_pressure, s, prof, p_now, T)
         # a regulator reduces pressure only while its inlet is above its set point; below that it
         # stands wide open and its outlet follows the cylinder down (and the gaps' voltage with it)
         regulating = p_now > set_abs * (1.0 + 1e-9)
         outlet = set_abs if regulating else p_now
         out_res = min(rg.outlet_drift(set_abs, p_now, res_abs, r.effects), res_abs)
         if regulating:
-            th = rg.throttle(s.gas, p_now, set_abs, T, saturated_vapour=supply_models[s.id].liquefied)
+            sat = supply_models[s.id].liquefied
+            th = _memo(memo, ("throttle", s.gas.key, p_now, set_abs, T, sat),
+                       rg.throttle, s.gas, p_now, set_abs, T, saturated_vapour=sat)
             t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.notes
         else:
             t_out, solid, liquid, notes = T, False, False, ()
@@ -184,8 +196,10 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         r = prof.regulator(d.regulator)
         s = prof.supply(r.supply)
         rp = reg_plans[r.id]
-        mdot, how, choked = _draw_flow(prof, d, s.gas, rp.outlet_abs_pa)
-        rho_std = g.density(s.gas, T0_K, ATM_PA)
+        mdot, how, choked = _memo(memo, ("draw", repr(d), s.gas.key, rp.outlet_abs_pa, prof.ambient_pa,
+                                         prof.ambient.temperature, _draw_rate(prof, d)),
+                                  _draw_flow, prof, d, s.gas, rp.outlet_abs_pa)
+        rho_std = _memo(memo, ("rho", s.gas.key, T0_K, ATM_PA), g.density, s.gas, T0_K, ATM_PA)
         gap_plan = None
         if d.kind == "gap" and d.spacing is not None:
             b0 = gp.breakdown(s.gas, d.spacing, rp.outlet_abs_pa, T_amb)
@@ -228,7 +242,9 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             if model.liquefied and s.gross is not None and s.tare is not None:
                 full = s.gross - s.tare
             else:
-                full = g.density(s.gas, T_FULL_K, s.service_pressure.abs_at(amb)) * s.water_volume
+                p_full = s.service_pressure.abs_at(amb)
+                full = _memo(memo, ("rho", s.gas.key, T_FULL_K, p_full), g.density, s.gas, T_FULL_K, p_full) \
+                    * s.water_volume
             cost = s.fill_price / full * mdot * 3600.0
         fits = hours >= session_h
         # projection
@@ -246,12 +262,13 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             for dp in draw_plans:
                 if dp.regulator_id == r.id and dp.gap is not None:
                     gap_kv[dp.id] = tuple(float(x) for x in gp.breakdown_series(s.gas, dp.gap.spacing_m, o, T_amb))
-        fv = sp.free_volume(s.gas, mass_now, ref) if mass_now > 0 else 0.0
+        fv = _memo(memo, ("free", s.gas.key, mass_now, ref.key), sp.free_volume, s.gas, mass_now, ref) \
+            if mass_now > 0 else 0.0
         supply_plans.append(SupplyPlan(
             s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
             band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
             tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm))
-    room_plan_ = room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s)
+    room_plan_ = room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s, memo)
     fits = all(sp_.fits_session or sp_.draw_kg_s == 0 for sp_ in supply_plans)
     plan = Plan(prof.bench.name, amb, T_amb, session_h, start.isoformat(timespec="minutes"), tuple(supply_plans),
                 tuple(reg_plans.values()), tuple(draw_plans), room_plan_, (), fits)

@@ -16,8 +16,9 @@ Method summary
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from benchwarden.core import gap as gp
 from benchwarden.core import hazards as hz
@@ -207,3 +208,25 @@ class Observed:
     fit_pressure_abs_pa: tuple[float, ...] = ()
     #: the draw is resolved beyond its expanded uncertainty (only then does it project a reserve)
     resolved: bool = True
+
+
+class Memo:
+    """Results of pure property computations kept by one caller between plans (the app keeps one
+    per bench): the same inputs give the same result, so a refresh with nothing changed repeats
+    no mixture flash. Bounded: cleared when it grows past ``limit`` entries."""
+
+    def __init__(self, limit: int = 2000) -> None:
+        self.limit = limit
+        self.values: dict[tuple[Any, ...], Any] = {}
+
+    def get(self, key: tuple[Any, ...], fn: Callable[..., Any], *args: Any, **kw: Any) -> Any:
+        if key not in self.values:
+            if len(self.values) >= self.limit:
+                self.values.clear()
+            self.values[key] = fn(*args, **kw)
+        return self.values[key]
+
+
+def memo_get(memo: Memo | None, key: tuple[Any, ...], fn: Callable[..., Any], *args: Any, **kw: Any) -> Any:
+    """``fn(*args, **kw)``, kept in ``memo`` under ``key`` when there is one."""
+    return memo.get(key, fn, *args, **kw) if memo is not None else fn(*args, **kw)
