@@ -24,6 +24,7 @@ from benchwarden.cli import main
 from benchwarden.core import flow, gap, hold, regulator, supply
 from benchwarden.core import gas as g
 from benchwarden.errors import InputError
+from benchwarden.storage.holdlog import parse_log
 from benchwarden.units import parse_volume, pressure_abs
 
 CO2 = g.parse_gas("co2")
@@ -344,16 +345,16 @@ def test_two_readings_and_a_two_row_log_share_one_budget():
 def test_semicolon_log_with_decimal_commas_is_refused():
     # Regression: '0;150,5;20' was misread with exit 0 and a wrong leak rate.
     with pytest.raises(InputError, match="decimal"):
-        hold.parse_log("time (h);pressure (bar);temperature (degC)\n0;150,5;20\n1;150,4;20\n")
+        parse_log("time (h);pressure (bar);temperature (degC)\n0;150,5;20\n1;150,4;20\n")
     with pytest.raises(InputError, match="fields"):
-        hold.parse_log("time (h),pressure (bar)\n0,150,5\n1,150,4\n")
-    ok = hold.parse_log("time (h);pressure (bar)\n0;150.5\n1;150.4\n")
+        parse_log("time (h),pressure (bar)\n0,150,5\n1,150,4\n")
+    ok = parse_log("time (h);pressure (bar)\n0;150.5\n1;150.4\n")
     assert len(ok.t_s) == 2
 
 
 def test_mixed_time_zones_in_a_log_are_refused():
     with pytest.raises(InputError, match="offset"):
-        hold.parse_log("timestamp,pressure (bar)\n2026-11-27T18:00,150\n2026-11-28T06:00+00:00,149.9\n"
+        parse_log("timestamp,pressure (bar)\n2026-11-27T18:00,150\n2026-11-28T06:00+00:00,149.9\n"
                        "2026-11-28T18:00,149.8\n")
 
 

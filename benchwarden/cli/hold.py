@@ -27,6 +27,7 @@ from benchwarden.errors import JournalError
 from benchwarden.render.display import Display
 from benchwarden.render.findings import verdict_words
 from benchwarden.render.numbers import fmt_uncertain
+from benchwarden.storage.holdlog import parse_log
 from benchwarden.units import (
     parse_duration,
     parse_flow,
@@ -118,7 +119,7 @@ def cmd_hold(args: argparse.Namespace) -> int:
         except (OSError, UnicodeDecodeError) as exc:
             raise input_error(f"cannot read log {args.log}: {getattr(exc, 'strerror', None) or exc}") from None
         T_def = parse_temperature(args.t_start) if args.t_start else 293.15
-        fit = hd.hold_from_log(g_, V, hd.parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
+        fit = hd.hold_from_log(g_, V, parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
                                reserve, amb)
         r = fit.result
     else:

@@ -27,11 +27,7 @@ accuracy four times finer than the pressure change the target leak causes over t
 
 from __future__ import annotations
 
-import csv
-import datetime as dt
-import io
 import math
-import re
 from dataclasses import dataclass
 
 from benchwarden.core import gas as g
@@ -350,94 +346,6 @@ class HoldLog:
     t_s: tuple[float, ...]
     p_abs_pa: tuple[float, ...]
     T_k: tuple[float, ...] | None
-
-
-_TIME_UNITS = {"s": 1.0, "sec": 1.0, "min": 60.0, "h": 3600.0, "hr": 3600.0, "d": SECONDS_PER_DAY, "day": SECONDS_PER_DAY}
-
-
-def _header_unit(name: str) -> tuple[str, str | None]:
-    n = name.strip()
-    m = re.fullmatch(r"(.*?)\s*[\(\[]\s*([^\)\]]+)\s*[\)\]]\s*", n)
-    if m:
-        return m.group(1).strip().lower(), m.group(2).strip()
-    m = re.fullmatch(r"([A-Za-z]+)_(.+)", n)
-    if m:
-        return m.group(1).lower(), m.group(2)
-    return n.lower(), None
-
-
-def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = ATM_PA) -> HoldLog:
-    """Parse a hold-test log (CSV): a time column (elapsed with a unit, or ISO timestamps), a
-    pressure column (gauge unless the unit is marked absolute; unit in the header, e.g.
-    ``pressure (bar)``/``pressure_psi``, or given as ``pressure_unit``) and an optional
-    temperature column (``temperature (degC)``, ``T_K``). Errors name the row."""
-    from benchwarden.units import parse_temperature, pressure_abs
-
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    if not lines:
-        raise InputError("the log is empty; it needs a header row and at least two readings")
-    delimiter = ";" if lines[0].count(";") > lines[0].count(",") else ","
-    rows = list(csv.reader(io.StringIO("\n".join(lines)), delimiter=delimiter))
-    rows = [r for r in rows if r and any(c.strip() for c in r)]
-    if len(rows) < 3:
-        raise InputError("the log needs a header row and at least two readings")
-    width = len(rows[0])
-    for n, r in enumerate(rows[1:], start=2):
-        if len(r) != width:
-            raise InputError(f"log row {n} has {len(r)} fields where the header has {width}: write numbers with a "
-                             "decimal point and no thousands separators")
-        if delimiter == ";" and any("," in c for c in r):
-            raise InputError(f"log row {n}: decimal commas are not read; write decimal points (e.g. 150.5)")
-    header = [_header_unit(h) for h in rows[0]]
-    idx_t = idx_p = idx_T = None
-    for i, (name, _) in enumerate(header):
-        if idx_t is None and name in ("t", "time", "elapsed", "timestamp", "datetime", "date"):
-            idx_t = i
-        elif idx_p is None and name in ("p", "pressure", "reading", "gauge"):
-            idx_p = i
-        elif idx_T is None and (name in ("temperature", "temp", "t_c", "t_k") or (name == "t" and idx_t is not None)):
-            idx_T = i
-    if idx_t is None or idx_p is None:
-        raise InputError("log header needs a time column (time/elapsed/timestamp) and a pressure column "
-                         f"(pressure/p); got {', '.join(rows[0])}")
-    t_unit = header[idx_t][1]
-    p_unit = pressure_unit or header[idx_p][1]
-    if not p_unit:
-        raise InputError("the pressure unit is missing: put it in the header, e.g. 'pressure (bar)', or use --pressure-unit")
-    T_unit = header[idx_T][1] if idx_T is not None else None
-    ts: list[float] = []
-    ps: list[float] = []
-    Ts: list[float] = []
-    t0: dt.datetime | None = None
-    for n, r in enumerate(rows[1:], start=2):
-        try:
-            raw_t = r[idx_t].strip()
-            if t_unit and t_unit.lower() in _TIME_UNITS:
-                tv = float(raw_t) * _TIME_UNITS[t_unit.lower()]
-            else:
-                try:
-                    stamp = dt.datetime.fromisoformat(raw_t)
-                except ValueError:
-                    raise InputError("time is neither a number with a unit in the header nor an ISO timestamp") from None
-                if t0 is not None and (stamp.tzinfo is None) != (t0.tzinfo is None):
-                    raise InputError("timestamps mix local times and times with a UTC offset; give all one way")
-                t0 = t0 or stamp
-                tv = (stamp - t0).total_seconds()
-            pv = pressure_abs(f"{r[idx_p].strip()} {p_unit}", ambient_pa)
-            if idx_T is not None and r[idx_T].strip():
-                Tu = T_unit or "degC"
-                Ts.append(parse_temperature(f"{r[idx_T].strip()} {Tu}"))
-            elif idx_T is not None:
-                raise InputError("temperature is empty")
-        except (InputError, ValueError, IndexError) as exc:
-            raise InputError(f"log row {n}: {exc}") from None
-        if not math.isfinite(tv):
-            raise InputError(f"log row {n}: time is not a finite number")
-        if ts and tv <= ts[-1]:
-            raise InputError(f"log row {n}: time {raw_t} is not after the previous row's")
-        ts.append(tv)
-        ps.append(pv)
-    return HoldLog(tuple(ts), tuple(ps), tuple(Ts) if idx_T is not None else None)
 
 
 @dataclass(frozen=True)

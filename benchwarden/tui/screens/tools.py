@@ -19,6 +19,7 @@ from textual_plotext import PlotextPlot
 from benchwarden.errors import BenchwardenError, InputError, JournalError
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.render.room import room_lines
+from benchwarden.storage.holdlog import parse_log
 from benchwarden.units import fmt_hours, fmt_pressure
 from benchwarden.units.constants import BAR_PA
 from benchwarden.workflows.session import SessionState
@@ -189,7 +190,7 @@ class HoldScreen(_Tool):
                     text = Path(val("hold-log")).expanduser().read_text(encoding="utf-8")
                 except (OSError, UnicodeDecodeError) as exc:
                     raise InputError(f"cannot read {val('hold-log')}: {exc}") from None
-                fit = hd.hold_from_log(s.gas, s.water_volume, hd.parse_log(text, None, amb), gauge,
+                fit = hd.hold_from_log(s.gas, s.water_volume, parse_log(text, None, amb), gauge,
                                        ambient_pa=amb, reserve_abs=s.reserve.abs_at(amb))
                 r = fit.result
             else:
