@@ -17,12 +17,13 @@ from pathlib import Path
 from typing import Any
 
 from benchwarden.errors import JournalError
+from benchwarden.storage.events import EVENT_MIGRATION, Event
 
-SCHEMA_VERSION = 5
+SCHEMA_VERSION = 6
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
-_MIGRATIONS: dict[int, str] = {
+_MIGRATIONS: dict[int, str | tuple[str, ...]] = {
     1: """
     CREATE TABLE sessions (
         id INTEGER PRIMARY KEY,
@@ -169,6 +170,7 @@ _MIGRATIONS: dict[int, str] = {
         PRIMARY KEY (bench, supply_id, what)
     );
     """,
+    6: EVENT_MIGRATION,
 }
 
 
@@ -359,7 +361,8 @@ class Journal:
         for v in range(version + 1, SCHEMA_VERSION + 1):
             self.db.execute("BEGIN IMMEDIATE")
             try:
-                for stmt in filter(str.strip, _MIGRATIONS[v].split(";")):
+                m = _MIGRATIONS[v]
+                for stmt in (m if isinstance(m, tuple) else filter(str.strip, m.split(";"))):
                     self.db.execute(stmt)
                 self.db.execute(f"PRAGMA user_version = {v}")
                 self.db.execute("COMMIT")
@@ -611,6 +614,12 @@ class Journal:
             "INSERT INTO marks(bench, supply_id, what, reading_id, at) VALUES (?, ?, ?, ?, ?)"
             " ON CONFLICT (bench, supply_id, what) DO UPDATE SET reading_id = excluded.reading_id, at = excluded.at",
             (bench, supply_id, what, reading_id, at)))
+
+    def events(self, bench: str, after_seq: int = 0, limit: int = 1000) -> list[Event]:
+        """The bench's events after sequence number ``after_seq``, oldest first (at most ``limit``)."""
+        return [Event.of_row(r) for r in self._read(
+            "SELECT seq, event_id, bench, kind, at, recorded_at, payload FROM events WHERE bench = ? AND seq > ?"
+            " ORDER BY seq LIMIT ?", (bench, after_seq, limit))]
 
     def supply_readings(self, bench: str, supply_id: str) -> list[ReadingRow]:
         """Every reading of a supply of a bench, in and out of sessions, struck ones included."""
