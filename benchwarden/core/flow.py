@@ -12,6 +12,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from benchwarden.core import gas as g
+from benchwarden.core.flash import isentrope
 from benchwarden.errors import InputError
 from benchwarden.units import ATM_PA, T0_K, check_positive, check_range, fmt_pressure
 
@@ -76,7 +77,7 @@ def real_nozzle_mass_flux(gas: g.Gas, p1: float, T1: float, p2: float) -> tuple[
     s1 = g.entropy(gas, T1, p1)
 
     def flux(p: float, verify: bool = False) -> float:
-        h, rho, _ = g.isentrope(gas, s1, p, T1 * (p / p1) ** 0.25, verify)
+        h, rho, _ = isentrope(gas, s1, p, T1 * (p / p1) ** 0.25, verify)
         return rho * math.sqrt(max(0.0, 2.0 * (h1 - h)))
 
     # p* lies well inside (0.15·p1, 0.95·p1) for every gas and state of a bench; a mixture is

@@ -15,13 +15,10 @@ mutable state.
 from __future__ import annotations
 
 import math
-import os
-import re
-import sys
-import threading
 from dataclasses import dataclass
 from typing import Any
 
+from benchwarden.core import eos
 from benchwarden.core.gases import (
     AIR_MOLAR_MASS,
     PURE_GASES,
@@ -42,114 +39,12 @@ from benchwarden.units import fmt_pressure, fmt_temperature
 __all__ = ["has_sublimation_line", "sublimation_pressure", "sublimation_temperature", "AIR_MOLAR_MASS", "PURE_GASES", "R", "T0", "Gas", "Handling", "PureGas", "parse_gas", "pure_gas"]
 
 
-# --------------------------------------------------------------------------------------
-# CoolProp: a quiet lazy import and one AbstractState per gas and per thread
-
-#: Set before CoolProp 8 is imported: it then skips building superancillary curves for every
-#: fluid (2–4 s here) and takes about 0.3 s; saturation states agree to 1e-11 (DEVELOPERS.md).
-SUPERANCILLARY_SWITCH = "COOLPROP_DISABLE_SUPERANCILLARIES_ENTIRELY"
-
-_IMPORT_LOCK = threading.Lock()
-_BUILD_LOCK = threading.Lock()  # CoolProp's mixing-rule table is process-wide
-_local = threading.local()
-#: Pairs whose parameters were estimated: mirrors CoolProp's own process-wide pair table.
-_ESTIMATED: set[frozenset[str]] = set()
-
-
-def _import_quietly() -> Any:
-    """Import CoolProp with the superancillary switch set and standard output (file
-    descriptor 1) sent to /dev/null meanwhile: the C++ library announces the switch with a
-    line on standard output, which must never reach command output such as ``--json``."""
-    os.environ.setdefault(SUPERANCILLARY_SWITCH, "1")
-    try:
-        sys.stdout.flush()
-    except (OSError, ValueError):  # pragma: no cover - closed stdout
-        pass
-    try:
-        saved = os.dup(1)
-    except OSError:  # pragma: no cover - no fd 1 at all
-        saved = -1
-    devnull = os.open(os.devnull, os.O_WRONLY)
-    try:
-        if saved >= 0:
-            os.dup2(devnull, 1)
-        import CoolProp
-    finally:
-        if saved >= 0:
-            os.dup2(saved, 1)
-            os.close(saved)
-        os.close(devnull)
-    return CoolProp
-
-
-def coolprop() -> Any:
-    """The ``CoolProp`` module, imported quietly on first use (thread-safe)."""
-    module = sys.modules.get("CoolProp")
-    if module is not None and hasattr(module, "AbstractState"):
-        return module
-    with _IMPORT_LOCK:
-        module = sys.modules.get("CoolProp")
-        if module is not None and hasattr(module, "AbstractState"):
-            return module
-        return _import_quietly()
-
-
-@dataclass
-class _State:
-    AS: Any
-    estimated_pairs: tuple[tuple[str, str], ...]
-
-
-def _build(key: str) -> _State:
-    gas = parse_gas(key)
-    CP = coolprop()
-    names = "&".join(g.coolprop for g, _ in gas.components)
-    estimated: list[tuple[str, str]] = []
-    with _BUILD_LOCK:
-        for _ in range(len(gas.components) ** 2 + 1):
-            try:
-                AS = CP.AbstractState("HEOS", names)
-                break
-            except ValueError as exc:
-                m = re.search(r"binary pair \[([\d-]+),([\d-]+)\]", str(exc))
-                if not m:
-                    raise PropertyError(f"CoolProp cannot build {gas.name}") from None
-                cas1, cas2 = m.group(1), m.group(2)
-                # CoolProp ships no interaction parameters for this pair: estimate them.
-                CP.CoolProp.apply_simple_mixing_rule(cas1, cas2, "Lorentz-Berthelot")
-                by_cas = {g.cas: g.name for g in PURE_GASES.values()}
-                estimated.append((by_cas.get(cas1, cas1), by_cas.get(cas2, cas2)))
-        else:  # pragma: no cover - defensive
-            raise PropertyError(f"CoolProp cannot build {gas.name}")
-        _ESTIMATED.update(frozenset(p) for p in estimated)
-        comps = [c.name for c, _ in gas.components]
-        estimated = [(a, b) for i, a in enumerate(comps) for b in comps[i + 1:] if frozenset((a, b)) in _ESTIMATED]
-    if gas.is_mixture:
-        AS.set_mole_fractions([x for _, x in gas.components])
-    return _State(AS, tuple(estimated))
-
-
-def _state(key: str) -> _State:
-    states: dict[str, _State] | None = getattr(_local, "states", None)
-    if states is None:
-        states = _local.states = {}
-    st = states.get(key)
-    if st is None:
-        st = states[key] = _build(key)
-    return st
-
-
-def state(gas: Gas) -> Any:
-    """This thread's CoolProp ``AbstractState`` of ``gas`` (HEOS backend).
-
-    Each thread has its own states: an ``AbstractState`` is updated in place by every call,
-    so sharing one between threads returns another thread's numbers."""
-    return _state(gas.key).AS
-
-
-def estimated_pairs(gas: Gas) -> tuple[tuple[str, str], ...]:
-    """Binary pairs of a mixture whose interaction parameters were estimated (Lorentz-Berthelot)."""
-    return _state(gas.key).estimated_pairs
+# CoolProp's states live in :mod:`benchwarden.core.eos` (one door: a failed update never leaves
+# a half-set state behind); re-exported here for callers that need the module or a constant.
+coolprop = eos.coolprop
+state = eos.state
+estimated_pairs = eos.estimated_pairs
+SUPERANCILLARY_SWITCH = eos.SUPERANCILLARY_SWITCH
 
 
 def limits(gas: Gas) -> tuple[float, float, float]:
@@ -202,18 +97,18 @@ def check_state(gas: Gas, T: float, p: float | None = None) -> None:
         )
 
 
-def _update(gas: Gas, pair: str, a: float, b: float) -> Any:
-    CP = coolprop()
-    AS = state(gas)
-    try:
-        AS.update(getattr(CP, pair), a, b)
-    except ValueError:
+def state_at(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None) -> Any:
+    """This thread's state of ``gas`` updated with one CoolProp input pair (through
+    :func:`benchwarden.core.eos.update`: the answer of a fresh state, whatever ran before), or a
+    :class:`PropertyError` naming the inputs."""
+    AS = eos.update(gas, pair, a, b, imposed)
+    if AS is None:
         what = {"PT_INPUTS": f"{fmt_pressure(a, kind='absolute')}, {fmt_temperature(b)}",
                 "DmassT_INPUTS": f"{a:.6g} kg/m³, {fmt_temperature(b)}",
                 "HmassP_INPUTS": f"h = {a / 1e3:.6g} kJ/kg, {fmt_pressure(b, kind='absolute')}",
                 "PSmass_INPUTS": f"{fmt_pressure(a, kind='absolute')}, s = {b / 1e3:.6g} kJ/(kg·K)",
                 "QT_INPUTS": f"saturation at {fmt_temperature(b)}"}.get(pair, "")
-        raise PropertyError(f"the equation of state of {gas.name} has no solution at {what}") from None
+        raise PropertyError(f"the equation of state of {gas.name} has no solution at {what}")
     return AS
 
 
@@ -226,7 +121,7 @@ class Phase:
     vapour_fraction: float | None
 
 
-def _phase_of(gas: Gas, AS: Any) -> Phase:
+def phase_of(gas: Gas, AS: Any) -> Phase:
     CP = coolprop()
     ph = AS.phase()
     q = float(AS.Q())
@@ -249,7 +144,7 @@ def phase(gas: Gas, T: float, p: float) -> Phase:
     'two-phase'
     """
     check_state(gas, T, p)
-    return _phase_of(gas, _update(gas, "PT_INPUTS", p, T))
+    return phase_of(gas, state_at(gas, "PT_INPUTS", p, T))
 
 
 @dataclass(frozen=True)
@@ -264,8 +159,8 @@ class PTState:
 def pt_state(gas: Gas, T: float, p: float) -> PTState:
     """Density, Z and phase at T [K], p [Pa] from one (T, p) flash (CoolProp HEOS)."""
     check_state(gas, T, p)
-    AS = _update(gas, "PT_INPUTS", p, T)
-    return PTState(float(AS.rhomass()), float(AS.compressibility_factor()), _phase_of(gas, AS))
+    AS = state_at(gas, "PT_INPUTS", p, T)
+    return PTState(float(AS.rhomass()), float(AS.compressibility_factor()), phase_of(gas, AS))
 
 
 def density(gas: Gas, T: float, p: float) -> float:
@@ -277,13 +172,13 @@ def density(gas: Gas, T: float, p: float) -> float:
     6.3552
     """
     check_state(gas, T, p)
-    return float(_update(gas, "PT_INPUTS", p, T).rhomass())
+    return float(state_at(gas, "PT_INPUTS", p, T).rhomass())
 
 
 def z_factor(gas: Gas, T: float, p: float) -> float:
     """Compressibility factor Z = p/(ρ_molar·R·T) (CoolProp HEOS)."""
     check_state(gas, T, p)
-    return float(_update(gas, "PT_INPUTS", p, T).compressibility_factor())
+    return float(state_at(gas, "PT_INPUTS", p, T).compressibility_factor())
 
 
 def pressure_from_density(gas: Gas, rho: float, T: float) -> float:
@@ -291,25 +186,25 @@ def pressure_from_density(gas: Gas, rho: float, T: float) -> float:
     check_state(gas, T)
     if not math.isfinite(rho) or rho <= 0:
         raise InputError(f"density {rho!r} kg/m³ must be greater than zero")
-    return float(_update(gas, "DmassT_INPUTS", rho, T).p())
+    return float(state_at(gas, "DmassT_INPUTS", rho, T).p())
 
 
 def enthalpy(gas: Gas, T: float, p: float) -> float:
     """Specific enthalpy [J/kg] at T [K], p [Pa] (CoolProp HEOS)."""
     check_state(gas, T, p)
-    return float(_update(gas, "PT_INPUTS", p, T).hmass())
+    return float(state_at(gas, "PT_INPUTS", p, T).hmass())
 
 
 def entropy(gas: Gas, T: float, p: float) -> float:
     """Specific entropy [J/(kg·K)] at T [K], p [Pa] (CoolProp HEOS)."""
     check_state(gas, T, p)
-    return float(_update(gas, "PT_INPUTS", p, T).smass())
+    return float(state_at(gas, "PT_INPUTS", p, T).smass())
 
 
 def heat_capacity_ratio(gas: Gas, T: float, p: float) -> float:
     """Ratio of specific heats cp/cv at (T, p) from CoolProp HEOS."""
     check_state(gas, T, p)
-    AS = _update(gas, "PT_INPUTS", p, T)
+    AS = state_at(gas, "PT_INPUTS", p, T)
     return float(AS.cpmass() / AS.cvmass())
 
 
@@ -322,168 +217,29 @@ def vapour_enthalpy(gas: Gas, T: float, p: float) -> float:
     >>> round(vapour_enthalpy(parse_gas("co2"), 204.15, 101325.0) / 1e3, 1)
     429.9
     """
+    return float(_vapour_state(gas, T, p).hmass())
+
+
+def vapour_density(gas: Gas, T: float, p: float) -> float:
+    """Mass density [kg/m³] of the *vapour* at (T, p), also below the triple-point temperature
+    (the vapour branch imposed, as in :func:`vapour_enthalpy`). Pure gases only."""
+    return float(_vapour_state(gas, T, p).rhomass())
+
+
+def _vapour_state(gas: Gas, T: float, p: float) -> Any:
     if gas.is_mixture:
-        raise InputError("vapour_enthalpy is for pure gases")
-    CP = coolprop()
-    AS = state(gas)
-    AS.specify_phase(CP.iphase_gas)
-    try:
-        AS.update(CP.PT_INPUTS, p, T)
-        return float(AS.hmass())
-    except ValueError:
-        raise PropertyError(f"no vapour state of {gas.name} at {fmt_temperature(T)}, {fmt_pressure(p, kind='absolute')}") from None
-    finally:
-        AS.unspecify_phase()
+        raise InputError("the vapour branch below the triple point is for pure gases")
+    AS = eos.update(gas, "PT_INPUTS", p, T, imposed="gas")
+    if AS is None:
+        raise PropertyError(f"no vapour state of {gas.name} at {fmt_temperature(T)}, {fmt_pressure(p, kind='absolute')}")
+    return AS
 
 
 def saturated_vapour_enthalpy(gas: Gas, T: float) -> float:
     """Enthalpy [J/kg] of the saturated vapour of a pure gas at T [K]."""
     if gas.is_mixture:
         raise InputError("saturation is defined here only for pure gases")
-    return float(_update(gas, "QT_INPUTS", 1.0, T).hmass())
-
-
-@dataclass(frozen=True)
-class FlashPH:
-    """Result of an isenthalpic (h, p) flash: temperature [K], phase, density [kg/m³]."""
-
-    T: float
-    phase: Phase
-    density: float
-
-
-def solve_increasing(f: Any, lo: float, hi: float, tol: float = 1e-7) -> float:
-    """Root of an increasing f(T) in [lo, hi] by bisection with secant steps (Illinois)."""
-    flo, fhi = f(lo), f(hi)
-    if flo > 0 or fhi < 0:
-        raise PropertyError("no temperature in range matches")
-    for _ in range(100):
-        T = hi - fhi * (hi - lo) / (fhi - flo) if fhi != flo else 0.5 * (lo + hi)
-        if not lo < T < hi:
-            T = 0.5 * (lo + hi)
-        fT = f(T)
-        if abs(hi - lo) < tol * max(1.0, T):
-            return T
-        if fT > 0:
-            hi, fhi = T, fT
-            flo *= 0.5
-        else:
-            lo, flo = T, fT
-            fhi *= 0.5
-    return 0.5 * (lo + hi)
-
-
-def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float, tol: float,
-                   verify: bool = True) -> float:
-    """T at which the mixture's ``prop`` (hmass or smass, increasing in T) equals ``target``
-    at p.
-
-    Solved first on the gas branch (fast, and the answer wherever the gas is stable). Where
-    that state is not a stable single phase, the true state is two-phase and lies between
-    the gas-branch temperature and the dew point (condensing lowers h and s at a given T):
-    that bracket is searched with full phase-equilibrium (T, p) flashes. ``verify=False``
-    skips the stability check (the caller checks the one state that matters)."""
-    CP = coolprop()
-    AS = state(gas)
-    tmin, tmax, _ = limits(gas)
-
-    def on_gas_branch(T: float) -> float:
-        AS.specify_phase(CP.iphase_gas)
-        try:
-            return float(getattr(_update(gas, "PT_INPUTS", p, T), prop)())
-        finally:
-            AS.unspecify_phase()
-
-    def f(T: float) -> float:
-        return on_gas_branch(T) - target
-
-    # bracket on the gas branch: up until above the target, down until below it or until the
-    # gas branch stops existing (far inside the two-phase region)
-    hi = min(tmax, T_guess)
-    while f(hi) < 0:
-        if hi >= tmax:
-            raise PropertyError(f"no state of {gas.name} at {fmt_pressure(p, kind='absolute')} up to {fmt_temperature(tmax)}")
-        hi = min(tmax, hi + 20.0)
-    lo: float | None = None
-    T, last_ok = hi, hi
-    while T > tmin:
-        T = max(tmin, T - 10.0)
-        try:
-            if f(T) < 0:
-                lo = T
-                break
-        except PropertyError:
-            break
-        last_ok = T
-    T_gas = solve_increasing(f, lo, last_ok, tol) if lo is not None else math.nan
-    if not verify:
-        if lo is None:
-            raise PropertyError(f"no gas state of {gas.name} at {fmt_pressure(p, kind='absolute')}")
-        return T_gas
-
-    def equilibrium(T: float) -> tuple[bool, float]:
-        """(single stable gas phase consistent with the gas branch, equilibrium value)."""
-        value = float(getattr(_update(gas, "PT_INPUTS", p, T), prop)())
-        single = _phase_of(gas, AS).kind in ("gas", "supercritical")
-        return single and abs(value - on_gas_branch(T)) <= 1e-6 * max(1.0, abs(value)), value
-
-    try:
-        if lo is not None and equilibrium(T_gas)[0]:
-            return T_gas
-        # two-phase: between the gas-branch temperature (or the lowest point the gas branch
-        # reaches) and the dew point
-        T_low = T_gas if lo is not None else last_ok
-        T_dew = T_low
-        for _ in range(40):
-            T_dew = min(tmax, T_dew + 2.0)
-            if equilibrium(T_dew)[0]:
-                break
-        else:
-            raise PropertyError("no dew point found")
-        for _ in range(60):
-            if equilibrium(T_low)[1] < target:
-                break
-            T_low = max(tmin, T_low - 5.0)
-        else:
-            raise PropertyError("no bracket")
-        return solve_increasing(lambda T: equilibrium(T)[1] - target, T_low, T_dew, tol)
-    except PropertyError:
-        raise PropertyError(f"the phase equilibrium of {gas.name} cannot be solved at {fmt_pressure(p, kind='absolute')}") from None
-
-
-def flash_ph(gas: Gas, h: float, p: float, T_guess: float) -> FlashPH:
-    """Isenthalpic flash: the state with enthalpy h [J/kg] at absolute pressure p [Pa].
-
-    Pure gases use CoolProp's (h, p) flash. Mixtures solve h(T, p) = h on T, first on the gas
-    branch and, where that state is not stable, with full (T, p) phase-equilibrium flashes
-    (CoolProp 8; h is continuous and increasing in T through the two-phase region), which is
-    robust where CoolProp's own mixture (h, p) flash is not.
-    """
-    if not gas.is_mixture:
-        AS = _update(gas, "HmassP_INPUTS", h, p)
-        return FlashPH(float(AS.T()), _phase_of(gas, AS), float(AS.rhomass()))
-    T = _solve_mixture(gas, "hmass", h, p, T_guess, 1e-7)
-    AS = _update(gas, "PT_INPUTS", p, T)
-    return FlashPH(T, _phase_of(gas, AS), float(AS.rhomass()))
-
-
-def isentrope(gas: Gas, s: float, p: float, T_guess: float, verify: bool = True) -> tuple[float, float, float]:
-    """(h [J/kg], ρ [kg/m³], T [K]) at entropy s [J/(kg·K)] and pressure p [Pa] (CoolProp
-    HEOS; mixtures by solving s(T, p) = s on T as in :func:`flash_ph`; ``verify=False`` stays
-    on the gas branch without a stability check)."""
-    if not gas.is_mixture:
-        AS = _update(gas, "PSmass_INPUTS", p, s)
-        return float(AS.hmass()), float(AS.rhomass()), float(AS.T())
-    T = _solve_mixture(gas, "smass", s, p, T_guess, 1e-9, verify)
-    CP = coolprop()
-    AS = state(gas)
-    if not verify:
-        AS.specify_phase(CP.iphase_gas)
-    try:
-        _update(gas, "PT_INPUTS", p, T)
-        return float(AS.hmass()), float(AS.rhomass()), T
-    finally:
-        AS.unspecify_phase()
+    return float(state_at(gas, "QT_INPUTS", 1.0, T).hmass())
 
 
 def critical_temperature(gas: Gas) -> float:
@@ -507,7 +263,7 @@ def saturation_pressure(gas: Gas, T: float) -> float:
     """Vapour pressure [Pa] of a pure gas at T [K] between its triple and critical points."""
     if gas.is_mixture:
         raise InputError("saturation pressure is defined here only for pure gases")
-    AS = _update(gas, "QT_INPUTS", 0.0, T)
+    AS = state_at(gas, "QT_INPUTS", 0.0, T)
     return float(AS.p())
 
 
@@ -547,16 +303,11 @@ def gas_branch_densities(gas: Gas, T: float, ps: Any) -> list[float] | None:
     for j in sorted(set(range(0, n, 8)) | {n - 1}):
         if phase(gas, T, float(ps[j])).kind not in ("gas", "supercritical"):
             return None
-    CP = coolprop()
-    AS = state(gas)
     out: list[float] = []
-    AS.specify_phase(CP.iphase_gas)
     try:
         for p in ps:
             check_state(gas, T, float(p))
-            out.append(float(_update(gas, "PT_INPUTS", float(p), T).rhomass()))
+            out.append(float(state_at(gas, "PT_INPUTS", float(p), T, imposed="gas").rhomass()))
     except PropertyError:
         return None
-    finally:
-        AS.unspecify_phase()
     return out

@@ -14,6 +14,7 @@ import math
 from dataclasses import dataclass
 
 from benchwarden.core import gas as g
+from benchwarden.core.flash import flash_ph, solve_increasing
 from benchwarden.errors import InputError, PropertyError
 from benchwarden.units import T0_K, fmt_pressure, fmt_temperature
 
@@ -50,20 +51,13 @@ def sublimation_enthalpy(gas: g.Gas, T: float) -> float:
     p = g.sublimation_pressure(gas, T)
     dT = 1e-3
     dpdT = (g.sublimation_pressure(gas, T + dT) - g.sublimation_pressure(gas, T - dT)) / (2 * dT)
-    CP = g.coolprop()
-    AS = g.state(gas)
-    AS.specify_phase(CP.iphase_gas)
-    try:
-        AS.update(CP.PT_INPUTS, p, T)
-        v_vap = 1.0 / float(AS.rhomass())
-    finally:
-        AS.unspecify_phase()
+    v_vap = 1.0 / g.vapour_density(gas, T, p)
     return T * (v_vap - 1.0 / DRY_ICE_DENSITY) * dpdT
 
 
 def _vapour_outlet(gas: g.Gas, h: float, p_out: float, T_lo: float, T_hi: float) -> float:
     """Temperature of the vapour with enthalpy h at p_out, between T_lo and T_hi."""
-    return g.solve_increasing(lambda T: g.vapour_enthalpy(gas, T, p_out) - h, T_lo, T_hi)
+    return solve_increasing(lambda T: g.vapour_enthalpy(gas, T, p_out) - h, T_lo, T_hi)
 
 
 def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapour: bool = False) -> Throttle:
@@ -76,7 +70,7 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     line and solid (dry ice) forms, its mass fraction from the enthalpy balance with the
     Clausius–Clapeyron sublimation enthalpy. Otherwise the outlet is vapour, evaluated on the
     vapour branch of the equation of state also below the triple-point temperature.
-    Mixtures use a phase-equilibrium (h, p) flash (:func:`benchwarden.core.gas.flash_ph`) that says
+    Mixtures use a phase-equilibrium (h, p) flash (:func:`benchwarden.core.flash.flash_ph`) that says
     when a component condenses. Freezing is a result, not an error.
 
     Examples
@@ -106,7 +100,7 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
                      "(a dip-tube cylinder delivering liquid forms far more solid)")
     h = g.saturated_vapour_enthalpy(gas, T_in) if saturated_vapour else g.enthalpy(gas, T_in, p_in)
     if gas.is_mixture:
-        fl = g.flash_ph(gas, h, p_out, T_in)
+        fl = flash_ph(gas, h, p_out, T_in)
         liquid = fl.phase.kind in ("two-phase", "liquid")
         q = fl.phase.vapour_fraction if liquid else None
         if liquid:
@@ -137,7 +131,7 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
         return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, False, False, None, tuple(notes),
                         "isenthalpic, real gas (CoolProp HEOS, vapour branch)")
     try:
-        fl = g.flash_ph(gas, h, p_out, T_in)
+        fl = flash_ph(gas, h, p_out, T_in)
     except PropertyError:
         raise PropertyError(f"no outlet state for {gas.name} throttled to {fmt_pressure(p_out, kind='absolute')}") from None
     T_out = fl.T
@@ -159,8 +153,8 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
 def joule_thomson_coefficient(gas: g.Gas, T: float, p: float, dp: float = 1e3) -> float:
     """Joule–Thomson coefficient μ_JT = (∂T/∂p)_h [K/Pa], by a small isenthalpic step."""
     h = g.enthalpy(gas, T, p)
-    T1 = g.flash_ph(gas, h, p - dp, T).T
-    T2 = g.flash_ph(gas, h, p + dp, T).T
+    T1 = flash_ph(gas, h, p - dp, T).T
+    T2 = flash_ph(gas, h, p + dp, T).T
     return (T2 - T1) / (2 * dp)
 
 
