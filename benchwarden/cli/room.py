@@ -15,6 +15,7 @@ from benchwarden.cli.common import (
     add_gas,
     add_json,
     ambient,
+    display,
     emit_json,
     emit_table,
     gas,
@@ -23,6 +24,7 @@ from benchwarden.cli.common import (
 from benchwarden.core import gas as g
 from benchwarden.core import room as rm
 from benchwarden.core import supply
+from benchwarden.render.supply import contents_refusal
 from benchwarden.units import fmt_hours, parse_flow, parse_temperature, parse_volume, pressure_abs
 from benchwarden.units.quantities import parse_amount, parse_ventilation
 
@@ -89,7 +91,7 @@ def cmd_room(args: argparse.Namespace) -> int:
         c = supply.contents(g_, parse_volume(args.supply_volume, "supply volume"),
                             pressure_abs(args.supply_pressure, amb, "supply pressure"), T)
         if c.mass_kg is None:
-            raise input_error(c.notes[0])
+            raise input_error(contents_refusal(c, display(args, amb)))
         fin = rm.finite_leak(lk, c.mass_kg / g.density(g_, T, amb))
     worst = fin.o2_percent_minimum if fin is not None else lk.o2_percent_steady
     hz = rm.gas_hazards(g_, worst, args.oxygen)

@@ -267,6 +267,57 @@ def saturation_pressure(gas: Gas, T: float) -> float:
     return float(AS.p())
 
 
+def critical_pressure(gas: Gas) -> float:
+    """Critical pressure [Pa] of a pure gas (CoolProp HEOS; pseudo-critical, mole-fraction
+    weighted, for a mixture)."""
+    if gas.is_mixture:
+        return sum(x * float(state(Gas(((c, 1.0),))).p_critical()) for c, x in gas.components)
+    return float(state(gas).p_critical())
+
+
+def saturation_densities(gas: Gas, T: float) -> tuple[float, float]:
+    """(saturated liquid, saturated vapour) mass densities [kg/m³] of a pure gas at T [K]."""
+    if gas.is_mixture:
+        raise InputError("saturation is defined here only for pure gases")
+    rho_l = float(state_at(gas, "QT_INPUTS", 0.0, T).rhomass())
+    return rho_l, float(state_at(gas, "QT_INPUTS", 1.0, T).rhomass())
+
+
+def saturated_vapour_density_at_p(gas: Gas, p: float) -> float:
+    """Saturated vapour density [kg/m³] of a pure gas at absolute pressure p [Pa] (below its
+    critical pressure; at or above it, the density at the critical temperature)."""
+    if p >= critical_pressure(gas):
+        return density(gas, critical_temperature(gas), p)
+    return float(state_at(gas, "PQ_INPUTS", p, 1.0).rhomass())
+
+
+def liquid_full_temperature(gas: Gas, rho: float) -> float | None:
+    """Temperature [K] at which a closed cylinder of a pure gas at mean density ρ [kg/m³]
+    becomes liquid-full: where the saturated liquid density falls to ρ (it decreases from the
+    triple point to the critical point). None for a fill at or below the critical density
+    (it never becomes liquid-full); the triple-point temperature for a fill denser than the
+    liquid there."""
+    if gas.is_mixture:
+        return None
+    AS = state(gas)
+    Tc, rho_c = float(AS.T_critical()), float(AS.rhomass_critical())
+    if rho <= rho_c:
+        return None
+    Tt = float(AS.Ttriple())
+    if rho >= saturation_densities(gas, Tt)[0]:
+        return Tt
+    lo, hi = Tt, Tc - 1e-6
+    for _ in range(80):  # bisection on the decreasing saturated liquid density
+        mid = 0.5 * (lo + hi)
+        if saturation_densities(gas, mid)[0] > rho:
+            lo = mid
+        else:
+            hi = mid
+        if hi - lo < 1e-6:
+            break
+    return 0.5 * (lo + hi)
+
+
 #: A liquefied gas's pressure this far above its vapour pressure means no vapour space is left
 #: (gauge error and a few kelvin of temperature error stay inside it; common practice).
 LIQUID_FULL_FACTOR = 1.10

@@ -8,6 +8,7 @@ from typing import Any
 
 from benchwarden.render.display import Display
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.render.supply import mass_words, supply_state_words
 from benchwarden.workflows.bench import Assessment
 from benchwarden.workflows.findings import counts
 
@@ -48,8 +49,9 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
                 if s.hours_band[0] != s.hours_band[1] else "")
         out += [f"  {s.id}: {s.gas_name}" + (" (liquefied; by weight)" if s.liquefied else ""),
                 f"    now {d.gauge(s.pressure_abs_pa)}, {d.temperature(s.temperature_k)}; reserve {d.gauge(s.reserve_abs_pa)}",
-                f"    contents {s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}; "
-                f"usable {s.usable_mass_kg:.3f} kg",
+                f"    contents {mass_words(s.mass_kg, s.mass_uncertainty_kg)} = {s.free_volume_m3:.3f} m³ at "
+                f"{s.reference_label}; usable {s.usable_mass_kg:.3f} kg",
+                f"    state {supply_state_words(s, d)}",
                 f"    draw {s.draw_kg_s * 6e4:.3f} g/min; to reserve {d.hours(s.hours_to_reserve)}{band}"
                 + (f", at {d.clock(s.reserve_at, _start(plan))}" if s.reserve_at else "")]
         if s.shots_to_reserve:

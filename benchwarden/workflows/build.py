@@ -135,15 +135,21 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
     reg_plans: dict[str, RegulatorPlan] = {}
     supply_models: dict[str, SupplyModel] = {}
     supply_state: dict[str, tuple[float, float, float]] = {}  # p_now, T, mass_now
+    weight_states: dict[str, sp.WeightState | None] = {}
     for s in prof.supplies:
         gas = s.gas
         T = _supply_T(prof, s)
         liquefied = _is_liquefied(gas, T, None if s.reading is None else s.reading.abs_at(amb))
-        if liquefied:
+        weighed = gas.sold_liquefied and s.gross is not None and s.tare is not None
+        ws = sp.state_by_weight(gas, s.gross - s.tare, s.water_volume, T) if weighed else None  # type: ignore[operator]
+        if ws is not None and (liquefied or s.reading is None):
+            p_now = ws.pressure_abs_pa  # the vapour pressure, or a liquid-full cylinder's hydraulic pressure
+        elif liquefied:
             p_now = g.saturation_pressure(gas, T)
         else:
             assert s.reading is not None
             p_now = s.reading.abs_at(amb)
+        weight_states[s.id] = ws
         model = SupplyModel(gas, s.water_volume, T, max(p_now, s.service_pressure.abs_at(amb)) * 1.02, amb,
                              None if s.reading is None else p_now)
         supply_models[s.id] = model
@@ -246,12 +252,30 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         supply_plans.append(SupplyPlan(
             s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
             band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
-            tuple(float(x) for x in p_proj), outlets, gap_kv))
+            tuple(float(x) for x in p_proj), outlets, gap_kv, **_state_fields(s.gas, weight_states[s.id],
+                                                                                model.liquefied, s.water_volume, p_now, T)))
     room_plan = _room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s)
     fits = all(sp_.fits_session or sp_.draw_kg_s == 0 for sp_ in supply_plans)
     plan = Plan(prof.bench.name, amb, T_amb, session_h, start.isoformat(timespec="minutes"), tuple(supply_plans),
                 tuple(reg_plans.values()), tuple(draw_plans), room_plan, (), fits)
     return dataclasses.replace(plan, findings=tuple(fd.plan_findings(prof, plan)))
+
+
+def _state_fields(gas: g.Gas, ws: sp.WeightState | None, liquefied: bool, V: float, p: float,
+                  T: float) -> dict[str, Any]:
+    """A supply's phase and, read by pressure, the sensitivity of its contents to temperature
+    (:func:`benchwarden.core.supply.temperature_sensitivity`, at the default 1 K)."""
+    if ws is not None:
+        return {"phase": ws.phase, "liquid_full_temperature_k": ws.liquid_full_temperature_k}
+    if liquefied:  # liquid under its vapour, no weights: the plan asks for them
+        return {"phase": "two-phase"}
+    u_T = sp.TEMPERATURE_UNCERTAINTY_K
+    slope, u_m, _ = sp.temperature_sensitivity(gas, V, p, T, u_T)
+    kind = g.pt_state(gas, T, p).phase.kind
+    if kind == "supercritical" and p < g.critical_pressure(gas):
+        kind = "gas"
+    return {"phase": kind, "mass_sensitivity_kg_per_k": slope, "mass_uncertainty_kg": u_m,
+            "temperature_uncertainty_k": u_T}
 
 
 def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float:
@@ -261,11 +285,11 @@ def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float
     hot = prof.ambient.hot_day
     if not _is_liquefied(s.gas, T, p_now):
         return sp.heat_up(s.gas, p_now, T, hot, prof.ambient_pa).pressure_abs_pa
+    if s.gross is not None and s.tare is not None:
+        return sp.state_by_weight(s.gas, s.gross - s.tare, s.water_volume, hot).pressure_abs_pa
     if _is_liquefied(s.gas, hot):
         return g.saturation_pressure(s.gas, hot)
-    if s.gross is None or s.tare is None:
-        return math.inf
-    return g.pressure_from_density(s.gas, (s.gross - s.tare) / s.water_volume, hot)
+    return math.inf
 
 
 def _room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],

@@ -20,13 +20,14 @@ from typing import Literal
 
 from benchwarden.core import gas as g
 from benchwarden.core import room as rm
+from benchwarden.core.supply import Contents
 from benchwarden.storage.profile import Profile
 from benchwarden.units import T0_K
 from benchwarden.workflows.model import Observed, Plan, RoomPlan
 
 __all__ = [
     "SEVERITIES", "SEVERITY_RANK", "Finding", "Severity", "HOLD_TEST_MAX_AGE_DAYS", "plan_findings",
-    "live_findings", "hold_test_findings", "ranked", "counts",
+    "live_findings", "hold_test_findings", "ranked", "counts", "contents_findings", "mass_findings",
 ]
 
 Severity = Literal["stop", "warning", "attention", "info"]
@@ -39,6 +40,9 @@ Value = float | int | str | bool | None
 HOLD_TEST_MAX_AGE_DAYS = 7.0
 #: A reserve reached before half the session is over is a stop, later a warning (benchwarden rule).
 RESERVE_STOP_FRACTION = 0.5
+#: A mass uncertainty (from the temperature's) above this fraction of the contents asks for
+#: weighing (issue 24: 5 %).
+CONTENTS_SENSITIVE_FRACTION = 0.05
 #: Flashover margin below which a gap needs attention, % of its firing voltage (common practice).
 FLASHOVER_ATTENTION_PERCENT = 20.0
 
@@ -64,6 +68,48 @@ def counts(findings: Iterable[Finding]) -> dict[str, int]:
     for f in findings:
         out[f.severity] += 1
     return out
+
+
+# ----------------------------------------------------------------------------- contents
+
+
+def mass_findings(subject: str, gas: str, mass_kg: float, phase: str, temperature_k: float,
+                  pressure_abs_pa: float, liquid_full_temperature_k: float | None = None,
+                  mass_uncertainty_kg: float | None = None, mass_sensitivity_kg_per_k: float | None = None,
+                  temperature_uncertainty_k: float | None = None, hot_day_k: float | None = None) -> list[Finding]:
+    """The rules on a cylinder's contents, for ``contents`` and the plan alike: liquid-full now
+    (a hazard: a warm liquid-full cylinder relies on its relief device), liquid-full by the hot
+    day, and a mass too sensitive to the temperature to trust (weigh it)."""
+    out: list[Finding] = []
+    base: dict[str, Value] = {"gas": gas, "temperature_k": temperature_k, "pressure_abs_pa": pressure_abs_pa,
+                              "liquid_full_temperature_k": liquid_full_temperature_k}
+    if phase == "liquid-full":
+        out.append(Finding("liquid-full", "warning", subject, base))
+    elif (liquid_full_temperature_k is not None and hot_day_k is not None
+          and temperature_k < liquid_full_temperature_k <= hot_day_k):
+        out.append(Finding("liquid-full-when-warm", "attention", subject, base | {"hot_day_k": hot_day_k}))
+    if (mass_uncertainty_kg is not None and mass_kg > 0
+            and mass_uncertainty_kg > CONTENTS_SENSITIVE_FRACTION * mass_kg):
+        out.append(Finding("contents-temperature-sensitive", "warning", subject, {
+            "mass_kg": mass_kg, "mass_uncertainty_kg": mass_uncertainty_kg,
+            "mass_sensitivity_kg_per_k": mass_sensitivity_kg_per_k,
+            "temperature_uncertainty_k": temperature_uncertainty_k, "temperature_k": temperature_k}))
+    return out
+
+
+def contents_findings(c: Contents, subject: str = "the cylinder") -> list[Finding]:
+    """Findings of one ``contents`` computation (:func:`mass_findings`, and an overfilled
+    cylinder by weight: a stop)."""
+    if c.mass_kg is None or c.pressure_abs_pa is None:
+        return []
+    out = mass_findings(subject, c.gas_name, c.mass_kg, c.phase, c.temperature_k, c.pressure_abs_pa,
+                        c.liquid_full_temperature_k, c.mass_uncertainty_kg, c.mass_sensitivity_kg_per_k,
+                        c.temperature_uncertainty_k)
+    if c.overfilled:
+        out.append(Finding("overfilled", "stop", subject, {
+            "gas": c.gas_name, "mass_kg": c.mass_kg, "volume_m3": c.volume_m3,
+            "filling_ratio_kg_l": c.filling_ratio_kg_l, "max_filling_ratio_kg_l": c.max_filling_ratio_kg_l}))
+    return ranked(out)
 
 
 # ----------------------------------------------------------------------------- plan
@@ -104,6 +150,9 @@ def _supply_findings(prof: Profile, plan: Plan) -> list[Finding]:
             out.append(Finding("reserve-within-gauge-error", "attention", sp.id, {
                 "hours": sp.hours_to_reserve, "hours_low": sp.hours_band[0], "hours_high": sp.hours_band[1],
                 "session_hours": plan.session_hours}))
+        out += mass_findings(sp.id, sp.gas_name, sp.mass_kg, sp.phase, sp.temperature_k, sp.pressure_abs_pa,
+                             sp.liquid_full_temperature_k, sp.mass_uncertainty_kg, sp.mass_sensitivity_kg_per_k,
+                             sp.temperature_uncertainty_k, prof.ambient.hot_day)
         pairs = g.estimated_pairs(s.gas)
         if pairs:
             out.append(Finding("estimated-mixing", "info", sp.id, {

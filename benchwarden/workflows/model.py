@@ -102,6 +102,15 @@ class SupplyPlan:
     projection_pressure_abs_pa: tuple[float, ...]
     projection_outlets_abs_pa: dict[str, tuple[float, ...]] = field(default_factory=dict)
     projection_gap_kv: dict[str, tuple[float, ...]] = field(default_factory=dict)
+    #: the state in the cylinder now: ``gas``, ``two-phase``, ``liquid-full``, ``supercritical``
+    phase: str = "gas"
+    #: by weight: the temperature [K] at which the fill becomes liquid-full (None: never)
+    liquid_full_temperature_k: float | None = None
+    #: by pressure: ∂m/∂T [kg/K] and the mass uncertainty [kg] from the temperature's
+    #: standard uncertainty ``temperature_uncertainty_k`` [K]
+    mass_sensitivity_kg_per_k: float | None = None
+    mass_uncertainty_kg: float | None = None
+    temperature_uncertainty_k: float | None = None
 
 
 @dataclass(frozen=True)
