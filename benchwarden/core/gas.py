@@ -318,6 +318,11 @@ def liquid_full_temperature(gas: Gas, rho: float) -> float | None:
     return 0.5 * (lo + hi)
 
 
+#: A reading this close below the vapour pressure may still have liquid behind it (gauge error,
+#: a cylinder a little warmer than stated): the plan and the throttle treat it as saturated,
+#: ``contents`` answers with a flag (benchwarden rule, 5 %).
+NEAR_VAPOUR_PRESSURE = 0.95
+
 #: A liquefied gas's pressure this far above its vapour pressure means no vapour space is left
 #: (gauge error and a few kelvin of temperature error stay inside it; common practice).
 LIQUID_FULL_FACTOR = 1.10
@@ -343,7 +348,7 @@ def is_liquefied(gas: Gas, T: float, p: float) -> bool:
         return False
     if T >= critical_temperature(gas):
         return False
-    return p >= 0.95 * saturation_pressure(gas, T)
+    return p >= NEAR_VAPOUR_PRESSURE * saturation_pressure(gas, T)
 
 
 def gas_branch_densities(gas: Gas, T: float, ps: Any) -> list[float] | None:

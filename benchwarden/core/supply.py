@@ -86,10 +86,7 @@ def free_volume(gas: g.Gas, mass_kg: float, reference: Reference) -> float:
     return mass_kg / g.density(gas, reference.temperature_k, reference.pressure_pa)
 
 
-#: A reading this close below the vapour pressure may still have liquid behind it (gauge error,
-#: a cylinder a little warmer than stated): the plan and the throttle treat it as saturated,
-#: ``contents`` answers with a flag (benchwarden rule, 5 %).
-NEAR_VAPOUR_PRESSURE = 0.95
+NEAR_VAPOUR_PRESSURE = g.NEAR_VAPOUR_PRESSURE
 #: Default standard uncertainty of a cylinder's temperature [K] (a thermometer on the shell).
 TEMPERATURE_UNCERTAINTY_K = 1.0
 

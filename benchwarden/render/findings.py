@@ -90,6 +90,10 @@ TEMPLATES: dict[str, Template] = {
         f"{v['gas']} expanding to the set point forms solid (dry ice) in {f.subject}: it can block and then "
         "release suddenly — use a regulator made for this service or a higher outlet pressure",
         f"outlet at {d.temperature(v['temperature_k'])}"),
+    "regulator-near-dry-ice": lambda f, v, d: (
+        f"{v['gas']} leaves {f.subject} only {v['dry_ice_margin_k']:.1f} K above the line where solid (dry ice) "
+        "forms: a colder body, a higher flow or a lower outlet pressure puts it over — use a heated regulator or a "
+        "higher outlet pressure", f"outlet at {d.temperature(v['temperature_k'])}"),
     "regulator-liquid": lambda f, v, d: (
         f"liquid {v['gas']} forms at the outlet of {f.subject}", f"outlet at {d.temperature(v['temperature_k'])}"),
     "regulator-icing": lambda f, v, d: (

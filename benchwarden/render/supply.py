@@ -45,12 +45,9 @@ def contents_refusal(c: Any, d: Display) -> str:
     p_sat = c.vapour_pressure_abs_pa
     if c.phase == "liquid-full":
         return (f"{d.absolute(p)} is well above the vapour pressure of {c.gas_name} at {d.temperature(T)} "
-                f"({d.absolute(p_sat)}): the cylinder is full of liquid (overfilled, or warmer than stated); "
-                "warming it further raises the pressure steeply — a hydraulic-rupture hazard. Keep it cool, "
-                "do not use it, and call the supplier.")
-    return (f"{c.gas_name} is liquid in the cylinder at {d.temperature(T)} (below its critical temperature "
-            f"{d.temperature(c.critical_temperature_k)}): the pressure is its vapour pressure and says nothing about "
-            "how much is left; weigh it (gross − tare) and give the water volume.")
+                f"({d.absolute(p_sat)}): liquid-full, a hydraulic-rupture hazard — keep it cool, call the supplier")
+    return (f"{c.gas_name} is liquid in the cylinder at {d.temperature(T)}: its pressure is the vapour pressure, "
+            "not the contents — weigh it (--gross, --tare, --volume)")
 
 
 def contents_notes(c: Any, d: Display) -> list[str]:

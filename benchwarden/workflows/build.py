@@ -175,11 +175,13 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         out_res = min(rg.outlet_drift(set_abs, p_now, res_abs, r.effects), res_abs)
         if regulating:
             th = rg.throttle(s.gas, p_now, set_abs, T, saturated_vapour=supply_models[s.id].liquefied)
-            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.notes
+            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.flags
+            margin = th.dry_ice_margin_k
         else:
-            t_out, solid, liquid, notes = T, False, False, ()
+            t_out, solid, liquid, notes, margin = T, False, False, (), None
         reg_plans[r.id] = RegulatorPlan(r.id, s.id, r.stages, p_now, set_abs, out_res, t_out, solid, liquid, notes,
-                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet)
+                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet,
+                                        margin)
 
     # -- draws
     draw_plans: list[DrawPlan] = []

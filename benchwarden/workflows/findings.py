@@ -27,7 +27,7 @@ from benchwarden.workflows.model import Observed, Plan, RoomPlan
 
 __all__ = [
     "SEVERITIES", "SEVERITY_RANK", "Finding", "Severity", "HOLD_TEST_MAX_AGE_DAYS", "plan_findings",
-    "live_findings", "hold_test_findings", "ranked", "counts", "contents_findings", "mass_findings",
+    "live_findings", "hold_test_findings", "ranked", "counts", "contents_findings", "mass_findings", "outlet_findings",
 ]
 
 Severity = Literal["stop", "warning", "attention", "info"]
@@ -43,6 +43,8 @@ RESERVE_STOP_FRACTION = 0.5
 #: A mass uncertainty (from the temperature's) above this fraction of the contents asks for
 #: weighing (issue 24: 5 %).
 CONTENTS_SENSITIVE_FRACTION = 0.05
+#: An outlet closer than this to the line where solid forms is a warning (issue 24: 2 K).
+DRY_ICE_MARGIN_K = 2.0
 #: Flashover margin below which a gap needs attention, % of its firing voltage (common practice).
 FLASHOVER_ATTENTION_PERCENT = 20.0
 
@@ -112,6 +114,25 @@ def contents_findings(c: Contents, subject: str = "the cylinder") -> list[Findin
     return ranked(out)
 
 
+def outlet_findings(subject: str, gas: str, outlet_temperature_k: float, solid: bool, liquid: bool,
+                    dry_ice_margin_k: float | None, base: Mapping[str, Value] | None = None) -> list[Finding]:
+    """The rules on a regulator's outlet, for ``throttle`` and the plan alike: solid (a stop),
+    within :data:`DRY_ICE_MARGIN_K` of the solid line (a warning: a colder body, a higher flow or
+    a gauge reading a little low puts it over), liquid, icing."""
+    v: dict[str, Value] = dict(base or {}) | {"temperature_k": outlet_temperature_k, "gas": gas,
+                                              "dry_ice_margin_k": dry_ice_margin_k}
+    if solid:
+        return [Finding("regulator-solid", "stop", subject, v)]
+    out: list[Finding] = []
+    if dry_ice_margin_k is not None and dry_ice_margin_k < DRY_ICE_MARGIN_K:
+        out.append(Finding("regulator-near-dry-ice", "warning", subject, v))
+    if liquid:
+        out.append(Finding("regulator-liquid", "warning", subject, v))
+    elif outlet_temperature_k < T0_K and not out:
+        out.append(Finding("regulator-icing", "attention", subject, v))
+    return out
+
+
 # ----------------------------------------------------------------------------- plan
 
 
@@ -179,13 +200,8 @@ def _regulator_findings(prof: Profile, plan: Plan) -> list[Finding]:
             out.append(Finding("inlet-rating-hot", "warning", r.id, base | {
                 "pressure_abs_pa": rp.supply_hot_day_abs_pa, "rating_abs_pa": rp.inlet_rating_abs_pa,
                 "temperature_k": prof.ambient.hot_day}))
-        t_out: dict[str, Value] = {"temperature_k": rp.outlet_temperature_k, "gas": s.gas.name}
-        if rp.solid_forms:
-            out.append(Finding("regulator-solid", "stop", r.id, base | t_out))
-        elif rp.liquid_forms:
-            out.append(Finding("regulator-liquid", "warning", r.id, base | t_out))
-        elif rp.outlet_temperature_k < T0_K:
-            out.append(Finding("regulator-icing", "attention", r.id, base | t_out))
+        out += outlet_findings(r.id, s.gas.name, rp.outlet_temperature_k, rp.solid_forms, rp.liquid_forms,
+                               rp.dry_ice_margin_k, base)
         if rp.outlet_at_reserve_abs_pa > r.outlet_max.abs_at(amb):
             out.append(Finding("outlet-drift-range", "attention", r.id, base | {
                 "pressure_abs_pa": rp.outlet_at_reserve_abs_pa, "limit_abs_pa": r.outlet_max.abs_at(amb)}))

@@ -67,6 +67,7 @@ class RegulatorPlan:
     outlet_temperature_k: float
     solid_forms: bool
     liquid_forms: bool
+    #: the throttle's codes (:attr:`benchwarden.core.regulator.Throttle.flags`)
     throttle_notes: tuple[str, ...]
     inlet_rating_abs_pa: float
     supply_hot_day_abs_pa: float
@@ -75,6 +76,8 @@ class RegulatorPlan:
     regulating: bool = True
     #: the outlet pressure now: the set point, or the supply pressure when not regulating
     outlet_abs_pa: float = 0.0
+    #: kelvin above the line where solid (dry ice) forms at the outlet; None for a gas without one
+    dry_ice_margin_k: float | None = None
 
 
 @dataclass(frozen=True)
