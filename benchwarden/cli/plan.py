@@ -22,7 +22,7 @@ from benchwarden.cli.common import (
 from benchwarden.core.flow import orifice_flow
 from benchwarden.core.gap import breakdown
 from benchwarden.core.regulator import throttle
-from benchwarden.render.equipment import throttle_notes
+from benchwarden.render.equipment import orifice_notes, orifice_rows, throttle_notes
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
 from benchwarden.render.plan import format_plan, plan_json
 from benchwarden.storage.profile import load_profile
@@ -152,10 +152,5 @@ def cmd_orifice(args: argparse.Namespace) -> int:
     if args.json:
         emit_json(asdict(o))
         return 0
-    emit_table("Orifice flow", [
-        ("gas", g_.name), ("upstream", d.both(up)), ("downstream", d.both(down)),
-        ("flow", f"{o.mass_flow_kg_s * 6e4:.4g} g/min = {o.standard_flow_slpm:.4g} slpm (0 °C, 101.325 kPa)"),
-        ("ideal-gas nozzle", f"{o.ideal_mass_flow_kg_s * 6e4:.4g} g/min (comparison)"),
-        ("regime", f"{'choked' if o.choked else 'subcritical'} (critical ratio {o.critical_ratio:.3f}, k = {o.k:.3f})"),
-        ("method", o.method)])
+    emit_table("Orifice flow", orifice_rows(o, g_.name, up, down, d), orifice_notes(o))
     return 0

@@ -208,6 +208,18 @@ def heat_capacity_ratio(gas: Gas, T: float, p: float) -> float:
     return float(AS.cpmass() / AS.cvmass())
 
 
+def ideal_gas_heat_capacity_ratio(gas: Gas, T: float) -> float:
+    """Ideal-gas heat-capacity ratio k0 = cp0/cv0 = cp0/(cp0 − R/M) at T [K], from the ideal-gas
+    part of the reference equation of state (CoolProp HEOS).
+
+    >>> round(ideal_gas_heat_capacity_ratio(parse_gas("co2"), 293.15), 3)   # CO2 at 20 °C: about 1.29
+    1.291
+    """
+    AS = state_at(gas, "PT_INPUTS", 1e3, T, imposed="gas")  # cp0 depends on T alone
+    cp0 = float(AS.cp0mass())
+    return cp0 / (cp0 - R / gas.molar_mass)
+
+
 def vapour_enthalpy(gas: Gas, T: float, p: float) -> float:
     """Specific enthalpy [J/kg] of the *vapour* at (T, p), also below the triple-point
     temperature where CoolProp's range check stops (the vapour branch of the same Helmholtz

@@ -8,7 +8,7 @@ from typing import Any
 
 from benchwarden.render.display import Display
 
-__all__ = ["throttle_notes", "SATURATED_RULE", "orifice_phase_words"]
+__all__ = ["throttle_notes", "SATURATED_RULE", "orifice_phase_words", "orifice_rows", "orifice_notes"]
 
 #: How a reading just below the vapour pressure is treated (issue 24), said wherever it applies.
 SATURATED_RULE = ("a reading within 5 % below the vapour pressure is treated as saturated vapour drawn off the "
@@ -52,3 +52,38 @@ def orifice_phase_words(phase: str, quality: float | None = None) -> str:
     if phase == "two-phase" and quality is not None:
         return f"two-phase ({100 * quality:.0f} % vapour by mass)"
     return phase
+
+
+def _g_min(kg_s: float) -> str:
+    return f"{kg_s * 6e4:.4g} g/min"
+
+
+def orifice_rows(o: Any, gas_name: str, up: float, down: float, d: Display) -> list[tuple[str, str]]:
+    """The ``orifice`` table: phases, the figure that feeds a release, both figures for a liquid
+    inlet, and the ideal-gas comparison only where the inlet is a gas."""
+    rows = [("gas", gas_name), ("upstream", d.both(up)), ("downstream", d.both(down)),
+            ("inlet phase", orifice_phase_words(o.inlet_phase)),
+            ("throat phase", orifice_phase_words(o.throat_phase, o.throat_vapour_fraction)),
+            ("flow", f"{_g_min(o.mass_flow_kg_s)} = {o.standard_flow_slpm:.4g} slpm (0 °C, 101.325 kPa)"
+             + (" — the larger figure, used for releases" if o.mass_flow_liquid_kg_s is not None else ""))]
+    if o.mass_flow_liquid_kg_s is not None:
+        rows += [("homogeneous equilibrium", f"{_g_min(o.mass_flow_hem_kg_s)} (lower bound)"),
+                 ("liquid (short orifice)", f"{_g_min(o.mass_flow_liquid_kg_s)} (upper bound)")]
+    if o.ideal_mass_flow_kg_s is not None:
+        rows.append(("ideal-gas nozzle", f"{_g_min(o.ideal_mass_flow_kg_s)} (comparison, k = cp0/cv0 = {o.k:.3f})"))
+    rows += [("regime", f"{'choked' if o.choked else 'subcritical'} (critical ratio {o.critical_ratio:.3f})"),
+             ("method", o.method)]
+    return rows
+
+
+def orifice_notes(o: Any) -> list[str]:
+    """What the phases mean for the flow."""
+    out = []
+    if o.mass_flow_liquid_kg_s is not None:
+        out.append(f"{o.inlet_phase} at the inlet: a short orifice can pass up to "
+                   f"{o.mass_flow_liquid_kg_s / o.mass_flow_hem_kg_s:.1f}× the homogeneous-equilibrium flow as a "
+                   "liquid jet; the larger figure is the one to plan a release or the room with")
+    elif o.throat_phase == "two-phase":
+        out.append("the gas condenses at the throat (homogeneous equilibrium assumed): liquid and cold in the "
+                   "line downstream")
+    return out

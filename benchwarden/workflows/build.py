@@ -102,7 +102,10 @@ def _draw_flow(prof: Profile, d: Draw, gas: g.Gas, outlet_abs: float) -> tuple[f
         if outlet_abs <= d.orifice.downstream.abs_at(amb):
             return 0.0, f"orifice {d.orifice.diameter * 1000:g} mm: no flow (outlet at or below downstream)", None
         o = fl.orifice_flow(gas, d.orifice.diameter, outlet_abs, d.orifice.downstream.abs_at(amb), T, d.orifice.cd)
-        return o.mass_flow_kg_s, f"orifice {d.orifice.diameter * 1000:g} mm, Cd {d.orifice.cd:g} ({'choked' if o.choked else 'subcritical'})", o.choked
+        phases = "" if (o.inlet_phase, o.throat_phase) == ("gas", "gas") else \
+            f"; inlet {o.inlet_phase}, throat {o.throat_phase}"
+        return (o.mass_flow_kg_s, f"orifice {d.orifice.diameter * 1000:g} mm, Cd {d.orifice.cd:g} "
+                f"({'choked' if o.choked else 'subcritical'}{phases})", o.choked)
     assert d.valve is not None
     if outlet_abs <= d.valve.downstream.abs_at(amb):
         return 0.0, f"valve Kv {d.valve.kv_value:g}: no flow (outlet at or below downstream)", None
