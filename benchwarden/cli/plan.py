@@ -124,13 +124,15 @@ def cmd_gap(args: argparse.Namespace) -> int:
     if args.json:
         out = asdict(b)
         if not b.within_validity:
-            out["breakdown_kv"] = None  # no figure outside the methods' validity
+            out["breakdown_kv"] = out["breakdown_high_kv"] = None  # no figure outside the methods' validity
         emit_json(out)
         return 0
     if not b.within_validity:
         shown = "WARNING: outside the validity of the methods (below)"
     elif math.isfinite(b.breakdown_kv):
-        shown = f"{b.breakdown_kv:.2f} kV"
+        shown = f"{b.breakdown_kv:.2f} kV" + (f" (upper estimate {b.breakdown_high_kv:.2f} kV, used for flashover "
+                                              "margins)" if b.breakdown_high_kv > b.breakdown_kv else
+                                              " (the upper estimate, used for flashover margins)")
     else:
         shown = "none predicted: p·d is left of the Paschen curve's asymptote"
     emit_table("Spark gap self-breakdown (estimate)", [

@@ -75,8 +75,10 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
             out.append(f"    fires at ≈ {dr.gap.breakdown_start_kv:.1f} kV → {dr.gap.breakdown_reserve_kv:.1f} kV at "
                        f"reserve [{dr.gap.method}]")
             for m0, m1 in zip(dr.gap.margins_start, dr.gap.margins_reserve, strict=True):
+                upper = (f", against the upper estimate {m0.firing_kv:.1f} kV"
+                         if m0.firing_kv > dr.gap.breakdown_start_kv * 1.0001 else "")
                 out.append(f"    {m0.part}: withstands ≈ {m0.withstand_kv:.1f} kV, margin {m0.margin_kv:+.1f} → "
-                           f"{m1.margin_kv:+.1f} kV ({m1.status})")
+                           f"{m1.margin_kv:+.1f} kV ({m1.status}{upper})")
     if plan.room:
         rm_ = plan.room
         out += ["", "Room",

@@ -198,9 +198,9 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         if d.kind == "gap" and d.spacing is not None:
             b0 = gp.breakdown(s.gas, d.spacing, rp.outlet_abs_pa, T_amb)
             b1 = gp.breakdown(s.gas, d.spacing, rp.outlet_at_reserve_abs_pa, T_amb)
-            m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
+            m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
                        for x in d.exposed)
-            m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
+            m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
                        for x in d.exposed)
             gap_plan = GapPlan(d.spacing, b0.breakdown_kv, b1.breakdown_kv, b0.method, b0.validity, m0, m1,
                                b0.within_validity and b1.within_validity, max(b0.pd_bar_cm_20c, b1.pd_bar_cm_20c))

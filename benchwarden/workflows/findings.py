@@ -234,7 +234,7 @@ def _gap_findings(plan: Plan) -> list[Finding]:
             if worst.status == "ok":
                 continue
             out.append(Finding("flashover", "stop" if worst.status == "stop" else "attention", d.id, {
-                "part": worst.part, "breakdown_kv": max(d.gap.breakdown_start_kv, d.gap.breakdown_reserve_kv),
+                "part": worst.part, "breakdown_kv": worst.firing_kv,
                 "withstand_kv": worst.withstand_kv, "margin_kv": worst.margin_kv,
                 "margin_percent": worst.margin_percent, "at_reserve": worst is b}))
     return out
