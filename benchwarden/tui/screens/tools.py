@@ -17,6 +17,7 @@ from textual.widgets import Button, Footer, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
 from benchwarden.errors import BenchwardenError, InputError, JournalError
+from benchwarden.render.budget import budget_assumption
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.units import fmt_hours, fmt_pressure
 from benchwarden.units.constants import BAR_PA
@@ -210,6 +211,9 @@ class HoldScreen(_Tool):
                  f"smallest leak this test resolves: {r.smallest_resolvable_sccm:.3g} sccm; "
                  f"hold needed for the {r.target_sccm:.3g} sccm target ≈ {fmt_hours(r.hold_needed_h)}"]
         lines += [f"! {n}" for n in r.notes]
+        assumption = budget_assumption(r)
+        if assumption:
+            lines.append(f"! {assumption}")
         lines += [f"• {g}" for g in hd.GUIDANCE]
         if st.journal is not None:
             try:
