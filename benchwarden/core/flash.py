@@ -46,7 +46,23 @@ FlashPH = Flash
 
 
 def solve_increasing(f: Any, lo: float, hi: float, tol: float = 1e-7) -> float:
-    """Root of an increasing f(T) in [lo, hi] by bisection with secant steps (Illinois)."""
+    """Root of an increasing f(T) in [lo, hi] by bisection with secant steps (Illinois).
+
+    Parameters
+    ----------
+    f : an increasing function of one variable
+    lo, hi : Bracket, [same unit as the variable]
+    tol : Relative tolerance on the bracket, [-]
+
+    Notes
+    -----
+    Regula falsi with the Illinois modification: each end that stays is halved in weight.
+
+    References
+    ----------
+    Dowell, M. and Jarratt, P., "A modified regula falsi method for computing the root of an
+    equation", BIT 11 (1971) 168–174.
+    """
     flo, fhi = f(lo), f(hi)
     if flo > 0 or fhi < 0:
         raise PropertyError("no temperature in range matches")
@@ -228,7 +244,21 @@ def isentrope_state(gas: Gas, s: float, p: float, T_guess: float, verify: bool =
     density, enthalpy): CoolProp's (p, s) flash for a pure gas (with :func:`_pure_fallback`
     where it fails; a two-phase state in homogeneous equilibrium), s(T, p) = s solved on T for a
     mixture as in :func:`flash_ph`; ``verify=False`` keeps a mixture on its gas branch without a
-    stability check."""
+    stability check.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    s : Specific entropy, [J/(kg·K)]
+    p : Absolute pressure, [Pa]
+    T_guess : Start of a mixture's search, [K]
+    verify : check a mixture's stability (False: stay on its gas branch)
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
+    """
     if not gas.is_mixture:
         return _pure(gas, "PSmass_INPUTS", "smass", s, p)
     T = _solve_mixture(gas, "smass", s, p, T_guess, 1e-9, verify)
@@ -238,6 +268,20 @@ def isentrope_state(gas: Gas, s: float, p: float, T_guess: float, verify: bool =
 
 def isentrope(gas: Gas, s: float, p: float, T_guess: float, verify: bool = True) -> tuple[float, float, float]:
     """(h [J/kg], ρ [kg/m³], T [K]) at entropy s [J/(kg·K)] and pressure p [Pa]
-    (:func:`isentrope_state`)."""
+    (:func:`isentrope_state`).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    s : Specific entropy, [J/(kg·K)]
+    p : Absolute pressure, [Pa]
+    T_guess : Start of a mixture's search, [K]
+    verify : check a mixture's stability
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
+    """
     st = isentrope_state(gas, s, p, T_guess, verify)
     return st.h, st.density, st.T

@@ -22,6 +22,16 @@ heat_capacity_ratio = g.heat_capacity_ratio
 def critical_pressure_ratio(k: float) -> float:
     """Critical (choking) pressure ratio p*/p0 = (2/(k+1))^(k/(k−1)) of an isentropic nozzle.
 
+    Parameters
+    ----------
+    k : Heat-capacity ratio cp/cv, [-]
+
+    References
+    ----------
+    Shapiro, "The Dynamics and Thermodynamics of Compressible Fluid Flow" (1953), ch. 4.
+
+    Examples
+    --------
     >>> round(critical_pressure_ratio(1.4), 4)
     0.5283
     """
@@ -35,6 +45,19 @@ def ideal_nozzle_mass_flux(rho1: float, p1: float, k: float, r: float) -> tuple[
     choked (r ≤ r* = (2/(k+1))^(k/(k−1))): G = √(k·ρ1·p1·(2/(k+1))^((k+1)/(k−1)))
     (Shapiro 1953, ch. 4). Kept as the labelled comparison for the real-gas nozzle.
 
+    Parameters
+    ----------
+    rho1 : Inlet density, [kg/m³]
+    p1 : Inlet absolute pressure, [Pa]
+    k : Heat-capacity ratio, [-]
+    r : Pressure ratio p2/p1, [-]
+
+    References
+    ----------
+    Shapiro, "The Dynamics and Thermodynamics of Compressible Fluid Flow" (1953), ch. 4.
+
+    Examples
+    --------
     >>> round(ideal_nozzle_mass_flux(1.2, 1e5, 1.4, 0.3)[0], 2)   # choked: 0.6847·√(ρ·p)
     237.19
     """
@@ -65,7 +88,21 @@ def _golden_max(f: Any, lo: float, hi: float, rel: float = 1e-6) -> tuple[float,
 def nozzle_throat(gas: g.Gas, p1: float, T1: float, p2: float) -> tuple[float, bool, float, Flash]:
     """(G [kg/(m²·s)], choked, critical pressure ratio, throat state) of a real-fluid isentropic
     nozzle from rest at (p1, T1) to p2 (:func:`real_nozzle_mass_flux`); the throat state is at p*
-    when choked, else at p2, with its phase (a two-phase throat in homogeneous equilibrium)."""
+    when choked, else at p2, with its phase (a two-phase throat in homogeneous equilibrium).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    p1 : Inlet absolute pressure, [Pa]
+    T1 : Inlet temperature, [K]
+    p2 : Downstream absolute pressure, [Pa]
+
+    References
+    ----------
+    ISO 9300:2022 (real-gas critical flow function);
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
+    """
     h1 = g.enthalpy(gas, T1, p1)
     s1 = g.entropy(gas, T1, p1)
 
@@ -93,6 +130,19 @@ def real_nozzle_mass_flux(gas: g.Gas, p1: float, T1: float, p2: float) -> tuple[
     equals the real speed of sound); below p* the flux stays G(p*). This is the real-gas form
     of the nozzle equation used for critical-flow nozzles (ISO 9300 computes its real-gas
     critical flow function C* the same way).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    p1 : Inlet absolute pressure, [Pa]
+    T1 : Inlet temperature, [K]
+    p2 : Downstream absolute pressure, [Pa]
+
+    References
+    ----------
+    ISO 9300:2022 (real-gas critical flow function); Shapiro (1953), ch. 4;
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
     """
     G, choked, r, _ = nozzle_throat(gas, p1, T1, p2)
     return G, choked, r
@@ -107,6 +157,17 @@ def liquid_orifice_mass_flux(rho1: float, p1: float, p2: float) -> float:
     (1985) 132–134: non-equilibrium below about 0.1 m of length; from memory). The homogeneous
     equilibrium figure is the lower bound.
 
+    Parameters
+    ----------
+    rho1 : Liquid (or inlet) density, [kg/m³]
+    p1, p2 : Absolute pressures upstream and downstream, [Pa]
+
+    References
+    ----------
+    ISO 5167-2:2003 (orifice equation without the expansibility factor); Fauske (1985).
+
+    Examples
+    --------
     >>> round(liquid_orifice_mass_flux(1000.0, 2e5, 1e5))   # water, 1 bar: √(2·1000·1e5)
     14142
     """
@@ -226,6 +287,20 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
 
     Cv (US) = 1.156·Kv. ``xT`` is the valve's pressure-differential ratio factor at choked flow.
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    kv : Valve flow coefficient Kv, [m³/h]
+    p_up, p_down : Absolute pressures, [Pa]
+    T : Upstream temperature, [K]
+    xT : Pressure-differential ratio factor at choked flow, [-]
+
+    References
+    ----------
+    IEC 60534-2-1:2011 (gas sizing), as implemented in `fluids.control_valve` (C. Bell).
+
+    Examples
+    --------
     >>> v = valve_flow(g.parse_gas("nitrogen"), 0.01, 5e5, 1e5, 293.15)
     >>> v.choked, round(v.standard_flow_slpm, 1)
     (True, 12.7)
@@ -268,7 +343,21 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
 
 def per_shot_mass_flow(gas: g.Gas, volume_m3: float, p_abs: float, T: float, rate_hz: float) -> float:
     """Mass flow [kg/s] of a draw that replaces ``volume_m3`` of gas at (T, p) on every shot:
-    ṁ = ρ(T, p)·V_shot·f (real density, CoolProp HEOS)."""
+    ṁ = ρ(T, p)·V_shot·f (real density, CoolProp HEOS).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    volume_m3 : Volume replaced on each shot, [m³]
+    p_abs : Absolute pressure, [Pa]
+    T : Temperature, [K]
+    rate_hz : Repetition rate, [Hz]
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
+    """
     check_positive(volume_m3, "volume per shot", "m³")
     if not math.isfinite(rate_hz) or rate_hz < 0:
         raise InputError(f"repetition rate {rate_hz!r} Hz must be zero or more")

@@ -92,6 +92,19 @@ def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA)
 
     Returns ``inf`` left of the Paschen minimum's asymptote, where no breakdown occurs.
 
+    Parameters
+    ----------
+    pd_torr_cm : Pressure × spacing, [Torr·cm]
+    A : [1/(cm·Torr)]
+    B : [V/(cm·Torr)]
+    gamma : Secondary emission coefficient, [-]
+
+    References
+    ----------
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
+
+    Examples
+    --------
     >>> round(paschen_voltage(1.0, 15.0, 365.0))
     310
     """
@@ -103,7 +116,18 @@ def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA)
 
 def paschen_minimum(A: float, B: float, gamma: float = GAMMA) -> tuple[float, float]:
     """(p·d at the minimum [Torr·cm], minimum voltage [V]) of Paschen's law:
-    (pd)_min = e·ln(1 + 1/γ)/A, V_min = B·(pd)_min."""
+    (pd)_min = e·ln(1 + 1/γ)/A, V_min = B·(pd)_min.
+
+    Parameters
+    ----------
+    A : [1/(cm·Torr)]
+    B : [V/(cm·Torr)]
+    gamma : Secondary emission coefficient, [-]
+
+    References
+    ----------
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
+    """
     pd = math.e * math.log(1.0 + 1.0 / gamma) / A
     return pd, B * pd
 
@@ -112,6 +136,16 @@ def air_uniform_field_kv(pd_bar_cm_20c: float) -> float:
     """Empirical breakdown voltage [kV] of air in a uniform field, p·d in bar·cm at 20 °C:
     U = 6.72·√(pd) + 24.36·pd (Kuffel, Zaengl & Kuffel 2000).
 
+    Parameters
+    ----------
+    pd_bar_cm_20c : Pressure × spacing at 20 °C, [bar·cm]
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+
+    Examples
+    --------
     >>> round(air_uniform_field_kv(1.01325), 1)   # 1 cm at 1 atm, 20 °C: about 31 kV
     31.4
     """
@@ -122,6 +156,17 @@ def sf6_uniform_field_kv(pd_bar_cm_20c: float) -> float:
     """Uniform-field breakdown voltage [kV] of SF6, p·d in bar·cm at 20 °C, from the streamer
     criterion: U = (E/p)_crit·pd + K/A = 89·pd + 0.38 kV (see module docstring).
 
+    Parameters
+    ----------
+    pd_bar_cm_20c : Pressure × spacing at 20 °C, [bar·cm]
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+    Christophorou & Van Brunt, IEEE Trans. Dielectr. Electr. Insul. 2 (1995) 952–1003.
+
+    Examples
+    --------
     >>> [round(sf6_uniform_field_kv(pd)) for pd in (1.0, 5.0, 20.0)]   # issue 24: about 89/445/1780 kV
     [89, 445, 1780]
     """
@@ -130,13 +175,31 @@ def sf6_uniform_field_kv(pd_bar_cm_20c: float) -> float:
 
 def upper_spread(gas: g.Gas) -> float:
     """How far above the estimate its upper estimate lies: 0 where the method is itself a
-    smooth-electrode uniform-field value (air, nitrogen, SF6), :data:`ROUGH_SPREAD` otherwise."""
+    smooth-electrode uniform-field value (air, nitrogen, SF6), :data:`ROUGH_SPREAD` otherwise.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    References
+    ----------
+    benchwarden rule (common practice for the spread of relative strengths).
+    """
     pure = None if gas.is_mixture else gas.components[0][0].key
     return 0.0 if pure in _UPPER_METHODS else ROUGH_SPREAD
 
 
 def relative_strength(gas: g.Gas) -> float:
-    """Mole-fraction-weighted dielectric strength relative to air (rough for mixtures)."""
+    """Mole-fraction-weighted dielectric strength relative to air (rough for mixtures).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    References
+    ----------
+    Common practice (values from memory, ±20 %).
+    """
     return sum(x * RELATIVE_STRENGTH.get(c.key, 1.0) for c, x in gas.components)
 
 
@@ -175,6 +238,15 @@ def join_parameters(gas: g.Gas) -> tuple[float, float] | None:
     is recovered towards the minimum. The exponent n ≤ 1 is chosen so that the joined curve
     keeps rising at pd_j (where c < 0 it must not exceed the Paschen curve's logarithmic slope
     × (1 + c)/(−c)); the join is an interpolation of ours between two published methods.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
     """
     pure = None if gas.is_mixture else gas.components[0][0].key
     if pure not in PASCHEN:
@@ -194,7 +266,20 @@ def breakdown_series(gas: g.Gas, spacing_m: float, p_abs: Any, T: float = T_REF)
     """Self-breakdown voltages [kV] for an array of absolute pressures [Pa] (numpy): the one
     implementation of the methods in the module docstring, joined continuously at
     p·d = 0.1 bar·cm (:func:`join_parameters`). ``inf`` where Paschen's law predicts no
-    breakdown (left of its asymptote)."""
+    breakdown (left of its asymptote).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    spacing_m : Gap spacing, [m]
+    p_abs : Absolute pressures, [Pa]
+    T : Temperature, [K]
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
+    """
     import numpy as np
 
     check_positive(spacing_m, "gap spacing", "m")
@@ -233,6 +318,20 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     p·d = 100 bar·cm the methods are outside their stated validity: ``within_validity`` is
     False and the figure must not be shown as a firing voltage.
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    spacing_m : Gap spacing, [m]
+    p_abs : Absolute pressure, [Pa]
+    T : Temperature, [K]
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
+
+    Examples
+    --------
     >>> b = breakdown(g.parse_gas("nitrogen"), 3e-3, 4.0e5)
     >>> round(b.breakdown_kv, 1), b.method.split(",")[0]
     (36.6, 'empirical uniform-field formula for air (Kuffel')
@@ -294,6 +393,19 @@ def flashover_margin(part: str, breakdown_kv: float, clearance_m: float, rating_
     Status: ``stop`` when the firing voltage reaches the withstand, ``attention`` below 20 %
     margin, else ``ok``.
 
+    Parameters
+    ----------
+    part : the exposed part's name
+    breakdown_kv : Firing voltage (the upper estimate), [kV]
+    clearance_m : Air clearance, [m]
+    rating_kv : The part's voltage rating, [kV], or None
+
+    References
+    ----------
+    Common practice (about 1 kV/mm for a short, non-uniform air clearance).
+
+    Examples
+    --------
     >>> m = flashover_margin("feedthrough", 30.0, 25e-3, 40.0)
     >>> m.withstand_kv, m.margin_kv, m.status
     (25.0, -5.0, 'stop')

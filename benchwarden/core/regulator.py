@@ -61,6 +61,17 @@ def sublimation_enthalpy(gas: g.Gas, T: float) -> float:
     Clausius–Clapeyron equation Δh = T·(v_vap − v_solid)·dp/dT on the sublimation line
     (Span & Wagner 1996, eq. 3.12), with the vapour volume from the equation of state.
 
+    Parameters
+    ----------
+    gas : CO2
+    T : Temperature, [K] (below the triple point)
+
+    References
+    ----------
+    Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596, eq. 3.12 (sublimation line).
+
+    Examples
+    --------
     >>> round(sublimation_enthalpy(g.parse_gas("co2"), 194.69) / 1e3)   # handbooks: ≈ 571 kJ/kg
     574
     """
@@ -201,7 +212,20 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
 
 
 def joule_thomson_coefficient(gas: g.Gas, T: float, p: float, dp: float = 1e3) -> float:
-    """Joule–Thomson coefficient μ_JT = (∂T/∂p)_h [K/Pa], by a small isenthalpic step."""
+    """Joule–Thomson coefficient μ_JT = (∂T/∂p)_h [K/Pa], by a small isenthalpic step.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    T : Temperature, [K]
+    p : Absolute pressure, [Pa]
+    dp : Pressure step, [Pa]
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
+    """
     h = g.enthalpy(gas, T, p)
     T1 = flash_ph(gas, h, p - dp, T).T
     T2 = flash_ph(gas, h, p + dp, T).T
@@ -219,6 +243,20 @@ def outlet_drift(set_point_abs: float, inlet_at_setting_abs: float, inlet_abs: f
 
         p_out = p_set + Π(SPE_i)·(p_in,set − p_in)
 
+    Parameters
+    ----------
+    set_point_abs : Outlet set point (absolute), [Pa]
+    inlet_at_setting_abs : Inlet pressure when it was set, [Pa]
+    inlet_abs : Inlet pressure now, [Pa]
+    effects : Supply-pressure effect of each stage, [Pa/Pa]
+
+    References
+    ----------
+    Manufacturers' data sheets define the supply-pressure effect (e.g. EN ISO 2503 for gas
+    welding regulators; from memory).
+
+    Examples
+    --------
     >>> round(outlet_drift(5e5, 150e5, 20e5, (0.01,)) / 1e5, 2)
     6.3
     >>> round(outlet_drift(5e5, 150e5, 20e5, (0.01, 0.02)) / 1e5, 3)
