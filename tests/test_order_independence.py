@@ -20,6 +20,7 @@ import pytest
 from benchwarden.core import eos
 from benchwarden.core import gas as g
 from benchwarden.core.flow import orifice_flow
+from benchwarden.core.hold import hold_two_readings
 from benchwarden.core.regulator import throttle
 from benchwarden.core.supply import contents, heat_up
 from benchwarden.errors import BenchwardenError
@@ -40,6 +41,7 @@ def _run(call: Call) -> float | str:
         "throttle": lambda: throttle(gas, p, 1.5e5, T).outlet_temperature_k,
         "heat": lambda: heat_up(gas, p, T, T + 25.0).pressure_abs_pa,
         "contents": lambda: contents(gas, 0.05, p, T).mass_kg or math.nan,
+        "hold": lambda: hold_two_readings(gas, 0.05, p, p * 0.995, 3600.0, T, T - 0.5).leak_rate_sccm,
     }
     try:
         return tools[tool]()
@@ -61,10 +63,14 @@ def _same(a: float | str, b: float | str) -> bool:
     return math.isclose(a, b, rel_tol=1e-6, abs_tol=1e-9)
 
 
+#: a laser premix (helium, nitrogen, CO2): mixture flashes and estimated mixing parameters
+MIXTURE = "he:0.8,n2:0.135,co2:0.065"
+
+
 def _cases(seed: int, n: int) -> list[Call]:
     rnd = random.Random(seed)
-    names = [*g.PURE_GASES, "co2", "co2", "sf6", "sf6", "argon"]
-    tools = ["density", "enthalpy", "entropy", "k", "rho->p", "orifice", "throttle", "heat", "contents"]
+    names = [*g.PURE_GASES, "co2", "co2", "sf6", "sf6", "argon", MIXTURE]
+    tools = ["density", "enthalpy", "entropy", "k", "rho->p", "orifice", "throttle", "heat", "contents", "hold"]
     out = []
     for _ in range(n):
         # the whole range of a bench, the critical region of CO2/argon/SF6, and low pressures
@@ -138,6 +144,7 @@ _CHILD = """
 import json, sys
 from benchwarden.core import gas as g
 from benchwarden.core.flow import orifice_flow
+from benchwarden.core.hold import hold_two_readings
 tool, name, p, T = json.loads(sys.argv[1])
 gas = g.parse_gas(name)
 v = g.density(gas, T, p) if tool == "density" else orifice_flow(gas, 0.5e-3, p, 1.01325e5, T).mass_flow_kg_s

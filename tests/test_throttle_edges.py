@@ -85,3 +85,41 @@ def test_a_reading_within_5_percent_below_saturation_is_treated_as_saturated_and
     code, out, _ = run(capsys, "throttle", "--gas", "co2", "--inlet", f"{0.96 * p_sat / 1e5:.3f} bar(a)",
                        "--outlet", "0.5 bar", "--temperature", "20 degC")
     assert code == 0 and "within 5 % below the vapour pressure" in out and "treated as saturated" in out
+
+
+def test_the_plan_warns_near_the_dry_ice_line_and_shows_the_margin():
+    import textwrap
+
+    from benchwarden.render.display import Display
+    from benchwarden.render.plan import format_plan
+    from benchwarden.storage.profile import parse_profile
+    from benchwarden.workflows.bench import assess
+
+    prof = parse_profile(textwrap.dedent("""
+        [bench]
+        name = "CO2 at 0 °C"
+        [ambient]
+        temperature = "0 degC"
+        [session]
+        duration = "1 h"
+        [[supplies]]
+        id = "co2-A"
+        gas = "co2"
+        water_volume = "50 L"
+        service_pressure = "200 bar"
+        gross = "80 kg"
+        tare = "50 kg"
+        reserve = "10 bar"
+        [[regulators]]
+        id = "reg-A"
+        supply = "co2-A"
+        inlet_rating = "200 bar"
+        outlet_max = "10 bar"
+        set_point = "3 bar"
+    """))
+    a = assess(prof, None)
+    rp = a.plan.regulators[0]
+    # the same state as the throttle test above (saturated vapour at 0 °C to 3 bar(g)): 1.1 K
+    assert rp.dry_ice_margin_k == pytest.approx(1.1, abs=0.05)
+    assert any(f.code == "regulator-near-dry-ice" and f.severity == "warning" for f in a.findings)
+    assert "K above the dry-ice line" in format_plan(a, Display())

@@ -61,7 +61,8 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
     out += ["", "Regulators"]
     for r in plan.regulators:
         out.append(f"  {r.id} on {r.supply_id} ({r.stages}-stage): outlet {d.gauge(r.set_point_abs_pa)} → "
-                   f"{d.gauge(r.outlet_at_reserve_abs_pa)} at reserve; gas leaves at {d.temperature(r.outlet_temperature_k)}")
+                   f"{d.gauge(r.outlet_at_reserve_abs_pa)} at reserve; gas leaves at {d.temperature(r.outlet_temperature_k)}"
+                   + (f" ({r.dry_ice_margin_k:.1f} K above the dry-ice line)" if r.dry_ice_margin_k is not None else ""))
     out += ["", "Draws"]
     for dr in plan.draws:
         flow = (dr.how if "(standard, at" in dr.how
