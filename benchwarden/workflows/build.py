@@ -143,8 +143,8 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         gas = s.gas
         T = _supply_T(prof, s)
         liquefied = _is_liquefied(gas, T, None if s.reading is None else s.reading.abs_at(amb))
-        weighed = gas.sold_liquefied and s.gross is not None and s.tare is not None
-        ws = sp.state_by_weight(gas, s.gross - s.tare, s.water_volume, T) if weighed else None  # type: ignore[operator]
+        fill = (s.gross - s.tare) if gas.sold_liquefied and s.gross is not None and s.tare is not None else 0.0
+        ws = sp.state_by_weight(gas, fill, s.water_volume, T) if fill > 0 else None
         if ws is not None and (liquefied or s.reading is None):
             p_now = ws.pressure_abs_pa  # the vapour pressure, or a liquid-full cylinder's hydraulic pressure
         elif liquefied:
@@ -290,7 +290,7 @@ def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float
     hot = prof.ambient.hot_day
     if not _is_liquefied(s.gas, T, p_now):
         return sp.heat_up(s.gas, p_now, T, hot, prof.ambient_pa).pressure_abs_pa
-    if s.gross is not None and s.tare is not None:
+    if s.gross is not None and s.tare is not None and s.gross > s.tare:
         return sp.state_by_weight(s.gas, s.gross - s.tare, s.water_volume, hot).pressure_abs_pa
     if _is_liquefied(s.gas, hot):
         return g.saturation_pressure(s.gas, hot)
