@@ -20,9 +20,11 @@ import pytest
 from benchwarden.core import eos
 from benchwarden.core import gas as g
 from benchwarden.core.flow import orifice_flow
+from benchwarden.core.gap import breakdown
 from benchwarden.core.hold import hold_two_readings
+from benchwarden.core.purge import cycle_purge
 from benchwarden.core.regulator import throttle
-from benchwarden.core.supply import contents, heat_up
+from benchwarden.core.supply import contents, heat_up, runtime
 from benchwarden.errors import BenchwardenError
 
 Call = tuple[str, str, float, float]
@@ -42,6 +44,9 @@ def _run(call: Call) -> float | str:
         "heat": lambda: heat_up(gas, p, T, T + 25.0).pressure_abs_pa,
         "contents": lambda: contents(gas, 0.05, p, T).mass_kg or math.nan,
         "hold": lambda: hold_two_readings(gas, 0.05, p, p * 0.995, 3600.0, T, T - 0.5).leak_rate_sccm,
+        "runtime": lambda: runtime(gas, 0.05, p, p * 0.3, T, 1e-5).hours_to_reserve,
+        "purge": lambda: cycle_purge(gas, 1e-3, min(p, 10e5), 1.01325e5, T, 0.2095, 1e-5).gas_standard_litres,
+        "gap": lambda: breakdown(gas, 2e-3, min(p, 10e5), T).breakdown_kv,
     }
     try:
         return tools[tool]()
@@ -70,7 +75,8 @@ MIXTURE = "he:0.8,n2:0.135,co2:0.065"
 def _cases(seed: int, n: int) -> list[Call]:
     rnd = random.Random(seed)
     names = [*g.PURE_GASES, "co2", "co2", "sf6", "sf6", "argon", MIXTURE]
-    tools = ["density", "enthalpy", "entropy", "k", "rho->p", "orifice", "throttle", "heat", "contents", "hold"]
+    tools = ["density", "enthalpy", "entropy", "k", "rho->p", "orifice", "throttle", "heat", "contents", "hold",
+             "runtime", "purge", "gap"]
     out = []
     for _ in range(n):
         # the whole range of a bench, the critical region of CO2/argon/SF6, and low pressures
@@ -127,9 +133,10 @@ def test_co2_density_after_a_high_pressure_call():
 
 # --- randomised order ------------------------------------------------------------------------
 
-@pytest.mark.parametrize("seed", [11, 24])
-def test_randomised_order_matches_isolated_calls(seed):
-    calls = _cases(seed, 160)
+@pytest.mark.parametrize("seed, n", [(7, 40), pytest.param(11, 200, marks=pytest.mark.slow),
+                                     pytest.param(24, 200, marks=pytest.mark.slow)])
+def test_randomised_order_matches_isolated_calls(seed, n):
+    calls = _cases(seed, n)
     isolated = [_isolated(c) for c in calls]
     order = list(range(len(calls)))
     random.Random(seed + 1).shuffle(order)
@@ -144,7 +151,10 @@ _CHILD = """
 import json, sys
 from benchwarden.core import gas as g
 from benchwarden.core.flow import orifice_flow
+from benchwarden.core.gap import breakdown
 from benchwarden.core.hold import hold_two_readings
+from benchwarden.core.purge import cycle_purge
+from benchwarden.core.supply import runtime
 tool, name, p, T = json.loads(sys.argv[1])
 gas = g.parse_gas(name)
 v = g.density(gas, T, p) if tool == "density" else orifice_flow(gas, 0.5e-3, p, 1.01325e5, T).mass_flow_kg_s
