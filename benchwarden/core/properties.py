@@ -26,7 +26,7 @@ __all__ = ["coolprop", "state", "estimated_pairs", "SUPERANCILLARY_SWITCH", "lim
            "melting_temperature", "check_state", "state_at", "Phase", "phase_of", "phase",
            "PTState", "pt_state", "density", "z_factor", "pressure_from_density", "enthalpy",
            "entropy", "heat_capacity_ratio", "ideal_gas_heat_capacity_ratio", "vapour_enthalpy",
-           "vapour_density", "gas_branch_densities"]
+           "vapour_density"]
 
 # CoolProp's states live in :mod:`benchwarden.core.eos` (one door: a failed update never leaves
 # a half-set state behind); re-exported here for callers that need the module or a constant.
@@ -438,33 +438,3 @@ def _vapour_state(gas: Gas, T: float, p: float) -> Any:
     if AS is None:
         raise PropertyError(f"no vapour state of {gas.name} at {fmt_temperature(T)}, {fmt_pressure(p, kind='absolute')}")
     return AS
-
-
-def gas_branch_densities(gas: Gas, T: float, ps: Any) -> list[float] | None:
-    """Densities of a mixture at T over the pressures ``ps`` on the gas branch, or None when a
-    stability check (both ends and every 8th pressure) finds a state that is not a single
-    stable phase (the caller then uses full flashes).
-
-    Parameters
-    ----------
-    gas : a mixture
-    T : Temperature, [K]
-    ps : Absolute pressures, [Pa]
-
-    References
-    ----------
-    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
-    fluid's reference equation of state.
-    """
-    n = len(ps)
-    for j in sorted(set(range(0, n, 8)) | {n - 1}):
-        if phase(gas, T, float(ps[j])).kind not in ("gas", "supercritical"):
-            return None
-    out: list[float] = []
-    try:
-        for p in ps:
-            check_state(gas, T, float(p))
-            out.append(float(state_at(gas, "PT_INPUTS", float(p), T, imposed="gas").rhomass()))
-    except PropertyError:
-        return None
-    return out
