@@ -53,11 +53,37 @@ K_EXPANDED = 2.0
 
 @dataclass(frozen=True)
 class GaugeSpec:
-    """A gauge: span [Pa] (full scale minus zero), accuracy class [% of span], resolution [Pa]."""
+    """A gauge: span [Pa] (full scale minus zero), accuracy class [% of span], resolution [Pa],
+    and the maker's repeatability [Pa, a ± limit] where one is given."""
 
     span_pa: float
     accuracy_class: float
     resolution_pa: float | None = None
+    repeatability_pa: float | None = None
+
+    @property
+    def budget(self) -> str:
+        """How a difference of two readings is budgeted: ``repeatability`` (the maker's figure:
+        the gauge's systematic error cancels in the difference) or ``uncorrelated`` (each reading
+        carries the full class error, as if independent: conservative)."""
+        return "repeatability" if self.repeatability_pa is not None else "uncorrelated"
+
+    @property
+    def u_difference_pa(self) -> float:
+        """Standard uncertainty of each of the two readings of a difference (GUM, JCGM 100:2008,
+        §5.2 correlated inputs): with a declared repeatability r, u = r/√3 ⊕ resolution/√12 (the
+        systematic part of the error is common to both readings and cancels in their difference);
+        without one, the full :attr:`u_reading_pa` (the readings taken as uncorrelated).
+
+        >>> round(GaugeSpec(250e5, 1.0, None, 0.05e5).u_difference_pa)   # 0.05 bar / √3
+        2887
+        """
+        if self.repeatability_pa is None:
+            return self.u_reading_pa
+        u = self.repeatability_pa / SQRT3
+        if self.resolution_pa is not None:
+            u = math.hypot(u, self.resolution_pa / (2.0 * SQRT3))
+        return u
 
     @property
     def mpe_pa(self) -> float:
@@ -245,6 +271,10 @@ class HoldResult:
     #: pressure change the target leak causes over this hold [Pa] (ASTM E2930 rules compare the
     #: gauge's resolution and accuracy with it)
     target_pressure_change_pa: float = math.nan
+    #: how the two readings' gauge errors were budgeted: ``uncorrelated`` (no repeatability
+    #: declared: each reading carries the full class error), ``repeatability`` (the maker's
+    #: figure, used for the difference), or ``none`` (no gauge given)
+    pressure_budget: str = "uncorrelated"
 
 
 def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: float, T2: float,
@@ -288,7 +318,7 @@ def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: flo
         pa_m3_s_from_sccm(sccm), pa_m3_s_from_sccm(sccm) * 10.0, mdot * SECONDS_PER_DAY,
         100.0 * mdot * SECONDS_PER_DAY / m1 if m1 > 0 else math.nan, mdot / dmdp_end * SECONDS_PER_DAY if dmdp_end > 0 else math.nan,
         U, target_sccm, verdict, h_res, max(0.0, h_empty), hold_needed, res_ok, acc_ok, tuple(notes), method,
-        dp_target)
+        dp_target, gauge.budget if gauge is not None else "none")
 
 
 def hold_two_readings(
@@ -327,7 +357,7 @@ def hold_two_readings(
     assert T_start is not None and T_end is not None
     m1, dm1p, dm1T = _dm(gas, volume_m3, T_start, p_start)
     m2, dm2p, dm2T = _dm(gas, volume_m3, T_end, p_end)
-    u_p = gauge.u_reading_pa if gauge is not None else 0.0
+    u_p = gauge.u_difference_pa if gauge is not None else 0.0
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
     u_T_eff = u_T if temps_given else max(u_T, U_T_UNMEASURED)
@@ -407,7 +437,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     span = float(t[-1] - t[0])
     # the same GUM budget as two readings (first and last), spread over the span of the log,
     # plus the scatter about the fitted line (its standard error) in quadrature
-    u_p = gauge.u_reading_pa if gauge is not None else 0.0
+    u_p = gauge.u_difference_pa if gauge is not None else 0.0
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
     if log.T_k is None:

@@ -108,7 +108,10 @@ def _draw_flow(prof: Profile, d: Draw, gas: g.Gas, outlet_abs: float) -> tuple[f
         if outlet_abs <= d.orifice.downstream.abs_at(amb):
             return 0.0, f"orifice {d.orifice.diameter * 1000:g} mm: no flow (outlet at or below downstream)", None
         o = fl.orifice_flow(gas, d.orifice.diameter, outlet_abs, d.orifice.downstream.abs_at(amb), T, d.orifice.cd)
-        return o.mass_flow_kg_s, f"orifice {d.orifice.diameter * 1000:g} mm, Cd {d.orifice.cd:g} ({'choked' if o.choked else 'subcritical'})", o.choked
+        phases = "" if (o.inlet_phase, o.throat_phase) == ("gas", "gas") else \
+            f"; inlet {o.inlet_phase}, throat {o.throat_phase}"
+        return (o.mass_flow_kg_s, f"orifice {d.orifice.diameter * 1000:g} mm, Cd {d.orifice.cd:g} "
+                f"({'choked' if o.choked else 'subcritical'}{phases})", o.choked)
     assert d.valve is not None
     if outlet_abs <= d.valve.downstream.abs_at(amb):
         return 0.0, f"valve Kv {d.valve.kv_value:g}: no flow (outlet at or below downstream)", None
@@ -144,16 +147,23 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
     reg_plans: dict[str, RegulatorPlan] = {}
     supply_models: dict[str, SupplyModel] = {}
     supply_state: dict[str, tuple[float, float, float]] = {}  # p_now, T, mass_now
+    weight_states: dict[str, sp.WeightState | None] = {}
     for s in prof.supplies:
         gas = s.gas
         T = _supply_T(prof, s)
         p_read = None if s.reading is None else s.reading.abs_at(amb)
         liquefied = _memo(memo, ("liquefied", gas.key, T, p_read), _is_liquefied, gas, T, p_read)
-        if liquefied:
+        fill = (s.gross - s.tare) if gas.sold_liquefied and s.gross is not None and s.tare is not None else 0.0
+        ws = _memo(memo, ("by-weight", gas.key, fill, s.water_volume, T), sp.state_by_weight, gas, fill,
+                   s.water_volume, T) if fill > 0 else None
+        if ws is not None and (liquefied or s.reading is None):
+            p_now = ws.pressure_abs_pa  # the vapour pressure, or a liquid-full cylinder's hydraulic pressure
+        elif liquefied:
             p_now = g.saturation_pressure(gas, T)
         else:
             assert s.reading is not None
             p_now = s.reading.abs_at(amb)
+        weight_states[s.id] = ws
         p_hi = max(p_now, s.service_pressure.abs_at(amb)) * 1.02
         p_arg = None if s.reading is None else p_now
         model = _memo(memo, ("model", gas.key, s.water_volume, T, p_hi, amb, liquefied),
@@ -184,11 +194,13 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             sat = supply_models[s.id].liquefied
             th = _memo(memo, ("throttle", s.gas.key, p_now, set_abs, T, sat),
                        rg.throttle, s.gas, p_now, set_abs, T, saturated_vapour=sat)
-            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.notes
+            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.flags
+            margin = th.dry_ice_margin_k
         else:
-            t_out, solid, liquid, notes = T, False, False, ()
+            t_out, solid, liquid, notes, margin = T, False, False, (), None
         reg_plans[r.id] = RegulatorPlan(r.id, s.id, r.stages, p_now, set_abs, out_res, t_out, solid, liquid, notes,
-                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet)
+                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet,
+                                        margin)
 
     # -- draws
     draw_plans: list[DrawPlan] = []
@@ -204,9 +216,9 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         if d.kind == "gap" and d.spacing is not None:
             b0 = gp.breakdown(s.gas, d.spacing, rp.outlet_abs_pa, T_amb)
             b1 = gp.breakdown(s.gas, d.spacing, rp.outlet_at_reserve_abs_pa, T_amb)
-            m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
+            m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
                        for x in d.exposed)
-            m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
+            m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
                        for x in d.exposed)
             gap_plan = GapPlan(d.spacing, b0.breakdown_kv, b1.breakdown_kv, b0.method, b0.validity, m0, m1,
                                b0.within_validity and b1.within_validity, max(b0.pd_bar_cm_20c, b1.pd_bar_cm_20c))
@@ -267,12 +279,31 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         supply_plans.append(SupplyPlan(
             s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
             band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
-            tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm))
+            tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm,
+            **_memo(memo, ("state", s.gas.key, weight_states[s.id], model.liquefied, s.water_volume, p_now, T),
+                    _state_fields, s.gas, weight_states[s.id], model.liquefied, s.water_volume, p_now, T)))
     room_plan_ = room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s, memo)
     fits = all(sp_.fits_session or sp_.draw_kg_s == 0 for sp_ in supply_plans)
     plan = Plan(prof.bench.name, amb, T_amb, session_h, start.isoformat(timespec="minutes"), tuple(supply_plans),
                 tuple(reg_plans.values()), tuple(draw_plans), room_plan_, (), fits)
     return dataclasses.replace(plan, findings=tuple(fd.plan_findings(prof, plan)))
+
+
+def _state_fields(gas: g.Gas, ws: sp.WeightState | None, liquefied: bool, V: float, p: float,
+                  T: float) -> dict[str, Any]:
+    """A supply's phase and, read by pressure, the sensitivity of its contents to temperature
+    (:func:`benchwarden.core.supply.temperature_sensitivity`, at the default 1 K)."""
+    if ws is not None:
+        return {"phase": ws.phase, "liquid_full_temperature_k": ws.liquid_full_temperature_k}
+    if liquefied:  # liquid under its vapour, no weights: the plan asks for them
+        return {"phase": "two-phase"}
+    u_T = sp.TEMPERATURE_UNCERTAINTY_K
+    slope, u_m, _ = sp.temperature_sensitivity(gas, V, p, T, u_T)
+    kind = g.pt_state(gas, T, p).phase.kind
+    if kind == "supercritical" and p < g.critical_pressure(gas):
+        kind = "gas"
+    return {"phase": kind, "mass_sensitivity_kg_per_k": slope, "mass_uncertainty_kg": u_m,
+            "temperature_uncertainty_k": u_T}
 
 
 def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float:
@@ -282,11 +313,11 @@ def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float
     hot = prof.ambient.hot_day
     if not _is_liquefied(s.gas, T, p_now):
         return sp.heat_up(s.gas, p_now, T, hot, prof.ambient_pa).pressure_abs_pa
+    if s.gross is not None and s.tare is not None and s.gross > s.tare:
+        return sp.state_by_weight(s.gas, s.gross - s.tare, s.water_volume, hot).pressure_abs_pa
     if _is_liquefied(s.gas, hot):
         return g.saturation_pressure(s.gas, hot)
-    if s.gross is None or s.tare is None:
-        return math.inf
-    return g.pressure_from_density(s.gas, (s.gross - s.tare) / s.water_volume, hot)
+    return math.inf
 
 
 # ----------------------------------------------------------------------------- observed draw

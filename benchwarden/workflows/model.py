@@ -69,6 +69,7 @@ class RegulatorPlan:
     outlet_temperature_k: float
     solid_forms: bool
     liquid_forms: bool
+    #: the throttle's codes (:attr:`benchwarden.core.regulator.Throttle.flags`)
     throttle_notes: tuple[str, ...]
     inlet_rating_abs_pa: float
     supply_hot_day_abs_pa: float
@@ -77,6 +78,8 @@ class RegulatorPlan:
     regulating: bool = True
     #: the outlet pressure now: the set point, or the supply pressure when not regulating
     outlet_abs_pa: float = 0.0
+    #: kelvin above the line where solid (dry ice) forms at the outlet; None for a gas without one
+    dry_ice_margin_k: float | None = None
 
 
 @dataclass(frozen=True)
@@ -107,6 +110,15 @@ class SupplyPlan:
     #: a leak found on the current cylinder (latest hold test ``leak`` or ``likely-leak``),
     #: counted as a draw in ``draw_kg_s`` and everything projected from it [sccm, 0 °C, 101.325 kPa]
     leak_sccm: float = 0.0
+    #: the state in the cylinder now: ``gas``, ``two-phase``, ``liquid-full``, ``supercritical``
+    phase: str = "gas"
+    #: by weight: the temperature [K] at which the fill becomes liquid-full (None: never)
+    liquid_full_temperature_k: float | None = None
+    #: by pressure: ∂m/∂T [kg/K] and the mass uncertainty [kg] from the temperature's
+    #: standard uncertainty ``temperature_uncertainty_k`` [K]
+    mass_sensitivity_kg_per_k: float | None = None
+    mass_uncertainty_kg: float | None = None
+    temperature_uncertainty_k: float | None = None
 
 
 @dataclass(frozen=True)

@@ -17,6 +17,7 @@ from textual.widgets import Button, Footer, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
 from benchwarden.errors import BenchwardenError, InputError, JournalError
+from benchwarden.render.budget import budget_assumption
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.render.room import room_lines
 from benchwarden.storage.holdlog import parse_log
@@ -212,6 +213,9 @@ class HoldScreen(_Tool):
                  f"smallest leak this test resolves: {r.smallest_resolvable_sccm:.3g} sccm; "
                  f"hold needed for the {r.target_sccm:.3g} sccm target ≈ {fmt_hours(r.hold_needed_h)}"]
         lines += [f"! {n}" for n in r.notes]
+        assumption = budget_assumption(r)
+        if assumption:
+            lines.append(f"! {assumption}")
         lines += [f"• {g}" for g in hd.GUIDANCE]
         if st.journal is not None:
             try:
