@@ -58,7 +58,9 @@ def _profile(tmp_path: Path, source: str, extra: str = "") -> Path:
 
 
 def _file_source(log: Path, interval: str = "0.2 s") -> str:
+    """A log of ``time,value`` lines (ISO 8601 time stamps), declared as such."""
     return (f'kind = "file"\npath = "{log}"\nvalue_unit = "bar"\ninterval = "{interval}"\n'
+            'delimiter = ","\ntime_column = 1\nvalue_column = 2\n'
             'range = "250 bar"\naccuracy_class = 0.1\nresolution = "0.01 bar"\n')
 
 

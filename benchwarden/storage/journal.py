@@ -18,7 +18,7 @@ from typing import Any
 
 from benchwarden.errors import JournalError
 
-SCHEMA_VERSION = 4
+SCHEMA_VERSION = 5
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -144,6 +144,10 @@ _MIGRATIONS: dict[int, str] = {
         details TEXT
     );
     CREATE INDEX alarms_bench ON alarms(bench, at);
+    """,
+    5: """
+    ALTER TABLE samples ADD COLUMN status TEXT;
+    ALTER TABLE samples ADD COLUMN reason TEXT;
     """,
 }
 
