@@ -633,3 +633,134 @@ def test_sessions_count_the_alarms_raised_during_them(tmp_path, capsys):
     assert main(["--journal", str(journal), "sessions", "--json"]) == 0
     (row,) = json.loads(capsys.readouterr().out)["sessions"]
     assert row["alarms"] == 1 and row["readings"] == 0
+
+
+# --------------------------------------------------------------------------- RS-485: one port, several devices
+
+
+def _rtu_bus(master: int, devices: dict[int, float], stop: threading.Event, served: list[int],
+             garbled: frozenset[int] = frozenset()) -> None:
+    """Modbus RTU devices on one line (the test's own slave code, CRC-16/MODBUS above): each unit
+    id in ``devices`` answers "read holding/input registers" with its float32 value; a unit in
+    ``garbled`` answers with a wrong CRC; any other unit stays silent, as on a real bus."""
+    import select
+
+    buf = b""
+    while not stop.is_set():
+        r, _, _ = select.select([master], [], [], 0.05)
+        if not r:
+            continue
+        buf += os.read(master, 256)
+        while len(buf) >= 8:
+            req, buf = buf[:8], buf[8:]
+            if _crc16_modbus(req[:6]) != int.from_bytes(req[6:8], "little"):
+                buf = b""
+                break
+            unit, fc, count = req[0], req[1], int.from_bytes(req[4:6], "big")
+            served.append(unit)
+            if unit not in devices and unit not in garbled:
+                continue
+            body = bytes([unit, fc, 2 * count]) + struct.pack(">f", devices.get(unit, 1.0))
+            crc = _crc16_modbus(body) ^ (0x5555 if unit in garbled else 0)
+            os.write(master, body + crc.to_bytes(2, "little"))
+
+
+def test_two_devices_on_one_rs485_port_share_one_connection_and_both_are_read(tmp_path):
+    master, slave = os.openpty()
+    port = os.ttyname(slave)
+    stop, served = threading.Event(), []
+    th = threading.Thread(target=_rtu_bus, args=(master, {7: 63.5, 9: 21.5}, stop, served), daemon=True)
+    th.start()
+    src = (f'kind = "modbus-rtu"\nport = "{port}"\nbaud = 19200\ndevice = 7\nregister = 10\n'
+           'interval = "0.2 s"\n')
+    temp = (f'\n[supplies.temperature_source]\nkind = "modbus-rtu"\nport = "{port}"\nbaud = 19200\n'
+            'device = 9\nregister = 2\ninput_registers = true\nvalue_unit = "degC"\ninterval = "0.2 s"\n')
+    prof = parse_profile(_profile(tmp_path, src, temp).read_text(), "live.toml")
+    try:
+        with Journal(tmp_path / "j.sqlite3") as j:
+            w = Watcher(prof, j)
+            store = SampleStore(j)
+            try:
+                end = time.monotonic() + 8.0
+                while time.monotonic() < end and not all(f.stored >= 3 for f in w.feeds):
+                    w.poll(dt.datetime.now(dt.UTC))
+                    time.sleep(max(0.01, min(w.next_due(), 0.1)))
+                assert len({id(f.source.client) for f in w.feeds}) == 1      # one client for the port
+                assert {7, 9} <= set(served), w.feeds
+            finally:
+                w.close()
+            p = store.latest(store.stream(BENCH, "n2-A", "pressure"))
+            t = store.latest(store.stream(BENCH, "n2-A", "temperature"))
+            assert p is not None and p[1] == pytest.approx(63.5e5 + prof.ambient_pa)
+            assert t is not None and t[1] == pytest.approx(21.5 + 273.15)
+    finally:
+        stop.set()
+        th.join(timeout=5)
+        os.close(master)
+        os.close(slave)
+
+
+def test_no_response_and_crc_errors_are_named():
+    from benchwarden.live.sources import modbus_rtu
+
+    master, slave = os.openpty()
+    stop, served = threading.Event(), []
+    th = threading.Thread(target=_rtu_bus, args=(master, {7: 63.5}, stop, served, frozenset({11})), daemon=True)
+    th.start()
+    port = os.ttyname(slave)
+    now = dt.datetime.now(dt.UTC)
+    srcs = [modbus_rtu(port, 19200, "N", unit, 0, "float32", lambda x: x, timeout_s=0.3) for unit in (7, 8, 11)]
+    try:
+        ok, silent, garbled = (s.read(now) for s in srcs)
+        assert ok.good and ok.value == pytest.approx(63.5)
+        assert not silent.good and "no response" in silent.why and "unit id" in silent.why
+        assert not garbled.good and "CRC" in garbled.why
+    finally:
+        for s in srcs:
+            s.close()
+        stop.set()
+        th.join(timeout=5)
+        os.close(master)
+        os.close(slave)
+
+
+def test_a_serial_setting_the_os_refuses_is_named():
+    from benchwarden.live.sources import modbus_rtu
+
+    master, slave = os.openpty()  # a pseudo-terminal has no parity: the operating system refuses "E"
+    src = modbus_rtu(os.ttyname(slave), 19200, "E", 5, 0, "float32", lambda x: x, timeout_s=0.3)
+    try:
+        s = src.read(dt.datetime.now(dt.UTC))
+        assert not s.good and "refused a setting" in s.why and "parity" in s.why
+    finally:
+        src.close()
+        os.close(master)
+        os.close(slave)
+
+
+@pytest.mark.parametrize("second, words", [
+    ('baud = 9600\n', "baud 19200 vs 9600"),
+    ('baud = 19200\nparity = "O"\n', "parity E vs O"),
+    ('baud = 19200\nparity = "E"\nstopbits = 2\n', "stopbits 1 vs 2"),
+])
+def test_disagreeing_settings_on_one_port_are_refused_at_load_naming_both_sections(second, words):
+    from benchwarden.errors import ProfileError
+
+    first = 'kind = "modbus-rtu"\nport = "/dev/ttyUSB0"\nbaud = 19200\nparity = "E"\ndevice = 7\n'
+    temp = ('\n[supplies.temperature_source]\nkind = "modbus-rtu"\nport = "/dev/ttyUSB0"\ndevice = 9\n'
+            'value_unit = "degC"\n' + second)
+    with pytest.raises(ProfileError) as err:
+        parse_profile(DEMO.replace(ANCHOR, ANCHOR + "\n[supplies.source]\n" + first + temp, 1), "b.toml")
+    msg = str(err.value)
+    assert "[supplies.source] of supply n2-A" in msg and "[supplies.temperature_source] of supply n2-A" in msg
+    assert words in msg and "/dev/ttyUSB0" in msg
+
+
+def test_serial_settings_the_os_refuses_or_a_missing_port_are_named():
+    from benchwarden.live.modbus import serial_open_error
+
+    # errors as pyserial raises them (errno values from the C library: ENOENT 2, EACCES 13, EBUSY 16)
+    assert "does not exist" in serial_open_error("/dev/ttyX", OSError(2, "No such file or directory"))
+    assert "permission denied" in serial_open_error("/dev/ttyX", OSError(13, "Permission denied"))
+    assert "busy" in serial_open_error("/dev/ttyX", OSError(16, "Device or resource busy"))
+    assert "refused a setting" in serial_open_error("/dev/ttyX", ValueError("Not a valid parity: 'Q'"))

@@ -62,7 +62,8 @@ def serial_open_error(port: str, exc: BaseException) -> str:
         return f"permission denied on {port} (is your user in the port's group, e.g. dialout?)"
     if code == errno.EBUSY or "exclusively lock" in text or "busy" in text.lower():
         return f"serial port {port} is busy (another program has it open)"
-    if "termios" in type(exc).__module__ or "Invalid argument" in text or isinstance(exc, ValueError):
+    if type(exc).__module__ == "termios" or code == errno.EINVAL or "Invalid argument" in text \
+            or isinstance(exc, ValueError):
         return f"the operating system refused a setting of {port} (baud, parity, bytesize or stopbits): {text}"
     return f"cannot open the serial port {port}: {text}"
 
@@ -126,7 +127,7 @@ class ModbusSource:
 
         try:  # pymodbus only logs why: open the port once ourselves to name the cause
             serial.Serial(self.port, **self.bus.settings, timeout=0).close()
-        except (serial.SerialException, OSError, ValueError) as exc:
+        except Exception as exc:  # noqa: BLE001 - pyserial raises termios.error, OSError, ValueError, ...
             return f"{self.where}: {serial_open_error(self.port, exc)}"
         return f"cannot open {self.port} for {self.where}"
 

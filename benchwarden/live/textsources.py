@@ -228,7 +228,7 @@ class SerialSource:
         try:
             self.port: Any = serial.Serial(port, baudrate=baud, timeout=0.2, parity=parity, bytesize=bytesize,
                                            stopbits=stopbits)
-        except (serial.SerialException, OSError, ValueError) as exc:
+        except Exception as exc:  # noqa: BLE001 - pyserial raises termios.error, OSError, ValueError, ...
             raise InputError(serial_open_error(port, exc)) from None
         self.stop = threading.Event()
         self.thread = threading.Thread(target=self._run, name=f"serial {port}", daemon=True)
