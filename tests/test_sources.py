@@ -289,12 +289,12 @@ def test_a_lying_gauge_never_gives_a_good_zero_and_a_real_step_is_confirmed():
         return Sample(NOW + dt.timedelta(seconds=i), bar * 1e5, True)
 
     out = []
-    for i, bar in enumerate([64, 64, 0, 64, -50, 1e30, 0, 0, 64, 64]):
+    for i, bar in enumerate([64, 64, 0, 64, -50, 1e30, 0, 0, 64, 0, -50, 0, 0, 64]):
         out += f(at(i, bar))
     good = [s.value / 1e5 for s in out if s.good]
     assert 0.0 not in good and good == [64, 64, 64, 64, 64]
-    assert [s.status for s in out if s.value == 0.0] == ["implausible"] * 3
-    assert sum(1 for s in out if s.status == "bad") == 2            # −50 and 1e30: outside the range
+    assert [s.status for s in out if s.value == 0.0] == ["implausible"] * 6    # a bad read between confirms nothing
+    assert sum(1 for s in out if s.status == "bad") == 3            # −50 and 1e30: outside the range
     assert f(at(10, 198)) == [] and f(at(11, 198)) == []              # a new cylinder: held ...
     assert [s.value / 1e5 for s in f(at(12, 197.9))] == [198, 198, 197.9]   # ... until confirmed
     assert f.allowed(64e5, 1.0) == pytest.approx(1e5 + 64e5 * (1 - 2.718281828459045 ** -0.25))

@@ -204,6 +204,8 @@ RECENT_ALARMS_S = 86400.0
 
 
 def cmd_status(args: argparse.Namespace) -> int:
+    from benchwarden.workflows.watch import last_bad_sample
+
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     d = display(args, prof.ambient_pa, prof)
@@ -239,6 +241,7 @@ def cmd_status(args: argparse.Namespace) -> int:
                                                else ht.leak_rate_uncertainty_sccm if ht else None),
                 "leak_source": "leak watch" if from_live else "hold test" if ht else None,
                 "live": live,
+                "last_bad_sample": last_bad_sample(j, prof, sp.id, now.tzinfo),
                 "hold_test_at": ht.at if ht else None, "hold_test_kind": ht.kind if ht else None,
                 "order_by": _order_date(a.orders.get(sp.id)),
                 "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,

@@ -27,6 +27,23 @@ N times faster (a night's hold test in a minute)."""
 
 
 def configure(sub: Any, name: str) -> None:
+    if name == "samples":
+        s = sub.add_parser("samples", help="write a supply's stored live samples out: raw samples with their status "
+                                           "and reason, and for compressed hours the trace points and each hour's "
+                                           "minimum and maximum",
+                           epilog="Columns: time (ISO 8601, UTC), stream (pressure, temperature), kind (raw, trace, "
+                                  "min, max), value_si, unit (Pa(a) or K), status (good, bad, implausible), reason. "
+                                  "docs/journal-schema.md describes the journal's tables.")
+        s.add_argument("profile", help="bench profile (TOML)")
+        s.add_argument("supply", help="supply id, e.g. n2-A")
+        s.add_argument("--from", dest="since", metavar="TIME", help="first time, ISO 8601 (default: the first sample)")
+        s.add_argument("--to", dest="until", metavar="TIME", help="last time, ISO 8601 (default: the last sample)")
+        s.add_argument("--format", choices=["csv", "jsonl"], default="csv", help="csv (default) or jsonl")
+        s.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output (never over an "
+                                                       "existing file)")
+        add_journal(s)
+        s.set_defaults(func=cmd_samples)
+        return
     if name == "watch":
         w = sub.add_parser("watch", help="read the live gauges of a bench profile: samples into the journal, "
                                          "leak watch, alarms on stderr")
@@ -83,6 +100,25 @@ def cmd_simulate(args: argparse.Namespace) -> int:
         raise input_error(f"cannot serve on 127.0.0.1:{args.port}: {why}") from None
     except KeyboardInterrupt:
         pass
+    return 0
+
+
+def cmd_samples(args: argparse.Namespace) -> int:
+    """Every stored sample of a supply's streams in the span, as CSV or JSON Lines."""
+    import sys
+
+    from benchwarden.render.files import write_output
+    from benchwarden.render.samples import samples_csv, samples_jsonl
+    from benchwarden.workflows.sample_export import supply_samples
+
+    journal = getattr(args, "journal", None)
+    rows = supply_samples(args.profile, args.supply, journal, args.since, args.until)
+    text = (samples_jsonl if args.format == "jsonl" else samples_csv)(rows)
+    if args.output:
+        out = write_output(args.output, text, protected=(args.profile, journal))
+        print(f"{len(rows)} row(s) written to {out}")
+    else:
+        sys.stdout.write(text)
     return 0
 
 

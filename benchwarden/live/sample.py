@@ -103,7 +103,7 @@ class Plausibility:
     steady rate, and an exponential blow-down with time constant τ = 1/``relative_rate``: what
     the supply could physically change in Δt) is held until :data:`CONFIRM_SAMPLES` following
     samples agree with it (a real step: a new cylinder, a valve opened wide) — all good — or the
-    trend resumes — the held ones implausible. Returns the samples that are decided, in time
+    trend resumes or a bad sample comes between — the held ones implausible. Returns the samples that are decided, in time
     order."""
 
     def __init__(self, lo: float, hi: float, band: float, rate_per_s: float, last: Sample | None = None,
@@ -121,11 +121,12 @@ class Plausibility:
         return abs(b.value - a.value) <= self.allowed(a.value, abs((b.at - a.at).total_seconds()))
 
     def __call__(self, s: Sample) -> list[Sample]:
+        if s.good and s.value is not None and not self.lo <= s.value <= self.hi:
+            s = replace(s, good=False, why=f"outside the transducer's range ({s.value:.6g} in SI units; "
+                                           f"{self.lo:.6g} to {self.hi:.6g} allowed)")
         if s.value is None or not s.good:
-            return [s]
-        if not self.lo <= s.value <= self.hi:
-            return [replace(s, good=False, why=f"outside the transducer's range ({s.value:.6g} in SI units; "
-                                               f"{self.lo:.6g} to {self.hi:.6g} allowed)")]
+            # a sample that did not read confirms nothing: what was held stays unconfirmed
+            return self._implausible() + [s] if self.pending else [s]
         if self.last is None:
             self.last = s
             return [s]

@@ -51,6 +51,15 @@ class LineReader:
         self.convert, self.dialect = convert, dialect
         self.seen = 0
         self.header: list[str] | None = None
+        self.stamped: dt.datetime | None = None
+
+    def _stamp(self, at: dt.datetime) -> dt.datetime:
+        """A read time for a line without its own: lines read together get successive
+        microseconds, so that each is its own sample."""
+        if self.stamped is not None and at <= self.stamped:
+            at = self.stamped + dt.timedelta(microseconds=1)
+        self.stamped = at
+        return at
 
     def restart(self) -> None:
         """A new file: its header lines come again."""
@@ -61,7 +70,7 @@ class LineReader:
         """The sample of one line (None for a header, blank or ``#`` comment line)."""
         self.seen += 1
         if raw is OVERLONG or raw == OVERLONG:
-            return Sample(at, None, False, f"line longer than {MAX_LINE_BYTES} bytes")
+            return Sample(self._stamp(at), None, False, f"line longer than {MAX_LINE_BYTES} bytes")
         text = raw.decode("utf-8", errors="replace")
         if self.seen <= self.dialect.header_lines:
             if self.dialect.delimiter is not None:
@@ -79,9 +88,9 @@ class LineReader:
                 value = self.convert.in_unit(got.value, got.unit)
             else:
                 raise LineError(f"the line has a unit ({got.unit!r}) but this source takes plain numbers")
-            return Sample(got.at or at, value, True)
+            return Sample(got.at or self._stamp(at), value, True)
         except InputError as exc:
-            return Sample(at, None, False, str(exc))
+            return Sample(self._stamp(at), None, False, str(exc))
 
 
 class _Waiting:

@@ -153,10 +153,16 @@ def live_text(lv: Any, d: Display) -> str:
     if lv.silent:
         parts.append(f"gauge SILENT ({lv.silent})")
     if lv.sample is not None:
-        parts.append(f"live {d.gauge(lv.sample.pressure_abs_pa)} at {lv.sample.at.strftime('%H:%M:%S')}"
+        at = lv.sample.at
+        today = dt.datetime.now(at.tzinfo).date()
+        parts.append(f"live {d.gauge(lv.sample.pressure_abs_pa)} at "
+                     f"{at.strftime('%H:%M:%S' if at.date() == today else '%Y-%m-%d %H:%M:%S')}"
                      + (f", {d.temperature(lv.sample.temperature_k)}" if lv.sample.temperature_k else ""))
     elif not lv.silent:
         parts.append("live: waiting for the first sample")
+    bad = getattr(lv, "last_bad", None)
+    if bad:
+        parts.append(f"last sample set aside: {bad}")
     if lv.leak is not None:
         parts.append(f"leak watch {lv.leak.verdict} "
                      f"{fmt_uncertain(lv.leak.leak_rate_sccm, lv.leak.leak_rate_uncertainty_sccm, 'sccm')} "

@@ -271,6 +271,14 @@ class SampleStore:
         t, v = _unpack(blk[0][0], blk[0][1])
         return float(t[-1]), float(v[-1])
 
+    def last_not_good(self, stream: int) -> tuple[float, str, str] | None:
+        """The latest raw sample that is not good: (time, ``bad`` or ``implausible``, reason)."""
+        row = self._q(f"SELECT t, status, reason FROM samples WHERE stream = ? AND NOT ({GOOD}) ORDER BY t DESC "
+                      "LIMIT 1", (stream,))
+        if not row:
+            return None
+        return float(row[0][0]), row[0][1] or "bad", row[0][2] or ""
+
     def last_time(self, stream: int) -> float | None:
         """The time of the latest sample, good or bad."""
         row = self._q("SELECT MAX(t) FROM samples WHERE stream = ?", (stream,))

@@ -106,6 +106,7 @@ class Feed:
     last_good: dt.datetime | None = None
     started: dt.datetime | None = None
     why: str = ""
+    why_at: dt.datetime | None = None
     stored: int = 0
     latest: float | None = None
 
@@ -195,7 +196,7 @@ class Watcher:
                 good = True
                 f.last_good = smp.at if f.last_good is None else max(f.last_good, smp.at)
             else:
-                f.why = smp.why
+                f.why, f.why_at = smp.why, smp.at
         added = self.store.add(f.stream, rows) if rows else 0  # JournalError goes up: the interface says so
         f.stored += added
         return added, good
@@ -242,9 +243,14 @@ class Watcher:
         """Supplies whose pressure gauge is silent, with the last reason."""
         return {f.supply_id: f.why or "no sample" for f in self.feeds if f.quantity == "pressure" and f.silent(now)}
 
-    def last_reasons(self) -> dict[str, str]:
-        """Each pressure feed's latest reason for a sample that was not good (empty: none yet)."""
-        return {f.supply_id: f.why for f in self.feeds if f.quantity == "pressure" and f.why}
+    def last_reasons(self, now: dt.datetime) -> dict[str, str]:
+        """Each pressure feed's reason for its latest sample that was not good, while recent
+        (within :data:`SILENT_INTERVALS` intervals, at least a minute)."""
+        def recent(f: Feed) -> bool:
+            return f.why_at is not None and abs((now - f.why_at).total_seconds()) <= max(
+                60.0, SILENT_INTERVALS * f.interval_s)
+
+        return {f.supply_id: f.why for f in self.feeds if f.quantity == "pressure" and f.why and recent(f)}
 
     def close(self) -> None:
         """Let go of every source; samples still held for confirmation are stored implausible."""

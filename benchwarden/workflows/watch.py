@@ -52,7 +52,7 @@ from benchwarden.workflows.holds import (
 from benchwarden.workflows.model import Observed
 
 __all__ = ["SILENT_INTERVALS", "BACKOFF_MAX_S", "sample_tolerance", "Feed", "Watcher", "LeakWatch", "leak_watch",
-           "record_leak_watch", "leak_watch_recorded", "live_draw", "AlarmBook"]
+           "record_leak_watch", "leak_watch_recorded", "last_bad_sample", "live_draw", "AlarmBook"]
 
 #: The leak watch needs this many samples over at least this span [s] before it says anything.
 LEAK_MIN_SAMPLES, LEAK_MIN_SPAN_S = 10, 60.0
@@ -203,6 +203,24 @@ def leak_watch_recorded(journal: Journal | None, prof: Profile, supply_id: str,
         except JournalError:
             pass
     return lw
+
+
+def last_bad_sample(journal: Journal | None, prof: Profile, supply_id: str,
+                    tz: dt.tzinfo | None = None) -> dict[str, str] | None:
+    """The supply's latest pressure sample that was not good — ``at``, ``status`` (``bad`` or
+    ``implausible``) and ``reason`` — or None."""
+    if journal is None:
+        return None
+    store = SampleStore(journal)
+    try:
+        sid = store.stream(prof.bench.name, supply_id, "pressure")
+        got = store.last_not_good(sid) if sid is not None else None
+    except JournalError:
+        return None
+    if got is None:
+        return None
+    return {"at": dt.datetime.fromtimestamp(got[0], tz).isoformat(timespec="seconds"), "status": got[1],
+            "reason": got[2]}
 
 
 def live_draw(journal: Journal | None, prof: Profile, supply_id: str, since: dt.datetime, now: dt.datetime,
