@@ -5,7 +5,9 @@ the leak watch against ``hold --log``, alarms, ``watch`` and ``status``. Bounded
 from __future__ import annotations
 
 import asyncio
+import csv
 import datetime as dt
+import io
 import json
 import os
 import signal
@@ -764,3 +766,87 @@ def test_serial_settings_the_os_refuses_or_a_missing_port_are_named():
     assert "permission denied" in serial_open_error("/dev/ttyX", OSError(13, "Permission denied"))
     assert "busy" in serial_open_error("/dev/ttyX", OSError(16, "Device or resource busy"))
     assert "refused a setting" in serial_open_error("/dev/ttyX", ValueError("Not a valid parity: 'Q'"))
+
+
+# --------------------------------------------------------------------------- bounded
+
+
+def test_watch_for_ends_within_d_plus_5_s_with_a_catastrophic_pattern_and_a_device(tmp_path, capsys):
+    import resource
+
+    log = tmp_path / "aaa.log"
+    log.write_text(("a" * 40 + "!\n") * 2000)   # unbounded: 2000 lines × the pattern's time limit, or minutes
+    src = f'kind = "file"\npath = "{log}"\npattern = \'(?P<value>(a|aa)+$)\'\ninterval = "0.2 s"\n'
+    zero = '\n[supplies.temperature_source]\nkind = "file"\npath = "/dev/zero"\nvalue_unit = "degC"\ninterval = "0.2 s"\n'
+    prof = _profile(tmp_path, src, zero)
+    journal = tmp_path / "j.sqlite3"
+    rss0 = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    t0 = time.monotonic()
+    assert main(["--journal", str(journal), "watch", str(prof), "--for", "1 s", "--every", "1 s"]) == 0
+    assert time.monotonic() - t0 < 1 + 5
+    assert resource.getrusage(resource.RUSAGE_SELF).ru_maxrss - rss0 < 200_000   # [kB]: /dev/zero was never read
+    capsys.readouterr()
+    assert main(["--journal", str(journal), "samples", str(prof), "n2-A", "--format", "jsonl"]) == 0
+    rows = [json.loads(x) for x in capsys.readouterr().out.splitlines()]
+    temps = [r for r in rows if r["stream"] == "temperature"]
+    assert temps and all(r["status"] == "bad" and "character device" in r["reason"] for r in temps)
+    pressures = [r for r in rows if r["stream"] == "pressure"]
+    assert pressures and all(r["status"] == "bad" and "the pattern took longer than" in r["reason"] for r in pressures)
+
+
+def test_a_line_over_4096_bytes_through_watch_is_one_bad_sample(tmp_path, capsys):
+    log = tmp_path / "long.log"
+    log.write_bytes(b"64.0\n" + b"9" * 100_000 + b"\n63.9\n")
+    prof = _profile(tmp_path, f'kind = "file"\npath = "{log}"\ninterval = "0.2 s"\n')
+    journal = tmp_path / "j.sqlite3"
+    assert main(["--journal", str(journal), "watch", str(prof), "--for", "0.6 s", "--every", "1 s"]) == 0
+    capsys.readouterr()
+    assert main(["--journal", str(journal), "samples", str(prof), "n2-A"]) == 0
+    rows = list(csv.DictReader(io.StringIO(capsys.readouterr().out)))
+    assert [r["status"] for r in rows] == ["good", "bad", "good"]
+    assert rows[1]["reason"] == "line longer than 4096 bytes"
+
+
+# --------------------------------------------------------------------------- the simulator
+
+
+def test_the_simulator_answers_any_unit_id_or_only_its_own_and_prints_no_traceback(tmp_path):
+    # the real command in a subprocess, a pymodbus client and a raw socket sending garbage
+    from pymodbus.client import ModbusTcpClient
+
+    for unit, answered, silent in ((None, (0, 1, 7, 255), ()), (9, (9,), (1, 7))):
+        port = _free_port()
+        cmd = [sys.executable, "-m", "benchwarden", "simulate", "--gas", "nitrogen", "--volume", "50 L", "--pressure",
+               "64 bar", "--port", str(port), "--for", "3 s"] + ([] if unit is None else ["--unit", str(unit)])
+        proc = subprocess.Popen(cmd, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+        try:
+            client = ModbusTcpClient("127.0.0.1", port=port, timeout=0.5, retries=0)
+            for _ in range(100):  # the server needs a moment to listen
+                if client.connect():
+                    break
+                time.sleep(0.05)
+            for dev in answered:
+                for call in (client.read_holding_registers, client.read_input_registers):
+                    r = call(0, count=2, device_id=dev)
+                    assert not r.isError() and struct.unpack(">f", struct.pack(">HH", *r.registers))[0] == \
+                        pytest.approx(64.0), (dev, call)
+            for dev in silent:
+                with pytest.raises(Exception):  # noqa: B017 - no answer: pymodbus says so its own way
+                    r = client.read_holding_registers(0, count=2, device_id=dev)
+                    assert not r.isError()
+            client.close()
+            with socket.create_connection(("127.0.0.1", port), timeout=1) as raw:
+                raw.sendall(b"\x00\x01\x00\x00\x00\x06\x01\x99garbage")
+                time.sleep(0.2)
+        finally:
+            out, err = proc.communicate(timeout=15)
+        assert proc.returncode == 0, err
+        assert "Traceback" not in err + out and "send:" not in err + out and ">>>>>" not in err + out, err
+        assert ("every unit id" if unit is None else f"unit {unit}") in out
+
+
+def test_simulate_help_documents_holding_and_input_registers(capsys):
+    with pytest.raises(SystemExit):
+        main(["simulate", "--help"])
+    out = capsys.readouterr().out
+    assert "holding registers" in out and "input registers" in out and "--unit" in out and "40001" in out
