@@ -183,40 +183,49 @@ def test_every_row_of_the_issue_through_watch_and_samples(tmp_path, capsys):
     from benchwarden.storage.profile import parse_profile
 
     local = dt.datetime.now().astimezone().replace(microsecond=0) - dt.timedelta(minutes=30)
-    utc = local.astimezone(dt.UTC)
-    berlin = local.astimezone(__import__("zoneinfo").ZoneInfo("Europe/Berlin"))
+    zone = __import__("zoneinfo").ZoneInfo("Europe/Berlin")
+
+    def at(i: int) -> dt.datetime:
+        return local + dt.timedelta(seconds=i)
+
+    def lines(fmt, n: int = 3) -> list[str]:  # the logger's lines: 64.02, 64.01, 64.00 bar one second apart
+        return [fmt(at(i), 64.02 - 0.01 * i) for i in range(n)]
+
+    csv_keys = 'delimiter = ","\ntime_column = 1\nvalue_column = 2\n'
     rows = {  # supply: (lines, line end, source keys, expected good values in bar(g) or a bad reason)
-        "prefix-raw": (["P1: 63.87 bar"], "\n", "", "not a number"),
-        "prefix": (["P1: 63.87 bar"], "\n", 'pattern = \'P1:\\s*(?P<value>\\S+)\\s*(?P<unit>\\w+)\'\n', [63.87]),
-        "comma-raw": (["63,75 bar"], "\n", "", "decimal point"),
-        "comma": (["63,75 bar"], "\n", 'decimal = ","\n', [63.75]),
-        "psi": (["925.3 psi"], "\n", "", [None]),
-        "header-raw": (["timestamp,P1 (bar)", f"{utc:%Y-%m-%dT%H:%M:%SZ},64.02"], "\n",
-                       'delimiter = ","\ntime_column = 1\n', ([64.02], "not a number")),
-        "header": (["timestamp,P1 (bar)", f"{utc:%Y-%m-%dT%H:%M:%SZ},64.02"], "\n",
-                   'delimiter = ","\ntime_column = "timestamp"\nvalue_column = "P1 (bar)"\nheader_lines = 1\n', [64.02]),
-        "space": ([f"{local:%Y-%m-%d %H:%M:%S},64.02"], "\n", 'delimiter = ","\ntime_column = 1\nvalue_column = 2\n',
-                  [64.02]),
-        "german": ([f"{berlin:%d.%m.%Y %H:%M:%S};64,02"], "\n",
+        "prefix-raw": (lines(lambda t, v: f"P1: {v:.2f} bar"), "\n", "", "not a number"),
+        "prefix": (lines(lambda t, v: f"P1: {v:.2f} bar"), "\n",
+                   'pattern = \'P1:\\s*(?P<value>\\S+)\\s*(?P<unit>\\w+)\'\n', [64.02, 64.01, 64.0]),
+        "comma-raw": (lines(lambda t, v: f"{v:.2f} bar".replace(".", ",")), "\n", "", "decimal point"),
+        "comma": (lines(lambda t, v: f"{v:.2f} bar".replace(".", ",")), "\n", 'decimal = ","\n', [64.02, 64.01, 64.0]),
+        "psi": (["925.3 psi", "925.2 psi", "925.1 psi"], "\n", "", None),
+        "header-raw": (["timestamp,P1 (bar)"] + lines(lambda t, v: f"{t.astimezone(dt.UTC):%Y-%m-%dT%H:%M:%SZ},{v:.2f}"),
+                       "\n", 'delimiter = ","\ntime_column = 1\n', ([64.02, 64.01, 64.0], "not a number")),
+        "header": (["timestamp,P1 (bar)"] + lines(lambda t, v: f"{t.astimezone(dt.UTC):%Y-%m-%dT%H:%M:%SZ},{v:.2f}"),
+                   "\n", 'delimiter = ","\ntime_column = "timestamp"\nvalue_column = "P1 (bar)"\nheader_lines = 1\n',
+                   [64.02, 64.01, 64.0]),
+        "space": (lines(lambda t, v: f"{t:%Y-%m-%d %H:%M:%S},{v:.2f}"), "\n", csv_keys, [64.02, 64.01, 64.0]),
+        "german": (lines(lambda t, v: f"{t.astimezone(zone):%d.%m.%Y %H:%M:%S};{v:.2f}".replace(".", ",")
+                         .replace(",", ".", 2)), "\n",
                    'delimiter = ";"\ndecimal = ","\ntime_column = 1\nvalue_column = 2\n'
-                   'time_format = "%d.%m.%Y %H:%M:%S"\ntimezone = "Europe/Berlin"\n', [64.02]),
-        "two-raw": ([f"{local:%Y-%m-%dT%H:%M:%S},21.3,64.02"], "\n", 'delimiter = ","\ntime_column = 1\n',
+                   'time_format = "%d.%m.%Y %H:%M:%S"\ntimezone = "Europe/Berlin"\n', [64.02, 64.01, 64.0]),
+        "two-raw": (lines(lambda t, v: f"{t:%Y-%m-%dT%H:%M:%S},21.3,{v:.2f}"), "\n", 'delimiter = ","\ntime_column = 1\n',
                     "2 value columns"),
-        "two": ([f"{local:%Y-%m-%dT%H:%M:%S},21.3,64.02"], "\n", 'delimiter = ","\ntime_column = 1\nvalue_column = 3\n',
-                [64.02]),
-        "epoch": ([f"{int(utc.timestamp())},64.02"], "\n",
-                  'delimiter = ","\ntime_column = 1\nvalue_column = 2\ntime_format = "epoch"\n', [64.02]),
-        "epoch-raw": ([f"{int(utc.timestamp())},64.02"], "\n", 'delimiter = ","\ntime_column = 1\nvalue_column = 2\n',
-                      "time_format"),
+        "two": (lines(lambda t, v: f"{t:%Y-%m-%dT%H:%M:%S},21.3,{v:.2f}"), "\n",
+                'delimiter = ","\ntime_column = 1\nvalue_column = 3\n', [64.02, 64.01, 64.0]),
+        "epoch": (lines(lambda t, v: f"{int(t.timestamp())},{v:.2f}"), "\n", csv_keys + 'time_format = "epoch"\n',
+                  [64.02, 64.01, 64.0]),
+        "epoch-raw": (lines(lambda t, v: f"{int(t.timestamp())},{v:.2f}"), "\n", csv_keys, "time_format"),
         "cr": (["64.0", "63.9", "63.8", "63.7"], "\r", "", [64.0, 63.9, 63.8, 63.7]),
         "crlf": (["64.0", "63.9", "63.8", "63.7"], "\r\n", "", [64.0, 63.9, 63.8, 63.7]),
-        "ahead": ([f"{local:%Y-%m-%dT%H:%M:%S},64.0", f"{local.replace(year=local.year + 1):%Y-%m-%dT%H:%M:%S},9.0",
-                   f"{local + dt.timedelta(seconds=1):%Y-%m-%dT%H:%M:%S},63.9"], "\n",
-                  'delimiter = ","\ntime_column = 1\nvalue_column = 2\n', [64.0, 63.9]),
-        "backwards": ([f"{local:%Y-%m-%dT%H:%M:%S},64.0", f"{local - dt.timedelta(hours=1):%Y-%m-%dT%H:%M:%S},63.0",
-                       f"{local + dt.timedelta(seconds=1):%Y-%m-%dT%H:%M:%S},63.9"], "\n",
-                      'delimiter = ","\ntime_column = 1\nvalue_column = 2\n', [64.0, 63.9]),
+        "ahead": ([f"{at(0):%Y-%m-%dT%H:%M:%S},64.0", f"{at(1).replace(year=local.year + 1):%Y-%m-%dT%H:%M:%S},9.0"]
+                  + [f"{at(i):%Y-%m-%dT%H:%M:%S},{64.0 - 0.1 * i:.1f}" for i in (2, 3)], "\n", csv_keys,
+                  [64.0, 63.8, 63.7]),
+        "backwards": ([f"{at(0):%Y-%m-%dT%H:%M:%S},64.0", f"{at(-3600):%Y-%m-%dT%H:%M:%S},63.0"]
+                      + [f"{at(i):%Y-%m-%dT%H:%M:%S},{64.0 - 0.1 * i:.1f}" for i in (2, 3)], "\n", csv_keys,
+                      [64.0, 63.8, 63.7]),
     }
+    utc = local.astimezone(dt.UTC)
     text = DEMO
     for sid, (lines, end, keys, _) in rows.items():
         log = tmp_path / f"{sid}.log"
@@ -231,17 +240,17 @@ def test_every_row_of_the_issue_through_watch_and_samples(tmp_path, capsys):
         got = _export(tmp_path, prof, sid)
         good = [r for r in got if r["status"] == "good"]
         assert all(r["kind"] == "raw" and r["stream"] == "pressure" and r["unit"] == "Pa(a)" for r in got), sid
-        if isinstance(expect, tuple):     # the header line is a bad sample, the data line good
+        if expect is None:                # the unit on the line, not the profile's bar
+            assert [float(r["value_si"]) for r in good] == pytest.approx([p * PSI + amb for p in (925.3, 925.2, 925.1)])
+        elif isinstance(expect, tuple):     # the header line is a bad sample, the data line good
             assert [_bar(r, amb) for r in good] == expect[0]
             assert [expect[1] in r["reason"] for r in got if r["status"] == "bad"] == [True], (sid, got)
         elif isinstance(expect, str):     # declared otherwise: a bad sample with its reason, never a good one
             assert not good and got and all(expect in r["reason"] for r in got if r["status"] == "bad"), (sid, got)
-        elif sid == "psi":                # the unit on the line, not the profile's bar
-            assert [float(r["value_si"]) for r in good] == pytest.approx([925.3 * PSI + amb])
         else:
             assert [_bar(r, amb) for r in good] == expect, (sid, got)
-    stamps = {r["time"] for r in _export(tmp_path, prof, "space")}
-    assert stamps == {f"{utc:%Y-%m-%dT%H:%M:%S}.000000Z"}           # the line's own time, in UTC
+    stamps = [r["time"] for r in _export(tmp_path, prof, "space")]
+    assert stamps == [f"{utc + dt.timedelta(seconds=i):%Y-%m-%dT%H:%M:%S}.000000Z" for i in range(3)]  # own, in UTC
     (ahead,) = [r for r in _export(tmp_path, prof, "ahead") if r["status"] == "bad"]
     assert "after the computer's clock" in ahead["reason"] and ahead["time"].startswith(str(local.year + 1))
     (back,) = [r for r in _export(tmp_path, prof, "backwards") if r["status"] == "bad"]
@@ -250,7 +259,7 @@ def test_every_row_of_the_issue_through_watch_and_samples(tmp_path, capsys):
     capsys.readouterr()
     assert main(["--journal", str(tmp_path / "j.sqlite3"), "status", str(prof), "--json"]) == 0
     status = {s["id"]: s for s in json.loads(capsys.readouterr().out)["supplies"]}
-    assert status["ahead"]["live"]["pressure_gauge_pa"] == pytest.approx(63.9e5)
+    assert status["ahead"]["live"]["pressure_gauge_pa"] == pytest.approx(63.7e5)
     assert "after the computer's clock" in status["ahead"]["last_bad_sample"]["reason"]
     assert status["prefix-raw"]["live"] is None and status["prefix-raw"]["last_bad_sample"]["status"] == "bad"
 

@@ -137,7 +137,7 @@ class ModbusSource:
         crc_before = _CRC.count
         try:
             if not self.client.connected and not self.client.connect():
-                return Sample(now, None, False, self._connect_error())
+                return Sample(now, None, False, self._connect_error(), reached=False)
             call = self.client.read_input_registers if self.input else self.client.read_holding_registers
             r = call(self.register, count=register_count(self.fmt), device_id=self.device)
         except ModbusIOException:
@@ -145,14 +145,15 @@ class ModbusSource:
                 self.client.close()
             if _CRC.count > crc_before:
                 return Sample(now, None, False, f"{self.where}: CRC error in the answer (noise on the line, or a "
-                                                "wrong baud or parity)")
-            return Sample(now, None, False, f"{self.where}: no response (wrong unit id, baud, parity or wiring?)")
+                                                "wrong baud or parity)", reached=False)
+            return Sample(now, None, False, f"{self.where}: no response (wrong unit id, baud, parity or wiring?)",
+                          reached=False)
         except (ModbusException, OSError) as exc:
             self.client.close()
-            return Sample(now, None, False, f"{self.where}: {exc}")
+            return Sample(now, None, False, f"{self.where}: {exc}", reached=False)
         if r.isError():
             return Sample(now, None, False, f"{self.where}: the device refused the read (exception code "
-                                            f"{getattr(r, 'exception_code', '?')}: no such register?)")
+                                            f"{getattr(r, 'exception_code', '?')}: no such register?)", reached=False)
         try:
             return Sample(now, self.convert(decode(r.registers, self.fmt)), True)
         except InputError as exc:

@@ -29,6 +29,8 @@ class Sample:
     good: bool
     why: str = ""
     implausible: bool = False
+    #: False when the source could not be reached or gave no answer (the watcher backs off)
+    reached: bool = True
 
     @property
     def status(self) -> str:
@@ -111,6 +113,10 @@ class Plausibility:
         self.lo, self.hi, self.band, self.rate, self.rel = lo, hi, band, rate_per_s, relative_rate_per_s
         self.last = last
         self.pending: list[Sample] = []
+        #: whether a sample of this run was confirmed yet: the first ones have no trend to be
+        #: judged against (or only an old one), so they wait for the next to agree
+        self.started = False
+        self.chains: list[list[Sample]] = []
 
     def allowed(self, value: float, dt_s: float) -> float:
         """The largest change from ``value`` the source could make in ``dt_s``."""
@@ -126,10 +132,9 @@ class Plausibility:
                                            f"{self.lo:.6g} to {self.hi:.6g} allowed)")
         if s.value is None or not s.good:
             # a sample that did not read confirms nothing: what was held stays unconfirmed
-            return self._implausible() + [s] if self.pending else [s]
-        if self.last is None:
-            self.last = s
-            return [s]
+            return self._implausible() + [s] if self.pending and self.started else [s]
+        if self.last is None or not self.started:
+            return self._start(s)
         if not self.pending:
             if self._near(self.last, s):
                 self.last = s
@@ -151,15 +156,37 @@ class Plausibility:
         self.pending = [s]
         return out
 
+    def _start(self, s: Sample) -> list[Sample]:
+        """The first samples of a run have no trend to be judged against (or only an old one):
+        they gather in chains of samples that agree with each other; the first chain that
+        :data:`CONFIRM_SAMPLES` samples join is confirmed, the samples of the others are
+        implausible."""
+        chain = next((c for c in self.chains if self._near(c[-1], s)), None)
+        if chain is None:
+            self.chains.append([s])
+            return []
+        chain.append(s)
+        if len(chain) <= CONFIRM_SAMPLES:
+            return []
+        self.pending = [x for c in self.chains if c is not chain for x in c]
+        out = self._implausible() + chain
+        self.chains = []
+        self.last, self.started = chain[-1], True
+        return sorted(out, key=lambda x: x.at)
+
     def _implausible(self) -> list[Sample]:
         last = self.last
-        assert last is not None and last.value is not None
-        out = [replace(x, good=False, implausible=True,
-                       why=f"departs from the trend ({last.value:.6g} at {last.at:%H:%M:%S}) by more than the supply "
-                           "could change, not confirmed by the next samples") for x in self.pending]
+        if last is not None and last.value is not None and self.started:
+            why = (f"departs from the trend ({last.value:.6g} at {last.at:%H:%M:%S}) by more than the supply could "
+                   "change, not confirmed by the next samples")
+        else:
+            why = "not confirmed by the next samples (they disagree by more than the supply could change)"
+        out = [replace(x, good=False, implausible=True, why=why) for x in self.pending]
         self.pending = []
         return out
 
     def flush(self) -> list[Sample]:
         """The samples still held (the watch stops): implausible, never confirmed."""
-        return self._implausible() if self.pending and self.last is not None else []
+        self.pending += [x for c in self.chains for x in c]
+        self.chains = []
+        return sorted(self._implausible(), key=lambda x: x.at) if self.pending else []

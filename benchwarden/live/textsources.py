@@ -37,7 +37,7 @@ __all__ = ["READ_BYTES", "PARSE_BUDGET_S", "MAX_WAITING_LINES", "LineReader", "F
 #: A poll reads at most this many bytes of a log.
 READ_BYTES = 1 << 20
 #: A poll spends at most this long parsing lines [s]; the rest wait for the next poll.
-PARSE_BUDGET_S = 1.0
+PARSE_BUDGET_S = 0.5
 #: Lines waiting to be parsed are capped (a serial line that floods): the oldest are dropped.
 MAX_WAITING_LINES = 10_000
 
@@ -194,7 +194,7 @@ class FileSource:
         if self.fd is None:
             why = self._open()
             if why is not None:
-                return [Sample(now, None, False, why)]
+                return [Sample(now, None, False, why, reached=False)]
         if not self.fifo and self._truncated():
             self.pos, self.head = 0, b""
             self.splitter = Splitter()
@@ -274,7 +274,7 @@ class SerialSource:
             self.quiet_told = False
         elif quiet > self.timeout_s and not self.quiet_told:
             self.quiet_told = True
-            out.append(Sample(now, None, False, f"no line from {self.where} for {quiet:.0f} s"))
+            out.append(Sample(now, None, False, f"no line from {self.where} for {quiet:.0f} s", reached=False))
         return out
 
     def read(self, now: dt.datetime) -> Sample:

@@ -41,6 +41,9 @@ TEMPERATURE_TOLERANCE_K = 0.05
 #: Pressure transducers read far finer than their accuracy: without a stated resolution the
 #: samples are kept within 0.01 % of the span (a 4½-digit display; benchwarden default).
 SPAN_RESOLUTION = 1e-4
+#: A poll stops starting further sources after this long [s] (they are read at the next poll,
+#: first): with sources that time out, ``watch --for D`` still ends within a few seconds of D.
+POLL_BUDGET_S = 1.0
 #: A sample dated more than this ahead of the computer's clock is bad [s].
 FUTURE_S = 60.0
 #: The widest opening a cylinder empties through: its valve's bore, taken generously (cylinder
@@ -131,6 +134,7 @@ class Watcher:
         self.wallclock = wallclock
         self.store = SampleStore(journal)
         self.feeds: list[Feed] = []
+        self.turn = 0
         bench = prof.bench.name
         room_t = prof.room.temperature_source if prof.room is not None else None
         for s in prof.supplies:
@@ -207,11 +211,17 @@ class Watcher:
         sample, the back-off and, in time, a silent gauge."""
         stored = 0
         mono = self.monotonic()
-        for f in self.feeds:
+        began = time.monotonic()
+        n = len(self.feeds)
+        for k in range(n):
+            f = self.feeds[(self.turn + k) % n]
             if f.started is None:
                 f.started = now
             if mono < f.due:
                 continue
+            if time.monotonic() - began > POLL_BUDGET_S:
+                self.turn = (self.turn + k) % n  # this one first next time
+                break
             samples: list[Sample] = []
             try:
                 if f.source is None:
@@ -225,7 +235,9 @@ class Watcher:
             decided = [d for raw in samples for d in f.filter(self._dated(f, raw, now))] if f.filter else []
             added, good = self._store(f, decided)
             stored += added
-            if good or (samples and f.config.kind in ("file", "serial")):
+            # the source answered (a sample held for confirmation, or one out of range, was read)
+            read = good or any(x.reached for x in samples)
+            if read or (samples and f.config.kind == "file"):
                 f.failures = 0
                 f.due = mono + f.interval_s
             elif not samples and f.source is not None and f.config.kind in ("file", "serial"):
