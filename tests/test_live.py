@@ -137,16 +137,22 @@ def test_every_register_format_from_a_real_modbus_server():
 
     from benchwarden.live.sources import modbus_tcp
 
-    values = {"int16": -1234, "uint16": 54321, "int32": -123456789, "uint32": 3_000_000_000,
-              "float32": 149.875, "float32-swapped": 149.875}
+    base = {"int16": -1234, "uint16": 54321, "int32": -123456789, "uint32": 3_000_000_000,
+            "float32": 149.875, "float64": 63.87123456789}
+    code = {"int16": ">h", "uint16": ">H", "int32": ">i", "uint32": ">I", "float32": ">f", "float64": ">d"}
+    # byte positions on the wire in ABCD notation, written out by hand (A the most significant byte)
+    wire = {"abcd": lambda n: list(range(n)), "dcba": lambda n: list(range(n))[::-1],
+            "badc": lambda n: [i ^ 1 for i in range(n)],
+            "cdab": lambda n: [2 * (n // 2 - 1 - i // 2) + i % 2 for i in range(n)]}
+    values = {f"{t}-{o}": v for t, v in base.items() for o in wire} | {"float32-swapped": 149.875}
     regs: list[int] = []
     where: dict[str, int] = {}
     for fmt, v in values.items():  # encoded independently with struct (IEEE 754, two's complement)
-        code = {"int16": ">h", "uint16": ">H", "int32": ">i", "uint32": ">I"}.get(fmt, ">f")
-        raw = struct.pack(code, v)
-        words = [int.from_bytes(raw[i:i + 2], "big") for i in range(0, len(raw), 2)]
+        t, o = fmt.replace("-swapped", "-cdab").split("-")
+        raw = struct.pack(code[t], v)
+        raw = bytes(raw[i] for i in wire[o](len(raw)))
         where[fmt] = len(regs)
-        regs += words[::-1] if fmt.endswith("swapped") else words
+        regs += [int.from_bytes(raw[i:i + 2], "big") for i in range(0, len(raw), 2)]
     port = _free_port()
 
     async def run() -> None:
@@ -908,3 +914,15 @@ def test_a_lying_gauge_gives_no_good_zero_no_live_zero_and_no_reserve_alarm(tmp_
     assert "ALARM" not in err and "live 64.0 bar(g)" in out
     with Journal(journal) as j:
         assert not [a for a in j.alarms(BENCH) if a.code == "alarm-reserve"]
+
+
+def test_the_live_line_shows_the_date_of_an_old_value_and_the_latest_reason_set_aside():
+    from benchwarden.render.display import Display, live_text
+    from benchwarden.workflows.cylinder import LatestSample
+    from benchwarden.workflows.session import LiveSupply
+
+    old = dt.datetime(2025, 3, 1, 9, 30, tzinfo=dt.UTC)   # not today, whenever the test runs
+    d = Display()
+    text = live_text(LiveSupply("n2-A", LatestSample(old, 64e5 + AMB, None, "64 bar"), None, None,
+                                "dated 2027-03-01T09:30:00+00:00, more than 60 s after the computer's clock"), d)
+    assert "at 2025-03-01 09:30:00" in text and "set aside: dated 2027" in text

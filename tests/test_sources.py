@@ -392,3 +392,8 @@ def test_profile_source_section_builds_the_source(tmp_path):
                        ('kind = "carrier-pigeon"\n', "kind")):
         with pytest.raises(ProfileError, match=words):
             parse_profile(demo.replace(anchor, anchor + "\n[supplies.source]\n" + bad), "b.toml")
+
+
+def test_a_missing_serial_text_port_says_so():
+    with pytest.raises(InputError, match="does not exist"):
+        SerialSource("/dev/benchwarden-no-such-port", BAR)
