@@ -926,3 +926,53 @@ def test_the_live_line_shows_the_date_of_an_old_value_and_the_latest_reason_set_
     text = live_text(LiveSupply("n2-A", LatestSample(old, 64e5 + AMB, None, "64 bar"), None, None,
                                 "dated 2027-03-01T09:30:00+00:00, more than 60 s after the computer's clock"), d)
     assert "at 2025-03-01 09:30:00" in text and "set aside: dated 2027" in text
+
+
+def test_a_restarted_watch_continues_the_recent_trend_and_an_old_one_is_confirmed_afresh(tmp_path):
+    from benchwarden.live.sources import Sample
+
+    values = iter([64e5 + AMB, 64e5 + AMB, 0.0 + AMB, 64e5 + AMB])
+
+    class Gauge:
+        def poll(self, now):
+            return [Sample(now, next(values), True)]
+
+        def close(self):
+            pass
+
+    prof = parse_profile(DEMO.replace(ANCHOR, ANCHOR + '[supplies.source]\nkind = "modbus-tcp"\nhost = "127.0.0.1"\n'
+                                      'interval = "1 s"\n', 1), "x.toml")
+    t0 = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    with Journal(tmp_path / "j.sqlite3") as j:
+        store = SampleStore(j)
+        sid = store.stream(BENCH, "n2-A", "pressure", 1000.0)
+        store.add(sid, [(t0.timestamp() - 2.0, 64e5 + AMB)])
+        clock = [0.0, t0]
+        w = Watcher(prof, j, open_source=lambda cfg, amb: Gauge(), monotonic=lambda: clock[0],
+                    wallclock=lambda: clock[1])
+        got = []
+        for _ in range(4):
+            w.poll(clock[1])
+            got.append(w.feeds[0].stored)
+            clock[0] += 1.0
+            clock[1] += dt.timedelta(seconds=1)
+        # a sample two seconds old is the trend: the first new one is good at once, the 0 bar held
+        assert got == [1, 2, 2, 4]
+        statuses = [r.status for r in store.rows(sid, t0.timestamp(), t0.timestamp() + 10)]
+        assert statuses == ["good", "good", "implausible", "good"]
+    # an hour-old sample is no trend: the first new ones wait for the next to agree
+    values = iter([64e5 + AMB] * 3)
+    with Journal(tmp_path / "k.sqlite3") as j:
+        store = SampleStore(j)
+        sid = store.stream(BENCH, "n2-A", "pressure", 1000.0)
+        store.add(sid, [(t0.timestamp() - 3600.0, 64e5 + AMB)])
+        clock = [0.0, t0]
+        w = Watcher(prof, j, open_source=lambda cfg, amb: Gauge(), monotonic=lambda: clock[0],
+                    wallclock=lambda: clock[1])
+        got = []
+        for _ in range(3):
+            w.poll(clock[1])
+            got.append(w.feeds[0].stored)
+            clock[0] += 1.0
+            clock[1] += dt.timedelta(seconds=1)
+        assert got == [0, 0, 3]

@@ -377,6 +377,10 @@ def test_profile_source_section_builds_the_source(tmp_path):
     filed = parse_profile(demo.replace(anchor, anchor + f'\n[supplies.source]\nkind = "file"\npath = "{log}"\n'),
                           "b.toml")
     assert isinstance(make_source(filed.supplies[0].source, 101325.0), FileSource)
+    for unit in (0, 255):  # Modbus/TCP unit ids 0–255
+        tcp = parse_profile(demo.replace(anchor, anchor + f'\n[supplies.source]\nkind = "modbus-tcp"\nhost = "h"\n'
+                                                          f'device = {unit}\nformat = "float64-dcba"\n'), "b.toml")
+        assert tcp.supplies[0].source.device == unit
     for bad, words in (('kind = "modbus-tcp"\n', "needs host"), ('kind = "file"\npath = "x"\nvalue_unit = "kg"\n',
                                                                   "pressure unit"),
                        ('kind = "serial"\nport = "/dev/x"\npattern = "("\n', "regular expression"),

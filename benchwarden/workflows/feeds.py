@@ -151,11 +151,19 @@ class Watcher:
             assert sid is not None
             self.feeds.append(Feed("room", "temperature", room_t, sid, room_t.interval))
 
-    def _filter(self, f: Feed) -> Plausibility:
-        """The feed's plausibility filter, continuing from the stream's latest good sample."""
+    def _filter(self, f: Feed, now: dt.datetime) -> Plausibility:
+        """The feed's plausibility filter, continuing from the stream's latest good sample (the
+        trend it judges against when that sample is recent: within :data:`SILENT_INTERVALS`
+        intervals, at least a minute)."""
         got = self.store.latest(f.stream)
         last = Sample(dt.datetime.fromtimestamp(got[0], dt.UTC), got[1], True) if got is not None else None
         f.latest = max(f.latest or -math.inf, got[0]) if got is not None else f.latest
+        recent = got is not None and 0 <= _ts(now) - got[0] <= max(60.0, SILENT_INTERVALS * f.interval_s)
+        flt = self._plausibility(f, last)
+        flt.started = recent
+        return flt
+
+    def _plausibility(self, f: Feed, last: Sample | None) -> Plausibility:
         if f.quantity == "temperature":  # a cylinder or a room: −120 to +125 °C
             return Plausibility(150.0, 400.0, TEMPERATURE_BAND_K, TEMPERATURE_RATE_K_S, last)
         amb = self.prof.ambient_pa
@@ -226,7 +234,7 @@ class Watcher:
             try:
                 if f.source is None:
                     f.source = self.open_source(f.config, self.prof.ambient_pa)
-                    f.filter = f.filter or self._filter(f)
+                    f.filter = f.filter or self._filter(f, now)
                 samples = f.source.poll(self.wallclock())
             except InputError as exc:
                 f.why = str(exc)
