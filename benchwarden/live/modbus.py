@@ -68,6 +68,24 @@ def serial_open_error(port: str, exc: BaseException) -> str:
     return f"cannot open the serial port {port}: {text}"
 
 
+def _tcp_error(where: str) -> str:
+    """Why a TCP connection to ``host:port`` fails (pymodbus only logs it)."""
+    import socket
+
+    host, _, port = where.rpartition(":")
+    try:
+        socket.create_connection((host, int(port)), timeout=1.0).close()
+    except socket.gaierror:
+        return f"unknown host {host!r}"
+    except ConnectionRefusedError:
+        return "connection refused (no Modbus/TCP server on that port)"
+    except TimeoutError:
+        return "no answer (the host is down, or a firewall drops the connection)"
+    except OSError as exc:
+        return exc.strerror or str(exc)
+    return "the server closed the connection"
+
+
 class Bus:
     """One pymodbus client shared by every source on one serial port (or one TCP address)."""
 
@@ -122,7 +140,7 @@ class ModbusSource:
 
     def _connect_error(self) -> str:
         if self.bus is None:
-            return f"cannot reach {self.where} (no Modbus/TCP server answers there)"
+            return f"cannot reach {self.where}: {_tcp_error(self.port)}"
         import serial
 
         try:  # pymodbus only logs why: open the port once ourselves to name the cause
