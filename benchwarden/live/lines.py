@@ -26,7 +26,7 @@ from typing import Any
 from benchwarden.errors import InputError
 
 __all__ = ["MAX_LINE_BYTES", "PATTERN_TIMEOUT_S", "OVERLONG", "LineError", "Dialect", "Parsed", "Splitter",
-           "parse_number", "parse_time", "parse_line"]
+           "parse_number", "parse_time", "parse_line", "split_columns"]
 
 #: A line longer than this [bytes] is a bad sample; an unfinished line never grows past it.
 MAX_LINE_BYTES = 4096
@@ -143,7 +143,7 @@ def _show(text: str) -> str:
     return repr(text[:40] + ("…" if len(text) > 40 else ""))
 
 
-def _columns(line: str, delimiter: str) -> list[str]:
+def split_columns(line: str, delimiter: str) -> list[str]:
     if delimiter == "whitespace":
         return line.split()
     return next(csv.reader([line], delimiter="\t" if delimiter in ("\t", "\\t") else delimiter))
@@ -189,7 +189,7 @@ def parse_line(line: str, dialect: Dialect, header: list[str] | None = None) -> 
     if dialect.delimiter is None:
         value, unit = parse_number(text, dialect.decimal)
         return Parsed(value, unit)
-    cells = _columns(text, dialect.delimiter)
+    cells = split_columns(text, dialect.delimiter)
     t_i = _index(dialect.time_column, header, "time_column") if dialect.time_column is not None else None
     if dialect.value_column is not None:
         v_i = _index(dialect.value_column, header, "value_column")

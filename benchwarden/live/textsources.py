@@ -29,6 +29,7 @@ from benchwarden.live.lines import (
     LineError,
     Splitter,
     parse_line,
+    split_columns,
 )
 from benchwarden.live.sample import Convert, Sample
 
@@ -74,9 +75,7 @@ class LineReader:
         text = raw.decode("utf-8", errors="replace")
         if self.seen <= self.dialect.header_lines:
             if self.dialect.delimiter is not None:
-                from benchwarden.live.lines import _columns
-
-                self.header = _columns(text.strip(), self.dialect.delimiter)
+                self.header = split_columns(text.strip(), self.dialect.delimiter)
             return None
         if not text.strip() or text.lstrip().startswith("#"):
             return None
