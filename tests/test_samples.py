@@ -179,6 +179,7 @@ def _bar(row: dict[str, str], amb: float) -> float:
     return round((float(row["value_si"]) - amb) / 1e5, 4)
 
 
+@pytest.mark.slow  # the command line end to end
 def test_every_row_of_the_issue_through_watch_and_samples(tmp_path, capsys):
     from benchwarden.storage.profile import parse_profile
 
@@ -264,6 +265,7 @@ def test_every_row_of_the_issue_through_watch_and_samples(tmp_path, capsys):
     assert status["prefix-raw"]["live"] is None and status["prefix-raw"]["last_bad_sample"]["status"] == "bad"
 
 
+@pytest.mark.slow  # the command line end to end
 def test_samples_bad_input_is_one_line_exit_2_and_nothing_written(tmp_path, capsys):
     prof = tmp_path / "bench.toml"
     prof.write_text(DEMO)
@@ -281,6 +283,7 @@ def test_samples_bad_input_is_one_line_exit_2_and_nothing_written(tmp_path, caps
         assert not out.exists()
 
 
+@pytest.mark.slow  # the command line end to end
 def test_samples_gives_raw_rows_trace_points_and_hourly_extremes_in_the_span(tmp_path, capsys):
     prof = tmp_path / "bench.toml"
     prof.write_text(DEMO)
