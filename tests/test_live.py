@@ -926,6 +926,9 @@ def test_the_live_line_shows_the_date_of_an_old_value_and_the_latest_reason_set_
     text = live_text(LiveSupply("n2-A", LatestSample(old, 64e5 + AMB, None, "64 bar"), None, None,
                                 "dated 2027-03-01T09:30:00+00:00, more than 60 s after the computer's clock"), d)
     assert "at 2025-03-01 09:30:00" in text and "set aside: dated 2027" in text
+    same_day = live_text(LiveSupply("n2-A", LatestSample(old, 64e5 + AMB, None, "64 bar"), None, None), d,
+                         today=old.date())
+    assert "at 09:30:00" in same_day and "2025" not in same_day
 
 
 def test_a_restarted_watch_continues_the_recent_trend_and_an_old_one_is_confirmed_afresh(tmp_path):

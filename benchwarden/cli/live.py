@@ -204,5 +204,6 @@ def _report(state: Any, d: Any, describe: Any, live_text: Any, err: Any) -> None
         lv = state.live.get(s.id)
         if lv is None:
             continue
-        print(f"{now:%H:%M:%S}  {s.id:<8} {live_text(lv, d)}; to reserve {d.hours(state.hours_left(s.id, now))}",
+        print(f"{now:%H:%M:%S}  {s.id:<8} {live_text(lv, d, now.date())}; "
+              f"to reserve {d.hours(state.hours_left(s.id, now))}",
               flush=True)
