@@ -184,7 +184,10 @@ class SampleStore:
         already stored is ignored. Returns how many were new."""
         if not rows:
             return 0
-        data = [_row(stream, r) for r in rows]
+        if all(len(r) == 2 for r in rows):  # the common case, kept fast: good or bad by the value
+            data = [(stream, float(r[0]), r[1], None if r[1] is not None else "bad", None) for r in rows]
+        else:
+            data = [_row(stream, r) for r in rows]
         return int(self.journal.write(lambda db: db.executemany(
             "INSERT OR IGNORE INTO samples(stream, t, value, status, reason) VALUES (?, ?, ?, ?, ?)",
             data).rowcount))
