@@ -979,3 +979,24 @@ def test_a_restarted_watch_continues_the_recent_trend_and_an_old_one_is_confirme
             clock[0] += 1.0
             clock[1] += dt.timedelta(seconds=1)
         assert got == [0, 0, 3]
+
+
+def test_a_port_another_program_holds_is_named_busy():
+    import serial
+
+    from benchwarden.live.sources import SerialSource, modbus_rtu
+
+    master, slave = os.openpty()
+    name = os.ttyname(slave)
+    holder = serial.Serial(name, exclusive=True)  # another program has the port
+    try:
+        src = modbus_rtu(name, 9600, "N", 1, 0, "float32", lambda x: x, timeout_s=0.3)
+        s = src.read(dt.datetime.now(dt.UTC))
+        src.close()
+        assert not s.good and "busy" in s.why
+        with pytest.raises(Exception, match="busy"):
+            SerialSource(name, lambda x: x)
+    finally:
+        holder.close()
+        os.close(master)
+        os.close(slave)

@@ -144,7 +144,7 @@ class ModbusSource:
         import serial
 
         try:  # pymodbus only logs why: open the port once ourselves to name the cause
-            serial.Serial(self.port, **self.bus.settings, timeout=0).close()
+            serial.Serial(self.port, **self.bus.settings, timeout=0, exclusive=True).close()
         except Exception as exc:  # noqa: BLE001 - pyserial raises termios.error, OSError, ValueError, ...
             return f"{self.where}: {serial_open_error(self.port, exc)}"
         return f"cannot open {self.port} for {self.where}"

@@ -235,7 +235,7 @@ class SerialSource:
         self.quiet_told = False
         try:
             self.port: Any = serial.Serial(port, baudrate=baud, timeout=0.2, parity=parity, bytesize=bytesize,
-                                           stopbits=stopbits)
+                                           stopbits=stopbits, exclusive=True)  # one port, one connection
         except Exception as exc:  # noqa: BLE001 - pyserial raises termios.error, OSError, ValueError, ...
             raise InputError(serial_open_error(port, exc)) from None
         self.stop = threading.Event()
