@@ -184,6 +184,7 @@ class SampleStore:
         already stored is ignored. Returns how many were new."""
         if not rows:
             return 0
+        data: list[tuple[int, float, float | None, str | None, str | None]]
         if all(len(r) == 2 for r in rows):  # the common case, kept fast: good or bad by the value
             data = [(stream, float(r[0]), r[1], None if r[1] is not None else "bad", None) for r in rows]
         else:
