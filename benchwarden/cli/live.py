@@ -39,8 +39,8 @@ def configure(sub: Any, name: str) -> None:
                                   "docs/journal-schema.md describes the journal's tables.")
         s.add_argument("profile", help="bench profile (TOML)")
         s.add_argument("supply", help="supply id, e.g. n2-A")
-        s.add_argument("--from", dest="since", metavar="TIME", help="first time, ISO 8601 (default: the first sample)")
-        s.add_argument("--to", dest="until", metavar="TIME", help="last time, ISO 8601 (default: the last sample)")
+        s.add_argument("--from", dest="from", metavar="TIME", help="first time, ISO 8601 (default: the first sample)")
+        s.add_argument("--to", dest="to", metavar="TIME", help="last time, ISO 8601 (default: the last sample)")
         s.add_argument("--format", choices=["csv", "jsonl"], default="csv", help="csv (default) or jsonl")
         s.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output (never over an "
                                                        "existing file)")
@@ -119,7 +119,7 @@ def cmd_samples(args: argparse.Namespace) -> int:
     from benchwarden.workflows.sample_export import supply_samples
 
     journal = getattr(args, "journal", None)
-    rows = supply_samples(args.profile, args.supply, journal, args.since, args.until)
+    rows = supply_samples(args.profile, args.supply, journal, getattr(args, "from"), args.to)
     text = (samples_jsonl if args.format == "jsonl" else samples_csv)(rows)
     if args.output:
         out = write_output(args.output, text, protected=(args.profile, journal))
