@@ -401,3 +401,14 @@ def test_profile_source_section_builds_the_source(tmp_path):
 def test_a_missing_serial_text_port_says_so():
     with pytest.raises(InputError, match="does not exist"):
         SerialSource("/dev/benchwarden-no-such-port", BAR)
+
+
+def test_a_source_that_never_agrees_with_itself_holds_at_most_a_bounded_number_of_samples():
+    from benchwarden.live.sample import MAX_HELD
+
+    f = Plausibility(0.0, 300e5, 1e5, 0.0)   # a 1 bar band, no drift allowed
+    out = []
+    for i in range(500):   # 0, 2, 4, ... 298 bar, round and round: no sample agrees with a recent one
+        out += f(Sample(NOW + dt.timedelta(seconds=i), (i % 150) * 2e5, True))
+        assert sum(len(c) for c in f.chains) <= MAX_HELD
+    assert out and all(s.status == "implausible" for s in out)

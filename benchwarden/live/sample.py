@@ -97,6 +97,8 @@ class Converter:
 
 #: A departing sample is confirmed by this many following samples that agree with it.
 CONFIRM_SAMPLES = 2
+#: At most this many samples are held for confirmation at the start of a run.
+MAX_HELD = 50
 
 
 class Plausibility:
@@ -105,8 +107,8 @@ class Plausibility:
     steady rate, and an exponential blow-down with time constant τ = 1/``relative_rate``: what
     the supply could physically change in Δt) is held until :data:`CONFIRM_SAMPLES` following
     samples agree with it (a real step: a new cylinder, a valve opened wide) — all good — or the
-    trend resumes or a bad sample comes between — the held ones implausible. Returns the samples that are decided, in time
-    order."""
+    trend resumes or a bad sample comes between — the held ones implausible. Returns the samples
+    that are decided, in time order."""
 
     def __init__(self, lo: float, hi: float, band: float, rate_per_s: float, last: Sample | None = None,
                  relative_rate_per_s: float = 0.0) -> None:
@@ -164,7 +166,10 @@ class Plausibility:
         chain = next((c for c in self.chains if self._near(c[-1], s)), None)
         if chain is None:
             self.chains.append([s])
-            return []
+            if sum(len(c) for c in self.chains) <= MAX_HELD:
+                return []
+            self.pending = self.chains.pop(0)  # a source that never agrees with itself: the oldest go
+            return self._implausible()
         chain.append(s)
         if len(chain) <= CONFIRM_SAMPLES:
             return []

@@ -70,7 +70,7 @@ class LineReader:
     def sample(self, raw: bytes, at: dt.datetime) -> Sample | None:
         """The sample of one line (None for a header, blank or ``#`` comment line)."""
         self.seen += 1
-        if raw is OVERLONG or raw == OVERLONG:
+        if raw == OVERLONG:
             return Sample(self._stamp(at), None, False, f"line longer than {MAX_LINE_BYTES} bytes")
         text = raw.decode("utf-8", errors="replace")
         if self.seen <= self.dialect.header_lines:
