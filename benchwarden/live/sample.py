@@ -179,9 +179,11 @@ class Plausibility:
         self.last, self.started = chain[-1], True
         return sorted(out, key=lambda x: x.at)
 
-    def _implausible(self) -> list[Sample]:
+    def _implausible(self, why: str = "") -> list[Sample]:
         last = self.last
-        if last is not None and last.value is not None and self.started:
+        if why:
+            pass
+        elif last is not None and last.value is not None and self.started:
             why = (f"departs from the trend ({last.value:.6g} at {last.at:%H:%M:%S}) by more than the supply could "
                    "change, not confirmed by the next samples")
         else:
@@ -194,4 +196,5 @@ class Plausibility:
         """The samples still held (the watch stops): implausible, never confirmed."""
         self.pending += [x for c in self.chains for x in c]
         self.chains = []
-        return sorted(self._implausible(), key=lambda x: x.at) if self.pending else []
+        why = "not confirmed: the watch stopped before the next samples came"
+        return sorted(self._implausible(why), key=lambda x: x.at) if self.pending else []
