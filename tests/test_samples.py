@@ -338,3 +338,63 @@ def test_a_journal_from_schema_4_opens_and_its_samples_keep_their_meaning(tmp_pa
         store = SampleStore(j)
         assert store.latest(1) == (T0, 65e5)
         assert [(r.status, r.value) for r in store.rows(1, 0, 4e9)] == [("good", 65e5), ("bad", None)]
+
+
+@pytest.mark.slow  # the command line end to end
+@pytest.mark.parametrize("how", ["rename", "copy-truncate"])
+def test_a_rotated_log_through_the_watcher_and_samples_loses_no_line_and_reads_none_twice(tmp_path, capsys, how):
+    import shutil
+
+    from benchwarden.storage.profile import parse_profile
+    from benchwarden.workflows.feeds import Watcher
+
+    log = tmp_path / "p.log"
+    text = DEMO.replace('gauge = { range = "315 bar", accuracy_class = 1.6 }\n',
+                        'gauge = { range = "315 bar", accuracy_class = 1.6 }\n[supplies.source]\nkind = "file"\n'
+                        f'path = "{log}"\ndelimiter = ","\ntime_column = 1\nvalue_column = 2\ninterval = "1 s"\n', 1)
+    prof_path = tmp_path / "bench.toml"
+    prof_path.write_text(text)
+    prof = parse_profile(text, "bench.toml")
+    t0 = dt.datetime.now(dt.UTC).replace(microsecond=0) - dt.timedelta(minutes=20)
+    stamp = iter(range(100))
+
+    def lines(n: int) -> list[str]:   # the logger: one line a second, 0.01 bar less each
+        out = []
+        for _ in range(n):
+            i = next(stamp)
+            out.append(f"{(t0 + dt.timedelta(seconds=i)).isoformat()},{64.0 - 0.01 * i:.2f}")
+        return out
+
+    def append(rows: list[str]) -> None:
+        with open(log, "a") as fh:
+            fh.writelines(r + "\n" for r in rows)
+
+    clock = [0.0]
+    with Journal(tmp_path / "j.sqlite3") as j:
+        w = Watcher(prof, j, monotonic=lambda: clock[0])
+
+        def poll() -> None:
+            clock[0] += 1.0
+            w.poll(dt.datetime.now(dt.UTC))
+
+        append(lines(5))
+        poll()
+        append(lines(2))                        # written just before the rotation
+        if how == "rename":
+            log.rename(tmp_path / "p.log.1")
+        else:
+            shutil.copy(log, tmp_path / "p.log.1")
+            log.write_text("")
+        append(lines(4))
+        poll()
+        append(lines(2))
+        poll()
+        w.close()
+    assert main(["--journal", str(tmp_path / "j.sqlite3"), "samples", str(prof_path), "n2-A"]) == 0
+    rows = list(csv.DictReader(io.StringIO(capsys.readouterr().out)))
+    got = [round((float(r["value_si"]) - prof.ambient_pa) / 1e5, 2) for r in rows if r["status"] == "good"]
+    assert [r["status"] for r in rows] == ["good"] * len(rows)
+    expected = [round(64.0 - 0.01 * i, 2) for i in range(13)]
+    if how == "copy-truncate":                  # the 2 lines written between the last read and the copy are
+        expected = expected[:5] + expected[7:]  # in the copy only: the new file is read from its start
+    assert got == expected
