@@ -17,6 +17,7 @@ from typing import Any, Literal
 from pydantic import (
     Field,
     ValidationError,
+    field_validator,
     model_validator,
 )
 
@@ -306,6 +307,24 @@ class DisplaySettings(_Model):
     """Unit pressures are shown in (gauge marked (g) or psig, absolute (a) or psia); JSON stays SI."""
 
 
+class LabSection(_Model):
+    url: str = Field(max_length=500)
+    """The lab database, a PostgreSQL connection URL *without* a password
+    (``postgresql://bw_bench_bench_2@lab-db.example/benchwarden?sslmode=verify-full``); the password
+    or certificate comes from PostgreSQL's usual sources (PGPASSWORD, ~/.pgpass, a service file)."""
+    bench_id: str = Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9_-]{0,39}$")
+    """This bench's id in the lab (letters, digits, '-' and '_'; at most 40)."""
+
+    @field_validator("url")
+    @classmethod
+    def _no_password(cls, v: str) -> str:
+        if not re.match(r"^postgres(ql)?://", v):
+            raise ValueError("the lab url must be a PostgreSQL URL (postgresql://user@host/database)")
+        if re.match(r"^postgres(ql)?://[^/@]*:[^/@]*@", v) or re.search(r"[?&]password=", v):
+            raise ValueError("the lab url must not hold a password: use PGPASSWORD, ~/.pgpass or a service file")
+        return v
+
+
 class _Located(InputError):
     """A check across sections, with the key it is about (for the line number)."""
 
@@ -324,6 +343,8 @@ class Profile(_Model):
     session: Session
     checklist: ChecklistConfig = Field(default_factory=ChecklistConfig)
     display: DisplaySettings = Field(default_factory=DisplaySettings)
+    lab: LabSection | None = None
+    """Ships this bench's record to a lab database (``lab push``; ``watch`` and the app push too)."""
 
     @model_validator(mode="after")
     def _cross(self) -> Profile:
