@@ -12,6 +12,7 @@ from __future__ import annotations
 import os
 import re
 import tempfile
+import unicodedata
 from collections.abc import Callable, Iterable
 from pathlib import Path
 
@@ -22,28 +23,38 @@ from benchwarden.units.constants import ATM_PA
 __all__ = ["write_output", "clean", "csv_cell", "session_csv"]
 
 _CONTROL = re.compile(r"\x1b\[[0-?]*[ -/]*[@-~]|\x1b\][^\x07\x1b]*(?:\x07|\x1b\\)?|\x1b.|[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+#: a number as text (a CSV cell that stays a number, sign and all)
+_NUMBER = re.compile(r"[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][-+]?[0-9]+)?")
 
 
 def clean(text: str) -> str:
-    """Text without escape sequences or control characters (newlines and tabs kept), so a
-    bench name or a note cannot retitle, clear or recolour the terminal.
+    """Text without escape sequences, control characters or invisible format characters
+    (Unicode category Cf: bidi overrides and isolates U+202A–U+202E and U+2066–U+2069, zero-width
+    characters; newlines and tabs kept), so a bench name or a note cannot retitle, clear or recolour the
+    terminal, nor display reversed.
 
-    >>> clean("bench\\x1b]0;owned\\x07 2\\x1b[2J")
-    'bench 2'
+    >>> clean("bench\\x1b]0;owned\\x07 2\\x1b[2J"), clean("N2\\u202e-A")
+    ('bench 2', 'N2-A')
     """
-    return _CONTROL.sub("", text)
+    text = _CONTROL.sub("", text)
+    if text.isascii():
+        return text
+    return "".join(c for c in text if unicodedata.category(c) != "Cf")
 
 
 def csv_cell(value: object) -> object:
-    """A CSV cell that a spreadsheet shows as text: a leading ``=``, ``+``, ``-`` or ``@`` in text
-    is quoted with an apostrophe (numbers stay numbers).
+    """A CSV cell that a spreadsheet shows as text: text beginning with ``=``, ``+``, ``-``, ``@``,
+    a tab or a carriage return is quoted with an apostrophe; numbers stay numbers, negative ones
+    too (OWASP "CSV injection" list of leading characters, from memory).
 
-    >>> csv_cell("=HYPERLINK(1)"), csv_cell("-0.5 bar"), csv_cell(3.5)
-    ("'=HYPERLINK(1)", "'-0.5 bar", 3.5)
+    >>> csv_cell("=HYPERLINK(1)"), csv_cell("-0.5 bar"), csv_cell("\\tx"), csv_cell("-50000.0"), csv_cell(3.5)
+    ("'=HYPERLINK(1)", "'-0.5 bar", "'\\tx", '-50000.0', 3.5)
     """
     if isinstance(value, str):
+        if value[:1] in ("\t", "\r") and not _NUMBER.fullmatch(value.strip()):
+            return "'" + clean(value)
         value = clean(value)
-        if value[:1] in ("=", "+", "-", "@"):
+        if value[:1] in ("=", "+", "-", "@") and not _NUMBER.fullmatch(value):
             return "'" + value
     return value
 

@@ -15,6 +15,7 @@ from benchwarden import units as u
 from benchwarden.core.gas import Gas, parse_gas
 from benchwarden.errors import InputError
 from benchwarden.units import quantities as q
+from benchwarden.units.limits import text_problem
 
 # ----------------------------------------------------------------------------- field types
 
@@ -60,19 +61,19 @@ def positive(value: float, what: str) -> float:
     return value
 
 
-_CONTROL_CHARS = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
-
-
 class ProfileModel(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True, arbitrary_types_allowed=True)
 
     @field_validator("*", mode="before")
     @classmethod
     def _no_control_characters(cls, v: Any) -> Any:
-        """Names and notes are shown on terminals and in files: no escape sequences or control
-        characters (a line break in a note is fine)."""
-        if isinstance(v, str) and _CONTROL_CHARS.search(v.replace("\n", "").replace("\t", "")):
-            raise InputError("control characters or escape sequences are not allowed in text")
+        """Names and notes are shown on terminals and in files: no escape sequences, control
+        characters or invisible format characters (bidi overrides and isolates, zero-width
+        characters; a line break or a tab in a note is fine)."""
+        if isinstance(v, str):
+            problem = text_problem(v)
+            if problem:
+                raise InputError(f"{problem} is not allowed in text")
         return v
 
 

@@ -25,6 +25,7 @@ from typing import TYPE_CHECKING, Literal
 
 from benchwarden.errors import InputError
 from benchwarden.units.constants import ATM_PA, BAR_PA, PSI_PA, T0_K, T_FULL_K
+from benchwarden.units.limits import check_quantity_text
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -88,9 +89,10 @@ def get_reference(key: str) -> Reference:
 # --------------------------------------------------------------------------------------
 # numbers
 
-_NUM = r"[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?|[-+]?(?:nan|inf|infinity)"
+# digits are ASCII only: Python's float() and ``\d`` also take Arabic-Indic or full-width digits
+_NUM = r"[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][-+]?[0-9]+)?|[-+]?(?:nan|inf|infinity)"
 _SPLIT = re.compile(rf"^\s*({_NUM})\s*(.*?)\s*$", re.IGNORECASE)
-_SEPARATOR = re.compile(r"^\s*[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[,_'\u2009\u202f]|\s+)\d")
+_SEPARATOR = re.compile(r"^\s*[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[,_'\u2009\u202f]|\s+)[0-9]")
 
 
 def split_number(text: str, what: str) -> tuple[float, str]:
@@ -99,6 +101,7 @@ def split_number(text: str, what: str) -> tuple[float, str]:
     1 L or 2 bar."""
     if not isinstance(text, str):
         text = str(text)
+    check_quantity_text(text, what)  # long, non-ASCII digits, invisible characters: refused at once
     if _SEPARATOR.match(text):
         raise InputError(
             f"{what} {shorten(text)!r}: write the number without thousands separators and with a "
