@@ -154,3 +154,166 @@ def test_unicode_digits_in_a_profile_quantity_are_refused(tmp_path, capsys):
     assert 'water_volume = "50 L"' in text
     prof.write_text(text.replace('water_volume = "50 L"', 'water_volume = "٥٠ L"', 1))
     _refused(["plan", str(prof)], capsys, "digits 0-9", "water_volume")
+
+
+# ----------------------------------------------------------------------------- 1. foreign databases
+
+
+def _db(path: Path, script: str, app_id: int = 0, version: int = 0) -> bytes:
+    import sqlite3
+
+    db = sqlite3.connect(path)
+    db.executescript(script + f"PRAGMA application_id = {app_id}; PRAGMA user_version = {version};")
+    db.commit()
+    db.close()
+    return path.read_bytes()
+
+
+def _untouched(path: Path, before: bytes) -> None:
+    assert path.read_bytes() == before
+    assert sorted(p.name for p in path.parent.iterdir() if p.name.startswith(path.name)) == [path.name]
+
+
+FOREIGN = {
+    # the issue's case: a `sessions` table, application id 0 (any other program's)
+    "sessions-id-0": ("CREATE TABLE sessions (id INTEGER, who TEXT);", 0, 0),
+    "sessions-id-0-version-1": ("CREATE TABLE sessions (id INTEGER, who TEXT);", 0, 1),
+    "v1-tables-and-one-more": ("CREATE TABLE sessions (id INTEGER); CREATE TABLE readings (id INTEGER); "
+                               "CREATE TABLE notes (id INTEGER); CREATE TABLE invoices (id INTEGER);", 0, 1),
+    "v2-tables-claiming-v1": ("CREATE TABLE sessions (id INTEGER); CREATE TABLE readings (id INTEGER); "
+                              "CREATE TABLE notes (id INTEGER); CREATE TABLE hold_tests (id INTEGER);", 0, 1),
+    "another-application-id": ("CREATE TABLE sessions (id INTEGER);", 0x12345678, 2),
+    "empty-database-of-another-program": ("", 0, 0),
+}
+
+
+@pytest.mark.parametrize("case", sorted(FOREIGN))
+def test_a_foreign_sqlite_database_is_never_written_to(case, tmp_path, capsys):
+    path = tmp_path / "other.db"
+    script, app_id, version = FOREIGN[case]
+    before = _db(path, script + "CREATE TABLE IF NOT EXISTS filler (x);" if not script else script, app_id, version)
+    for argv in (["reading", str(DEMO), "n2-A", "--pressure", "60 bar", "--at", "2026-12-01T09:00"],
+                 ["sessions"], ["status", str(DEMO)], ["plan", str(DEMO)], ["export", "1"]):
+        _refused(argv + ["--journal", str(path)], capsys, "not a benchwarden journal", "untouched")
+        _untouched(path, before)
+
+
+def test_a_journal_from_before_the_application_id_is_still_ours(tmp_path):
+    import sqlite3
+
+    from benchwarden.storage.journal import _MIGRATIONS, APPLICATION_ID, Journal
+
+    for version in (1, 2, 3):
+        path = tmp_path / f"v{version}.sqlite3"
+        _db(path, "".join(_MIGRATIONS[v] + ";" for v in range(1, version + 1)), 0, version)
+        with Journal(path) as j:
+            assert j.db.execute("PRAGMA application_id").fetchone()[0] == APPLICATION_ID
+        assert (tmp_path / f"v{version}.sqlite3.v{version}.bak").exists()
+        db = sqlite3.connect(tmp_path / f"v{version}.sqlite3.v{version}.bak")
+        assert db.execute("PRAGMA user_version").fetchone()[0] == version
+        db.close()
+
+
+# ----------------------------------------------------------------------------- 3. true words
+
+
+def _journal_with_a_reading(path: Path) -> None:
+    from benchwarden.storage.journal import Journal
+
+    with Journal(path) as j:
+        for i in range(200):
+            sid = j.start_session("b", None, f"2026-12-01T09:{i % 60:02d}:00")
+            j.add_note(sid, "2026-12-01T10:00", "n" * 300)
+
+
+def test_a_truncated_journal_gets_recovery_advice(tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    path = Path("j.sqlite3")
+    _journal_with_a_reading(path)
+    data = path.read_bytes()
+    path.write_bytes(data[: len(data) // 2])
+    err = _refused(["sessions", "--journal", str(path)], capsys, "damaged", "nothing was written",
+                   "sqlite3 j.sqlite3 .recover | sqlite3 recovered.sqlite3")
+    assert "not a benchwarden journal" not in err
+    (tmp_path / "j.sqlite3.v3.bak").write_bytes(b"")
+    for argv in (["status", str(DEMO)], ["reading", str(DEMO), "n2-A", "--pressure", "60 bar"]):
+        _refused(argv + ["--journal", str(path)], capsys, "damaged", "Restore j.sqlite3.v3.bak or recover")
+    assert path.read_bytes() == data[: len(data) // 2]
+
+
+def test_a_journal_opened_for_reading_says_read_only_when_written(tmp_path):
+    from benchwarden.errors import JournalError
+    from benchwarden.storage.journal import Journal
+
+    path = tmp_path / "j.sqlite3"
+    _journal_with_a_reading(path)
+    with Journal(path, readonly=True) as j:
+        assert len(j.sessions()) == 200
+        with pytest.raises(JournalError, match="is read-only: reading commands .* work; .* nothing was recorded"):
+            j.start_session("b", None, "2026-12-02T09:00")
+
+
+def test_a_full_disk_says_so_and_nothing_is_written(tmp_path):
+    # SQLITE_FULL made without filling a disk: a page limit on the connection (sqlite.org/pragma.html
+    # #pragma_max_page_count: "database or disk is full" when it is reached)
+    from benchwarden.errors import JournalError
+    from benchwarden.storage.journal import Journal
+
+    path = tmp_path / "j.sqlite3"
+    _journal_with_a_reading(path)
+    with Journal(path) as j:
+        pages = j.db.execute("PRAGMA page_count").fetchone()[0]
+        j.db.execute(f"PRAGMA max_page_count = {pages}")
+        with pytest.raises(JournalError, match="the disk is full; nothing was written"):
+            for _ in range(50):
+                j.add_note(1, "2026-12-02T09:00", "x" * 3000)
+        assert len(j.notes(1)) == 1 + sum(1 for a, t in j.notes(1) if t.startswith("x"))
+
+
+def _unshare(tmp_path: Path, script: str) -> str:
+    """Run ``script`` in a private mount namespace (its mounts vanish with it); skip where the
+    machine does not allow one."""
+    import shutil
+    import subprocess
+    import sys
+
+    if shutil.which("unshare") is None:
+        pytest.skip("no unshare here")
+    probe = subprocess.run(["unshare", "-m", "true"], capture_output=True)
+    if probe.returncode != 0:
+        pytest.skip("mount namespaces are not permitted here")
+    env = dict(os.environ, PY=sys.executable, DEMO=str(DEMO), MNT=str(tmp_path / "mnt"), PYTHONPATH=str(ROOT))
+    (tmp_path / "mnt").mkdir()
+    r = subprocess.run(["unshare", "-m", "sh", "-c", "set -u\nmount -t tmpfs -o size=256k none \"$MNT\" || exit 77\n"
+                        + script], capture_output=True, text=True, env=env, timeout=120)
+    if r.returncode == 77:
+        pytest.skip("tmpfs mounts are not permitted here")
+    assert r.returncode == 0, r.stderr
+    return r.stdout + r.stderr
+
+
+def test_a_read_only_mount_reads_and_refuses_writes_with_true_words(tmp_path):
+    out = _unshare(tmp_path, """
+export BENCHWARDEN_JOURNAL="$MNT/j.sqlite3"
+$PY -m benchwarden reading "$DEMO" n2-A --pressure "60 bar" --at 2026-12-01T09:00 >/dev/null; echo "first=$?"
+mount -o remount,ro "$MNT"
+$PY -m benchwarden status "$DEMO" --json >/dev/null; echo "status=$?"
+$PY -m benchwarden sessions; echo "sessions=$?"
+$PY -m benchwarden reading "$DEMO" n2-A --pressure "59 bar" --at 2026-12-01T10:00; echo "reading=$?"
+""")
+    assert "first=0" in out and "status=0" in out and "sessions=0" in out and "reading=2" in out, out
+    assert "is read-only: reading commands" in out and "not a benchwarden journal" not in out
+
+
+def test_a_full_disk_reads_and_refuses_writes_with_true_words(tmp_path):
+    out = _unshare(tmp_path, """
+export BENCHWARDEN_JOURNAL="$MNT/j.sqlite3"
+$PY -m benchwarden reading "$DEMO" n2-A --pressure "60 bar" --at 2026-12-01T09:00 >/dev/null; echo "first=$?"
+dd if=/dev/zero of="$MNT/fill" bs=4k 2>/dev/null
+$PY -m benchwarden reading "$DEMO" n2-A --pressure "59 bar" --at 2026-12-01T10:00; echo "reading=$?"
+$PY -m benchwarden status "$DEMO" --json >/dev/null; echo "status=$?"
+rm "$MNT/fill"
+$PY -m benchwarden status "$DEMO" --json >/dev/null; echo "after=$?"
+""")
+    assert "first=0" in out and "reading=2" in out and "status=0" in out and "after=0" in out, out
+    assert "the disk is full; nothing was written" in out and "not a benchwarden journal" not in out
