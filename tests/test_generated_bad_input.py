@@ -172,7 +172,7 @@ def test_output_never_overwrites_without_force_and_never_the_journal_or_profile(
         j.add_reading(sid, "s", "2026-12-01T09:05:00+00:00", 15e6, "149 bar", 293.15, "2026-12-01T09:05:00+00:00")
     before = journal.read_bytes()
     code, out, err = _run(["export", str(sid), "--output", str(journal), "--journal", str(journal)], capsys)
-    assert code == 2 and "journal or the profile in use" in err and journal.read_bytes() == before
+    assert code == 2 and "the journal, its -wal/-shm/-journal file or the profile" in err and journal.read_bytes() == before
     prof = tmp_path / "bench.toml"
     prof.write_text(Path(DEMO).read_text())
     code, out, err = _run(["checklist", str(prof), "--output", str(prof), "--force"], capsys)

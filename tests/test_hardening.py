@@ -317,3 +317,61 @@ $PY -m benchwarden status "$DEMO" --json >/dev/null; echo "after=$?"
 """)
     assert "first=0" in out and "reading=2" in out and "status=0" in out and "after=0" in out, out
     assert "the disk is full; nothing was written" in out and "not a benchwarden journal" not in out
+
+
+# ----------------------------------------------------------------------------- 2. side files
+
+
+def _spellings(tmp_path: Path, target: Path) -> list[str]:
+    """One path, spelt several ways: absolute, relative, through `..`, a symlink, a symlink to the
+    folder (all exist or not, as the target does)."""
+    (tmp_path / "sub").mkdir(exist_ok=True)
+    link = tmp_path / f"link-to-{target.name}"
+    if not link.is_symlink():
+        link.symlink_to(target)
+    folder_link = tmp_path / "folder-link"
+    if not folder_link.is_symlink():
+        folder_link.symlink_to(tmp_path)
+    return [str(target), os.path.relpath(target), str(tmp_path / "sub" / ".." / target.name), str(link),
+            str(folder_link / target.name)]
+
+
+@pytest.mark.parametrize("suffix", ["", "-wal", "-shm", "-journal"])
+def test_outputs_never_go_to_the_journal_or_its_side_files_whatever_force_says(suffix, tmp_path, capsys, monkeypatch):
+    # regression: `checklist … --output JOURNAL-wal --force` destroyed a committed reading in the WAL
+    from benchwarden.storage.journal import Journal
+
+    monkeypatch.chdir(tmp_path)
+    journal = tmp_path / "j.sqlite3"
+    with Journal(journal) as j:  # kept open: the reading stays in the write-ahead log
+        sid = j.start_session("b", None, "2026-12-01T09:00:00+00:00")
+        j.add_reading(sid, "s", "2026-12-01T09:05:00+00:00", 15e6, "149 bar", 293.15, "2026-12-01T09:05:00+00:00")
+        target = tmp_path / f"j.sqlite3{suffix}"
+        before = target.read_bytes() if target.exists() else None
+        for spelt in _spellings(tmp_path, target):
+            for argv in (["checklist", str(DEMO), "--output", spelt, "--force"],
+                         ["export", str(sid), "--output", spelt, "--force"]):
+                _refused(argv + ["--journal", str(journal)], capsys, "-wal/-shm/-journal", "choose another")
+                if suffix != "-shm":  # the shared-memory index changes whenever anyone reads the journal
+                    assert (target.read_bytes() if target.exists() else None) == before
+    with Journal(journal) as j:
+        assert [r.pressure_text for r in j.readings(sid)] == ["149 bar"]
+
+
+def test_outputs_never_go_to_the_profile_or_a_hard_link_of_the_journal(tmp_path, capsys, monkeypatch):
+    from benchwarden.storage.journal import Journal
+
+    monkeypatch.chdir(tmp_path)
+    prof = tmp_path / "bench.toml"
+    prof.write_text(DEMO.read_text())
+    journal = tmp_path / "j.sqlite3"
+    Journal(journal).close()
+    hard = tmp_path / "hard.sqlite3"
+    os.link(journal, hard)
+    before = journal.read_bytes()
+    for spelt in _spellings(tmp_path, prof):
+        _refused(["checklist", str(prof), "--output", spelt, "--force", "--journal", str(journal)], capsys,
+                 "choose another")
+    _refused(["checklist", str(prof), "--output", str(hard), "--force", "--journal", str(journal)], capsys,
+             "choose another")
+    assert prof.read_text() == DEMO.read_text() and journal.read_bytes() == before

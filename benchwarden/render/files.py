@@ -1,7 +1,8 @@
 """Writing output files safely, and text safe for a terminal or a spreadsheet.
 
 * :func:`write_output` — atomic (temporary file in the same folder, flush, fsync, rename), never
-  over an existing file without ``force``, never over the journal or the profile in use; every
+  over an existing file without ``force``, never over the journal (nor its ``-wal``, ``-shm``,
+  ``-journal`` files) or the profile in use, however the path is spelt; every
   failure is one line naming the path.
 * :func:`clean` — control characters and escape sequences out of text bound for a terminal.
 * :func:`csv_cell` — a cell a spreadsheet will not run as a formula.
@@ -59,19 +60,40 @@ def csv_cell(value: object) -> object:
     return value
 
 
+#: The files SQLite keeps beside a database (sqlite.org/tempfiles.html): the write-ahead log, its
+#: shared-memory index and the rollback journal. Overwriting one loses committed data.
+SIDE_FILES = ("-wal", "-shm", "-journal")
+
+
+def _is_protected(out: Path, protected: Iterable[str | os.PathLike[str] | None]) -> bool:
+    """Whether ``out``, however spelt (relative, ``..``, a symlink, a hard link), is one of the
+    ``protected`` files or a journal side file of one, existing or not yet."""
+    try:
+        target = Path(os.path.realpath(out))
+        guarded: set[Path] = set()
+        for p in protected:
+            if p is None:
+                continue
+            base = Path(p).expanduser()
+            for b in (Path(os.path.abspath(base)), Path(os.path.realpath(base))):
+                guarded.update(b.with_name(b.name + suffix) for suffix in ("",) + SIDE_FILES)
+        if target in guarded or target in {Path(os.path.realpath(g)) for g in guarded}:
+            return True
+        return out.exists() and any(g.exists() and os.path.samefile(out, g) for g in guarded)
+    except OSError as exc:
+        raise InputError(f"output {out}: {exc.strerror or exc}") from None
+
+
 def write_output(path: str | os.PathLike[str], data: bytes | str | Callable[[Path], object], *, force: bool = False,
                  protected: Iterable[str | os.PathLike[str] | None] = ()) -> Path:
     """Write ``data`` (bytes, text, or a function that writes a given temporary path) to
-    ``path`` atomically. Refuses an existing file unless ``force``, and the ``protected`` files
-    (the journal, the profile) always."""
+    ``path`` atomically. Refuses an existing file unless ``force``, and always, whatever
+    ``force`` says and however the path is spelt, the ``protected`` files (the journal, the profile)
+    and the journal's side files (``-wal``, ``-shm``, ``-journal``)."""
     out = Path(path).expanduser()
-    try:
-        target = out.resolve()
-    except OSError as exc:
-        raise InputError(f"output {out}: {exc.strerror or exc}") from None
-    for p in protected:
-        if p is not None and Path(p).expanduser().exists() and Path(p).expanduser().resolve() == target:
-            raise InputError(f"output {out} is the journal or the profile in use: choose another file")
+    if _is_protected(out, protected):
+        raise InputError(f"output {out} is the journal, its -wal/-shm/-journal file or the profile: choose another "
+                         "file")
     if out.is_dir():
         raise InputError(f"output {out} is a folder: give a file name")
     if not out.parent.is_dir():
