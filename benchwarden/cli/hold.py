@@ -18,8 +18,10 @@ from benchwarden.cli.common import (
     computation,
     emit_json,
     emit_table,
+    given,
     input_error,
     journal_if_exists,
+    number,
     one_line,
 )
 from benchwarden.core import hold as hd
@@ -35,7 +37,16 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
+from benchwarden.units.constants import BAR_PA
+from benchwarden.units.limits import conflict, within
 from benchwarden.workflows import holds
+
+#: A hold test's held volume [m³]: a short tube's millilitre to a cylinder bundle (benchwarden rule).
+VOLUME_RANGE = (1e-6, 5.0)
+#: A hold test's length [s]: shorter than a minute resolves nothing; longer than a year is a slip.
+DURATION_RANGE = (60.0, 366 * 86400.0)
+#: A thermometer's standard uncertainty [K] (a hand-held sensor is 0.1–2 K; beyond 10 K it is no reading).
+U_T_RANGE = (0.0, 10.0)
 
 HOLD_LOG_FORMAT = """\
 log file (--log): CSV with a header row, comma-separated, decimal points (a semicolon-separated
@@ -70,7 +81,7 @@ def configure(sub: Any, name: str) -> None:
     p.add_argument("--t-uncertainty", default=None,
                    help="standard uncertainty of each temperature (default 0.5 K; 1 K when no temperatures are given)")
     p.add_argument("--gauge-range", help="gauge full scale, e.g. '250 bar'")
-    p.add_argument("--gauge-class", type=float, help="gauge accuracy class (EN 837-1), e.g. 1.6")
+    p.add_argument("--gauge-class", type=number, help="gauge accuracy class (EN 837-1), e.g. 1.6")
     p.add_argument("--resolution", help="smallest reading step, e.g. '1 bar'; adds resolution/√12 to each "
                                         "reading's MPE/√3 (default: none beyond the class)")
     p.add_argument("--target", help="leak rate that matters, e.g. '10 sccm' (default 1 %% of contents per day)")
@@ -98,18 +109,45 @@ def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
     return holds.gauge_spec(span, args.gauge_class, res)
 
 
-def cmd_hold(args: argparse.Namespace) -> int:
-    g_, amb, d = computation(args)
+def _volume(args: argparse.Namespace) -> float:
+    """The held volume: given, or computed from the line's length and bore (not both)."""
+    conflict(given(args, "--volume", "--line-length") if args.volume else given(args, "--volume", "--bore"),
+             "the held volume is given, or computed from the line's length and bore")
     if args.volume:
         V = parse_volume(args.volume, "held volume")
     elif args.line_length and args.bore:
-        V = hd.line_volume(parse_length(args.line_length, "line length"), parse_length(args.bore, "bore"))
+        L = within(parse_length(args.line_length, "line length"), "line length", 1e-3, 1e3, "m", text=args.line_length)
+        bore = within(parse_length(args.bore, "bore"), "bore", 1e-4, 0.1, "m", text=args.bore, shown=("mm", 1e-3))
+        V = hd.line_volume(L, bore)
     else:
         raise input_error("give the held --volume, or --line-length and --bore of the line")
+    return within(V, "held volume", *VOLUME_RANGE, "m³", text=args.volume, words="from 1 mL to 5 m³")
+
+
+def _reserve(args: argparse.Namespace, amb: float) -> float | None:
+    """The reserve: from 0 bar(g) to below the start pressure (when two readings are given)."""
+    if not args.reserve:
+        return None
+    reserve = pressure_abs(args.reserve, amb, "reserve")
+    start = pressure_abs(args.start, amb, "start pressure") if args.start and not args.log else None
+    hi = start - amb if start is not None else 2e8
+    within(reserve - amb, "reserve", 0.0, hi, "Pa(g)", text=args.reserve, hi_open=start is not None,
+           words=f"from 0 bar(g) to below the start pressure {args.start}" if start is not None
+           else f"from 0 to {2e8 / BAR_PA:g} bar(g)")
+    return reserve
+
+
+def cmd_hold(args: argparse.Namespace) -> int:
+    g_, amb, d = computation(args)
+    V = _volume(args)
     gauge = _gauge(args, amb)
-    u_T = parse_temperature_difference(args.t_uncertainty) if args.t_uncertainty else hd.U_T_DEFAULT
+    u_T = (within(parse_temperature_difference(args.t_uncertainty), "temperature uncertainty", *U_T_RANGE, "K",
+                  text=args.t_uncertainty, why="a thermometer's standard uncertainty")
+           if args.t_uncertainty else hd.U_T_DEFAULT)
     target = hd.target_sccm(g_, parse_flow(args.target, what="target leak rate")) if args.target else None
-    reserve = pressure_abs(args.reserve, amb, "reserve") if args.reserve else None
+    if target is not None:
+        within(target, "target leak rate", 1e-3, 1e6, "sccm", text=args.target)
+    reserve = _reserve(args, amb)
     fit = None
     if args.log:
         try:
@@ -125,7 +163,9 @@ def cmd_hold(args: argparse.Namespace) -> int:
             raise input_error("give --start, --end and --duration (or --log FILE.csv)")
         r = hd.hold_two_readings(
             g_, V, pressure_abs(args.start, amb, "start pressure"),
-            pressure_abs(args.end, amb, "end pressure"), parse_duration(args.duration, "hold duration"),
+            pressure_abs(args.end, amb, "end pressure"),
+            within(parse_duration(args.duration, "hold duration"), "hold duration", *DURATION_RANGE, "s",
+                   text=args.duration, words="from 1 min to a year"),
             parse_temperature(args.t_start, "start temperature") if args.t_start else None,
             parse_temperature(args.t_end, "end temperature") if args.t_end else None,
             gauge, u_T, target, reserve, amb)

@@ -7,7 +7,14 @@ import sys
 from dataclasses import asdict
 from typing import Any
 
-from benchwarden.cli.common import add_journal, add_json, emit_json, input_error, journal_if_exists
+from benchwarden.cli.common import (
+    add_journal,
+    add_json,
+    emit_json,
+    input_error,
+    journal_if_exists,
+    whole_number,
+)
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean, session_csv, write_output
 from benchwarden.storage.journal import default_path
@@ -21,7 +28,7 @@ def configure(sub: Any, name: str) -> None:
         p.set_defaults(func=cmd_sessions)
     elif name == "export":
         p = sub.add_parser("export", help="write one session's readings out")
-        p.add_argument("session", type=int, help="session number (see 'benchwarden sessions')")
+        p.add_argument("session", type=whole_number, help="session number (see 'benchwarden sessions')")
         p.add_argument("--format", choices=["csv"], default="csv")
         p.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output (kept if it "
                                                        "exists, unless --force)")

@@ -7,7 +7,15 @@ import argparse
 import asyncio
 from typing import Any
 
-from benchwarden.cli.common import add_display, add_gas, add_journal, computation, input_error
+from benchwarden.cli.common import (
+    add_display,
+    add_gas,
+    add_journal,
+    computation,
+    input_error,
+    number,
+    whole_number,
+)
 from benchwarden.core import supply
 from benchwarden.live.simulator import Cylinder, serve
 from benchwarden.units import (
@@ -40,13 +48,13 @@ def configure(sub: Any, name: str) -> None:
     p = sub.add_parser("simulate", help="serve a simulated cylinder as a Modbus/TCP pressure transducer",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=REGISTER_MAP)
     add_gas(p)
-    p.add_argument("--port", type=int, default=5020, help="TCP port on 127.0.0.1 (default 5020)")
+    p.add_argument("--port", type=whole_number, default=5020, help="TCP port on 127.0.0.1 (default 5020)")
     p.add_argument("--volume", required=True, help="water volume, e.g. '50 L'")
     p.add_argument("--pressure", required=True, help="starting pressure, e.g. '150 bar'")
     p.add_argument("--temperature", default="20 degC", help="gas temperature (default 20 degC)")
     p.add_argument("--leak", default="0 sccm", help="a leak, e.g. '40 sccm'")
     p.add_argument("--draw", default="0 slpm", help="a draw, e.g. '2 slpm'")
-    p.add_argument("--speed", type=float, default=1.0, help="clock speed-up (default 1)")
+    p.add_argument("--speed", type=number, default=1.0, help="clock speed-up (default 1)")
     p.add_argument("--for", dest="duration", help="stop after this long, e.g. '10 min' (default: Ctrl-C)")
     p.set_defaults(func=cmd_simulate)
 

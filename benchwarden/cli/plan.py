@@ -18,6 +18,7 @@ from benchwarden.cli.common import (
     emit_json,
     emit_table,
     journal_if_exists,
+    number,
 )
 from benchwarden.core.flow import orifice_flow
 from benchwarden.core.gap import breakdown
@@ -25,7 +26,14 @@ from benchwarden.core.regulator import throttle
 from benchwarden.render.plan import format_plan, plan_json
 from benchwarden.storage.profile import load_profile
 from benchwarden.units import parse_flow, parse_length, parse_temperature, pressure_abs
+from benchwarden.units.limits import within
 from benchwarden.workflows.bench import assess, leak_volume_flow
+
+#: A spark gap's spacing [m]: 10 µm to 1 m (from a trigatron's pin gap to a Marx column's, benchwarden rule).
+GAP_SPACING_RANGE = (1e-5, 1.0)
+#: A spark gap's gas pressure [Pa, absolute]: 1 mbar(a) to 200 bar(a) (below, the gap is a vacuum gap;
+#: above, no gap housing holds it).
+GAP_PRESSURE_RANGE = (100.0, 2e7)
 
 
 def configure(sub: Any, name: str) -> None:
@@ -65,7 +73,7 @@ def configure(sub: Any, name: str) -> None:
         p.add_argument("--upstream", required=True, help="upstream pressure, e.g. '2 bar'")
         p.add_argument("--downstream", required=True, help="downstream pressure, e.g. '50 mbar(a)' or '0 bar'")
         p.add_argument("--temperature", required=True)
-        p.add_argument("--cd", type=float, default=0.62, help="discharge coefficient (default 0.62)")
+        p.add_argument("--cd", type=number, default=0.62, help="discharge coefficient (default 0.62)")
         add_ambient(p)
         add_display(p)
         add_json(p)
@@ -108,8 +116,11 @@ def cmd_throttle(args: argparse.Namespace) -> int:
 
 def cmd_gap(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
-    p = pressure_abs(args.pressure, amb, "gap pressure")
-    b = breakdown(g_, parse_length(args.spacing, "gap spacing"), p, parse_temperature(args.temperature))
+    p = within(pressure_abs(args.pressure, amb, "gap pressure"), "gap pressure", *GAP_PRESSURE_RANGE, "Pa(a)",
+               text=args.pressure, words="from 1 mbar(a) to 200 bar(a)")
+    spacing = within(parse_length(args.spacing, "gap spacing"), "gap spacing", *GAP_SPACING_RANGE, "m",
+                     text=args.spacing, shown=("mm", 1e-3))
+    b = breakdown(g_, spacing, p, parse_temperature(args.temperature))
     if args.json:
         out = asdict(b)
         if not b.within_validity:
@@ -136,6 +147,7 @@ def cmd_orifice(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     up = pressure_abs(args.upstream, amb, "upstream pressure")
     down = pressure_abs(args.downstream, amb, "downstream pressure")
+    within(args.cd, "--cd", 0.0, 1.0, "", lo_open=True, why="a discharge coefficient")
     o = orifice_flow(g_, parse_length(args.diameter, "orifice diameter"), up, down,
                      parse_temperature(args.temperature), args.cd)
     if args.json:

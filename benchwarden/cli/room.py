@@ -19,11 +19,13 @@ from benchwarden.cli.common import (
     emit_table,
     gas,
     input_error,
+    number,
 )
 from benchwarden.core import gas as g
 from benchwarden.core import room as rm
 from benchwarden.core import supply
 from benchwarden.units import fmt_hours, parse_flow, parse_temperature, parse_volume, pressure_abs
+from benchwarden.units.limits import within
 from benchwarden.units.quantities import parse_amount, parse_ventilation
 
 
@@ -39,7 +41,7 @@ def configure(sub: Any, name: str) -> None:
     p.add_argument("--model", choices=["displacement", "mixed", "sealed"], default="displacement",
                    help="release model (default displacement, the most conservative)")
     p.add_argument("--temperature", default="20 degC", help="room temperature (default 20 degC)")
-    p.add_argument("--oxygen", type=float, default=20.95, help="initial oxygen, %% (default 20.95)")
+    p.add_argument("--oxygen", type=number, default=20.95, help="initial oxygen, %% (default 20.95)")
     p.add_argument("--supply-volume", help="with --leak: water volume of the cylinder that leaks, e.g. '50 L' "
                                            "(the leak stops when it is empty)")
     p.add_argument("--supply-pressure", help="with --leak: its pressure now, e.g. '200 bar'")
@@ -60,6 +62,7 @@ def cmd_room(args: argparse.Namespace) -> int:
     V = parse_volume(args.room_volume, "room volume")
     if V <= 0:
         raise input_error(f"room volume {args.room_volume!r} must be greater than zero")
+    within(V, "room volume", 1.0, 1e6, "m³", text=args.room_volume, why="a room a person works in")
     Q = parse_ventilation(args.ventilation).m3_s(V) if args.ventilation else 0.0
     notes = [rm.stratification_note(g_)]
     if args.release:

@@ -16,6 +16,7 @@ from benchwarden.cli.common import (
     computation,
     emit_json,
     emit_table,
+    given,
     input_error,
 )
 from benchwarden.core import supply
@@ -27,7 +28,15 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
-from benchwarden.units.constants import T_FULL_K
+from benchwarden.units.constants import BAR_PA, T_FULL_K
+from benchwarden.units.limits import conflict, within
+from benchwarden.workflows.ranges import check_weight_fits
+
+#: A cylinder's water volume [m³]: a 10 mL cartridge to a bundle (the profile allows up to 5 m³ too).
+VOLUME_RANGE = (1e-5, 5.0)
+#: A draw too small to be one [standard m³/s, m³/s or kg/s]: 0.001 sccm (a slip of the unit or the
+#: exponent; run times of thousands of years follow from less).
+MIN_DRAW = 1e-3 / 60e6
 
 
 def configure(sub: Any, name: str) -> None:
@@ -75,15 +84,20 @@ def cmd_contents(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     ref = get_reference(args.reference)
     T = parse_temperature(args.temperature) if args.temperature else T_FULL_K
+    conflict(given(args, "--pressure", "--gross") or given(args, "--pressure", "--tare"),
+             "the contents come from the pressure or from the weights")
     if (args.gross is None) != (args.tare is None):
         raise input_error("--gross and --tare go together: give both weights")
     if args.gross is not None:
-        c = supply.contents_by_weight(g_, parse_mass(args.gross, "gross weight"), parse_mass(args.tare, "tare weight"),
-                                      ref, T, parse_volume(args.volume) if args.volume else None)
+        gross, tare = parse_mass(args.gross, "gross weight"), parse_mass(args.tare, "tare weight")
+        V = _volume(args.volume) if args.volume else None
+        if V is not None and gross > tare:
+            check_weight_fits(g_, gross - tare, V, T)
+        c = supply.contents_by_weight(g_, gross, tare, ref, T, V)
     else:
         if not (args.volume and args.pressure and args.temperature):
             raise input_error("contents needs --volume, --pressure and --temperature (or --gross and --tare)")
-        c = supply.contents(g_, parse_volume(args.volume, "cylinder volume"), pressure_abs(args.pressure, amb), T, ref)
+        c = supply.contents(g_, _volume(args.volume), pressure_abs(args.pressure, amb), T, ref)
     if c.mass_kg is None:
         # no pressure-based contents: the same one line and exit status in text and JSON modes
         if c.phase == "liquid-full":
@@ -120,13 +134,31 @@ def cmd_contents(args: argparse.Namespace) -> int:
     return 0
 
 
+def _volume(text: str) -> float:
+    return within(parse_volume(text, "cylinder volume"), "cylinder volume", *VOLUME_RANGE, "m³", text=text,
+                  words="from 10 mL to 5 m³ (a cylinder bundle)")
+
+
+def _rating(text: str | None, what: str, amb: float, floor_gauge_pa: float = 0.0, why: str = "") -> float | None:
+    """A cylinder's service or test pressure: above ``floor_gauge_pa`` (gauge) and at most 2000 bar(g)."""
+    if not text:
+        return None
+    p = pressure_abs(text, amb, what)
+    within(p - amb, what, floor_gauge_pa, 2e8, "Pa(g)", lo_open=True, text=text, why=why,
+           words=f"above {floor_gauge_pa / BAR_PA:g} bar(g) and at most 2000 bar(g)")
+    return p
+
+
 def cmd_heat(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     p = pressure_abs(args.pressure, amb)
     T1 = parse_temperature(args.temperature)
     T2 = parse_temperature(args.to, "target temperature")
-    service = pressure_abs(args.service, amb, "service pressure") if args.service else None
-    test = pressure_abs(args.test, amb, "test pressure") if args.test else None
+    service = _rating(args.service, "service pressure", amb)
+    test = _rating(args.test, "test pressure", amb)
+    if service is not None and test is not None and test < service:
+        within(test - amb, "test pressure", service - amb, None, "Pa(g)", text=args.test,
+               words=f"at least the service pressure {args.service}", why="a cylinder is tested above its rating")
     h = supply.heat_up(g_, p, T1, T2, amb, service, test)
     if args.json:
         emit_json(asdict(h) | {"ambient_pressure_pa": amb})
@@ -154,11 +186,16 @@ def cmd_heat(args: argparse.Namespace) -> int:
 
 def cmd_runtime(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
-    V = parse_volume(args.volume, "cylinder volume")
+    V = _volume(args.volume)
     p = pressure_abs(args.pressure, amb)
     res = pressure_abs(args.reserve, amb, "reserve")
+    within(res - amb, "reserve", 0.0, p - amb, "Pa(g)", text=args.reserve, hi_open=True,
+           words=f"from 0 bar(g) to below the pressure now {args.pressure}")
     T = parse_temperature(args.temperature)
     flows = [parse_flow(f, reference=args.flow_reference) for f in args.flow]
+    for f in flows:
+        within(f.value, "draw", MIN_DRAW, None, "", text=f.text, words="at least 0.001 sccm (or 0.001 mL/min, "
+               "1.7e-11 kg/s)", why="a smaller draw is a slip of the unit or the exponent")
     draws = [supply.mass_flow(g_, f) for f in flows]
     r = supply.runtime(g_, V, p, res, T, sum(draws))
     now = dt.datetime.now().astimezone()

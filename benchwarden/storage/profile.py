@@ -14,9 +14,10 @@ import stat
 import tomllib
 from importlib import resources
 from pathlib import Path
-from typing import Any, Literal
+from typing import Annotated, Any, Literal
 
 from pydantic import (
+    AfterValidator,
     Field,
     ValidationError,
     model_validator,
@@ -42,8 +43,17 @@ from benchwarden.storage.profile_fields import (
 )
 from benchwarden.storage.profile_fields import ProfileModel as _Model
 from benchwarden.storage.profile_fields import positive as _positive
+from benchwarden.units.limits import EARLIEST_RECORD, within, within_dates
 
 # ----------------------------------------------------------------------------- sections
+
+
+def _record_date(v: dt.date) -> dt.date:
+    """A due date in a profile: from 1990 to 30 years ahead (a slip of the year, beyond)."""
+    return within_dates(v, "date", EARLIEST_RECORD, dt.date(dt.date.today().year + 30, 12, 31))
+
+
+RecordDate = Annotated[dt.date, AfterValidator(_record_date)]
 
 
 class Bench(_Model):
@@ -106,7 +116,7 @@ class Supply(_Model):
     """Gross weight (liquefied gases: CO2, SF6)."""
     tare: MassQ | None = None
     """Tare weight stamped on the cylinder."""
-    fill_price: float | None = Field(default=None, ge=0)
+    fill_price: float | None = Field(default=None, ge=0, le=1e7, allow_inf_nan=False)
     """Price of one full cylinder, for gas cost per hour."""
     currency: str = Field(default="EUR", max_length=8)
     gauge: Gauge | None = None
@@ -115,7 +125,7 @@ class Supply(_Model):
     """How long the supplier takes to deliver a new cylinder, e.g. "10 d" (for the order-by date)."""
     spares: int = Field(default=0, ge=0, le=100)
     """Full spare cylinders of this gas on hand."""
-    retest_due: dt.date | None = None
+    retest_due: RecordDate | None = None
     """Periodic-inspection (retest) due date of the cylinder in use (the interval is the maker's or
     the local rule)."""
     source: Source | None = None
@@ -136,6 +146,9 @@ class Supply(_Model):
             raise InputError(f"supply {self.id}: gross and tare go together")
         if self.gross is not None and self.tare is not None and self.gross < self.tare:
             raise InputError(f"supply {self.id}: gross weight is below the tare weight")
+        if self.reserve.typed_as == "gauge" and self.reserve.typed_pa < 0:
+            raise _Located(("reserve",), f"supply {self.id}: reserve {self.reserve.text} is out of range: at least "
+                                         "0 bar(g) (a cylinder is never drawn below the room's pressure)")
         if self.reading is None and self.gross is None:
             raise InputError(f"supply {self.id}: give a reading (or gross and tare weights)")
         if self.leak_target is not None and self.leak_target.kind == "actual":
@@ -156,9 +169,10 @@ class Regulator(_Model):
     """Top of the outlet range (the outlet gauge/spring range)."""
     set_point: PressureQ
     """Outlet pressure as set at the supply's current reading."""
-    service_due: dt.date | None = None
+    service_due: RecordDate | None = None
     """When the regulator is due for service (the maker's interval or the lab's rule)."""
-    supply_pressure_effect: list[float] | float = 0.01
+    supply_pressure_effect: list[Annotated[float, Field(ge=0, le=0.5, allow_inf_nan=False)]] | Annotated[
+        float, Field(ge=0, le=0.5, allow_inf_nan=False)] = 0.01
     """Outlet rise per unit inlet fall, per stage (e.g. 0.01 = 1 %). Two stages: a list of two."""
     relief_setting: PressureQ | None = None
     """Set pressure of the outlet relief valve, if any."""
@@ -195,9 +209,9 @@ class Orifice(_Model):
 
 
 class Valve(_Model):
-    kv: float | None = Field(default=None, gt=0)
+    kv: float | None = Field(default=None, gt=0, le=1e4, allow_inf_nan=False)
     """Flow coefficient Kv [m³/h] at the opening used."""
-    cv: float | None = Field(default=None, gt=0)
+    cv: float | None = Field(default=None, gt=0, le=1e4, allow_inf_nan=False)
     """Or Cv (US); Kv = Cv / 1.156."""
     xt: float = Field(default=0.7, gt=0, le=1)
     downstream: PressureQ = Field(default_factory=lambda: u.parse_pressure("0 bar"))
@@ -245,6 +259,7 @@ class Draw(_Model):
             if self.spacing is None:
                 raise InputError(f"gap {self.id}: spacing is required")
             _positive(self.spacing, f"spacing of gap {self.id}")
+            within(self.spacing, f"spacing of gap {self.id}", 1e-5, 1.0, "m", shown=("mm", 1e-3))
         elif self.spacing is not None or self.exposed:
             raise InputError(f"draw {self.id}: spacing and exposed parts belong to kind = \"gap\"")
         if self.per_shot is not None:
@@ -266,6 +281,7 @@ class Room(_Model):
     @model_validator(mode="after")
     def _check(self) -> Room:
         _positive(self.volume, "room volume")
+        within(self.volume, "room volume", 1.0, 1e6, "m³", why="a room a person works in")
         return self
 
 

@@ -87,8 +87,9 @@ class SourceBase(ProfileModel):
     kind: Literal["modbus-tcp", "modbus-rtu", "serial", "file"]
     host: str | None = Field(default=None, max_length=255)
     """Modbus/TCP: the device or gateway's address."""
-    port: int | str | None = None
-    """Modbus/TCP: the TCP port (502 by default); serial and Modbus RTU: the serial port, e.g. "/dev/ttyUSB0"."""
+    port: int | str | None = Field(default=None, union_mode="left_to_right")
+    """Modbus/TCP: the TCP port, 1 to 65535 (502 by default); serial and Modbus RTU: the serial port, e.g.
+    "/dev/ttyUSB0" or "COM3"."""
     device: int = Field(default=1, ge=0, le=247)
     """Modbus unit id."""
     address: int = Field(default=0, ge=0, le=65535, alias="register")
@@ -97,6 +98,7 @@ class SourceBase(ProfileModel):
     """Read input registers instead of holding registers."""
     format: Literal["int16", "uint16", "int32", "uint32", "float32", "float32-swapped"] = "float32"
     scale: float = Field(default=1.0, allow_inf_nan=False)
+    """value × scale + offset: never zero (every sample would be the offset)."""
     offset: float = Field(default=0.0, allow_inf_nan=False)
     value_unit: str = Field(default="bar", max_length=16)
     """value × scale + offset is a pressure in this unit (gauge unless marked absolute)."""
@@ -115,6 +117,10 @@ class SourceBase(ProfileModel):
         for key in need:
             if getattr(self, key) in (None, ""):
                 raise InputError(f"a {self.kind} source needs {key}")
+        self._check_port()
+        if self.scale == 0 or not 1e-12 <= abs(self.scale) <= 1e12:
+            raise InputError(f"scale {self.scale:g} is out of range: not zero, and between 1e-12 and 1e12 in size "
+                             "(value × scale + offset)")
         self._check_unit()
         if self.pattern is not None:
             try:
@@ -123,6 +129,21 @@ class SourceBase(ProfileModel):
                 raise InputError(f"pattern is not a valid regular expression: {exc}") from None
         positive(self.interval, "source interval")
         return self
+
+    def _check_port(self) -> None:
+        """A TCP port is a whole number from 1 to 65535; a serial port is a device's name."""
+        port = self.port
+        if port is None:
+            return
+        if self.kind == "modbus-tcp":
+            if isinstance(port, bool) or not isinstance(port, int) or not 1 <= port <= 65535:
+                raise InputError(f"port {port!r} is out of range: a TCP port is a whole number from 1 to 65535")
+        elif self.kind in ("modbus-rtu", "serial"):
+            if not isinstance(port, str) or not re.fullmatch(r"(/\S+|COM[0-9]{1,3}|[a-z0-9]+://\S+)", port):
+                raise InputError(f"port {port!r} is not a serial port: give its device, e.g. \"/dev/ttyUSB0\" or "
+                                 "\"COM3\"")
+        else:
+            raise InputError(f"a {self.kind} source has no port")
 
     def _check_unit(self) -> None:
         raise NotImplementedError

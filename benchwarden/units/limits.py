@@ -10,12 +10,13 @@ and invisible format characters (bidi overrides and isolates, zero-width charact
 from __future__ import annotations
 
 import datetime as dt
+import re
 import unicodedata
 from collections.abc import Sequence
 
 from benchwarden.errors import ConflictError, InputError, RangeError
 
-__all__ = ["within", "within_dates", "conflict", "MAX_QUANTITY_CHARS", "check_quantity_text", "text_problem",
+__all__ = ["within", "within_dates", "conflict", "plain_number", "MAX_QUANTITY_CHARS", "check_quantity_text", "text_problem",
            "EARLIEST_RECORD", "RETEST_HORIZON_YEARS"]
 
 #: A quantity a person types is short ("152.5 bar(a)"); anything longer is refused before parsing.
@@ -34,7 +35,7 @@ def _num(x: float, factor: float) -> str:
 
 def within(value: float, what: str, lo: float | None = None, hi: float | None = None, unit: str = "", *,
            why: str = "", text: str | None = None, shown: tuple[str, float] | None = None,
-           lo_open: bool = False, hi_open: bool = False) -> float:
+           lo_open: bool = False, hi_open: bool = False, words: str | None = None) -> float:
     """Return ``value`` (SI) if it is finite and within ``lo``..``hi`` (inclusive unless
     ``lo_open``/``hi_open``; None is no bound), else raise :class:`RangeError` naming the value as
     typed (``text``) and the range in the unit ``shown = (name, SI per unit)`` (default ``unit``).
@@ -61,7 +62,7 @@ def within(value: float, what: str, lo: float | None = None, hi: float | None = 
     if hi is not None:
         parts.append(f"{'below' if hi_open else 'at most'} {_num(hi, factor)}{sp}{name}")
     typed = repr(text.strip()) if text is not None else (f"{_num(value, factor)}{sp}{name}" if finite else str(value))
-    msg = f"{what} {typed} is out of range: {' and '.join(parts)}" + (f" ({why})" if why else "")
+    msg = f"{what} {typed} is out of range: {words or ' and '.join(parts)}" + (f" ({why})" if why else "")
     raise RangeError(msg, what=what, value=value, lo=lo, hi=hi, unit=unit, why=why)
 
 
@@ -96,6 +97,25 @@ def conflict(given: Sequence[str], why: str = "") -> None:
     if len(names) > 1:
         raise ConflictError(f"{', '.join(names[:-1])} and {names[-1]} exclude each other: give one"
                             + (f" ({why})" if why else ""), names=names)
+
+
+def plain_number(text: str, what: str, integer: bool = False) -> float:
+    """A bare number a person typed (a class, a coefficient, a port): ASCII digits, a decimal
+    point, finite; ``integer`` for whole numbers.
+
+    >>> plain_number("1.6", "gauge class"), plain_number("502", "port", integer=True)
+    (1.6, 502)
+    """
+    check_quantity_text(text, what)
+    pattern = _INT if integer else _FLOAT
+    if not pattern.fullmatch(text.strip()):
+        raise InputError(f"{what} {text.strip()!r} is not {'a whole number' if integer else 'a number'}"
+                         + (", e.g. 502" if integer else ", e.g. 1.6 (digits 0-9 and a decimal point)"))
+    return int(text) if integer else float(text)
+
+
+_INT = re.compile(r"[-+]?[0-9]+")
+_FLOAT = re.compile(r"[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][-+]?[0-9]+)?")
 
 
 # ----------------------------------------------------------------------------- text

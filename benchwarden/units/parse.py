@@ -563,6 +563,8 @@ def fmt_hours(hours: float) -> str:
         return "never"
     if hours < 0:
         return "passed"
+    if hours > 10 * 366 * 24:  # beyond what any bench plans for: no 300-digit day counts
+        return "more than ten years"
     total_min = int(round(hours * 60))
     d, rem = divmod(total_min, 24 * 60)
     h, m = divmod(rem, 60)
