@@ -375,3 +375,157 @@ def test_outputs_never_go_to_the_profile_or_a_hard_link_of_the_journal(tmp_path,
     _refused(["checklist", str(prof), "--output", str(hard), "--force", "--journal", str(journal)], capsys,
              "choose another")
     assert prof.read_text() == DEMO.read_text() and journal.read_bytes() == before
+
+
+# ----------------------------------------------------------------------------- 8. a range for every value
+
+HOLD = ["hold", "--gas", "n2", "--volume", "50 L", "--start", "152 bar", "--end", "150 bar", "--duration", "14 h"]
+HEAT = ["heat", "--gas", "n2", "--pressure", "200 bar", "--temperature", "15 degC", "--to", "40 degC"]
+RUNTIME = ["runtime", "--gas", "n2", "--volume", "50 L", "--pressure", "200 bar", "--temperature", "20 degC",
+           "--reserve", "10 bar", "--flow", "2 slpm"]
+GAP = ["gap", "--gas", "n2", "--spacing", "2 mm", "--pressure", "3 bar", "--temperature", "20 degC"]
+ROOM = ["room", "--gas", "n2", "--room-volume", "40 m3", "--leak", "5 slpm", "--ventilation", "2/h"]
+
+RANGES = [
+    # (argv, words the one line must carry) — each accepted before issue 27
+    (HOLD + ["--t-uncertainty", "1e308 K"], ["temperature uncertainty", "at most 10 K"]),  # was an OverflowError
+    (_with(HOLD, "--duration", "0.0000001 s"), ["hold duration", "from 1 min to a year"]),  # was −2e12 sccm
+    (HOLD + ["--reserve", "-1 bar"], ["reserve", "from 0 bar(g)"]),
+    (HOLD + ["--reserve", "500 bar"], ["reserve", "below the start pressure"]),
+    (HOLD + ["--line-length", "3 m", "--bore", "4 mm"], ["--volume and --line-length exclude each other"]),
+    (HOLD + ["--bore", "4 mm"], ["--volume and --bore exclude each other"]),
+    (HEAT + ["--service", "0 bar", "--test", "0 bar"], ["service pressure", "above 0 bar(g)"]),
+    (HEAT + ["--service", "300 bar", "--test", "200 bar"], ["test pressure", "at least the service pressure"]),
+    (_with(RUNTIME, "--flow", "1e-300 slpm"), ["draw", "at least 0.001 sccm"]),  # was 300 digits of days
+    (_with(RUNTIME, "--reserve", "250 bar"), ["reserve", "below the pressure now"]),
+    (_with(GAP, "--spacing", "1e-30 mm"), ["gap spacing", "at least 0.01 mm"]),
+    (_with(GAP, "--pressure", "1e-300 Torr"), ["gap pressure", "from 1 mbar(a)"]),
+    (_with(ROOM, "--room-volume", "1e-9 m3"), ["room volume", "at least 1 m³"]),
+    (CONTENTS + ["--gross", "70 kg", "--tare", "60 kg"], ["--pressure and --gross exclude each other"]),
+    (["contents", "--gas", "co2", "--volume", "50 L", "--gross", "1000 kg", "--tare", "1 kg"],
+     ["net weight", "holds no more"]),  # was "999 kg"
+    (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--port", "-1"], ["--port"]),
+    (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--port", "70000"], ["--port"]),
+    (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--port", "abc"], ["--port"]),
+]
+
+
+@pytest.mark.parametrize("argv, words", RANGES, ids=[" ".join(a[:1] + a[-2:])[:50] for a, _ in RANGES])
+def test_every_value_has_a_range_and_conflicting_options_are_named(argv, words, capsys):
+    _refused(argv, capsys, *words)
+
+
+def test_range_errors_carry_their_data_for_renderers():
+    from benchwarden.errors import ConflictError, RangeError
+    from benchwarden.units.limits import conflict, within
+
+    with pytest.raises(RangeError) as exc:
+        within(1e308, "temperature uncertainty", 0.0, 10.0, "K", text="1e308 K")
+    e = exc.value
+    assert (e.what, e.value, e.lo, e.hi, e.unit) == ("temperature uncertainty", 1e308, 0.0, 10.0, "K")
+    with pytest.raises(ConflictError) as cexc:
+        conflict(["--pressure", "--gross"])
+    assert cexc.value.names == ("--pressure", "--gross")
+
+
+def test_nan_and_infinity_are_outside_every_range():
+    from benchwarden.errors import RangeError
+    from benchwarden.units.limits import within
+
+    for bad in (float("nan"), float("inf"), -float("inf")):
+        with pytest.raises(RangeError):
+            within(bad, "x", 0.0, 1.0, "m")
+
+
+def test_a_capacity_within_bounds_is_a_finding_not_bad_input(capsys):
+    # 40 kg of CO2 in 50 L (0.8 kg/L) is overfilled — a STOP finding — but physically possible
+    code, out, err = _run(["contents", "--gas", "co2", "--volume", "50 L", "--gross", "100 kg", "--tare", "60 kg"],
+                          capsys)
+    assert code == 0 and "STOP" in out and "overfilled" in out
+
+
+DEMO_ARGS = [str(DEMO), "n2-A", "--pressure", "60 bar"]
+
+
+@pytest.mark.parametrize("at", ["1970-01-01T00:00", "1900-01-01T00:00", "1989-12-31T23:59"])
+def test_reading_times_absurdly_old_are_refused(at, capsys):
+    _refused(["reading", *DEMO_ARGS, "--at", at], capsys, "time", "from 1990-01-01")
+
+
+def test_a_reading_from_a_paper_logbook_is_shown_with_its_date(capsys):
+    code, out, err = _run(["reading", *DEMO_ARGS, "--at", "2019-03-04T09:15"], capsys)
+    assert code == 0 and "Mon 4 Mar 09:15" in out, (out, err)  # was "Mon 09:15", as if this week
+
+
+@pytest.mark.parametrize("retest", ["1900-01-01", "1970-01-01", "2099-01-01"])
+def test_retest_dates_out_of_range_are_refused(retest, capsys):
+    _refused(["swap", *DEMO_ARGS, "--retest", retest], capsys, "retest date", "from 1990-01-01")
+
+
+def test_a_past_retest_date_is_called_overdue(capsys):
+    code, out, err = _run(["swap", *DEMO_ARGS, "--retest", "2020-06-01"], capsys)
+    assert code == 0 and "RETEST OVERDUE since 2020-06-01" in out
+    code, out, err = _run(["swap", *DEMO_ARGS, "--retest", "2020-06-01", "--json"], capsys)
+    import json
+
+    assert code == 0 and json.loads(out)["retest_overdue"] is True
+
+
+def test_run_times_beyond_ten_years_are_not_printed_in_days():
+    from benchwarden.units import fmt_hours
+
+    assert fmt_hours(1e300) == "more than ten years" and fmt_hours(48.5) == "2 d 0 h"
+
+
+PROFILE_RANGES = [
+    ("fill_price = 62.0", "fill_price = inf", "fill_price"),
+    ("fill_price = 62.0", "fill_price = 1e12", "fill_price"),
+    ('reserve = "15 bar"', 'reserve = "-0.5 bar"', "reserve"),
+    ('spacing = "1.4 mm"', 'spacing = "1e-30 mm"', "spacing"),
+]
+SOURCE = 'gauge = { range = "315 bar", accuracy_class = 1.6 }\n'
+SOURCES = [
+    ('kind = "modbus-tcp"\nhost = "10.0.0.5"\nscale = 0\n', "scale 0"),
+    ('kind = "modbus-tcp"\nhost = "10.0.0.5"\nport = -1\n', "port -1"),
+    ('kind = "modbus-tcp"\nhost = "10.0.0.5"\nport = 70000\n', "port 70000"),
+    ('kind = "modbus-tcp"\nhost = "10.0.0.5"\nport = "abc"\n', "port 'abc'"),
+    ('kind = "serial"\nport = "abc"\n', "not a serial port"),
+    ('kind = "serial"\nport = 3\n', "not a serial port"),
+]
+
+
+@pytest.mark.parametrize("old, new, key", PROFILE_RANGES)
+def test_profile_values_have_ranges(old, new, key, tmp_path, capsys):
+    text = DEMO.read_text()
+    assert old in text
+    prof = tmp_path / "b.toml"
+    prof.write_text(text.replace(old, new, 1))
+    _refused(["plan", str(prof)], capsys, key)
+
+
+@pytest.mark.parametrize("section, words", SOURCES)
+def test_source_scale_and_port_have_ranges(section, words, tmp_path, capsys):
+    text = DEMO.read_text()
+    assert SOURCE in text
+    prof = tmp_path / "b.toml"
+    prof.write_text(text.replace(SOURCE, SOURCE + "[supplies.source]\n" + section, 1))
+    _refused(["plan", str(prof)], capsys, words)
+
+
+@pytest.mark.parametrize("date", ["1900-01-01", "2199-01-01"])
+def test_profile_due_dates_have_ranges(date, tmp_path, capsys):
+    prof = tmp_path / "b.toml"
+    prof.write_text(DEMO.read_text().replace(SOURCE, SOURCE + f"retest_due = {date}\n", 1))
+    _refused(["plan", str(prof)], capsys, "retest_due", "out of range")
+
+
+@pytest.mark.parametrize("argv", [
+    ["hold", "--gas", "n2", "--volume", "50 L", "--start", "152 bar", "--end", "150 bar", "--duration", "14 h",
+     "--gauge-range", "250 bar", "--gauge-class", "١.٦"],
+    ["orifice", "--gas", "n2", "--diameter", "0.2 mm", "--upstream", "2 bar", "--downstream", "0 bar",
+     "--temperature", "20 degC", "--cd", "٠.٦"],
+    ["export", "٣"],
+    ["reading", *DEMO_ARGS, "--at", "٠٩:٣٠"],
+])
+def test_bare_numbers_and_times_take_ascii_digits_only(argv, capsys):
+    _refused(argv, capsys, "digits 0-9")

@@ -111,7 +111,7 @@ def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
 
 def _volume(args: argparse.Namespace) -> float:
     """The held volume: given, or computed from the line's length and bore (not both)."""
-    conflict(given(args, "--volume", "--line-length") if args.volume else given(args, "--volume", "--bore"),
+    conflict(given(args, "--volume", "--line-length", "--bore")[:2] if args.volume else [],
              "the held volume is given, or computed from the line's length and bore")
     if args.volume:
         V = parse_volume(args.volume, "held volume")

@@ -62,7 +62,7 @@ def within(value: float, what: str, lo: float | None = None, hi: float | None = 
     if hi is not None:
         parts.append(f"{'below' if hi_open else 'at most'} {_num(hi, factor)}{sp}{name}")
     typed = repr(text.strip()) if text is not None else (f"{_num(value, factor)}{sp}{name}" if finite else str(value))
-    msg = f"{what} {typed} is out of range: {words or ' and '.join(parts)}" + (f" ({why})" if why else "")
+    msg = f"{what} {typed} is out of range: {words or ' and '.join(parts) or 'a finite number'}" + (f" ({why})" if why else "")
     raise RangeError(msg, what=what, value=value, lo=lo, hi=hi, unit=unit, why=why)
 
 
