@@ -139,7 +139,9 @@ def add_display(p: argparse.ArgumentParser) -> None:
 
 def ambient(args: argparse.Namespace) -> float:
     from benchwarden.units import ATM_PA, ambient_from_altitude, parse_length, pressure_abs
+    from benchwarden.units.limits import conflict
 
+    conflict(given(args, "--ambient", "--altitude"), "the ambient pressure is given, or derived from the altitude")
     if getattr(args, "ambient", None):
         amb = pressure_abs(args.ambient, 0.0, "ambient pressure")
         if not 30e3 <= amb <= 120e3:

@@ -6,7 +6,6 @@ import argparse
 import datetime as dt
 import sys
 from dataclasses import asdict
-from pathlib import Path
 from typing import Any
 
 from benchwarden.cli.common import (
@@ -40,6 +39,7 @@ from benchwarden.units import (
 from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import conflict, within
 from benchwarden.workflows import holds
+from benchwarden.workflows.ranges import read_log
 
 #: A hold test's held volume [m³]: a short tube's millilitre to a cylinder bundle (benchwarden rule).
 VOLUME_RANGE = (1e-6, 5.0)
@@ -139,6 +139,9 @@ def _reserve(args: argparse.Namespace, amb: float) -> float | None:
 
 def cmd_hold(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
+    if args.log:
+        conflict(["--log", *given(args, "--start", "--end", "--duration")][:2],
+                 "a log's readings replace the two readings and their duration")
     V = _volume(args)
     gauge = _gauge(args, amb)
     u_T = (within(parse_temperature_difference(args.t_uncertainty), "temperature uncertainty", *U_T_RANGE, "K",
@@ -150,10 +153,7 @@ def cmd_hold(args: argparse.Namespace) -> int:
     reserve = _reserve(args, amb)
     fit = None
     if args.log:
-        try:
-            text = Path(args.log).expanduser().read_text(encoding="utf-8-sig")
-        except (OSError, UnicodeDecodeError) as exc:
-            raise input_error(f"cannot read log {args.log}: {getattr(exc, 'strerror', None) or exc}") from None
+        text = read_log(args.log)
         T_def = parse_temperature(args.t_start) if args.t_start else 293.15
         fit = hd.hold_from_log(g_, V, hd.parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
                                reserve, amb)

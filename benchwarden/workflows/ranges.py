@@ -1,14 +1,25 @@
-"""Ranges that need the gas's properties: checked at the edge, before a computation, so the core's
-functions stay as they are (a range of sense is the application's to decide).
+"""Ranges that need the gas's properties, checked at the edge before a computation so the core's
+functions stay as they are (a range of sense is the application's to decide); and bounded reads of
+the files a person names on the command line (a hold-test log).
 """
 
 from __future__ import annotations
 
 from benchwarden.core import gas as g
 from benchwarden.errors import PropertyError
+from benchwarden.storage.profile import read_text_file
 from benchwarden.units.limits import within
 
-__all__ = ["MAX_FILL_PRESSURE_PA", "check_weight_fits"]
+__all__ = ["MAX_FILL_PRESSURE_PA", "check_weight_fits", "MAX_LOG_BYTES", "read_log"]
+
+#: The largest hold-test log read [bytes]: a year of readings every second is about 20 MB.
+MAX_LOG_BYTES = 20_000_000
+
+
+def read_log(path: str) -> str:
+    """A hold-test log's text: a regular file (not ``/dev/zero``, a pipe or a folder) of at most
+    :data:`MAX_LOG_BYTES`, UTF-8."""
+    return read_text_file(path, "hold-test log (.csv)", MAX_LOG_BYTES)
 
 #: No gas cylinder is filled beyond this [Pa, absolute] (1000 bar; the highest-pressure cylinders
 #: in common use are rated at 300 bar, common practice): the densest a cylinder's gas can be is
