@@ -392,7 +392,7 @@ RANGES = [
     (_with(HOLD, "--duration", "0.0000001 s"), ["hold duration", "from 1 min to a year"]),  # was −2e12 sccm
     (HOLD + ["--reserve", "-1 bar"], ["reserve", "from 0 bar(g)"]),
     (HOLD + ["--reserve", "500 bar"], ["reserve", "below the start pressure"]),
-    (HOLD + ["--line-length", "3 m", "--bore", "4 mm"], ["--volume and --line-length exclude each other"]),
+    (HOLD + ["--line-length", "3 m", "--bore", "4 mm"], ["--volume, --line-length and --bore exclude each other"]),
     (HOLD + ["--bore", "4 mm"], ["--volume and --bore exclude each other"]),
     (HEAT + ["--service", "0 bar", "--test", "0 bar"], ["service pressure", "above 0 bar(g)"]),
     (HEAT + ["--service", "300 bar", "--test", "200 bar"], ["test pressure", "at least the service pressure"]),

@@ -111,7 +111,7 @@ def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
 
 def _volume(args: argparse.Namespace) -> float:
     """The held volume: given, or computed from the line's length and bore (not both)."""
-    conflict(given(args, "--volume", "--line-length", "--bore")[:2] if args.volume else [],
+    conflict(given(args, "--volume", "--line-length", "--bore") if args.volume else [],
              "the held volume is given, or computed from the line's length and bore")
     if args.volume:
         V = parse_volume(args.volume, "held volume")
@@ -140,7 +140,7 @@ def _reserve(args: argparse.Namespace, amb: float) -> float | None:
 def cmd_hold(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     if args.log:
-        conflict(["--log", *given(args, "--start", "--end", "--duration")][:2],
+        conflict(["--log", *given(args, "--start", "--end", "--duration")],
                  "a log's readings replace the two readings and their duration")
     V = _volume(args)
     gauge = _gauge(args, amb)

@@ -84,7 +84,7 @@ def cmd_contents(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     ref = get_reference(args.reference)
     T = parse_temperature(args.temperature) if args.temperature else T_FULL_K
-    conflict(given(args, "--pressure", "--gross", "--tare")[:2] if args.pressure else [],
+    conflict(given(args, "--pressure", "--gross", "--tare") if args.pressure else [],
              "the contents come from the pressure or from the weights")
     if (args.gross is None) != (args.tare is None):
         raise input_error("--gross and --tare go together: give both weights")
