@@ -401,7 +401,7 @@ RANGES = [
     (_with(GAP, "--spacing", "1e-30 mm"), ["gap spacing", "at least 0.01 mm"]),
     (_with(GAP, "--pressure", "1e-300 Torr"), ["gap pressure", "from 1 mbar(a)"]),
     (_with(ROOM, "--room-volume", "1e-9 m3"), ["room volume", "at least 1 m³"]),
-    (CONTENTS + ["--gross", "70 kg", "--tare", "60 kg"], ["--pressure and --gross exclude each other"]),
+    (CONTENTS + ["--gross", "70 kg", "--tare", "60 kg"], ["--pressure, --gross and --tare exclude each other"]),
     (["contents", "--gas", "co2", "--volume", "50 L", "--gross", "1000 kg", "--tare", "1 kg"],
      ["net weight", "holds no more"]),  # was "999 kg"
     (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--port", "-1"], ["--port"]),
