@@ -529,3 +529,8 @@ def test_profile_due_dates_have_ranges(date, tmp_path, capsys):
 ])
 def test_bare_numbers_and_times_take_ascii_digits_only(argv, capsys):
     _refused(argv, capsys, "digits 0-9")
+
+
+@pytest.mark.parametrize("char", ["\u202e", "\u2067", "\u200b"])
+def test_invisible_characters_in_typed_labels_are_refused(char, capsys):
+    _refused(["swap", *DEMO_ARGS, "--label", f"N2{char}-77"], capsys, "cylinder label", f"U+{ord(char):04X}")

@@ -16,7 +16,7 @@ from textual.screen import Screen
 from textual.widgets import Button, Footer, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
-from benchwarden.errors import BenchwardenError, InputError, JournalError
+from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.units import fmt_hours, fmt_pressure
 from benchwarden.units.constants import BAR_PA
@@ -184,10 +184,9 @@ class HoldScreen(_Tool):
         try:
             gauge = holds.profile_gauge_spec(s.gauge)
             if val("hold-log"):
-                try:
-                    text = Path(val("hold-log")).expanduser().read_text(encoding="utf-8")
-                except (OSError, UnicodeDecodeError) as exc:
-                    raise InputError(f"cannot read {val('hold-log')}: {exc}") from None
+                from benchwarden.workflows.ranges import read_log
+
+                text = read_log(val("hold-log"))  # a regular file, read with a size limit
                 fit = hd.hold_from_log(s.gas, s.water_volume, hd.parse_log(text, None, amb), gauge,
                                        ambient_pa=amb, reserve_abs=s.reserve.abs_at(amb))
                 r = fit.result
