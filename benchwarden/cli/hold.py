@@ -105,7 +105,8 @@ def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
             raise input_error("--resolution needs --gauge-range and --gauge-class")
         return None
     span = pressure_abs(args.gauge_range, amb, "gauge range") - amb
-    res = pressure_abs(args.resolution, 0.0, "resolution") if args.resolution else None
+    res = (within(pressure_abs(args.resolution, 0.0, "resolution"), "resolution", 0.01, span, "Pa", text=args.resolution,
+                  words="from 0.01 Pa to the gauge range") if args.resolution else None)
     return holds.gauge_spec(span, args.gauge_class, res)
 
 

@@ -148,7 +148,9 @@ def cmd_orifice(args: argparse.Namespace) -> int:
     up = pressure_abs(args.upstream, amb, "upstream pressure")
     down = pressure_abs(args.downstream, amb, "downstream pressure")
     within(args.cd, "--cd", 0.0, 1.0, "", lo_open=True, why="a discharge coefficient")
-    o = orifice_flow(g_, parse_length(args.diameter, "orifice diameter"), up, down,
+    bore = within(parse_length(args.diameter, "orifice diameter"), "orifice diameter", 1e-6, 0.1, "m",
+                  text=args.diameter, words="from 0.001 mm to 100 mm")
+    o = orifice_flow(g_, bore, up, down,
                      parse_temperature(args.temperature), args.cd)
     if args.json:
         emit_json(asdict(o))

@@ -25,7 +25,7 @@ from benchwarden.core import gas as g
 from benchwarden.core import room as rm
 from benchwarden.core import supply
 from benchwarden.units import fmt_hours, parse_flow, parse_temperature, parse_volume, pressure_abs
-from benchwarden.units.limits import within
+from benchwarden.units.limits import MIN_FLOW, within
 from benchwarden.units.quantities import parse_amount, parse_ventilation
 
 
@@ -66,7 +66,10 @@ def cmd_room(args: argparse.Namespace) -> int:
     Q = parse_ventilation(args.ventilation).m3_s(V) if args.ventilation else 0.0
     notes = [rm.stratification_note(g_)]
     if args.release:
-        vg = rm.release_volume(g_, parse_amount(args.release, "release"), T, amb)
+        amount = parse_amount(args.release, "release")
+        within(amount.value, "release", 1e-6, 1e5, "m³" if amount.kind == "volume" else "kg", text=args.release,
+               words="from 1 mL to 1e5 m³ (or 1 mg to 1e5 kg)")
+        vg = rm.release_volume(g_, amount, T, amb)
         r = rm.release(V, vg, args.model, args.oxygen)
         hz = rm.gas_hazards(g_, r.o2_percent_after_release, args.oxygen)
         if args.json:
@@ -83,7 +86,10 @@ def cmd_room(args: argparse.Namespace) -> int:
         return 0
     if args.ventilation and Q == 0 and args.ventilation_kind == "exhaust":
         raise input_error(f"ventilation {args.ventilation!r} is zero: leave out --ventilation for an unventilated room")
-    R = rm.leak_volume_flow(g_, parse_flow(args.leak, reference=args.flow_reference, what="leak"), T, amb)
+    leak = parse_flow(args.leak, reference=args.flow_reference, what="leak")
+    within(leak.value, "leak", MIN_FLOW, None, "", text=args.leak, words="at least 0.001 sccm (or 0.001 mL/min, "
+           "1.7e-11 kg/s)", why="a smaller leak changes no room")
+    R = rm.leak_volume_flow(g_, leak, T, amb)
     lk = rm.leak_o2(V, R, Q, args.ventilation_kind, args.oxygen)
     fin = None
     if (args.supply_volume is None) != (args.supply_pressure is None):

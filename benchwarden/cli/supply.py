@@ -29,14 +29,11 @@ from benchwarden.units import (
     pressure_abs,
 )
 from benchwarden.units.constants import BAR_PA, T_FULL_K
-from benchwarden.units.limits import conflict, within
+from benchwarden.units.limits import MIN_FLOW, conflict, within
 from benchwarden.workflows.ranges import check_weight_fits
 
 #: A cylinder's water volume [m³]: a 10 mL cartridge to a bundle (the profile allows up to 5 m³ too).
 VOLUME_RANGE = (1e-5, 5.0)
-#: A draw too small to be one [standard m³/s, m³/s or kg/s]: 0.001 sccm (a slip of the unit or the
-#: exponent; run times of thousands of years follow from less).
-MIN_DRAW = 1e-3 / 60e6
 
 
 def configure(sub: Any, name: str) -> None:
@@ -194,7 +191,7 @@ def cmd_runtime(args: argparse.Namespace) -> int:
     T = parse_temperature(args.temperature)
     flows = [parse_flow(f, reference=args.flow_reference) for f in args.flow]
     for f in flows:
-        within(f.value, "draw", MIN_DRAW, None, "", text=f.text, words="at least 0.001 sccm (or 0.001 mL/min, "
+        within(f.value, "draw", MIN_FLOW, None, "", text=f.text, words="at least 0.001 sccm (or 0.001 mL/min, "
                "1.7e-11 kg/s)", why="a smaller draw is a slip of the unit or the exponent")
     draws = [supply.mass_flow(g_, f) for f in flows]
     r = supply.runtime(g_, V, p, res, T, sum(draws))

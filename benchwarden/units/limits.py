@@ -17,13 +17,16 @@ from collections.abc import Sequence
 from benchwarden.errors import ConflictError, InputError, RangeError
 
 __all__ = ["within", "within_dates", "conflict", "plain_number", "MAX_QUANTITY_CHARS", "check_quantity_text", "text_problem",
-           "EARLIEST_RECORD", "RETEST_HORIZON_YEARS"]
+           "EARLIEST_RECORD", "RETEST_HORIZON_YEARS", "MIN_FLOW"]
 
 #: A quantity a person types is short ("152.5 bar(a)"); anything longer is refused before parsing.
 MAX_QUANTITY_CHARS = 100
 #: The oldest date a record may carry: a paper logbook's years are fine, 1970 (a zero clock) or
 #: 1900 (a default date) are not (benchwarden rule).
 EARLIEST_RECORD = dt.date(1990, 1, 1)
+#: A flow too small to be a draw or a leak [standard m³/s, m³/s or kg/s]: 0.001 sccm (a slip of the
+#: unit or the exponent; run times of thousands of years follow from less).
+MIN_FLOW = 1e-3 / 60e6
 #: How far ahead a retest (periodic inspection) date may lie: intervals are at most 10 years
 #: (common practice, from memory), with room for a fill dated before its stamp.
 RETEST_HORIZON_YEARS = 15

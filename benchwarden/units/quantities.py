@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from typing import Literal
 
 from benchwarden.errors import InputError
-from benchwarden.units.limits import check_quantity_text, text_problem
+from benchwarden.units.limits import check_quantity_text, text_problem, within
 from benchwarden.units.parse import parse_flow, parse_mass, parse_volume, shorten, split_number
 
 __all__ = ["check_text", "Ventilation", "parse_ventilation", "Amount", "parse_amount", "parse_fraction"]
@@ -74,10 +74,14 @@ def parse_ventilation(text: str, what: str = "ventilation") -> Ventilation:
         ach, _ = split_number(m.group(1) + " x", what)
         if ach < 0:
             raise InputError(f"{what} {shorten(text)!r} must be zero or more air changes per hour")
+        if ach != 0:
+            within(ach, what, 0.01, 1000.0, "/h", text=text, words="0, or from 0.01 to 1000 air changes per hour")
         return Ventilation(ach, None, text.strip())
     f = parse_flow(text, what=what)
     if f.kind != "actual":
         raise InputError(f"{what} {shorten(text)!r}: give air changes per hour (\"2/h\") or a volume flow (\"120 m3/h\")")
+    if f.value != 0:
+        within(f.value, what, 1e-6, 100.0, "m³/s", text=text, words="0, or from 3.6 L/h to 100 m³/s")
     return Ventilation(None, f.value, text.strip())
 
 
