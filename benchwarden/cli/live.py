@@ -25,6 +25,7 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
+from benchwarden.units.limits import MIN_FLOW, within
 
 REGISTER_MAP = """\
 register map (holding registers, device 1, 127.0.0.1 only):
@@ -63,10 +64,8 @@ def _for(text: str | None) -> float | None:
     """``--for``: a duration above zero and at most a year (None: until Ctrl-C)."""
     if not text:
         return None
-    seconds = parse_duration(text, "--for")
-    if not 0 < seconds <= 366 * 86400:
-        raise input_error(f"--for {text!r}: above 0 s and at most a year")
-    return seconds
+    return within(parse_duration(text, "--for"), "--for", 1.0, 366 * 86400.0, "s", text=text,
+                  words="from 1 s to a year")
 
 
 def cmd_simulate(args: argparse.Namespace) -> int:
@@ -76,9 +75,14 @@ def cmd_simulate(args: argparse.Namespace) -> int:
     if not (0 < args.speed <= 1e6):
         raise input_error(f"--speed {args.speed!r}: above 0 and at most 1e6")
     T = parse_temperature(args.temperature)
-    loss = sum(supply.mass_flow(g_, parse_flow(x, what=w)) for x, w in ((args.leak, "leak"), (args.draw, "draw")))
-    cyl = Cylinder(g_, parse_volume(args.volume, "cylinder volume"), pressure_abs(args.pressure, amb), T, loss,
-                   args.speed, amb)
+    flows = [(parse_flow(x, what=w), w, x) for x, w in ((args.leak, "leak"), (args.draw, "draw"))]
+    for f, w, x in flows:
+        if f.value != 0:
+            within(f.value, w, MIN_FLOW, None, "", text=x, words="0, or at least 0.001 sccm")
+    loss = sum(supply.mass_flow(g_, f) for f, _, _ in flows)
+    V = within(parse_volume(args.volume, "cylinder volume"), "cylinder volume", 1e-5, 5.0, "m³", text=args.volume,
+               words="from 10 mL to 5 m³ (a cylinder bundle)")
+    cyl = Cylinder(g_, V, pressure_abs(args.pressure, amb), T, loss, args.speed, amb)
     duration = _for(args.duration)
     print(f"simulated {g_.name} cylinder on 127.0.0.1:{args.port} (device 1): {d.gauge(cyl.pressure_abs_pa)}, "
           f"losing {loss * 6e4:.3g} g/min, clock ×{args.speed:g}" + (f" for {d.hours(duration / 3600)}"
