@@ -553,3 +553,19 @@ def test_bare_numbers_and_times_take_ascii_digits_only(argv, capsys):
 @pytest.mark.parametrize("char", ["\u202e", "\u2067", "\u200b"])
 def test_invisible_characters_in_typed_labels_are_refused(char, capsys):
     _refused(["swap", *DEMO_ARGS, "--label", f"N2{char}-77"], capsys, "cylinder label", f"U+{ord(char):04X}")
+
+
+@pytest.mark.parametrize("old, new, words", [
+    ('water_volume = "50 L"', 'water_volume = "1e-30 L"', "water_volume"),
+    ('duration = "4 h"', 'duration = "1e-30 h"', "session duration"),
+    ('repetition_rate = "12 Hz"', 'repetition_rate = "1e-30 Hz"', "repetition_rate"),
+    ('per_shot = "1.5 cm3"', 'per_shot = "1e-30 cm3"', "per_shot"),
+    ('flow = "0.25 slpm"', 'flow = "1e-30 slpm"', "flow of draw"),
+])
+def test_tiny_profile_values_are_out_of_range(old, new, words, tmp_path, capsys):
+    # each was accepted and assessed before issue 27 (a session of 1e-26 s, a draw of 1e-30 slpm)
+    text = DEMO.read_text()
+    assert old in text
+    prof = tmp_path / "b.toml"
+    prof.write_text(text.replace(old, new, 1))
+    _refused(["plan", str(prof)], capsys, words, "out of range")

@@ -43,7 +43,7 @@ from benchwarden.storage.profile_fields import (
 )
 from benchwarden.storage.profile_fields import ProfileModel as _Model
 from benchwarden.storage.profile_fields import positive as _positive
-from benchwarden.units.limits import EARLIEST_RECORD, within, within_dates
+from benchwarden.units.limits import EARLIEST_RECORD, MIN_FLOW, within, within_dates
 
 # ----------------------------------------------------------------------------- sections
 
@@ -142,6 +142,10 @@ class Supply(_Model):
         if self.water_volume > 5.0:
             raise InputError(f"supply {self.id}: water_volume {self.water_volume:g} m³ is larger than a cylinder "
                              "bundle (5 m³); check the unit")
+        within(self.water_volume, f"water_volume of supply {self.id}", 1e-5, 5.0, "m³", words="from 10 mL to 5 m³")
+        if self.leak_target is not None:
+            within(self.leak_target.value, f"leak_target of supply {self.id}", MIN_FLOW, None, "",
+                   words="at least 0.001 sccm")
         if (self.gross is None) != (self.tare is None):
             raise InputError(f"supply {self.id}: gross and tare go together")
         if self.gross is not None and self.tare is not None and self.gross < self.tare:
@@ -207,6 +211,11 @@ class Orifice(_Model):
     downstream: PressureQ = Field(default_factory=lambda: u.parse_pressure("0 bar"))
     """Pressure the orifice discharges into (default atmosphere)."""
 
+    @model_validator(mode="after")
+    def _check(self) -> Orifice:
+        within(self.diameter, "orifice diameter", 1e-6, 0.1, "m", words="from 0.001 mm to 100 mm")
+        return self
+
 
 class Valve(_Model):
     kv: float | None = Field(default=None, gt=0, le=1e4, allow_inf_nan=False)
@@ -264,6 +273,11 @@ class Draw(_Model):
             raise InputError(f"draw {self.id}: spacing and exposed parts belong to kind = \"gap\"")
         if self.per_shot is not None:
             _positive(self.per_shot, f"per_shot of draw {self.id}")
+            within(self.per_shot, f"per_shot of draw {self.id}", 1e-9, 1.0, "m³", words="from 1 µL to 1 m³")
+        if self.repetition_rate is not None:
+            within(self.repetition_rate, f"repetition_rate of draw {self.id}", 1e-3, 1e6, "Hz")
+        if self.flow is not None:
+            within(self.flow.value, f"flow of draw {self.id}", MIN_FLOW, None, "", words="at least 0.001 sccm")
         return self
 
 
@@ -298,6 +312,9 @@ class Session(_Model):
     @model_validator(mode="after")
     def _check(self) -> Session:
         _positive(self.duration, "session duration")
+        within(self.duration, "session duration", 60.0, 31 * 86400.0, "s", words="from 1 min to 31 days")
+        if self.repetition_rate is not None:
+            within(self.repetition_rate, "session repetition_rate", 1e-3, 1e6, "Hz")
         return self
 
 
