@@ -3,7 +3,7 @@ file forward (one per ``user_version``), kept apart from the code that opens and
 
 from __future__ import annotations
 
-SCHEMA_VERSION = 4
+SCHEMA_VERSION = 5
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -129,5 +129,29 @@ _MIGRATIONS: dict[int, str] = {
         details TEXT
     );
     CREATE INDEX alarms_bench ON alarms(bench, at);
+    """,
+    5: """
+    CREATE TABLE accepted_stops (
+        id INTEGER PRIMARY KEY,
+        session_id INTEGER NOT NULL REFERENCES sessions(id),
+        at TEXT NOT NULL,
+        operator TEXT,
+        code TEXT NOT NULL,
+        subject TEXT NOT NULL,
+        text TEXT NOT NULL,
+        reason TEXT NOT NULL
+    );
+    CREATE INDEX accepted_stops_session ON accepted_stops(session_id);
+    ALTER TABLE readings ADD COLUMN note TEXT;
+    CREATE INDEX readings_struck ON readings(bench, supply_id) WHERE struck_at IS NOT NULL;
+    CREATE INDEX sessions_bench ON sessions(bench, started_at);
+    CREATE TABLE marks (
+        bench TEXT NOT NULL,
+        supply_id TEXT NOT NULL,
+        what TEXT NOT NULL,
+        reading_id INTEGER NOT NULL,
+        at TEXT NOT NULL,
+        PRIMARY KEY (bench, supply_id, what)
+    );
     """,
 }
