@@ -571,3 +571,13 @@ def test_tiny_profile_values_are_out_of_range(old, new, words, tmp_path, capsys)
     prof = tmp_path / "b.toml"
     prof.write_text(text.replace(old, new, 1))
     _refused(["plan", str(prof)], capsys, words, "out of range")
+
+
+def test_imported_readings_get_the_same_dates_digits_and_text_checks(tmp_path, capsys):
+    log = tmp_path / "old.csv"
+    log.write_text("time,pressure\n1970-01-01T00:00,60 bar\n2026-11-30T09:00,6\u0663 bar\n"
+                   "2026-11-30T10:00,60 bar\u202e\n", encoding="utf-8")
+    code, out, err = _run(["reading", str(DEMO), "n2-A", "--from", str(log)], capsys)
+    text = out + err
+    assert code == 2 and "0 recorded" in text and "3 refused" in text, text
+    assert "from 1990-01-01" in text and "digits 0-9" in text and "U+202E" in text and "\u202e" not in text
