@@ -581,3 +581,15 @@ def test_imported_readings_get_the_same_dates_digits_and_text_checks(tmp_path, c
     text = out + err
     assert code == 2 and "0 recorded" in text and "3 refused" in text, text
     assert "from 1990-01-01" in text and "digits 0-9" in text and "U+202E" in text and "\u202e" not in text
+
+
+def test_the_core_range_checks_carry_their_data_too():
+    from benchwarden.errors import InputError, RangeError
+    from benchwarden.units import check_positive, check_range
+
+    with pytest.raises(RangeError) as exc:
+        check_range(9.0, "cylinder volume", 0.0, 5.0, "m³")
+    assert (exc.value.what, exc.value.value, exc.value.lo, exc.value.hi) == ("cylinder volume", 9.0, 0.0, 5.0)
+    assert "outside the range allowed" in str(exc.value)  # the words stay as they were
+    with pytest.raises(InputError):  # still an InputError (and a ValueError) for every caller
+        check_positive(-1.0, "spacing", "m")

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import TYPE_CHECKING, Literal
 
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.units.constants import ATM_PA, BAR_PA, PSI_PA, T0_K, T_FULL_K
 from benchwarden.units.limits import check_quantity_text
 
@@ -145,8 +145,9 @@ def check_range(value: float, what: str, lo: float, hi: float, unit: str, why: s
     """
     check_finite(value, what)
     if not lo < value <= hi:
-        raise InputError(f"{what} {value:g} {unit} is outside the range allowed: above {lo:g} and at most {hi:g} "
-                         f"{unit}" + (f" ({why})" if why else ""))
+        raise RangeError(f"{what} {value:g} {unit} is outside the range allowed: above {lo:g} and at most {hi:g} "
+                         f"{unit}" + (f" ({why})" if why else ""), what=what, value=value, lo=lo, hi=hi, unit=unit,
+                         why=why)
     return float(value)
 
 
@@ -154,7 +155,8 @@ def check_positive(value: float, what: str, unit: str = "") -> float:
     """Return ``value`` if it is finite and > 0, else raise :class:`InputError`."""
     check_finite(value, what)
     if value <= 0:
-        raise InputError(f"{what} must be greater than zero, got {value:g}{(' ' + unit) if unit else ''}")
+        raise RangeError(f"{what} must be greater than zero, got {value:g}{(' ' + unit) if unit else ''}", what=what,
+                         value=value, lo=0.0, unit=unit)
     return float(value)
 
 
