@@ -38,16 +38,9 @@ from benchwarden.units import (
     pressure_abs,
 )
 from benchwarden.units.constants import BAR_PA
-from benchwarden.units.limits import conflict, within
+from benchwarden.units.limits import conflict, in_range, within
 from benchwarden.workflows import holds
 from benchwarden.workflows.ranges import read_log
-
-#: A hold test's held volume [m³]: a short tube's millilitre to a cylinder bundle (benchwarden rule).
-VOLUME_RANGE = (1e-6, 5.0)
-#: A hold test's length [s]: shorter than a minute resolves nothing; longer than a year is a slip.
-DURATION_RANGE = (60.0, 366 * 86400.0)
-#: A thermometer's standard uncertainty [K] (a hand-held sensor is 0.1–2 K; beyond 10 K it is no reading).
-U_T_RANGE = (0.0, 10.0)
 
 HOLD_LOG_FORMAT = """\
 log file (--log): CSV with a header row, comma-separated, decimal points (a semicolon-separated
@@ -118,12 +111,12 @@ def _volume(args: argparse.Namespace) -> float:
     if args.volume:
         V = parse_volume(args.volume, "held volume")
     elif args.line_length and args.bore:
-        L = within(parse_length(args.line_length, "line length"), "line length", 1e-3, 1e3, "m", text=args.line_length)
-        bore = within(parse_length(args.bore, "bore"), "bore", 1e-4, 0.1, "m", text=args.bore, shown=("mm", 1e-3))
+        L = in_range("line length", parse_length(args.line_length, "line length"), text=args.line_length)
+        bore = in_range("bore", parse_length(args.bore, "bore"), text=args.bore)
         V = hd.line_volume(L, bore)
     else:
         raise input_error("give the held --volume, or --line-length and --bore of the line")
-    return within(V, "held volume", *VOLUME_RANGE, "m³", text=args.volume, words="from 1 mL to 5 m³")
+    return in_range("held volume", V, text=args.volume)
 
 
 def _reserve(args: argparse.Namespace, amb: float) -> float | None:
@@ -146,12 +139,12 @@ def cmd_hold(args: argparse.Namespace) -> int:
                  "a log's readings replace the two readings and their duration")
     V = _volume(args)
     gauge = _gauge(args, amb)
-    u_T = (within(parse_temperature_difference(args.t_uncertainty), "temperature uncertainty", *U_T_RANGE, "K",
-                  text=args.t_uncertainty, why="a thermometer's standard uncertainty")
+    u_T = (in_range("temperature uncertainty", parse_temperature_difference(args.t_uncertainty),
+                    text=args.t_uncertainty)
            if args.t_uncertainty else hd.U_T_DEFAULT)
     target = hd.target_sccm(g_, parse_flow(args.target, what="target leak rate")) if args.target else None
     if target is not None:
-        within(target, "target leak rate", 1e-3, 1e6, "sccm", text=args.target)
+        in_range("target leak rate", target, text=args.target)
     reserve = _reserve(args, amb)
     fit = None
     if args.log:
@@ -166,8 +159,7 @@ def cmd_hold(args: argparse.Namespace) -> int:
         r = hd.hold_two_readings(
             g_, V, pressure_abs(args.start, amb, "start pressure"),
             pressure_abs(args.end, amb, "end pressure"),
-            within(parse_duration(args.duration, "hold duration"), "hold duration", *DURATION_RANGE, "s",
-                   text=args.duration, words="from 1 min to a year"),
+            in_range("hold duration", parse_duration(args.duration, "hold duration"), text=args.duration),
             parse_temperature(args.t_start, "start temperature") if args.t_start else None,
             parse_temperature(args.t_end, "end temperature") if args.t_end else None,
             gauge, u_T, target, reserve, amb)

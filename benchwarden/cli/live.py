@@ -25,7 +25,7 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
-from benchwarden.units.limits import MIN_FLOW, within
+from benchwarden.units.limits import MIN_FLOW, in_range, within
 
 REGISTER_MAP = """\
 register map (holding registers, device 1, 127.0.0.1 only):
@@ -64,8 +64,7 @@ def _for(text: str | None) -> float | None:
     """``--for``: a duration above zero and at most a year (None: until Ctrl-C)."""
     if not text:
         return None
-    return within(parse_duration(text, "--for"), "--for", 1.0, 366 * 86400.0, "s", text=text,
-                  words="from 1 s to a year")
+    return in_range("run duration", parse_duration(text, "--for"), "--for", text)
 
 
 def cmd_simulate(args: argparse.Namespace) -> int:
@@ -80,8 +79,7 @@ def cmd_simulate(args: argparse.Namespace) -> int:
         if f.value != 0:
             within(f.value, w, MIN_FLOW, None, "", text=x, words="0, or at least 0.001 sccm")
     loss = sum(supply.mass_flow(g_, f) for f, _, _ in flows)
-    V = within(parse_volume(args.volume, "cylinder volume"), "cylinder volume", 1e-5, 5.0, "m³", text=args.volume,
-               words="from 10 mL to 5 m³ (a cylinder bundle)")
+    V = in_range("cylinder volume", parse_volume(args.volume, "cylinder volume"), text=args.volume)
     cyl = Cylinder(g_, V, pressure_abs(args.pressure, amb), T, loss, args.speed, amb)
     duration = _for(args.duration)
     print(f"simulated {g_.name} cylinder on 127.0.0.1:{args.port} (device 1): {d.gauge(cyl.pressure_abs_pa)}, "

@@ -28,14 +28,8 @@ from benchwarden.core.regulator import throttle
 from benchwarden.render.plan import format_plan, plan_json
 from benchwarden.storage.profile import load_profile
 from benchwarden.units import parse_flow, parse_length, parse_temperature, pressure_abs
-from benchwarden.units.limits import within
+from benchwarden.units.limits import in_range, within
 from benchwarden.workflows.bench import assess, leak_volume_flow
-
-#: A spark gap's spacing [m]: 10 µm to 1 m (from a trigatron's pin gap to a Marx column's, benchwarden rule).
-GAP_SPACING_RANGE = (1e-5, 1.0)
-#: A spark gap's gas pressure [Pa, absolute]: 1 mbar(a) to 200 bar(a) (below, the gap is a vacuum gap;
-#: above, no gap housing holds it).
-GAP_PRESSURE_RANGE = (100.0, 2e7)
 
 
 def configure(sub: Any, name: str) -> None:
@@ -119,10 +113,8 @@ def cmd_throttle(args: argparse.Namespace) -> int:
 
 def cmd_gap(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
-    p = within(pressure_abs(args.pressure, amb, "gap pressure"), "gap pressure", *GAP_PRESSURE_RANGE, "Pa(a)",
-               text=args.pressure, words="from 1 mbar(a) to 200 bar(a)")
-    spacing = within(parse_length(args.spacing, "gap spacing"), "gap spacing", *GAP_SPACING_RANGE, "m",
-                     text=args.spacing, shown=("mm", 1e-3))
+    p = in_range("gap pressure", pressure_abs(args.pressure, amb, "gap pressure"), text=args.pressure)
+    spacing = in_range("gap spacing", parse_length(args.spacing, "gap spacing"), text=args.spacing)
     b = breakdown(g_, spacing, p, parse_temperature(args.temperature))
     if args.json:
         out = asdict(b)
@@ -151,8 +143,7 @@ def cmd_orifice(args: argparse.Namespace) -> int:
     up = pressure_abs(args.upstream, amb, "upstream pressure")
     down = pressure_abs(args.downstream, amb, "downstream pressure")
     within(args.cd, "--cd", 0.0, 1.0, "", lo_open=True, why="a discharge coefficient")
-    bore = within(parse_length(args.diameter, "orifice diameter"), "orifice diameter", 1e-6, 0.1, "m",
-                  text=args.diameter, words="from 0.001 mm to 100 mm")
+    bore = in_range("orifice diameter", parse_length(args.diameter, "orifice diameter"), text=args.diameter)
     o = orifice_flow(g_, bore, up, down,
                      parse_temperature(args.temperature), args.cd)
     if args.json:

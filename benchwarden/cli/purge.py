@@ -19,7 +19,7 @@ from benchwarden.cli.common import (
 from benchwarden.core import purge as pg
 from benchwarden.core import supply
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
-from benchwarden.units.limits import within
+from benchwarden.units.limits import in_range
 from benchwarden.units.quantities import parse_fraction
 
 
@@ -42,8 +42,7 @@ def configure(sub: Any, name: str) -> None:
 
 def cmd_purge(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
-    V = within(parse_volume(args.volume, "purged volume"), "purged volume", 1e-6, 5.0, "m³", text=args.volume,
-               words="from 1 mL to 5 m³")
+    V = in_range("purged volume", parse_volume(args.volume, "purged volume"), text=args.volume)
     hi = pressure_abs(args.high, amb, "fill pressure")
     lo = pressure_abs(args.low, amb, "vent pressure")
     T = parse_temperature(args.temperature)

@@ -24,7 +24,7 @@ from benchwarden.cli.common import (
 from benchwarden.render.hazards import hazard_items
 from benchwarden.render.room import floor_words, leak_rows, release_oxygen_words
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
-from benchwarden.units.limits import MIN_FLOW, within
+from benchwarden.units.limits import in_range, within
 from benchwarden.units.quantities import parse_amount, parse_ventilation
 from benchwarden.workflows.roomcheck import leak_check, release_check
 
@@ -62,7 +62,7 @@ def cmd_room(args: argparse.Namespace) -> int:
     V = parse_volume(args.room_volume, "room volume")
     if V <= 0:
         raise input_error(f"room volume {args.room_volume!r} must be greater than zero")
-    within(V, "room volume", 1.0, 1e6, "m³", text=args.room_volume, why="a room a person works in")
+    in_range("room volume", V, text=args.room_volume)
     Q = parse_ventilation(args.ventilation).m3_s(V) if args.ventilation else 0.0
     if args.release:
         return _release(args, g_, V, T, amb)
@@ -75,8 +75,7 @@ def cmd_room(args: argparse.Namespace) -> int:
         sv = parse_volume(args.supply_volume, "supply volume")
         sp = pressure_abs(args.supply_pressure, amb, "supply pressure")
     leak = parse_flow(args.leak, reference=args.flow_reference, what="leak")
-    within(leak.value, "leak", MIN_FLOW, None, "", text=args.leak, words="at least 0.001 sccm (or 0.001 mL/min, "
-           "1.7e-11 kg/s)", why="a smaller leak changes no room")
+    in_range("flow", leak.value, "leak", args.leak)
     ck = leak_check(g_, V, leak, Q, args.ventilation_kind, args.oxygen, T, amb, sv, sp)
     return _leak(args, ck, V, Q)
 

@@ -29,11 +29,8 @@ from benchwarden.units import (
     pressure_abs,
 )
 from benchwarden.units.constants import BAR_PA, T_FULL_K
-from benchwarden.units.limits import MIN_FLOW, conflict, within
+from benchwarden.units.limits import conflict, in_range, within
 from benchwarden.workflows.ranges import check_weight_fits
-
-#: A cylinder's water volume [m³]: a 10 mL cartridge to a bundle (the profile allows up to 5 m³ too).
-VOLUME_RANGE = (1e-5, 5.0)
 
 
 def configure(sub: Any, name: str) -> None:
@@ -132,8 +129,7 @@ def cmd_contents(args: argparse.Namespace) -> int:
 
 
 def _volume(text: str) -> float:
-    return within(parse_volume(text, "cylinder volume"), "cylinder volume", *VOLUME_RANGE, "m³", text=text,
-                  words="from 10 mL to 5 m³ (a cylinder bundle)")
+    return in_range("cylinder volume", parse_volume(text, "cylinder volume"), text=text)
 
 
 def _rating(text: str | None, what: str, amb: float, floor_gauge_pa: float = 0.0, why: str = "") -> float | None:
@@ -191,8 +187,7 @@ def cmd_runtime(args: argparse.Namespace) -> int:
     T = parse_temperature(args.temperature)
     flows = [parse_flow(f, reference=args.flow_reference) for f in args.flow]
     for f in flows:
-        within(f.value, "draw", MIN_FLOW, None, "", text=f.text, words="at least 0.001 sccm (or 0.001 mL/min, "
-               "1.7e-11 kg/s)", why="a smaller draw is a slip of the unit or the exponent")
+        in_range("flow", f.value, "draw", f.text)
     draws = [supply.mass_flow(g_, f) for f in flows]
     r = supply.runtime(g_, V, p, res, T, sum(draws))
     now = dt.datetime.now().astimezone()

@@ -43,7 +43,7 @@ from benchwarden.storage.profile_fields import (
 )
 from benchwarden.storage.profile_fields import ProfileModel as _Model
 from benchwarden.storage.profile_fields import positive as _positive
-from benchwarden.units.limits import EARLIEST_RECORD, MIN_FLOW, within, within_dates
+from benchwarden.units.limits import EARLIEST_RECORD, in_range, within_dates
 
 # ----------------------------------------------------------------------------- sections
 
@@ -146,10 +146,9 @@ class Supply(_Model):
         if self.water_volume > 5.0:
             raise InputError(f"supply {self.id}: water_volume {self.water_volume:g} m³ is larger than a cylinder "
                              "bundle (5 m³); check the unit")
-        within(self.water_volume, f"water_volume of supply {self.id}", 1e-5, 5.0, "m³", words="from 10 mL to 5 m³")
+        in_range("cylinder volume", self.water_volume, f"water_volume of supply {self.id}")
         if self.leak_target is not None:
-            within(self.leak_target.value, f"leak_target of supply {self.id}", MIN_FLOW, None, "",
-                   words="at least 0.001 sccm")
+            in_range("flow", self.leak_target.value, f"leak_target of supply {self.id}")
         if (self.gross is None) != (self.tare is None):
             raise InputError(f"supply {self.id}: gross and tare go together")
         if self.gross is not None and self.tare is not None and self.gross < self.tare:
@@ -217,7 +216,7 @@ class Orifice(_Model):
 
     @model_validator(mode="after")
     def _check(self) -> Orifice:
-        within(self.diameter, "orifice diameter", 1e-6, 0.1, "m", words="from 0.001 mm to 100 mm")
+        in_range("orifice diameter", self.diameter)
         return self
 
 
@@ -272,16 +271,16 @@ class Draw(_Model):
             if self.spacing is None:
                 raise InputError(f"gap {self.id}: spacing is required")
             _positive(self.spacing, f"spacing of gap {self.id}")
-            within(self.spacing, f"spacing of gap {self.id}", 1e-5, 1.0, "m", shown=("mm", 1e-3))
+            in_range("gap spacing", self.spacing, f"spacing of gap {self.id}")
         elif self.spacing is not None or self.exposed:
             raise InputError(f"draw {self.id}: spacing and exposed parts belong to kind = \"gap\"")
         if self.per_shot is not None:
             _positive(self.per_shot, f"per_shot of draw {self.id}")
-            within(self.per_shot, f"per_shot of draw {self.id}", 1e-9, 1.0, "m³", words="from 1 µL to 1 m³")
+            in_range("per-shot volume", self.per_shot, f"per_shot of draw {self.id}")
         if self.repetition_rate is not None:
-            within(self.repetition_rate, f"repetition_rate of draw {self.id}", 1e-3, 1e6, "Hz")
+            in_range("repetition rate", self.repetition_rate, f"repetition_rate of draw {self.id}")
         if self.flow is not None:
-            within(self.flow.value, f"flow of draw {self.id}", MIN_FLOW, None, "", words="at least 0.001 sccm")
+            in_range("flow", self.flow.value, f"flow of draw {self.id}")
         return self
 
 
@@ -299,7 +298,7 @@ class Room(_Model):
     @model_validator(mode="after")
     def _check(self) -> Room:
         _positive(self.volume, "room volume")
-        within(self.volume, "room volume", 1.0, 1e6, "m³", why="a room a person works in")
+        in_range("room volume", self.volume)
         return self
 
 
@@ -316,9 +315,9 @@ class Session(_Model):
     @model_validator(mode="after")
     def _check(self) -> Session:
         _positive(self.duration, "session duration")
-        within(self.duration, "session duration", 60.0, 31 * 86400.0, "s", words="from 1 min to 31 days")
+        in_range("session duration", self.duration)
         if self.repetition_rate is not None:
-            within(self.repetition_rate, "session repetition_rate", 1e-3, 1e6, "Hz")
+            in_range("repetition rate", self.repetition_rate, "session repetition_rate")
         return self
 
 

@@ -13,10 +13,11 @@ import datetime as dt
 import re
 import unicodedata
 from collections.abc import Sequence
+from dataclasses import dataclass
 
 from benchwarden.errors import ConflictError, InputError, RangeError
 
-__all__ = ["within", "within_dates", "conflict", "plain_number", "MAX_QUANTITY_CHARS", "check_quantity_text", "text_problem",
+__all__ = ["within", "in_range", "Range", "RANGES", "within_dates", "conflict", "plain_number", "MAX_QUANTITY_CHARS", "check_quantity_text", "text_problem",
            "EARLIEST_RECORD", "RETEST_HORIZON_YEARS", "MIN_FLOW"]
 
 #: A quantity a person types is short ("152.5 bar(a)"); anything longer is refused before parsing.
@@ -67,6 +68,53 @@ def within(value: float, what: str, lo: float | None = None, hi: float | None = 
     typed = repr(text.strip()) if text is not None else (f"{_num(value, factor)}{sp}{name}" if finite else str(value))
     msg = f"{what} {typed} is out of range: {words or ' and '.join(parts) or 'a finite number'}" + (f" ({why})" if why else "")
     raise RangeError(msg, what=what, value=value, lo=lo, hi=hi, unit=unit, why=why)
+
+
+@dataclass(frozen=True)
+class Range:
+    """A named range [SI]: bounds (None: open), the SI unit, the words people read, why it holds."""
+
+    lo: float | None
+    hi: float | None
+    unit: str
+    words: str | None = None
+    why: str = ""
+    shown: tuple[str, float] | None = None
+
+
+#: The ranges of sense and of method every interface (command line, app, profile) applies to a
+#: value of that name; one table, so the app's tools and the commands never disagree.
+RANGES: dict[str, Range] = {
+    "cylinder volume": Range(1e-5, 5.0, "m³", "from 10 mL to 5 m³ (a cylinder bundle)"),
+    "held volume": Range(1e-6, 5.0, "m³", "from 1 mL to 5 m³"),
+    "purged volume": Range(1e-6, 5.0, "m³", "from 1 mL to 5 m³"),
+    "room volume": Range(1.0, 1e6, "m³", why="a room a person works in"),
+    "hold duration": Range(60.0, 366 * 86400.0, "s", "from 1 min to a year"),
+    "session duration": Range(60.0, 31 * 86400.0, "s", "from 1 min to 31 days"),
+    "run duration": Range(1.0, 366 * 86400.0, "s", "from 1 s to a year"),
+    "temperature uncertainty": Range(0.0, 10.0, "K", why="a thermometer's standard uncertainty"),
+    "gap spacing": Range(1e-5, 1.0, "m", shown=("mm", 1e-3)),
+    "gap pressure": Range(100.0, 2e7, "Pa(a)", "from 1 mbar(a) to 200 bar(a)"),
+    "orifice diameter": Range(1e-6, 0.1, "m", "from 0.001 mm to 100 mm"),
+    "line length": Range(1e-3, 1e3, "m"),
+    "bore": Range(1e-4, 0.1, "m", shown=("mm", 1e-3)),
+    "flow": Range(MIN_FLOW, None, "m³/s or kg/s", "at least 0.001 sccm (or 0.001 mL/min, 1.7e-11 kg/s)",
+                  "a smaller flow is a slip of the unit or the exponent"),
+    "target leak rate": Range(1e-3, 1e6, "sccm"),
+    "repetition rate": Range(1e-3, 1e6, "Hz"),
+    "per-shot volume": Range(1e-9, 1.0, "m³", "from 1 µL to 1 m³"),
+}
+
+
+def in_range(name: str, value: float, what: str | None = None, text: str | None = None) -> float:
+    """``value`` [SI] checked against :data:`RANGES` ``[name]``; ``what`` names it in the message
+    (default ``name``), ``text`` is the value as typed.
+
+    >>> in_range("room volume", 36.0)
+    36.0
+    """
+    r = RANGES[name]
+    return within(value, what or name, r.lo, r.hi, r.unit, why=r.why, text=text, shown=r.shown, words=r.words)
 
 
 def within_dates(value: dt.date, what: str, earliest: dt.date | None, latest: dt.date | None, *, why: str = "",

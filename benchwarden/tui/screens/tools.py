@@ -21,6 +21,7 @@ from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.render.room import room_lines
 from benchwarden.units import fmt_hours, fmt_pressure
 from benchwarden.units.constants import BAR_PA
+from benchwarden.units.limits import in_range
 from benchwarden.workflows.session import SessionState
 
 
@@ -121,6 +122,11 @@ class GraphScreen(_Tool):
 # ----------------------------------------------------------------------------- hold test
 
 
+def _hold_duration(seconds: float, text: str) -> float:
+    """The hold's length in its range (one below zero is the core's to refuse, in its words)."""
+    return in_range("hold duration", seconds, text=text) if seconds > 0 else seconds
+
+
 class HoldScreen(_Tool):
     """A hold test on a supply: two readings, or a logged CSV series."""
 
@@ -194,7 +200,8 @@ class HoldScreen(_Tool):
             else:
                 r = hd.hold_two_readings(
                     s.gas, s.water_volume, pressure_abs(val("hold-start"), amb, "start"),
-                    pressure_abs(val("hold-end"), amb, "end"), parse_duration(val("hold-duration")),
+                    pressure_abs(val("hold-end"), amb, "end"),
+                    _hold_duration(parse_duration(val("hold-duration")), val("hold-duration")),
                     parse_temperature(val("hold-tstart")) if val("hold-tstart") else None,
                     parse_temperature(val("hold-tend")) if val("hold-tend") else None, gauge,
                     reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
@@ -298,8 +305,9 @@ class RoomScreen(_Tool):
             return
         gas = st.profile.supply(r.release_supply_id or st.profile.supplies[0].id).gas
         try:
-            extra = rm.leak_volume_flow(gas, parse_flow(event.value, what="leak"), st.plan.temperature_k,
-                                        st.plan.ambient_pa)
+            leak = parse_flow(event.value, what="leak")
+            in_range("flow", leak.value, "leak", event.value)
+            extra = rm.leak_volume_flow(gas, leak, st.plan.temperature_k, st.plan.ambient_pa)
             lk = rm.leak_o2(r.volume_m3, r.vented_m3_s + extra, r.ventilation_m3_s, r.ventilation_kind,
                             r.c0_percent)
         except BenchwardenError as exc:
@@ -521,7 +529,7 @@ class PurgeScreen(_Tool):
         amb, T = st.profile.ambient_pa, st.profile.ambient.temperature
         d = profile_display(st.profile)
         try:
-            V = parse_volume(val("purge-volume"), "purged volume")
+            V = in_range("purged volume", parse_volume(val("purge-volume"), "purged volume"), text=val("purge-volume"))
             hi, lo = pressure_abs(val("purge-high"), amb, "fill pressure"), pressure_abs(val("purge-low"), amb,
                                                                                         "vent pressure")
             target = parse_fraction(val("purge-target"), "target oxygen")
