@@ -593,3 +593,18 @@ def test_the_core_range_checks_carry_their_data_too():
     assert "outside the range allowed" in str(exc.value)  # the words stay as they were
     with pytest.raises(InputError):  # still an InputError (and a ValueError) for every caller
         check_positive(-1.0, "spacing", "m")
+
+
+def test_the_app_tools_apply_the_same_ranges_as_the_commands():
+    from benchwarden.errors import RangeError
+    from benchwarden.tui.screens.tools import _hold_duration
+    from benchwarden.units.limits import RANGES, in_range
+
+    with pytest.raises(RangeError, match="from 1 min to a year"):
+        _hold_duration(1e-7, "0.0000001 s")  # the app's hold tool, as `hold --duration` on the command line
+    assert _hold_duration(3600.0, "1 h") == 3600.0
+    for name, r in RANGES.items():  # every named range admits a value inside it and refuses one outside
+        inside = r.lo if r.lo is not None else r.hi
+        assert in_range(name, inside) == inside
+        with pytest.raises(RangeError):
+            in_range(name, (r.lo or 1.0) / 10 if r.lo else (r.hi or 1.0) * 10)
