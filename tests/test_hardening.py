@@ -233,11 +233,11 @@ def test_a_truncated_journal_gets_recovery_advice(tmp_path, capsys, monkeypatch)
     data = path.read_bytes()
     path.write_bytes(data[: len(data) // 2])
     err = _refused(["sessions", "--journal", str(path)], capsys, "damaged", "nothing was written",
-                   "sqlite3 j.sqlite3 .recover | sqlite3 recovered.sqlite3")
+                   "sqlite3 j.sqlite3 .recover | sqlite3 new.sqlite3")
     assert "not a benchwarden journal" not in err
     (tmp_path / "j.sqlite3.v3.bak").write_bytes(b"")
     for argv in (["status", str(DEMO)], ["reading", str(DEMO), "n2-A", "--pressure", "60 bar"]):
-        _refused(argv + ["--journal", str(path)], capsys, "damaged", "Restore j.sqlite3.v3.bak or recover")
+        _refused(argv + ["--journal", str(path)], capsys, "damaged", "Restore j.sqlite3.v3.bak, or: sqlite3 j.sqlite3 .recover")
     assert path.read_bytes() == data[: len(data) // 2]
 
 

@@ -116,18 +116,17 @@ def _backups(path: Path) -> list[Path]:
 
 
 def read_only_words(path: Path) -> str:
-    return (f"journal {path} is read-only: reading commands (sessions, status, plan, checklist, export) work; this "
-            "one writes to it, so nothing was recorded")
+    return (f"journal {path} is read-only: reading commands (sessions, status, plan, export) work; this one "
+            "writes, so nothing was recorded")
 
 
 def damaged(path: Path, detail: str) -> JournalError:
     """A damaged journal: refused, nothing written, with how to recover (a backup made before an
     upgrade, or SQLite's own ``.recover`` after keeping a copy)."""
     backups = _backups(path)
-    how = f"sqlite3 {path.name} .recover | sqlite3 recovered.sqlite3"
+    how = f"sqlite3 {path.name} .recover | sqlite3 new.sqlite3"
     err = JournalError(f"journal {path} is damaged; nothing was written. "
-                       + (f"Restore {backups[-1].name} or recover: " if backups else "Keep a copy, then recover: ")
-                       + how)
+                       + (f"Restore {backups[-1].name}, or: " if backups else "Keep a copy, then recover: ") + how)
     err.detail = detail  # type: ignore[attr-defined]  # the integrity check's own words
     return err
 
