@@ -15,6 +15,7 @@ from benchwarden.cli.common import (
     add_gas,
     add_json,
     ambient,
+    display,
     emit_json,
     emit_table,
     gas,
@@ -23,10 +24,11 @@ from benchwarden.cli.common import (
 )
 from benchwarden.render.hazards import hazard_items
 from benchwarden.render.room import floor_words, leak_rows, release_oxygen_words
+from benchwarden.render.supply import contents_refusal
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
 from benchwarden.units.limits import in_range, within
 from benchwarden.units.quantities import parse_amount, parse_ventilation
-from benchwarden.workflows.roomcheck import leak_check, release_check
+from benchwarden.workflows.roomcheck import ContentsUnknown, leak_check, release_check
 
 
 def configure(sub: Any, name: str) -> None:
@@ -76,7 +78,10 @@ def cmd_room(args: argparse.Namespace) -> int:
         sp = pressure_abs(args.supply_pressure, amb, "supply pressure")
     leak = parse_flow(args.leak, reference=args.flow_reference, what="leak")
     in_range("flow", leak.value, "leak", args.leak)
-    ck = leak_check(g_, V, leak, Q, args.ventilation_kind, args.oxygen, T, amb, sv, sp)
+    try:
+        ck = leak_check(g_, V, leak, Q, args.ventilation_kind, args.oxygen, T, amb, sv, sp)
+    except ContentsUnknown as exc:
+        raise input_error(contents_refusal(exc.contents, display(args, amb))) from None
     return _leak(args, ck, V, Q)
 
 

@@ -18,6 +18,7 @@ from typing import Any
 
 from benchwarden.errors import JournalError
 from benchwarden.storage import journal_file as jf
+from benchwarden.storage.events import Event
 from benchwarden.storage.journal_schema import _MIGRATIONS, APPLICATION_ID, SCHEMA_VERSION  # noqa: F401
 
 
@@ -255,7 +256,8 @@ class Journal:
         for v in range(version + 1, SCHEMA_VERSION + 1):
             self.db.execute("BEGIN IMMEDIATE")
             try:
-                for stmt in filter(str.strip, _MIGRATIONS[v].split(";")):
+                m = _MIGRATIONS[v]
+                for stmt in (m if isinstance(m, tuple) else filter(str.strip, m.split(";"))):
                     self.db.execute(stmt)
                 self.db.execute(f"PRAGMA user_version = {v}")
                 self.db.execute("COMMIT")
@@ -510,6 +512,12 @@ class Journal:
             "INSERT INTO marks(bench, supply_id, what, reading_id, at) VALUES (?, ?, ?, ?, ?)"
             " ON CONFLICT (bench, supply_id, what) DO UPDATE SET reading_id = excluded.reading_id, at = excluded.at",
             (bench, supply_id, what, reading_id, at)))
+
+    def events(self, bench: str, after_seq: int = 0, limit: int = 1000) -> list[Event]:
+        """The bench's events after sequence number ``after_seq``, oldest first (at most ``limit``)."""
+        return [Event.of_row(r) for r in self._read(
+            "SELECT seq, event_id, bench, kind, at, recorded_at, payload FROM events WHERE bench = ? AND seq > ?"
+            " ORDER BY seq LIMIT ?", (bench, after_seq, limit))]
 
     def supply_readings(self, bench: str, supply_id: str) -> list[ReadingRow]:
         """Every reading of a supply of a bench, in and out of sessions, struck ones included."""

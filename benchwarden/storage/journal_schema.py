@@ -1,13 +1,16 @@
 """The journal's schema: its version, its application id and the migrations that bring an older
-file forward (one per ``user_version``), kept apart from the code that opens and writes it."""
+file forward (one per ``user_version``: SQL, or statements run in turn), kept apart from the code
+that opens and writes it."""
 
 from __future__ import annotations
 
-SCHEMA_VERSION = 5
+from benchwarden.storage.events import EVENT_MIGRATION
+
+SCHEMA_VERSION = 6
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
-_MIGRATIONS: dict[int, str] = {
+_MIGRATIONS: dict[int, str | tuple[str, ...]] = {
     1: """
     CREATE TABLE sessions (
         id INTEGER PRIMARY KEY,
@@ -154,4 +157,5 @@ _MIGRATIONS: dict[int, str] = {
         PRIMARY KEY (bench, supply_id, what)
     );
     """,
+    6: EVENT_MIGRATION,
 }

@@ -30,7 +30,7 @@ from benchwarden.workflows.cylinder import (
 )
 from benchwarden.workflows.findings import Finding, life_findings, live_findings, ranked
 from benchwarden.workflows.holds import LastHold, hold_finding, last_hold_test, standing_leaks
-from benchwarden.workflows.model import Observed, Plan
+from benchwarden.workflows.model import Memo, Observed, Plan, memo_get
 
 __all__ = ["Assessment", "assess", "findings_of", "journal_state", "largest_supply", "leak_volume_flow"]
 
@@ -77,16 +77,18 @@ def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | Non
                                                + extra)), orders)
 
 
-def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.datetime) -> dict[str, OrderBy]:
+def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.datetime,
+              memo: Memo | None = None) -> dict[str, OrderBy]:
     """For every supply: the journal's consumption and the date to order the next cylinder."""
     out: dict[str, OrderBy] = {}
     for sp in plan.supplies:
         s = prof.supply(sp.id)
         try:
-            reserve_kg = g.density(s.gas, sp.temperature_k, sp.reserve_abs_pa) * s.water_volume
+            reserve_kg = memo_get(memo, ("rho", s.gas.key, sp.temperature_k, sp.reserve_abs_pa), g.density, s.gas,
+                                  sp.temperature_k, sp.reserve_abs_pa) * s.water_volume
         except BenchwardenError:
             reserve_kg = 0.0
-        full_usable = max(0.0, full_mass(prof, s) - reserve_kg)
+        full_usable = max(0.0, full_mass(prof, s, memo) - reserve_kg)
         cons = consumption(journal, prof, sp.id)
         if sp.leak_sccm > 0:  # a found leak is consumption too (the readings may predate it)
             leak_week = kg_s_from_sccm(s.gas, sp.leak_sccm) * 7 * SECONDS_PER_DAY

@@ -17,8 +17,10 @@ from textual.widgets import Button, Footer, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
 from benchwarden.errors import BenchwardenError, JournalError
+from benchwarden.render.budget import budget_assumption
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.render.room import room_lines
+from benchwarden.storage.holdlog import parse_log
 from benchwarden.units import fmt_hours, fmt_pressure
 from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import in_range
@@ -194,7 +196,7 @@ class HoldScreen(_Tool):
                 from benchwarden.workflows.ranges import read_log
 
                 text = read_log(val("hold-log"))  # a regular file, read with a size limit
-                fit = hd.hold_from_log(s.gas, s.water_volume, hd.parse_log(text, None, amb), gauge,
+                fit = hd.hold_from_log(s.gas, s.water_volume, parse_log(text, None, amb), gauge,
                                        ambient_pa=amb, reserve_abs=s.reserve.abs_at(amb))
                 r = fit.result
             else:
@@ -217,6 +219,9 @@ class HoldScreen(_Tool):
                  f"smallest leak this test resolves: {r.smallest_resolvable_sccm:.3g} sccm; "
                  f"hold needed for the {r.target_sccm:.3g} sccm target ≈ {fmt_hours(r.hold_needed_h)}"]
         lines += [f"! {n}" for n in r.notes]
+        assumption = budget_assumption(r)
+        if assumption:
+            lines.append(f"! {assumption}")
         lines += [f"• {g}" for g in hd.GUIDANCE]
         if st.journal is not None:
             try:
