@@ -424,7 +424,7 @@ RANGES = [
     (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--leak", "1e-300 sccm"],
      ["leak", "0, or at least 0.001 sccm"]),
     (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--for", "1e-30 s"],
-     ["--for", "from 1 s to a year"]),
+     ["--for", "from 0.1 s to a year"]),
     (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--port", "-1"], ["--port"]),
     (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--port", "70000"], ["--port"]),
     (["simulate", "--gas", "n2", "--volume", "50 L", "--pressure", "150 bar", "--port", "abc"], ["--port"]),

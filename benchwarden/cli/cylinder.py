@@ -264,6 +264,8 @@ RECENT_ALARMS_S = 86400.0
 
 
 def cmd_status(args: argparse.Namespace) -> int:
+    from benchwarden.workflows.watch import last_bad_sample
+
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     d = display(args, prof.ambient_pa, prof)
@@ -303,6 +305,7 @@ def cmd_status(args: argparse.Namespace) -> int:
                                                else ht.leak_rate_uncertainty_sccm if ht else None),
                 "leak_source": "leak watch" if from_live else "hold test" if ht else None,
                 "live": live,
+                "last_bad_sample": last_bad_sample(j, prof, sp.id, now.tzinfo),
                 "hold_test_at": ht.at if ht else None, "hold_test_kind": ht.kind if ht else None,
                 "hold_tests": [{"id": h.row.id, "at": h.row.at, "kind": h.row.kind, "verdict": h.row.verdict,
                                 "leak_rate_sccm": h.row.leak_rate_sccm,

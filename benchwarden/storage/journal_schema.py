@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from benchwarden.storage.events import EVENT_MIGRATION
 
-SCHEMA_VERSION = 6
+SCHEMA_VERSION = 7
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -157,5 +157,9 @@ _MIGRATIONS: dict[int, str | tuple[str, ...]] = {
         PRIMARY KEY (bench, supply_id, what)
     );
     """,
-    6: EVENT_MIGRATION,
+    6: """
+    ALTER TABLE samples ADD COLUMN status TEXT;
+    ALTER TABLE samples ADD COLUMN reason TEXT;
+    """,
+    7: EVENT_MIGRATION,
 }

@@ -35,11 +35,13 @@ from benchwarden.storage.profile_fields import (
     MassQ,
     PressureQ,
     Source,
+    SourceBase,
     TemperatureQ,
     TemperatureSource,
     VentilationQ,
     VoltageQ,
     VolumeQ,
+    shared_port_conflict,
 )
 from benchwarden.storage.profile_fields import ProfileModel as _Model
 from benchwarden.storage.profile_fields import positive as _positive
@@ -389,6 +391,9 @@ class Profile(_Model):
                 if s.gauge is not None and p > s.gauge.range.abs_at(amb):
                     raise _Located(("supplies", i, "reading"), f"supply {s.id}: reading {s.reading.text} is above "
                                                                f"the gauge range {s.gauge.range.text}")
+        clash = shared_port_conflict(self._source_sections())
+        if clash is not None:
+            raise _Located(("supplies",), clash)
         for i, r in enumerate(self.regulators):
             if r.supply not in sup:
                 raise _Located(("regulators", i, "supply"), f"regulator {r.id}: supply {r.supply!r} does not exist "
@@ -409,6 +414,16 @@ class Profile(_Model):
                 raise _Located(("draws", i, "per_shot"),
                                f"draw {d.id}: per_shot needs a repetition_rate (on the draw or the session)")
         return self
+
+    def _source_sections(self) -> list[tuple[str, SourceBase]]:
+        """Every live source with the name of its section."""
+        out: list[tuple[str, SourceBase]] = []
+        for s in self.supplies:
+            out += [(f"[supplies.{k}] of supply {s.id}", getattr(s, k)) for k in ("source", "temperature_source")
+                    if getattr(s, k) is not None]
+        if self.room is not None and self.room.temperature_source is not None:
+            out.append(("[room.temperature_source]", self.room.temperature_source))
+        return out
 
     @property
     def ambient_pa(self) -> float:

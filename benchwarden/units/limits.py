@@ -91,7 +91,7 @@ RANGES: dict[str, Range] = {
     "room volume": Range(1.0, 1e6, "m³", why="a room a person works in"),
     "hold duration": Range(60.0, 366 * 86400.0, "s", "from 1 min to a year"),
     "session duration": Range(60.0, 31 * 86400.0, "s", "from 1 min to 31 days"),
-    "run duration": Range(1.0, 366 * 86400.0, "s", "from 1 s to a year"),
+    "run duration": Range(0.1, 366 * 86400.0, "s", "from 0.1 s to a year"),
     "temperature uncertainty": Range(0.0, 10.0, "K", why="a thermometer's standard uncertainty"),
     "gap spacing": Range(1e-5, 1.0, "m", shown=("mm", 1e-3)),
     "gap pressure": Range(100.0, 2e7, "Pa(a)", "from 1 mbar(a) to 200 bar(a)"),
