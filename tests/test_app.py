@@ -205,7 +205,8 @@ def _overview_snapshot(snap_compare, tmp_path, size):
         for _ in range(3):  # the plan worker, then the refresh it schedules, then layout
             await app.workers.wait_for_complete()
             await pilot.pause()
-        await pilot.pause(0.2)
+        app.clear_notifications()  # toasts time out on the wall clock
+        await pilot.pause()
 
     return snap_compare(app, terminal_size=size, run_before=ready)
 
@@ -270,11 +271,15 @@ def _tool_snapshot(snap_compare, tmp_path, key):
             for minutes, p in ((-30, "66 bar"), (0, "64 bar"), (60, "58 bar")):
                 clock.t = T0 + dt.timedelta(minutes=60 + minutes) if minutes >= 0 else T0 + dt.timedelta(minutes=30)
                 await _enter_reading(app, pilot, p, when=(T0 + dt.timedelta(minutes=minutes)).strftime("%H:%M"))
+        # toasts time out on the wall clock: clear them so that the picture never depends on how
+        # long the steps above took (issue 22: the graph snapshot failed under load)
+        app.clear_notifications()
         await pilot.press(key)
         for _ in range(2):
             await app.workers.wait_for_complete()
             await pilot.pause()
-        await pilot.pause(0.2)
+        app.clear_notifications()
+        await pilot.pause()
 
     return snap_compare(app, terminal_size=(80, 24), run_before=ready)
 
