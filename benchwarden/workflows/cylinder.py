@@ -31,6 +31,7 @@ from benchwarden.storage.profile import Profile, Supply, with_reading, with_weig
 from benchwarden.storage.samples import SampleStore
 from benchwarden.units import PSI_PA, Pressure, fmt_pressure
 from benchwarden.units.constants import BAR_PA, T0_K
+from benchwarden.units.limits import EARLIEST_RECORD, check_quantity_text, within_dates
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows.holds import (
     HoldRecord,
@@ -56,6 +57,8 @@ def _dt(text: str) -> dt.datetime:
 def parse_at(text: str | None, now: dt.datetime) -> dt.datetime:
     """A time a person typed: ``None``/``now``, ``HH:MM`` (today; yesterday when that is more
     than an hour ahead, so 23:55 typed at 00:10 is last night), or an ISO date-time."""
+    if text:
+        check_quantity_text(text, "time")  # digits 0-9 only: int() would read '٠٩:٣٠' as 09:30
     t = (text or "").strip().lower()
     if t in ("", "now"):
         return now
@@ -76,6 +79,8 @@ def parse_at(text: str | None, now: dt.datetime) -> dt.datetime:
         raise InputError(f"time {text!r}: use HH:MM, an ISO date-time (2026-12-01T09:30) or 'now'") from None
     if at > now + dt.timedelta(minutes=1):
         raise InputError(f"time {text} is in the future")
+    within_dates(at, "time", EARLIEST_RECORD, None, text=text,
+                 why="a paper logbook's dates are fine; 1970 or 1900 is a clock or a default, not a reading")
     return at
 
 

@@ -16,13 +16,14 @@ from textual.screen import Screen
 from textual.widgets import Button, Footer, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
-from benchwarden.errors import BenchwardenError, InputError, JournalError
+from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.render.budget import budget_assumption
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.render.room import room_lines
 from benchwarden.storage.holdlog import parse_log
 from benchwarden.units import fmt_hours, fmt_pressure
 from benchwarden.units.constants import BAR_PA
+from benchwarden.units.limits import in_range
 from benchwarden.workflows.session import SessionState
 
 
@@ -123,6 +124,11 @@ class GraphScreen(_Tool):
 # ----------------------------------------------------------------------------- hold test
 
 
+def _hold_duration(seconds: float, text: str) -> float:
+    """The hold's length in its range (one below zero is the core's to refuse, in its words)."""
+    return in_range("hold duration", seconds, text=text) if seconds > 0 else seconds
+
+
 class HoldScreen(_Tool):
     """A hold test on a supply: two readings, or a logged CSV series."""
 
@@ -187,17 +193,17 @@ class HoldScreen(_Tool):
         try:
             gauge = holds.profile_gauge_spec(s.gauge)
             if val("hold-log"):
-                try:
-                    text = Path(val("hold-log")).expanduser().read_text(encoding="utf-8")
-                except (OSError, UnicodeDecodeError) as exc:
-                    raise InputError(f"cannot read {val('hold-log')}: {exc}") from None
+                from benchwarden.workflows.ranges import read_log
+
+                text = read_log(val("hold-log"))  # a regular file, read with a size limit
                 fit = hd.hold_from_log(s.gas, s.water_volume, parse_log(text, None, amb), gauge,
                                        ambient_pa=amb, reserve_abs=s.reserve.abs_at(amb))
                 r = fit.result
             else:
                 r = hd.hold_two_readings(
                     s.gas, s.water_volume, pressure_abs(val("hold-start"), amb, "start"),
-                    pressure_abs(val("hold-end"), amb, "end"), parse_duration(val("hold-duration")),
+                    pressure_abs(val("hold-end"), amb, "end"),
+                    _hold_duration(parse_duration(val("hold-duration")), val("hold-duration")),
                     parse_temperature(val("hold-tstart")) if val("hold-tstart") else None,
                     parse_temperature(val("hold-tend")) if val("hold-tend") else None, gauge,
                     reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
@@ -304,8 +310,9 @@ class RoomScreen(_Tool):
             return
         gas = st.profile.supply(r.release_supply_id or st.profile.supplies[0].id).gas
         try:
-            extra = rm.leak_volume_flow(gas, parse_flow(event.value, what="leak"), st.plan.temperature_k,
-                                        st.plan.ambient_pa)
+            leak = parse_flow(event.value, what="leak")
+            in_range("flow", leak.value, "leak", event.value)
+            extra = rm.leak_volume_flow(gas, leak, st.plan.temperature_k, st.plan.ambient_pa)
             lk = rm.leak_o2(r.volume_m3, r.vented_m3_s + extra, r.ventilation_m3_s, r.ventilation_kind,
                             r.c0_percent)
         except BenchwardenError as exc:
@@ -527,7 +534,7 @@ class PurgeScreen(_Tool):
         amb, T = st.profile.ambient_pa, st.profile.ambient.temperature
         d = profile_display(st.profile)
         try:
-            V = parse_volume(val("purge-volume"), "purged volume")
+            V = in_range("purged volume", parse_volume(val("purge-volume"), "purged volume"), text=val("purge-volume"))
             hi, lo = pressure_abs(val("purge-high"), amb, "fill pressure"), pressure_abs(val("purge-low"), amb,
                                                                                         "vent pressure")
             target = parse_fraction(val("purge-target"), "target oxygen")
