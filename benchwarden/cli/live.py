@@ -152,6 +152,7 @@ def cmd_watch(args: argparse.Namespace) -> int:
     from benchwarden.render.findings import describe
     from benchwarden.storage.journal import Journal, default_path
     from benchwarden.storage.profile import load_profile
+    from benchwarden.workflows.lab import Shipper
     from benchwarden.workflows.session import SessionState
 
     prof = load_profile(args.profile)
@@ -165,6 +166,8 @@ def cmd_watch(args: argparse.Namespace) -> int:
     d = display(args, prof.ambient_pa, prof)
     journal = Journal(default_path(getattr(args, "journal", None)))
     state = SessionState(Path(args.profile), journal)
+    shipper = (Shipper(prof, journal, Path(args.profile).read_text(encoding="utf-8"), state.clock)
+               if prof.lab is not None else None)
     stop = {"now": False}
 
     def _term(signum: int, frame: object) -> None:
@@ -186,9 +189,13 @@ def cmd_watch(args: argparse.Namespace) -> int:
         while not stop["now"] and time.monotonic() < end:
             state.poll_sources()
             mono = time.monotonic()
+            if shipper is not None:
+                shipper.poll(mono)
             if mono >= next_line:
                 next_line = mono + every
                 _report(state, d, describe, live_text, sys.stderr)
+                if shipper is not None:
+                    _lab_line(shipper)
             pause = min(state.watcher.next_due(), next_line - time.monotonic(), end - time.monotonic())
             time.sleep(min(max(pause, 0.02), 1.0))
     except KeyboardInterrupt:
@@ -197,9 +204,18 @@ def cmd_watch(args: argparse.Namespace) -> int:
         signal.signal(signal.SIGTERM, old)
         stored = sum(f.stored for f in state.watcher.feeds) if state.watcher is not None else 0
         state.stop_watching()
+        if shipper is not None:
+            shipper.join()
         journal.close()
     print(f"stopped: {stored} sample(s) stored", flush=True)
     return 0
+
+
+def _lab_line(shipper: Any) -> None:
+    """When the lab last received this bench's record (and why not, when it is away)."""
+    ok = shipper.last_ok
+    print("  lab: " + (f"last received {ok:%H:%M:%S}" if ok else "nothing received yet")
+          + (f"; not reachable now ({shipper.last_error[:80]}), retrying" if shipper.last_error else ""), flush=True)
 
 
 def _report(state: Any, d: Any, describe: Any, live_text: Any, err: Any) -> None:
