@@ -22,7 +22,7 @@ from benchwarden.storage.profile import Profile
 from benchwarden.workflows.findings import Finding, lab_findings, ranked
 from benchwarden.workflows.status import status_document
 
-__all__ = ["PushResult", "push", "LabView", "lab_view", "BATCH", "ORDER_HORIZON_DAYS", "ALARM_WINDOW_S"]
+__all__ = ["init_lab", "safe_url", "Shipper", "PushResult", "push", "LabView", "lab_view", "BATCH", "ORDER_HORIZON_DAYS", "ALARM_WINDOW_S"]
 
 #: Events per transaction in a push.
 BATCH = 500
@@ -31,6 +31,26 @@ ORDER_HORIZON_DAYS = 14
 #: Alarms shown for a bench: those the lab received in the last day [s].
 ALARM_WINDOW_S = 86400.0
 _SENT, _PROFILE = "lab-sent", "lab-profile"
+
+
+def init_lab(url: str, benches: list[str]) -> list[str]:
+    """Create or migrate the lab schema and its roles, and add the benches (idempotent); returns
+    what was done."""
+    from benchwarden.lab import schema
+
+    done: list[str] = []
+    for b in benches:
+        schema.bench_role(b)  # a bad id is refused before anything is written
+    with client.connect(url) as conn:
+        done += schema.migrate(conn)
+        for b in benches:
+            done += schema.add_bench(conn, b)
+    return done
+
+
+def safe_url(url: str) -> str:
+    """The URL without a password, for messages."""
+    return client.safe_url(url)
 
 
 @dataclass(frozen=True)
