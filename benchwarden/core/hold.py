@@ -29,6 +29,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from benchwarden.core import gas as g
 from benchwarden.core.tables import DensityTable
@@ -177,6 +178,91 @@ def mass_change_uncertainty(dm1p: float, dm2p: float, dm1T: float, dm2T: float, 
     4.2426
     """
     return math.sqrt((dm1p * u_p) ** 2 + (dm2p * u_p) ** 2 + (dm1T * u_T) ** 2 + (dm2T * u_T) ** 2)
+
+
+@dataclass(frozen=True)
+class MassFit:
+    """The mass of a held or drawn volume fitted against time (:func:`fit_mass_loss`)."""
+
+    #: mass loss rate [kg/s] (positive: the mass falls) and its fit standard error [kg/s]
+    rate_kg_s: float
+    se_kg_s: float
+    #: combined standard uncertainty of the rate [kg/s]: the fit's ⊕ the readings' budget
+    u_kg_s: float
+    #: the budget of the mass change between the first and the last reading [kg]
+    u_dm_kg: float
+    #: ∂m/∂p at the last reading [kg/Pa], the span of the series [s]
+    dmdp_last: float
+    span_s: float
+    #: the fitted line's coefficients (slope [kg/s], intercept [kg]) about the mean time
+    coef: tuple[float, float]
+    t_mean_s: float
+
+
+def fit_mass_loss(gas: g.Gas, volume_m3: float, t_s: Any, p_abs_pa: Any, T_k: Any, masses_kg: Any,
+                  u_p: float, u_T: float) -> MassFit:
+    """Least-squares rate of mass loss from a series of readings, with its GUM uncertainty: the
+    one fit and the one budget of logged hold tests, the leak watch and a session's observed
+    draw.
+
+    Parameters
+    ----------
+    gas : the gas in the volume
+    volume_m3 : Held volume, [m³]
+    t_s, p_abs_pa, T_k : Times [s], absolute pressures [Pa] and temperatures [K] of the readings
+    masses_kg : The held mass at each reading, [kg] (real-gas density × volume, by the caller)
+    u_p : Standard uncertainty of each of the first and last pressure readings, [Pa]
+    u_T : Standard uncertainty of each of the first and last temperatures, [K]
+
+    Notes
+    -----
+    Slope by ``numpy.polyfit`` about the mean time, its standard error from the covariance (with
+    three points the residual variance is applied by hand; with two the slope is the difference
+    and the standard error zero). The systematic part is the mass-change budget of two readings
+    (:func:`mass_change_uncertainty`) over the span, combined in quadrature with the standard
+    error.
+
+    References
+    ----------
+    .. [1] JCGM 100:2008 (GUM), 5.1 (law of propagation of uncertainty).
+    .. [2] EN 13184:2001 / ASTM E2930-13, pressure-change (decay) leak test.
+
+    Examples
+    --------
+    Three readings of an ideal straight fall of 1 g/h, no scatter, no gauge uncertainty:
+
+    >>> import numpy as np
+    >>> n2 = g.parse_gas("nitrogen")
+    >>> f = fit_mass_loss(n2, 0.05, np.array([0.0, 3600.0, 7200.0]), np.array([2e6, 2e6, 2e6]),
+    ...                   np.array([293.15] * 3), np.array([1.0, 0.999, 0.998]), 0.0, 0.0)
+    >>> round(f.rate_kg_s * 3600, 6), round(f.u_kg_s, 12)
+    (0.001, 0.0)
+    """
+    import numpy as np
+
+    t = np.asarray(t_s, dtype=float)
+    m = np.asarray(masses_kg, dtype=float)
+    n = len(t)
+    span = float(t[-1] - t[0])
+    if n < 2 or span <= 0:
+        raise InputError("a rate needs at least two readings at different times")
+    tm = float(t.mean())
+    tc = t - tm
+    if n >= 3:
+        coef, cov = np.polyfit(tc, m, 1, cov="unscaled") if n == 3 else np.polyfit(tc, m, 1, cov=True)
+        resid = m - np.polyval(coef, tc)
+        s2 = float(resid @ resid) / max(1, n - 2)
+        se = math.sqrt(max(0.0, float(cov[0, 0]) * (s2 if n == 3 else 1.0)))
+        slope, icpt = float(coef[0]), float(coef[1])
+    else:
+        slope = float((m[-1] - m[0]) / span)
+        icpt, se = float(m.mean()), 0.0
+    p = np.asarray(p_abs_pa, dtype=float)
+    T = np.asarray(T_k, dtype=float)
+    _, dm1p, dm1T = _dm(gas, volume_m3, float(T[0]), float(p[0]))
+    _, dm2p, dm2T = _dm(gas, volume_m3, float(T[-1]), float(p[-1]))
+    u_dm = mass_change_uncertainty(dm1p, dm2p, dm1T, dm2T, u_p, u_T)
+    return MassFit(-slope, se, math.hypot(se, u_dm / span), u_dm, dm2p, span, (slope, icpt), tm)
 
 
 #: The verdicts of a hold test or the leak watch, worst first.
@@ -423,28 +509,20 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     T = np.asarray(log.T_k) if log.T_k is not None else np.full(n, T_default)
     table = DensityTable(gas, float(p.min()) * 0.999, float(p.max()) * 1.001, float(T.min()), float(T.max()) + 1e-6)
     m = table.density(p, T) * volume_m3
-    tc = t - t.mean()
-    coef, cov = np.polyfit(tc, m, 1, cov="unscaled") if n == 3 else np.polyfit(tc, m, 1, cov=True)
-    slope = -float(coef[0])
-    fit = np.polyval(coef, tc)
-    resid = m - fit
-    dof = max(1, n - 2)
-    s2 = float(resid @ resid) / dof
-    se = math.sqrt(float(cov[0, 0]) * (s2 if n == 3 else 1.0))
     notes: list[str] = []
-    m1, dm1p, dm1T = _dm(gas, volume_m3, float(T[0]), float(p[0]))
-    m2, dm2p, dm2T = _dm(gas, volume_m3, float(T[-1]), float(p[-1]))
-    span = float(t[-1] - t[0])
-    # the same GUM budget as two readings (first and last), spread over the span of the log,
-    # plus the scatter about the fitted line (its standard error) in quadrature
+    # the one fit and budget (first and last reading, spread over the span, ⊕ the fit's scatter)
     u_p = gauge.u_difference_pa if gauge is not None else 0.0
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
     if log.T_k is None:
         notes.append(f"no temperature column: assumed constant {fmt_temperature(T_default)}")
     u_T_eff = u_T if log.T_k is not None else max(u_T, U_T_UNMEASURED)
-    u_dm = mass_change_uncertainty(dm1p, dm2p, dm1T, dm2T, u_p, u_T_eff)
-    u_rate = math.hypot(se, u_dm / span)
+    mf = fit_mass_loss(gas, volume_m3, t, p, T, m, u_p, u_T_eff)
+    tc = t - mf.t_mean_s
+    coef = np.array(mf.coef)
+    fit = np.polyval(coef, tc)
+    resid = m - fit
+    slope, se, u_rate, dm2p, span = mf.rate_kg_s, mf.se_kg_s, mf.u_kg_s, mf.dmdp_last, mf.span_s
     curved = False
     if n >= 5:
         c2, cov2 = np.polyfit(tc, m, 2, cov=True)

@@ -325,17 +325,18 @@ def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float
 
 def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s: float,
                   readings: list[tuple[dt.datetime, float, float]], u_p: float = 0.0, supply_id: str = "",
-                  ) -> Observed | None:
-    """Fit the real-gas mass against time from (time, p_abs, T) readings by least squares.
-
-    Mass per reading m = ρ(T, p)·V (CoolProp HEOS); the slope's uncertainty combines the fit's
-    standard error (numpy ``polyfit`` covariance, with two readings none) and the gauge's
-    reading uncertainty ``u_p`` on the first and last reading (GUM). ``resolved`` when the draw
-    exceeds twice that uncertainty (only then does it project a reserve time);
+                  u_T: float = 0.0) -> Observed | None:
+    """The observed draw of a supply: the real-gas mass (CoolProp HEOS, ρ(T, p)·V) of its readings
+    fitted against time with the one fit and budget of hold tests
+    (:func:`benchwarden.core.hold.fit_mass_loss`: least squares, its standard error ⊕ the GUM
+    budget of the first and last reading, ``u_p`` [Pa] and ``u_T`` [K] each). ``resolved`` when
+    the draw exceeds twice that uncertainty (only then does it project a reserve time);
     ``faster_than_planned`` when it is resolved and exceeds the plan by more than twice it.
     Returns None with fewer than two readings or no elapsed time.
     """
     import numpy as np
+
+    from benchwarden.core.hold import fit_mass_loss
 
     if len(readings) < 2:
         return None
@@ -343,22 +344,12 @@ def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s
     t = np.array([(r[0] - t0).total_seconds() for r in readings])
     if t[-1] - t[0] <= 0:
         return None
-    m = np.array([g.density(gas, T, p) * volume_m3 for _, p, T in readings])
-    if len(t) >= 3:
-        coef, cov = np.polyfit(t, m, 1, cov="unscaled")
-        resid = m - np.polyval(coef, t)
-        s2 = float(resid @ resid) / (len(t) - 2) if len(t) > 2 else 0.0
-        se = math.sqrt(max(0.0, float(cov[0, 0]) * s2))
-        slope = float(coef[0])
-    else:
-        slope = float((m[-1] - m[0]) / (t[-1] - t[0]))
-        se = 0.0
-    span = float(t[-1] - t[0])
-    p_last, T_last = readings[-1][1], readings[-1][2]
-    dp = max(p_last * 1e-5, 1.0)
-    dmdp = (g.density(gas, T_last, p_last + dp) - g.density(gas, T_last, p_last - dp)) * volume_m3 / (2 * dp)
-    u = math.hypot(se, math.sqrt(2.0) * dmdp * u_p / span)
-    draw = -slope
+    p = np.array([r[1] for r in readings])
+    T = np.array([r[2] for r in readings])
+    m = np.array([g.density(gas, Tk, pk) * volume_m3 for pk, Tk in zip(p, T, strict=True)])
+    mf = fit_mass_loss(gas, volume_m3, t, p, T, m, u_p, u_T)
+    draw, u = mf.rate_kg_s, mf.u_kg_s
+    T_last = readings[-1][2]
     m_now = float(m[-1])
     m_res = g.density(gas, T_last, reserve_abs) * volume_m3
     # a draw not resolved beyond its expanded uncertainty (U = 2u, GUM) projects nothing: the
@@ -367,8 +358,7 @@ def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s
     hours = (m_now - m_res) / draw / 3600.0 if draw > 0 and resolved else math.inf
     at = _clock_after(readings[-1][0], hours) if resolved else None
     # the fitted line as pressures at the first and last reading (for plots)
-    fitted = [float(m[0] + slope * 0.0), float(m[0] + slope * span)] if len(t) < 3 else \
-        [float(np.polyval(coef, t[0])), float(np.polyval(coef, t[-1]))]
+    fitted = [float(np.polyval(mf.coef, x - mf.t_mean_s)) for x in (t[0], t[-1])]
     fit_p = tuple(g.pressure_from_density(gas, max(x, 1e-9) / volume_m3, T_last) for x in fitted)
     fit_at = (readings[0][0].isoformat(timespec="seconds"), readings[-1][0].isoformat(timespec="seconds"))
     return Observed(supply_id, len(readings), draw, u, planned_kg_s, resolved and draw - planned_kg_s > 2.0 * u,

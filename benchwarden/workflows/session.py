@@ -14,6 +14,7 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from benchwarden.core.hold import U_T_DEFAULT
 from benchwarden.errors import InputError, JournalError
 from benchwarden.storage.journal import Journal, ReadingRow
 from benchwarden.storage.profile import Profile, load_profile, with_reading
@@ -173,10 +174,10 @@ class SessionState:
             if len(rs) < 2:
                 continue
             gauge = profile_gauge_spec(s.gauge)
-            u_p = gauge.u_reading_pa if gauge is not None else 0.0
+            u_p = gauge.u_difference_pa if gauge is not None else 0.0
             ob = pl.observed_draw(s.gas, s.water_volume, sp.reserve_abs_pa, sp.draw_kg_s,
                                   [(r.at, r.pressure_abs_pa, r.temperature_k) for r in rs
-                                   if r.pressure_abs_pa is not None], u_p, s.id)
+                                   if r.pressure_abs_pa is not None], u_p, s.id, U_T_DEFAULT)
             if ob is not None:
                 self.observed[s.id] = ob
 

@@ -28,6 +28,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from benchwarden.core import hold as hd
+from benchwarden.core.hold import U_T_DEFAULT
 from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.storage.journal import Journal
 from benchwarden.storage.profile import Profile
@@ -245,7 +246,7 @@ def live_draw(journal: Journal | None, prof: Profile, supply_id: str, since: dt.
     rows = [(_dt(float(a), now.tzinfo), float(b), float(c)) for a, b, c in zip(t, p, T, strict=True)]
     try:
         return pl.observed_draw(s.gas, s.water_volume, reserve_abs_pa, planned_kg_s, rows,
-                                spec.u_reading_pa if spec is not None else 0.0, supply_id)
+                                spec.u_difference_pa if spec is not None else 0.0, supply_id, U_T_DEFAULT)
     except BenchwardenError:
         return None
 
