@@ -21,6 +21,7 @@ from benchwarden.storage.profile import Draw, Profile, Supply
 from benchwarden.units import ATM_PA, REFERENCES, T0_K
 from benchwarden.units.constants import T_FULL_K
 from benchwarden.workflows import findings as fd
+from benchwarden.workflows.holds import profile_gauge_spec
 from benchwarden.workflows.model import (
     PROJECTION_POINTS,
     DrawPlan,
@@ -241,7 +242,8 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         hours = usable / mdot / 3600.0 if mdot > 0 else math.inf
         band = (hours, hours)
         if s.gauge is not None and not model.liquefied and mdot > 0:
-            mpe = s.gauge.accuracy_class / 100.0 * s.gauge.range.typed_pa
+            spec = profile_gauge_spec(s.gauge)
+            mpe = spec.mpe_pa if spec is not None else 0.0  # the gauge's own rule (EN 837-1)
             lo_p, hi_p = max(p_now - mpe, res_abs * 1.0001), p_now + mpe
             h_lo = max(0.0, (model.mass_at(lo_p) - mass_res) / mdot / 3600.0)
             h_hi = max(0.0, (model.mass_at(hi_p) - mass_res) / mdot / 3600.0)
