@@ -31,19 +31,27 @@ def configure(sub: Any, name: str) -> None:
 
 
 def cmd_sessions(args: argparse.Namespace) -> int:
+    from benchwarden.render.numbers import fmt_count
+    from benchwarden.workflows.record import session_records
+
     j = journal_if_exists(args, readonly=True)
-    rows = j.sessions() if j is not None else []
+    rows = session_records(j) if j is not None else []
     if args.json:
-        emit_json({"journal": str(default_path(getattr(args, "journal", None))), "sessions": [asdict(r) for r in rows]})
+        emit_json({"journal": str(default_path(getattr(args, "journal", None))),
+                   "sessions": [asdict(r) | {"notes": list(r.notes)} for r in rows]})
         return 0
     if not rows:
         print(f"no sessions in {default_path(getattr(args, 'journal', None))}")
         return 0
-    print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  {'alarms':>6}  bench")
+    print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  {'alarms':>6}  {'shots':>8}  operator"
+          "  ·  bench")
     for r in rows:
         stop = Display.clock(r.stopped_at) if r.stopped_at else "left running"
+        shots = fmt_count(r.shots) if r.shots is not None else "—"
         print(f"{r.id:>4}  {Display.clock(r.started_at):<16}  {stop:<16}  {r.readings:>8}  {r.alarms:>6}  "
-              f"{clean(r.bench)}")
+              f"{shots:>8}  {clean(r.operator or '—')}  ·  {clean(r.bench)}")
+        for note in r.notes:
+            print(f"{'':>4}  note: {clean(note)}")
     return 0
 
 

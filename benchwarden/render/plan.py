@@ -8,6 +8,7 @@ from typing import Any
 
 from benchwarden.render.display import Display
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.render.numbers import fmt_count
 from benchwarden.workflows.bench import Assessment
 from benchwarden.workflows.findings import counts
 
@@ -53,7 +54,7 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
                 f"    draw {s.draw_kg_s * 6e4:.3f} g/min; to reserve {d.hours(s.hours_to_reserve)}{band}"
                 + (f", at {d.clock(s.reserve_at, _start(plan))}" if s.reserve_at else "")]
         if s.shots_to_reserve:
-            out.append(f"    shots to reserve {s.shots_to_reserve:,.0f}")
+            out.append(f"    shots to reserve {fmt_count(s.shots_to_reserve)}")
         if s.cost_per_hour is not None:
             out.append(f"    gas cost {s.cost_per_hour:.2f} {s.currency}/h")
     out += ["", "Regulators"]

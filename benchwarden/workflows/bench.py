@@ -27,6 +27,7 @@ from benchwarden.workflows.cylinder import (
 from benchwarden.workflows.findings import Finding, life_findings, live_findings, ranked
 from benchwarden.workflows.holds import LastHold, hold_finding, last_hold_test
 from benchwarden.workflows.model import Observed, Plan
+from benchwarden.workflows.purges import PurgeState, purge_states
 
 __all__ = ["Assessment", "assess", "findings_of", "journal_state", "largest_supply", "leak_volume_flow"]
 
@@ -44,6 +45,8 @@ class Assessment:
     last_hold: LastHold | None
     findings: tuple[Finding, ...]
     orders: Mapping[str, OrderBy] = field(default_factory=dict)
+    #: supplies whose cylinder was changed, with the purge recorded since (checklist item)
+    purges: Mapping[str, PurgeState] = field(default_factory=dict)
 
 
 def findings_of(plan: Plan, last_hold: LastHold | None, observed: Mapping[str, Observed] | None = None,
@@ -69,7 +72,7 @@ def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | Non
     orders = orders_of(prof, plan, journal, now)
     extra = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
     return Assessment(plan, last, tuple(ranked(list(findings_of(plan, last, observed, session_end, running))
-                                               + extra)), orders)
+                                               + extra)), orders, purge_states(journal, prof))
 
 
 def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.datetime) -> dict[str, OrderBy]:

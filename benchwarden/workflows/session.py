@@ -34,8 +34,14 @@ from benchwarden.workflows.cylinder import (
     record_reading,
 )
 from benchwarden.workflows.findings import Finding, alarm_findings
-from benchwarden.workflows.holds import LastHold, last_hold_test, profile_gauge_spec
+from benchwarden.workflows.holds import (
+    LastHold,
+    last_hold_test,
+    profile_gauge_spec,
+    reading_step_pa,
+)
 from benchwarden.workflows.model import Observed, Plan
+from benchwarden.workflows.purges import purge_states
 from benchwarden.workflows.watch import (
     AlarmBook,
     LeakWatch,
@@ -226,10 +232,14 @@ class SessionState:
         return reading
 
     def parse_time(self, text: str) -> dt.datetime:
-        at = parse_at(text, self.clock())
-        if self.started_at is not None and self.running and at < self.started_at - dt.timedelta(hours=24):
-            raise InputError(f"time {text} is more than a day before the session started")
-        return at
+        """A typed time: a date and time, ``yesterday 18:00``, or ``HH:MM`` (its most recent past
+        occurrence); never in the future (:func:`benchwarden.workflows.cylinder.parse_at`)."""
+        return parse_at(text, self.clock())
+
+    def in_session(self, reading: Reading) -> bool:
+        """Whether a reading counts in the running session: taken after it started (a time
+        before the start is an idle reading, whatever moment it was typed)."""
+        return self.running and (self.started_at is None or reading.at >= self.started_at)
 
     def questions(self, reading: Reading) -> list[Question]:
         """What is implausible about a checked reading (a rise without a change, a drop far faster
@@ -243,7 +253,7 @@ class SessionState:
         (committed), then memory. If the journal write fails the reading is kept in memory,
         marked unsaved (retried by :meth:`retry_unsaved`), and the JournalError is raised."""
         assert self.profile is not None
-        if self.running and reading.pressure_abs_pa is not None:
+        if self.in_session(reading) and reading.pressure_abs_pa is not None:
             self.readings.setdefault(reading.supply_id, []).append(reading)
         if self.journal is not None:
             try:
@@ -256,8 +266,8 @@ class SessionState:
 
     def _write_reading(self, reading: Reading) -> None:
         assert self.journal is not None and self.profile is not None
-        record_reading(self.journal, self.profile, reading.entry(), self.session_id if self.running else None,
-                       self.clock())
+        record_reading(self.journal, self.profile, reading.entry(), self.session_id if self.in_session(reading)
+                       else None, self.clock())
 
     def retry_unsaved(self) -> int:
         """Write the readings the journal refused before; returns how many are still unsaved."""
@@ -317,6 +327,12 @@ class SessionState:
         if note:
             self.journal.add_note(self.session_id, self.clock().isoformat(timespec="seconds"), note)
 
+    def reading_step(self, supply_id: str) -> float | None:
+        """The pressure step the supply's gauge resolves [Pa] (figures are shown to it)."""
+        if self.profile is None:
+            return None
+        return reading_step_pa(self.profile.supply(supply_id).gauge)
+
     def last_reading(self, supply_id: str) -> Reading | None:
         rs = self.readings.get(supply_id)
         return max(rs, key=lambda r: r.at) if rs else None
@@ -346,8 +362,9 @@ class SessionState:
         """The bench now, as the command line's ``plan`` and ``checklist`` see it."""
         assert self.plan is not None
         last = self.last_hold_test()
+        assert self.profile is not None
         return Assessment(self.plan, last, findings_of(self.plan, last, self.observed, self.session_end,
-                                                       self.running))
+                                                       self.running), purges=purge_states(self.journal, self.profile))
 
     def findings(self) -> list[Finding]:
         """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""

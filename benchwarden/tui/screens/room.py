@@ -1,0 +1,88 @@
+"""Room oxygen: the safety case and today's contents released, plus a leak typed in."""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.containers import VerticalScroll
+from textual.widgets import Header, Input, Label, Static
+
+from benchwarden.errors import BenchwardenError
+from benchwarden.tui.screens.base import ToolScreen
+from benchwarden.tui.widgets import KeysFooter
+from benchwarden.units import fmt_hours
+
+
+class RoomScreen(ToolScreen):
+    """Room oxygen from the plan, plus an extra leak the person types."""
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        with VerticalScroll():
+            yield Static("", id="room-figures")
+            yield Label("Add a leak (e.g. the last hold test's, or '5 slpm') and press Enter")
+            yield Input(placeholder="5 slpm", id="room-leak")
+            yield Static("", id="room-extra")
+        yield KeysFooter()
+
+    def on_mount(self) -> None:
+        from benchwarden.core import room as rm
+
+        st = self.state
+        assert st.plan is not None
+        r = st.plan.room
+        self.query_one("#room-leak", Input).focus()
+        if r is None:
+            self.query_one("#room-figures", Static).update(Text("The profile has no [room]: add its volume and "
+                                                                "ventilation."))
+            return
+        sealed = rm.release(r.volume_m3, r.release.release_volume_m3, "sealed", r.release.c0_percent)
+        worst = r.worst_case or r.release
+        lines = [f"Room {r.volume_m3:g} m³, ventilation {r.ventilation_m3_s * 3600:.0f} m³/h ({r.ventilation_kind})",
+                 f"WORST CASE (the safety case): all of {r.worst_case_supply_id or r.release_supply_id}, full, released "
+                 f"at once: {worst.o2_percent_after_release:.2f} % O2, {worst.gas_percent_after_release:.2f} % of the "
+                 f"gas — {worst.effect or 'stays above 19.5 %'}",
+                 f"Every supply kept in the room, full: "
+                 f"{(r.all_supplies or worst).o2_percent_after_release:.2f} % O2",
+                 f"Today's contents of {r.release_supply_id} released ({r.release.release_volume_m3:.2f} m³ at room "
+                 "conditions):",
+                 f"  {r.release.o2_percent_after_release:5.2f} % O2  {r.release.method}",
+                 f"  {r.release_mixed.o2_percent_after_release:5.2f} % O2  {r.release_mixed.method}",
+                 f"  {sealed.o2_percent_after_release:5.2f} % O2  {sealed.method}",
+                 f"  {r.release.effect or 'stays above 19.5 %'}"]
+        if r.leak is not None:
+            lk = r.leak
+            lines += [f"Draws venting into the room {r.vented_m3_s * 6e4:.2f} L/min: steady "
+                      f"{lk.o2_percent_steady:.2f} % O2; to 19.5 % {fmt_hours(lk.minutes_to_19_5 / 60)}; "
+                      f"to 18 % {fmt_hours(lk.minutes_to_18 / 60)} ({lk.method})"]
+        lines += [f"! {n}" for n in r.notes]
+        lines.append("Estimates of a well-mixed room: use a fixed oxygen monitor with alarm where gas can "
+                     "accumulate; follow local codes and the supplier's safety data sheet.")
+        self.query_one("#room-figures", Static).update(Text("\n".join(lines)))
+        last = st.last_hold_test()
+        if last is not None and last.leak_rate_sccm > 0:
+            self.query_one("#room-leak", Input).value = f"{last.leak_rate_sccm:.3g} sccm"
+        self.query_one("#room-leak", Input).focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        from benchwarden.core import room as rm
+        from benchwarden.units import parse_flow
+
+        st = self.state
+        assert st.plan is not None and st.profile is not None
+        r = st.plan.room
+        out = self.query_one("#room-extra", Static)
+        if r is None:
+            return
+        gas = st.profile.supply(r.release_supply_id).gas
+        try:
+            extra = rm.leak_volume_flow(gas, parse_flow(event.value, what="leak"), st.plan.temperature_k,
+                                        st.plan.ambient_pa)
+            lk = rm.leak_o2(r.volume_m3, r.vented_m3_s + extra, r.ventilation_m3_s, r.ventilation_kind,
+                            r.release.c0_percent)
+        except BenchwardenError as exc:
+            out.update(Text(f"✖ {exc}"))
+            return
+        out.update(Text(f"with {event.value} more: steady {lk.o2_percent_steady:.2f} % O2; to 19.5 % "
+                   f"{fmt_hours(lk.minutes_to_19_5 / 60)}; recovery {fmt_hours(lk.minutes_to_recover / 60)}; "
+                   f"{lk.effect or 'stays above 19.5 %'}"))
