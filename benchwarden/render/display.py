@@ -204,12 +204,12 @@ def live_text(lv: Any, d: Display) -> str:
     return "; ".join(parts)
 
 
-def open_hold_text(h: Any, d: Display, now: dt.datetime) -> str:
+def open_hold_text(h: Any, d: Display, now: dt.datetime, step_pa: float | None = None) -> str:
     """One line for a hold test started and not finished (a
     :class:`benchwarden.workflows.hold_runs.OpenHold`): ``hold test on n2-A started at 18:02
     with 62.0 bar(g); finish after 12 h 00 min (Thu 3 Dec 06:02)``, or ``due now``."""
     due = "due now" if h.due(now) else f"finish after {fmt_hours(h.hold_s / 3600)} ({Display.clock(h.due_at, now)})"
-    return f"hold test on {h.supply_id} started at {Display.clock(h.at, now)} with {d.gauge(h.pressure_abs_pa)}; {due}"
+    return f"hold test on {h.supply_id} started at {Display.clock(h.at, now)} with {d.gauge(h.pressure_abs_pa, step_pa)}; {due}"
 
 
 def cylinder_text(c: Any, d: Display, now: dt.datetime) -> str:

@@ -65,9 +65,11 @@ class HoldScreen(ToolScreen):
     def _show_open(self) -> None:
         h = self._open()
         d = profile_display(self.state.profile)
-        self.query_one("#hold-open", Static).update(
-            Text(open_hold_text(h, d, self.state.clock()) + " — type the end pressure (and temperature), then "
-                 "'Finish the started test'") if h else "")
+        text = ""
+        if h is not None:
+            text = (open_hold_text(h, d, self.state.clock(), self.state.reading_step(h.supply_id))
+                    + " — type the end pressure (and temperature), then 'Finish the started test'")
+        self.query_one("#hold-open", Static).update(Text(text))
         self.query_one("#hold-finish", Button).display = h is not None
 
     def _last_line(self) -> str:

@@ -231,7 +231,8 @@ class OverviewScreen(Screen[None]):
                          + ("  ▲ faster than planned" if ob.faster_than_planned else ""))
         for sid, lv in st.live.items():
             parts.append(f"{sid}: {live_text(lv, self.units)}")
-        parts += [f"⏲ {open_hold_text(h, self.units, st.clock())}" for h in open_holds(st.journal, st.profile)]
+        parts += [f"⏲ {open_hold_text(h, self.units, st.clock(), st.reading_step(h.supply_id))}"
+                  for h in open_holds(st.journal, st.profile)]  # a hold test started, to finish
         self.query_one("#observed", Static).update(Text("\n".join(parts)))
 
     def tick(self) -> None:
