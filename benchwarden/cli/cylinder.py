@@ -28,7 +28,8 @@ from benchwarden.units.quantities import check_text
 from benchwarden.workflows import cylinder as cy
 from benchwarden.workflows.bench import assess
 
-AT_HELP = "when it was read: 'HH:MM' today (or last night), an ISO date-time, or now (default)"
+AT_HELP = ("when it was read: now (default), 'HH:MM' (its most recent past occurrence), 'yesterday 18:00', "
+           "or a date and time (2026-12-01 09:30, ISO 8601); never the future")
 
 
 def configure(sub: Any, name: str) -> None:
