@@ -133,7 +133,7 @@ async def _check_every_field_visible(app, pilot, screen) -> None:
 
 
 @pytest.mark.parametrize("size", SIZES)
-@pytest.mark.parametrize("key", ["r", "n", "p", "t", "stop"])
+@pytest.mark.parametrize("key", ["r", "n", "p", "t", "o", "stop"])
 async def test_every_form_shows_all_its_fields_and_labels(jpath, size, key):
     app = make_app(None, jpath, clock=Clock())
     async with app.run_test(size=size) as pilot:
@@ -266,6 +266,7 @@ async def test_reading_times_date_yesterday_most_recent_past_and_outside_the_ses
         await pilot.press("h")
         await settle(app, pilot)
         table = app.screen.query_one("#history-readings")
+        assert sum(c.width + 2 for c in table.columns.values()) <= 78  # every column in view at 80
         times = [str(table.get_row_at(i)[1]) for i in range(table.row_count)]
         assert times == ["Mon 30 Nov 10:45", "Mon 30 Nov 11:25", "Mon 30 Nov 18:00", "10:00", "11:20"]
     with Journal(jpath) as j:

@@ -121,7 +121,7 @@ def cmd_reading(args: argparse.Namespace) -> int:
                    "findings": [finding_dict(f, d) for f in a.findings if f.subject in (entry.supply_id, "leaks")]})
         return 0
     what = d.gauge(entry.pressure_abs_pa) if entry.pressure_abs_pa is not None else f"{entry.weight_kg:g} kg"
-    print(f"recorded {entry.supply_id} {what} at {entry.at:%a %H:%M}"
+    print(f"recorded {entry.supply_id} {what} at {Display.clock(entry.at)}"
           + (f" in session #{running.id}" if running else " (idle reading)"))
     _print_findings([f for f in a.findings if f.subject in (entry.supply_id, "leaks")], d)
     return 0

@@ -48,8 +48,9 @@ class HistoryScreen(ToolScreen):
 
     def on_mount(self) -> None:
         t = self.query_one("#history-readings", DataTable)
-        for label, key, width in (("#", "id", 5), ("Time", "at", 16), ("Reading", "value", 14),
-                                  ("Temp.", "t", 8), ("Where", "where", 10), ("Struck out", "struck", 24)):
+        # every column in view at 80 columns (the time carries its date when not today)
+        for label, key, width in (("#", "id", 4), ("Time", "at", 16), ("Reading", "value", 12),
+                                  ("Temp.", "t", 8), ("Where", "where", 10), ("Struck out", "struck", 14)):
             t.add_column(label, key=key, width=width)
         self.query_one("#strike-reason", Input).display = False
         self.fill()

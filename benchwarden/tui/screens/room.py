@@ -5,11 +5,11 @@ from __future__ import annotations
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.containers import VerticalScroll
-from textual.widgets import Header, Input, Label, Static
+from textual.widgets import Header, Input, Static
 
 from benchwarden.errors import BenchwardenError
 from benchwarden.tui.screens.base import ToolScreen
-from benchwarden.tui.widgets import KeysFooter
+from benchwarden.tui.widgets import KeysFooter, field
 from benchwarden.units import fmt_hours
 
 
@@ -18,10 +18,10 @@ class RoomScreen(ToolScreen):
 
     def compose(self) -> ComposeResult:
         yield Header()
-        with VerticalScroll():
+        with VerticalScroll(classes="form"):
             yield Static("", id="room-figures")
-            yield Label("Add a leak (e.g. the last hold test's, or '5 slpm') and press Enter")
-            yield Input(placeholder="5 slpm", id="room-leak")
+            yield field("Add a leak (e.g. the last hold test's, or '5 slpm') and press Enter", "room-leak",
+                        placeholder="5 slpm")
             yield Static("", id="room-extra")
         yield KeysFooter()
 
