@@ -501,3 +501,17 @@ def test_readme_says_what_a_newcomer_needs():
     ignore = (ROOT / ".gitignore").read_text().splitlines()
     for pattern in ("checklist-*.html", "checklist-*.pdf", "session-*.csv", "my-bench.toml", "*.sqlite3"):
         assert pattern in ignore
+
+
+async def test_footer_chooses_its_keys_again_when_the_terminal_narrows(jpath):
+    from textual.widgets._footer import FooterKey
+
+    app = make_app(None, jpath, clock=Clock())
+    async with app.run_test(size=(140, 36)) as pilot:
+        await settle(app, pilot)
+        assert len(app.screen.query(FooterKey)) > 12
+        await pilot.resize_terminal(80, 24)
+        await settle(app, pilot)
+        keys = list(app.screen.query(FooterKey))
+        assert [k.action for k in keys[:2]] == ["help", "quit"]
+        assert all(k.region.right <= 80 for k in keys) and len(keys) < 12

@@ -72,7 +72,8 @@ class KeysFooter(Footer):
         shown = [ab for ab in self.screen.active_bindings.values() if ab.binding.show]
         shown.sort(key=lambda ab: (ab.binding.key not in FIRST_KEYS, FIRST_KEYS.index(ab.binding.key)
                                    if ab.binding.key in FIRST_KEYS else 0))
-        room = self.app.size.width - 1
+        self._composed_for = self.app.size.width
+        room = self._composed_for - 1
         seen: set[str] = set()
         keys = []
         for ab in shown:
@@ -90,6 +91,14 @@ class KeysFooter(Footer):
             b = ab.binding
             yield FooterKey(b.key, self.app.get_key_display(b), b.description, b.action, disabled=not ab.enabled,
                             tooltip=ab.tooltip or b.description).data_bind(compact=Footer.compact)
+
+
+    _composed_for = 0
+
+    def on_resize(self) -> None:
+        """A resized terminal: the keys that fit are chosen again."""
+        if self._bindings_ready and self.app.size.width != self._composed_for:
+            self.call_after_refresh(self.recompose)
 
 
 def footer_width(key_display: str, description: str) -> int:
