@@ -7,6 +7,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
+from textual import events
 from textual.app import App
 from textual.binding import Binding
 
@@ -42,6 +43,19 @@ class BenchwardenApp(App[int]):
         from benchwarden.tui.screens.overview import OverviewScreen
 
         self.push_screen(OverviewScreen(self.state))
+
+    async def on_event(self, event: events.Event) -> None:
+        """Keys read while a form is still opening are held for it, in order (see TypeAhead)."""
+        from benchwarden.tui.screens.base import TypeAhead
+
+        if isinstance(event, events.Key):
+            if not self._screen_stack:
+                return  # closing: no screen takes keys any more
+            screen = self.screen
+            if isinstance(screen, TypeAhead) and not screen.typing_ready:
+                screen.hold_key(event)
+                return
+        await super().on_event(event)
 
     def action_cautions(self) -> None:
         from benchwarden.tui.screens.modals import CautionsScreen

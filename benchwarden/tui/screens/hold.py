@@ -23,6 +23,8 @@ from benchwarden.workflows.hold_runs import HoldRun, OpenHold
 class HoldScreen(ToolScreen):
     """A hold test on a supply: two readings, a logged CSV series, or start now, finish later."""
 
+    FIRST_FIELD = "#hold-start"
+
     def compose(self) -> ComposeResult:
         st = self.state
         assert st.profile is not None

@@ -14,14 +14,17 @@ from textual.widgets import Button, Input, Label, Select, Static
 
 from benchwarden.core.cautions import DEFER, ESTIMATES, GENERAL, gas_cautions
 from benchwarden.errors import InputError
+from benchwarden.tui.screens.base import TypeAhead
 from benchwarden.tui.widgets import field
 from benchwarden.units.constants import T0_K
 from benchwarden.workflows.session import Reading, SessionState
 
 
-class ReadingScreen(ModalScreen[Reading | None]):
+class ReadingScreen(TypeAhead, ModalScreen[Reading | None]):
     """Enter a gauge reading: supply, pressure, temperature (prefilled), time (now by default).
     A wrong entry is shown inline and the typed values stay."""
+
+    FIRST_FIELD = "#pressure"
 
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
 
@@ -194,7 +197,7 @@ class ConfirmScreen(ModalScreen[bool]):
         self.dismiss(False)
 
 
-class _Form(ModalScreen[Any]):
+class _Form(TypeAhead, ModalScreen[Any]):
     """A modal form: Enter in a field or the primary button saves, the other button or Escape
     cancels; errors show inline and the typed values stay."""
 
@@ -220,6 +223,8 @@ class _Form(ModalScreen[Any]):
 class ChangeScreen(_Form):
     """A cylinder change: the supply, the new fill (pressure, or gross weight for a liquefied
     gas), an optional label and retest date. Errors inline; typed values stay."""
+
+    FIRST_FIELD = "#fill"
 
     def __init__(self, state: SessionState) -> None:
         super().__init__()
@@ -265,6 +270,8 @@ class ChangeScreen(_Form):
 
 class StopScreen(_Form):
     """Stopping a session: who ran it, how many shots were fired, a note (all optional)."""
+
+    FIRST_FIELD = "#operator"
 
     BINDINGS = [Binding("escape", "cancel", "Keep running")]
     SAVE_ID = "stop"

@@ -30,18 +30,20 @@ LIVE_REFRESH_S = 5.0
 
 
 class OverviewScreen(Screen[None]):
+    # priority: acted on the moment the key is read, so keys typed right after (the reading
+    # itself) reach the form it opens; the overview has no field of its own to type into
     BINDINGS = [
-        Binding("s", "toggle_session", "Session", tooltip="start or stop a session"),
-        Binding("r", "reading", "Reading", tooltip="enter a gauge reading or a weight (any time)"),
-        Binding("n", "change", "New cyl.", tooltip="record a new cylinder (a cylinder change)"),
-        Binding("h", "history", "History", tooltip="history: readings, cylinders, sessions, hold tests"),
-        Binding("g", "graph", "Graph", tooltip="graph: supply pressure over the session"),
-        Binding("t", "hold", "Hold", tooltip="hold test: now, from a log, or start now and finish later"),
-        Binding("o", "oxygen", "O2", tooltip="room oxygen"),
-        Binding("k", "checklist", "Checklist", tooltip="checklist preview and export"),
-        Binding("p", "purge", "Purge", tooltip="purge a line after a cylinder change, and record it"),
-        Binding("u", "units", "Units", tooltip="pressure unit: bar, psi, kPa, MPa"),
-        Binding("l", "reload", "Reload", tooltip="reload the profile after editing it"),
+        Binding("s", "toggle_session", "Session", tooltip="start or stop a session", priority=True),
+        Binding("r", "reading", "Reading", tooltip="enter a gauge reading or a weight (any time)", priority=True),
+        Binding("n", "change", "New cyl.", tooltip="record a new cylinder (a cylinder change)", priority=True),
+        Binding("h", "history", "History", tooltip="history: readings, cylinders, sessions, hold tests", priority=True),
+        Binding("g", "graph", "Graph", tooltip="graph: supply pressure over the session", priority=True),
+        Binding("t", "hold", "Hold", tooltip="hold test: now, from a log, or start now and finish later", priority=True),
+        Binding("o", "oxygen", "O2", tooltip="room oxygen", priority=True),
+        Binding("k", "checklist", "Checklist", tooltip="checklist preview and export", priority=True),
+        Binding("p", "purge", "Purge", tooltip="purge a line after a cylinder change, and record it", priority=True),
+        Binding("u", "units", "Units", tooltip="pressure unit: bar, psi, kPa, MPa", priority=True),
+        Binding("l", "reload", "Reload", tooltip="reload the profile after editing it", priority=True),
     ]
 
     def __init__(self, state: SessionState) -> None:

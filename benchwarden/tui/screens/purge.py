@@ -22,6 +22,8 @@ from benchwarden.workflows.session import SessionState
 class PurgeScreen(ToolScreen):
     """Purge a line or channel after a cylinder change: pressure cycles and a flush."""
 
+    FIRST_FIELD = "#purge-volume"
+
     def __init__(self, state: SessionState) -> None:
         super().__init__(state)
         self.plan: PurgePlan | None = None

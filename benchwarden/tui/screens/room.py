@@ -16,6 +16,8 @@ from benchwarden.units import fmt_hours
 class RoomScreen(ToolScreen):
     """Room oxygen from the plan, plus an extra leak the person types."""
 
+    FIRST_FIELD = "#room-leak"
+
     def compose(self) -> ComposeResult:
         yield Header()
         with VerticalScroll(classes="form"):
