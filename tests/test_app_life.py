@@ -221,3 +221,35 @@ async def test_purge_screen_plans_cycles(jpath):
         await pilot.press("enter")
         await pilot.pause()
         assert "7 cycles" in str(app.screen.query_one("#purge-result").render())
+
+
+async def test_a_rise_is_pressure_rose_and_striking_it_withdraws_the_test_in_the_app(jpath):
+    # issue 23: Fri evening 62 bar, the next morning 70.8 bar on the same cylinder (no change)
+    app = make_app(None, jpath, clock=Clock())
+    async with app.run_test(size=(100, 32)) as pilot:
+        await _ready(app, pilot)
+        await _reading(app, pilot, "62 bar", when="18:00")   # yesterday 18:00 (the clock is 09:30)
+        await _reading(app, pilot, "70.8 bar", when="09:00")
+        assert isinstance(app.screen, ConfirmScreen)  # a rise without a change: asked first
+        await pilot.press("y")
+        await _ready(app, pilot)
+        assert ("hold-test-pressure-rose", "attention") in _codes(app)
+        assert not any(c == "hold-test-ok" for c, _ in _codes(app))
+        await pilot.press("h")
+        await pilot.pause()
+        assert "pressure-rose" in str(app.screen.query_one("#history-holds").render())
+        table = app.screen.query_one("#history-readings")
+        table.move_cursor(row=table.row_count - 1)
+        await pilot.press("x")
+        await pilot.pause()
+        app.screen.query_one("#strike-reason").value = "read the wrong cylinder"
+        await pilot.press("enter")
+        await pilot.pause()
+        holds = str(app.screen.query_one("#history-holds").render())
+        assert "WITHDRAWN" in holds and "read the wrong cylinder" in holds
+        await pilot.press("escape")
+        await _ready(app, pilot)
+        codes = _codes(app)
+        assert not any(c.startswith("hold-test-pressure") for c, _ in codes)
+        assert ("no-hold-test", "attention") in codes or ("no-hold-test", "warning") in codes
+        assert _cell(app, "supplies", "n2-A", "reading") == "62 bar(g)"  # to the gauge's ±5 bar

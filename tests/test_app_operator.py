@@ -324,7 +324,8 @@ async def test_history_shows_cylinders_and_sessions_with_operator_shots_and_note
 
     assert main(["sessions", "--journal", str(jpath), "--json"]) == 0
     (s,) = json.loads(capsys.readouterr().out)["sessions"]
-    assert (s["operator"], s["shots"], s["notes"]) == ("A. Example", 12000, ["trigger gap cleaned"])
+    assert (s["operator"], s["shots"], s["note"]) == ("A. Example", 12000, "trigger gap cleaned")
+    assert [n["text"] for n in s["notes"]] == ["trigger gap cleaned"]
     assert main(["sessions", "--journal", str(jpath)]) == 0
     out = capsys.readouterr().out
     assert "A. Example" in out and "note: trigger gap cleaned" in out and "12\u2009000" in out
@@ -520,3 +521,17 @@ async def test_footer_chooses_its_keys_again_when_the_terminal_narrows(jpath):
         keys = list(app.screen.query(FooterKey))
         assert [k.action for k in keys[:2]] == ["help", "quit"]
         assert all(k.region.right <= 80 for k in keys) and len(keys) < 12
+
+
+async def test_history_shows_the_stops_accepted_at_a_session_start(jpath):
+    with Journal(jpath) as j:
+        sid = j.start_session(BENCH, None, (T0 - dt.timedelta(hours=3)).isoformat(), "C. Lead",
+                              [("at-or-below-reserve", "n2-A", "n2-A is at its reserve")], "swap due at noon")
+        j.stop_session(sid, (T0 - dt.timedelta(hours=2)).isoformat())
+    app = make_app(None, jpath, clock=Clock())
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(app, pilot)
+        await pilot.press("h")
+        await settle(app, pilot)
+        line = _words(app.screen.query_one("#history-sessions").render())
+        assert "accepted STOP at-or-below-reserve (n2-A) by C. Lead: swap due at noon" in line

@@ -99,7 +99,7 @@ HOSTILE_PROFILES = [
     DEMO.replace('temperature = "21 degC"', 'temperature = "-300 degC"', 1),
     DEMO.replace('duration = "4 h"', 'duration = "-4 h"'),
     DEMO.replace('spacing = "1.4 mm"', 'spacing = "0 mm"'),
-    DEMO.replace('volume = "36 m3"', 'volume = "0 m3"'),
+    DEMO.replace('volume = "48 m3"', 'volume = "0 m3"'),
     DEMO.replace('ventilation = "1.5/h"', 'ventilation = "fast"'),
     "\x00\x01\x02",
 ]

@@ -100,7 +100,10 @@ def test_swap_starts_a_new_cylinder_and_nothing_straddles_it(capsys, journal):
     code, _, err = run(capsys, "reading", DEMO, "n2-A", "--pressure", "197 bar", "--at", "2026-11-29T09:00",
                        "--journal", journal)
     assert code == 0, err
-    assert status(capsys, DEMO, journal)["supplies"][0]["leak_verdict"] in ("no-leak-resolved", "inconclusive")
+    # 198 → 197 bar over a day cannot resolve the target with a class 1.6 gauge of 315 bar: no hold
+    # test is stored from it (issue 23), and nothing pairs the 40 bar of the old cylinder
+    s = status(capsys, DEMO, journal)["supplies"][0]
+    assert s["leak_verdict"] is None and s["hold_tests"] == []
 
 
 def test_implausible_readings_ask_first_and_a_struck_reading_is_kept_but_not_used(capsys, journal):

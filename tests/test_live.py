@@ -501,7 +501,7 @@ def test_in_a_session_the_samples_give_the_observed_draw(tmp_path):
 
 def test_the_room_temperature_sensor_compensates_the_leak_watch(tmp_path):
     prof = parse_profile(_profile(tmp_path, _file_source(tmp_path / "x.log")).read_text()
-                         .replace('oxygen_monitor = false\n', 'oxygen_monitor = false\n[room.temperature_source]\n'
+                         .replace('oxygen_monitor = true\n', 'oxygen_monitor = true\n[room.temperature_source]\n'
                                   'kind = "file"\npath = "t.log"\nvalue_unit = "degC"\n', 1), "live.toml")
     assert prof.room is not None and prof.room.temperature_source is not None
     now = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)

@@ -24,10 +24,12 @@ DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
 STATES = {
     "reserve-before-end": ({'reading = "64 bar"': 'reading = "22 bar"'}, "reserve-before-end"),
     "near-empty": ({'reading = "64 bar"': 'reading = "15.5 bar"'}, "reserve-before-end"),
-    "low-room-oxygen": ({'volume = "36 m3"': 'volume = "8 m3"'}, "room-release"),
+    "low-room-oxygen": ({'volume = "48 m3"': 'volume = "8 m3"'}, "room-release"),
     "hot-day-rating": ({'inlet_rating = "230 bar"': 'inlet_rating = "66 bar"'}, "inlet-rating-hot"),
     "flashover-margin": ({}, "flashover"),
     "leak": ({}, "hold-test-leak"),
+    # issue 25 item 1: fuel at a spark — the demo's gaps fed with hydrogen
+    "fuel-at-spark": ({'gas = "nitrogen"': 'gas = "hydrogen"'}, "gap-fuel"),
 }
 
 
@@ -94,7 +96,9 @@ async def test_plan_checklist_app_and_cli_agree(state, tmp_path, capsys):
 
 def test_every_finding_code_has_words():
     src = (ROOT / "benchwarden" / "workflows" / "findings.py").read_text()
-    codes = set(re.findall(r'Finding\("([a-z0-9-]+)"', src)) | {f"room-{k}" for k in ("toxic", "flammable")}
+    room_src = (ROOT / "benchwarden" / "workflows" / "findings_room.py").read_text()
+    codes = set(re.findall(r'Finding\("([a-z0-9-]+)"', src)) | set(re.findall(r'_finding\("([a-z0-9-]+)"', room_src))
+    assert {"room-toxic", "room-flammable", "room-enrichment", "segregation", "gap-fuel"} <= codes
     assert codes and codes <= set(TEMPLATES), codes - set(TEMPLATES)
 
 

@@ -103,11 +103,14 @@ def test_standard_leak_converts_to_room_volume():
 
 
 def test_co2_toxic_and_hydrogen_flammable_hazards():
-    # OSHA TWA 5000 ppm for CO2: a release taking O2 from 20.95 to 20 % means 4.5 % CO2.
-    hz = room.gas_hazards(g.parse_gas("co2"), 20.0)
-    assert hz and hz[0].kind == "toxic"
-    h2 = room.gas_hazards(g.parse_gas("hydrogen"), 20.0)
-    assert any(h.kind == "flammable" and "lower flammability limit" in h.text for h in h2)
+    # OSHA TWA 5000 ppm for CO2: 4.5 % CO2 in the room is above its STEL (3 %, NIOSH, from memory)
+    # and above its IDLH 4 % (NIOSH, from memory); hydrogen at 4.5 % is above its LFL 4 %.
+    from benchwarden.core import hazards
+
+    t = hazards.toxic(g.parse_gas("co2"), 4.5)
+    assert t is not None and t.band == "above-idlh"
+    f = hazards.flammable(g.parse_gas("hydrogen"), 4.5)
+    assert f is not None and f.percent_of_lfl == pytest.approx(112.5)
 
 
 def test_effects_and_stratification():

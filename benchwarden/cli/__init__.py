@@ -28,6 +28,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "room": ("room", "room oxygen after a release or during a leak"),
     "purge": ("purge", "pressure-cycle purge and flush of a line or channel after a cylinder change"),
     "checklist": ("checklist", "pre-session checklist filled with this bench's figures"),
+    "session": ("journal", "start or stop a session of a bench (start refuses while a STOP stands, unless accepted)"),
     "sessions": ("journal", "list the sessions in the journal"),
     "export": ("journal", "write one session's readings out"),
     "reading": ("cylinder", "record a gauge reading or a weight of a supply (in or out of a session)"),

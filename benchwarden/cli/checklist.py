@@ -11,9 +11,11 @@ from typing import Any
 
 from benchwarden.cli.common import (
     add_display,
+    add_fail_on,
     add_journal,
     display,
     emit_json,
+    exit_for,
     input_error,
     journal_if_exists,
 )
@@ -41,6 +43,7 @@ def configure(sub: Any, name: str) -> None:
     p.add_argument("--print", action="store_true", help="send the written file to the system's print command")
     add_journal(p)
     add_display(p)
+    add_fail_on(p)
     p.set_defaults(func=cmd_checklist)
 
 
@@ -60,7 +63,7 @@ def cmd_checklist(args: argparse.Namespace) -> int:
                          display=display(args, prof.ambient_pa, prof))
     if args.format == "json" and not args.output:
         emit_json(checklist_json(cl))
-        return 0
+        return exit_for(args, a.findings)
     protected = (default_path(getattr(args, "journal", None)), args.profile)
     if args.format == "pdf":
         out = write_output(args.output, lambda tmp: render_pdf(cl, tmp), force=args.force, protected=protected)
@@ -73,7 +76,7 @@ def cmd_checklist(args: argparse.Namespace) -> int:
             text = {"txt": render_text, "md": render_markdown, "html": render_html}[args.format](cl)
         if not args.output:
             sys.stdout.write(text)
-            return 0
+            return exit_for(args, a.findings)
         out = write_output(args.output, text, force=args.force, protected=protected)
     print(f"checklist written to {out}")
     if args.print:
@@ -86,4 +89,4 @@ def cmd_checklist(args: argparse.Namespace) -> int:
             sys.stderr.write(f"benchwarden: {Path(cmd).name} failed: {r.stderr.strip() or r.returncode}\n")
             return 1
         print(f"sent to {Path(cmd).name}")
-    return 0
+    return exit_for(args, a.findings)

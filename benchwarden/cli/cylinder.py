@@ -9,13 +9,17 @@ from dataclasses import asdict
 from typing import Any, cast
 
 from benchwarden.cli.common import (
+    EXIT_INPUT,
     add_display,
+    add_fail_on,
     add_journal,
     add_json,
     display,
     emit_json,
     emit_table,
+    exit_for,
     input_error,
+    read_text_file,
 )
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean
@@ -27,6 +31,8 @@ from benchwarden.units import parse_mass, parse_pressure, parse_temperature
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows import cylinder as cy
 from benchwarden.workflows.bench import assess
+from benchwarden.workflows.holds import judged_hold_tests
+from benchwarden.workflows.importing import MAX_IMPORT_BYTES, import_readings
 
 AT_HELP = ("when it was read: now (default), 'HH:MM' (its most recent past occurrence), 'yesterday 18:00', "
            "or a date and time (2026-12-01 09:30, ISO 8601); never the future")
@@ -35,7 +41,7 @@ AT_HELP = ("when it was read: now (default), 'HH:MM' (its most recent past occur
 def configure(sub: Any, name: str) -> None:
     if name == "reading":
         p = sub.add_parser("reading", help="record a gauge reading or a weight of a supply (in or out of a session)")
-        _entry_args(p)
+        _entry_args(p, bulk=True)
         p.add_argument("--confirm", action="store_true",
                        help="record a reading that looks implausible (a rise without a change, a very fast drop, "
                             "a unit that looks swapped)")
@@ -66,15 +72,20 @@ def configure(sub: Any, name: str) -> None:
         add_journal(p)
         add_display(p)
         add_json(p)
+        add_fail_on(p)
         p.set_defaults(func=cmd_status)
 
 
-def _entry_args(p: argparse.ArgumentParser) -> None:
+def _entry_args(p: argparse.ArgumentParser, bulk: bool = False) -> None:
     p.add_argument("profile", help="bench profile (TOML)")
     p.add_argument("supply", help="supply id, as in the profile")
     what = p.add_mutually_exclusive_group(required=True)
     what.add_argument("--pressure", help="gauge reading, e.g. '146 bar' (or '147 bar(a)')")
     what.add_argument("--weight", help="gross weight on the scale (liquefied gases), e.g. '74.1 kg'")
+    if bulk:
+        what.add_argument("--from", dest="from_file", metavar="FILE.csv",
+                          help="import many readings: a CSV with a header naming time (ISO 8601), pressure "
+                               "('62 bar') or weight ('74.1 kg'), and optionally temperature ('19 degC') and note")
     p.add_argument("--temperature", help="cylinder temperature (default: the profile's ambient)")
     p.add_argument("--at", help=AT_HELP)
 
@@ -97,9 +108,38 @@ def _entry(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> cy.Entr
     return cy.Entry(args.supply, at, T, weight_kg=w)
 
 
+def cmd_import(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> int:
+    """``reading --from FILE.csv``: many readings in one transaction (all or nothing)."""
+    if args.temperature or args.at:
+        raise input_error("--from takes the time and temperature from the file's columns: leave out "
+                          "--at and --temperature")
+    text = read_text_file(args.from_file, "--from", MAX_IMPORT_BYTES)
+    d = display(args, prof.ambient_pa, prof)
+    with _open(args) as j:
+        a = assess(prof, j, now)
+        planned = next((s.draw_kg_s for s in a.plan.supplies if s.id == args.supply), None)
+        r = import_readings(j, prof, args.supply, text, now, args.confirm, planned)
+    refused = [{"line": n, "reason": why} for n, why in r.refused]
+    if not r.refused and not args.confirm:
+        refused += [{"line": n, "reason": "implausible: " + question_text(q, d) + " (record it with --confirm)"}
+                    for n, q in r.questions]
+    if args.json:
+        emit_json({"recorded": r.recorded, "skipped": r.skipped, "refused": refused})
+    else:
+        print(f"{args.from_file}: {r.recorded} recorded, {r.skipped} skipped (already in the journal), "
+              f"{len(refused)} refused" + (" — nothing was recorded" if refused else ""))
+        for x in refused[:20]:
+            print(f"  line {x['line']}: {clean(str(x['reason']))}")
+        if len(refused) > 20:
+            print(f"  … and {len(refused) - 20} more")
+    return EXIT_INPUT if refused else 0
+
+
 def cmd_reading(args: argparse.Namespace) -> int:
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
+    if getattr(args, "from_file", None):
+        return cmd_import(args, prof, now)
     d = display(args, prof.ambient_pa, prof)
     entry = _entry(args, prof, now)
     with _open(args) as j:
@@ -173,9 +213,14 @@ def _order_date(o: cy.OrderBy | None) -> str | None:
     return o.order_by.date().isoformat() if o is not None and o.order_by is not None else None
 
 
-def _cons(j: Journal | None, prof: Profile, sid: str) -> float | None:
-    c = cy.consumption(j, prof, sid)
-    return c.kg_per_week if c is not None else None
+def _cons(o: cy.OrderBy | None) -> float | None:
+    return o.consumption.kg_per_week if o is not None and o.consumption is not None else None
+
+
+def _needed(j: Journal | None, prof: Profile, sid: str, now: dt.datetime) -> float | None:
+    """How long a hold would need, when the latest idle drop was too short to tell [s]."""
+    r = cy.unresolved_idle_drop(j, prof, sid, now)
+    return _seconds(r.hold_needed_h) if r is not None else None
 
 
 def _seconds(hours: float) -> float | None:
@@ -213,13 +258,15 @@ def cmd_status(args: argparse.Namespace) -> int:
     try:
         a = assess(prof, j, now)
         supplies: list[dict[str, Any]] = []
+        all_judged = judged_hold_tests(j, prof.bench.name) if j is not None else []
         for sp in a.plan.supplies:
-            history = cy.readings_since_change(j, prof.bench.name, sp.id)
+            judged = all_judged
             change = cy.current_change(j, prof.bench.name, sp.id)
-            last = history[-1] if history else None
+            last = cy.last_reading(j, prof.bench.name, sp.id)
             live = _live(j, prof, sp.id, now, a.plan.ambient_pa)
-            tests = [h for h in (j.hold_tests(prof.bench.name) if j else []) if h.supply_id == sp.id]
-            ht = tests[-1] if tests else None
+            judged = [h for h in judged if h.row.supply_id == sp.id and not h.earlier_cylinder]
+            counting = [h.row for h in judged if h.counts]
+            ht = counting[-1] if counting else None
             lv = live or {}
             from_live = lv.get("leak_verdict") is not None
             supplies.append(cast(dict[str, Any], {
@@ -232,6 +279,8 @@ def cmd_status(args: argparse.Namespace) -> int:
                                    else "journal" if last else "profile"),
                 "mass_kg": sp.mass_kg, "usable_mass_kg": sp.usable_mass_kg,
                 "time_to_reserve_s": _seconds(sp.hours_to_reserve), "reserve_at": sp.reserve_at,
+                "leak_included_sccm": sp.leak_sccm,
+                "idle_drop_hold_needed_s": _needed(j, prof, sp.id, now),
                 "cylinder_label": change.label if change else None,
                 "retest_due": change.retest_due if change else None,
                 "leak_verdict": lv["leak_verdict"] if from_live else ht.verdict if ht else None,
@@ -241,9 +290,14 @@ def cmd_status(args: argparse.Namespace) -> int:
                 "leak_source": "leak watch" if from_live else "hold test" if ht else None,
                 "live": live,
                 "hold_test_at": ht.at if ht else None, "hold_test_kind": ht.kind if ht else None,
+                "hold_tests": [{"id": h.row.id, "at": h.row.at, "kind": h.row.kind, "verdict": h.row.verdict,
+                                "leak_rate_sccm": h.row.leak_rate_sccm,
+                                "leak_rate_uncertainty_sccm": h.row.leak_rate_uncertainty_sccm,
+                                "withdrawn": h.withdrawn, "withdrawn_reason": h.withdrawn_reason}
+                               for h in judged],
                 "order_by": _order_date(a.orders.get(sp.id)),
                 "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,
-                "consumption_kg_per_week": _cons(j, prof, sp.id),
+                "consumption_kg_per_week": _cons(a.orders.get(sp.id)),
             }))
         since = (now - dt.timedelta(seconds=RECENT_ALARMS_S)).isoformat(timespec="seconds")
         alarms: list[dict[str, str]] = [{"at": r.at, "supply_id": r.supply_id or "", "code": r.code, "text": r.text}
@@ -256,8 +310,8 @@ def cmd_status(args: argparse.Namespace) -> int:
         emit_json({"bench": prof.bench.name, "journal": str(path), "ambient_pressure_pa": a.plan.ambient_pa,
                    "supplies": supplies, "findings": findings, "alarms": alarms,
                    "last_hold_test": None if a.last_hold is None else asdict(a.last_hold) | {
-                       "at": a.last_hold.at.isoformat()}})
-        return 0
+                       "at": a.last_hold.at.isoformat(), "withdrawn": False}})
+        return exit_for(args, a.findings)
     print(f"Status: {prof.bench.name}")
     for s in supplies:
         rows = [("gas", s["gas"]),
@@ -277,6 +331,9 @@ def cmd_status(args: argparse.Namespace) -> int:
             rows.append(("last hold test", f"{s['leak_verdict']}, "
                                            f"{fmt_uncertain(s['leak_rate_sccm'], s['leak_rate_uncertainty_sccm'], 'sccm')} "
                                            f"({s['hold_test_kind'] or 'manual'})"))
+        if s["idle_drop_hold_needed_s"] is not None:
+            rows.append(("idle readings", "too close together to resolve the target leak with this gauge: "
+                                          f"a hold of about {d.hours(s['idle_drop_hold_needed_s'] / 3600)} would"))
         if s["order_by"]:
             rows.append(("order by", f"{s['order_by']} ({s['consumption_kg_per_week']:.3g} kg/week recorded)"))
         if s["cylinder_label"] or s["retest_due"]:
@@ -287,7 +344,7 @@ def cmd_status(args: argparse.Namespace) -> int:
         print(f"Alarms in the last {RECENT_ALARMS_S / 3600:g} h")
         for al in alarms:
             print(f"  {al['at'][:16].replace('T', ' ')}  {clean(al['text'])}")
-    return 0
+    return exit_for(args, a.findings)
 
 
 def _print_findings(findings: list[Any], d: Display) -> None:

@@ -25,6 +25,7 @@ from benchwarden.cli.common import (
 from benchwarden.core import hold as hd
 from benchwarden.errors import JournalError
 from benchwarden.render.display import Display
+from benchwarden.render.findings import verdict_words
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.units import (
     parse_duration,
@@ -145,10 +146,6 @@ def cmd_hold(args: argparse.Namespace) -> int:
 
 
 def _rows(gas_name: str, V: float, r: hd.HoldResult, fit: hd.LogFit | None, d: Display) -> list[tuple[str, str]]:
-    words = {"leak": "LEAK: the mass loss is larger than its uncertainty",
-             "no-leak-resolved": f"no leak above {r.leak_rate_sccm + r.smallest_resolvable_sccm:.3g} sccm "
-                                 f"(smallest this test resolves: {r.smallest_resolvable_sccm:.3g} sccm)",
-             "inconclusive": "INCONCLUSIVE: this gauge cannot tell; hold longer or use a finer gauge"}
     rows = [("gas", gas_name), ("volume", f"{V * 1000:.4g} L"),
             ("start", f"{d.both(r.start_abs_pa)} at {d.temperature(r.start_temperature_k)}"),
             ("end", f"{d.both(r.end_abs_pa)} at {d.temperature(r.end_temperature_k)}"),
@@ -159,7 +156,7 @@ def _rows(gas_name: str, V: float, r: hd.HoldResult, fit: hd.LogFit | None, d: D
             ("", f"{r.leak_rate_pa_m3_s:.3g} Pa·m³/s = {r.leak_rate_mbar_l_s:.3g} mbar·L/s"),
             ("", f"{r.kg_per_day * 1000:.3g} g/day = {r.percent_per_day:.3g} % of contents/day = "
                  f"{d.difference(r.pressure_fall_per_day_pa)}/day at constant temperature"),
-            ("verdict", words[r.verdict]),
+            ("verdict", verdict_words(r.verdict, r.leak_rate_sccm, r.smallest_resolvable_sccm, r.target_sccm)),
             ("target", f"{r.target_sccm:.3g} sccm; hold needed to resolve it ≈ {d.hours(r.hold_needed_h)}"),
             ("to empty at this rate", d.hours(r.hours_to_empty) if r.leak_rate_kg_s > 0 else "—")]
     if r.hours_to_reserve is not None:

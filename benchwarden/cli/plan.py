@@ -10,6 +10,7 @@ from typing import Any
 from benchwarden.cli.common import (
     add_ambient,
     add_display,
+    add_fail_on,
     add_gas,
     add_journal,
     add_json,
@@ -17,6 +18,7 @@ from benchwarden.cli.common import (
     display,
     emit_json,
     emit_table,
+    exit_for,
     journal_if_exists,
 )
 from benchwarden.core.flow import orifice_flow
@@ -37,6 +39,7 @@ def configure(sub: Any, name: str) -> None:
         add_journal(p)
         add_display(p)
         add_json(p)
+        add_fail_on(p)
         p.set_defaults(func=cmd_plan)
     elif name == "throttle":
         p = sub.add_parser("throttle", help="regulator outlet temperature (isenthalpic expansion)")
@@ -84,9 +87,9 @@ def cmd_plan(args: argparse.Namespace) -> int:
     d = display(args, prof.ambient_pa, prof)
     if args.json:
         emit_json(plan_json(a, d))
-        return 0
-    print(format_plan(a, d))
-    return 0
+    else:
+        print(format_plan(a, d))
+    return exit_for(args, a.findings)
 
 
 def cmd_throttle(args: argparse.Namespace) -> int:

@@ -20,11 +20,11 @@ from benchwarden.cli.common import (
     gas,
     input_error,
 )
-from benchwarden.core import gas as g
-from benchwarden.core import room as rm
-from benchwarden.core import supply
-from benchwarden.units import fmt_hours, parse_flow, parse_temperature, parse_volume, pressure_abs
+from benchwarden.render.hazards import hazard_items
+from benchwarden.render.room import floor_words, leak_rows, release_oxygen_words
+from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
 from benchwarden.units.quantities import parse_amount, parse_ventilation
+from benchwarden.workflows.roomcheck import leak_check, release_check
 
 
 def configure(sub: Any, name: str) -> None:
@@ -61,61 +61,63 @@ def cmd_room(args: argparse.Namespace) -> int:
     if V <= 0:
         raise input_error(f"room volume {args.room_volume!r} must be greater than zero")
     Q = parse_ventilation(args.ventilation).m3_s(V) if args.ventilation else 0.0
-    notes = [rm.stratification_note(g_)]
     if args.release:
-        vg = rm.release_volume(g_, parse_amount(args.release, "release"), T, amb)
-        r = rm.release(V, vg, args.model, args.oxygen)
-        hz = rm.gas_hazards(g_, r.o2_percent_after_release, args.oxygen)
-        if args.json:
-            emit_json(asdict(r) | {"gas": g_.name, "gas_percent_after_release": r.gas_percent_after_release,
-                                   "hazards": [asdict(h) for h in hz], "stratification": notes[0]})
-            return 0
-        rows = [("gas", g_.name), ("room", f"{V:g} m³"), ("released", f"{vg:.3f} m³ at room conditions")]
-        # a toxic or flammable gas is judged by its own concentration first, then by the oxygen
-        rows += [(f"{h.kind.upper()}", h.text) for h in hz]
-        rows += [(f"{g_.short_name} in the room", f"{r.gas_percent_after_release:.2f} %"),
-                 ("oxygen after", f"{r.o2_percent_after_release:.2f} %"),
-                 ("effect of the oxygen", r.effect or "none expected (≥ 19.5 %)"), ("model", r.method)]
-        emit_table("Room after a sudden release", rows, list(r.notes) + notes + [CAUTION])
-        return 0
+        return _release(args, g_, V, T, amb)
     if args.ventilation and Q == 0 and args.ventilation_kind == "exhaust":
         raise input_error(f"ventilation {args.ventilation!r} is zero: leave out --ventilation for an unventilated room")
-    R = rm.leak_volume_flow(g_, parse_flow(args.leak, reference=args.flow_reference, what="leak"), T, amb)
-    lk = rm.leak_o2(V, R, Q, args.ventilation_kind, args.oxygen)
-    fin = None
     if (args.supply_volume is None) != (args.supply_pressure is None):
         raise input_error("--supply-volume and --supply-pressure go together")
+    sv = sp = None
     if args.supply_volume is not None:
-        c = supply.contents(g_, parse_volume(args.supply_volume, "supply volume"),
-                            pressure_abs(args.supply_pressure, amb, "supply pressure"), T)
-        if c.mass_kg is None:
-            raise input_error(c.notes[0])
-        fin = rm.finite_leak(lk, c.mass_kg / g.density(g_, T, amb))
-    worst = fin.o2_percent_minimum if fin is not None else lk.o2_percent_steady
-    hz = rm.gas_hazards(g_, worst, args.oxygen)
+        sv = parse_volume(args.supply_volume, "supply volume")
+        sp = pressure_abs(args.supply_pressure, amb, "supply pressure")
+    ck = leak_check(g_, V, parse_flow(args.leak, reference=args.flow_reference, what="leak"), Q,
+                    args.ventilation_kind, args.oxygen, T, amb, sv, sp)
+    return _leak(args, ck, V, Q)
+
+
+def _release(args: argparse.Namespace, g_: Any, V: float, T: float, amb: float) -> int:
+    ck = release_check(g_, V, parse_amount(args.release, "release"), args.model, args.oxygen, T, amb)
+    r = ck.release
+    hz = hazard_items(ck.toxic, ck.flammable, r.o2_percent_after_release, release=True)
+    floor = ({"o2_percent_floor": ck.floor.o2_percent_after_release,
+              "gas_percent_floor": ck.floor.gas_percent_after_release} if ck.floor is not None else {})
+    if args.json:
+        emit_json(asdict(r) | floor | {"gas": g_.name, "hazards": hz, "lead": ck.lead,
+                                       "stratification": ck.stratification})
+        return 0
+    rows = [("gas", g_.name), ("room", f"{V:g} m³"), ("released", f"{r.release_volume_m3:.3f} m³ at room conditions")]
+    o2_rows = [("oxygen after", f"{r.o2_percent_after_release:.2f} %")]
+    if not any(h["kind"] == "oxygen-enrichment" for h in hz):
+        o2_rows.append(("effect of the oxygen", release_oxygen_words(r.o2_percent_after_release, r.effect)))
+    # the worse of the two hazards leads: the gas's own toxicity or the oxygen it leaves
+    lead = [(h["kind"].upper(), h["text"]) for h in hz if h.get("judged", True)]
+    notes = [h["text"] for h in hz if not h.get("judged", True)]
+    rows += (lead + o2_rows if ck.lead == "toxic" or any(h["kind"] in ("flammable", "oxygen-enrichment") for h in hz)
+             else o2_rows + lead)
+    rows += [(f"released {g_.short_name} in the room", f"{r.gas_percent_after_release:.2f} %"), ("model", r.method)]
+    if ck.floor is not None:
+        rows.append(("at floor level", floor_words(ck.floor)))
+    emit_table("Room after a sudden release", rows, list(r.notes) + notes + [ck.stratification, CAUTION])
+    return 0
+
+
+def _leak(args: argparse.Namespace, ck: Any, V: float, Q: float) -> int:
+    lk, fin = ck.leak, ck.finite
+    hz = hazard_items(ck.toxic, ck.flammable, ck.o2_percent_lowest)
     if args.json:
         extra: dict[str, object] = {}
         if fin is not None:
             extra = {"minutes_to_empty": fin.minutes_to_empty, "o2_percent_minimum": fin.o2_percent_minimum,
                      "minutes_below_19_5": fin.minutes_below_19_5, "minutes_to_recover_from_minimum":
-                     fin.minutes_to_recover}
-        emit_json(asdict(lk) | extra | {"gas": g_.name, "model": lk.method, "hazards": [asdict(h) for h in hz],
-                                        "stratification": notes[0]})
+                     fin.minutes_to_recover, "steady_state_sustained": fin.steady_sustained,
+                     # with a finite source the times and the effect follow the lowest oxygen
+                     "minutes_to_19_5": fin.minutes_to_19_5, "minutes_to_18": fin.minutes_to_18,
+                     "effect": fin.effect}
+        emit_json(asdict(lk) | extra | {"gas": ck.gas.name, "model": lk.method, "hazards": hz, "lead": ck.lead,
+                                        "o2_percent_lowest": ck.o2_percent_lowest,
+                                        "stratification": ck.stratification})
         return 0
-
-    def mins(m: float) -> str:
-        return "—" if math.isnan(m) else fmt_hours(m / 60.0)
-
-    emit_table("Room oxygen with a continuous leak", [
-        ("gas", g_.name), ("room", f"{V:g} m³"), ("leak", f"{R * 6e4:.3f} L/min at room conditions"),
-        ("ventilation", f"{Q * 3600:.1f} m³/h ({args.ventilation_kind})" if Q else "none"),
-        ("steady oxygen", f"{lk.o2_percent_steady:.2f} %"), ("to 19.5 %", mins(lk.minutes_to_19_5)),
-        ("to 18 %", mins(lk.minutes_to_18)),
-        ("recovery to 19.5 %", "never below it" if math.isnan(lk.minutes_to_recover) else mins(lk.minutes_to_recover)),
-        ("effect", lk.effect or "none expected (≥ 19.5 %)"), ("model", lk.method)]
-        + ([("cylinder empty after", mins(fin.minutes_to_empty)),
-            ("lowest oxygen", f"{fin.o2_percent_minimum:.2f} % (when the cylinder is empty)"),
-            ("back above 19.5 % after", "never below it" if fin.minutes_to_recover is None
-             else mins(fin.minutes_to_recover))] if fin is not None else []),
-        [h.text for h in hz] + notes + [CAUTION])
+    emit_table("Room oxygen with a continuous leak", leak_rows(ck, V, Q, args.ventilation_kind),
+               [h["text"] for h in hz] + [ck.stratification, CAUTION])
     return 0

@@ -36,6 +36,10 @@ class Handling:
     lfl_percent: float | None = None
     exposure_twa_ppm: float | None = None
     exposure_stel_ppm: float | None = None
+    #: Immediately dangerous to life or health, ppm (where one is published).
+    exposure_idlh_ppm: float | None = None
+    #: Concentration above which a person loses consciousness within minutes, vol % (a toxic gas).
+    incapacitating_percent: float | None = None
     sold_liquefied: bool = False
     #: Highest permitted filling ratio of a liquefied gas, [kg per litre of water capacity].
     max_filling_ratio_kg_l: float | None = None
@@ -87,11 +91,15 @@ PURE_GASES: dict[str, PureGas] = {
                                   "LFL 4.0 vol % in air: IEC 60079-20-1 (from memory) / NFPA 497"))),
         PureGas("carbon dioxide", "carbon dioxide", "CarbonDioxide", "124-38-9", 0.0440095,
                 ("co2", "carbondioxide", "carbon-dioxide"),
-                Handling(exposure_twa_ppm=5000.0, exposure_stel_ppm=30000.0, sold_liquefied=True,
+                Handling(exposure_twa_ppm=5000.0, exposure_stel_ppm=30000.0, exposure_idlh_ppm=40000.0,
+                         incapacitating_percent=10.0, sold_liquefied=True,
                          max_filling_ratio_kg_l=0.75,
                          sources=("TWA 5000 ppm: OSHA 29 CFR 1910.1000 Table Z-1",
                                   "filling ratio 0.75 kg/L: common practice for CO2 cylinders",
                                   "STEL 30000 ppm: NIOSH Pocket Guide (from memory); UK EH40 STEL 15000 ppm",
+                                  "IDLH 40000 ppm: NIOSH IDLH values (from memory)",
+                                  "incapacitating above about 10 %: unconsciousness within minutes "
+                                  "(EIGA and CGA carbon dioxide safety guidance, from memory)",
                                   "liquefied below its critical temperature 31.0 °C (Span & Wagner 1996)"),
                          notes="toxic well before it displaces oxygen")),
         PureGas("sulfur hexafluoride", "sulfur hexafluoride", "SulfurHexafluoride", "2551-62-4",
@@ -101,9 +109,11 @@ PURE_GASES: dict[str, PureGas] = {
                                   "filling ratio 1.04 kg/L: ADR packing instruction P200 (from memory)",
                                   "liquefied below its critical temperature 45.6 °C (Guder & Wagner 2009)"),
                          notes="SF6 that has been through a discharge or an arc contains toxic breakdown products "
-                               "(sulfur fluorides such as S2F10 and SOF2, and HF): vent used gas outside, never "
-                               "into the room; open gaps only ventilated, with gloves and eye protection, and "
-                               "wipe the powdery deposits as the supplier's safety data sheet says")),
+                               "(sulfur fluorides such as S2F10 and SOF2, and HF): recover used gas for reuse or "
+                               "disposal, never vent it (EU F-gas Regulation 2024/573 and IEC 62271-4 on handling "
+                               "used SF6, from memory); open arced gaps only ventilated, with gloves, eye and "
+                               "respiratory protection; take the powdery deposits up with a filtered vacuum "
+                               "cleaner, never by wiping or blowing, and dispose of them as hazardous waste")),
     ]
 }
 

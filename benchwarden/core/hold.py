@@ -15,8 +15,12 @@ are taken as uncorrelated, which is conservative for one gauge (its zero error c
 difference, its hysteresis and non-linearity do not). Sensitivities ∂m/∂p, ∂m/∂T come from the
 equation of state. The verdict uses an expanded uncertainty U = 2u (about 95 %).
 
-Verdict: ``leak`` when the rate exceeds U; ``no-leak-resolved`` when even rate + U is below the
-target leak rate (so a leak of that size would have shown); otherwise ``inconclusive``.
+Verdict (:func:`verdict_of`, one set everywhere): ``pressure-rose`` when the held mass *rose* by
+more than U (a sealed volume cannot gain gas: a cylinder change not recorded, warming not
+captured, or a wrong reading); ``leak`` when the rate exceeds U; ``likely-leak`` when the rate is
+above the target and above its standard uncertainty u but not above U; ``no-leak-resolved`` when
+even rate + U is below the target leak rate (so a leak of that size would have shown);
+otherwise ``inconclusive``.
 The ASTM E2930 rules of thumb are reported: the pressure resolution should be ten times and the
 accuracy four times finer than the pressure change the target leak causes over the hold.
 """
@@ -86,6 +90,12 @@ def standard_density(gas: g.Gas) -> float:
     return g.density(gas, T_STD, P_STD)
 
 
+def kg_s_from_sccm(gas: g.Gas, sccm: float) -> float:
+    """Standard flow [sccm at 0 °C, 101.325 kPa] as a mass flow [kg/s] (real density at the
+    reference); the inverse of :func:`sccm_from_kg_s`."""
+    return sccm / SCCM_PER_M3_S * standard_density(gas) if sccm else 0.0
+
+
 def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
     """Mass flow [kg/s] as sccm at 0 °C, 101.325 kPa (real density at the reference)."""
     return mdot / standard_density(gas) * SCCM_PER_M3_S
@@ -147,6 +157,62 @@ def mass_change_uncertainty(dm1p: float, dm2p: float, dm1T: float, dm2T: float, 
     return math.sqrt((dm1p * u_p) ** 2 + (dm2p * u_p) ** 2 + (dm1T * u_T) ** 2 + (dm2T * u_T) ** 2)
 
 
+#: The verdicts of a hold test or the leak watch, worst first.
+VERDICTS = ("leak", "likely-leak", "pressure-rose", "inconclusive", "no-leak-resolved")
+
+
+def verdict_of(rate: float, u_rate: float, target: float, k: float = K_EXPANDED) -> str:
+    """The verdict of a leak-rate estimate against a target leak rate.
+
+    Parameters
+    ----------
+    rate : float
+        Estimated leak rate (mass loss positive), [any flow unit, e.g. sccm]
+    u_rate : float
+        Its standard uncertainty (1σ), [same unit]
+    target : float
+        The leak rate the test must resolve, [same unit]
+    k : float
+        Coverage factor of the expanded uncertainty U = k·u, [-] (2: about 95 %)
+
+    Returns
+    -------
+    verdict : str
+        ``pressure-rose`` (rate < −U: the held mass rose beyond the uncertainty, which a sealed
+        volume cannot do), ``leak`` (rate > U), ``likely-leak`` (rate above the target and above
+        u, not above U), ``no-leak-resolved`` (rate + U < target), else ``inconclusive``.
+
+    Notes
+    -----
+    Decision rule with an expanded uncertainty as in JCGM 106:2012 (conformity assessment,
+    guarded acceptance): "fine" is said only when the whole interval lies below the target.
+
+    References
+    ----------
+    .. [1] JCGM 100:2008, Evaluation of measurement data — Guide to the expression of
+       uncertainty in measurement (GUM), 6.2 (expanded uncertainty).
+    .. [2] JCGM 106:2012, Evaluation of measurement data — The role of measurement uncertainty
+       in conformity assessment, 8 (acceptance and rejection zones).
+
+    Examples
+    --------
+    >>> verdict_of(215.6, 121.1, 48.0), verdict_of(-6900.0, 1600.0, 20.0), verdict_of(1.0, 2.0, 20.0)
+    ('likely-leak', 'pressure-rose', 'no-leak-resolved')
+    """
+    U = k * u_rate
+    if not (math.isfinite(rate) and math.isfinite(U)):
+        return "inconclusive"
+    if rate < -U:
+        return "pressure-rose"
+    if rate > U:
+        return "leak"
+    if rate > target and rate > u_rate:
+        return "likely-leak"
+    if rate + U < target:
+        return "no-leak-resolved"
+    return "inconclusive"
+
+
 @dataclass(frozen=True)
 class HoldResult:
     gas_name: str
@@ -199,12 +265,7 @@ def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: flo
         notes.append(f"target leak rate not given: using 1 % of the contents per day, at least 1 sccm "
                      f"= {target_sccm:.3g} sccm")
     U = K_EXPANDED * u_sccm
-    if sccm > U:
-        verdict = "leak"
-    elif sccm + U < target_sccm:
-        verdict = "no-leak-resolved"
-    else:
-        verdict = "inconclusive"
+    verdict = verdict_of(sccm, u_sccm, target_sccm)
     # ASTM E2930 rules of thumb against the pressure change of the target leak over the hold
     res_ok = acc_ok = None
     target_kg_s = target_sccm / SCCM_PER_M3_S * rho_std

@@ -77,11 +77,10 @@ class Release:
     effect: str
     notes: tuple[str, ...]
     method: str
-
-    @property
-    def gas_percent_after_release(self) -> float:
-        """The released gas's own concentration, vol % (what displaced the oxygen: 1 − C/C0)."""
-        return max(0.0, 100.0 * (1.0 - self.o2_percent_after_release / self.c0_percent))
+    #: the released gas's own concentration in the room, vol %
+    gas_percent_after_release: float = 0.0
+    #: oxygen in the released gas itself, vol % (0 for an inert gas, 100 for oxygen)
+    gas_o2_percent: float = 0.0
 
 
 _MODEL_TEXT = {
@@ -92,8 +91,12 @@ _MODEL_TEXT = {
 
 
 def release(room_volume_m3: float, release_volume_m3: float, model: str = "displacement",
-            c0_percent: float = C0_AIR) -> Release:
+            c0_percent: float = C0_AIR, gas_o2_percent: float = 0.0) -> Release:
     """Oxygen level after a sudden release (see module docstring for the three models).
+
+    The released gas's own fraction in the room is y = Vg/Vr (displacement), 1 − exp(−Vg/Vr)
+    (mixed) or Vg/(Vr + Vg) (sealed); the oxygen is C = C0·(1 − y) + Cg·y with Cg the oxygen in
+    the released gas (0 for an inert gas, 100 for oxygen, which enriches the room).
 
     >>> round(release(50.0, 9.5).o2_percent_after_release, 2)   # 9.5 m³ into 50 m³
     16.97
@@ -101,6 +104,8 @@ def release(room_volume_m3: float, release_volume_m3: float, model: str = "displ
     17.33
     >>> round(release(50.0, 9.5, "sealed").o2_percent_after_release, 2)
     17.6
+    >>> round(release(30.0, 10.0, gas_o2_percent=100.0).o2_percent_after_release, 2)   # oxygen
+    47.3
     """
     check_positive(room_volume_m3, "room volume", "m³")
     check_positive(release_volume_m3, "release volume", "m³")
@@ -111,15 +116,17 @@ def release(room_volume_m3: float, release_volume_m3: float, model: str = "displ
     notes: list[str] = []
     Vr, Vg = room_volume_m3, release_volume_m3
     if model == "displacement":
-        c = c0_percent * (Vr - Vg) / Vr
-        if c < 0:
-            c = 0.0
-            notes.append("the release is larger than the room: all room air is displaced (0 % oxygen)")
+        y = Vg / Vr
+        if y > 1:
+            y = 1.0
+            notes.append("the release is larger than the room: all room air is displaced")
     elif model == "mixed":
-        c = c0_percent * math.exp(-Vg / Vr)
+        y = 1.0 - math.exp(-Vg / Vr)
     else:
-        c = c0_percent * Vr / (Vr + Vg)
-    return Release(model, Vr, Vg, c0_percent, c, effect_of(c), tuple(notes), _MODEL_TEXT[model])  # type: ignore[arg-type]
+        y = Vg / (Vr + Vg)
+    c = c0_percent * (1.0 - y) + gas_o2_percent * y
+    return Release(model, Vr, Vg, c0_percent, c, effect_of(c), tuple(notes), _MODEL_TEXT[model],  # type: ignore[arg-type]
+                   100.0 * y, gas_o2_percent)
 
 
 @dataclass(frozen=True)
@@ -189,16 +196,29 @@ def leak_o2(room_volume_m3: float, leak_m3_s: float, ventilation_m3_s: float = 0
                 effect_of(css), method)
 
 
+#: A finite source sustains the steady state when its lowest oxygen comes within this fraction
+#: of C0 of the steady value (0.5 % of 20.95 ≈ 0.1 % O2, below what a monitor resolves;
+#: benchwarden rule).
+STEADY_TOLERANCE = 0.005
+
+
 @dataclass(frozen=True)
 class FiniteLeak:
     """A leak that stops when its cylinder is empty: the oxygen falls until then, and recovers
-    afterwards with the ventilation."""
+    afterwards with the ventilation. The lowest oxygen and when it happens lead; the steady
+    state counts only when the cylinder lasts long enough to reach it (``steady_sustained``)."""
 
     leak: Leak
     minutes_to_empty: float
     o2_percent_minimum: float
     minutes_below_19_5: float | None  # None: never below 19.5 %
     minutes_to_recover: float | None  # from the minimum back to 19.5 % (None: never below)
+    steady_sustained: bool = True
+    #: when the oxygen passes 19.5 % and 18 % before the cylinder is empty (None: it never does)
+    minutes_to_19_5: float | None = None
+    minutes_to_18: float | None = None
+    #: effect of the lowest oxygen (``""`` if it stays at or above 19.5 %)
+    effect: str = ""
 
 
 def finite_leak(lk: Leak, gas_volume_m3: float) -> FiniteLeak:
@@ -208,8 +228,8 @@ def finite_leak(lk: Leak, gas_volume_m3: float) -> FiniteLeak:
 
     >>> lk = leak_o2(30.0, 10 / 60000, 0.0)
     >>> f = finite_leak(lk, 1.0)      # 1 m³ of gas at 10 L/min: 100 min
-    >>> round(f.minutes_to_empty), round(f.o2_percent_minimum, 2)
-    (100, 20.26)
+    >>> round(f.minutes_to_empty), round(f.o2_percent_minimum, 2), f.steady_sustained
+    (100, 20.26, False)
     """
     check_positive(gas_volume_m3, "gas in the leaking cylinder", "m³")
     if lk.leak_m3_s <= 0:
@@ -218,15 +238,21 @@ def finite_leak(lk: Leak, gas_volume_m3: float) -> FiniteLeak:
     c_min = o2_at(lk, T)
     below = None
     recover = None
+
+    def before_empty(minutes: float) -> float | None:
+        return minutes if math.isfinite(minutes) and minutes <= T / 60.0 else None
+
+    t19 = before_empty(lk.minutes_to_19_5)
     if c_min < OSHA_DEFICIENT:
-        t19 = lk.minutes_to_19_5 if lk.minutes_to_19_5 <= T / 60.0 else math.nan
         Q, V, C0 = lk.ventilation_m3_s, lk.room_volume_m3, lk.c0_percent
         if Q > 0 and C0 > OSHA_DEFICIENT:
             recover = math.log((C0 - c_min) / (C0 - OSHA_DEFICIENT)) / (Q / V) / 60.0
         else:
             recover = math.inf
-        below = (T / 60.0 - t19) + recover if math.isfinite(t19) else recover
-    return FiniteLeak(lk, T / 60.0, c_min, below, recover)
+        below = (T / 60.0 - t19) + recover if t19 is not None else recover
+    sustained = abs(c_min - lk.o2_percent_steady) <= STEADY_TOLERANCE * lk.c0_percent
+    return FiniteLeak(lk, T / 60.0, c_min, below, recover, sustained, t19, before_empty(lk.minutes_to_18),
+                      effect_of(c_min))
 
 
 def o2_at(lk: Leak, t_s: float) -> float:
@@ -256,49 +282,10 @@ def release_volume(gas: g.Gas, amount: Amount, T_room: float, p_room: float) -> 
 def stratification_note(gas: g.Gas) -> str:
     """Where the gas collects, from its density relative to air (ideal-gas ratio of molar masses)."""
     rd = gas.relative_density_to_air
-    if rd > 1.1:
+    if rd > 1.2:
         return (f"{gas.name} is {rd:.1f}× as dense as air: it collects at floor level, in pits and "
                 "trenches, where the well-mixed figure is optimistic")
-    if rd < 0.9:
+    if rd < 0.8:
         return (f"{gas.name} is {rd:.2f}× as dense as air: it rises and collects under the ceiling, "
                 "where the well-mixed figure is optimistic")
     return f"{gas.name} has about the density of air and mixes readily"
-
-
-@dataclass(frozen=True)
-class Hazard:
-    kind: str  # "toxic" | "flammable"
-    percent: float
-    limit_percent: float
-    text: str
-
-
-def _source(sources: tuple[str, ...], key: str) -> str:
-    """The source of a handling fact, by what it is about (TWA, STEL, LFL)."""
-    return next((x for x in sources if key in x), sources[0] if sources else "")
-
-
-def gas_hazards(gas: g.Gas, o2_percent: float, c0_percent: float = C0_AIR) -> list[Hazard]:
-    """Toxic and flammable hazards of the released gas at the concentration that lowers oxygen
-    to ``o2_percent`` (released-gas fraction = 1 − C/C0, well mixed).
-
-    CO2 is toxic long before it displaces oxygen (OSHA TWA 5000 ppm = 0.5 %); hydrogen is
-    flammable from 4 % (its LFL)."""
-    frac = max(0.0, 1.0 - o2_percent / c0_percent) * 100.0
-    out: list[Hazard] = []
-    for comp, x in gas.components:
-        h = comp.handling
-        pct = frac * x
-        if h.exposure_stel_ppm and pct > h.exposure_stel_ppm / 1e4:
-            out.append(Hazard("toxic", pct, h.exposure_stel_ppm / 1e4,
-                              f"{comp.name} at {pct:.2f} % exceeds its short-term exposure limit "
-                              f"{h.exposure_stel_ppm:.0f} ppm ({_source(h.sources, 'STEL')})"))
-        elif h.exposure_twa_ppm and pct > h.exposure_twa_ppm / 1e4:
-            out.append(Hazard("toxic", pct, h.exposure_twa_ppm / 1e4,
-                              f"{comp.name} at {pct:.2f} % exceeds its 8-hour exposure limit "
-                              f"{h.exposure_twa_ppm:.0f} ppm ({_source(h.sources, 'TWA')})"))
-        if h.lfl_percent and pct > 0.25 * h.lfl_percent:
-            word = "above its lower flammability limit" if pct >= h.lfl_percent else "above 25 % of its LFL"
-            out.append(Hazard("flammable", pct, h.lfl_percent,
-                              f"{comp.name} at {pct:.2f} % is {word} ({h.lfl_percent:g} %; {_source(h.sources, 'LFL')})"))
-    return out

@@ -33,7 +33,8 @@ class Display:
 
     def gauge(self, abs_pa: float, step_pa: float | None = None) -> str:
         """A pressure as gauge, e.g. ``"64.0 bar(g)"`` or ``"928 psig"``; with the gauge's
-        ``step_pa`` (its resolution), no more decimals than the gauge resolves, in every unit.
+        ``step_pa`` (what its reading means: see ``workflows.holds.reading_step_pa``), no more
+        decimals than the gauge resolves, in every unit.
 
         >>> d = Display("psi")
         >>> d.gauge(198e5 + ATM_PA), d.gauge(198e5 + ATM_PA, 5e5)

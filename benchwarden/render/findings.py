@@ -11,11 +11,13 @@ import math
 from collections.abc import Callable
 from typing import Any
 
+from benchwarden.core.hazards import IMPAIRED_O2
 from benchwarden.render.display import Display
+from benchwarden.render.hazards import BAND_WORDS, CO2_DETECTOR, ENRICHMENT_TEXT, LFL_RULE
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.workflows.findings import Finding
 
-__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "TEMPLATES", "describe", "finding_dict"]
+__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "TEMPLATES", "VERDICT_WORDS", "describe", "finding_dict", "verdict_words"]
 
 SEVERITY_MARK: dict[str, str] = {"stop": "✖ STOP", "warning": "▲ WARNING", "attention": "● ATTENTION",
                                  "info": "ℹ INFO"}
@@ -104,13 +106,59 @@ TEMPLATES: dict[str, Template] = {
         + (f" and passes 19.5 % after {v['minutes_to_19_5']:.0f} min" if math.isfinite(v["minutes_to_19_5"]) else "")
         + ": duct the exhaust outside or increase ventilation", f"{v['o2_percent']:.1f} % O2 steady"),
     "room-release": lambda f, v, d: (
-        f"if all of {v['supply']}, full, escapes at once the room falls to {v['o2_percent']:.1f} % oxygen "
-        f"({v['effect']}; {v['o2_percent_today']:.1f} % with today's contents); "
-        + ("" if v["monitor"] else "fit an oxygen monitor with alarm, ")
-        + "keep only the cylinders in use indoors and ventilate",
-        f"{v['o2_percent']:.1f} % O2 ({v['model']} model)"),
-    "room-toxic": lambda f, v, d: (f"if all of {v['supply']} escapes: {v['detail']}", f"{v['percent']:.2f} %"),
-    "room-flammable": lambda f, v, d: (f"if all of {v['supply']} escapes: {v['detail']}", f"{v['percent']:.2f} %"),
+        f"if all of {v['supply']}, full, escapes at once "
+        + ("its gas is toxic before the oxygen matters (see the toxicity finding); the room's oxygen falls to "
+           if v.get("lead") == "toxic" else "the room's oxygen falls to ")
+        + f"{v['o2_percent']:.1f} % ({v['effect']}; {v['o2_percent_today']:.1f} % with today's contents of "
+        f"{v['supply']}); "
+        + (("an oxygen monitor detects this, it does not prevent it: " if v["o2_percent"] < IMPAIRED_O2 else "")
+           if v["monitor"] else "fit an oxygen monitor with alarm, ")
+        + "keep only the cylinders in use indoors and ventilate"
+        + (f"; {CO2_DETECTOR}" if v.get("co2_detector") else ""),
+        f"{v['o2_percent']:.1f} % O2 ({v['model']} model, {v['supply']})"),
+    "room-enrichment": lambda f, v, d: (
+        f"if all of {v['supply']}, full, escapes at once the room rises to {v['o2_percent']:.1f} % oxygen "
+        f"({v['o2_percent_today']:.1f} % with today's contents): {ENRICHMENT_TEXT}; keep it small, outside or "
+        "ventilated, and away from fuel gases, oil and grease",
+        f"{v['o2_percent']:.1f} % O2 > {v['limit_percent']:g} % ({v['supply']})"),
+    "room-toxic": lambda f, v, d: (
+        f"if all of {v['supply']}, full, escapes at once: {v['component']} at {v['percent']:.2f} % is "
+        f"{BAND_WORDS[v['band']]}" + (" — worse than the oxygen it leaves" if v.get("lead") == "toxic" else "")
+        + f" ({v['o2_percent']:.1f} % O2)" + (f"; {CO2_DETECTOR}" if v.get("co2_detector") else ""),
+        f"{v['percent']:.2f} % {v['component']}, {v['band']} ({v['supply']})"),
+    "room-flammable": lambda f, v, d: (
+        f"if all of {v['supply']}, full, escapes at once: {v['fuels']} reaches {v['percent']:.2f} % in the room, "
+        + (f"above its lower flammability limit of {v['lfl_percent']:.3g} %: it can burn"
+           if v["percent"] >= v["lfl_percent"] else
+           f"{v['percent_of_lfl']:.0f} % of its lower flammability limit ({v['lfl_percent']:.3g} %)")
+        + f"; {LFL_RULE}", f"{v['percent_of_lfl']:.0f} % of LFL ({v['supply']})"),
+    "room-vented-toxic": lambda f, v, d: (
+        f"gas vented from {v['supply']} brings {v['component']} to {v['percent']:.2f} % in the room by the end of "
+        f"the session: {BAND_WORDS[v['band']]}; duct the exhaust outside"
+        + (f"; {CO2_DETECTOR}" if v.get("co2_detector") else ""),
+        f"{v['percent']:.2f} % {v['component']}, {v['band']} ({v['supply']})"),
+    "room-vented-flammable": lambda f, v, d: (
+        f"gas vented from {v['supply']} brings {v['fuels']} to {v['percent_of_lfl']:.0f} % of its lower "
+        f"flammability limit in the room by the end of the session ({v['percent']:.2f} % against "
+        f"{v['lfl_percent']:.3g} %): duct it outside, away from any spark; {LFL_RULE}",
+        f"{v['percent_of_lfl']:.0f} % of LFL ({v['supply']})"),
+    "room-pooling": lambda f, v, d: (
+        f"the gas of {v['supply']} is {v['relative_density']:.1f}× as dense as air: released at once it pools at "
+        f"floor level, in pits and under benches; held in the lowest {v['layer_m']:g} m of a room taken as "
+        f"{v['assumed_height_m']:g} m high (an assumption) it makes up {v['gas_percent_floor']:.0f} % of the air "
+        f"there and the oxygen falls to {v['o2_percent_floor']:.1f} % (well mixed {v['o2_percent_mixed']:.1f} %): "
+        "place the oxygen sensor low and keep out of pits",
+        f"{v['o2_percent_floor']:.1f} % O2 at floor level ({v['supply']})"),
+    "gap-fuel": lambda f, v, d: (
+        f"gap {f.subject} is fed with flammable {v['fuels']} from {v['supply']} and fires a spark: purge the air out "
+        "of the gap and its line with inert gas before it fires, vent its exhaust to a safe place"
+        + (f" (vented into the room: {v['percent_of_lfl']:.0f} % of its LFL {v['lfl_percent']:.3g} % by the end of the "
+           "session)"
+           if v["vents_to_room"] else ""), f"LFL {v['lfl_percent']:.3g} % ({v['supply']})"),
+    "segregation": lambda f, v, d: (
+        f"oxidiser ({v['oxidisers']}) and fuel gas ({v['fuels']}) in one room: keep them at least 6 m (20 ft) apart "
+        "or behind a non-combustible barrier at least 1.5 m (5 ft) high with a half-hour fire rating "
+        "(29 CFR 1910.253(b)(4)(iii), from memory)", f"{v['oxidisers']} / {v['fuels']}"),
     "faster-than-planned": lambda f, v, d: (
         f"{f.subject} empties faster than planned: check for leaks or a flow set too high",
         f"observed {fmt_uncertain(v['observed_kg_s'] * 6e4, v['uncertainty_kg_s'] * 6e4, 'g/min')} vs planned "
@@ -118,7 +166,8 @@ TEMPLATES: dict[str, Template] = {
     "reserve-before-end-live": lambda f, v, d: (
         f"{f.subject} reaches its reserve at {_clock(v['reserve_at'])}, before the session's planned end "
         f"{_clock(v['session_end'])}: swap the cylinder or stop early", f"reserve at {_clock(v['reserve_at'])}"),
-    "no-hold-test": lambda f, v, d: ("no hold test recorded for this bench: run one", "none"),
+    "no-hold-test": lambda f, v, d: (
+        "no hold test has ever been recorded for this bench: run one before relying on the lines", "none"),
     "retest-overdue": lambda f, v, d: (
         f"the cylinder on {f.subject} is past its periodic-inspection (retest) date: do not use or refill it; "
         "return it to the supplier (the interval is the maker's or the local rule)", f"due {v['due']}"),
@@ -150,7 +199,8 @@ TEMPLATES: dict[str, Template] = {
     "alarm-over-time": lambda f, v, d: (
         f"the session is over its planned time by {d.hours(v['over_hours'])}", f"+{v['over_hours']:.2f} h"),
     "alarm-leak": lambda f, v, d: (
-        (f"the leak watch finds a leak on {f.subject}: close the cylinder and find it" if v["supply"]
+        (f"the leak watch finds a leak on {f.subject}: close the cylinder and find it — only where the air is "
+         "safe; otherwise leave and raise the alarm" if v["supply"]
          else "a leak was found: see the findings"),
         fmt_uncertain(v["leak_rate_sccm"], v["leak_rate_uncertainty_sccm"], "sccm") if v["supply"] else "leak"),
     "alarm-fast-draw": lambda f, v, d: ("a supply empties faster than planned: see the findings", "faster"),
@@ -158,10 +208,38 @@ TEMPLATES: dict[str, Template] = {
         f"the gauge of {f.subject} is silent: no good sample for several intervals ({v['why']})", "silent"),
     "hold-test-inconclusive": lambda f, v, d: (
         "the last hold test could not tell: hold longer or use a finer gauge", _hold_figure(v)),
+    "hold-test-likely-leak": lambda f, v, d: (
+        f"{'the last hold test' if not v.get('supply') else 'the last hold test on ' + str(v['supply'])} points to "
+        "a likely leak (above the target, not yet resolved): tighten the fittings, leak-detect them and repeat "
+        "the hold for longer", _hold_figure(v)),
+    "hold-test-pressure-rose": lambda f, v, d: (
+        f"{'the last hold test' if not v.get('supply') else 'the last hold test on ' + str(v['supply'])}: "
+        + VERDICT_WORDS["pressure-rose"], _hold_figure(v)),
     "hold-test-old": lambda f, v, d: (
         f"the last hold test is older than {v['max_age_days']:.0f} days: repeat it", _hold_figure(v)),
     "hold-test-ok": lambda f, v, d: ("last hold test resolved no leak", _hold_figure(v)),
 }
+
+
+#: Words for each hold-test verdict (the set of :data:`benchwarden.core.hold.VERDICTS`).
+VERDICT_WORDS: dict[str, str] = {
+    "leak": "LEAK: the mass loss is larger than its expanded uncertainty — find and fix it before use",
+    "likely-leak": ("LIKELY LEAK: the estimate is above the target and above its uncertainty, but not yet "
+                    "resolved — tighten, leak-detect the joints and repeat the hold for longer"),
+    "pressure-rose": ("the pressure ROSE beyond what the gauge and the temperature explain — a cylinder change "
+                      "not recorded, warming not captured, or a wrong reading; check and repeat (this is not a "
+                      "result of no leak)"),
+    "inconclusive": "INCONCLUSIVE: this gauge cannot tell; hold longer or use a finer gauge",
+    "no-leak-resolved": "no leak at or above the target: the test resolves it",
+}
+
+
+def verdict_words(verdict: str, rate_sccm: float, resolvable_sccm: float, target_sccm: float) -> str:
+    """The verdict of one hold test in words, with the rate it resolves where it resolves one."""
+    if verdict == "no-leak-resolved":
+        return (f"no leak above {max(rate_sccm, 0.0) + resolvable_sccm:.3g} sccm (target {target_sccm:.3g} sccm; "
+                f"smallest this test resolves: {resolvable_sccm:.3g} sccm)")
+    return VERDICT_WORDS.get(verdict, verdict)
 
 
 def _hold_figure(v: Any) -> str:

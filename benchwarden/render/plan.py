@@ -9,6 +9,7 @@ from typing import Any
 from benchwarden.render.display import Display
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
 from benchwarden.render.numbers import fmt_count
+from benchwarden.render.room import room_lines
 from benchwarden.workflows.bench import Assessment
 from benchwarden.workflows.findings import counts
 
@@ -51,7 +52,9 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
                 f"    now {d.gauge(s.pressure_abs_pa)}, {d.temperature(s.temperature_k)}; reserve {d.gauge(s.reserve_abs_pa)}",
                 f"    contents {s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}; "
                 f"usable {s.usable_mass_kg:.3f} kg",
-                f"    draw {s.draw_kg_s * 6e4:.3f} g/min; to reserve {d.hours(s.hours_to_reserve)}{band}"
+                f"    draw {s.draw_kg_s * 6e4:.3f} g/min"
+                + (f" (including the leak found, {s.leak_sccm:.3g} sccm)" if s.leak_sccm > 0 else "")
+                + f"; to reserve {d.hours(s.hours_to_reserve)}{band}"
                 + (f", at {d.clock(s.reserve_at, _start(plan))}" if s.reserve_at else "")]
         if s.shots_to_reserve:
             out.append(f"    shots to reserve {fmt_count(s.shots_to_reserve)}")
@@ -78,15 +81,7 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
                            f"{m1.margin_kv:+.1f} kV ({m1.status})")
     if plan.room:
         rm_ = plan.room
-        out += ["", "Room",
-                f"  {rm_.volume_m3:g} m³, ventilation {rm_.ventilation_m3_s * 3600:.0f} m³/h ({rm_.ventilation_kind})",
-                f"  worst case, all of {rm_.worst_case_supply_id} full released: {rm_.o2_percent_worst_case:.1f} % O2; "
-                f"every supply kept here: {rm_.all_supplies.o2_percent_after_release if rm_.all_supplies else 0:.1f} %",
-                f"  today's contents of {rm_.release_supply_id} released: {rm_.release.o2_percent_after_release:.1f} % "
-                f"O2 ({rm_.release.method}); well mixed {rm_.release_mixed.o2_percent_after_release:.1f} %"]
-        if rm_.leak:
-            out.append(f"  vented draws {rm_.vented_m3_s * 6e4:.2f} L/min: steady {rm_.leak.o2_percent_steady:.2f} % O2")
-        out += [f"  {n}" for n in rm_.notes]
+        out += ["", "Room"] + [f"  {line}" for line in room_lines(rm_)]
     out += ["", "Findings"]
     if not a.findings:
         out.append("  none")

@@ -11,14 +11,14 @@ from __future__ import annotations
 import os
 import sqlite3
 import threading
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 from benchwarden.errors import JournalError
 
-SCHEMA_VERSION = 5
+SCHEMA_VERSION = 6
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -146,6 +146,30 @@ _MIGRATIONS: dict[int, str] = {
     CREATE INDEX alarms_bench ON alarms(bench, at);
     """,
     5: """
+    CREATE TABLE accepted_stops (
+        id INTEGER PRIMARY KEY,
+        session_id INTEGER NOT NULL REFERENCES sessions(id),
+        at TEXT NOT NULL,
+        operator TEXT,
+        code TEXT NOT NULL,
+        subject TEXT NOT NULL,
+        text TEXT NOT NULL,
+        reason TEXT NOT NULL
+    );
+    CREATE INDEX accepted_stops_session ON accepted_stops(session_id);
+    ALTER TABLE readings ADD COLUMN note TEXT;
+    CREATE INDEX readings_struck ON readings(bench, supply_id) WHERE struck_at IS NOT NULL;
+    CREATE INDEX sessions_bench ON sessions(bench, started_at);
+    CREATE TABLE marks (
+        bench TEXT NOT NULL,
+        supply_id TEXT NOT NULL,
+        what TEXT NOT NULL,
+        reading_id INTEGER NOT NULL,
+        at TEXT NOT NULL,
+        PRIMARY KEY (bench, supply_id, what)
+    );
+    """,
+    6: """
     CREATE TABLE purges (
         id INTEGER PRIMARY KEY,
         bench TEXT NOT NULL,
@@ -204,6 +228,19 @@ class SessionRow:
 
 
 @dataclass(frozen=True)
+class AcceptedStop:
+    """A STOP finding that stood when a session was started, accepted by a person with a reason."""
+
+    session_id: int
+    at: str
+    operator: str | None
+    code: str
+    subject: str
+    text: str
+    reason: str
+
+
+@dataclass(frozen=True)
 class ReadingRow:
     id: int
     session_id: int | None
@@ -217,6 +254,7 @@ class ReadingRow:
     ambient_pa: float | None = None
     struck_at: str | None = None
     struck_reason: str | None = None
+    note: str | None = None
 
     @property
     def struck(self) -> bool:
@@ -429,9 +467,28 @@ class Journal:
         """Rows of a query (for the sample store); a failure is a :class:`JournalError`."""
         return self._read(sql, args)
 
-    def start_session(self, bench: str, profile_path: str | None, at: str) -> int:
-        return int(self._write(lambda db: db.execute(
-            "INSERT INTO sessions(bench, profile_path, started_at) VALUES (?, ?, ?)", (bench, profile_path, at)).lastrowid))
+    def start_session(self, bench: str, profile_path: str | None, at: str, operator: str | None = None,
+                      accepted: Sequence[tuple[str, str, str]] = (), reason: str | None = None) -> int:
+        """Start a session; ``accepted``: the STOP findings (code, subject, words) that stood and
+        that ``operator`` accepted for ``reason`` — recorded in the same transaction."""
+        def insert(db: sqlite3.Connection) -> int:
+            sid = int(db.execute("INSERT INTO sessions(bench, profile_path, started_at, operator) VALUES (?, ?, ?, ?)",
+                                 (bench, profile_path, at, operator)).lastrowid or 0)
+            db.executemany("INSERT INTO accepted_stops(session_id, at, operator, code, subject, text, reason)"
+                           " VALUES (?, ?, ?, ?, ?, ?, ?)",
+                           [(sid, at, operator, c, s, t, reason or "") for c, s, t in accepted])
+            return sid
+        return int(self._write(insert))
+
+    def accepted_stops(self, session_id: int | None = None) -> list[AcceptedStop]:
+        if not self._read("SELECT 1 FROM sqlite_master WHERE name = 'accepted_stops'"):
+            return []  # a journal opened read-only before its migration
+        sql = "SELECT session_id, at, operator, code, subject, text, reason FROM accepted_stops"
+        args: tuple[Any, ...] = ()
+        if session_id is not None:
+            sql += " WHERE session_id = ?"
+            args = (session_id,)
+        return [AcceptedStop(*r) for r in self._read(sql + " ORDER BY id", args)]
 
     def stop_session(self, session_id: int, at: str) -> None:
         self._write(lambda db: db.execute("UPDATE sessions SET stopped_at = ? WHERE id = ?", (at, session_id)))
@@ -449,6 +506,21 @@ class Journal:
             " entered_at, weight_kg, ambient_pa) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
             (session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, entered_at, weight_kg,
              ambient_pa)).lastrowid))
+
+    def add_readings(self, rows: Sequence[tuple[Any, ...]]) -> int:
+        """Record many idle readings in one transaction (all or none): each row is (bench,
+        supply_id, at, pressure_abs_pa, pressure_text, temperature_k, entered_at, weight_kg,
+        ambient_pa, note). Returns how many were written."""
+        self._write(lambda db: db.executemany(
+            "INSERT INTO readings(session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,"
+            " entered_at, weight_kg, ambient_pa, note) VALUES (NULL, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", rows))
+        return len(rows)
+
+    def reading_keys(self, bench: str, supply_id: str) -> set[tuple[str, float | None, float | None]]:
+        """(time, absolute pressure, weight) of every reading of a supply: what a bulk import
+        compares with so that importing a file twice adds nothing."""
+        return {(a, p, w) for a, p, w in self._read(
+            "SELECT at, pressure_abs_pa, weight_kg FROM readings WHERE bench = ? AND supply_id = ?", (bench, supply_id))}
 
     def strike_reading(self, reading_id: int, at: str, reason: str) -> None:
         """Strike a reading out (kept, marked, with the reason): nothing is ever deleted."""
@@ -559,15 +631,94 @@ class Journal:
         return [SessionRow(*r) for r in rows]
 
     def session(self, session_id: int) -> SessionRow | None:
-        return next((s for s in self.sessions() if s.id == session_id), None)
+        rows = self._read(
+            "SELECT s.id, s.bench, s.profile_path, s.started_at, s.stopped_at,"
+            " (SELECT COUNT(*) FROM readings r WHERE r.session_id = s.id),"
+            " (SELECT COUNT(*) FROM alarms a WHERE a.bench = s.bench AND a.at >= s.started_at"
+            "  AND (s.stopped_at IS NULL OR a.at <= s.stopped_at)), s.operator, s.shots FROM sessions s WHERE s.id = ?",
+            (session_id,))
+        return SessionRow(*rows[0]) if rows else None
 
     def unfinished_session(self, bench: str | None = None) -> SessionRow | None:
         """The latest session left running (no stop time), for resumption."""
-        rows = [s for s in self.sessions() if s.stopped_at is None and (bench is None or s.bench == bench)]
-        return rows[-1] if rows else None
+        sql = "SELECT id FROM sessions WHERE stopped_at IS NULL"
+        args: tuple[Any, ...] = ()
+        if bench is not None:
+            sql += " AND bench = ?"
+            args = (bench,)
+        rows = self._read(sql + " ORDER BY id DESC LIMIT 1", args)
+        return self.session(int(rows[0][0])) if rows else None
 
     _READING_COLUMNS = ("id, session_id, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, bench,"
-                        " weight_kg, ambient_pa, struck_at, struck_reason")
+                        " weight_kg, ambient_pa, struck_at, struck_reason, note")
+
+    def latest_reading(self, bench: str, supply_id: str, since: str | None = None, kind: str = "pressure",
+                       before: str | None = None) -> ReadingRow | None:
+        """The supply's latest reading that is not struck out (``kind``: ``pressure`` or
+        ``weight``), at or after ``since`` and at or before ``before`` when given."""
+        col = {"pressure": "pressure_abs_pa", "weight": "weight_kg"}[kind]
+        sql = (f"SELECT {self._READING_COLUMNS} FROM readings WHERE bench = ? AND supply_id = ? AND struck_at IS NULL"
+               f" AND {col} IS NOT NULL")
+        args: tuple[Any, ...] = (bench, supply_id)
+        if since is not None:
+            sql += " AND at >= ?"
+            args += (since,)
+        if before is not None:
+            sql += " AND at <= ?"
+            args += (before,)
+        rows = self._read(sql + " ORDER BY at DESC, id DESC LIMIT 1", args)
+        return ReadingRow(*rows[0]) if rows else None
+
+    def recent_readings(self, bench: str, supply_id: str, limit: int) -> list[ReadingRow]:
+        """The supply's newest ``limit`` readings that are not struck out, oldest first."""
+        rows = self._read(f"SELECT {self._READING_COLUMNS} FROM readings WHERE bench = ? AND supply_id = ?"
+                          " AND struck_at IS NULL ORDER BY at DESC, id DESC LIMIT ?", (bench, supply_id, limit))
+        return [ReadingRow(*r) for r in reversed(rows)]
+
+    def readings_after(self, bench: str, supply_id: str, reading_id: int) -> list[ReadingRow]:
+        """Readings of the supply written after reading ``reading_id`` (by id), struck ones included."""
+        return [ReadingRow(*r) for r in self._read(
+            f"SELECT {self._READING_COLUMNS} FROM readings WHERE bench = ? AND supply_id = ? AND id > ? ORDER BY id",
+            (bench, supply_id, reading_id))]
+
+    def neighbour_reading(self, bench: str, supply_id: str, at: str, reading_id: int, after: bool) -> ReadingRow | None:
+        """The pressure reading (not struck out) just before or just after (``at``, ``reading_id``)."""
+        op, order = (">", "ASC") if after else ("<", "DESC")
+        rows = self._read(f"SELECT {self._READING_COLUMNS} FROM readings WHERE bench = ? AND supply_id = ?"
+                          f" AND struck_at IS NULL AND pressure_abs_pa IS NOT NULL AND (at, id) {op} (?, ?)"
+                          f" ORDER BY at {order}, id {order} LIMIT 1", (bench, supply_id, at, reading_id))
+        return ReadingRow(*rows[0]) if rows else None
+
+    def struck_readings(self, bench: str, supply_id: str | None = None, since: str | None = None) -> list[ReadingRow]:
+        """The readings struck out (of one supply, struck at or after ``since`` when given)."""
+        sql = f"SELECT {self._READING_COLUMNS} FROM readings WHERE bench = ? AND struck_at IS NOT NULL"
+        args: tuple[Any, ...] = (bench,)
+        if supply_id is not None:
+            sql += " AND supply_id = ?"
+            args += (supply_id,)
+        if since is not None:
+            sql += " AND struck_at >= ?"
+            args += (since,)
+        return [ReadingRow(*r) for r in self._read(sql + " ORDER BY id", args)]
+
+    def session_spans(self, bench: str) -> list[tuple[str, str | None]]:
+        """(start, stop) of every session of the bench, oldest first (stop None: left running)."""
+        return [(a, b) for a, b in self._read(
+            "SELECT started_at, stopped_at FROM sessions WHERE bench = ? ORDER BY started_at", (bench,))]
+
+    def mark(self, bench: str, supply_id: str, what: str) -> tuple[int, str] | None:
+        """How far a derived record was computed: (last reading id, when)."""
+        if not self._read("SELECT 1 FROM sqlite_master WHERE name = 'marks'"):
+            return None
+        rows = self._read("SELECT reading_id, at FROM marks WHERE bench = ? AND supply_id = ? AND what = ?",
+                          (bench, supply_id, what))
+        return (int(rows[0][0]), str(rows[0][1])) if rows else None
+
+    def set_mark(self, bench: str, supply_id: str, what: str, reading_id: int, at: str) -> None:
+        self._write(lambda db: db.execute(
+            "INSERT INTO marks(bench, supply_id, what, reading_id, at) VALUES (?, ?, ?, ?, ?)"
+            " ON CONFLICT (bench, supply_id, what) DO UPDATE SET reading_id = excluded.reading_id, at = excluded.at",
+            (bench, supply_id, what, reading_id, at)))
 
     def supply_readings(self, bench: str, supply_id: str) -> list[ReadingRow]:
         """Every reading of a supply of a bench, in and out of sessions, struck ones included."""

@@ -120,6 +120,10 @@ class Supply(_Model):
     """A transducer that reads this supply's pressure live."""
     temperature_source: TemperatureSource | None = None
     """A sensor that reads this cylinder's temperature live (else the room's, else ambient)."""
+    location: Literal["room", "outside"] = "room"
+    """Where the cylinder stands: ``"room"`` (default) or ``"outside"`` (a ventilated cage or store
+    outside the room): a cylinder outside takes no part in a sudden-release case; its draws still
+    vent where they vent."""
     leak_target: FlowQ | None = None
     """The leak rate that matters on this supply, e.g. "5 sccm": the leak watch and the hold tests
     of idle drops resolve against it (default: 1 % of the contents per day, at least 1 sccm)."""

@@ -6,18 +6,22 @@ The command line (``plan``, ``checklist``), the app's overview and the checklist
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 from benchwarden.core import gas as g
 from benchwarden.core import room as rm
+from benchwarden.core.hold import kg_s_from_sccm
 from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.storage.journal import Journal
 from benchwarden.storage.profile import Profile
 from benchwarden.units import Flow
+from benchwarden.units.constants import SECONDS_PER_DAY
 from benchwarden.workflows.build import build_plan, full_mass, largest_supply
 from benchwarden.workflows.cylinder import (
+    Consumption,
     OrderBy,
     consumption,
     journal_profile,
@@ -25,7 +29,7 @@ from benchwarden.workflows.cylinder import (
     record_idle_drops,
 )
 from benchwarden.workflows.findings import Finding, life_findings, live_findings, ranked
-from benchwarden.workflows.holds import LastHold, hold_finding, last_hold_test
+from benchwarden.workflows.holds import LastHold, hold_finding, last_hold_test, standing_leaks
 from benchwarden.workflows.model import Observed, Plan
 from benchwarden.workflows.purges import PurgeState, purge_states
 
@@ -67,7 +71,8 @@ def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | Non
     and judge it with the latest hold test."""
     now = now or dt.datetime.now().astimezone().replace(second=0, microsecond=0)
     prof = journal_state(prof, journal, now)
-    plan = build_plan(prof, now=now, extra_leak_m3_s=extra_leak_m3_s, start_at=start_at)
+    plan = build_plan(prof, now=now, extra_leak_m3_s=extra_leak_m3_s, start_at=start_at,
+                      leaks_sccm=standing_leaks(journal, prof.bench.name))
     last = last_hold_test(journal, prof.bench.name, now)
     orders = orders_of(prof, plan, journal, now)
     extra = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
@@ -85,7 +90,12 @@ def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.dateti
         except BenchwardenError:
             reserve_kg = 0.0
         full_usable = max(0.0, full_mass(prof, s) - reserve_kg)
-        out[sp.id] = order_by(prof, sp.usable_mass_kg, consumption(journal, prof, sp.id), sp.id, now, full_usable)
+        cons = consumption(journal, prof, sp.id)
+        if sp.leak_sccm > 0:  # a found leak is consumption too (the readings may predate it)
+            leak_week = kg_s_from_sccm(s.gas, sp.leak_sccm) * 7 * SECONDS_PER_DAY
+            cons = (Consumption(sp.id, leak_week, 0.0, 0, 0.0) if cons is None
+                    else dataclasses.replace(cons, kg_per_week=max(cons.kg_per_week, leak_week)))
+        out[sp.id] = order_by(prof, sp.usable_mass_kg, cons, sp.id, now, full_usable)
     return out
 
 

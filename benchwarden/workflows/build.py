@@ -7,16 +7,16 @@ from __future__ import annotations
 import dataclasses
 import datetime as dt
 import math
+from collections.abc import Mapping
 from typing import Any
 
 from benchwarden.core import flow as fl
 from benchwarden.core import gap as gp
 from benchwarden.core import gas as g
 from benchwarden.core import regulator as rg
-from benchwarden.core import room as rm
 from benchwarden.core import supply as sp
+from benchwarden.core.hold import kg_s_from_sccm
 from benchwarden.core.tables import DensityTable
-from benchwarden.errors import BenchwardenError
 from benchwarden.storage.profile import Draw, Profile, Supply
 from benchwarden.units import ATM_PA, REFERENCES, T0_K
 from benchwarden.units.constants import T_FULL_K
@@ -28,11 +28,11 @@ from benchwarden.workflows.model import (
     Observed,
     Plan,
     RegulatorPlan,
-    RoomPlan,
     SupplyPlan,
 )
+from benchwarden.workflows.roomplan import full_mass, largest_supply, room_plan
 
-__all__ = ["build_plan", "observed_draw", "SupplyModel"]
+__all__ = ["build_plan", "observed_draw", "SupplyModel", "full_mass", "largest_supply"]
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -114,11 +114,14 @@ def _draw_flow(prof: Profile, d: Draw, gas: g.Gas, outlet_abs: float) -> tuple[f
 
 
 def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJECTION_POINTS,
-               extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None) -> Plan:
+               extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None,
+               leaks_sccm: Mapping[str, float] | None = None) -> Plan:
     """Compute the session plan of a bench profile (see module docstring for the methods).
 
     The clock times count from ``start_at`` when given (a running session), else from the
-    profile's planned start time today, else from ``now``."""
+    profile's planned start time today, else from ``now``. ``leaks_sccm``: a leak found on a
+    supply's current cylinder, counted as one more draw on it (time to reserve, reserve clock,
+    projection and cost include it)."""
     import numpy as np
 
     amb = prof.ambient_pa
@@ -207,7 +210,8 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             mass_res = model.rho_vsat * s.water_volume
         usable = max(0.0, mass_now - mass_res)
         draws_here = [dp for dp in draw_plans if dp.supply_id == s.id]
-        mdot = sum(dp.mass_flow_kg_s for dp in draws_here)
+        leak_sccm = max(0.0, (leaks_sccm or {}).get(s.id, 0.0))
+        mdot = sum(dp.mass_flow_kg_s for dp in draws_here) + kg_s_from_sccm(s.gas, leak_sccm)
         hours = usable / mdot / 3600.0 if mdot > 0 else math.inf
         band = (hours, hours)
         if s.gauge is not None and not model.liquefied and mdot > 0:
@@ -246,11 +250,11 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         supply_plans.append(SupplyPlan(
             s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
             band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
-            tuple(float(x) for x in p_proj), outlets, gap_kv))
-    room_plan = _room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s)
+            tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm))
+    room_plan_ = room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s)
     fits = all(sp_.fits_session or sp_.draw_kg_s == 0 for sp_ in supply_plans)
     plan = Plan(prof.bench.name, amb, T_amb, session_h, start.isoformat(timespec="minutes"), tuple(supply_plans),
-                tuple(reg_plans.values()), tuple(draw_plans), room_plan, (), fits)
+                tuple(reg_plans.values()), tuple(draw_plans), room_plan_, (), fits)
     return dataclasses.replace(plan, findings=tuple(fd.plan_findings(prof, plan)))
 
 
@@ -268,53 +272,6 @@ def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float
     return g.pressure_from_density(s.gas, (s.gross - s.tare) / s.water_volume, hot)
 
 
-def _room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
-               extra_leak_m3_s: float) -> RoomPlan | None:
-    if prof.room is None:
-        return None
-    room = prof.room
-    T, amb = prof.ambient.temperature, prof.ambient_pa
-    Q = room.ventilation.m3_s(room.volume) if room.ventilation else 0.0
-    vented = extra_leak_m3_s
-    by_id = {s.id: s for s in prof.supplies}
-    for dp in draws:
-        if dp.vents_to_room:
-            vented += dp.mass_flow_kg_s / g.density(by_id[dp.supply_id].gas, T, amb)
-    notes: list[str] = []
-    leak = rm.leak_o2(room.volume, vented, Q, room.ventilation_kind, room.oxygen_percent) if vented > 0 else None
-    # largest supply released at once
-    biggest = max(supplies, key=lambda x: x.free_volume_m3)
-    gas = by_id[biggest.id].gas
-    vg = biggest.mass_kg / g.density(gas, T, amb)
-    rel = rm.release(room.volume, vg, "displacement", room.oxygen_percent)
-    rel_mixed = rm.release(room.volume, vg, "mixed", room.oxygen_percent)
-    notes.append(rm.stratification_note(gas))
-    # the safety case: the largest supply full, released at once; and every supply kept in the room
-    full = {s.id: full_mass(prof, s) for s in prof.supplies}
-    largest = largest_supply(prof)
-    v_full = {sid: m / g.density(by_id[sid].gas, T, amb) for sid, m in full.items() if m > 0}
-    worst = rm.release(room.volume, v_full.get(largest.id, vg), "displacement", room.oxygen_percent)
-    every = rm.release(room.volume, sum(v_full.values()) or vg, "displacement", room.oxygen_percent)
-    return RoomPlan(room.volume, Q, room.ventilation_kind, vented, leak, biggest.id, rel, rel_mixed, tuple(notes),
-                    worst, largest.id, every)
-
-
-def full_mass(prof: Profile, s: Supply) -> float:
-    """Mass [kg] of a supply when full: its fill weight (gross − tare) for a gas weighed in, else
-    the real-gas mass at its service pressure and 15 °C (the rating temperature)."""
-    if s.gross is not None and s.tare is not None:
-        return s.gross - s.tare
-    try:
-        return g.density(s.gas, T_FULL_K, s.service_pressure.abs_at(prof.ambient_pa)) * s.water_volume
-    except BenchwardenError:
-        return 0.0
-
-
-def largest_supply(prof: Profile) -> Supply:
-    """The supply that holds the most gas when full: the one a room assessment assumes escapes."""
-    return max(prof.supplies, key=lambda s: full_mass(prof, s))
-
-
 # ----------------------------------------------------------------------------- observed draw
 
 
@@ -325,8 +282,9 @@ def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s
 
     Mass per reading m = ρ(T, p)·V (CoolProp HEOS); the slope's uncertainty combines the fit's
     standard error (numpy ``polyfit`` covariance, with two readings none) and the gauge's
-    reading uncertainty ``u_p`` on the first and last reading (GUM). ``faster_than_planned``
-    when the observed draw exceeds the plan by more than twice that uncertainty.
+    reading uncertainty ``u_p`` on the first and last reading (GUM). ``resolved`` when the draw
+    exceeds twice that uncertainty (only then does it project a reserve time);
+    ``faster_than_planned`` when it is resolved and exceeds the plan by more than twice it.
     Returns None with fewer than two readings or no elapsed time.
     """
     import numpy as np
@@ -355,12 +313,16 @@ def observed_draw(gas: g.Gas, volume_m3: float, reserve_abs: float, planned_kg_s
     draw = -slope
     m_now = float(m[-1])
     m_res = g.density(gas, T_last, reserve_abs) * volume_m3
-    hours = (m_now - m_res) / draw / 3600.0 if draw > 0 else math.inf
-    at = _clock_after(readings[-1][0], hours)
+    # a draw not resolved beyond its expanded uncertainty (U = 2u, GUM) projects nothing: the
+    # plan's projection stands, and no alarm or finding rests on it
+    resolved = draw > 2.0 * u
+    hours = (m_now - m_res) / draw / 3600.0 if draw > 0 and resolved else math.inf
+    at = _clock_after(readings[-1][0], hours) if resolved else None
     # the fitted line as pressures at the first and last reading (for plots)
     fitted = [float(m[0] + slope * 0.0), float(m[0] + slope * span)] if len(t) < 3 else \
         [float(np.polyval(coef, t[0])), float(np.polyval(coef, t[-1]))]
     fit_p = tuple(g.pressure_from_density(gas, max(x, 1e-9) / volume_m3, T_last) for x in fitted)
     fit_at = (readings[0][0].isoformat(timespec="seconds"), readings[-1][0].isoformat(timespec="seconds"))
-    return Observed(supply_id, len(readings), draw, u, planned_kg_s, draw - planned_kg_s > 2.0 * u, m_now,
-                    max(hours, 0.0), at, "least-squares fit of real-gas mass vs time (CoolProp HEOS)", fit_at, fit_p)
+    return Observed(supply_id, len(readings), draw, u, planned_kg_s, resolved and draw - planned_kg_s > 2.0 * u,
+                    m_now, max(hours, 0.0), at, "least-squares fit of real-gas mass vs time (CoolProp HEOS)", fit_at,
+                    fit_p, resolved)

@@ -17,6 +17,7 @@ since: readings (in a session or idle), struck readings, cylinder changes and ho
 
 from __future__ import annotations
 
+import bisect
 import datetime as dt
 import json
 import math
@@ -25,7 +26,7 @@ from dataclasses import dataclass, field
 
 from benchwarden.core import gas as g
 from benchwarden.core import hold as hd
-from benchwarden.errors import InputError, JournalError
+from benchwarden.errors import BenchwardenError, InputError, JournalError
 from benchwarden.storage.journal import ChangeRow, Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply, with_reading, with_weight
 from benchwarden.storage.samples import SampleStore
@@ -40,7 +41,7 @@ from benchwarden.workflows.holds import (
     supply_target_sccm,
 )
 
-__all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "journal_profile", "check_reading",
+__all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "idle_drop_counts", "unresolved_idle_drop", "last_reading", "journal_profile", "check_reading",
            "record_reading", "record_change", "IdleDrop", "idle_drops", "record_idle_drops", "parse_at"]
 
 #: Temperatures a cylinder reading may carry [K] (−73 °C to 77 °C): beyond, the unit slipped.
@@ -121,6 +122,16 @@ def readings_since_change(journal: Journal | None, bench: str, supply_id: str,
     return [r for r in rows if include_struck or not r.struck]
 
 
+def last_reading(journal: Journal | None, bench: str, supply_id: str) -> ReadingRow | None:
+    """The supply's latest reading on its current cylinder (pressure or weight, not struck)."""
+    if journal is None:
+        return None
+    change = current_change(journal, bench, supply_id)
+    since = change.at if change is not None else None
+    rows = [r for r in (journal.latest_reading(bench, supply_id, since, k) for k in ("pressure", "weight")) if r]
+    return max(rows, key=lambda r: (r.at, r.id), default=None)
+
+
 def _apply(prof: Profile, s: Supply, pressure_abs: float | None, weight: float | None, T: float | None,
            text: str) -> Profile:
     T = T if T is not None else (s.reading_temperature or prof.ambient.temperature)
@@ -172,13 +183,13 @@ def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
     if journal is None:
         return prof
     for s in prof.supplies:
-        rows = readings_since_change(journal, prof.bench.name, s.id)
         change = current_change(journal, prof.bench.name, s.id)
         if change is not None:
             prof = _apply(prof, s, change.pressure_abs_pa, change.weight_kg, change.temperature_k,
                           change.pressure_text or "")
-        last_p = next((r for r in reversed(rows) if r.pressure_abs_pa is not None), None)
-        last_w = next((r for r in reversed(rows) if r.weight_kg is not None), None)
+        since = change.at if change is not None else None
+        last_p = journal.latest_reading(prof.bench.name, s.id, since, "pressure")
+        last_w = journal.latest_reading(prof.bench.name, s.id, since, "weight")
         if last_w is not None:
             prof = _apply(prof, s, None, last_w.weight_kg, last_w.temperature_k, "")
         if last_p is not None:
@@ -198,9 +209,11 @@ def _newer(live: LatestSample, last_p: ReadingRow | None, change: ChangeRow | No
 
 def live_is_state(journal: Journal | None, prof: Profile, supply_id: str, live: LatestSample) -> bool:
     """Whether the supply's state is its live sample (see :func:`journal_profile`)."""
-    rows = readings_since_change(journal, prof.bench.name, supply_id)
-    last_p = next((r for r in reversed(rows) if r.pressure_abs_pa is not None), None)
-    return _newer(live, last_p, current_change(journal, prof.bench.name, supply_id))
+    if journal is None:
+        return True
+    change = current_change(journal, prof.bench.name, supply_id)
+    last_p = journal.latest_reading(prof.bench.name, supply_id, change.at if change is not None else None)
+    return _newer(live, last_p, change)
 
 
 # ----------------------------------------------------------------------------- readings
@@ -230,6 +243,22 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
                   ) -> list[Question]:
     """Check an entry against the supply's limits (raises :class:`InputError`) and return the
     questions an implausible one raises (empty: record it)."""
+    check_limits(prof, entry)
+    s = prof.supply(entry.supply_id)
+    if entry.pressure_abs_pa is None or journal is None:
+        return []
+    change = current_change(journal, prof.bench.name, s.id)
+    prev = journal.latest_reading(prof.bench.name, s.id, change.at if change is not None else None,
+                                  before=entry.at.isoformat(timespec="seconds"))
+    if prev is None or prev.pressure_abs_pa is None:
+        return []
+    return questions_after(prof, Entry(s.id, _dt(prev.at), prev.temperature_k, prev.pressure_abs_pa), entry,
+                           planned_kg_s, prev.at)
+
+
+def check_limits(prof: Profile, entry: Entry) -> None:
+    """An entry against its supply's limits: temperature, test pressure, gauge range, tare
+    (raises :class:`InputError`)."""
     s = prof.supply(entry.supply_id)
     amb = prof.ambient_pa
     if not READING_T_RANGE[0] < entry.temperature_k < READING_T_RANGE[1]:
@@ -247,11 +276,16 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
             raise InputError(f"supply {s.id} has no tare weight in the profile: a weight reading needs it")
         if entry.weight_kg < s.tare:
             raise InputError(f"weight {entry.weight_kg:g} kg is below the tare weight {s.tare:g} kg of {s.id}")
-    rows = [r for r in readings_since_change(journal, prof.bench.name, s.id) if r.pressure_abs_pa is not None]
-    if entry.pressure_abs_pa is None or not rows:
-        return []
-    prev = max((r for r in rows if _dt(r.at) <= entry.at), key=lambda r: r.at, default=None)
-    if prev is None or prev.pressure_abs_pa is None:
+
+
+def questions_after(prof: Profile, prev: Entry, entry: Entry, planned_kg_s: float | None = None,
+                    prev_at: str | None = None) -> list[Question]:
+    """What is implausible about a pressure entry after the previous pressure on the same
+    cylinder: a rise beyond the gauge and the temperature, a unit that looks swapped, a drop far
+    faster than planned (empty: record it)."""
+    s = prof.supply(entry.supply_id)
+    amb = prof.ambient_pa
+    if entry.pressure_abs_pa is None or prev.pressure_abs_pa is None:
         return []
     out: list[Question] = []
     p0, p1 = prev.pressure_abs_pa, entry.pressure_abs_pa
@@ -266,12 +300,12 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
             warm = 0.0
     if p1 > p0 + tol + warm:
         out.append(Question("rise-without-change", {"previous_abs_pa": p0, "pressure_abs_pa": p1,
-                                                    "previous_at": prev.at}))
+                                                    "previous_at": prev_at or prev.at.isoformat()}))
     ratio = (p1 - amb) / (p0 - amb) if p0 - amb > 0 else math.nan
     if math.isfinite(ratio) and (abs(ratio - PSI_PA / BAR_PA) < 0.1 * PSI_PA / BAR_PA
                                  or abs(ratio - BAR_PA / PSI_PA) < 0.1 * BAR_PA / PSI_PA):
         out.append(Question("unit-swapped", {"previous_abs_pa": p0, "pressure_abs_pa": p1, "ratio": ratio}))
-    hours = (entry.at - _dt(prev.at)).total_seconds() / 3600.0
+    hours = (entry.at - prev.at).total_seconds() / 3600.0
     if planned_kg_s and planned_kg_s > 0 and hours > 0 and p1 < p0 - tol:
         T = entry.temperature_k
         lost = (g.density(s.gas, T, p0) - g.density(s.gas, T, p1)) * s.water_volume
@@ -324,13 +358,23 @@ class IdleDrop:
         return f"{self.first.id}-{self.last.id}"
 
 
-def _in_session(journal: Journal, bench: str, a: dt.datetime, b: dt.datetime, now: dt.datetime) -> bool:
-    for s in journal.bench_sessions(bench):
-        start = _dt(s.started_at)
-        stop = _dt(s.stopped_at) if s.stopped_at else now
-        if start < b and stop > a:
-            return True
-    return False
+class _Sessions:
+    """The bench's session spans, read once per call: is a time span inside a session?"""
+
+    def __init__(self, journal: Journal, bench: str, now: dt.datetime) -> None:
+        self.spans = [(_dt(a), _dt(b) if b else now) for a, b in journal.session_spans(bench)]
+
+    def overlap(self, a: dt.datetime, b: dt.datetime) -> bool:
+        return any(start < b and stop > a for start, stop in self.spans)
+
+
+def _is_idle(sessions: _Sessions, a: ReadingRow, b: ReadingRow) -> bool:
+    ta, tb = _dt(a.at), _dt(b.at)
+    if tb <= ta:
+        return False
+    # strictly inside the interval: a session that ended at the first reading or began at the last is fine
+    inner_a, inner_b = ta + dt.timedelta(seconds=1), tb - dt.timedelta(seconds=1)
+    return not (inner_b > inner_a and sessions.overlap(inner_a, inner_b))
 
 
 def idle_drops(journal: Journal | None, prof: Profile, supply_id: str, now: dt.datetime) -> list[IdleDrop]:
@@ -339,17 +383,41 @@ def idle_drops(journal: Journal | None, prof: Profile, supply_id: str, now: dt.d
     if journal is None:
         return []
     rows = [r for r in readings_since_change(journal, prof.bench.name, supply_id) if r.pressure_abs_pa is not None]
-    out: list[IdleDrop] = []
-    for a, b in zip(rows, rows[1:], strict=False):
-        ta, tb = _dt(a.at), _dt(b.at)
-        if tb <= ta:
-            continue
-        # strictly inside the interval: a session that ended at the first reading or began at the last is fine
-        inner_a, inner_b = ta + dt.timedelta(seconds=1), tb - dt.timedelta(seconds=1)
-        if inner_b > inner_a and _in_session(journal, prof.bench.name, inner_a, inner_b, now):
-            continue
-        out.append(IdleDrop(supply_id, a, b))
-    return out
+    sessions = _Sessions(journal, prof.bench.name, now)
+    return [IdleDrop(supply_id, a, b) for a, b in zip(rows, rows[1:], strict=False) if _is_idle(sessions, a, b)]
+
+
+def _new_drops(journal: Journal, prof: Profile, supply_id: str, now: dt.datetime) -> tuple[list[IdleDrop], int]:
+    """The idle drops that may be new since the last scan (see :func:`record_idle_drops`): the
+    pairs each reading written since then forms with its neighbours on the current cylinder,
+    and the pair that closes around each reading struck out since then. Returns them and the
+    newest reading id seen. The first scan of a supply reads its current cylinder once."""
+    bench = prof.bench.name
+    mark = journal.mark(bench, supply_id, "idle-drops")
+    if mark is None:
+        rows = readings_since_change(journal, bench, supply_id, include_struck=True)
+        return idle_drops(journal, prof, supply_id, now), max((r.id for r in rows), default=0)
+    last_id, scanned_at = mark
+    change = current_change(journal, bench, supply_id)
+    since = change.at if change is not None else ""
+    fresh = journal.readings_after(bench, supply_id, last_id)
+    touched = [r for r in fresh if not r.struck and r.pressure_abs_pa is not None and r.at >= since]
+    touched += [r for r in journal.struck_readings(bench, supply_id, scanned_at) if r.at >= since]
+    sessions = _Sessions(journal, bench, now)
+    pairs: dict[str, IdleDrop] = {}
+    for r in touched:
+        before = journal.neighbour_reading(bench, supply_id, r.at, r.id, after=False)
+        after = journal.neighbour_reading(bench, supply_id, r.at, r.id, after=True)
+        ends = [x for x in (before, after) if x is not None and x.at >= since]
+        if r.struck:  # the pair closes around the struck reading
+            candidates = [(ends[0], ends[1])] if len(ends) == 2 else []
+        else:
+            candidates = [(x, r) if x is before else (r, x) for x in ends]
+        for a, b in candidates:
+            if _is_idle(sessions, a, b):
+                pairs[f"{a.id}-{b.id}"] = IdleDrop(supply_id, a, b)
+    newest = max([last_id] + [r.id for r in fresh])
+    return list(pairs.values()), newest
 
 
 def idle_drop_result(prof: Profile, drop: IdleDrop) -> hd.HoldResult:
@@ -365,9 +433,43 @@ def idle_drop_result(prof: Profile, drop: IdleDrop) -> hd.HoldResult:
                                 reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
 
 
+def idle_drop_counts(r: hd.HoldResult) -> bool:
+    """An idle drop becomes a hold test only when its span could resolve the target leak with
+    this gauge (expanded uncertainty below the target), or when it shows something regardless:
+    a leak beyond the uncertainty, or a pressure that rose beyond it (always recorded). Two
+    readings a minute apart tell nothing and are not stored as a test."""
+    return r.verdict in ("leak", "pressure-rose") or r.smallest_resolvable_sccm < r.target_sccm
+
+
+def unresolved_idle_drop(journal: Journal | None, prof: Profile, supply_id: str,
+                         now: dt.datetime) -> hd.HoldResult | None:
+    """The supply's latest idle drop when it was too short to resolve the target leak (so no
+    hold test was stored from it): its result says how long a hold would need
+    (``hold_needed_h``). None when the latest drop counted or there is none."""
+    s = prof.supply(supply_id)
+    if journal is None or (s.gas.sold_liquefied and s.gross is not None):
+        return None
+    bench = prof.bench.name
+    change = current_change(journal, bench, supply_id)
+    last = journal.latest_reading(bench, supply_id, change.at if change else None)
+    if last is None:
+        return None
+    first = journal.neighbour_reading(bench, supply_id, last.at, last.id, after=False)
+    if first is None or (change is not None and first.at < change.at):
+        return None
+    if not _is_idle(_Sessions(journal, bench, now), first, last):
+        return None
+    try:
+        r = idle_drop_result(prof, IdleDrop(supply_id, first, last))
+    except BenchwardenError:
+        return None
+    return None if idle_drop_counts(r) else r
+
+
 def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) -> list[HoldRecord]:
-    """Turn every idle drop of every supply into a stored hold test (once each); returns the new
-    records."""
+    """Turn every new idle drop of every supply into a stored hold test (once each, and only
+    when it counts: :func:`idle_drop_counts`); returns the new records. Incremental: only the
+    readings written or struck out since the last call are looked at (a mark per supply)."""
     if journal is None:
         return []
     done = set()
@@ -378,16 +480,23 @@ def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) 
             except ValueError:
                 continue
     new: list[HoldRecord] = []
+    stamp = now.isoformat(timespec="seconds")
     for s in prof.supplies:
         if s.gas.sold_liquefied and s.gross is not None:
             continue  # a liquefied gas's pressure is its vapour pressure: no hold test from it
-        for drop in idle_drops(journal, prof, s.id, now):
+        drops, newest = _new_drops(journal, prof, s.id, now)
+        for drop in drops:
             if drop.key in done:
                 continue
             r = idle_drop_result(prof, drop)
+            if not idle_drop_counts(r):
+                continue
             rec = record_of(r, _dt(drop.last.at), prof.bench.name, s.id, "idle-drop")
             store(journal, rec, {"idle_drop": drop.key})
             new.append(rec)
+        mark = journal.mark(prof.bench.name, s.id, "idle-drops")
+        if mark is None or mark[0] != newest or drops:
+            journal.set_mark(prof.bench.name, s.id, "idle-drops", newest, stamp)
     return new
 
 
@@ -416,22 +525,30 @@ def _mass_of(prof: Profile, s: Supply, r: ReadingRow) -> float | None:
         return None
 
 
+#: Consumption is taken from the supply's newest readings, at most this many: the recent use is
+#: what the next order depends on, and the cost of a status stays the same as the journal grows.
+CONSUMPTION_READINGS = 300
+
+
 def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consumption | None:
-    """Consumption per week from every pair of consecutive readings on the same cylinder (no
-    change between them, none struck): mass used over the time between, weighted by time; the
-    spread is the time-weighted standard deviation of the interval rates. None without at
-    least one interval."""
+    """Consumption per week from the pairs of consecutive readings on the same cylinder (no
+    change between them, none struck) among the newest :data:`CONSUMPTION_READINGS`: mass used
+    over the time between, weighted by time; the spread is the time-weighted standard deviation
+    of the interval rates. None without at least one interval."""
     if journal is None:
         return None
     s = prof.supply(supply_id)
-    rows = [r for r in journal.supply_readings(prof.bench.name, supply_id) if not r.struck]
-    changes = [_dt(c.at) for c in journal.changes(prof.bench.name, supply_id)]
+    rows = journal.recent_readings(prof.bench.name, supply_id, CONSUMPTION_READINGS)
+    changes = sorted(_dt(c.at) for c in journal.changes(prof.bench.name, supply_id))
+    masses = [_mass_of(prof, s, r) for r in rows]
+    times = [_dt(r.at) for r in rows]
     rates: list[tuple[float, float]] = []  # (kg/s, seconds)
-    for a, b in zip(rows, rows[1:], strict=False):
-        ta, tb = _dt(a.at), _dt(b.at)
-        if tb <= ta or any(ta < c <= tb for c in changes):
+    for i in range(1, len(rows)):
+        ta, tb = times[i - 1], times[i]
+        k = bisect.bisect_right(changes, ta)  # the first change after ta: does it fall before tb?
+        if tb <= ta or (k < len(changes) and changes[k] <= tb):
             continue
-        ma, mb = _mass_of(prof, s, a), _mass_of(prof, s, b)
+        ma, mb = masses[i - 1], masses[i]
         if ma is None or mb is None or mb > ma:
             continue
         dt_s = (tb - ta).total_seconds()
@@ -452,6 +569,8 @@ class OrderBy:
     days_of_gas: float
     lead_time_days: float
     spares: int
+    #: the consumption it was computed from (None: none recorded)
+    consumption: Consumption | None = None
 
 
 def order_by(prof: Profile, plan_usable_kg: float, cons: Consumption | None, supply_id: str,
@@ -462,7 +581,7 @@ def order_by(prof: Profile, plan_usable_kg: float, cons: Consumption | None, sup
     s = prof.supply(supply_id)
     lead_days = (s.lead_time or 0.0) / 86400.0
     if cons is None or cons.kg_per_week <= 0:
-        return OrderBy(supply_id, None, math.inf, lead_days, s.spares)
+        return OrderBy(supply_id, None, math.inf, lead_days, s.spares, cons)
     days = (plan_usable_kg + s.spares * full_usable_kg) / (cons.kg_per_week / 7.0)
     days = min(days, 3650.0)
-    return OrderBy(supply_id, now + dt.timedelta(days=days - lead_days), days, lead_days, s.spares)
+    return OrderBy(supply_id, now + dt.timedelta(days=days - lead_days), days, lead_days, s.spares, cons)

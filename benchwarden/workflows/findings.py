@@ -19,14 +19,14 @@ from dataclasses import dataclass, field
 from typing import Literal
 
 from benchwarden.core import gas as g
-from benchwarden.core import room as rm
 from benchwarden.storage.profile import Profile
 from benchwarden.units import T0_K
-from benchwarden.workflows.model import Observed, Plan, RoomPlan
+from benchwarden.workflows.findings_room import room_findings
+from benchwarden.workflows.model import Observed, Plan
 
 __all__ = [
     "SEVERITIES", "SEVERITY_RANK", "Finding", "Severity", "HOLD_TEST_MAX_AGE_DAYS", "plan_findings",
-    "live_findings", "hold_test_findings", "ranked", "counts",
+    "live_findings", "hold_test_findings", "ranked", "counts", "at_or_above",
 ]
 
 Severity = Literal["stop", "warning", "attention", "info"]
@@ -53,6 +53,13 @@ class Finding:
     values: Mapping[str, Value] = field(default_factory=dict)
 
 
+def at_or_above(findings: Iterable[Finding], severity: str) -> list[Finding]:
+    """The findings at or above a severity (``stop`` ≥ ``warning`` ≥ ``attention`` ≥ ``info``):
+    what ``--fail-on`` and the session start's STOP check look at."""
+    limit = SEVERITY_RANK[severity]
+    return [f for f in findings if SEVERITY_RANK[f.severity] <= limit]
+
+
 def ranked(findings: Iterable[Finding]) -> list[Finding]:
     """Findings sorted most severe first (stable within a severity)."""
     return sorted(findings, key=lambda f: SEVERITY_RANK[f.severity])
@@ -75,7 +82,7 @@ def plan_findings(prof: Profile, plan: Plan) -> list[Finding]:
     out += _supply_findings(prof, plan)
     out += _regulator_findings(prof, plan)
     out += _gap_findings(plan)
-    out += _room_findings(prof, plan.room)
+    out += room_findings(prof, plan.room, plan.draws)
     return ranked(out)
 
 
@@ -175,34 +182,6 @@ def _gap_findings(plan: Plan) -> list[Finding]:
     return out
 
 
-def _room_findings(prof: Profile, room: RoomPlan | None) -> list[Finding]:
-    if prof.room is None or room is None:
-        return [Finding("no-room", "attention", "room", {})]
-    out: list[Finding] = []
-    session_min = prof.session.duration / 60.0
-    lk = room.leak
-    if lk is not None and lk.o2_percent_steady < rm.OSHA_DEFICIENT:
-        sev: Severity = "stop" if lk.minutes_to_19_5 < session_min else "warning"
-        out.append(Finding("room-vented", sev, "room", {
-            "o2_percent": lk.o2_percent_steady, "minutes_to_19_5": lk.minutes_to_19_5,
-            "vented_m3_s": room.vented_m3_s}))
-    # judged on the safety case: the largest supply full, released at once
-    rel = room.worst_case or room.release
-    sid = room.worst_case_supply_id or room.release_supply_id
-    c = rel.o2_percent_after_release
-    if c < rm.OSHA_DEFICIENT:
-        sev2: Severity = "stop" if c < rm.EIGA_HAZARD and not prof.room.oxygen_monitor else "warning"
-        out.append(Finding("room-release", sev2, "room", {
-            "supply": sid, "o2_percent": c, "effect": rel.effect, "monitor": prof.room.oxygen_monitor,
-            "model": rel.model, "o2_percent_today": room.release.o2_percent_after_release}))
-    gas = prof.supply(sid).gas
-    for hz in rm.gas_hazards(gas, c, rel.c0_percent):
-        # a toxic gas at harmful concentration is as serious as the oxygen figure would be
-        out.append(Finding(f"room-{hz.kind}", "stop", "room", {
-            "supply": sid, "percent": hz.percent, "limit_percent": hz.limit_percent, "detail": hz.text}))
-    return out
-
-
 # ----------------------------------------------------------------------------- the cylinder's life
 
 
@@ -211,15 +190,20 @@ DUE_SOON_DAYS = 30.0
 ORDER_SOON_DAYS = 7.0
 
 
+#: Past its date: a cylinder past its periodic test must not be used or refilled (a stop); a
+#: regulator past its service date is a warning.
+OVERDUE_SEVERITY: dict[str, Severity] = {"retest": "stop", "service": "warning"}
+
+
 def _due(what: str, subject: str, due: dt.date | None, today: dt.date) -> list[Finding]:
-    """``{what}-overdue`` (warning) past the date, ``{what}-due-soon`` (attention) within
-    :data:`DUE_SOON_DAYS`."""
+    """``{what}-overdue`` past the date (:data:`OVERDUE_SEVERITY`), ``{what}-due-soon``
+    (attention) within :data:`DUE_SOON_DAYS`."""
     if due is None:
         return []
     days = (due - today).days
     values: dict[str, Value] = {"due": due.isoformat(), "days": float(days)}
     if days < 0:
-        return [Finding(f"{what}-overdue", "warning", subject, values)]
+        return [Finding(f"{what}-overdue", OVERDUE_SEVERITY[what], subject, values)]
     if days <= DUE_SOON_DAYS:
         return [Finding(f"{what}-due-soon", "attention", subject, values)]
     return []
@@ -277,13 +261,17 @@ def hold_test_findings(verdict: str | None, rate_sccm: float = math.nan, u_sccm:
     """The finding of the bench's last hold test (verdict None: none recorded); an automatic
     one from an idle drop between sessions that finds a leak is an ``idle-drop-leak``."""
     if verdict is None:
-        return [Finding("no-hold-test", "attention", "leaks", {})]
+        return [Finding("no-hold-test", "warning", "leaks", {})]
     values: dict[str, Value] = {"verdict": verdict, "leak_rate_sccm": rate_sccm,
                                 "leak_rate_uncertainty_sccm": u_sccm, "age_days": age_days,
                                 "kind": kind, "supply": supply_id}
     if verdict == "leak":
         code = {"idle-drop": "idle-drop-leak", "leak-watch": "leak-watch-leak"}.get(kind or "", "hold-test-leak")
         return [Finding(code, "stop", "leaks", values)]
+    if verdict == "likely-leak":
+        return [Finding("hold-test-likely-leak", "warning", "leaks", values)]
+    if verdict == "pressure-rose":
+        return [Finding("hold-test-pressure-rose", "attention", "leaks", values)]
     if verdict == "inconclusive":
         return [Finding("hold-test-inconclusive", "attention", "leaks", values)]
     if age_days > HOLD_TEST_MAX_AGE_DAYS:

@@ -15,13 +15,14 @@ from dataclasses import asdict, dataclass
 
 from benchwarden.core.hold import GaugeSpec, HoldResult
 from benchwarden.errors import InputError, JournalError
-from benchwarden.storage.journal import Journal
+from benchwarden.storage.journal import HoldRow, Journal
 from benchwarden.storage.profile import Gauge, Supply
 from benchwarden.units.constants import BAR_PA
 from benchwarden.workflows.findings import Finding, hold_test_findings
 
 __all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "reading_step_pa", "HoldRecord",
-           "record_of", "store", "LastHold", "last_hold_test", "hold_finding"]
+           "record_of", "store", "LastHold", "last_hold_test", "hold_finding", "JudgedHold",
+           "judged_hold_tests", "standing_leaks", "LEAKING"]
 
 #: EN 837-1 accuracy classes run from 0.1 to 4; allow a little either side for other standards.
 CLASS_RANGE = (0.01, 5.0)
@@ -49,15 +50,19 @@ def profile_gauge_spec(gauge: Gauge | None) -> GaugeSpec | None:
                       gauge.resolution.typed_pa if gauge.resolution is not None else None)
 
 
-def reading_step_pa(gauge: Gauge | None) -> float | None:
-    """The finest pressure step a supply's gauge resolves [Pa]: its resolution where the profile
-    gives one, else its maximum permissible error (EN 837-1: class × span / 100); None without
-    a gauge. Displays round to it, so no figure claims more than the gauge reads."""
-    if gauge is None:
+def reading_step_pa(supply: Supply, live: bool = False) -> float | None:
+    """The finest pressure step a supply's reading means [Pa]: the larger of its gauge's
+    resolution and its maximum permissible error (EN 837-1: class × span / 100) — of the
+    transducer when the live sample is the state (``live``), else of the supply's gauge; None
+    without either. Displays round to it, so no figure claims more than the gauge reads."""
+    src = supply.source
+    if live and src is not None and src.range is not None and src.accuracy_class is not None:
+        span, cls, res = src.range.typed_pa, src.accuracy_class, src.resolution
+    elif supply.gauge is not None:
+        span, cls, res = supply.gauge.range.typed_pa, supply.gauge.accuracy_class, supply.gauge.resolution
+    else:
         return None
-    if gauge.resolution is not None:
-        return float(gauge.resolution.typed_pa)
-    return float(gauge.range.typed_pa) * gauge.accuracy_class / 100.0
+    return max(float(span) * cls / 100.0, float(res.typed_pa) if res is not None else 0.0)
 
 
 def source_gauge_spec(supply: Supply) -> GaugeSpec | None:
@@ -141,22 +146,92 @@ class LastHold:
     kind: str | None = None
 
 
+@dataclass(frozen=True)
+class JudgedHold:
+    """A stored hold test as it counts now: ``withdrawn`` when a reading it was derived from was
+    struck out (kept, never counted), ``earlier_cylinder`` when it was taken on a supply's
+    cylinder before its latest change (it says nothing about the connection made since)."""
+
+    row: HoldRow
+    withdrawn: bool = False
+    withdrawn_reason: str | None = None
+    earlier_cylinder: bool = False
+
+    @property
+    def counts(self) -> bool:
+        return not (self.withdrawn or self.earlier_cylinder)
+
+
+def _derived_from(row: HoldRow) -> tuple[int, ...]:
+    """Reading ids an idle-drop hold test was computed from (none for other kinds)."""
+    if row.kind != "idle-drop" or not row.details:
+        return ()
+    try:
+        key = json.loads(row.details).get("idle_drop") or ""
+        return tuple(int(x) for x in str(key).split("-") if x)
+    except (ValueError, AttributeError):
+        return ()
+
+
+def judged_hold_tests(journal: Journal, bench: str) -> list[JudgedHold]:
+    """Every hold test of the bench, oldest first, each judged: withdrawn (a struck reading) or
+    from an earlier cylinder. The one rule every output takes (status, checklist, history)."""
+    rows = journal.hold_tests(bench)
+    struck = {rd.id: rd.struck_reason or "struck out" for rd in journal.struck_readings(bench)}
+    last_change: dict[str, str] = {}
+    for sid in {r.supply_id for r in rows if r.supply_id}:
+        changes = journal.changes(bench, sid)
+        if changes:
+            last_change[sid] = changes[-1].at
+    out: list[JudgedHold] = []
+    for r in rows:
+        hit = [i for i in _derived_from(r) if i in struck]
+        reason = "; ".join(f"reading {i} struck out ({struck[i]})" for i in hit) or None
+        change = last_change.get(r.supply_id or "")
+        earlier = change is not None and dt.datetime.fromisoformat(r.at) < dt.datetime.fromisoformat(change)
+        out.append(JudgedHold(r, bool(hit), reason, earlier))
+    return out
+
+
 def last_hold_test(journal: Journal | None, bench: str, now: dt.datetime) -> LastHold | None:
-    """The latest hold test filed under ``bench`` (None without a journal, a test, or when the
-    journal cannot be read)."""
+    """The latest hold test filed under ``bench`` that still counts (not withdrawn, not from an
+    earlier cylinder); None without a journal, such a test, or when the journal cannot be read."""
     if journal is None:
         return None
     try:
-        row = journal.last_hold_test(bench)
+        counting = [h.row for h in judged_hold_tests(journal, bench) if h.counts]
     except JournalError:
         return None
-    if row is None:
+    if not counting:
         return None
+    row = counting[-1]
     at = dt.datetime.fromisoformat(row.at)
     if at.tzinfo is None and now.tzinfo is not None:
         at = at.replace(tzinfo=now.tzinfo)
     age = (now - at).total_seconds() / 86400.0
     return LastHold(at, row.supply_id, row.verdict, row.leak_rate_sccm, row.leak_rate_uncertainty_sccm, age, row.kind)
+
+
+#: Verdicts whose rate counts as a draw on the supply (issue: a found leak empties the cylinder).
+LEAKING = ("leak", "likely-leak")
+
+
+def standing_leaks(journal: Journal | None, bench: str) -> dict[str, float]:
+    """The leak rate [sccm] of each supply whose latest counting hold test on its current
+    cylinder (two readings, an idle drop, a log or the leak watch) found a ``leak`` or a
+    ``likely-leak``; the plan counts it as a draw."""
+    if journal is None:
+        return {}
+    try:
+        judged = judged_hold_tests(journal, bench)
+    except JournalError:
+        return {}
+    latest: dict[str, HoldRow] = {}
+    for h in judged:
+        if h.counts and h.row.supply_id:
+            latest[h.row.supply_id] = h.row
+    return {sid: r.leak_rate_sccm for sid, r in latest.items()
+            if r.verdict in LEAKING and math.isfinite(r.leak_rate_sccm) and r.leak_rate_sccm > 0}
 
 
 def hold_finding(last: LastHold | None) -> list[Finding]:

@@ -20,6 +20,7 @@ from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
 from benchwarden.core import gap as gp
+from benchwarden.core import hazards as hz
 from benchwarden.core import room as rm
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -102,6 +103,39 @@ class SupplyPlan:
     projection_pressure_abs_pa: tuple[float, ...]
     projection_outlets_abs_pa: dict[str, tuple[float, ...]] = field(default_factory=dict)
     projection_gap_kv: dict[str, tuple[float, ...]] = field(default_factory=dict)
+    #: a leak found on the current cylinder (latest hold test ``leak`` or ``likely-leak``),
+    #: counted as a draw in ``draw_kg_s`` and everything projected from it [sccm, 0 °C, 101.325 kPa]
+    leak_sccm: float = 0.0
+
+
+@dataclass(frozen=True)
+class RoomCase:
+    """One cylinder kept in the room, released at once: every hazard it carries."""
+
+    supply: str
+    gas_name: str
+    #: the safety case: full (its fill weight if weighed, else service pressure at 15 °C)
+    full_mass_kg: float
+    release: rm.Release
+    o2_percent_today: float
+    gas_percent_today: float
+    relative_density: float
+    oxidiser: bool
+    #: the gas's own toxicity (worst component) and flammability, full release
+    toxic: hz.Toxic | None
+    flammable: hz.Flammable | None
+
+
+@dataclass(frozen=True)
+class VentedGas:
+    """One supply's gas vented into the room by its draws, by the end of the planned session (or
+    at its steady state, if reached sooner)."""
+
+    supply: str
+    m3_s: float
+    gas_percent: float
+    toxic: hz.Toxic | None
+    flammable: hz.Flammable | None
 
 
 @dataclass(frozen=True)
@@ -112,19 +146,31 @@ class RoomPlan:
     vented_m3_s: float
     leak: rm.Leak | None
     release_supply_id: str
-    #: today's contents of the largest supply released at once
-    release: rm.Release
-    release_mixed: rm.Release
+    #: today's contents of the supply whose full release is the worst for oxygen (None: no
+    #: cylinder kept in the room)
+    release: rm.Release | None
+    release_mixed: rm.Release | None
     notes: tuple[str, ...]
-    #: the safety case: the largest supply full (service pressure at 15 °C, or its fill weight)
+    #: the safety case for oxygen: the cylinder whose full release lowers it most
     worst_case: rm.Release | None = None
     worst_case_supply_id: str = ""
     #: every supply kept in the room, full, released together
     all_supplies: rm.Release | None = None
+    #: every cylinder kept in the room, full, released at once, judged for every hazard
+    cases: tuple[RoomCase, ...] = ()
+    #: gas vented into the room by each supply's draws [m³/s at room conditions]
+    vented_by_supply: dict[str, float] = field(default_factory=dict)
+    #: each supply's vented gas judged for toxicity and flammability (in the order of the supplies)
+    vented: tuple[VentedGas, ...] = ()
+    #: the room's oxygen before anything escapes, vol %
+    c0_percent: float = 20.95
+    #: supplies whose cylinder stands outside the room (no part in a release)
+    outside: tuple[str, ...] = ()
 
     @property
     def o2_percent_worst_case(self) -> float:
-        return (self.worst_case or self.release).o2_percent_after_release
+        rel = self.worst_case or self.release
+        return rel.o2_percent_after_release if rel is not None else self.c0_percent
 
 
 @dataclass(frozen=True)
@@ -159,3 +205,5 @@ class Observed:
     method: str
     fit_at: tuple[str, ...] = ()
     fit_pressure_abs_pa: tuple[float, ...] = ()
+    #: the draw is resolved beyond its expanded uncertainty (only then does it project a reserve)
+    resolved: bool = True

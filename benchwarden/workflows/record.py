@@ -1,108 +1,98 @@
-"""The bench's record as a person reads it back: sessions with who ran them, the shots fired
-and the notes; and each supply's cylinders, one after another, with what each one gave.
+"""Starting and stopping a session as one record, for the command line and the app alike.
+
+A session may start while a STOP finding stands only when a person accepts each STOP by name
+with a reason; the journal keeps who accepted which, when and why (``accepted_stops``), in the
+same transaction that starts the session. Stopping records the shots fired and a note.
 """
 
 from __future__ import annotations
 
 import datetime as dt
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
-from benchwarden.core import gas as g
-from benchwarden.errors import BenchwardenError, JournalError
-from benchwarden.storage.journal import Journal, ReadingRow
-from benchwarden.storage.profile import Profile, Supply
+from benchwarden.errors import InputError
+from benchwarden.storage.journal import AcceptedStop, Journal, SessionRow
+from benchwarden.storage.profile import Profile
+from benchwarden.units.quantities import check_text
+from benchwarden.workflows.findings import Finding, at_or_above
 
-__all__ = ["SessionRecord", "session_records", "CylinderLife", "cylinder_lives"]
+__all__ = ["StopsStand", "standing_stops", "start_session", "stop_session", "SessionRecord", "session_records",
+           "MAX_SHOTS"]
+
+#: More shots than this in one session is a typing error (10 kHz for a whole day).
+MAX_SHOTS = 10**9
+
+
+class StopsStand(InputError):
+    """A session cannot start: STOP findings stand and nobody accepted them."""
+
+    def __init__(self, stops: Sequence[Finding], words: Sequence[str]) -> None:
+        self.stops = tuple(stops)
+        self.words = tuple(words)
+        super().__init__(f"{len(stops)} STOP finding(s) stand; start only after fixing them, or accept each "
+                         "with a reason (--accept-stop REASON)")
+
+
+def standing_stops(findings: Sequence[Finding]) -> list[Finding]:
+    """The STOP findings among a bench's findings."""
+    return at_or_above(findings, "stop")
+
+
+def start_session(journal: Journal, prof: Profile, findings: Sequence[Finding], at: dt.datetime,
+                  describe: Callable[[Finding], str], operator: str | None = None,
+                  accept_reason: str | None = None, profile_path: str | None = None) -> int:
+    """Start a session on the bench at ``at``. While a STOP finding stands, refuse
+    (:class:`StopsStand`) unless ``accept_reason`` is given; then record the acceptance of each
+    STOP (its code, subject and words) with the operator and the reason."""
+    operator = check_text(operator or "", "operator", 100) or None
+    reason = check_text(accept_reason or "", "reason for accepting the STOP findings", 500) or None
+    running = journal.unfinished_session(prof.bench.name)
+    if running is not None:
+        raise InputError(f"session #{running.id} of this bench is still running (since {running.started_at}); "
+                         "stop it first")
+    stops = standing_stops(findings)
+    if stops and reason is None:
+        raise StopsStand(stops, [describe(f) for f in stops])
+    accepted = [(f.code, f.subject, describe(f)) for f in stops]
+    return journal.start_session(prof.bench.name, profile_path, at.isoformat(timespec="seconds"), operator,
+                                 accepted, reason)
+
+
+def stop_session(journal: Journal, prof: Profile, at: dt.datetime, shots: int | None = None,
+                 note: str | None = None, operator: str | None = None) -> SessionRow:
+    """Stop the bench's running session at ``at`` with its shot count and a note."""
+    row = journal.unfinished_session(prof.bench.name)
+    if row is None:
+        raise InputError(f"no session of bench {prof.bench.name!r} is running")
+    if at < dt.datetime.fromisoformat(row.started_at):
+        raise InputError(f"stop time {at.isoformat(timespec='minutes')} is before the session started "
+                         f"({row.started_at[:16]})")
+    if shots is not None and not 0 <= shots <= MAX_SHOTS:
+        raise InputError(f"shots {shots} must be between 0 and {MAX_SHOTS:,}".replace(",", " "))
+    note = check_text(note or "", "note", 1000) or None
+    operator = check_text(operator or "", "operator", 100) or None
+    stamp = at.isoformat(timespec="seconds")
+    journal.set_session_record(row.id, operator, shots)
+    if note:
+        journal.add_note(row.id, stamp, note)
+    journal.stop_session(row.id, stamp)
+    return row
 
 
 @dataclass(frozen=True)
 class SessionRecord:
-    """One session as recorded: times, readings, alarms, operator, shots fired and notes."""
+    """A session as the record shows it: times, operator, shots, notes and accepted STOPs."""
 
-    id: int
-    bench: str
-    started_at: str
-    stopped_at: str | None
-    readings: int
-    alarms: int
-    operator: str | None
-    shots: int | None
-    notes: tuple[str, ...]
+    session: SessionRow
+    notes: tuple[tuple[str, str], ...]
+    accepted_stops: tuple[AcceptedStop, ...]
 
 
-def session_records(journal: Journal | None, bench: str | None = None) -> list[SessionRecord]:
-    """The sessions of a bench (every bench when None), oldest first, with their notes."""
-    if journal is None:
-        return []
-    rows = journal.sessions() if bench is None else journal.bench_sessions(bench)
-    return [SessionRecord(r.id, r.bench, r.started_at, r.stopped_at, r.readings, r.alarms, r.operator, r.shots,
-                          tuple(text for _, text in journal.notes(r.id))) for r in rows]
-
-
-@dataclass(frozen=True)
-class CylinderLife:
-    """One cylinder on a supply: from its fill (or the first record) to the next change."""
-
-    supply_id: str
-    label: str | None
-    fill_text: str | None
-    since: str | None
-    until: str | None  # None: still in use
-    readings: int
-    gas_used_kg: float | None
-    hold_tests: int
-    retest_due: str | None
-
-
-def _mass(s: Supply, r: ReadingRow) -> float | None:
-    """The real-gas mass of a reading (by weight for a weighed supply) [kg]; None outside the
-    equation of state."""
-    if r.weight_kg is not None and s.tare is not None:
-        return r.weight_kg - s.tare
-    if r.pressure_abs_pa is None:
-        return None
-    try:
-        return g.density(s.gas, r.temperature_k, r.pressure_abs_pa) * s.water_volume
-    except BenchwardenError:
-        return None
-
-
-def _used(s: Supply, rows: list[ReadingRow]) -> float | None:
-    masses = [m for m in (_mass(s, r) for r in rows) if m is not None]
-    return masses[0] - masses[-1] if len(masses) >= 2 else None
-
-
-def cylinder_lives(journal: Journal | None, prof: Profile, supply_id: str) -> list[CylinderLife]:
-    """Every cylinder of a supply the journal knows, oldest first: label, fill, from–to, the
-    readings on it (none struck), the gas it gave between its first and last reading (real
-    gas), the hold tests run on it and its retest date. The first one is the profile's cylinder."""
-    s = prof.supply(supply_id)
-    if journal is None:
-        return [CylinderLife(s.id, None, s.reading.text if s.reading else None, None, None, 0, None, 0,
-                             s.retest_due.isoformat() if s.retest_due else None)]
-    try:
-        changes = journal.changes(prof.bench.name, s.id)
-        readings = [r for r in journal.supply_readings(prof.bench.name, s.id) if not r.struck]
-        holds = [h for h in journal.hold_tests(prof.bench.name) if h.supply_id == s.id]
-    except JournalError:
-        return []
-    bounds: list[str | None] = [None] + [c.at for c in changes] + [None]
-    out = []
-    for i in range(len(changes) + 1):
-        lo, hi = bounds[i], bounds[i + 1]
-
-        def inside(at: str, lo: str | None = lo, hi: str | None = hi) -> bool:
-            t = dt.datetime.fromisoformat(at)
-            return ((lo is None or t >= dt.datetime.fromisoformat(lo))
-                    and (hi is None or t < dt.datetime.fromisoformat(hi)))
-
-        rows = [r for r in readings if inside(r.at)]
-        if i == 0 and not rows and changes:
-            continue  # the profile's cylinder left no record in the journal
-        c = changes[i - 1] if i else None
-        fill = (c.pressure_text or (f"{c.weight_kg:g} kg" if c.weight_kg is not None else None)) if c else (
-            s.reading.text if s.reading else None)
-        retest = (c.retest_due if c else (s.retest_due.isoformat() if s.retest_due else None))
-        out.append(CylinderLife(s.id, c.label if c else None, fill, lo if c else (rows[0].at if rows else None), hi,
-                                len(rows), _used(s, rows), sum(1 for h in holds if inside(h.at)), retest))
-    return out
+def session_records(journal: Journal) -> list[SessionRecord]:
+    """Every session of the journal with its notes and accepted STOPs (oldest first)."""
+    accepted: dict[int, list[AcceptedStop]] = {}
+    for a in journal.accepted_stops():
+        accepted.setdefault(a.session_id, []).append(a)
+    return [SessionRecord(s, tuple(journal.notes(s.id)), tuple(accepted.get(s.id, ())))
+            for s in journal.sessions()]

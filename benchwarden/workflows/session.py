@@ -21,7 +21,7 @@ from benchwarden.storage.samples import Columns, SampleStore
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows import build as pl
-from benchwarden.workflows.bench import Assessment, findings_of, journal_state
+from benchwarden.workflows.bench import Assessment, findings_of, journal_state, orders_of
 from benchwarden.workflows.cylinder import (
     Entry,
     LatestSample,
@@ -33,15 +33,19 @@ from benchwarden.workflows.cylinder import (
     record_change,
     record_reading,
 )
-from benchwarden.workflows.findings import Finding, alarm_findings
+from benchwarden.workflows.findings import Finding, alarm_findings, life_findings, ranked
 from benchwarden.workflows.holds import (
+    JudgedHold,
     LastHold,
+    judged_hold_tests,
     last_hold_test,
     profile_gauge_spec,
     reading_step_pa,
+    standing_leaks,
 )
 from benchwarden.workflows.model import Observed, Plan
 from benchwarden.workflows.purges import purge_states
+from benchwarden.workflows.record import StopsStand, standing_stops, start_session
 from benchwarden.workflows.watch import (
     AlarmBook,
     LeakWatch,
@@ -108,6 +112,7 @@ class SessionState:
     alarm_book: AlarmBook | None = None
     _compacted: dt.datetime | None = None
     _leak_at: dt.datetime | None = None
+    _life: list[Finding] = field(default_factory=list)
 
     # -- profile and plan
 
@@ -140,7 +145,12 @@ class SessionState:
         now = self.clock()
         latest = max((r.at for rs in self.readings.values() for r in rs), default=None)
         self.plan_at = latest or now
-        self.plan = pl.build_plan(self.effective_profile(), now=self.plan_at, start_at=self.plan_at)
+        prof = self.effective_profile()
+        self.plan = pl.build_plan(prof, now=self.plan_at, start_at=self.plan_at,
+                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name))
+        # retest and service dates, and when to order: the same rule as the plan and status
+        orders = orders_of(prof, self.plan, self.journal, now)
+        self._life = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
         self._observe()
 
     def _observe(self) -> None:
@@ -180,16 +190,27 @@ class SessionState:
             return None
         return self.started_at + dt.timedelta(seconds=self.profile.session.duration)
 
-    def start(self) -> int:
+    def standing_stops(self) -> list[Finding]:
+        """The STOP findings that stand now (a session starts over them only when accepted)."""
+        return standing_stops(self.findings()) if self.plan is not None else []
+
+    def start(self, describe: Callable[[Finding], str] = lambda f: f.code, operator: str | None = None,
+              accept_reason: str | None = None) -> int:
+        """Start a session now. While a STOP stands it is refused (:class:`StopsStand`) unless
+        ``accept_reason`` is given; the acceptance is recorded with the operator."""
         assert self.profile is not None
-        self.started_at = self.clock()
+        now = self.clock()
+        if self.journal is not None:
+            self.session_id = start_session(self.journal, self.profile, self.findings(), now, describe, operator,
+                                            accept_reason, str(self.profile_path))
+        else:
+            stops = self.standing_stops()
+            if stops and not (accept_reason or "").strip():
+                raise StopsStand(stops, [describe(f) for f in stops])
+            self.session_id = 0
+        self.started_at = now
         self.readings = {}
         self.observed = {}
-        if self.journal is not None:
-            self.session_id = self.journal.start_session(self.profile.bench.name, str(self.profile_path),
-                                                         self.started_at.isoformat(timespec="seconds"))
-        else:
-            self.session_id = 0
         return self.session_id
 
     def stop(self) -> None:
@@ -210,7 +231,8 @@ class SessionState:
             if r.struck or r.pressure_abs_pa is None:
                 continue
             self.readings.setdefault(r.supply_id, []).append(
-                Reading(r.supply_id, dt.datetime.fromisoformat(r.at), r.pressure_abs_pa, r.pressure_text, r.temperature_k))
+                Reading(r.supply_id, dt.datetime.fromisoformat(r.at), r.pressure_abs_pa, r.pressure_text, r.temperature_k,
+                        journal_id=r.id))
 
     def parse_reading(self, supply_id: str, value: str, temperature: str, when: str) -> Reading:
         """Check a typed reading (same parsers as the command line): a gauge pressure, or a gross
@@ -266,8 +288,8 @@ class SessionState:
 
     def _write_reading(self, reading: Reading) -> None:
         assert self.journal is not None and self.profile is not None
-        record_reading(self.journal, self.profile, reading.entry(), self.session_id if self.in_session(reading)
-                       else None, self.clock())
+        reading.journal_id = record_reading(self.journal, self.profile, reading.entry(),
+                                            self.session_id if self.in_session(reading) else None, self.clock())
 
     def retry_unsaved(self) -> int:
         """Write the readings the journal refused before; returns how many are still unsaved."""
@@ -331,7 +353,8 @@ class SessionState:
         """The pressure step the supply's gauge resolves [Pa] (figures are shown to it)."""
         if self.profile is None:
             return None
-        return reading_step_pa(self.profile.supply(supply_id).gauge)
+        lv = self.live.get(supply_id)
+        return reading_step_pa(self.profile.supply(supply_id), live=lv is not None and lv.sample is not None)
 
     def last_reading(self, supply_id: str) -> Reading | None:
         rs = self.readings.get(supply_id)
@@ -352,6 +375,12 @@ class SessionState:
             return math.inf
         return sp.hours_to_reserve - (now - self.plan_at).total_seconds() / 3600.0
 
+    def judged_hold_tests(self) -> list[JudgedHold]:
+        """The bench's hold tests, each marked withdrawn or of an earlier cylinder (oldest first)."""
+        if self.journal is None or self.profile is None:
+            return []
+        return judged_hold_tests(self.journal, self.profile.bench.name)
+
     def last_hold_test(self) -> LastHold | None:
         """The bench's latest hold test in the journal (with its age now)."""
         if self.profile is None:
@@ -369,7 +398,8 @@ class SessionState:
     def findings(self) -> list[Finding]:
         """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""
         assert self.plan is not None
-        return list(findings_of(self.plan, self.last_hold_test(), self.observed, self.session_end, self.running))
+        return ranked(list(findings_of(self.plan, self.last_hold_test(), self.observed, self.session_end,
+                                       self.running)) + self._life)
 
     # -- live gauges
 

@@ -10,36 +10,24 @@ Renderers live in :mod:`benchwarden.render.checklist.render`.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import tomllib
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
-from typing import Any, Literal
+from typing import Any
 
 from benchwarden.core.cautions import DEFER, ESTIMATES, GENERAL, Caution, gas_cautions
 from benchwarden.errors import ProfileError
+from benchwarden.render.checklist.items import Item, Status
+from benchwarden.render.checklist.safety import SAFETY_ITEMS
 from benchwarden.render.display import Display
 from benchwarden.render.findings import describe
 from benchwarden.storage.profile import Profile
 from benchwarden.workflows.bench import Assessment
 from benchwarden.workflows.findings import SEVERITY_RANK, Finding, counts
-
-#: ``ok`` where no finding applies, else the worst finding's severity.
-Status = Literal["ok", "stop", "warning", "attention", "info"]
-
-
-@dataclass(frozen=True)
-class Item:
-    id: str
-    text: str
-    status: Status | None = None  # None: a box to tick
-    figure: str | None = None
-    reason: str | None = None
-    value: float | None = None
-    source: str | None = None
-    code: str | None = None
 
 
 @dataclass(frozen=True)
@@ -89,9 +77,12 @@ def _load_items(text: str, source: str) -> dict[str, Any]:
             bad = [k for k in ("id", "text", "computed") if k in it and not isinstance(it[k], str)]
             if bad:
                 raise ProfileError(f"{source}: sections[{i}].items[{j}].{bad[0]} must be text in quotes")
-            if set(it) - {"id", "text", "computed"}:
+            keys = {"id", "text", "computed", "basis"}
+            if set(it) - keys:
                 raise ProfileError(f"{source}: sections[{i}].items[{j}]: unknown key(s) "
-                                   f"{', '.join(sorted(set(it) - {'id', 'text', 'computed'}))}")
+                                   f"{', '.join(sorted(set(it) - keys))}; allowed: {', '.join(sorted(keys))}")
+            if "basis" in it and not isinstance(it["basis"], str):
+                raise ProfileError(f"{source}: sections[{i}].items[{j}].basis must be text in quotes")
             if "computed" in it and it["computed"] not in _COMPUTED:
                 raise ProfileError(f"{source}: sections[{i}].items[{j}]: unknown computed key {it['computed']!r}; "
                                    f"allowed: {', '.join(_COMPUTED)}")
@@ -132,6 +123,10 @@ class _Ctx:
     a: Assessment
     display: Display
     now: dt.datetime
+    prof: Profile
+
+    def describe(self, f: Finding) -> str:
+        return describe(f, self.display)[0]
 
     def about(self, subject: str, codes: tuple[str, ...]) -> Finding | None:
         """The worst finding with one of ``codes`` about ``subject``."""
@@ -223,17 +218,44 @@ def _purge_after_change(ctx: _Ctx) -> list[Item]:
 
 
 def _room_release(ctx: _Ctx) -> list[Item]:
+    """One item per hazard of a sudden release, each on the cylinder that is worst for it."""
     room = ctx.a.plan.room
     if room is None:
         return [_item(ctx, "room-release", "Room oxygen if a cylinder empties into the room", "no room in profile",
                       ctx.about("room", ("no-room",)), "")]
-    r = room.worst_case or room.release
-    return [_item(ctx, "room-release",
-                  f"Room oxygen if all of {room.worst_case_supply_id or room.release_supply_id}, full, escapes at once",
-                  f"{r.o2_percent_after_release:.1f} % O2 ({r.model} model; today "
-                  f"{room.release.o2_percent_after_release:.1f} %)",
-                  ctx.about("room", ("room-release", "room-toxic", "room-flammable")), "stays above 19.5 %",
-                  r.o2_percent_after_release, "room.o2_percent_worst_case")]
+    if not room.cases:
+        return [Item("room-release", "Room oxygen if a cylinder empties into the room", "ok",
+                     "no cylinder stands in the room", "cylinders outside take no part in a release")]
+    idx = {c.supply: i for i, c in enumerate(room.cases)}
+    worst = min(room.cases, key=lambda c: c.release.o2_percent_after_release)
+    rich = max(room.cases, key=lambda c: c.release.o2_percent_after_release)
+    c = rich if rich.release.o2_percent_after_release > room.c0_percent else worst
+    r = c.release
+    out = [_item(ctx, "room-release", f"Room oxygen if all of {c.supply}, full, escapes at once",
+                 f"{r.o2_percent_after_release:.1f} % O2 ({r.model} model; today {c.o2_percent_today:.1f} %)",
+                 ctx.about("room", ("room-release", "room-enrichment", "room-pooling")),
+                 "stays between 19.5 % and 23.5 %", r.o2_percent_after_release,
+                 f"room.cases[{idx[c.supply]}].release.o2_percent_after_release")]
+    # a release is judged on short-term limits: gases with only an 8-hour limit (SF6) have no item
+    toxic = [x for x in room.cases if x.toxic is not None
+             and (x.toxic.stel_percent or x.toxic.idlh_percent or x.toxic.incapacitating_percent)]
+    if toxic:
+        t = max(toxic, key=lambda x: (x.toxic.rank, x.toxic.percent) if x.toxic else (0, 0.0))
+        assert t.toxic is not None
+        out.append(_item(ctx, "room-toxic", f"Toxic gas if all of {t.supply}, full, escapes at once",
+                         f"{t.toxic.component} {t.toxic.percent:.2f} % ({t.toxic.band})",
+                         ctx.about("room", ("room-toxic",)), "below the short-term exposure limit",
+                         t.toxic.percent, f"room.cases[{idx[t.supply]}].toxic.percent"))
+    burn = [x for x in room.cases if x.flammable is not None]
+    if burn:
+        b = max(burn, key=lambda x: x.flammable.percent_of_lfl if x.flammable else 0.0)
+        assert b.flammable is not None
+        out.append(_item(ctx, "room-flammable", f"Flammable gas if all of {b.supply}, full, escapes at once",
+                         f"{b.flammable.percent_of_lfl:.0f} % of its LFL {b.flammable.lfl_percent:.3g} % "
+                         f"({b.flammable.method})",
+                         ctx.about("room", ("room-flammable", "segregation")), "below 25 % of the LFL (common practice)",
+                         b.flammable.percent_of_lfl, f"room.cases[{idx[b.supply]}].flammable.percent_of_lfl"))
+    return out
 
 
 def _room_vented(ctx: _Ctx) -> list[Item]:
@@ -241,9 +263,15 @@ def _room_vented(ctx: _Ctx) -> list[Item]:
     if room is None or room.leak is None:
         return []
     lk = room.leak
-    return [_item(ctx, "room-vented", "Room oxygen with the draws venting into the room",
-                  f"{lk.o2_percent_steady:.2f} % O2 steady, {room.vented_m3_s * 6e4:.2f} L/min vented",
-                  ctx.about("room", ("room-vented",)), "stays above 19.5 %", lk.o2_percent_steady,
+    gases = "".join(
+        (f"; {v.supply}: {v.toxic.component} {v.toxic.percent:.3g} % ({v.toxic.band})" if v.toxic else "")
+        + (f"; {v.supply}: {v.flammable.percent_of_lfl:.0f} % of its LFL" if v.flammable else "")
+        for v in room.vented)
+    return [_item(ctx, "room-vented", "Room air with the draws venting into the room",
+                  f"{lk.o2_percent_steady:.2f} % O2 steady, {room.vented_m3_s * 6e4:.2f} L/min vented from "
+                  f"{', '.join(room.vented_by_supply) or 'an extra leak'}{gases}",
+                  ctx.about("room", ("room-vented", "room-vented-toxic", "room-vented-flammable")),
+                  "stays above 19.5 %, below exposure limits and 25 % of any LFL", lk.o2_percent_steady,
                   "room.leak.o2_percent_steady")]
 
 
@@ -287,6 +315,7 @@ _COMPUTED: dict[str, Callable[[_Ctx], list[Item]]] = {
     "room-vented": _room_vented,
     "gap-margins": _gap_margins,
     "open-findings": _open_findings,
+    **SAFETY_ITEMS,
 }
 
 
@@ -301,15 +330,16 @@ def build_checklist(prof: Profile, assessment: Assessment, profile_dir: Path | N
     lab_path = None
     if lab:
         lab_path = Path(lab) if Path(lab).is_absolute() or profile_dir is None else profile_dir / lab
-    ctx = _Ctx(assessment, display, now)
+    ctx = _Ctx(assessment, display, now, prof)
     sections = []
     for s in item_spec(lab_path):
         items: list[Item] = []
         for it in s["items"]:
+            basis = it.get("basis")
             if "computed" in it:
-                items.extend(_COMPUTED[it["computed"]](ctx))
+                items.extend(dataclasses.replace(x, basis=x.basis or basis) for x in _COMPUTED[it["computed"]](ctx))
             else:
-                items.append(Item(it["id"], it["text"]))
+                items.append(Item(it["id"], it["text"], basis=basis))
         if items:
             sections.append(Section(s["id"], s.get("title", s["id"]), tuple(items)))
     cautions = tuple(GENERAL) + tuple(gas_cautions([s.gas for s in prof.supplies]))
@@ -330,7 +360,8 @@ def checklist_json(cl: Checklist) -> dict[str, Any]:
         "sections": [{"id": s.id, "title": s.title, "items": [
             {"id": it.id, "text": it.text, "kind": "tick" if it.status is None else "computed",
              "status": it.status, "severity": None if it.status in (None, "ok") else it.status,
-             "code": it.code, "figure": it.figure, "reason": it.reason, "value": it.value, "source": it.source}
+             "code": it.code, "figure": it.figure, "reason": it.reason, "value": it.value, "source": it.source,
+             "basis": it.basis}
             for it in s.items]} for s in cl.sections],
         "cautions": [{"topic": c.topic, "text": c.text} for c in cl.cautions],
         "estimates": cl.estimates, "defer": cl.defer, "operator": cl.operator,

@@ -26,14 +26,22 @@ def _box(it: Item) -> str:
     return "[ ]" if it.status is None else f"[{MARK[it.status]}]"
 
 
+def _tick(it: Item) -> str:
+    """A box to tick: its text, this bench's figure where it has one, and the basis."""
+    line = it.text + (f": {it.figure}" if it.figure else "")
+    return line + (f" [{it.basis}]" if it.basis else "")
+
+
 def _line(it: Item) -> str:
-    """One item as a line of text: box, text, figure and (for computed items) the reason."""
+    """One item as a line of text: box, text, figure, (for computed items) the reason, basis."""
+    if it.status is None:
+        return f"{_box(it)} {_tick(it)}"
     line = f"{_box(it)} {it.text}"
     if it.figure:
         line += f": {it.figure}"
-    if it.reason and it.status is not None:
+    if it.reason:
         line += f" — {it.reason}"
-    return line
+    return line + (f" [{it.basis}]" if it.basis else "")
 
 
 def render_text(cl: Checklist, width: int = WIDTH) -> str:
@@ -89,12 +97,13 @@ def render_markdown(cl: Checklist) -> str:
         out += [f"## {e(s.title)}", ""]
         ticks = [it for it in s.items if it.status is None]
         figs = [it for it in s.items if it.status is not None]
-        out += [f"- [ ] {e(it.text)}" for it in ticks]
+        out += [f"- [ ] {e(_tick(it))}" for it in ticks]
         if figs:
             if ticks:
                 out.append("")
             out += ["| Item | Figure | Status | Why |", "|---|---|---|---|"]
-            out += [f"| {e(it.text)} | {e(it.figure or '')} | {SYMBOL[it.status]} {MARK[it.status]} | {e(it.reason or '')} |"
+            out += [f"| {e(it.text)} | {e(it.figure or '')} | {SYMBOL[it.status]} {MARK[it.status]} | "
+                    f"{e(it.reason or '')}{e(f' [{it.basis}]' if it.basis else '')} |"
                     for it in figs if it.status]
         out.append("")
     out += ["## Cautions", ""] + [f"- **{e(c.topic)}**: {e(c.text)}" for c in cl.cautions]
@@ -132,14 +141,15 @@ def render_html(cl: Checklist) -> str:
         ticks = [it for it in s.items if it.status is None]
         figs = [it for it in s.items if it.status is not None]
         if ticks:
-            out.append('<ul class="ticks">' + "".join(f'<li>{e(it.text)}<span class="initials"></span></li>'
+            out.append('<ul class="ticks">' + "".join(f'<li>{e(_tick(it))}<span class="initials"></span></li>'
                                                      for it in ticks) + "</ul>")
         if figs:
             out.append("<table><tr><th>Item</th><th>Figure</th><th>Status</th><th>Why</th><th>Initials</th></tr>")
             for it in figs:
                 st = it.status or "ok"
                 out.append(f'<tr class="{st}"><td>{e(it.text)}</td><td>{e(it.figure or "")}</td>'
-                           f"<td>{SYMBOL[st]} {MARK[st]}</td><td>{e(it.reason or '')}</td><td></td></tr>")
+                           f"<td>{SYMBOL[st]} {MARK[st]}</td><td>{e(it.reason or '')}"
+                           f"{e(f' [{it.basis}]' if it.basis else '')}</td><td></td></tr>")
             out.append("</table>")
     out.append("<h2>Cautions</h2><ul>" + "".join(f"<li><strong>{e(c.topic)}</strong>: {e(c.text)}</li>"
                                                  for c in cl.cautions) + "</ul>")
@@ -198,7 +208,7 @@ def render_pdf(cl: Checklist, path: str | Path) -> Path:
 
     def item(it: Item) -> None:
         pdf.set_font("DejaVu", "B" if it.status in ("stop", "warning") else "", 10)
-        body = it.text if it.status is None else _line(it)[len(_box(it)) + 1:]
+        body = _tick(it) if it.status is None else _line(it)[len(_box(it)) + 1:]
         lines = pdf.multi_cell(w - mark_w - initials_w, 5, body, dry_run=True, output="LINES")
         room_for(5 * len(lines if isinstance(lines, list) else [body]) + 1.5)
         x, y = pdf.l_margin, pdf.get_y()

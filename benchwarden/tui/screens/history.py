@@ -16,7 +16,8 @@ from benchwarden.render.display import Display, cylinder_text, profile_display
 from benchwarden.render.numbers import fmt_count, fmt_uncertain
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter
-from benchwarden.workflows.record import SessionRecord, cylinder_lives, session_records
+from benchwarden.workflows.cylinders import cylinder_lives
+from benchwarden.workflows.record import SessionRecord, session_records
 
 
 class HistoryScreen(ToolScreen):
@@ -81,14 +82,16 @@ class HistoryScreen(ToolScreen):
         self._cylinders(sid, d)
         if st.journal is None:
             return
-        sessions = session_records(st.journal, st.profile.bench.name)[-8:]
+        sessions = [r for r in session_records(st.journal) if r.session.bench == st.profile.bench.name][-8:]
         self.query_one("#history-sessions", Static).update("\n".join(_session_line(s, d, now) for s in sessions)
                                                            or "none yet")
-        holds = st.journal.hold_tests(st.profile.bench.name)[-8:]
+        holds = st.judged_hold_tests()[-8:]
         self.query_one("#history-holds", Static).update("\n".join(
-            f"{d.clock(h.at, now)}  {h.supply_id or '—'}  {h.verdict}  "
-            f"{fmt_uncertain(h.leak_rate_sccm, h.leak_rate_uncertainty_sccm, 'sccm')}  ({h.kind or 'manual'})"
-            for h in holds) or "none yet")
+            f"{d.clock(h.row.at, now)}  {h.row.supply_id or '—'}  {h.row.verdict}  "
+            f"{fmt_uncertain(h.row.leak_rate_sccm, h.row.leak_rate_uncertainty_sccm, 'sccm')}  "
+            f"({h.row.kind or 'manual'})"
+            + (f"  ✖ WITHDRAWN: {h.withdrawn_reason}" if h.withdrawn else "")
+            + ("  (earlier cylinder)" if h.earlier_cylinder else "") for h in holds) or "none yet")
 
     def _cylinders(self, sid: str, d: Display) -> None:
         """One line per cylinder, oldest first (wrapped, never cut)."""
@@ -124,11 +127,15 @@ class HistoryScreen(ToolScreen):
         t.focus()
 
 
-def _session_line(s: SessionRecord, d: Display, now: dt.datetime) -> str:
-    """``#3  Tue 1 Dec 09:30 → 13:10  4 reading(s) · A. Example · 12 000 shots · note: …``."""
+def _session_line(rec: SessionRecord, d: Display, now: dt.datetime) -> str:
+    """``#3  Tue 1 Dec 09:30 → 13:10  4 reading(s) · A. Example · 12 000 shots · note: …`` and
+    each STOP accepted at its start."""
+    s = rec.session
     stop = d.clock(s.stopped_at, now) if s.stopped_at else "left running"
     parts = [f"#{s.id}  {d.clock(s.started_at, now)} → {stop}  {s.readings} reading(s)",
              s.operator or "operator not recorded",
              f"{fmt_count(s.shots)} shots" if s.shots is not None else "shots not recorded"]
-    parts += [f"note: {n}" for n in s.notes]
+    parts += [f"note: {text}" for _, text in rec.notes]
+    parts += [f"accepted STOP {a.code} ({a.subject})" + (f" by {a.operator}" if a.operator else "")
+              + f": {a.reason}" for a in rec.accepted_stops]
     return "  ·  ".join(parts)

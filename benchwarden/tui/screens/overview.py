@@ -17,7 +17,7 @@ from textual.widgets import DataTable, Header, Static
 
 from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.render.display import Display, live_text, open_hold_text, profile_display
-from benchwarden.render.findings import describe, question_text
+from benchwarden.render.findings import SEVERITY_MARK, describe, question_text
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
 from benchwarden.units import fmt_hours
@@ -27,6 +27,8 @@ from benchwarden.workflows.session import Reading, SessionState
 
 #: How often the live figures (plan, leak watch, alarms) are recomputed from new samples [s].
 LIVE_REFRESH_S = 5.0
+#: STOP findings listed one line each above the scrolling body (more are summed up in one line).
+MAX_STOP_LINES = 5
 
 
 class OverviewScreen(Screen[None]):
@@ -71,6 +73,7 @@ class OverviewScreen(Screen[None]):
         yield Header()
         yield Static("Loading the bench profile and computing the plan…", id="status")
         yield Static("", id="banner")
+        yield Static("", id="stops")
         with VerticalScroll(id="body"):
             yield Static("Supplies", classes="heading")
             yield DataTable(id="supplies", cursor_type="none", zebra_stripes=True)
@@ -194,7 +197,9 @@ class OverviewScreen(Screen[None]):
         for s in st.plan.supplies:
             regs = [r for r in st.plan.regulators if r.supply_id == s.id]
             outlet = "—"
-            if regs:
+            if regs and not all(r.regulating for r in regs):
+                outlet = "not regulating"  # inlet at or below a set point: the outlet follows the cylinder
+            elif regs:
                 coldest = min(r.outlet_temperature_k for r in regs)
                 outlet = ("/".join(disp.gauge_number(r.set_point_abs_pa) for r in regs)
                           + f" {disp.gauge_label} {disp.temperature(coldest).replace(' °C', '°C')}")
@@ -215,7 +220,18 @@ class OverviewScreen(Screen[None]):
         self._observed_line()
         self._findings = st.findings()
         self.query_one("#findings", FindingsPanel).show(self._findings, disp)
+        self._show_stops()
         self.tick()
+
+    def _show_stops(self) -> None:
+        """Every STOP finding, one line each, above everything that scrolls (seen at 80×24)."""
+        stops = [f for f in self._findings if f.severity == "stop"]
+        box = self.query_one("#stops", Static)
+        lines = [f"{SEVERITY_MARK['stop']}  {f.subject}: {describe(f, self.units)[0]}" for f in stops]
+        if len(lines) > MAX_STOP_LINES:  # each STOP still counted on screen; the findings list has all
+            lines = lines[:MAX_STOP_LINES - 1] + [f"✖ … and {len(lines) - MAX_STOP_LINES + 1} more STOP findings"]
+        box.update(Text("\n".join(lines), no_wrap=True, overflow="ellipsis"))
+        box.display = bool(stops)
 
     def _observed_line(self) -> None:
         st = self.state
@@ -230,7 +246,8 @@ class OverviewScreen(Screen[None]):
                 continue
             parts.append(f"{s.id}: observed {fmt_uncertain(ob.draw_kg_s * 6e4, ob.draw_uncertainty_kg_s * 6e4, 'g/min')}"
                          f" vs planned {fmt_value(s.draw_kg_s * 6e4)} g/min"
-                         + ("  ▲ faster than planned" if ob.faster_than_planned else ""))
+                         + ("  ▲ faster than planned" if ob.faster_than_planned else "")
+                         + ("" if ob.resolved else "  (not resolved yet: the plan's projection stands)"))
         for sid, lv in st.live.items():
             parts.append(f"{sid}: {live_text(lv, self.units)}")
         parts += [f"⏲ {open_hold_text(h, self.units, st.clock(), st.reading_step(h.supply_id))}"
@@ -252,6 +269,10 @@ class OverviewScreen(Screen[None]):
                 status += f"   ▲ OVER TIME by {fmt_hours(over)}"
         else:
             status = f"○ no session — press s to start ({fmt_hours(st.plan.session_hours)} planned)"
+        n_stops = sum(1 for f in self._findings if f.severity == "stop")
+        if n_stops:
+            status = f"✖ STOP ({n_stops})  " + status
+        self.query_one("#status", Static).set_class(bool(n_stops), "stop")
         if st.unsaved and int(now.timestamp()) % 10 == 0:
             st.retry_unsaved()  # the journal may be free again
         if st.unsaved:
@@ -296,9 +317,27 @@ class OverviewScreen(Screen[None]):
         if st.running:
             self.app.push_screen(StopScreen(), self._stop_answered)
             return
+        stops = st.standing_stops()
+        if stops:
+            from benchwarden.tui.screens.accept import AcceptStopsScreen
+
+            words = [describe(f, self.units)[0] for f in stops]
+            self.app.push_screen(AcceptStopsScreen(words), self._stops_answered)
+            return
+        self._start()
+
+    def _stops_answered(self, answer: tuple[str, str] | None) -> None:
+        if answer is None:
+            self.notify("Session not started: STOP findings stand", title="Session", severity="warning")
+            return
+        self._start(*answer)
+
+    def _start(self, operator: str | None = None, reason: str | None = None) -> None:
+        st = self.state
         try:
-            st.start()
-            self.notify(f"Session #{st.session_id} started", title="Session")
+            st.start(lambda f: describe(f, self.units)[0], operator, reason)
+            self.notify(f"Session #{st.session_id} started" + (" over accepted STOP findings" if reason else ""),
+                        title="Session", severity="warning" if reason else "information")
             if not self.cautions_shown:
                 self.cautions_shown = True
                 self.app.call_later(self.app.run_action, "cautions")
@@ -408,6 +447,7 @@ class OverviewScreen(Screen[None]):
         banner = self.query_one("#banner", Static)
         self._set("banner", text, lambda v: banner.update(Text(f"▲ {v}" if v else "")))
         banner.display = bool(alarms)
+        banner.set_class(any(a.severity == "stop" for a in alarms), "stop")
         if new:
             self.app.bell()
 

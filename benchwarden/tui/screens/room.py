@@ -8,6 +8,7 @@ from textual.containers import VerticalScroll
 from textual.widgets import Header, Input, Static
 
 from benchwarden.errors import BenchwardenError
+from benchwarden.render.room import room_lines
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter, field
 from benchwarden.units import fmt_hours
@@ -38,26 +39,17 @@ class RoomScreen(ToolScreen):
             self.query_one("#room-figures", Static).update(Text("The profile has no [room]: add its volume and "
                                                                 "ventilation."))
             return
-        sealed = rm.release(r.volume_m3, r.release.release_volume_m3, "sealed", r.release.c0_percent)
-        worst = r.worst_case or r.release
-        lines = [f"Room {r.volume_m3:g} m³, ventilation {r.ventilation_m3_s * 3600:.0f} m³/h ({r.ventilation_kind})",
-                 f"WORST CASE (the safety case): all of {r.worst_case_supply_id or r.release_supply_id}, full, released "
-                 f"at once: {worst.o2_percent_after_release:.2f} % O2, {worst.gas_percent_after_release:.2f} % of the "
-                 f"gas — {worst.effect or 'stays above 19.5 %'}",
-                 f"Every supply kept in the room, full: "
-                 f"{(r.all_supplies or worst).o2_percent_after_release:.2f} % O2",
-                 f"Today's contents of {r.release_supply_id} released ({r.release.release_volume_m3:.2f} m³ at room "
-                 "conditions):",
-                 f"  {r.release.o2_percent_after_release:5.2f} % O2  {r.release.method}",
-                 f"  {r.release_mixed.o2_percent_after_release:5.2f} % O2  {r.release_mixed.method}",
-                 f"  {sealed.o2_percent_after_release:5.2f} % O2  {sealed.method}",
-                 f"  {r.release.effect or 'stays above 19.5 %'}"]
+        lines = [f"Room {line}" if i == 0 else line for i, line in enumerate(room_lines(r))]
+        if r.release is not None:
+            sealed = rm.release(r.volume_m3, r.release.release_volume_m3, "sealed", r.c0_percent,
+                                r.release.gas_o2_percent)
+            lines.append(f"today's contents of {r.release_supply_id} in a sealed room: "
+                         f"{sealed.o2_percent_after_release:.2f} % O2 ({sealed.method})")
         if r.leak is not None:
             lk = r.leak
             lines += [f"Draws venting into the room {r.vented_m3_s * 6e4:.2f} L/min: steady "
                       f"{lk.o2_percent_steady:.2f} % O2; to 19.5 % {fmt_hours(lk.minutes_to_19_5 / 60)}; "
                       f"to 18 % {fmt_hours(lk.minutes_to_18 / 60)} ({lk.method})"]
-        lines += [f"! {n}" for n in r.notes]
         lines.append("Estimates of a well-mixed room: use a fixed oxygen monitor with alarm where gas can "
                      "accumulate; follow local codes and the supplier's safety data sheet.")
         self.query_one("#room-figures", Static).update(Text("\n".join(lines)))
@@ -76,12 +68,12 @@ class RoomScreen(ToolScreen):
         out = self.query_one("#room-extra", Static)
         if r is None:
             return
-        gas = st.profile.supply(r.release_supply_id).gas
+        gas = st.profile.supply(r.release_supply_id or st.profile.supplies[0].id).gas
         try:
             extra = rm.leak_volume_flow(gas, parse_flow(event.value, what="leak"), st.plan.temperature_k,
                                         st.plan.ambient_pa)
             lk = rm.leak_o2(r.volume_m3, r.vented_m3_s + extra, r.ventilation_m3_s, r.ventilation_kind,
-                            r.release.c0_percent)
+                            r.c0_percent)
         except BenchwardenError as exc:
             out.update(Text(f"✖ {exc}"))
             return

@@ -1,0 +1,125 @@
+"""Cost that does not grow with history (issue 28): `status --json` on journals of 1k, 10k and
+100k readings of one supply, and 5 or 50 supplies with 10k readings each, against the same
+command on an empty journal and a plain script (SQLite latest reading per supply, one CoolProp
+call each), in one run. Printed as a table; the targets are ratios (≤ 1.3× the empty journal for
+100k readings on one supply, ≤ 2× for 50 supplies × 10k).
+
+Run: uv run pytest benchmarks/test_history.py -s   (builds the journals first, ~1 min)
+"""
+
+import contextlib
+import datetime as dt
+import io
+import sqlite3
+import time
+from pathlib import Path
+
+import pytest
+
+from benchwarden.cli import main
+from benchwarden.storage.journal import Journal
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
+BENCH = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"
+AMB = 99891.70147786745
+RESULTS: list[tuple[str, float, float, float, float, float]] = []
+
+
+def _profile(tmp: Path, supplies: int) -> Path:
+    """The demo bench with ``supplies`` nitrogen cylinders (the first feeds the draws)."""
+    start = DEMO.index("[[supplies]]")
+    end = DEMO.index("[[regulators]]")
+    block = DEMO[start:end]
+    extra = "".join(block.replace('id = "n2-A"', f'id = "n2-{i}"') for i in range(1, supplies))
+    p = tmp / f"bench-{supplies}.toml"
+    p.write_text(DEMO[:end] + extra + DEMO[end:])
+    return p
+
+
+def _journal(path: Path, supplies: int, per_supply: int) -> None:
+    """Hourly readings, 200 → 20 bar with a cylinder change each time round, per supply."""
+    t0 = dt.datetime(2016, 12, 1, 9, 0, tzinfo=dt.UTC)
+    with Journal(path) as j:
+        for k in range(supplies):
+            sid = "n2-A" if k == 0 else f"n2-{k}"
+            rows, changes, p = [], [], 200e5
+            for i in range(per_supply):
+                at = (t0 + dt.timedelta(hours=i)).isoformat(timespec="seconds")
+                if p < 20e5:
+                    p = 200e5
+                    changes.append(at)
+                rows.append((BENCH, sid, at, p + AMB, f"{p / 1e5:.1f} bar", 294.15, at, None, AMB, None))
+                p -= 0.5e5
+            j.add_readings(rows)
+            for c in changes:
+                j.add_change(BENCH, sid, c, c, 200e5 + AMB, "200 bar", None, 294.15)
+
+
+def _status(profile: Path, journal: Path) -> float:
+    out = io.StringIO()
+    t = time.perf_counter()
+    with contextlib.redirect_stdout(out):
+        assert main(["--journal", str(journal), "status", str(profile), "--json"]) == 0
+    return time.perf_counter() - t
+
+
+def _plain(journal: Path, supplies: int) -> float:
+    import CoolProp.CoolProp as CP
+
+    t = time.perf_counter()
+    db = sqlite3.connect(journal)
+    for k in range(supplies):
+        sid = "n2-A" if k == 0 else f"n2-{k}"
+        row = db.execute("SELECT pressure_abs_pa, temperature_k FROM readings WHERE bench = ? AND supply_id = ?"
+                         " ORDER BY at DESC LIMIT 1", (BENCH, sid)).fetchone()
+        if row:
+            CP.PropsSI("D", "P", row[0], "T", row[1], "Nitrogen")
+    db.close()
+    return time.perf_counter() - t
+
+
+def _process(profile: Path, journal: Path) -> float:
+    """The whole command in a new process, as a user runs it (bytecode cached: a user's machine
+    keeps it, so PYTHONDONTWRITEBYTECODE is unset for this measure)."""
+    import os
+    import subprocess
+    import sys
+
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
+    t = time.perf_counter()
+    subprocess.run([sys.executable, "-m", "benchwarden", "--journal", str(journal), "status", str(profile), "--json"],
+                   check=True, capture_output=True, env=env)
+    return time.perf_counter() - t
+
+
+def _best(fn, n=3):
+    return min(fn() for _ in range(n))
+
+
+@pytest.mark.parametrize(("supplies", "per_supply"), [(1, 1_000), (1, 10_000), (1, 100_000), (5, 10_000),
+                                                      (50, 10_000)])
+def test_status_cost_does_not_grow_with_history(tmp_path, supplies, per_supply):
+    prof = _profile(tmp_path, supplies)
+    empty, full = tmp_path / "empty.sqlite", tmp_path / "full.sqlite"
+    _status(prof, empty)  # creates it
+    _journal(full, supplies, per_supply)
+    _status(prof, full)   # the first call after a bulk import scans the new readings once
+    t_empty = _best(lambda: _status(prof, empty))
+    t_full = _best(lambda: _status(prof, full))
+    t_plain = _best(lambda: _plain(full, supplies))
+    p_empty = _best(lambda: _process(prof, empty))
+    p_full = _best(lambda: _process(prof, full))
+    RESULTS.append((f"{supplies} suppl{'y' if supplies == 1 else 'ies'} × {per_supply:,} readings",
+                    t_empty, t_full, t_plain, p_empty, p_full))
+    assert t_full > 0
+
+
+def teardown_module(module):
+    if not RESULTS:
+        return
+    print("\n\nstatus --json, best of 3 (2-core machine); 'process' = the whole command in a new process")
+    print(f"{'journal':<32}{'in-process empty':>17}{'full':>8}{'process empty':>15}{'full':>8}{'ratio':>8}"
+          f"{'plain script':>14}")
+    for name, e, f, p, pe, pf in RESULTS:
+        print(f"{name:<32}{e:>16.3f}s{f:>7.3f}s{pe:>14.2f}s{pf:>7.2f}s{pf / pe:>7.2f}×{p:>13.4f}s")
