@@ -49,7 +49,8 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
         band = (f" (gauge band {d.hours(s.hours_band[0])} – {d.hours(s.hours_band[1])})"
                 if s.hours_band[0] != s.hours_band[1] else "")
         out += [f"  {s.id}: {s.gas_name}" + (" (liquefied; by weight)" if s.liquefied else ""),
-                f"    now {d.gauge(s.pressure_abs_pa)}, {d.temperature(s.temperature_k)}; reserve {d.gauge(s.reserve_abs_pa)}",
+                f"    now {d.gauge(s.pressure_abs_pa, a.steps.get(s.id))}, {d.temperature(s.temperature_k)}; "
+                f"reserve {d.gauge(s.reserve_abs_pa)}",
                 f"    contents {s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}; "
                 f"usable {s.usable_mass_kg:.3f} kg",
                 f"    draw {s.draw_kg_s * 6e4:.3f} g/min"

@@ -393,7 +393,8 @@ class SessionState:
         last = self.last_hold_test()
         assert self.profile is not None
         return Assessment(self.plan, last, findings_of(self.plan, last, self.observed, self.session_end,
-                                                       self.running), purges=purge_states(self.journal, self.profile))
+                                                       self.running), purges=purge_states(self.journal, self.profile),
+                          steps={s.id: self.reading_step(s.id) for s in self.profile.supplies})
 
     def findings(self) -> list[Finding]:
         """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""

@@ -147,7 +147,7 @@ def _supply_contents(ctx: _Ctx) -> list[Item]:
     d = ctx.display
     return [Item(f"supply-contents:{s.id}", f"{s.id} ({s.gas_name}) contents",
                  "ok", f"{s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}"
-                 + ("" if s.liquefied else f"; now {d.gauge(s.pressure_abs_pa)}"),
+                 + ("" if s.liquefied else f"; now {d.gauge(s.pressure_abs_pa, ctx.a.steps.get(s.id))}"),
                  "by weight (liquefied)" if s.liquefied else "real gas at the last reading",
                  s.mass_kg, f"supplies[{i}].mass_kg")
             for i, s in enumerate(ctx.a.plan.supplies)]
