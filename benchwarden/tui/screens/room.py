@@ -12,6 +12,7 @@ from benchwarden.render.room import room_lines
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter, field
 from benchwarden.units import fmt_hours
+from benchwarden.workflows.room_tool import sealed_release, with_extra_leak
 
 
 class RoomScreen(ToolScreen):
@@ -29,8 +30,6 @@ class RoomScreen(ToolScreen):
         yield KeysFooter()
 
     def on_mount(self) -> None:
-        from benchwarden.core import room as rm
-
         st = self.state
         assert st.plan is not None
         r = st.plan.room
@@ -40,9 +39,8 @@ class RoomScreen(ToolScreen):
                                                                 "ventilation."))
             return
         lines = [f"Room {line}" if i == 0 else line for i, line in enumerate(room_lines(r))]
-        if r.release is not None:
-            sealed = rm.release(r.volume_m3, r.release.release_volume_m3, "sealed", r.c0_percent,
-                                r.release.gas_o2_percent)
+        sealed = sealed_release(st.plan)
+        if sealed is not None:
             lines.append(f"today's contents of {r.release_supply_id} in a sealed room: "
                          f"{sealed.o2_percent_after_release:.2f} % O2 ({sealed.method})")
         if r.leak is not None:
@@ -59,7 +57,6 @@ class RoomScreen(ToolScreen):
         self.query_one("#room-leak", Input).focus()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
-        from benchwarden.core import room as rm
         from benchwarden.units import parse_flow
 
         st = self.state
@@ -68,14 +65,12 @@ class RoomScreen(ToolScreen):
         out = self.query_one("#room-extra", Static)
         if r is None:
             return
-        gas = st.profile.supply(r.release_supply_id or st.profile.supplies[0].id).gas
         try:
-            extra = rm.leak_volume_flow(gas, parse_flow(event.value, what="leak"), st.plan.temperature_k,
-                                        st.plan.ambient_pa)
-            lk = rm.leak_o2(r.volume_m3, r.vented_m3_s + extra, r.ventilation_m3_s, r.ventilation_kind,
-                            r.c0_percent)
+            lk = with_extra_leak(st.profile, st.plan, parse_flow(event.value, what="leak"))
         except BenchwardenError as exc:
             out.update(Text(f"✖ {exc}"))
+            return
+        if lk is None:
             return
         out.update(Text(f"with {event.value} more: steady {lk.o2_percent_steady:.2f} % O2; to 19.5 % "
                    f"{fmt_hours(lk.minutes_to_19_5 / 60)}; recovery {fmt_hours(lk.minutes_to_recover / 60)}; "
