@@ -53,8 +53,7 @@ class HoldScreen(ToolScreen):
 
     def on_mount(self) -> None:
         self.query_one("#hold-plot").display = False
-        self._show_open()
-        self.query_one("#hold-start", Input).focus()
+        self._show_open()  # the focus: FIRST_FIELD, set by TypeAhead
 
     def _supply(self) -> str:
         return str(self.query_one("#hold-supply", Select).value)

@@ -59,9 +59,6 @@ class ReadingScreen(TypeAhead, ModalScreen[Reading | None]):
         sp = next(s for s in st.plan.supplies if s.id == supply_id)
         return f"{sp.temperature_k - T0_K:.1f} degC"
 
-    def on_mount(self) -> None:
-        self.query_one("#pressure", Input).focus()
-
     def on_select_changed(self, event: Select.Changed) -> None:
         if isinstance(event.value, str):
             self.query_one("#temperature", Input).value = self._last_temperature(event.value)
@@ -248,9 +245,6 @@ class ChangeScreen(_Form):
                 yield Button("Save", variant="primary", id="save", compact=True)
                 yield Button("Cancel", id="cancel", compact=True)
 
-    def on_mount(self) -> None:
-        self.query_one("#fill", Input).focus()
-
     def save(self) -> None:
         val = lambda i: self.query_one(f"#{i}", Input).value.strip()  # noqa: E731
         try:
@@ -286,9 +280,6 @@ class StopScreen(_Form):
             with Horizontal(classes="buttons"):
                 yield Button("Stop session", variant="error", id="stop", compact=True)
                 yield Button("Keep running", id="cancel", compact=True)
-
-    def on_mount(self) -> None:
-        self.query_one("#operator", Input).focus()
 
     def save(self) -> None:
         val = lambda i: self.query_one(f"#{i}", Input).value.strip()  # noqa: E731

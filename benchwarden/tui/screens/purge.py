@@ -51,9 +51,6 @@ class PurgeScreen(ToolScreen):
             yield Static("", id="purge-result")
         yield KeysFooter()
 
-    def on_mount(self) -> None:
-        self.query_one("#purge-volume", Input).focus()
-
     def _val(self, i: str) -> str:
         return self.query_one(f"#{i}", Input).value.strip()
 

@@ -33,7 +33,6 @@ class RoomScreen(ToolScreen):
         st = self.state
         assert st.plan is not None
         r = st.plan.room
-        self.query_one("#room-leak", Input).focus()
         if r is None:
             self.query_one("#room-figures", Static).update(Text("The profile has no [room]: add its volume and "
                                                                 "ventilation."))
@@ -54,7 +53,6 @@ class RoomScreen(ToolScreen):
         last = st.last_hold_test()
         if last is not None and last.leak_rate_sccm > 0:
             self.query_one("#room-leak", Input).value = f"{last.leak_rate_sccm:.3g} sccm"
-        self.query_one("#room-leak", Input).focus()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         from benchwarden.units import parse_flow
