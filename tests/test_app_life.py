@@ -138,6 +138,10 @@ async def test_weight_reading_of_a_liquefied_supply(tmp_path):
         await pilot.press("enter")
         await _ready(app, pilot)
         assert _cell(app, "supplies-more", "sf6", "contents") == "6.60 kg"
+        # the state of the fill, not "by weight" (issue 24): 0.66 kg/L of SF6 at 19 °C is two-phase,
+        # at its vapour pressure (Guder & Wagner 2009: about 21 bar(a) at 19 °C, from memory)
+        reading = _cell(app, "supplies", "sf6", "reading")
+        assert reading.startswith("2-phase ") and 19.0 < float(reading.split()[1]) < 21.0
 
 
 async def test_stop_and_quit_ask_first_and_no_to_resume_closes_the_session(jpath):

@@ -376,6 +376,8 @@ async def test_purge_run_is_recorded_and_shown_on_the_checklist_after_a_change(j
         assert item.status == "ok" and "7 pressure cycles" in (item.figure or "") and "09:50" in (item.figure or "")
     with Journal(jpath) as j:
         (p,) = j.purges(BENCH, "n2-A")
+        (event,) = j.db.execute("SELECT payload FROM events WHERE kind = 'purge'").fetchall()  # shipped too
+    assert json.loads(event[0])["operator"] == "B. Sample"
     assert (p.operator, p.method, p.cycles, p.at[:16]) == ("B. Sample", "cycles", 7, "2026-12-01T09:50")
     assert p.gas_standard_litres > 0
 
@@ -427,6 +429,8 @@ async def test_hold_test_started_now_finished_later_with_a_reminder(jpath, size)
         (h,) = j.hold_tests(BENCH)
         (start,) = j.hold_starts(BENCH)
         last = j.last_hold_test(BENCH)
+        kinds = [k for (k,) in j.db.execute("SELECT kind FROM events WHERE kind IN ('hold-start', 'hold-test')")]
+    assert kinds == ["hold-start", "hold-test"]  # each an event, in order
     assert start.finished_by == h.id and last is not None and last.id == h.id
     assert h.supply_id == "n2-A" and h.kind == "two-readings"
     assert json.loads(h.details or "{}")["start_abs_pa"] == pytest.approx(62e5 + 101325, rel=1e-3)

@@ -38,7 +38,8 @@ def test_contents_liquefied_json_and_human(capsys):
     assert code == 2 and out == "" and "weigh" in err
     code, out, err = run(capsys, *args)
     assert code == 2 and out == "" and "weigh" in err
-    code, out, _ = run(capsys, "contents", "--gas", "co2", "--gross", "75 kg", "--tare", "68.5 kg", "--json")
+    code, out, _ = run(capsys, "contents", "--gas", "co2", "--gross", "75 kg", "--tare", "68.5 kg", "--volume", "13.4 L",
+                       "--json")
     assert json.loads(out)["mass_kg"] == pytest.approx(6.5)
 
 

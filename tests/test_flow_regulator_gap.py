@@ -167,7 +167,8 @@ def test_breakdown_rises_with_pressure_and_falls_with_temperature():
 
 def test_sf6_is_stronger_and_helium_weaker_than_air():
     air = gap.breakdown(g.parse_gas("air"), 2e-3, 2e5).breakdown_kv
-    assert gap.breakdown(g.parse_gas("sf6"), 2e-3, 2e5).breakdown_kv == pytest.approx(2.5 * air)
+    # SF6 by its own streamer relation (89·pd + 0.38 kV, issue 24), no longer 2.5 × air
+    assert gap.breakdown(g.parse_gas("sf6"), 2e-3, 2e5).breakdown_kv > 2.5 * air
     assert gap.breakdown(g.parse_gas("helium"), 2e-3, 2e5).breakdown_kv < 0.3 * air
 
 

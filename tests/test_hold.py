@@ -14,6 +14,7 @@ from benchwarden.core import gas as g
 from benchwarden.core import hold as h
 from benchwarden.core.tables import DensityTable
 from benchwarden.errors import InputError
+from benchwarden.storage.holdlog import parse_log
 
 N2 = g.parse_gas("nitrogen")
 AMB = 101325.0
@@ -124,12 +125,12 @@ def test_table_mass_matches_coolprop_per_row():
 
 def test_parse_log_formats():
     text = "elapsed (h),pressure (bar),temperature (degC)\n0,150.0,21.0\n1,149.9,20.8\n2,149.8,20.7\n"
-    lg = h.parse_log(text)
+    lg = parse_log(text)
     assert lg.t_s == (0.0, 3600.0, 7200.0)
     assert lg.p_abs_pa[0] == pytest.approx(150e5 + AMB)
     assert lg.T_k[1] == pytest.approx(293.95)
     text2 = "timestamp,pressure_psia\n2026-11-30T18:00,2000\n2026-11-30T22:00,1995\n2026-12-01T07:30,1990\n"
-    lg2 = h.parse_log(text2)
+    lg2 = parse_log(text2)
     assert lg2.t_s[-1] == pytest.approx(13.5 * 3600)
     assert lg2.p_abs_pa[0] == pytest.approx(2000 * 6894.757293168361)
 
@@ -145,7 +146,7 @@ def test_parse_log_formats():
 )
 def test_bad_logs_name_the_row(text, fragment):
     with pytest.raises(InputError, match=fragment):
-        h.parse_log(text)
+        parse_log(text)
 
 
 def test_hold_cli_json_and_errors(capsys, tmp_path):
@@ -184,3 +185,33 @@ def test_target_leak_rate_in_any_flow_unit():
     assert h.target_sccm(N2, parse_flow("0.1 slpm")) == pytest.approx(100.0)
     # a mass flow: 1 g/h of N2 is 1e-3/3600 kg/s ÷ 1.2504 kg/m³ (0 °C, 1 atm) = 13.33 sccm
     assert h.target_sccm(N2, parse_flow("1 g/h")) == pytest.approx(1e-3 / 3600 / 1.2504 * 6e7, rel=2e-4)
+
+
+def test_log_fast_path_reads_exactly_what_the_row_reader_reads():
+    # issue 28: a long log of plain numbers is read by numpy in one pass; it must give the same
+    # series as the row-by-row reader (an ISO time column forces that one)
+    import random
+
+    rnd = random.Random(3)
+    rows = [f"{i * 0.5:.2f},{150 - 0.01 * i + rnd.gauss(0, 0.01):.4f},{20 + rnd.random():.3f}" for i in range(200)]
+    text = "time (h),pressure (bar),temperature (degC)\n" + "\n".join(rows) + "\n"
+    fast = parse_log(text, ambient_pa=AMB)
+    import datetime as dt
+
+    t0_iso = dt.datetime(2026, 12, 1, tzinfo=dt.UTC)
+    iso = "timestamp,pressure (bar),temperature (degC)\n" + "\n".join(
+        (t0_iso + dt.timedelta(hours=float(r.split(",")[0]))).isoformat() + "," + r.split(",", 1)[1] for r in rows)
+    slow = parse_log(iso, ambient_pa=AMB)
+    assert slow.p_abs_pa == pytest.approx(fast.p_abs_pa, rel=1e-15) and slow.t_s == pytest.approx(fast.t_s)
+    assert slow.T_k == pytest.approx(fast.T_k, rel=1e-15)
+    # the same numbers by hand: 1 bar = 1e5 Pa (exact), 0 °C = 273.15 K (exact)
+    t0, p0, T0 = (float(x) for x in rows[7].split(","))
+    assert fast.t_s[7] == pytest.approx(t0 * 3600) and fast.p_abs_pa[7] == pytest.approx(p0 * 1e5 + AMB)
+    assert fast.T_k is not None and fast.T_k[7] == pytest.approx(T0 + 273.15)
+
+
+@pytest.mark.parametrize("cell", ["inf", "nan", "1_000", "١٥٠", "１５０", "150,5", "0x10", ""])
+def test_log_cells_that_are_not_plain_numbers_are_refused_with_their_row(cell):
+    text = f"time (h),pressure (bar)\n0,150\n1,{cell}\n2,149.8\n"
+    with pytest.raises(InputError, match="row 3"):
+        parse_log(text)

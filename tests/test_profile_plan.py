@@ -1,5 +1,6 @@
 """Bench profiles (validation, errors with file, line and key) and the session plan."""
 
+import datetime as dt
 import json
 import math
 import re
@@ -10,7 +11,8 @@ import pytest
 from benchwarden.cli import main
 from benchwarden.core import gas as g
 from benchwarden.errors import ProfileError
-from benchwarden.storage.profile import demo_profile_text, load_profile, parse_profile
+from benchwarden.storage.profile import demo_profile_text, load_profile, parse_profile, with_reading
+from benchwarden.units import parse_pressure
 from benchwarden.workflows.build import SupplyModel as _SupplyModel
 from benchwarden.workflows.build import build_plan
 
@@ -207,3 +209,23 @@ def test_errors_across_sections_name_the_line_and_key(old, new, line_of, key):
     line = text.count("\n", 0, first) + 1
     with pytest.raises(ProfileError, match=rf"b\.toml:{line}: {re.escape(key)}: "):
         parse_profile(text, "b.toml")
+
+
+def test_a_kept_memo_gives_the_same_plan_as_a_fresh_computation():
+    # issue 28: the app keeps property results between refreshes; the plan must not change
+    import dataclasses as dc
+
+    from benchwarden.workflows.build import build_plan
+    from benchwarden.workflows.model import Memo
+
+    for name in ("premix-switch-bench.toml", "demo-teaching-bench.toml"):
+        prof = load_profile(ROOT / "profiles" / name)
+        now = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+        fresh = build_plan(prof, now=now)
+        memo = Memo()
+        first = build_plan(prof, now=now, memo=memo)
+        again = build_plan(prof, now=now, memo=memo)
+        assert memo.values and dc.asdict(first) == dc.asdict(fresh) == dc.asdict(again)
+        # a reading that changes the state is not served from the memo
+        later = build_plan(with_reading(prof, prof.supplies[0].id, parse_pressure("40 bar"), 294.15), now=now, memo=memo)
+        assert later.supplies[0].mass_kg < first.supplies[0].mass_kg

@@ -12,6 +12,8 @@ import pytest
 from benchwarden.core import gas as g
 from benchwarden.core import supply
 from benchwarden.errors import InputError
+from benchwarden.render.display import Display
+from benchwarden.render.supply import contents_refusal
 from benchwarden.units import ATM_PA, REFERENCES, parse_flow
 
 N2 = g.parse_gas("nitrogen")
@@ -54,8 +56,8 @@ def test_reference_choice_changes_free_volume_by_temperature_ratio():
 def test_liquefied_co2_has_no_pressure_based_contents():
     co2 = g.parse_gas("co2")
     c = supply.contents(co2, 0.05, 58e5, 293.15)
-    assert c.liquefied and c.mass_kg is None
-    assert "weigh" in c.notes[0]
+    assert c.liquefied and c.mass_kg is None and c.flags == ("liquefied",)
+    assert "weigh" in contents_refusal(c, Display())
     # above the critical temperature the pressure does tell the contents
     assert supply.contents(co2, 0.05, 80e5, 313.15).mass_kg > 0
     # below the vapour pressure only vapour is left: pressure-based contents again
@@ -64,12 +66,14 @@ def test_liquefied_co2_has_no_pressure_based_contents():
 
 
 def test_contents_by_weight():
-    c = supply.contents_by_weight(g.parse_gas("sf6"), 60.0, 50.0)
+    c = supply.contents_by_weight(g.parse_gas("sf6"), 60.0, 50.0, volume_m3=0.01)
     assert c.mass_kg == pytest.approx(10.0)
     # ideal free volume of 10 kg SF6 at 15 °C, 1 atm: n·R·T/p
     assert c.ideal_free_volume_m3 == pytest.approx(10.0 / 0.1460554 * g.R * 288.15 / ATM_PA)
     with pytest.raises(InputError, match="below the tare"):
-        supply.contents_by_weight(g.parse_gas("sf6"), 40.0, 50.0)
+        supply.contents_by_weight(g.parse_gas("sf6"), 40.0, 50.0, volume_m3=0.01)
+    with pytest.raises(InputError, match="water volume"):
+        supply.contents_by_weight(g.parse_gas("sf6"), 60.0, 50.0)
 
 
 def test_heat_up_low_pressure_is_gay_lussac():

@@ -24,9 +24,11 @@ from benchwarden.cli.common import (
 )
 from benchwarden.core import hold as hd
 from benchwarden.errors import JournalError
+from benchwarden.render.budget import budget_assumption
 from benchwarden.render.display import Display
 from benchwarden.render.findings import verdict_words
 from benchwarden.render.numbers import fmt_uncertain
+from benchwarden.storage.holdlog import parse_log
 from benchwarden.units import (
     parse_duration,
     parse_flow,
@@ -72,6 +74,8 @@ def configure(sub: Any, name: str) -> None:
                    help="standard uncertainty of each temperature (default 0.5 K; 1 K when no temperatures are given)")
     p.add_argument("--gauge-range", help="gauge full scale, e.g. '250 bar'")
     p.add_argument("--gauge-class", type=float, help="gauge accuracy class (EN 837-1), e.g. 1.6")
+    p.add_argument("--gauge-repeatability", help="the maker's repeatability (± limit), used for the difference "
+                                                 "of the two readings, e.g. '0.05 bar'")
     p.add_argument("--resolution", help="smallest reading step, e.g. '1 bar'; adds resolution/√12 to each "
                                         "reading's MPE/√3 (default: none beyond the class)")
     p.add_argument("--target", help="leak rate that matters, e.g. '10 sccm' (default 1 %% of contents per day)")
@@ -90,13 +94,17 @@ def configure(sub: Any, name: str) -> None:
 def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
     if (args.gauge_range is None) != (args.gauge_class is None):
         raise input_error("--gauge-range and --gauge-class go together")
+    if args.gauge_repeatability is not None and args.gauge_range is None:
+        raise input_error("--gauge-repeatability needs --gauge-range and --gauge-class")
     if args.gauge_range is None:
         if args.resolution:
             raise input_error("--resolution needs --gauge-range and --gauge-class")
         return None
     span = pressure_abs(args.gauge_range, amb, "gauge range") - amb
     res = pressure_abs(args.resolution, 0.0, "resolution") if args.resolution else None
-    return holds.gauge_spec(span, args.gauge_class, res)
+    rep = (pressure_abs(args.gauge_repeatability, amb, "gauge repeatability") - amb
+           if args.gauge_repeatability is not None else None)
+    return holds.gauge_spec(span, args.gauge_class, res, rep)
 
 
 def cmd_hold(args: argparse.Namespace) -> int:
@@ -118,7 +126,7 @@ def cmd_hold(args: argparse.Namespace) -> int:
         except (OSError, UnicodeDecodeError) as exc:
             raise input_error(f"cannot read log {args.log}: {getattr(exc, 'strerror', None) or exc}") from None
         T_def = parse_temperature(args.t_start) if args.t_start else 293.15
-        fit = hd.hold_from_log(g_, V, hd.parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
+        fit = hd.hold_from_log(g_, V, parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
                                reserve, amb)
         r = fit.result
     else:
@@ -132,7 +140,7 @@ def cmd_hold(args: argparse.Namespace) -> int:
             gauge, u_T, target, reserve, amb)
     saved = _record(args, r, "log" if fit is not None else "two-readings")
     if args.json:
-        out = asdict(r) | {"saved_to_journal": saved}
+        out = asdict(r) | {"saved_to_journal": saved, "budget_assumption": budget_assumption(r)}
         if fit is not None:
             out |= {"log_rows": fit.n, "slope_se_kg_s": fit.slope_se_kg_s, "residual_rms_kg": fit.residual_rms_kg,
                     "residual_max_kg": fit.residual_max_kg, "residual_rms_pa": fit.residual_rms_pa,
@@ -171,6 +179,9 @@ def _rows(gas_name: str, V: float, r: hd.HoldResult, fit: hd.LogFit | None, d: D
 
 def _notes(r: hd.HoldResult, gauge: hd.GaugeSpec | None, d: Display) -> list[str]:
     notes = list(r.notes)
+    assumption = budget_assumption(r)
+    if assumption:
+        notes.append(assumption)
     if gauge is not None and r.astm_resolution_ok is False:
         res = gauge.resolution_pa if gauge.resolution_pa is not None else gauge.mpe_pa
         notes.append(f"ASTM E2930 rule: resolution {d.difference(res)} should be ≤ 1/10 of the "

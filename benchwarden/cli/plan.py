@@ -24,10 +24,13 @@ from benchwarden.cli.common import (
 from benchwarden.core.flow import orifice_flow
 from benchwarden.core.gap import breakdown
 from benchwarden.core.regulator import throttle
+from benchwarden.render.equipment import orifice_notes, orifice_rows, throttle_notes
+from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
 from benchwarden.render.plan import format_plan, plan_json
 from benchwarden.storage.profile import load_profile
 from benchwarden.units import parse_flow, parse_length, parse_temperature, pressure_abs
 from benchwarden.workflows.bench import assess, leak_volume_flow
+from benchwarden.workflows.findings import outlet_findings
 
 
 def configure(sub: Any, name: str) -> None:
@@ -97,15 +100,23 @@ def cmd_throttle(args: argparse.Namespace) -> int:
     p_in = pressure_abs(args.inlet, amb, "inlet pressure")
     p_out = pressure_abs(args.outlet, amb, "outlet pressure")
     t = throttle(g_, p_in, p_out, parse_temperature(args.temperature))
+    found = outlet_findings("the regulator", t.gas_name, t.outlet_temperature_k, t.solid_forms, t.liquid_forms,
+                            t.dry_ice_margin_k)
+    notes = throttle_notes(t, d)
     if args.json:
-        emit_json(asdict(t))
+        emit_json(asdict(t) | {"notes": notes, "findings": [finding_dict(f, d) for f in found]})
         return 0
-    emit_table("Regulator outlet (isenthalpic)", [
-        ("gas", t.gas_name), ("inlet", f"{d.both(p_in)} at {d.temperature(t.inlet_temperature_k)}"),
+    rows = [
+        ("gas", t.gas_name), ("inlet", f"{d.both(p_in)} at {d.temperature(t.inlet_temperature_k)}"
+                              + (" (saturated vapour)" if t.inlet_saturated else "")),
         ("outlet", d.both(p_out)),
         ("outlet temperature", f"{d.temperature(t.outlet_temperature_k)} (change {d.temperature_change(t.temperature_change_k)})"),
-        ("solid forms", "yes" if t.solid_forms else "no"), ("liquid forms", "yes" if t.liquid_forms else "no"),
-        ("method", t.method)], t.notes)
+        ("solid forms", "yes" if t.solid_forms else "no"), ("liquid forms", "yes" if t.liquid_forms else "no")]
+    if t.dry_ice_margin_k is not None:
+        rows.append(("dry-ice margin", f"{t.dry_ice_margin_k:.1f} K above the line where solid forms"))
+    rows.append(("method", t.method))
+    emit_table("Regulator outlet (isenthalpic)", rows,
+               [f"{SEVERITY_MARK[f.severity]}: {' '.join(describe(f, d))}" for f in found] + notes)
     return 0
 
 
@@ -116,13 +127,15 @@ def cmd_gap(args: argparse.Namespace) -> int:
     if args.json:
         out = asdict(b)
         if not b.within_validity:
-            out["breakdown_kv"] = None  # no figure outside the methods' validity
+            out["breakdown_kv"] = out["breakdown_high_kv"] = None  # no figure outside the methods' validity
         emit_json(out)
         return 0
     if not b.within_validity:
         shown = "WARNING: outside the validity of the methods (below)"
     elif math.isfinite(b.breakdown_kv):
-        shown = f"{b.breakdown_kv:.2f} kV"
+        shown = f"{b.breakdown_kv:.2f} kV" + (f" (upper estimate {b.breakdown_high_kv:.2f} kV, used for flashover "
+                                              "margins)" if b.breakdown_high_kv > b.breakdown_kv else
+                                              " (the upper estimate, used for flashover margins)")
     else:
         shown = "none predicted: p·d is left of the Paschen curve's asymptote"
     emit_table("Spark gap self-breakdown (estimate)", [
@@ -144,10 +157,5 @@ def cmd_orifice(args: argparse.Namespace) -> int:
     if args.json:
         emit_json(asdict(o))
         return 0
-    emit_table("Orifice flow", [
-        ("gas", g_.name), ("upstream", d.both(up)), ("downstream", d.both(down)),
-        ("flow", f"{o.mass_flow_kg_s * 6e4:.4g} g/min = {o.standard_flow_slpm:.4g} slpm (0 °C, 101.325 kPa)"),
-        ("ideal-gas nozzle", f"{o.ideal_mass_flow_kg_s * 6e4:.4g} g/min (comparison)"),
-        ("regime", f"{'choked' if o.choked else 'subcritical'} (critical ratio {o.critical_ratio:.3f}, k = {o.k:.3f})"),
-        ("method", o.method)])
+    emit_table("Orifice flow", orifice_rows(o, g_.name, up, down, d), orifice_notes(o))
     return 0

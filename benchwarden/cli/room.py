@@ -15,6 +15,7 @@ from benchwarden.cli.common import (
     add_gas,
     add_json,
     ambient,
+    display,
     emit_json,
     emit_table,
     gas,
@@ -22,9 +23,10 @@ from benchwarden.cli.common import (
 )
 from benchwarden.render.hazards import hazard_items
 from benchwarden.render.room import floor_words, leak_rows, release_oxygen_words
+from benchwarden.render.supply import contents_refusal
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
 from benchwarden.units.quantities import parse_amount, parse_ventilation
-from benchwarden.workflows.roomcheck import leak_check, release_check
+from benchwarden.workflows.roomcheck import ContentsUnknown, leak_check, release_check
 
 
 def configure(sub: Any, name: str) -> None:
@@ -71,8 +73,11 @@ def cmd_room(args: argparse.Namespace) -> int:
     if args.supply_volume is not None:
         sv = parse_volume(args.supply_volume, "supply volume")
         sp = pressure_abs(args.supply_pressure, amb, "supply pressure")
-    ck = leak_check(g_, V, parse_flow(args.leak, reference=args.flow_reference, what="leak"), Q,
-                    args.ventilation_kind, args.oxygen, T, amb, sv, sp)
+    try:
+        ck = leak_check(g_, V, parse_flow(args.leak, reference=args.flow_reference, what="leak"), Q,
+                        args.ventilation_kind, args.oxygen, T, amb, sv, sp)
+    except ContentsUnknown as exc:
+        raise input_error(contents_refusal(exc.contents, display(args, amb))) from None
     return _leak(args, ck, V, Q)
 
 

@@ -19,15 +19,24 @@ from benchwarden.cli.common import (
     input_error,
 )
 from benchwarden.core import supply
+from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.render.supply import (
+    contents_notes,
+    contents_refusal,
+    phase_words,
+    sensitivity_words,
+)
 from benchwarden.units import (
     get_reference,
     parse_flow,
     parse_mass,
     parse_temperature,
+    parse_temperature_difference,
     parse_volume,
     pressure_abs,
 )
 from benchwarden.units.constants import T_FULL_K
+from benchwarden.workflows.findings import contents_findings
 
 
 def configure(sub: Any, name: str) -> None:
@@ -37,9 +46,11 @@ def configure(sub: Any, name: str) -> None:
         p.add_argument("--volume", help="cylinder water volume, e.g. '50 L'")
         p.add_argument("--pressure", help="gauge reading, e.g. '200 bar' (or '150 bar(a)')")
         p.add_argument("--temperature", help="gas temperature, e.g. '20 degC'")
-        p.add_argument("--gross", help="gross weight (liquefied gases), e.g. '75.2 kg'")
+        p.add_argument("--gross", help="gross weight (liquefied gases; with --tare and --volume), e.g. '75.2 kg'")
         p.add_argument("--tare", help="tare weight stamped on the cylinder, e.g. '68.5 kg'")
         p.add_argument("--reference", default="15C", help="free-gas reference: 0C, 15C (default), 20C, 70F")
+        p.add_argument("--temperature-uncertainty", default="1 K",
+                       help="standard uncertainty of the temperature (default 1 K): gives the mass uncertainty")
         add_ambient(p)
         add_display(p)
         add_json(p)
@@ -75,20 +86,26 @@ def cmd_contents(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     ref = get_reference(args.reference)
     T = parse_temperature(args.temperature) if args.temperature else T_FULL_K
+    u_T = parse_temperature_difference(args.temperature_uncertainty)
     if (args.gross is None) != (args.tare is None):
         raise input_error("--gross and --tare go together: give both weights")
     if args.gross is not None:
+        if not args.volume:
+            raise input_error("--gross and --tare need --volume (the cylinder's water volume): without it the state "
+                              "in the cylinder (two-phase, liquid-full, supercritical) and its pressure are unknown")
         c = supply.contents_by_weight(g_, parse_mass(args.gross, "gross weight"), parse_mass(args.tare, "tare weight"),
-                                      ref, T, parse_volume(args.volume) if args.volume else None)
+                                      ref, T, parse_volume(args.volume, "cylinder volume"))
     else:
         if not (args.volume and args.pressure and args.temperature):
-            raise input_error("contents needs --volume, --pressure and --temperature (or --gross and --tare)")
-        c = supply.contents(g_, parse_volume(args.volume, "cylinder volume"), pressure_abs(args.pressure, amb), T, ref)
+            raise input_error("contents needs --volume, --pressure and --temperature (or --gross, --tare and --volume)")
+        c = supply.contents(g_, parse_volume(args.volume, "cylinder volume"), pressure_abs(args.pressure, amb), T, ref,
+                            u_T)
     if c.mass_kg is None:
         # no pressure-based contents: the same one line and exit status in text and JSON modes
-        if c.phase == "liquid-full":
-            raise input_error(c.notes[0])
-        raise input_error(c.notes[0] + " Use --gross and --tare.")
+        raise input_error(contents_refusal(c, d))
+    found = contents_findings(c)
+    notes = [f"{SEVERITY_MARK[f.severity]}: {describe(f, d)[0]} [{describe(f, d)[1]}]" for f in found]
+    notes += contents_notes(c, d)
     if args.json:
         out = asdict(c)
         out["reference_temperature_k"] = ref.temperature_k
@@ -96,6 +113,8 @@ def cmd_contents(args: argparse.Namespace) -> int:
         out["reference"] = ref.label
         out["ambient_pressure_pa"] = amb
         out["pressure_gauge_pa"] = None if c.pressure_abs_pa is None else c.pressure_abs_pa - amb
+        out["notes"] = contents_notes(c, d)
+        out["findings"] = [finding_dict(f, d) for f in found]
         emit_json(out)
         return 0
     rows = [("gas", c.gas_name)]
@@ -103,20 +122,22 @@ def cmd_contents(args: argparse.Namespace) -> int:
         rows.append(("pressure", d.both(c.pressure_abs_pa)))
     rows.append(("temperature", d.temperature(c.temperature_k)))
     assert c.free_volume_m3 is not None
+    rows.append(("phase", phase_words(c.phase, d, None, c.liquid_full_temperature_k, c.vapour_fraction)))
     if c.density_kg_m3 is not None:
-        rows += [("density", f"{c.density_kg_m3:.3f} kg/m³"), ("Z", f"{c.z:.4f}")]
-    if c.phase == "two-phase":
-        rows.append(("phase", f"two-phase: vapour fraction {c.vapour_fraction:.2f} (by moles)"))
+        rows.append(("density", f"{c.density_kg_m3:.3f} kg/m³" + (f", Z {c.z:.4f}" if c.z is not None else "")))
     if c.filling_ratio_kg_l is not None:
         rows.append(("filling ratio", f"{c.filling_ratio_kg_l:.3f} kg/L" + (" (OVERFILLED)" if c.overfilled else "")))
     rows += [
         ("mass", f"{c.mass_kg:.3f} kg"),
         ("free gas", f"{c.free_volume_m3:.3f} m³ = {c.free_volume_m3 * 1000:.0f} L at {ref.label}"),
     ]
+    if c.mass_uncertainty_kg is not None and c.mass_sensitivity_kg_per_k is not None:
+        rows.append(("temperature sensitivity", sensitivity_words(c.mass_kg, c.mass_sensitivity_kg_per_k,
+                                                                  c.mass_uncertainty_kg, u_T)))
     if c.ideal_free_volume_m3 is not None:
         rows.append(("ideal gas (p·V/T)", f"{c.ideal_free_volume_m3:.3f} m³; real differs by {c.real_vs_ideal_percent:+.1f} %"))
     rows.append(("method", c.method))
-    emit_table("Cylinder contents", rows, c.notes)
+    emit_table("Cylinder contents", rows, notes)
     return 0
 
 

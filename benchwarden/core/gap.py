@@ -9,9 +9,18 @@ Methods
 * Below that: Paschen's law, V = B·p·d / (ln(A·p·d) − ln(ln(1 + 1/γ))), with A and B for
   each gas from Raizer, "Gas Discharge Physics", 1991, Table 4.1 (values from memory) and
   γ = 0.01.
+* SF6, p·d ≥ 0.1 bar·cm: its own uniform-field relation from the streamer criterion with a
+  linear effective ionisation coefficient, (α − η)/p = A·(E/p − (E/p)_crit), A = 27.7 kV⁻¹,
+  (E/p)_crit ≈ 89 kV/(cm·bar) at 20 °C, ∫(α − η)dx = K = 10.5:
+  U_b = (E/p)_crit·p·d + K/A = 89·(p·d) + 0.38 kV (Kuffel, Zaengl & Kuffel 2000, §2.10;
+  Christophorou & Van Brunt, IEEE Trans. Dielectr. Electr. Insul. 2 (1995) 952; constants from
+  memory). Rough above about 3 bar and with rough or large electrodes: SF6 then breaks down
+  below it (its breakdown is very sensitive to surface roughness), so this figure is the upper
+  estimate.
 * Other gases at high p·d: the air formula times the gas's relative dielectric strength
-  (SF6 ≈ 2.5 common practice; noble gases far below air), for mixtures the mole-fraction
-  weighted strength, which is a rough estimate (mixtures are not linear).
+  (noble gases far below air; for SF6 in a mixture ≈ 2.5, common practice), for mixtures the
+  mole-fraction weighted strength, which is a rough estimate (mixtures are not linear): its
+  upper estimate is 20 % higher (:data:`ROUGH_SPREAD`).
 
 Real gaps differ: electrode shape (field utilisation factor), surface condition, ageing,
 polarity, irradiation and the rise time of the pulse (overvolted, impulse breakdown) all move
@@ -62,6 +71,18 @@ RELATIVE_STRENGTH: dict[str, float] = {
     "xenon": 0.45,
 }
 
+#: SF6's critical reduced field [kV/(cm·bar)] at 20 °C, the slope A of its effective ionisation
+#: coefficient [1/kV] and the streamer constant K (Kuffel, Zaengl & Kuffel 2000; from memory).
+SF6_CRITICAL_FIELD_KV_CM_BAR = 89.0
+SF6_IONISATION_SLOPE_PER_KV = 27.7
+SF6_STREAMER_K = 10.5
+#: Upper estimate of a rough method (relative strengths, Paschen constants of other gases, mixtures):
+#: 20 % above the estimate (the spread of RELATIVE_STRENGTH, common practice).
+ROUGH_SPREAD = 0.20
+#: Gases whose method is a smooth-electrode, uniform-field value (the upper estimate itself:
+#: real electrodes fire lower).
+_UPPER_METHODS = ("air", "nitrogen", "sulfur hexafluoride")
+
 #: Flashover strength of a short, non-uniform air clearance: about 1 kV per mm (common practice).
 AIR_FLASHOVER_KV_PER_MM = 1.0
 
@@ -71,6 +92,19 @@ def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA)
 
     Returns ``inf`` left of the Paschen minimum's asymptote, where no breakdown occurs.
 
+    Parameters
+    ----------
+    pd_torr_cm : Pressure × spacing, [Torr·cm]
+    A : [1/(cm·Torr)]
+    B : [V/(cm·Torr)]
+    gamma : Secondary emission coefficient, [-]
+
+    References
+    ----------
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
+
+    Examples
+    --------
     >>> round(paschen_voltage(1.0, 15.0, 365.0))
     310
     """
@@ -82,7 +116,18 @@ def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA)
 
 def paschen_minimum(A: float, B: float, gamma: float = GAMMA) -> tuple[float, float]:
     """(p·d at the minimum [Torr·cm], minimum voltage [V]) of Paschen's law:
-    (pd)_min = e·ln(1 + 1/γ)/A, V_min = B·(pd)_min."""
+    (pd)_min = e·ln(1 + 1/γ)/A, V_min = B·(pd)_min.
+
+    Parameters
+    ----------
+    A : [1/(cm·Torr)]
+    B : [V/(cm·Torr)]
+    gamma : Secondary emission coefficient, [-]
+
+    References
+    ----------
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
+    """
     pd = math.e * math.log(1.0 + 1.0 / gamma) / A
     return pd, B * pd
 
@@ -91,14 +136,70 @@ def air_uniform_field_kv(pd_bar_cm_20c: float) -> float:
     """Empirical breakdown voltage [kV] of air in a uniform field, p·d in bar·cm at 20 °C:
     U = 6.72·√(pd) + 24.36·pd (Kuffel, Zaengl & Kuffel 2000).
 
+    Parameters
+    ----------
+    pd_bar_cm_20c : Pressure × spacing at 20 °C, [bar·cm]
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+
+    Examples
+    --------
     >>> round(air_uniform_field_kv(1.01325), 1)   # 1 cm at 1 atm, 20 °C: about 31 kV
     31.4
     """
     return 6.72 * math.sqrt(pd_bar_cm_20c) + 24.36 * pd_bar_cm_20c
 
 
+def sf6_uniform_field_kv(pd_bar_cm_20c: float) -> float:
+    """Uniform-field breakdown voltage [kV] of SF6, p·d in bar·cm at 20 °C, from the streamer
+    criterion: U = (E/p)_crit·pd + K/A = 89·pd + 0.38 kV (see module docstring).
+
+    Parameters
+    ----------
+    pd_bar_cm_20c : Pressure × spacing at 20 °C, [bar·cm]
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+    Christophorou & Van Brunt, IEEE Trans. Dielectr. Electr. Insul. 2 (1995) 952–1003.
+
+    Examples
+    --------
+    >>> [round(sf6_uniform_field_kv(pd)) for pd in (1.0, 5.0, 20.0)]   # issue 24: about 89/445/1780 kV
+    [89, 445, 1780]
+    """
+    return SF6_CRITICAL_FIELD_KV_CM_BAR * pd_bar_cm_20c + SF6_STREAMER_K / SF6_IONISATION_SLOPE_PER_KV
+
+
+def upper_spread(gas: g.Gas) -> float:
+    """How far above the estimate its upper estimate lies: 0 where the method is itself a
+    smooth-electrode uniform-field value (air, nitrogen, SF6), :data:`ROUGH_SPREAD` otherwise.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    References
+    ----------
+    benchwarden rule (common practice for the spread of relative strengths).
+    """
+    pure = None if gas.is_mixture else gas.components[0][0].key
+    return 0.0 if pure in _UPPER_METHODS else ROUGH_SPREAD
+
+
 def relative_strength(gas: g.Gas) -> float:
-    """Mole-fraction-weighted dielectric strength relative to air (rough for mixtures)."""
+    """Mole-fraction-weighted dielectric strength relative to air (rough for mixtures).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    References
+    ----------
+    Common practice (values from memory, ±20 %).
+    """
     return sum(x * RELATIVE_STRENGTH.get(c.key, 1.0) for c, x in gas.components)
 
 
@@ -114,6 +215,8 @@ def _high_pd_kv(gas: g.Gas, pd: Any) -> Any:
     import numpy as np
 
     pd = np.asarray(pd, dtype=float)
+    if not gas.is_mixture and gas.components[0][0].key == "sulfur hexafluoride":
+        return SF6_CRITICAL_FIELD_KV_CM_BAR * pd + SF6_STREAMER_K / SF6_IONISATION_SLOPE_PER_KV
     return (6.72 * np.sqrt(np.clip(pd, 0.0, None)) + 24.36 * pd) * relative_strength(gas)
 
 
@@ -135,6 +238,15 @@ def join_parameters(gas: g.Gas) -> tuple[float, float] | None:
     is recovered towards the minimum. The exponent n ≤ 1 is chosen so that the joined curve
     keeps rising at pd_j (where c < 0 it must not exceed the Paschen curve's logarithmic slope
     × (1 + c)/(−c)); the join is an interpolation of ours between two published methods.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
     """
     pure = None if gas.is_mixture else gas.components[0][0].key
     if pure not in PASCHEN:
@@ -154,7 +266,20 @@ def breakdown_series(gas: g.Gas, spacing_m: float, p_abs: Any, T: float = T_REF)
     """Self-breakdown voltages [kV] for an array of absolute pressures [Pa] (numpy): the one
     implementation of the methods in the module docstring, joined continuously at
     p·d = 0.1 bar·cm (:func:`join_parameters`). ``inf`` where Paschen's law predicts no
-    breakdown (left of its asymptote)."""
+    breakdown (left of its asymptote).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    spacing_m : Gap spacing, [m]
+    p_abs : Absolute pressures, [Pa]
+    T : Temperature, [K]
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
+    """
     import numpy as np
 
     check_positive(spacing_m, "gap spacing", "m")
@@ -182,6 +307,8 @@ class Breakdown:
     within_validity: bool
     method: str
     validity: str
+    #: the upper estimate of the firing voltage [kV] (flashover margins use it)
+    breakdown_high_kv: float = math.nan
 
 
 def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> Breakdown:
@@ -191,6 +318,20 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     p·d = 100 bar·cm the methods are outside their stated validity: ``within_validity`` is
     False and the figure must not be shown as a firing voltage.
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    spacing_m : Gap spacing, [m]
+    p_abs : Absolute pressure, [Pa]
+    T : Temperature, [K]
+
+    References
+    ----------
+    Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
+    Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
+
+    Examples
+    --------
     >>> b = breakdown(g.parse_gas("nitrogen"), 3e-3, 4.0e5)
     >>> round(b.breakdown_kv, 1), b.method.split(",")[0]
     (36.6, 'empirical uniform-field formula for air (Kuffel')
@@ -204,10 +345,16 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     if pd_bar_cm >= PD_JOIN or pure not in PASCHEN:
         if pure in ("air", "nitrogen"):
             method = "empirical uniform-field formula for air (Kuffel, Zaengl & Kuffel 2000)"
+        elif pure == "sulfur hexafluoride":
+            method = ("SF6 streamer criterion, 89·(p·d) + 0.38 kV ((E/p)crit ≈ 89 kV/(cm·bar); Kuffel, Zaengl & "
+                      "Kuffel 2000)")
         else:
             method = ("air formula × relative dielectric strength "
                       f"{relative_strength(gas):.2f} (common practice, rough)")
         validity = "uniform field, 0.1 to ~100 bar·cm; static breakdown"
+        if pure == "sulfur hexafluoride":
+            validity += ("; rough above about 3 bar or with rough electrodes (SF6 then fires lower: this is the "
+                         "upper estimate)")
         if pd_bar_cm < PD_JOIN:
             validity = "below 0.1 bar·cm the air formula is extrapolated: rough"
     else:
@@ -219,7 +366,8 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     if not within:
         validity = (f"p·d = {pd_bar_cm:.0f} bar·cm is beyond the ~{PD_MAX:.0f} bar·cm the methods cover: "
                     "no estimate")
-    return Breakdown(gas.name, spacing_m, p_abs, T, pd_bar_cm, kv, within, method, validity)
+    return Breakdown(gas.name, spacing_m, p_abs, T, pd_bar_cm, kv, within, method, validity,
+                     kv * (1.0 + upper_spread(gas)))
 
 
 @dataclass(frozen=True)
@@ -232,15 +380,32 @@ class Margin:
     margin_percent: float
     status: str  # "ok" | "attention" | "stop"
     method: str
+    #: the firing voltage the margin is taken against [kV]: the gap's upper estimate
+    firing_kv: float = math.nan
 
 
 def flashover_margin(part: str, breakdown_kv: float, clearance_m: float, rating_kv: float | None) -> Margin:
-    """Margin of an exposed high-voltage part against the gap's firing voltage.
+    """Margin of an exposed high-voltage part against the gap's firing voltage; pass the *upper*
+    estimate (:attr:`Breakdown.breakdown_high_kv`): a gap that fires higher than planned leaves
+    less margin.
 
     Withstand = min(clearance × 1 kV/mm (short non-uniform air gaps, common practice), rating).
     Status: ``stop`` when the firing voltage reaches the withstand, ``attention`` below 20 %
     margin, else ``ok``.
 
+    Parameters
+    ----------
+    part : the exposed part's name
+    breakdown_kv : Firing voltage (the upper estimate), [kV]
+    clearance_m : Air clearance, [m]
+    rating_kv : The part's voltage rating, [kV], or None
+
+    References
+    ----------
+    Common practice (about 1 kV/mm for a short, non-uniform air clearance).
+
+    Examples
+    --------
     >>> m = flashover_margin("feedthrough", 30.0, 25e-3, 40.0)
     >>> m.withstand_kv, m.margin_kv, m.status
     (25.0, -5.0, 'stop')
@@ -252,6 +417,6 @@ def flashover_margin(part: str, breakdown_kv: float, clearance_m: float, rating_
     pct = 100.0 * margin / breakdown_kv if breakdown_kv > 0 else math.inf
     status = "stop" if margin <= 0 else ("attention" if pct < 20.0 else "ok")
     return Margin(part, clearance_m, rating_kv, withstand, margin, pct, status,
-                  "clearance × 1 kV/mm (common practice) or rating, whichever is lower")
+                  "clearance × 1 kV/mm (common practice) or rating, whichever is lower", breakdown_kv)
 
 

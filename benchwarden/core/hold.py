@@ -27,11 +27,7 @@ accuracy four times finer than the pressure change the target leak causes over t
 
 from __future__ import annotations
 
-import csv
-import datetime as dt
-import io
 import math
-import re
 from dataclasses import dataclass
 
 from benchwarden.core import gas as g
@@ -57,11 +53,37 @@ K_EXPANDED = 2.0
 
 @dataclass(frozen=True)
 class GaugeSpec:
-    """A gauge: span [Pa] (full scale minus zero), accuracy class [% of span], resolution [Pa]."""
+    """A gauge: span [Pa] (full scale minus zero), accuracy class [% of span], resolution [Pa],
+    and the maker's repeatability [Pa, a ± limit] where one is given."""
 
     span_pa: float
     accuracy_class: float
     resolution_pa: float | None = None
+    repeatability_pa: float | None = None
+
+    @property
+    def budget(self) -> str:
+        """How a difference of two readings is budgeted: ``repeatability`` (the maker's figure:
+        the gauge's systematic error cancels in the difference) or ``uncorrelated`` (each reading
+        carries the full class error, as if independent: conservative)."""
+        return "repeatability" if self.repeatability_pa is not None else "uncorrelated"
+
+    @property
+    def u_difference_pa(self) -> float:
+        """Standard uncertainty of each of the two readings of a difference (GUM, JCGM 100:2008,
+        §5.2 correlated inputs): with a declared repeatability r, u = r/√3 ⊕ resolution/√12 (the
+        systematic part of the error is common to both readings and cancels in their difference);
+        without one, the full :attr:`u_reading_pa` (the readings taken as uncorrelated).
+
+        >>> round(GaugeSpec(250e5, 1.0, None, 0.05e5).u_difference_pa)   # 0.05 bar / √3
+        2887
+        """
+        if self.repeatability_pa is None:
+            return self.u_reading_pa
+        u = self.repeatability_pa / SQRT3
+        if self.resolution_pa is not None:
+            u = math.hypot(u, self.resolution_pa / (2.0 * SQRT3))
+        return u
 
     @property
     def mpe_pa(self) -> float:
@@ -249,6 +271,10 @@ class HoldResult:
     #: pressure change the target leak causes over this hold [Pa] (ASTM E2930 rules compare the
     #: gauge's resolution and accuracy with it)
     target_pressure_change_pa: float = math.nan
+    #: how the two readings' gauge errors were budgeted: ``uncorrelated`` (no repeatability
+    #: declared: each reading carries the full class error), ``repeatability`` (the maker's
+    #: figure, used for the difference), or ``none`` (no gauge given)
+    pressure_budget: str = "uncorrelated"
 
 
 def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: float, T2: float,
@@ -292,7 +318,7 @@ def _common(gas: g.Gas, V: float, duration: float, p1: float, p2: float, T1: flo
         pa_m3_s_from_sccm(sccm), pa_m3_s_from_sccm(sccm) * 10.0, mdot * SECONDS_PER_DAY,
         100.0 * mdot * SECONDS_PER_DAY / m1 if m1 > 0 else math.nan, mdot / dmdp_end * SECONDS_PER_DAY if dmdp_end > 0 else math.nan,
         U, target_sccm, verdict, h_res, max(0.0, h_empty), hold_needed, res_ok, acc_ok, tuple(notes), method,
-        dp_target)
+        dp_target, gauge.budget if gauge is not None else "none")
 
 
 def hold_two_readings(
@@ -331,7 +357,7 @@ def hold_two_readings(
     assert T_start is not None and T_end is not None
     m1, dm1p, dm1T = _dm(gas, volume_m3, T_start, p_start)
     m2, dm2p, dm2T = _dm(gas, volume_m3, T_end, p_end)
-    u_p = gauge.u_reading_pa if gauge is not None else 0.0
+    u_p = gauge.u_difference_pa if gauge is not None else 0.0
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
     u_T_eff = u_T if temps_given else max(u_T, U_T_UNMEASURED)
@@ -350,94 +376,6 @@ class HoldLog:
     t_s: tuple[float, ...]
     p_abs_pa: tuple[float, ...]
     T_k: tuple[float, ...] | None
-
-
-_TIME_UNITS = {"s": 1.0, "sec": 1.0, "min": 60.0, "h": 3600.0, "hr": 3600.0, "d": SECONDS_PER_DAY, "day": SECONDS_PER_DAY}
-
-
-def _header_unit(name: str) -> tuple[str, str | None]:
-    n = name.strip()
-    m = re.fullmatch(r"(.*?)\s*[\(\[]\s*([^\)\]]+)\s*[\)\]]\s*", n)
-    if m:
-        return m.group(1).strip().lower(), m.group(2).strip()
-    m = re.fullmatch(r"([A-Za-z]+)_(.+)", n)
-    if m:
-        return m.group(1).lower(), m.group(2)
-    return n.lower(), None
-
-
-def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = ATM_PA) -> HoldLog:
-    """Parse a hold-test log (CSV): a time column (elapsed with a unit, or ISO timestamps), a
-    pressure column (gauge unless the unit is marked absolute; unit in the header, e.g.
-    ``pressure (bar)``/``pressure_psi``, or given as ``pressure_unit``) and an optional
-    temperature column (``temperature (degC)``, ``T_K``). Errors name the row."""
-    from benchwarden.units import parse_temperature, pressure_abs
-
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    if not lines:
-        raise InputError("the log is empty; it needs a header row and at least two readings")
-    delimiter = ";" if lines[0].count(";") > lines[0].count(",") else ","
-    rows = list(csv.reader(io.StringIO("\n".join(lines)), delimiter=delimiter))
-    rows = [r for r in rows if r and any(c.strip() for c in r)]
-    if len(rows) < 3:
-        raise InputError("the log needs a header row and at least two readings")
-    width = len(rows[0])
-    for n, r in enumerate(rows[1:], start=2):
-        if len(r) != width:
-            raise InputError(f"log row {n} has {len(r)} fields where the header has {width}: write numbers with a "
-                             "decimal point and no thousands separators")
-        if delimiter == ";" and any("," in c for c in r):
-            raise InputError(f"log row {n}: decimal commas are not read; write decimal points (e.g. 150.5)")
-    header = [_header_unit(h) for h in rows[0]]
-    idx_t = idx_p = idx_T = None
-    for i, (name, _) in enumerate(header):
-        if idx_t is None and name in ("t", "time", "elapsed", "timestamp", "datetime", "date"):
-            idx_t = i
-        elif idx_p is None and name in ("p", "pressure", "reading", "gauge"):
-            idx_p = i
-        elif idx_T is None and (name in ("temperature", "temp", "t_c", "t_k") or (name == "t" and idx_t is not None)):
-            idx_T = i
-    if idx_t is None or idx_p is None:
-        raise InputError("log header needs a time column (time/elapsed/timestamp) and a pressure column "
-                         f"(pressure/p); got {', '.join(rows[0])}")
-    t_unit = header[idx_t][1]
-    p_unit = pressure_unit or header[idx_p][1]
-    if not p_unit:
-        raise InputError("the pressure unit is missing: put it in the header, e.g. 'pressure (bar)', or use --pressure-unit")
-    T_unit = header[idx_T][1] if idx_T is not None else None
-    ts: list[float] = []
-    ps: list[float] = []
-    Ts: list[float] = []
-    t0: dt.datetime | None = None
-    for n, r in enumerate(rows[1:], start=2):
-        try:
-            raw_t = r[idx_t].strip()
-            if t_unit and t_unit.lower() in _TIME_UNITS:
-                tv = float(raw_t) * _TIME_UNITS[t_unit.lower()]
-            else:
-                try:
-                    stamp = dt.datetime.fromisoformat(raw_t)
-                except ValueError:
-                    raise InputError("time is neither a number with a unit in the header nor an ISO timestamp") from None
-                if t0 is not None and (stamp.tzinfo is None) != (t0.tzinfo is None):
-                    raise InputError("timestamps mix local times and times with a UTC offset; give all one way")
-                t0 = t0 or stamp
-                tv = (stamp - t0).total_seconds()
-            pv = pressure_abs(f"{r[idx_p].strip()} {p_unit}", ambient_pa)
-            if idx_T is not None and r[idx_T].strip():
-                Tu = T_unit or "degC"
-                Ts.append(parse_temperature(f"{r[idx_T].strip()} {Tu}"))
-            elif idx_T is not None:
-                raise InputError("temperature is empty")
-        except (InputError, ValueError, IndexError) as exc:
-            raise InputError(f"log row {n}: {exc}") from None
-        if not math.isfinite(tv):
-            raise InputError(f"log row {n}: time is not a finite number")
-        if ts and tv <= ts[-1]:
-            raise InputError(f"log row {n}: time {raw_t} is not after the previous row's")
-        ts.append(tv)
-        ps.append(pv)
-    return HoldLog(tuple(ts), tuple(ps), tuple(Ts) if idx_T is not None else None)
 
 
 @dataclass(frozen=True)
@@ -499,7 +437,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     span = float(t[-1] - t[0])
     # the same GUM budget as two readings (first and last), spread over the span of the log,
     # plus the scatter about the fitted line (its standard error) in quadrature
-    u_p = gauge.u_reading_pa if gauge is not None else 0.0
+    u_p = gauge.u_difference_pa if gauge is not None else 0.0
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
     if log.T_k is None:

@@ -5,8 +5,9 @@ from __future__ import annotations
 
 from typing import Any
 
-from benchwarden.core.gas import Gas, R, density, gas_branch_densities
-from benchwarden.errors import InputError
+from benchwarden.core import gas as g
+from benchwarden.core.gas import Gas, R, density
+from benchwarden.errors import InputError, PropertyError
 
 __all__ = ["DensityTable"]
 
@@ -39,7 +40,7 @@ class DensityTable:
         self.T = np.linspace(T_lo, T_hi, n_T) if n_T > 1 else np.array([T_lo])
         Z = np.empty((len(self.T), n_p))
         for i, T in enumerate(self.T):
-            rho = gas_branch_densities(gas, float(T), self.p) if gas.is_mixture else None
+            rho = _gas_branch_densities(gas, float(T), self.p) if gas.is_mixture else None
             for j, p in enumerate(self.p):
                 r = rho[j] if rho is not None else density(gas, float(T), float(p))
                 Z[i, j] = p * self.M / (r * R * T)
@@ -79,3 +80,33 @@ class DensityTable:
         rho_grid = self.p * self.M / (z * R * T)
         rho = np.asarray(rho, dtype=float)
         return rho * np.interp(rho, rho_grid, z) * R * T / self.M
+
+
+def _gas_branch_densities(gas: Gas, T: float, ps: Any) -> list[float] | None:
+    """Densities of a mixture at T over the pressures ``ps`` on the gas branch, or None when a
+    stability check (both ends and every 8th pressure) finds a state that is not a single
+    stable phase (the caller then uses full flashes).
+
+    Parameters
+    ----------
+    gas : a mixture
+    T : Temperature, [K]
+    ps : Absolute pressures, [Pa]
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
+    """
+    n = len(ps)
+    for j in sorted(set(range(0, n, 8)) | {n - 1}):
+        if g.phase(gas, T, float(ps[j])).kind not in ("gas", "supercritical"):
+            return None
+    out: list[float] = []
+    try:
+        for p in ps:
+            g.check_state(gas, T, float(p))
+            out.append(float(g.state_at(gas, "PT_INPUTS", float(p), T, imposed="gas").rhomass()))
+    except PropertyError:
+        return None
+    return out

@@ -42,6 +42,27 @@ TEMPLATES: dict[str, Template] = {
     "liquefied-no-weight": lambda f, v, d: (
         f"{v['gas']} is liquid in the cylinder at {d.temperature(v['temperature_k'])}: its pressure says nothing "
         "about the contents; add gross and tare weights", "no weights"),
+    "liquid-full": lambda f, v, d: (
+        f"{f.subject} ({v['gas']}) is liquid-full at {d.temperature(v['temperature_k'])}: no vapour space, the "
+        "pressure is the liquid's and rises steeply as it warms; a warm liquid-full cylinder relies on its relief "
+        "device — keep it cool and out of the sun, do not heat it, and ask the supplier",
+        f"{d.gauge(v['pressure_abs_pa'])}"
+        + (f"; liquid-full from {d.temperature(v['liquid_full_temperature_k'])}"
+           if v.get("liquid_full_temperature_k") is not None else "")),
+    "liquid-full-when-warm": lambda f, v, d: (
+        f"{f.subject} ({v['gas']}) becomes liquid-full at {d.temperature(v['liquid_full_temperature_k'])}, below "
+        f"the hot-day {d.temperature(v['hot_day_k'])}: from there its pressure rises steeply and it relies on its "
+        "relief device — keep it cool", f"liquid-full from {d.temperature(v['liquid_full_temperature_k'])}"),
+    "contents-temperature-sensitive": lambda f, v, d: (
+        f"the contents of {f.subject} move by {abs(v['mass_sensitivity_kg_per_k'] or 0.0):.3g} kg per kelvin here: "
+        f"±{v['temperature_uncertainty_k']:g} K of temperature is more than 5 % of the mass — weigh the cylinder "
+        "(gross − tare)",
+        f"{v['mass_kg']:.3g} ± {v['mass_uncertainty_kg']:.2g} kg"),
+    "overfilled": lambda f, v, d: (
+        f"{v['mass_kg']:.2f} kg of {v['gas']} in {v['volume_m3'] * 1000:.3g} L is above the filling ratio permitted "
+        "for it: the cylinder is overfilled and becomes liquid-full on warming. Check the weights; if they are "
+        "right, keep it cool, do not use it and call the supplier",
+        f"{v['filling_ratio_kg_l']:.2f} > {v['max_filling_ratio_kg_l']:.2f} kg/L"),
     "reserve-before-end": lambda f, v, d: (
         f"{f.subject} reaches its reserve after {d.hours(v['hours'])}, before the planned "
         f"{d.hours(v['session_hours'])} session ends: swap the cylinder first or shorten the session",
@@ -71,6 +92,10 @@ TEMPLATES: dict[str, Template] = {
         f"{v['gas']} expanding to the set point forms solid (dry ice) in {f.subject}: it can block and then "
         "release suddenly — use a regulator made for this service or a higher outlet pressure",
         f"outlet at {d.temperature(v['temperature_k'])}"),
+    "regulator-near-dry-ice": lambda f, v, d: (
+        f"{v['gas']} leaves {f.subject} only {v['dry_ice_margin_k']:.1f} K above the line where solid (dry ice) "
+        "forms: a colder body, a higher flow or a lower outlet pressure puts it over — use a heated regulator or a "
+        "higher outlet pressure", f"outlet at {d.temperature(v['temperature_k'])}"),
     "regulator-liquid": lambda f, v, d: (
         f"liquid {v['gas']} forms at the outlet of {f.subject}", f"outlet at {d.temperature(v['temperature_k'])}"),
     "regulator-icing": lambda f, v, d: (

@@ -10,6 +10,7 @@ from benchwarden.render.display import Display
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
 from benchwarden.render.numbers import fmt_count
 from benchwarden.render.room import room_lines
+from benchwarden.render.supply import mass_words, supply_state_words
 from benchwarden.workflows.bench import Assessment
 from benchwarden.workflows.findings import counts
 
@@ -51,8 +52,9 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
         out += [f"  {s.id}: {s.gas_name}" + (" (liquefied; by weight)" if s.liquefied else ""),
                 f"    now {d.gauge(s.pressure_abs_pa, a.steps.get(s.id))}, {d.temperature(s.temperature_k)}; "
                 f"reserve {d.gauge(s.reserve_abs_pa)}",
-                f"    contents {s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}; "
-                f"usable {s.usable_mass_kg:.3f} kg",
+                f"    contents {mass_words(s.mass_kg, s.mass_uncertainty_kg)} = {s.free_volume_m3:.3f} m³ at "
+                f"{s.reference_label}; usable {s.usable_mass_kg:.3f} kg",
+                f"    state {supply_state_words(s, d)}",
                 f"    draw {s.draw_kg_s * 6e4:.3f} g/min"
                 + (f" (including the leak found, {s.leak_sccm:.3g} sccm)" if s.leak_sccm > 0 else "")
                 + f"; to reserve {d.hours(s.hours_to_reserve)}{band}"
@@ -64,7 +66,8 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
     out += ["", "Regulators"]
     for r in plan.regulators:
         out.append(f"  {r.id} on {r.supply_id} ({r.stages}-stage): outlet {d.gauge(r.set_point_abs_pa)} → "
-                   f"{d.gauge(r.outlet_at_reserve_abs_pa)} at reserve; gas leaves at {d.temperature(r.outlet_temperature_k)}")
+                   f"{d.gauge(r.outlet_at_reserve_abs_pa)} at reserve; gas leaves at {d.temperature(r.outlet_temperature_k)}"
+                   + (f" ({r.dry_ice_margin_k:.1f} K above the dry-ice line)" if r.dry_ice_margin_k is not None else ""))
     out += ["", "Draws"]
     for dr in plan.draws:
         flow = (dr.how if "(standard, at" in dr.how
@@ -78,8 +81,10 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
             out.append(f"    fires at ≈ {dr.gap.breakdown_start_kv:.1f} kV → {dr.gap.breakdown_reserve_kv:.1f} kV at "
                        f"reserve [{dr.gap.method}]")
             for m0, m1 in zip(dr.gap.margins_start, dr.gap.margins_reserve, strict=True):
+                upper = (f", against the upper estimate {m0.firing_kv:.1f} kV"
+                         if m0.firing_kv > dr.gap.breakdown_start_kv * 1.0001 else "")
                 out.append(f"    {m0.part}: withstands ≈ {m0.withstand_kv:.1f} kV, margin {m0.margin_kv:+.1f} → "
-                           f"{m1.margin_kv:+.1f} kV ({m1.status})")
+                           f"{m1.margin_kv:+.1f} kV ({m1.status}{upper})")
     if plan.room:
         rm_ = plan.room
         out += ["", "Room"] + [f"  {line}" for line in room_lines(rm_)]

@@ -17,12 +17,13 @@ from pathlib import Path
 from typing import Any
 
 from benchwarden.errors import JournalError
+from benchwarden.storage.events import EVENT_MIGRATION, Event, event_trigger
 
-SCHEMA_VERSION = 6
+SCHEMA_VERSION = 7
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
-_MIGRATIONS: dict[int, str] = {
+_MIGRATIONS: dict[int, str | tuple[str, ...]] = {
     1: """
     CREATE TABLE sessions (
         id INTEGER PRIMARY KEY,
@@ -169,35 +170,27 @@ _MIGRATIONS: dict[int, str] = {
         PRIMARY KEY (bench, supply_id, what)
     );
     """,
-    6: """
-    CREATE TABLE purges (
-        id INTEGER PRIMARY KEY,
-        bench TEXT NOT NULL,
-        supply_id TEXT NOT NULL,
-        at TEXT NOT NULL,
-        operator TEXT,
-        method TEXT NOT NULL,
-        cycles INTEGER,
-        gas_standard_litres REAL NOT NULL,
-        details TEXT,
-        entered_at TEXT NOT NULL
-    );
-    CREATE INDEX purges_supply ON purges(bench, supply_id, at);
-    CREATE TABLE hold_starts (
-        id INTEGER PRIMARY KEY,
-        bench TEXT NOT NULL,
-        supply_id TEXT NOT NULL,
-        at TEXT NOT NULL,
-        pressure_abs_pa REAL NOT NULL,
-        pressure_text TEXT NOT NULL,
-        temperature_k REAL NOT NULL,
-        ambient_pa REAL NOT NULL,
-        hold_s REAL NOT NULL,
-        entered_at TEXT NOT NULL
-    );
-    CREATE INDEX hold_starts_supply ON hold_starts(bench, supply_id, at);
-    ALTER TABLE hold_tests ADD COLUMN start_id INTEGER REFERENCES hold_starts(id);
-    """,
+    6: EVENT_MIGRATION,
+    # purges run and hold tests started to finish later, each also an event (issue 29)
+    7: (
+        "CREATE TABLE purges (id INTEGER PRIMARY KEY, bench TEXT NOT NULL, supply_id TEXT NOT NULL,"
+        " at TEXT NOT NULL, operator TEXT, method TEXT NOT NULL, cycles INTEGER,"
+        " gas_standard_litres REAL NOT NULL, details TEXT, entered_at TEXT NOT NULL)",
+        "CREATE INDEX purges_supply ON purges(bench, supply_id, at)",
+        "CREATE TABLE hold_starts (id INTEGER PRIMARY KEY, bench TEXT NOT NULL, supply_id TEXT NOT NULL,"
+        " at TEXT NOT NULL, pressure_abs_pa REAL NOT NULL, pressure_text TEXT NOT NULL,"
+        " temperature_k REAL NOT NULL, ambient_pa REAL NOT NULL, hold_s REAL NOT NULL, entered_at TEXT NOT NULL)",
+        "CREATE INDEX hold_starts_supply ON hold_starts(bench, supply_id, at)",
+        "ALTER TABLE hold_tests ADD COLUMN start_id INTEGER REFERENCES hold_starts(id)",
+        event_trigger("purge", "purges", "INSERT", "NEW.bench", "NEW.at",
+                      "json_object('purge_id', NEW.id, 'supply_id', NEW.supply_id, 'operator', NEW.operator,"
+                      " 'method', NEW.method, 'cycles', NEW.cycles, 'gas_standard_litres', NEW.gas_standard_litres,"
+                      " 'details', json(COALESCE(NULLIF(NEW.details, ''), '{}')))"),
+        event_trigger("hold-start", "hold_starts", "INSERT", "NEW.bench", "NEW.at",
+                      "json_object('hold_start_id', NEW.id, 'supply_id', NEW.supply_id, 'pressure_abs_pa',"
+                      " NEW.pressure_abs_pa, 'pressure_text', NEW.pressure_text, 'temperature_k', NEW.temperature_k,"
+                      " 'ambient_pa', NEW.ambient_pa, 'hold_s', NEW.hold_s)"),
+    ),
 }
 
 
@@ -419,7 +412,8 @@ class Journal:
         for v in range(version + 1, SCHEMA_VERSION + 1):
             self.db.execute("BEGIN IMMEDIATE")
             try:
-                for stmt in filter(str.strip, _MIGRATIONS[v].split(";")):
+                m = _MIGRATIONS[v]
+                for stmt in (m if isinstance(m, tuple) else filter(str.strip, m.split(";"))):
                     self.db.execute(stmt)
                 self.db.execute(f"PRAGMA user_version = {v}")
                 self.db.execute("COMMIT")
@@ -719,6 +713,12 @@ class Journal:
             "INSERT INTO marks(bench, supply_id, what, reading_id, at) VALUES (?, ?, ?, ?, ?)"
             " ON CONFLICT (bench, supply_id, what) DO UPDATE SET reading_id = excluded.reading_id, at = excluded.at",
             (bench, supply_id, what, reading_id, at)))
+
+    def events(self, bench: str, after_seq: int = 0, limit: int = 1000) -> list[Event]:
+        """The bench's events after sequence number ``after_seq``, oldest first (at most ``limit``)."""
+        return [Event.of_row(r) for r in self._read(
+            "SELECT seq, event_id, bench, kind, at, recorded_at, payload FROM events WHERE bench = ? AND seq > ?"
+            " ORDER BY seq LIMIT ?", (bench, after_seq, limit))]
 
     def supply_readings(self, bench: str, supply_id: str) -> list[ReadingRow]:
         """Every reading of a supply of a bench, in and out of sessions, struck ones included."""

@@ -83,6 +83,10 @@ class Gauge(_Model):
     """Accuracy class (EN 837-1 / ASME B40.100 grade): maximum error in % of span."""
     resolution: PressureQ | None = None
     """Smallest division you can read (default: half the class error)."""
+    repeatability: PressureQ | None = None
+    """The maker's repeatability (± limit), where given: used for the difference of two readings
+    in a hold test (the gauge's systematic error cancels there); without it the two readings are
+    taken as uncorrelated, each with the full class error."""
 
 
 class Supply(_Model):

@@ -36,7 +36,7 @@ from benchwarden.workflows.holds import (
     reading_step_pa,
     standing_leaks,
 )
-from benchwarden.workflows.model import Observed, Plan
+from benchwarden.workflows.model import Memo, Observed, Plan, memo_get
 from benchwarden.workflows.purges import PurgeState, purge_states
 
 __all__ = ["Assessment", "assess", "findings_of", "journal_state", "largest_supply", "leak_volume_flow"]
@@ -95,16 +95,18 @@ def reading_steps(prof: Profile, live: Mapping[str, bool] | None = None) -> dict
     return {s.id: reading_step_pa(s, live=bool((live or {}).get(s.id))) for s in prof.supplies}
 
 
-def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.datetime) -> dict[str, OrderBy]:
+def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.datetime,
+              memo: Memo | None = None) -> dict[str, OrderBy]:
     """For every supply: the journal's consumption and the date to order the next cylinder."""
     out: dict[str, OrderBy] = {}
     for sp in plan.supplies:
         s = prof.supply(sp.id)
         try:
-            reserve_kg = g.density(s.gas, sp.temperature_k, sp.reserve_abs_pa) * s.water_volume
+            reserve_kg = memo_get(memo, ("rho", s.gas.key, sp.temperature_k, sp.reserve_abs_pa), g.density, s.gas,
+                                  sp.temperature_k, sp.reserve_abs_pa) * s.water_volume
         except BenchwardenError:
             reserve_kg = 0.0
-        full_usable = max(0.0, full_mass(prof, s) - reserve_kg)
+        full_usable = max(0.0, full_mass(prof, s, memo) - reserve_kg)
         cons = consumption(journal, prof, sp.id)
         if sp.leak_sccm > 0:  # a found leak is consumption too (the readings may predate it)
             leak_week = kg_s_from_sccm(s.gas, sp.leak_sccm) * 7 * SECONDS_PER_DAY

@@ -25,10 +25,12 @@ from benchwarden.workflows.model import (
     PROJECTION_POINTS,
     DrawPlan,
     GapPlan,
+    Memo,
     Observed,
     Plan,
     RegulatorPlan,
     SupplyPlan,
+    memo_get,
 )
 from benchwarden.workflows.roomplan import full_mass, largest_supply, room_plan
 
@@ -48,6 +50,10 @@ def _is_liquefied(gas: g.Gas, T: float, p: float | None = None) -> bool:
     if p is not None:
         return g.is_liquefied(gas, T, p)
     return gas.sold_liquefied and T < g.critical_temperature(gas)
+
+
+_memo = memo_get
+
 
 
 class SupplyModel:
@@ -102,7 +108,10 @@ def _draw_flow(prof: Profile, d: Draw, gas: g.Gas, outlet_abs: float) -> tuple[f
         if outlet_abs <= d.orifice.downstream.abs_at(amb):
             return 0.0, f"orifice {d.orifice.diameter * 1000:g} mm: no flow (outlet at or below downstream)", None
         o = fl.orifice_flow(gas, d.orifice.diameter, outlet_abs, d.orifice.downstream.abs_at(amb), T, d.orifice.cd)
-        return o.mass_flow_kg_s, f"orifice {d.orifice.diameter * 1000:g} mm, Cd {d.orifice.cd:g} ({'choked' if o.choked else 'subcritical'})", o.choked
+        phases = "" if (o.inlet_phase, o.throat_phase) == ("gas", "gas") else \
+            f"; inlet {o.inlet_phase}, throat {o.throat_phase}"
+        return (o.mass_flow_kg_s, f"orifice {d.orifice.diameter * 1000:g} mm, Cd {d.orifice.cd:g} "
+                f"({'choked' if o.choked else 'subcritical'}{phases})", o.choked)
     assert d.valve is not None
     if outlet_abs <= d.valve.downstream.abs_at(amb):
         return 0.0, f"valve Kv {d.valve.kv_value:g}: no flow (outlet at or below downstream)", None
@@ -115,7 +124,7 @@ def _draw_flow(prof: Profile, d: Draw, gas: g.Gas, outlet_abs: float) -> tuple[f
 
 def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJECTION_POINTS,
                extra_leak_m3_s: float = 0.0, start_at: dt.datetime | None = None,
-               leaks_sccm: Mapping[str, float] | None = None) -> Plan:
+               leaks_sccm: Mapping[str, float] | None = None, memo: Memo | None = None) -> Plan:
     """Compute the session plan of a bench profile (see module docstring for the methods).
 
     The clock times count from ``start_at`` when given (a running session), else from the
@@ -138,17 +147,27 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
     reg_plans: dict[str, RegulatorPlan] = {}
     supply_models: dict[str, SupplyModel] = {}
     supply_state: dict[str, tuple[float, float, float]] = {}  # p_now, T, mass_now
+    weight_states: dict[str, sp.WeightState | None] = {}
     for s in prof.supplies:
         gas = s.gas
         T = _supply_T(prof, s)
-        liquefied = _is_liquefied(gas, T, None if s.reading is None else s.reading.abs_at(amb))
-        if liquefied:
+        p_read = None if s.reading is None else s.reading.abs_at(amb)
+        liquefied = _memo(memo, ("liquefied", gas.key, T, p_read), _is_liquefied, gas, T, p_read)
+        fill = (s.gross - s.tare) if gas.sold_liquefied and s.gross is not None and s.tare is not None else 0.0
+        ws = _memo(memo, ("by-weight", gas.key, fill, s.water_volume, T), sp.state_by_weight, gas, fill,
+                   s.water_volume, T) if fill > 0 else None
+        if ws is not None and (liquefied or s.reading is None):
+            p_now = ws.pressure_abs_pa  # the vapour pressure, or a liquid-full cylinder's hydraulic pressure
+        elif liquefied:
             p_now = g.saturation_pressure(gas, T)
         else:
             assert s.reading is not None
             p_now = s.reading.abs_at(amb)
-        model = SupplyModel(gas, s.water_volume, T, max(p_now, s.service_pressure.abs_at(amb)) * 1.02, amb,
-                             None if s.reading is None else p_now)
+        weight_states[s.id] = ws
+        p_hi = max(p_now, s.service_pressure.abs_at(amb)) * 1.02
+        p_arg = None if s.reading is None else p_now
+        model = _memo(memo, ("model", gas.key, s.water_volume, T, p_hi, amb, liquefied),
+                      SupplyModel, gas, s.water_volume, T, p_hi, amb, p_arg)
         supply_models[s.id] = model
         if liquefied:
             if s.gross is None or s.tare is None:
@@ -156,7 +175,7 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             else:
                 mass_now = s.gross - s.tare
         else:
-            mass_now = g.density(gas, T, p_now) * s.water_volume
+            mass_now = _memo(memo, ("rho", gas.key, T, p_now), g.density, gas, T, p_now) * s.water_volume
         supply_state[s.id] = (p_now, T, mass_now)
 
     for r in prof.regulators:
@@ -164,19 +183,24 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         p_now, T, _ = supply_state[s.id]
         set_abs = r.set_point.abs_at(amb)
         res_abs = s.reserve.abs_at(amb)
-        hot = _hot_day_pressure(s, prof, p_now, T)
+        hot = _memo(memo, ("hot", s.gas.key, s.water_volume, T, p_now, prof.ambient.hot_day, amb),
+                    _hot_day_pressure, s, prof, p_now, T)
         # a regulator reduces pressure only while its inlet is above its set point; below that it
         # stands wide open and its outlet follows the cylinder down (and the gaps' voltage with it)
         regulating = p_now > set_abs * (1.0 + 1e-9)
         outlet = set_abs if regulating else p_now
         out_res = min(rg.outlet_drift(set_abs, p_now, res_abs, r.effects), res_abs)
         if regulating:
-            th = rg.throttle(s.gas, p_now, set_abs, T, saturated_vapour=supply_models[s.id].liquefied)
-            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.notes
+            sat = supply_models[s.id].liquefied
+            th = _memo(memo, ("throttle", s.gas.key, p_now, set_abs, T, sat),
+                       rg.throttle, s.gas, p_now, set_abs, T, saturated_vapour=sat)
+            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.flags
+            margin = th.dry_ice_margin_k
         else:
-            t_out, solid, liquid, notes = T, False, False, ()
+            t_out, solid, liquid, notes, margin = T, False, False, (), None
         reg_plans[r.id] = RegulatorPlan(r.id, s.id, r.stages, p_now, set_abs, out_res, t_out, solid, liquid, notes,
-                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet)
+                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet,
+                                        margin)
 
     # -- draws
     draw_plans: list[DrawPlan] = []
@@ -184,15 +208,17 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
         r = prof.regulator(d.regulator)
         s = prof.supply(r.supply)
         rp = reg_plans[r.id]
-        mdot, how, choked = _draw_flow(prof, d, s.gas, rp.outlet_abs_pa)
-        rho_std = g.density(s.gas, T0_K, ATM_PA)
+        mdot, how, choked = _memo(memo, ("draw", repr(d), s.gas.key, rp.outlet_abs_pa, prof.ambient_pa,
+                                         prof.ambient.temperature, _draw_rate(prof, d)),
+                                  _draw_flow, prof, d, s.gas, rp.outlet_abs_pa)
+        rho_std = _memo(memo, ("rho", s.gas.key, T0_K, ATM_PA), g.density, s.gas, T0_K, ATM_PA)
         gap_plan = None
         if d.kind == "gap" and d.spacing is not None:
             b0 = gp.breakdown(s.gas, d.spacing, rp.outlet_abs_pa, T_amb)
             b1 = gp.breakdown(s.gas, d.spacing, rp.outlet_at_reserve_abs_pa, T_amb)
-            m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
+            m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
                        for x in d.exposed)
-            m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_kv, x.clearance, x.rating / 1000 if x.rating else None)
+            m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
                        for x in d.exposed)
             gap_plan = GapPlan(d.spacing, b0.breakdown_kv, b1.breakdown_kv, b0.method, b0.validity, m0, m1,
                                b0.within_validity and b1.within_validity, max(b0.pd_bar_cm_20c, b1.pd_bar_cm_20c))
@@ -228,7 +254,9 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             if model.liquefied and s.gross is not None and s.tare is not None:
                 full = s.gross - s.tare
             else:
-                full = g.density(s.gas, T_FULL_K, s.service_pressure.abs_at(amb)) * s.water_volume
+                p_full = s.service_pressure.abs_at(amb)
+                full = _memo(memo, ("rho", s.gas.key, T_FULL_K, p_full), g.density, s.gas, T_FULL_K, p_full) \
+                    * s.water_volume
             cost = s.fill_price / full * mdot * 3600.0
         fits = hours >= session_h
         # projection
@@ -246,16 +274,36 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
             for dp in draw_plans:
                 if dp.regulator_id == r.id and dp.gap is not None:
                     gap_kv[dp.id] = tuple(float(x) for x in gp.breakdown_series(s.gas, dp.gap.spacing_m, o, T_amb))
-        fv = sp.free_volume(s.gas, mass_now, ref) if mass_now > 0 else 0.0
+        fv = _memo(memo, ("free", s.gas.key, mass_now, ref.key), sp.free_volume, s.gas, mass_now, ref) \
+            if mass_now > 0 else 0.0
         supply_plans.append(SupplyPlan(
             s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
             band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
-            tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm))
-    room_plan_ = room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s)
+            tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm,
+            **_memo(memo, ("state", s.gas.key, weight_states[s.id], model.liquefied, s.water_volume, p_now, T),
+                    _state_fields, s.gas, weight_states[s.id], model.liquefied, s.water_volume, p_now, T)))
+    room_plan_ = room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s, memo)
     fits = all(sp_.fits_session or sp_.draw_kg_s == 0 for sp_ in supply_plans)
     plan = Plan(prof.bench.name, amb, T_amb, session_h, start.isoformat(timespec="minutes"), tuple(supply_plans),
                 tuple(reg_plans.values()), tuple(draw_plans), room_plan_, (), fits)
     return dataclasses.replace(plan, findings=tuple(fd.plan_findings(prof, plan)))
+
+
+def _state_fields(gas: g.Gas, ws: sp.WeightState | None, liquefied: bool, V: float, p: float,
+                  T: float) -> dict[str, Any]:
+    """A supply's phase and, read by pressure, the sensitivity of its contents to temperature
+    (:func:`benchwarden.core.supply.temperature_sensitivity`, at the default 1 K)."""
+    if ws is not None:
+        return {"phase": ws.phase, "liquid_full_temperature_k": ws.liquid_full_temperature_k}
+    if liquefied:  # liquid under its vapour, no weights: the plan asks for them
+        return {"phase": "two-phase"}
+    u_T = sp.TEMPERATURE_UNCERTAINTY_K
+    slope, u_m, _ = sp.temperature_sensitivity(gas, V, p, T, u_T)
+    kind = g.pt_state(gas, T, p).phase.kind
+    if kind == "supercritical" and p < g.critical_pressure(gas):
+        kind = "gas"
+    return {"phase": kind, "mass_sensitivity_kg_per_k": slope, "mass_uncertainty_kg": u_m,
+            "temperature_uncertainty_k": u_T}
 
 
 def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float:
@@ -265,11 +313,11 @@ def _hot_day_pressure(s: Supply, prof: Profile, p_now: float, T: float) -> float
     hot = prof.ambient.hot_day
     if not _is_liquefied(s.gas, T, p_now):
         return sp.heat_up(s.gas, p_now, T, hot, prof.ambient_pa).pressure_abs_pa
+    if s.gross is not None and s.tare is not None and s.gross > s.tare:
+        return sp.state_by_weight(s.gas, s.gross - s.tare, s.water_volume, hot).pressure_abs_pa
     if _is_liquefied(s.gas, hot):
         return g.saturation_pressure(s.gas, hot)
-    if s.gross is None or s.tare is None:
-        return math.inf
-    return g.pressure_from_density(s.gas, (s.gross - s.tare) / s.water_volume, hot)
+    return math.inf
 
 
 # ----------------------------------------------------------------------------- observed draw

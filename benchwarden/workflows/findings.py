@@ -19,6 +19,7 @@ from dataclasses import dataclass, field
 from typing import Literal
 
 from benchwarden.core import gas as g
+from benchwarden.core.supply import Contents
 from benchwarden.storage.profile import Profile
 from benchwarden.units import T0_K
 from benchwarden.workflows.findings_room import room_findings
@@ -26,7 +27,8 @@ from benchwarden.workflows.model import Observed, Plan
 
 __all__ = [
     "SEVERITIES", "SEVERITY_RANK", "Finding", "Severity", "HOLD_TEST_MAX_AGE_DAYS", "plan_findings",
-    "live_findings", "hold_test_findings", "ranked", "counts", "at_or_above",
+    "live_findings", "hold_test_findings", "ranked", "counts", "at_or_above", "contents_findings", "mass_findings",
+    "outlet_findings",
 ]
 
 Severity = Literal["stop", "warning", "attention", "info"]
@@ -39,6 +41,11 @@ Value = float | int | str | bool | None
 HOLD_TEST_MAX_AGE_DAYS = 7.0
 #: A reserve reached before half the session is over is a stop, later a warning (benchwarden rule).
 RESERVE_STOP_FRACTION = 0.5
+#: A mass uncertainty (from the temperature's) above this fraction of the contents asks for
+#: weighing (issue 24: 5 %).
+CONTENTS_SENSITIVE_FRACTION = 0.05
+#: An outlet closer than this to the line where solid forms is a warning (issue 24: 2 K).
+DRY_ICE_MARGIN_K = 2.0
 #: Flashover margin below which a gap needs attention, % of its firing voltage (common practice).
 FLASHOVER_ATTENTION_PERCENT = 20.0
 
@@ -70,6 +77,67 @@ def counts(findings: Iterable[Finding]) -> dict[str, int]:
     out: dict[str, int] = dict.fromkeys(SEVERITIES, 0)
     for f in findings:
         out[f.severity] += 1
+    return out
+
+
+# ----------------------------------------------------------------------------- contents
+
+
+def mass_findings(subject: str, gas: str, mass_kg: float, phase: str, temperature_k: float,
+                  pressure_abs_pa: float, liquid_full_temperature_k: float | None = None,
+                  mass_uncertainty_kg: float | None = None, mass_sensitivity_kg_per_k: float | None = None,
+                  temperature_uncertainty_k: float | None = None, hot_day_k: float | None = None) -> list[Finding]:
+    """The rules on a cylinder's contents, for ``contents`` and the plan alike: liquid-full now
+    (a hazard: a warm liquid-full cylinder relies on its relief device), liquid-full by the hot
+    day, and a mass too sensitive to the temperature to trust (weigh it)."""
+    out: list[Finding] = []
+    base: dict[str, Value] = {"gas": gas, "temperature_k": temperature_k, "pressure_abs_pa": pressure_abs_pa,
+                              "liquid_full_temperature_k": liquid_full_temperature_k}
+    if phase == "liquid-full":
+        out.append(Finding("liquid-full", "warning", subject, base))
+    elif (liquid_full_temperature_k is not None and hot_day_k is not None
+          and temperature_k < liquid_full_temperature_k <= hot_day_k):
+        out.append(Finding("liquid-full-when-warm", "attention", subject, base | {"hot_day_k": hot_day_k}))
+    if (mass_uncertainty_kg is not None and mass_kg > 0
+            and mass_uncertainty_kg > CONTENTS_SENSITIVE_FRACTION * mass_kg):
+        out.append(Finding("contents-temperature-sensitive", "warning", subject, {
+            "mass_kg": mass_kg, "mass_uncertainty_kg": mass_uncertainty_kg,
+            "mass_sensitivity_kg_per_k": mass_sensitivity_kg_per_k,
+            "temperature_uncertainty_k": temperature_uncertainty_k, "temperature_k": temperature_k}))
+    return out
+
+
+def contents_findings(c: Contents, subject: str = "the cylinder") -> list[Finding]:
+    """Findings of one ``contents`` computation (:func:`mass_findings`, and an overfilled
+    cylinder by weight: a stop)."""
+    if c.mass_kg is None or c.pressure_abs_pa is None:
+        return []
+    out = mass_findings(subject, c.gas_name, c.mass_kg, c.phase, c.temperature_k, c.pressure_abs_pa,
+                        c.liquid_full_temperature_k, c.mass_uncertainty_kg, c.mass_sensitivity_kg_per_k,
+                        c.temperature_uncertainty_k)
+    if c.overfilled:
+        out.append(Finding("overfilled", "stop", subject, {
+            "gas": c.gas_name, "mass_kg": c.mass_kg, "volume_m3": c.volume_m3,
+            "filling_ratio_kg_l": c.filling_ratio_kg_l, "max_filling_ratio_kg_l": c.max_filling_ratio_kg_l}))
+    return ranked(out)
+
+
+def outlet_findings(subject: str, gas: str, outlet_temperature_k: float, solid: bool, liquid: bool,
+                    dry_ice_margin_k: float | None, base: Mapping[str, Value] | None = None) -> list[Finding]:
+    """The rules on a regulator's outlet, for ``throttle`` and the plan alike: solid (a stop),
+    within :data:`DRY_ICE_MARGIN_K` of the solid line (a warning: a colder body, a higher flow or
+    a gauge reading a little low puts it over), liquid, icing."""
+    v: dict[str, Value] = dict(base or {}) | {"temperature_k": outlet_temperature_k, "gas": gas,
+                                              "dry_ice_margin_k": dry_ice_margin_k}
+    if solid:
+        return [Finding("regulator-solid", "stop", subject, v)]
+    out: list[Finding] = []
+    if dry_ice_margin_k is not None and dry_ice_margin_k < DRY_ICE_MARGIN_K:
+        out.append(Finding("regulator-near-dry-ice", "warning", subject, v))
+    if liquid:
+        out.append(Finding("regulator-liquid", "warning", subject, v))
+    elif outlet_temperature_k < T0_K and not out:
+        out.append(Finding("regulator-icing", "attention", subject, v))
     return out
 
 
@@ -111,6 +179,9 @@ def _supply_findings(prof: Profile, plan: Plan) -> list[Finding]:
             out.append(Finding("reserve-within-gauge-error", "attention", sp.id, {
                 "hours": sp.hours_to_reserve, "hours_low": sp.hours_band[0], "hours_high": sp.hours_band[1],
                 "session_hours": plan.session_hours}))
+        out += mass_findings(sp.id, sp.gas_name, sp.mass_kg, sp.phase, sp.temperature_k, sp.pressure_abs_pa,
+                             sp.liquid_full_temperature_k, sp.mass_uncertainty_kg, sp.mass_sensitivity_kg_per_k,
+                             sp.temperature_uncertainty_k, prof.ambient.hot_day)
         pairs = g.estimated_pairs(s.gas)
         if pairs:
             out.append(Finding("estimated-mixing", "info", sp.id, {
@@ -137,13 +208,8 @@ def _regulator_findings(prof: Profile, plan: Plan) -> list[Finding]:
             out.append(Finding("inlet-rating-hot", "warning", r.id, base | {
                 "pressure_abs_pa": rp.supply_hot_day_abs_pa, "rating_abs_pa": rp.inlet_rating_abs_pa,
                 "temperature_k": prof.ambient.hot_day}))
-        t_out: dict[str, Value] = {"temperature_k": rp.outlet_temperature_k, "gas": s.gas.name}
-        if rp.solid_forms:
-            out.append(Finding("regulator-solid", "stop", r.id, base | t_out))
-        elif rp.liquid_forms:
-            out.append(Finding("regulator-liquid", "warning", r.id, base | t_out))
-        elif rp.outlet_temperature_k < T0_K:
-            out.append(Finding("regulator-icing", "attention", r.id, base | t_out))
+        out += outlet_findings(r.id, s.gas.name, rp.outlet_temperature_k, rp.solid_forms, rp.liquid_forms,
+                               rp.dry_ice_margin_k, base)
         if rp.outlet_at_reserve_abs_pa > r.outlet_max.abs_at(amb):
             out.append(Finding("outlet-drift-range", "attention", r.id, base | {
                 "pressure_abs_pa": rp.outlet_at_reserve_abs_pa, "limit_abs_pa": r.outlet_max.abs_at(amb)}))
@@ -176,7 +242,7 @@ def _gap_findings(plan: Plan) -> list[Finding]:
             if worst.status == "ok":
                 continue
             out.append(Finding("flashover", "stop" if worst.status == "stop" else "attention", d.id, {
-                "part": worst.part, "breakdown_kv": max(d.gap.breakdown_start_kv, d.gap.breakdown_reserve_kv),
+                "part": worst.part, "breakdown_kv": worst.firing_kv,
                 "withstand_kv": worst.withstand_kv, "margin_kv": worst.margin_kv,
                 "margin_percent": worst.margin_percent, "at_reserve": worst is b}))
     return out

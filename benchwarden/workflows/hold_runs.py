@@ -14,6 +14,7 @@ from dataclasses import dataclass
 
 from benchwarden.core import hold as hd
 from benchwarden.errors import InputError, JournalError
+from benchwarden.storage.holdlog import parse_log
 from benchwarden.storage.journal import HoldStartRow, Journal
 from benchwarden.storage.profile import Profile
 from benchwarden.workflows import holds
@@ -52,7 +53,7 @@ def from_log(prof: Profile, supply_id: str, text: str) -> HoldRun:
     """A hold test from a logged series (CSV text, the format of ``benchwarden hold --log``)."""
     s = prof.supply(supply_id)
     amb = prof.ambient_pa
-    fit = hd.hold_from_log(s.gas, s.water_volume, hd.parse_log(text, None, amb), holds.profile_gauge_spec(s.gauge),
+    fit = hd.hold_from_log(s.gas, s.water_volume, parse_log(text, None, amb), holds.profile_gauge_spec(s.gauge),
                            target_sccm=holds.supply_target_sccm(s), ambient_pa=amb,
                            reserve_abs=s.reserve.abs_at(amb))
     return HoldRun(supply_id, fit.result, "log", fit)

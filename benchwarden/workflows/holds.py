@@ -28,7 +28,8 @@ __all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_targ
 CLASS_RANGE = (0.01, 5.0)
 
 
-def gauge_spec(span_pa: float, accuracy_class: float, resolution_pa: float | None = None) -> GaugeSpec:
+def gauge_spec(span_pa: float, accuracy_class: float, resolution_pa: float | None = None,
+               repeatability_pa: float | None = None) -> GaugeSpec:
     """The gauge of a hold test or a reading: span [Pa] (full scale), accuracy class [% of
     span, EN 837-1], optional resolution [Pa]. The one place where a gauge is checked."""
     if not math.isfinite(span_pa) or span_pa <= 0:
@@ -39,7 +40,11 @@ def gauge_spec(span_pa: float, accuracy_class: float, resolution_pa: float | Non
                          "(EN 837-1 classes 0.1 to 4)")
     if resolution_pa is not None and not (math.isfinite(resolution_pa) and 0 < resolution_pa <= span_pa):
         raise InputError(f"gauge resolution {resolution_pa / BAR_PA:g} bar must be above zero and within the range")
-    return GaugeSpec(span_pa, accuracy_class, resolution_pa)
+    if repeatability_pa is not None and not (math.isfinite(repeatability_pa)
+                                             and 0 < repeatability_pa <= accuracy_class / 100.0 * span_pa):
+        raise InputError(f"gauge repeatability {repeatability_pa / BAR_PA:g} bar must be above zero and no more "
+                         "than the class error")
+    return GaugeSpec(span_pa, accuracy_class, resolution_pa, repeatability_pa)
 
 
 def profile_gauge_spec(gauge: Gauge | None) -> GaugeSpec | None:
@@ -47,7 +52,8 @@ def profile_gauge_spec(gauge: Gauge | None) -> GaugeSpec | None:
     if gauge is None:
         return None
     return gauge_spec(gauge.range.typed_pa, gauge.accuracy_class,
-                      gauge.resolution.typed_pa if gauge.resolution is not None else None)
+                      gauge.resolution.typed_pa if gauge.resolution is not None else None,
+                      gauge.repeatability.typed_pa if gauge.repeatability is not None else None)
 
 
 def reading_step_pa(supply: Supply, live: bool = False) -> float | None:

@@ -16,8 +16,9 @@ Method summary
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from benchwarden.core import gap as gp
 from benchwarden.core import hazards as hz
@@ -68,6 +69,7 @@ class RegulatorPlan:
     outlet_temperature_k: float
     solid_forms: bool
     liquid_forms: bool
+    #: the throttle's codes (:attr:`benchwarden.core.regulator.Throttle.flags`)
     throttle_notes: tuple[str, ...]
     inlet_rating_abs_pa: float
     supply_hot_day_abs_pa: float
@@ -76,6 +78,8 @@ class RegulatorPlan:
     regulating: bool = True
     #: the outlet pressure now: the set point, or the supply pressure when not regulating
     outlet_abs_pa: float = 0.0
+    #: kelvin above the line where solid (dry ice) forms at the outlet; None for a gas without one
+    dry_ice_margin_k: float | None = None
 
 
 @dataclass(frozen=True)
@@ -106,6 +110,15 @@ class SupplyPlan:
     #: a leak found on the current cylinder (latest hold test ``leak`` or ``likely-leak``),
     #: counted as a draw in ``draw_kg_s`` and everything projected from it [sccm, 0 °C, 101.325 kPa]
     leak_sccm: float = 0.0
+    #: the state in the cylinder now: ``gas``, ``two-phase``, ``liquid-full``, ``supercritical``
+    phase: str = "gas"
+    #: by weight: the temperature [K] at which the fill becomes liquid-full (None: never)
+    liquid_full_temperature_k: float | None = None
+    #: by pressure: ∂m/∂T [kg/K] and the mass uncertainty [kg] from the temperature's
+    #: standard uncertainty ``temperature_uncertainty_k`` [K]
+    mass_sensitivity_kg_per_k: float | None = None
+    mass_uncertainty_kg: float | None = None
+    temperature_uncertainty_k: float | None = None
 
 
 @dataclass(frozen=True)
@@ -207,3 +220,25 @@ class Observed:
     fit_pressure_abs_pa: tuple[float, ...] = ()
     #: the draw is resolved beyond its expanded uncertainty (only then does it project a reserve)
     resolved: bool = True
+
+
+class Memo:
+    """Results of pure property computations kept by one caller between plans (the app keeps one
+    per bench): the same inputs give the same result, so a refresh with nothing changed repeats
+    no mixture flash. Bounded: cleared when it grows past ``limit`` entries."""
+
+    def __init__(self, limit: int = 2000) -> None:
+        self.limit = limit
+        self.values: dict[tuple[Any, ...], Any] = {}
+
+    def get(self, key: tuple[Any, ...], fn: Callable[..., Any], *args: Any, **kw: Any) -> Any:
+        if key not in self.values:
+            if len(self.values) >= self.limit:
+                self.values.clear()
+            self.values[key] = fn(*args, **kw)
+        return self.values[key]
+
+
+def memo_get(memo: Memo | None, key: tuple[Any, ...], fn: Callable[..., Any], *args: Any, **kw: Any) -> Any:
+    """``fn(*args, **kw)``, kept in ``memo`` under ``key`` when there is one."""
+    return memo.get(key, fn, *args, **kw) if memo is not None else fn(*args, **kw)

@@ -54,6 +54,17 @@ class LeakCheck:
     stratification: str
 
 
+
+class ContentsUnknown(InputError):
+    """A supply's pressure gives no contents (liquid in the cylinder, or liquid-full); the
+    interface words it from :attr:`contents` (:func:`benchwarden.render.supply.contents_refusal`)."""
+
+    def __init__(self, contents: supply.Contents) -> None:
+        self.contents = contents
+        super().__init__(f"the pressure of {contents.gas_name} gives no contents here ({contents.phase}): "
+                         "weigh the cylinder")
+
+
 def release_check(gas: g.Gas, room_volume_m3: float, amount: Amount, model: str, c0_percent: float,
                   T: float, p_room: float) -> ReleaseCheck:
     """A sudden release of ``amount`` (a mass or a volume at room conditions) judged for oxygen
@@ -82,7 +93,7 @@ def leak_check(gas: g.Gas, room_volume_m3: float, flow: Flow, ventilation_m3_s: 
     if supply_volume_m3 is not None and supply_pressure_abs_pa is not None:
         c = supply.contents(gas, supply_volume_m3, supply_pressure_abs_pa, T)
         if c.mass_kg is None:
-            raise InputError(c.notes[0])
+            raise ContentsUnknown(c)
         fin = rm.finite_leak(lk, c.mass_kg / g.density(gas, T, p_room))
     lowest = fin.o2_percent_minimum if fin is not None else lk.o2_percent_steady
     gas_pct = max(0.0, 100.0 * (1.0 - lowest / c0_percent))

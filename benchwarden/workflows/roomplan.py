@@ -11,18 +11,27 @@ from benchwarden.core import room as rm
 from benchwarden.errors import BenchwardenError
 from benchwarden.storage.profile import Profile, Supply
 from benchwarden.units.constants import T_FULL_K
-from benchwarden.workflows.model import DrawPlan, RoomCase, RoomPlan, SupplyPlan, VentedGas
+from benchwarden.workflows.model import (
+    DrawPlan,
+    Memo,
+    RoomCase,
+    RoomPlan,
+    SupplyPlan,
+    VentedGas,
+    memo_get,
+)
 
 __all__ = ["room_plan", "full_mass", "largest_supply", "in_room"]
 
 
-def full_mass(prof: Profile, s: Supply) -> float:
+def full_mass(prof: Profile, s: Supply, memo: Memo | None = None) -> float:
     """Mass [kg] of a supply when full: its fill weight (gross − tare) for a gas weighed in, else
     the real-gas mass at its service pressure and 15 °C (the rating temperature)."""
     if s.gross is not None and s.tare is not None:
         return s.gross - s.tare
+    p = s.service_pressure.abs_at(prof.ambient_pa)
     try:
-        return g.density(s.gas, T_FULL_K, s.service_pressure.abs_at(prof.ambient_pa)) * s.water_volume
+        return float(memo_get(memo, ("rho", s.gas.key, T_FULL_K, p), g.density, s.gas, T_FULL_K, p)) * s.water_volume
     except BenchwardenError:
         return 0.0
 
@@ -37,12 +46,12 @@ def in_room(s: Supply) -> bool:
     return s.location == "room"
 
 
-def _case(prof: Profile, s: Supply, sp: SupplyPlan) -> RoomCase | None:
+def _case(prof: Profile, s: Supply, sp: SupplyPlan, memo: Memo | None = None) -> RoomCase | None:
     assert prof.room is not None
     room = prof.room
     T, amb = prof.ambient.temperature, prof.ambient_pa
-    rho = g.density(s.gas, T, amb)
-    full = full_mass(prof, s)
+    rho = memo_get(memo, ("rho", s.gas.key, T, amb), g.density, s.gas, T, amb)
+    full = full_mass(prof, s, memo)
     if full <= 0:
         return None
     o2g = hz.gas_o2_percent(s.gas)
@@ -73,7 +82,7 @@ def _vented_gases(prof: Profile, leak: rm.Leak | None, per: dict[str, float]) ->
 
 
 def room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
-              extra_leak_m3_s: float) -> RoomPlan | None:
+              extra_leak_m3_s: float, memo: Memo | None = None) -> RoomPlan | None:
     """The room's figures: the vented draws' leak, and every cylinder in the room released."""
     if prof.room is None:
         return None
@@ -89,7 +98,7 @@ def room_plan(prof: Profile, draws: list[DrawPlan], supplies: list[SupplyPlan],
     leak = rm.leak_o2(room.volume, vented, Q, room.ventilation_kind, room.oxygen_percent) if vented > 0 else None
     gases = _vented_gases(prof, leak, per)
     plans = {sp.id: sp for sp in supplies}
-    cases = tuple(c for s in prof.supplies if in_room(s) if (c := _case(prof, s, plans[s.id])) is not None)
+    cases = tuple(c for s in prof.supplies if in_room(s) if (c := _case(prof, s, plans[s.id], memo)) is not None)
     outside = tuple(s.id for s in prof.supplies if not in_room(s))
     notes = [rm.stratification_note(by_id[c.supply].gas) for c in cases]
     if not cases:

@@ -43,7 +43,7 @@ from benchwarden.workflows.holds import (
     reading_step_pa,
     standing_leaks,
 )
-from benchwarden.workflows.model import Observed, Plan
+from benchwarden.workflows.model import Memo, Observed, Plan
 from benchwarden.workflows.purges import purge_states
 from benchwarden.workflows.record import StopsStand, standing_stops, start_session
 from benchwarden.workflows.watch import (
@@ -113,6 +113,8 @@ class SessionState:
     _compacted: dt.datetime | None = None
     _leak_at: dt.datetime | None = None
     _life: list[Finding] = field(default_factory=list)
+    #: property results kept between refreshes (a premix's flashes are not repeated)
+    _memo: Memo = field(default_factory=Memo)
 
     # -- profile and plan
 
@@ -147,9 +149,9 @@ class SessionState:
         self.plan_at = latest or now
         prof = self.effective_profile()
         self.plan = pl.build_plan(prof, now=self.plan_at, start_at=self.plan_at,
-                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name))
+                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name), memo=self._memo)
         # retest and service dates, and when to order: the same rule as the plan and status
-        orders = orders_of(prof, self.plan, self.journal, now)
+        orders = orders_of(prof, self.plan, self.journal, now, self._memo)
         self._life = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
         self._observe()
 

@@ -25,6 +25,7 @@ from benchwarden.render.checklist.items import Item, Status
 from benchwarden.render.checklist.safety import SAFETY_ITEMS
 from benchwarden.render.display import Display
 from benchwarden.render.findings import describe
+from benchwarden.render.supply import mass_words, supply_state_words
 from benchwarden.storage.profile import Profile
 from benchwarden.workflows.bench import Assessment
 from benchwarden.workflows.findings import SEVERITY_RANK, Finding, counts
@@ -143,13 +144,19 @@ def _item(ctx: _Ctx, id: str, text: str, figure: str, f: Finding | None, ok_reas
     return Item(id, text, f.severity, figure, sentence, value, source, f.code)
 
 
+#: Findings about a supply's contents: its state and how far its mass can be trusted.
+_CONTENTS_CODES = ("liquid-full", "liquid-full-when-warm", "contents-temperature-sensitive")
+
+
 def _supply_contents(ctx: _Ctx) -> list[Item]:
     d = ctx.display
-    return [Item(f"supply-contents:{s.id}", f"{s.id} ({s.gas_name}) contents",
-                 "ok", f"{s.mass_kg:.3f} kg = {s.free_volume_m3:.3f} m³ at {s.reference_label}"
-                 + ("" if s.liquefied else f"; now {d.gauge(s.pressure_abs_pa, ctx.a.steps.get(s.id))}"),
-                 "by weight (liquefied)" if s.liquefied else "real gas at the last reading",
-                 s.mass_kg, f"supplies[{i}].mass_kg")
+    return [_item(ctx, f"supply-contents:{s.id}", f"{s.id} ({s.gas_name}) contents",
+                  f"{mass_words(s.mass_kg, s.mass_uncertainty_kg)} = {s.free_volume_m3:.3f} m³ at "
+                  f"{s.reference_label}" + ("" if s.liquefied else f"; now {d.gauge(s.pressure_abs_pa, ctx.a.steps.get(s.id))}")
+                  + f"; {supply_state_words(s, d)}",
+                  ctx.about(s.id, _CONTENTS_CODES),
+                  "by weight (liquefied)" if s.liquefied else "real gas at the last reading",
+                  s.mass_kg, f"supplies[{i}].mass_kg")
             for i, s in enumerate(ctx.a.plan.supplies)]
 
 

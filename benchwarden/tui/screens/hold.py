@@ -11,6 +11,7 @@ from textual.widgets import Button, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
 from benchwarden.errors import BenchwardenError, InputError, JournalError
+from benchwarden.render.budget import budget_assumption
 from benchwarden.render.display import Display, open_hold_text, profile_display
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.tui.screens.base import ToolScreen
@@ -183,6 +184,9 @@ class HoldScreen(ToolScreen):
         if saved:
             lines.insert(1, saved)
         lines += [f"! {n}" for n in r.notes]
+        assumption = budget_assumption(r)
+        if assumption:
+            lines.append(f"! {assumption}")
         lines += [f"• {g}" for g in hold_runs.GUIDANCE]
         self.query_one("#last-hold", Static).update(Text(self._last_line()))
         self.query_one("#hold-result", Static).update(Text("\n".join(lines)))

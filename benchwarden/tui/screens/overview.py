@@ -19,6 +19,7 @@ from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.render.display import Display, live_text, open_hold_text, profile_display
 from benchwarden.render.findings import SEVERITY_MARK, describe, question_text
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
+from benchwarden.render.supply import mass_words, phase_short
 from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
 from benchwarden.units import fmt_hours
 from benchwarden.workflows.findings import Finding
@@ -203,9 +204,10 @@ class OverviewScreen(Screen[None]):
                 coldest = min(r.outlet_temperature_k for r in regs)
                 outlet = ("/".join(disp.gauge_number(r.set_point_abs_pa) for r in regs)
                           + f" {disp.gauge_label} {disp.temperature(coldest).replace(' °C', '°C')}")
-            reading = "by weight" if s.liquefied else disp.gauge(s.pressure_abs_pa, st.reading_step(s.id))
+            reading = (phase_short(s, disp) if s.liquefied or s.phase == "liquid-full"
+                       else disp.gauge(s.pressure_abs_pa, st.reading_step(s.id)))
             sup.add_row(s.id, reading, "", "", "", key=s.id)
-            more.add_row(s.id, s.gas_short[:9], f"{s.mass_kg:.2f} kg", f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
+            more.add_row(s.id, s.gas_short[:9], mass_words(s.mass_kg, s.mass_uncertainty_kg, 2), f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
         dr = self.query_one("#draws", DataTable)
         dr.clear()
         for d in st.plan.draws:

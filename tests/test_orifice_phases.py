@@ -1,0 +1,87 @@
+"""Liquid or two-phase at an orifice (issue 24, item 3).
+
+Reference: CoolProp's PropsSI in a fresh process (default, superancillary build): the maximum of
+ρ·√(2Δh) along the isentrope on a 400-point grid and the quality there; the liquid density for
+the incompressible orifice equation; the audit's figures in issue 24 (86 % vapour, ~2.7×).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import subprocess
+import sys
+import textwrap
+
+import pytest
+
+from benchwarden.cli import main
+from benchwarden.core import gas as g
+from benchwarden.core.flow import orifice_flow
+
+CO2 = g.parse_gas("co2")
+A = math.pi / 4 * 0.3e-3**2
+P_UP = 55e5 + 101325.0
+
+_REFERENCE = textwrap.dedent("""
+    import json, math
+    import CoolProp.CoolProp as CP
+    out = {}
+    for T in (293.15, 288.15):
+        p1 = 55e5 + 101325.0
+        h1, s1 = CP.PropsSI("H", "P", p1, "T", T, "CO2"), CP.PropsSI("S", "P", p1, "T", T, "CO2")
+        best = (0.0, 0.0, -1.0)
+        for i in range(400):
+            p = p1 * (0.3 + 0.65 * i / 399)
+            rho, h = CP.PropsSI("D", "P", p, "S", s1, "CO2"), CP.PropsSI("H", "P", p, "S", s1, "CO2")
+            G = rho * math.sqrt(max(0.0, 2 * (h1 - h)))
+            if G > best[0]:
+                best = (G, p, CP.PropsSI("Q", "P", p, "S", s1, "CO2"))
+        out[str(T)] = {"G": best[0], "q": best[2], "rho1": CP.PropsSI("D", "P", p1, "T", T, "CO2")}
+    print(json.dumps(out))
+""")
+
+
+@pytest.fixture(scope="module")
+def ref():
+    out = subprocess.run([sys.executable, "-c", _REFERENCE], capture_output=True, text=True, timeout=180, check=True)
+    return json.loads(out.stdout.strip().splitlines()[-1])
+
+
+def test_co2_vapour_condenses_at_the_throat(ref):
+    o = orifice_flow(CO2, 0.3e-3, P_UP, 101325.0, 293.15)
+    assert (o.inlet_phase, o.throat_phase) == ("gas", "two-phase")
+    assert o.throat_vapour_fraction == pytest.approx(0.86, abs=0.01)          # audit: 86 % vapour
+    assert o.throat_vapour_fraction == pytest.approx(ref["293.15"]["q"], abs=0.01)
+    assert o.mass_flow_kg_s / (0.62 * A) == pytest.approx(ref["293.15"]["G"], rel=0.003)
+    assert o.mass_flow_liquid_kg_s is None and o.mass_flow_hem_kg_s == o.mass_flow_kg_s
+    # the comparison uses the ideal-gas ratio cp0/cv0 (CO2 at 20 °C: cp0 ≈ 37.1 J/(mol·K),
+    # NIST-JANAF, from memory: 37.1/(37.1 − 8.314) ≈ 1.289), not the real cp/cv near saturation
+    assert o.k == pytest.approx(1.289, abs=0.005)
+
+
+def test_liquid_co2_feeds_the_larger_liquid_figure(ref):
+    o = orifice_flow(CO2, 0.3e-3, P_UP, 101325.0, 288.15)
+    assert o.inlet_phase == "liquid" and o.throat_phase == "two-phase"
+    # homogeneous equilibrium against the fresh-process isentrope
+    assert o.mass_flow_hem_kg_s / (0.62 * A) == pytest.approx(ref["288.15"]["G"], rel=0.003)
+    # incompressible orifice: ṁ = Cd·A·√(2·ρ_L·Δp) (closed form, CoolProp's liquid density)
+    liquid = 0.62 * A * math.sqrt(2 * ref["288.15"]["rho1"] * (P_UP - 101325.0))
+    assert o.mass_flow_liquid_kg_s == pytest.approx(liquid, rel=1e-6)
+    assert o.mass_flow_liquid_kg_s / o.mass_flow_hem_kg_s == pytest.approx(2.7, abs=0.1)   # audit: ~2.7×
+    assert o.mass_flow_kg_s == o.mass_flow_liquid_kg_s
+    assert o.ideal_mass_flow_kg_s is None and o.k is None
+
+
+def test_orifice_json_keys_and_words(capsys):
+    base = ["orifice", "--gas", "co2", "--diameter", "0.3 mm", "--upstream", "55 bar", "--downstream", "0 bar"]
+    assert main([*base, "--temperature", "15 degC", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    for key in ("inlet_phase", "throat_phase", "mass_flow_hem_kg_s", "mass_flow_liquid_kg_s", "mass_flow_kg_s"):
+        assert key in d
+    assert d["ideal_mass_flow_kg_s"] is None
+    assert main([*base, "--temperature", "15 degC"]) == 0
+    out = capsys.readouterr().out
+    assert "inlet phase" in out and "liquid (short orifice)" in out and "ideal-gas" not in out
+    assert main([*base, "--temperature", "20 degC"]) == 0
+    assert "two-phase (86 % vapour by mass)" in capsys.readouterr().out
