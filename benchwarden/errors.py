@@ -24,3 +24,11 @@ class ProfileError(InputError):
 
 class JournalError(BenchwardenError, OSError):
     """The session journal cannot be opened or written."""
+
+
+class LabUnreachable(BenchwardenError, ConnectionError):
+    """The lab database cannot be reached (the command line exits with status 4)."""
+
+
+class LabError(BenchwardenError, RuntimeError):
+    """The lab database refused an operation (permissions, schema)."""

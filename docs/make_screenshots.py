@@ -130,6 +130,7 @@ async def shoot_live() -> None:
         profile = Path(tmp) / "bench.toml"
         profile.write_text(demo_profile_text().replace(anchor, anchor + (
             f'[supplies.source]\nkind = "file"\npath = "{log}"\nvalue_unit = "bar"\ninterval = "1 s"\n'
+            'delimiter = ","\ntime_column = 1\nvalue_column = 2\n'
             'range = "250 bar"\naccuracy_class = 0.1\nresolution = "0.01 bar"\n'), 1))
         for size, name in (((120, 34), "live.svg"), ((80, 24), "live-80x24.svg")):
             app = make_app(str(profile), Path(tmp) / f"journal-{size[0]}.sqlite3", clock=Clock())

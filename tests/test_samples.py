@@ -138,3 +138,263 @@ def test_a_log_read_again_after_compaction_adds_nothing_twice(tmp_path):
         assert store.counts(sid) == before
         pt, _ = store.points(sid, T0, T0 + 7200)
         assert np.all(np.diff(pt) > 0)  # no time twice
+
+
+# --------------------------------------------------------------------------- issue 26: through watch and samples
+
+import csv  # noqa: E402
+import datetime as dt  # noqa: E402
+import io  # noqa: E402
+import json  # noqa: E402
+from pathlib import Path  # noqa: E402
+
+from benchwarden.cli import main  # noqa: E402
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
+#: a psi is 0.45359237 kg × 9.80665 m/s² per (0.0254 m)² (exact by definition)
+PSI = 0.45359237 * 9.80665 / 0.0254 ** 2
+
+
+def _supply(sid: str, source: str) -> str:
+    return (f'\n[[supplies]]\nid = "{sid}"\ngas = "nitrogen"\nwater_volume = "50 L"\nservice_pressure = "200 bar"\n'
+            f'test_pressure = "300 bar"\nreading = "64 bar"\nreserve = "15 bar"\n[supplies.source]\n{source}'
+            'interval = "0.2 s"\n')
+
+
+def _logger(path: Path, lines: list[str], end: str = "\n") -> None:
+    """A test logger: writes its lines as a data logger does (its own separator and line end)."""
+    with open(path, "w", newline="") as fh:
+        fh.writelines(ln + end for ln in lines)
+
+
+def _export(tmp_path: Path, prof: Path, supply: str, *more: str) -> list[dict[str, str]]:
+    out = tmp_path / f"{supply}-{len(list(tmp_path.glob('*.csv')))}.csv"
+    assert main(["--journal", str(tmp_path / "j.sqlite3"), "samples", str(prof), supply, "--output", str(out),
+                 *more]) == 0
+    return list(csv.DictReader(io.StringIO(out.read_text())))
+
+
+def _bar(row: dict[str, str], amb: float) -> float:
+    return round((float(row["value_si"]) - amb) / 1e5, 4)
+
+
+@pytest.mark.slow  # the command line end to end
+def test_every_row_of_the_issue_through_watch_and_samples(tmp_path, capsys):
+    from benchwarden.storage.profile import parse_profile
+
+    local = dt.datetime.now().astimezone().replace(microsecond=0) - dt.timedelta(minutes=30)
+    zone = __import__("zoneinfo").ZoneInfo("Europe/Berlin")
+
+    def at(i: int) -> dt.datetime:
+        return local + dt.timedelta(seconds=i)
+
+    def lines(fmt, n: int = 3) -> list[str]:  # the logger's lines: 64.02, 64.01, 64.00 bar one second apart
+        return [fmt(at(i), 64.02 - 0.01 * i) for i in range(n)]
+
+    csv_keys = 'delimiter = ","\ntime_column = 1\nvalue_column = 2\n'
+    rows = {  # supply: (lines, line end, source keys, expected good values in bar(g) or a bad reason)
+        "prefix-raw": (lines(lambda t, v: f"P1: {v:.2f} bar"), "\n", "", "not a number"),
+        "prefix": (lines(lambda t, v: f"P1: {v:.2f} bar"), "\n",
+                   'pattern = \'P1:\\s*(?P<value>\\S+)\\s*(?P<unit>\\w+)\'\n', [64.02, 64.01, 64.0]),
+        "comma-raw": (lines(lambda t, v: f"{v:.2f} bar".replace(".", ",")), "\n", "", "decimal point"),
+        "comma": (lines(lambda t, v: f"{v:.2f} bar".replace(".", ",")), "\n", 'decimal = ","\n', [64.02, 64.01, 64.0]),
+        "psi": (["925.3 psi", "925.2 psi", "925.1 psi"], "\n", "", None),
+        "header-raw": (["timestamp,P1 (bar)"] + lines(lambda t, v: f"{t.astimezone(dt.UTC):%Y-%m-%dT%H:%M:%SZ},{v:.2f}"),
+                       "\n", 'delimiter = ","\ntime_column = 1\n', ([64.02, 64.01, 64.0], "not a number")),
+        "header": (["timestamp,P1 (bar)"] + lines(lambda t, v: f"{t.astimezone(dt.UTC):%Y-%m-%dT%H:%M:%SZ},{v:.2f}"),
+                   "\n", 'delimiter = ","\ntime_column = "timestamp"\nvalue_column = "P1 (bar)"\nheader_lines = 1\n',
+                   [64.02, 64.01, 64.0]),
+        "space": (lines(lambda t, v: f"{t:%Y-%m-%d %H:%M:%S},{v:.2f}"), "\n", csv_keys, [64.02, 64.01, 64.0]),
+        "german": (lines(lambda t, v: f"{t.astimezone(zone):%d.%m.%Y %H:%M:%S};{v:.2f}".replace(".", ",")
+                         .replace(",", ".", 2)), "\n",
+                   'delimiter = ";"\ndecimal = ","\ntime_column = 1\nvalue_column = 2\n'
+                   'time_format = "%d.%m.%Y %H:%M:%S"\ntimezone = "Europe/Berlin"\n', [64.02, 64.01, 64.0]),
+        "two-raw": (lines(lambda t, v: f"{t:%Y-%m-%dT%H:%M:%S},21.3,{v:.2f}"), "\n", 'delimiter = ","\ntime_column = 1\n',
+                    "2 value columns"),
+        "two": (lines(lambda t, v: f"{t:%Y-%m-%dT%H:%M:%S},21.3,{v:.2f}"), "\n",
+                'delimiter = ","\ntime_column = 1\nvalue_column = 3\n', [64.02, 64.01, 64.0]),
+        "epoch": (lines(lambda t, v: f"{int(t.timestamp())},{v:.2f}"), "\n", csv_keys + 'time_format = "epoch"\n',
+                  [64.02, 64.01, 64.0]),
+        "epoch-raw": (lines(lambda t, v: f"{int(t.timestamp())},{v:.2f}"), "\n", csv_keys, "time_format"),
+        "cr": (["64.0", "63.9", "63.8", "63.7"], "\r", "", [64.0, 63.9, 63.8, 63.7]),
+        "crlf": (["64.0", "63.9", "63.8", "63.7"], "\r\n", "", [64.0, 63.9, 63.8, 63.7]),
+        "ahead": ([f"{at(0):%Y-%m-%dT%H:%M:%S},64.0", f"{at(1).replace(year=local.year + 1):%Y-%m-%dT%H:%M:%S},9.0"]
+                  + [f"{at(i):%Y-%m-%dT%H:%M:%S},{64.0 - 0.1 * i:.1f}" for i in (2, 3)], "\n", csv_keys,
+                  [64.0, 63.8, 63.7]),
+        "backwards": ([f"{at(0):%Y-%m-%dT%H:%M:%S},64.0", f"{at(-3600):%Y-%m-%dT%H:%M:%S},63.0"]
+                      + [f"{at(i):%Y-%m-%dT%H:%M:%S},{64.0 - 0.1 * i:.1f}" for i in (2, 3)], "\n", csv_keys,
+                      [64.0, 63.8, 63.7]),
+    }
+    utc = local.astimezone(dt.UTC)
+    text = DEMO
+    for sid, (lines, end, keys, _) in rows.items():
+        log = tmp_path / f"{sid}.log"
+        _logger(log, lines, end)
+        text += _supply(sid, f'kind = "file"\npath = "{log}"\n{keys}')
+    prof = tmp_path / "bench.toml"
+    prof.write_text(text)
+    amb = parse_profile(text, "bench.toml").ambient_pa
+    assert main(["--journal", str(tmp_path / "j.sqlite3"), "watch", str(prof), "--for", "1.5 s", "--every", "1 s"]) == 0
+    capsys.readouterr()
+    for sid, (_lines, _, _, expect) in rows.items():
+        got = _export(tmp_path, prof, sid)
+        good = [r for r in got if r["status"] == "good"]
+        assert all(r["kind"] == "raw" and r["stream"] == "pressure" and r["unit"] == "Pa(a)" for r in got), sid
+        if expect is None:                # the unit on the line, not the profile's bar
+            assert [float(r["value_si"]) for r in good] == pytest.approx([p * PSI + amb for p in (925.3, 925.2, 925.1)])
+        elif isinstance(expect, tuple):     # the header line is a bad sample, the data line good
+            assert [_bar(r, amb) for r in good] == expect[0]
+            assert [expect[1] in r["reason"] for r in got if r["status"] == "bad"] == [True], (sid, got)
+        elif isinstance(expect, str):     # declared otherwise: a bad sample with its reason, never a good one
+            assert not good and got and all(expect in r["reason"] for r in got if r["status"] == "bad"), (sid, got)
+        else:
+            assert [_bar(r, amb) for r in good] == expect, (sid, got)
+    stamps = [r["time"] for r in _export(tmp_path, prof, "space")]
+    assert stamps == [f"{utc + dt.timedelta(seconds=i):%Y-%m-%dT%H:%M:%S}.000000Z" for i in range(3)]  # own, in UTC
+    (ahead,) = [r for r in _export(tmp_path, prof, "ahead") if r["status"] == "bad"]
+    assert "after the computer's clock" in ahead["reason"] and ahead["time"].startswith(str(local.year + 1))
+    (back,) = [r for r in _export(tmp_path, prof, "backwards") if r["status"] == "bad"]
+    assert "before the stream's latest sample" in back["reason"]
+    # the live value is the latest confirmed one, not the line dated a year ahead
+    capsys.readouterr()
+    assert main(["--journal", str(tmp_path / "j.sqlite3"), "status", str(prof), "--json"]) == 0
+    status = {s["id"]: s for s in json.loads(capsys.readouterr().out)["supplies"]}
+    assert status["ahead"]["live"]["pressure_gauge_pa"] == pytest.approx(63.7e5)
+    assert "after the computer's clock" in status["ahead"]["last_bad_sample"]["reason"]
+    assert status["prefix-raw"]["live"] is None and status["prefix-raw"]["last_bad_sample"]["status"] == "bad"
+
+
+@pytest.mark.slow  # the command line end to end
+def test_samples_bad_input_is_one_line_exit_2_and_nothing_written(tmp_path, capsys):
+    prof = tmp_path / "bench.toml"
+    prof.write_text(DEMO)
+    out = tmp_path / "out.csv"
+    for argv, words in ((["n2-Z"], "unknown supply"), (["n2-A", "--from", "yesterday"], "--from 'yesterday'"),
+                        (["n2-A", "--from", "2026-12-02", "--to", "2026-12-01"], "before --from"),
+                        (["n2-A", "--format", "xml"], "invalid choice")):
+        try:
+            code = main(["--journal", str(tmp_path / "j.sqlite3"), "samples", str(prof), *argv, "--output", str(out)])
+        except SystemExit as exc:  # argparse's own refusal of a choice
+            code = exc.code
+        assert code == 2
+        err = capsys.readouterr().err
+        assert words in err and err.count("\n") == 1 and "Traceback" not in err
+        assert not out.exists()
+
+
+@pytest.mark.slow  # the command line end to end
+def test_samples_gives_raw_rows_trace_points_and_hourly_extremes_in_the_span(tmp_path, capsys):
+    prof = tmp_path / "bench.toml"
+    prof.write_text(DEMO)
+    j = Journal(tmp_path / "j.sqlite3")
+    store = SampleStore(j, raw_window_s=3600.0)
+    sid = store.stream("Demo: Larkfield teaching lab, bench 2 (N2 laser)", "n2-A", "pressure", 100.0)
+    h0 = T0 - T0 % 3600        # an hour's start
+    t = h0 + np.arange(0, 7200, 10.0)
+    v = 65e5 - 10.0 * (t - h0)
+    store.add(sid, [(float(a), float(b)) for a, b in zip(t, v, strict=True)])
+    store.add(sid, [(h0 + 7205.0, None, "bad", "no line within the timeout"),
+                    (h0 + 7215.0, 1e5, "implausible", "departs from the trend")])
+    assert store.compact(sid, h0 + 7200.0) == 360       # the first hour compressed
+    j.close()
+    assert main(["--journal", str(tmp_path / "j.sqlite3"), "samples", str(prof), "n2-A", "--format", "jsonl"]) == 0
+    rows = [json.loads(x) for x in capsys.readouterr().out.splitlines()]
+    kinds = [r["kind"] for r in rows]
+    assert kinds.count("min") == kinds.count("max") == 1 and kinds.count("raw") == 362
+    assert 2 <= kinds.count("trace") < 360                     # a straight line: a few vertices
+    (lo,) = [r for r in rows if r["kind"] == "min"]
+    (hi,) = [r for r in rows if r["kind"] == "max"]
+    assert (lo["value_si"], hi["value_si"]) == (float(v[359]), float(v[0]))   # the hour's extremes, numpy's way
+    assert lo["time"] == dt.datetime.fromtimestamp(h0, dt.UTC).isoformat(
+        timespec="microseconds").replace("+00:00", "Z")
+    assert set(rows[0]) == {"time", "stream", "kind", "value_si", "unit", "status", "reason"}
+    bad = [r for r in rows if r["status"] != "good"]
+    assert [(r["status"], r["value_si"], r["reason"]) for r in bad] == [
+        ("bad", None, "no line within the timeout"), ("implausible", 1e5, "departs from the trend")]
+    # the span
+    frm = dt.datetime.fromtimestamp(h0 + 7000, dt.UTC).isoformat()
+    assert main(["--journal", str(tmp_path / "j.sqlite3"), "samples", str(prof), "n2-A", "--from", frm]) == 0
+    got = list(csv.DictReader(io.StringIO(capsys.readouterr().out)))
+    assert [r["kind"] for r in got] == ["raw"] * 22 and got[0]["time"].endswith("Z")
+
+
+def test_a_journal_from_schema_4_opens_and_its_samples_keep_their_meaning(tmp_path):
+    import sqlite3
+
+    from benchwarden.storage.journal import _MIGRATIONS, APPLICATION_ID
+
+    path = tmp_path / "old.sqlite3"
+    db = sqlite3.connect(path)
+    for v in range(1, 5):
+        db.executescript(_MIGRATIONS[v])
+    db.execute(f"PRAGMA application_id = {APPLICATION_ID}")
+    db.execute("PRAGMA user_version = 4")
+    db.execute("INSERT INTO streams(id, bench, supply_id, quantity, tolerance) VALUES (1, 'b', 's', 'pressure', 1)")
+    db.executemany("INSERT INTO samples(stream, t, value) VALUES (1, ?, ?)", [(T0, 65e5), (T0 + 1, None)])
+    db.commit()
+    db.close()
+    with Journal(path) as j:
+        store = SampleStore(j)
+        assert store.latest(1) == (T0, 65e5)
+        assert [(r.status, r.value) for r in store.rows(1, 0, 4e9)] == [("good", 65e5), ("bad", None)]
+
+
+@pytest.mark.slow  # the command line end to end
+@pytest.mark.parametrize("how", ["rename", "copy-truncate"])
+def test_a_rotated_log_through_the_watcher_and_samples_loses_no_line_and_reads_none_twice(tmp_path, capsys, how):
+    import shutil
+
+    from benchwarden.storage.profile import parse_profile
+    from benchwarden.workflows.feeds import Watcher
+
+    log = tmp_path / "p.log"
+    text = DEMO.replace('gauge = { range = "315 bar", accuracy_class = 1.6 }\n',
+                        'gauge = { range = "315 bar", accuracy_class = 1.6 }\n[supplies.source]\nkind = "file"\n'
+                        f'path = "{log}"\ndelimiter = ","\ntime_column = 1\nvalue_column = 2\ninterval = "1 s"\n', 1)
+    prof_path = tmp_path / "bench.toml"
+    prof_path.write_text(text)
+    prof = parse_profile(text, "bench.toml")
+    t0 = dt.datetime.now(dt.UTC).replace(microsecond=0) - dt.timedelta(minutes=20)
+    stamp = iter(range(100))
+
+    def lines(n: int) -> list[str]:   # the logger: one line a second, 0.01 bar less each
+        out = []
+        for _ in range(n):
+            i = next(stamp)
+            out.append(f"{(t0 + dt.timedelta(seconds=i)).isoformat()},{64.0 - 0.01 * i:.2f}")
+        return out
+
+    def append(rows: list[str]) -> None:
+        with open(log, "a") as fh:
+            fh.writelines(r + "\n" for r in rows)
+
+    clock = [0.0]
+    with Journal(tmp_path / "j.sqlite3") as j:
+        w = Watcher(prof, j, monotonic=lambda: clock[0])
+
+        def poll() -> None:
+            clock[0] += 1.0
+            w.poll(dt.datetime.now(dt.UTC))
+
+        append(lines(5))
+        poll()
+        append(lines(2))                        # written just before the rotation
+        if how == "rename":
+            log.rename(tmp_path / "p.log.1")
+        else:
+            shutil.copy(log, tmp_path / "p.log.1")
+            log.write_text("")
+        append(lines(4))
+        poll()
+        append(lines(2))
+        poll()
+        w.close()
+    assert main(["--journal", str(tmp_path / "j.sqlite3"), "samples", str(prof_path), "n2-A"]) == 0
+    rows = list(csv.DictReader(io.StringIO(capsys.readouterr().out)))
+    got = [round((float(r["value_si"]) - prof.ambient_pa) / 1e5, 2) for r in rows if r["status"] == "good"]
+    assert [r["status"] for r in rows] == ["good"] * len(rows)
+    expected = [round(64.0 - 0.01 * i, 2) for i in range(13)]
+    if how == "copy-truncate":                  # the 2 lines written between the last read and the copy are
+        expected = expected[:5] + expected[7:]  # in the copy only: the new file is read from its start
+    assert got == expected

@@ -37,6 +37,8 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "status": ("cylinder", "where each supply stands: last reading, time to reserve, latest hold test, findings"),
     "watch": ("live", "read a profile's live gauges: samples into the journal, leak watch, alarms"),
     "simulate": ("live", "serve a simulated cylinder as a Modbus/TCP pressure transducer"),
+    "samples": ("live", "write a supply's stored live samples out (CSV or JSON Lines), with status and reason"),
+    "lab": ("lab", "the lab database: init, push a bench's record, status of all benches"),
     "open": ("", "open the app on a bench profile"),
 }
 

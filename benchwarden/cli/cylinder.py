@@ -5,8 +5,7 @@ from __future__ import annotations
 import argparse
 import datetime as dt
 import math
-from dataclasses import asdict
-from typing import Any, cast
+from typing import Any
 
 from benchwarden.cli.common import (
     EXIT_INPUT,
@@ -31,8 +30,8 @@ from benchwarden.units import parse_mass, parse_pressure, parse_temperature
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows import cylinder as cy
 from benchwarden.workflows.bench import assess
-from benchwarden.workflows.holds import judged_hold_tests
 from benchwarden.workflows.importing import MAX_IMPORT_BYTES, import_readings
+from benchwarden.workflows.status import RECENT_ALARMS_S, seconds, status_document
 
 AT_HELP = ("when it was read: now (default), 'HH:MM' (its most recent past occurrence), 'yesterday 18:00', "
            "or a date and time (2026-12-01 09:30, ISO 8601); never the future")
@@ -157,7 +156,7 @@ def cmd_reading(args: argparse.Namespace) -> int:
         emit_json({"reading_id": rid, "supply": entry.supply_id, "at": entry.at.isoformat(),
                    "session_id": running.id if running else None, "pressure_abs_pa": entry.pressure_abs_pa,
                    "weight_kg": entry.weight_kg, "temperature_k": entry.temperature_k,
-                   "time_to_reserve_s": _seconds(sp.hours_to_reserve),
+                   "time_to_reserve_s": seconds(sp.hours_to_reserve),
                    "findings": [finding_dict(f, d) for f in a.findings if f.subject in (entry.supply_id, "leaks")]})
         return 0
     what = d.gauge(entry.pressure_abs_pa) if entry.pressure_abs_pa is not None else f"{entry.weight_kg:g} kg"
@@ -209,46 +208,6 @@ def cmd_strike(args: argparse.Namespace) -> int:
     return 0
 
 
-def _order_date(o: cy.OrderBy | None) -> str | None:
-    return o.order_by.date().isoformat() if o is not None and o.order_by is not None else None
-
-
-def _cons(o: cy.OrderBy | None) -> float | None:
-    return o.consumption.kg_per_week if o is not None and o.consumption is not None else None
-
-
-def _needed(j: Journal | None, prof: Profile, sid: str, now: dt.datetime) -> float | None:
-    """How long a hold would need, when the latest idle drop was too short to tell [s]."""
-    r = cy.unresolved_idle_drop(j, prof, sid, now)
-    return _seconds(r.hold_needed_h) if r is not None else None
-
-
-def _seconds(hours: float) -> float | None:
-    return hours * 3600.0 if math.isfinite(hours) else None
-
-
-def _live(j: Journal | None, prof: Profile, sid: str, now: dt.datetime, amb: float) -> dict[str, Any] | None:
-    """The supply's latest live sample and leak watch (None without samples); a resolved leak
-    watch is stored as a hold test, as the app and ``watch`` do."""
-    from benchwarden.workflows.watch import leak_watch_recorded
-
-    sample = cy.latest_state(j, prof, sid, now.tzinfo)
-    if sample is None:
-        return None
-    lw = leak_watch_recorded(j, prof, sid, now)
-    return {"at": sample.at.isoformat(), "pressure_abs_pa": sample.pressure_abs_pa,
-            "pressure_gauge_pa": sample.pressure_abs_pa - amb, "temperature_k": sample.temperature_k,
-            "current": cy.live_is_state(j, prof, sid, sample),
-            "leak_verdict": lw.verdict if lw else None, "leak_rate_sccm": lw.leak_rate_sccm if lw else None,
-            "leak_rate_uncertainty_sccm": lw.leak_rate_uncertainty_sccm if lw else None,
-            "leak_target_sccm": lw.target_sccm if lw else None, "leak_since": lw.since.isoformat() if lw else None,
-            "leak_samples": lw.n if lw else None}
-
-
-#: ``status`` lists the alarms the journal recorded this far back [s].
-RECENT_ALARMS_S = 86400.0
-
-
 def cmd_status(args: argparse.Namespace) -> int:
     prof = load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
@@ -256,61 +215,16 @@ def cmd_status(args: argparse.Namespace) -> int:
     path = default_path(getattr(args, "journal", None))
     j = Journal(path) if path.exists() else None
     try:
-        a = assess(prof, j, now)
-        supplies: list[dict[str, Any]] = []
-        all_judged = judged_hold_tests(j, prof.bench.name) if j is not None else []
-        for sp in a.plan.supplies:
-            judged = all_judged
-            change = cy.current_change(j, prof.bench.name, sp.id)
-            last = cy.last_reading(j, prof.bench.name, sp.id)
-            live = _live(j, prof, sp.id, now, a.plan.ambient_pa)
-            judged = [h for h in judged if h.row.supply_id == sp.id and not h.earlier_cylinder]
-            counting = [h.row for h in judged if h.counts]
-            ht = counting[-1] if counting else None
-            lv = live or {}
-            from_live = lv.get("leak_verdict") is not None
-            supplies.append(cast(dict[str, Any], {
-                "id": sp.id, "gas": sp.gas_name,
-                "pressure_abs_pa": sp.pressure_abs_pa, "pressure_gauge_pa": sp.pressure_abs_pa - a.plan.ambient_pa,
-                "temperature_k": sp.temperature_k, "liquefied": sp.liquefied,
-                "last_reading_at": last.at if last else None, "last_reading_id": last.id if last else None,
-                "reading_source": ("live gauge" if live is not None and live["current"]
-                                   else "cylinder change" if change and last and last.at == change.at
-                                   else "journal" if last else "profile"),
-                "mass_kg": sp.mass_kg, "usable_mass_kg": sp.usable_mass_kg,
-                "time_to_reserve_s": _seconds(sp.hours_to_reserve), "reserve_at": sp.reserve_at,
-                "leak_included_sccm": sp.leak_sccm,
-                "idle_drop_hold_needed_s": _needed(j, prof, sp.id, now),
-                "cylinder_label": change.label if change else None,
-                "retest_due": change.retest_due if change else None,
-                "leak_verdict": lv["leak_verdict"] if from_live else ht.verdict if ht else None,
-                "leak_rate_sccm": lv["leak_rate_sccm"] if from_live else ht.leak_rate_sccm if ht else None,
-                "leak_rate_uncertainty_sccm": (lv["leak_rate_uncertainty_sccm"] if from_live
-                                               else ht.leak_rate_uncertainty_sccm if ht else None),
-                "leak_source": "leak watch" if from_live else "hold test" if ht else None,
-                "live": live,
-                "hold_test_at": ht.at if ht else None, "hold_test_kind": ht.kind if ht else None,
-                "hold_tests": [{"id": h.row.id, "at": h.row.at, "kind": h.row.kind, "verdict": h.row.verdict,
-                                "leak_rate_sccm": h.row.leak_rate_sccm,
-                                "leak_rate_uncertainty_sccm": h.row.leak_rate_uncertainty_sccm,
-                                "withdrawn": h.withdrawn, "withdrawn_reason": h.withdrawn_reason}
-                               for h in judged],
-                "order_by": _order_date(a.orders.get(sp.id)),
-                "days_of_gas": a.orders[sp.id].days_of_gas if sp.id in a.orders else None,
-                "consumption_kg_per_week": _cons(a.orders.get(sp.id)),
-            }))
-        since = (now - dt.timedelta(seconds=RECENT_ALARMS_S)).isoformat(timespec="seconds")
-        alarms: list[dict[str, str]] = [{"at": r.at, "supply_id": r.supply_id or "", "code": r.code, "text": r.text}
-                  for r in (j.alarms(prof.bench.name, since) if j is not None else [])]
+        doc = status_document(prof, j, now)
     finally:
         if j is not None:
             j.close()
-    findings = [finding_dict(f, d) for f in a.findings]
+    a = doc.assessment
+    supplies, alarms = doc.supplies, doc.alarms
     if args.json:
         emit_json({"bench": prof.bench.name, "journal": str(path), "ambient_pressure_pa": a.plan.ambient_pa,
-                   "supplies": supplies, "findings": findings, "alarms": alarms,
-                   "last_hold_test": None if a.last_hold is None else asdict(a.last_hold) | {
-                       "at": a.last_hold.at.isoformat(), "withdrawn": False}})
+                   "supplies": supplies, "findings": [finding_dict(f, d) for f in a.findings], "alarms": alarms,
+                   "last_hold_test": doc.last_hold_test})
         return exit_for(args, a.findings)
     print(f"Status: {prof.bench.name}")
     for s in supplies:

@@ -19,14 +19,34 @@ from benchwarden.units import (
 )
 
 REGISTER_MAP = """\
-register map (holding registers, device 1, 127.0.0.1 only):
-  0-1  cylinder pressure, bar(g), float32 (big-endian words)
+register map (127.0.0.1 only), the same values
+  in holding registers (function 3) and in input registers (function 4),
+  register numbers 0-based as sent on the wire (the "40001" or "30001" of a manual is 0):
+  0-1  cylinder pressure, bar(g), float32 (big-endian words, byte order ABCD)
   2-3  gas temperature, degC, float32
+Every unit id is answered, or only --unit N (0-255): others get no answer, as on a bus.
 The cylinder loses gas by the real-gas mass balance at --leak + --draw; --speed N runs its clock
 N times faster (a night's hold test in a minute)."""
 
 
 def configure(sub: Any, name: str) -> None:
+    if name == "samples":
+        s = sub.add_parser("samples", help="write a supply's stored live samples out: raw samples with their status "
+                                           "and reason, and for compressed hours the trace points and each hour's "
+                                           "minimum and maximum",
+                           epilog="Columns: time (ISO 8601, UTC), stream (pressure, temperature), kind (raw, trace, "
+                                  "min, max), value_si, unit (Pa(a) or K), status (good, bad, implausible), reason. "
+                                  "docs/journal-schema.md describes the journal's tables.")
+        s.add_argument("profile", help="bench profile (TOML)")
+        s.add_argument("supply", help="supply id, e.g. n2-A")
+        s.add_argument("--from", dest="from", metavar="TIME", help="first time, ISO 8601 (default: the first sample)")
+        s.add_argument("--to", dest="to", metavar="TIME", help="last time, ISO 8601 (default: the last sample)")
+        s.add_argument("--format", choices=["csv", "jsonl"], default="csv", help="csv (default) or jsonl")
+        s.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output (never over an "
+                                                       "existing file)")
+        add_journal(s)
+        s.set_defaults(func=cmd_samples)
+        return
     if name == "watch":
         w = sub.add_parser("watch", help="read the live gauges of a bench profile: samples into the journal, "
                                          "leak watch, alarms on stderr")
@@ -41,6 +61,7 @@ def configure(sub: Any, name: str) -> None:
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=REGISTER_MAP)
     add_gas(p)
     p.add_argument("--port", type=int, default=5020, help="TCP port on 127.0.0.1 (default 5020)")
+    p.add_argument("--unit", type=int, help="answer only this Modbus unit id, 0-255 (default: every unit id)")
     p.add_argument("--volume", required=True, help="water volume, e.g. '50 L'")
     p.add_argument("--pressure", required=True, help="starting pressure, e.g. '150 bar'")
     p.add_argument("--temperature", default="20 degC", help="gas temperature (default 20 degC)")
@@ -65,6 +86,8 @@ def cmd_simulate(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     if not (1 <= args.port <= 65535):
         raise input_error(f"--port {args.port}: a TCP port between 1 and 65535")
+    if args.unit is not None and not 0 <= args.unit <= 255:
+        raise input_error(f"--unit {args.unit}: a Modbus unit id from 0 to 255")
     if not (0 < args.speed <= 1e6):
         raise input_error(f"--speed {args.speed!r}: above 0 and at most 1e6")
     T = parse_temperature(args.temperature)
@@ -72,17 +95,37 @@ def cmd_simulate(args: argparse.Namespace) -> int:
     cyl = Cylinder(g_, parse_volume(args.volume, "cylinder volume"), pressure_abs(args.pressure, amb), T, loss,
                    args.speed, amb)
     duration = _for(args.duration)
-    print(f"simulated {g_.name} cylinder on 127.0.0.1:{args.port} (device 1): {d.gauge(cyl.pressure_abs_pa)}, "
+    who = "every unit id" if args.unit is None else f"unit {args.unit}"
+    print(f"simulated {g_.name} cylinder on 127.0.0.1:{args.port} ({who}): {d.gauge(cyl.pressure_abs_pa)}, "
           f"losing {loss * 6e4:.3g} g/min, clock ×{args.speed:g}" + (f" for {d.hours(duration / 3600)}"
                                                                      if duration else "; Ctrl-C stops it"),
           flush=True)
     try:
-        asyncio.run(serve(cyl, args.port, duration_s=duration))
+        asyncio.run(serve(cyl, args.port, duration_s=duration, unit=args.unit))
     except (OSError, RuntimeError) as exc:
         why = getattr(exc, "strerror", None) or "the port is in use or not allowed"
         raise input_error(f"cannot serve on 127.0.0.1:{args.port}: {why}") from None
     except KeyboardInterrupt:
         pass
+    return 0
+
+
+def cmd_samples(args: argparse.Namespace) -> int:
+    """Every stored sample of a supply's streams in the span, as CSV or JSON Lines."""
+    import sys
+
+    from benchwarden.render.files import write_output
+    from benchwarden.render.samples import samples_csv, samples_jsonl
+    from benchwarden.workflows.sample_export import supply_samples
+
+    journal = getattr(args, "journal", None)
+    rows = supply_samples(args.profile, args.supply, journal, getattr(args, "from"), args.to)
+    text = (samples_jsonl if args.format == "jsonl" else samples_csv)(rows)
+    if args.output:
+        out = write_output(args.output, text, protected=(args.profile, journal))
+        print(f"{len(rows)} row(s) written to {out}")
+    else:
+        sys.stdout.write(text)
     return 0
 
 
@@ -161,5 +204,6 @@ def _report(state: Any, d: Any, describe: Any, live_text: Any, err: Any) -> None
         lv = state.live.get(s.id)
         if lv is None:
             continue
-        print(f"{now:%H:%M:%S}  {s.id:<8} {live_text(lv, d)}; to reserve {d.hours(state.hours_left(s.id, now))}",
+        print(f"{now:%H:%M:%S}  {s.id:<8} {live_text(lv, d, now.date())}; "
+              f"to reserve {d.hours(state.hours_left(s.id, now))}",
               flush=True)

@@ -1,7 +1,9 @@
 """A simulated cylinder served as a Modbus/TCP device, for trying live gauges without hardware.
 
-Register map (holding registers, device 1): 0–1 the pressure in bar(g) as float32 (big-endian
-words), 2–3 the gas temperature in °C as float32. The cylinder loses gas by the real-gas mass
+Register map (holding registers, and the same in input registers; any unit id, or only the one
+given): 0–1 the pressure in bar(g) as float32 (big-endian words), 2–3 the gas temperature in °C
+as float32. A request for another unit id (with ``unit``) gets no answer, as on a bus; nothing
+is printed for a misbehaving client (pymodbus's own log is silenced: no tracebacks, no frames). The cylinder loses gas by the real-gas mass
 balance m(t) = m0 − (ṁ_leak + ṁ_draw)·t (CoolProp HEOS: p from ρ = m/V at the set temperature);
 ``speed`` runs its clock N times faster, so a night's hold test takes a minute.
 """
@@ -59,14 +61,23 @@ def _words(value: float) -> list[int]:
     return [int.from_bytes(raw[0:2], "big"), int.from_bytes(raw[2:4], "big")]
 
 
-async def serve(cyl: Cylinder, port: int, host: str = "127.0.0.1", duration_s: float | None = None) -> None:
-    """Serve the cylinder on ``host:port`` until ``duration_s`` passes (or forever)."""
+async def serve(cyl: Cylinder, port: int, host: str = "127.0.0.1", duration_s: float | None = None,
+                unit: int | None = None) -> None:
+    """Serve the cylinder on ``host:port`` until ``duration_s`` passes (or forever), answering
+    every unit id, or only ``unit`` (0–255)."""
+    import logging
+
     import pymodbus  # noqa: F401  (the package first: importing pymodbus.server first is circular in 3.16)
     from pymodbus.server import ModbusTcpServer
     from pymodbus.simulator import DataType, SimData, SimDevice
 
     if not 0 < port < 65536:
         raise InputError(f"port {port} must be between 1 and 65535")
+    if unit is not None and not 0 <= unit <= 255:
+        raise InputError(f"unit id {unit} must be between 0 and 255")
+    log = logging.getLogger("pymodbus")
+    log.setLevel(logging.CRITICAL + 1)  # a client's bad request must not print tracebacks or wire dumps
+    log.propagate = False
 
     async def action(function_code: int, start_address: int, address: int, count: int,
                      current: list[int], set_registers: object) -> None:
@@ -76,9 +87,10 @@ async def serve(cyl: Cylinder, port: int, host: str = "127.0.0.1", duration_s: f
                 current[i] = regs[start_address + i]
         return None
 
-    device = SimDevice(1, simdata=[SimData(0, count=4, values=0, datatype=DataType.REGISTERS)],
+    # id 0: every unit id (pymodbus's catch-all device); shared registers: holding = input
+    device = SimDevice(0 if unit is None else unit, simdata=[SimData(0, count=4, values=0, datatype=DataType.REGISTERS)],
                        action=action)  # type: ignore[arg-type]
-    server = ModbusTcpServer(device, address=(host, port))
+    server = ModbusTcpServer(device, address=(host, port), ignore_missing_devices=True)
     cyl.started = time.monotonic()  # the simulated clock starts with the server
     task = asyncio.create_task(server.serve_forever())
     try:

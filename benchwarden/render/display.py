@@ -185,19 +185,26 @@ def profile_display(prof: Profile | None, pressure_unit: str | None = None) -> D
     return display_for(pressure_unit or prof.display.pressure_unit, prof.ambient_pa)
 
 
-def live_text(lv: Any, d: Display) -> str:
+def live_text(lv: Any, d: Display, today: dt.date | None = None) -> str:
     """One line for a supply's live gauge (a :class:`benchwarden.workflows.session.LiveSupply`):
-    its latest sample, the leak watch, or that it fell silent."""
+    its latest sample (with its date when it is not from ``today``, by default the computer's),
+    the latest sample set aside, the leak watch, or that it fell silent."""
     from benchwarden.render.numbers import fmt_uncertain
 
     parts = []
     if lv.silent:
         parts.append(f"gauge SILENT ({lv.silent})")
     if lv.sample is not None:
-        parts.append(f"live {d.gauge(lv.sample.pressure_abs_pa)} at {lv.sample.at.strftime('%H:%M:%S')}"
+        at = lv.sample.at
+        day = today or dt.datetime.now(at.tzinfo).date()
+        parts.append(f"live {d.gauge(lv.sample.pressure_abs_pa)} at "
+                     f"{at.strftime('%H:%M:%S' if at.date() == day else '%Y-%m-%d %H:%M:%S')}"
                      + (f", {d.temperature(lv.sample.temperature_k)}" if lv.sample.temperature_k else ""))
     elif not lv.silent:
         parts.append("live: waiting for the first sample")
+    bad = getattr(lv, "last_bad", None)
+    if bad:
+        parts.append(f"last sample set aside: {bad}")
     if lv.leak is not None:
         parts.append(f"leak watch {lv.leak.verdict} "
                      f"{fmt_uncertain(lv.leak.leak_rate_sccm, lv.leak.leak_rate_uncertainty_sccm, 'sccm')} "

@@ -240,6 +240,10 @@ TEMPLATES: dict[str, Template] = {
     "hold-test-pressure-rose": lambda f, v, d: (
         f"{'the last hold test' if not v.get('supply') else 'the last hold test on ' + str(v['supply'])}: "
         + VERDICT_WORDS["pressure-rose"], _hold_figure(v)),
+    "lab-bench-silent": lambda f, v, d: (
+        (f"bench {v['bench_id']} last sent its record to the lab {Display.ago(float(v['age_s']) / 86400.0)}: check "
+         "its computer and its network" if v.get("age_s") is not None
+         else f"bench {v['bench_id']} is registered in the lab but has never sent its record"), "silent"),
     "hold-test-old": lambda f, v, d: (
         f"the last hold test is older than {v['max_age_days']:.0f} days: repeat it", _hold_figure(v)),
     "hold-test-ok": lambda f, v, d: ("last hold test resolved no leak", _hold_figure(v)),

@@ -19,7 +19,7 @@ from typing import Any
 from benchwarden.errors import JournalError
 from benchwarden.storage.events import EVENT_MIGRATION, Event, event_trigger
 
-SCHEMA_VERSION = 7
+SCHEMA_VERSION = 8
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -170,9 +170,13 @@ _MIGRATIONS: dict[int, str | tuple[str, ...]] = {
         PRIMARY KEY (bench, supply_id, what)
     );
     """,
-    6: EVENT_MIGRATION,
+    6: """
+    ALTER TABLE samples ADD COLUMN status TEXT;
+    ALTER TABLE samples ADD COLUMN reason TEXT;
+    """,
+    7: EVENT_MIGRATION,
     # purges run and hold tests started to finish later, each also an event (issue 29)
-    7: (
+    8: (
         "CREATE TABLE purges (id INTEGER PRIMARY KEY, bench TEXT NOT NULL, supply_id TEXT NOT NULL,"
         " at TEXT NOT NULL, operator TEXT, method TEXT NOT NULL, cycles INTEGER,"
         " gas_standard_litres REAL NOT NULL, details TEXT, entered_at TEXT NOT NULL)",

@@ -17,6 +17,7 @@ from typing import Any, Literal
 from pydantic import (
     Field,
     ValidationError,
+    field_validator,
     model_validator,
 )
 
@@ -32,11 +33,13 @@ from benchwarden.storage.profile_fields import (
     MassQ,
     PressureQ,
     Source,
+    SourceBase,
     TemperatureQ,
     TemperatureSource,
     VentilationQ,
     VoltageQ,
     VolumeQ,
+    shared_port_conflict,
 )
 from benchwarden.storage.profile_fields import ProfileModel as _Model
 from benchwarden.storage.profile_fields import positive as _positive
@@ -304,6 +307,24 @@ class DisplaySettings(_Model):
     """Unit pressures are shown in (gauge marked (g) or psig, absolute (a) or psia); JSON stays SI."""
 
 
+class LabSection(_Model):
+    url: str = Field(max_length=500)
+    """The lab database, a PostgreSQL connection URL *without* a password
+    (``postgresql://bw_bench_bench_2@lab-db.example/benchwarden?sslmode=verify-full``); the password
+    or certificate comes from PostgreSQL's usual sources (PGPASSWORD, ~/.pgpass, a service file)."""
+    bench_id: str = Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9_-]{0,39}$")
+    """This bench's id in the lab (letters, digits, '-' and '_'; at most 40)."""
+
+    @field_validator("url")
+    @classmethod
+    def _no_password(cls, v: str) -> str:
+        if not re.match(r"^postgres(ql)?://", v):
+            raise ValueError("the lab url must be a PostgreSQL URL (postgresql://user@host/database)")
+        if re.match(r"^postgres(ql)?://[^/@]*:[^/@]*@", v) or re.search(r"[?&]password=", v):
+            raise ValueError("the lab url must not hold a password: use PGPASSWORD, ~/.pgpass or a service file")
+        return v
+
+
 class _Located(InputError):
     """A check across sections, with the key it is about (for the line number)."""
 
@@ -322,6 +343,8 @@ class Profile(_Model):
     session: Session
     checklist: ChecklistConfig = Field(default_factory=ChecklistConfig)
     display: DisplaySettings = Field(default_factory=DisplaySettings)
+    lab: LabSection | None = None
+    """Ships this bench's record to a lab database (``lab push``; ``watch`` and the app push too)."""
 
     @model_validator(mode="after")
     def _cross(self) -> Profile:
@@ -355,6 +378,9 @@ class Profile(_Model):
                 if s.gauge is not None and p > s.gauge.range.abs_at(amb):
                     raise _Located(("supplies", i, "reading"), f"supply {s.id}: reading {s.reading.text} is above "
                                                                f"the gauge range {s.gauge.range.text}")
+        clash = shared_port_conflict(self._source_sections())
+        if clash is not None:
+            raise _Located(("supplies",), clash)
         for i, r in enumerate(self.regulators):
             if r.supply not in sup:
                 raise _Located(("regulators", i, "supply"), f"regulator {r.id}: supply {r.supply!r} does not exist "
@@ -375,6 +401,16 @@ class Profile(_Model):
                 raise _Located(("draws", i, "per_shot"),
                                f"draw {d.id}: per_shot needs a repetition_rate (on the draw or the session)")
         return self
+
+    def _source_sections(self) -> list[tuple[str, SourceBase]]:
+        """Every live source with the name of its section."""
+        out: list[tuple[str, SourceBase]] = []
+        for s in self.supplies:
+            out += [(f"[supplies.{k}] of supply {s.id}", getattr(s, k)) for k in ("source", "temperature_source")
+                    if getattr(s, k) is not None]
+        if self.room is not None and self.room.temperature_source is not None:
+            out.append(("[room.temperature_source]", self.room.temperature_source))
+        return out
 
     @property
     def ambient_pa(self) -> float:

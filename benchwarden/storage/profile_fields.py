@@ -80,6 +80,19 @@ class ProfileModel(BaseModel):
 # ----------------------------------------------------------------------------- live sources
 
 
+#: Register formats: the type, then the byte order in ABCD notation (A the most significant byte
+#: of the value as the Modbus specification sends it; ``-abcd``, the default, may be left out).
+TYPES: dict[str, int] = {"int16": 1, "uint16": 1, "int32": 2, "uint32": 2, "float32": 2, "float64": 4}
+BYTE_ORDERS = ("abcd", "cdab", "badc", "dcba")
+#: Older names kept as aliases.
+FORMAT_ALIASES = {"float32-swapped": "float32-cdab"}
+FORMAT_NAMES = tuple(list(TYPES) + [f"{t}-{o}" for t in TYPES for o in BYTE_ORDERS] + list(FORMAT_ALIASES))
+#: Named groups a ``pattern`` may have (``value`` is required).
+PATTERN_GROUPS = ("value", "unit", "time")
+#: Serial settings that every source on one port must share.
+PORT_SETTINGS = ("baud", "parity", "bytesize", "stopbits")
+
+
 class SourceBase(ProfileModel):
     """A transducer read live: where it is and how its number becomes a value."""
 
@@ -88,13 +101,15 @@ class SourceBase(ProfileModel):
     """Modbus/TCP: the device or gateway's address."""
     port: int | str | None = None
     """Modbus/TCP: the TCP port (502 by default); serial and Modbus RTU: the serial port, e.g. "/dev/ttyUSB0"."""
-    device: int = Field(default=1, ge=0, le=247)
-    """Modbus unit id."""
+    device: int = Field(default=1, ge=0, le=255)
+    """Modbus unit id (Modbus/TCP 0–255; Modbus RTU 1–247)."""
     address: int = Field(default=0, ge=0, le=65535, alias="register")
-    """The first register (profile key ``register``)."""
+    """The first register, 0-based as sent on the wire (profile key ``register``; "40001" is 0)."""
     input_registers: bool = False
     """Read input registers instead of holding registers."""
-    format: Literal["int16", "uint16", "int32", "uint32", "float32", "float32-swapped"] = "float32"
+    format: str = "float32"
+    """``int16``, ``uint16``, ``int32``, ``uint32``, ``float32`` or ``float64``, with the byte order
+    as a suffix: ``-abcd`` (default), ``-cdab``, ``-badc``, ``-dcba``."""
     scale: float = Field(default=1.0, allow_inf_nan=False)
     offset: float = Field(default=0.0, allow_inf_nan=False)
     value_unit: str = Field(default="bar", max_length=16)
@@ -103,8 +118,25 @@ class SourceBase(ProfileModel):
     """How often to read."""
     baud: int = Field(default=9600, ge=300, le=4_000_000)
     parity: Literal["N", "E", "O"] = "N"
+    bytesize: Literal[7, 8] = 8
+    stopbits: Literal[1, 2] = 1
     pattern: str | None = Field(default=None, max_length=200)
-    """Serial or file: a regular expression whose first group is the number."""
+    """Serial or file: a regular expression with the named group ``value`` (and optionally
+    ``unit`` and ``time``)."""
+    delimiter: Literal[",", ";", "\t", "whitespace"] | None = None
+    """Serial or file: the column separator (none: the line is the value)."""
+    decimal: Literal[".", ","] = "."
+    """Serial or file: the decimal mark of the values."""
+    time_column: int | str | None = None
+    """Serial or file: the column of the time stamp (1-based, or a header name)."""
+    value_column: int | str | None = None
+    """Serial or file: the column of the value (1-based, or a header name)."""
+    time_format: str = Field(default="iso8601", max_length=64)
+    """``iso8601``, ``epoch``, ``epoch-ms`` or a strftime pattern such as ``%d.%m.%Y %H:%M:%S``."""
+    timezone: str | None = Field(default=None, max_length=64)
+    """IANA zone of time stamps without an offset (default: the computer's)."""
+    header_lines: int = Field(default=0, ge=0, le=100)
+    """File: lines skipped at its start (the last one names the columns)."""
     path: str | None = Field(default=None, max_length=4096)
     """File: the growing log."""
 
@@ -115,13 +147,53 @@ class SourceBase(ProfileModel):
             if getattr(self, key) in (None, ""):
                 raise InputError(f"a {self.kind} source needs {key}")
         self._check_unit()
-        if self.pattern is not None:
-            try:
-                re.compile(self.pattern)
-            except re.error as exc:
-                raise InputError(f"pattern is not a valid regular expression: {exc}") from None
+        if self.format not in FORMAT_NAMES:
+            raise InputError(f"format {self.format!r} is not one of {', '.join(TYPES)} with an optional byte order "
+                             f"suffix {', '.join('-' + o for o in BYTE_ORDERS)}")
+        if self.kind == "modbus-rtu" and not 1 <= self.device <= 247:
+            raise InputError(f"device {self.device}: a Modbus RTU unit id is 1 to 247")
+        self._check_dialect()
         positive(self.interval, "source interval")
         return self
+
+    def _check_dialect(self) -> None:
+        if self.pattern is not None:
+            try:
+                names = set(re.compile(self.pattern).groupindex)
+            except re.error as exc:
+                raise InputError(f"pattern is not a valid regular expression: {exc}") from None
+            if "value" not in names or names - set(PATTERN_GROUPS):
+                raise InputError(f"pattern {self.pattern!r} needs the named group (?P<value>...) and may have only "
+                                 f"{', '.join(PATTERN_GROUPS)}")
+            if self.delimiter is not None:
+                raise InputError("give either pattern or delimiter, not both")
+        for key in ("time_column", "value_column"):
+            v = getattr(self, key)
+            if isinstance(v, bool) or (isinstance(v, int) and not 1 <= v <= 1000) or v == "":
+                raise InputError(f"{key} {v!r}: a column number from 1, or a header name")
+            if v is not None and self.delimiter is None:
+                raise InputError(f"{key} needs a delimiter (\",\", \";\", \"\\t\" or \"whitespace\")")
+        if self.time_column is not None and self.time_column == self.value_column:
+            raise InputError("time_column and value_column are the same column")
+        if self.time_format not in ("iso8601", "epoch", "epoch-ms") and "%" not in self.time_format:
+            raise InputError(f"time_format {self.time_format!r}: iso8601, epoch, epoch-ms or a strftime pattern "
+                             "such as \"%d.%m.%Y %H:%M:%S\"")
+        if self.timezone is not None:
+            from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+            try:
+                ZoneInfo(self.timezone)
+            except (ZoneInfoNotFoundError, ValueError):
+                raise InputError(f"timezone {self.timezone!r} is not an IANA zone name such as "
+                                 "\"Europe/Berlin\" or \"UTC\"") from None
+        if self.kind not in ("serial", "file"):
+            for key in ("pattern", "delimiter", "time_column", "value_column", "header_lines"):
+                if getattr(self, key) not in (None, 0):
+                    raise InputError(f"{key} belongs to serial and file sources, not {self.kind}")
+
+    def port_settings(self) -> dict[str, object]:
+        """The serial settings every source on this source's port must share."""
+        return {k: getattr(self, k) for k in PORT_SETTINGS}
 
     def _check_unit(self) -> None:
         raise NotImplementedError
@@ -152,3 +224,26 @@ class TemperatureSource(SourceBase):
 
     def _check_unit(self) -> None:
         u.parse_temperature(f"20 {self.value_unit}", "temperature source value_unit")
+
+
+def shared_port_conflict(sections: list[tuple[str, SourceBase]]) -> str | None:
+    """Two sources on one serial port whose settings disagree (one port, one connection), as a
+    sentence naming both sections; None when every port's sources agree. ``sections`` pairs a
+    section's name (e.g. ``supplies[0].source``) with its source."""
+    seen: dict[str, tuple[str, SourceBase]] = {}
+    for name, src in sections:
+        if src.kind not in ("modbus-rtu", "serial"):
+            continue
+        port = str(src.port)
+        if port not in seen:
+            seen[port] = (name, src)
+            continue
+        first_name, first = seen[port]
+        if src.kind != first.kind or src.kind == "serial":
+            return (f"{first_name} and {name} both use the serial port {port}; one port is one connection: "
+                    "only modbus-rtu sources can share it")
+        differ = [k for k in PORT_SETTINGS if getattr(src, k) != getattr(first, k)]
+        if differ:
+            detail = ", ".join(f"{k} {getattr(first, k)} vs {getattr(src, k)}" for k in differ)
+            return f"{first_name} and {name} share the serial port {port} but disagree: {detail}"
+    return None

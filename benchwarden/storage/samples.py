@@ -32,12 +32,40 @@ if TYPE_CHECKING:
 
     from benchwarden.storage.journal import Journal
 
-__all__ = ["RAW_WINDOW_S", "BLOCK_S", "swinging_door", "SampleStore", "Columns"]
+__all__ = ["RAW_WINDOW_S", "BLOCK_S", "GOOD", "swinging_door", "SampleStore", "Columns", "StoredRow"]
 
 #: Samples younger than this stay raw, one row each [s].
 RAW_WINDOW_S = 2 * 86400.0
 #: Older samples are compressed in blocks of this length [s].
 BLOCK_S = 3600.0
+#: The SQL condition of a good raw sample.
+GOOD = "value IS NOT NULL AND status IS NULL"
+
+#: A sample to store: (unix time [s], value or None) for a good or bad one, or (time, value,
+#: status, reason) with status ``good``, ``bad`` or ``implausible``.
+Row = tuple[float, float | None] | tuple[float, float | None, str, str]
+
+
+def _row(stream: int, r: Row) -> tuple[int, float, float | None, str | None, str | None]:
+    if len(r) == 2:
+        return stream, float(r[0]), r[1], None if r[1] is not None else "bad", None
+    status = None if r[2] == "good" else r[2]
+    if status not in (None, "bad", "implausible"):
+        raise InputError(f"sample status {r[2]!r} is not good, bad or implausible")
+    if status is None and r[1] is None:
+        raise InputError("a good sample needs a value")
+    return stream, float(r[0]), r[1], status, r[3] or None
+
+
+@dataclass(frozen=True)
+class StoredRow:
+    """One row of a stream as stored: a raw sample, a trace vertex, or an hour's min or max."""
+
+    t: float
+    kind: str  # raw | trace | min | max
+    value: float | None
+    status: str  # good | bad | implausible
+    reason: str
 
 
 def swinging_door(t: Sequence[float], v: Sequence[float], tolerance: float) -> tuple[list[float], list[float]]:
@@ -151,14 +179,19 @@ class SampleStore:
 
     # -- writing
 
-    def add(self, stream: int, rows: Sequence[tuple[float, float | None]]) -> int:
-        """Store samples (unix time [s], value or None for a bad sample), committed before
-        returning; a sample at a time already stored is ignored. Returns how many were new."""
+    def add(self, stream: int, rows: Sequence[Row]) -> int:
+        """Store samples (see :data:`Row`), committed before returning; a sample at a time
+        already stored is ignored. Returns how many were new."""
         if not rows:
             return 0
+        data: list[tuple[int, float, float | None, str | None, str | None]]
+        if all(len(r) == 2 for r in rows):  # the common case, kept fast: good or bad by the value
+            data = [(stream, float(r[0]), r[1], None if r[1] is not None else "bad", None) for r in rows]
+        else:
+            data = [_row(stream, r) for r in rows]
         return int(self.journal.write(lambda db: db.executemany(
-            "INSERT OR IGNORE INTO samples(stream, t, value) VALUES (?, ?, ?)",
-            [(stream, float(t), v) for t, v in rows]).rowcount))
+            "INSERT OR IGNORE INTO samples(stream, t, value, status, reason) VALUES (?, ?, ?, ?, ?)",
+            data).rowcount))
 
     def compact(self, stream: int, now: float) -> int:
         """Move whole blocks of raw samples older than the raw window into compressed blocks
@@ -173,8 +206,8 @@ class SampleStore:
             return 0
 
         def move(db: sqlite3.Connection) -> int:
-            moved = db.execute("SELECT t, value FROM samples WHERE stream = ? AND t < ? ORDER BY t",
-                               (stream, limit)).fetchall()
+            moved = db.execute(f"SELECT t, CASE WHEN {GOOD} THEN value END FROM samples WHERE stream = ? AND t < ? "
+                               "ORDER BY t", (stream, limit)).fetchall()
             # a log read again from its start (a restarted watcher) replays samples an hour already
             # compressed holds: only those after the hour's last stored sample join it
             covered = dict(db.execute("SELECT t0, t1 FROM sample_blocks WHERE stream = ? AND t0 >= ? AND t0 < ?",
@@ -232,8 +265,7 @@ class SampleStore:
 
     def latest(self, stream: int) -> tuple[float, float] | None:
         """The latest good sample (time, value), raw or compressed."""
-        row = self._q("SELECT t, value FROM samples WHERE stream = ? AND value IS NOT NULL ORDER BY t DESC LIMIT 1",
-                      (stream,))
+        row = self._q(f"SELECT t, value FROM samples WHERE stream = ? AND {GOOD} ORDER BY t DESC LIMIT 1", (stream,))
         if row:
             return float(row[0][0]), float(row[0][1])
         blk = self._q("SELECT t0, points FROM sample_blocks WHERE stream = ? AND n > 0 ORDER BY t0 DESC LIMIT 1",
@@ -242,6 +274,14 @@ class SampleStore:
             return None
         t, v = _unpack(blk[0][0], blk[0][1])
         return float(t[-1]), float(v[-1])
+
+    def last_not_good(self, stream: int) -> tuple[float, str, str] | None:
+        """The latest raw sample that is not good: (time, ``bad`` or ``implausible``, reason)."""
+        row = self._q(f"SELECT t, status, reason FROM samples WHERE stream = ? AND NOT ({GOOD}) ORDER BY t DESC "
+                      "LIMIT 1", (stream,))
+        if not row:
+            return None
+        return float(row[0][0]), row[0][1] or "bad", row[0][2] or ""
 
     def last_time(self, stream: int) -> float | None:
         """The time of the latest sample, good or bad."""
@@ -260,6 +300,29 @@ class SampleStore:
             pts += len(_unpack(t0, blob)[0]) if blob else 0
         return int(raw), n, pts
 
+    def rows(self, stream: int, t0: float, t1: float) -> list[StoredRow]:
+        """Everything stored of a stream between t0 and t1, in time order: raw samples with their
+        status and reason, and for compressed hours the trace vertices and the hour's minimum and
+        maximum (stamped with the hour's start: a block keeps no time for them)."""
+        out: list[StoredRow] = []
+        for b0, n, vmin, vmax, blob in self._q(
+                "SELECT t0, n, vmin, vmax, points FROM sample_blocks WHERE stream = ? AND t0 <= ? AND t1 >= ? "
+                "ORDER BY t0", (stream, t1, t0)):
+            if n > 0 and blob:
+                t, v = _unpack(b0, blob)
+                out += [StoredRow(float(a), "trace", float(b), "good", "") for a, b in zip(t, v, strict=True)
+                        if t0 <= a <= t1]
+            if vmin is not None and t0 <= b0 <= t1:
+                out += [StoredRow(float(b0), "min", float(vmin), "good", ""),
+                        StoredRow(float(b0), "max", float(vmax), "good", "")]
+        for t, value, status, reason in self._q(
+                "SELECT t, value, status, reason FROM samples WHERE stream = ? AND t BETWEEN ? AND ? ORDER BY t",
+                (stream, t0, t1)):
+            st = status or ("good" if value is not None else "bad")
+            out.append(StoredRow(float(t), "raw", value, st, reason or ""))
+        out.sort(key=lambda r: (r.t, r.kind != "raw"))
+        return out
+
     def points(self, stream: int, t0: float, t1: float) -> tuple[np.ndarray, np.ndarray]:
         """Good samples between t0 and t1 (raw rows, and the vertices of compressed blocks), in
         time order; for fits and plots."""
@@ -273,7 +336,7 @@ class SampleStore:
             keep = (t >= t0) & (t <= t1)
             ts.append(t[keep])
             vs.append(v[keep])
-        raw = self._q("SELECT t, value FROM samples WHERE stream = ? AND t BETWEEN ? AND ? AND value IS NOT NULL "
+        raw = self._q(f"SELECT t, value FROM samples WHERE stream = ? AND t BETWEEN ? AND ? AND {GOOD} "
                       "ORDER BY t", (stream, t0, t1))
         if raw:
             arr = np.asarray(raw, dtype=float)
@@ -330,7 +393,7 @@ class SampleStore:
                 ends = np.floor((inside - t0) / width).astype(int) - 1  # an edge belongs to both columns
                 fold(ends, at_edges, at_edges)
         raw = self._q("SELECT CAST((t - ?) / ? AS INTEGER) AS c, MIN(value), MAX(value) FROM samples "
-                      "WHERE stream = ? AND t >= ? AND t < ? AND value IS NOT NULL GROUP BY c",
+                      f"WHERE stream = ? AND t >= ? AND t < ? AND {GOOD} GROUP BY c",
                       (t0, width, stream, t0, t1))
         if raw:
             arr = np.asarray(raw, dtype=float)

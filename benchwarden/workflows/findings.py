@@ -16,7 +16,7 @@ import datetime as dt
 import math
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
-from typing import Literal
+from typing import Any, Literal
 
 from benchwarden.core import gas as g
 from benchwarden.core.supply import Contents
@@ -378,3 +378,26 @@ def alarm_findings(hours_left: Mapping[str, float], drawing: Mapping[str, bool],
     for sid, why in silent.items():
         out.append(Finding("alarm-gauge-silent", "warning", sid, {"why": why}))
     return ranked(out)
+
+
+# ----------------------------------------------------------------------------- the lab
+
+#: A bench whose latest snapshot is older than this is silent (a finding of its own) [s].
+LAB_SILENT_AFTER_S = 86400.0
+
+
+def lab_findings(benches: Iterable[Mapping[str, Any]], today: dt.date) -> list[Finding]:
+    """The lab's findings: each bench's own (as its snapshot judged them, with its id), and a bench
+    whose snapshot is more than a day old, or that never sent one, is silent."""
+    out: list[Finding] = []
+    for b in benches:
+        bid = str(b["bench_id"])
+        age = b.get("snapshot_age_s")
+        if age is None or float(age) > LAB_SILENT_AFTER_S:
+            out.append(Finding("lab-bench-silent", "warning", bid, {"bench_id": bid, "age_s": age}))
+        for f in b.get("findings", []):
+            sev = f.get("severity")
+            if sev in SEVERITY_RANK:
+                out.append(Finding(str(f["code"]), sev, f"{bid}: {f['subject']}",
+                                   dict(f.get("values") or {}) | {"bench_id": bid}))
+    return out

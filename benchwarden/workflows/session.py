@@ -90,6 +90,8 @@ class LiveSupply:
     sample: LatestSample | None
     leak: LeakWatch | None
     silent: str | None
+    last_bad: str | None = None
+    """The reason of the latest sample this watch set aside (bad or implausible)."""
 
 
 @dataclass
@@ -444,6 +446,7 @@ class SessionState:
         now = self.clock()
         self.recompute()
         silent = self.watcher.silent(now) if self.watcher is not None else {}
+        reasons = self.watcher.last_reasons(now) if self.watcher is not None else {}
         live: dict[str, LiveSupply] = {}
         for s in self.profile.supplies:
             if s.source is None:
@@ -457,7 +460,7 @@ class SessionState:
             else:
                 lw = leak_watch_recorded(self.journal, self.profile, s.id, now)
             live[s.id] = LiveSupply(s.id, latest_state(self.journal, self.profile, s.id, now.tzinfo), lw,
-                                    silent.get(s.id))
+                                    silent.get(s.id), reasons.get(s.id))
         if self._leak_at is None or (now - self._leak_at).total_seconds() >= LEAK_REFRESH_S:
             self._leak_at = now
         self.live = live

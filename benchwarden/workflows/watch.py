@@ -23,21 +23,24 @@ from __future__ import annotations
 
 import datetime as dt
 import json
-import math
-import time
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field
 from typing import Any
 
 from benchwarden.core import hold as hd
-from benchwarden.errors import BenchwardenError, InputError, JournalError
-from benchwarden.live.sources import LiveSource, SampleFilter, make_source
+from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.storage.journal import Journal
-from benchwarden.storage.profile import Profile, Supply
-from benchwarden.storage.profile_fields import SourceBase
+from benchwarden.storage.profile import Profile
 from benchwarden.storage.samples import SampleStore
 from benchwarden.workflows import build as pl
 from benchwarden.workflows.cylinder import current_change
+from benchwarden.workflows.feeds import (
+    BACKOFF_MAX_S,
+    SILENT_INTERVALS,
+    Feed,
+    Watcher,
+    sample_tolerance,
+)
 from benchwarden.workflows.findings import Finding
 from benchwarden.workflows.holds import (
     HoldRecord,
@@ -49,14 +52,8 @@ from benchwarden.workflows.holds import (
 from benchwarden.workflows.model import Observed
 
 __all__ = ["SILENT_INTERVALS", "BACKOFF_MAX_S", "sample_tolerance", "Feed", "Watcher", "LeakWatch", "leak_watch",
-           "record_leak_watch", "leak_watch_recorded", "live_draw", "AlarmBook"]
+           "record_leak_watch", "leak_watch_recorded", "last_bad_sample", "live_draw", "AlarmBook"]
 
-#: A gauge is silent after this many intervals without a good sample.
-SILENT_INTERVALS = 5
-#: Longest wait between reconnection attempts [s].
-BACKOFF_MAX_S = 60.0
-#: Temperature samples are kept within this [K] (a good Pt100 resolves 0.01 K; benchwarden default).
-TEMPERATURE_TOLERANCE_K = 0.05
 #: The leak watch needs this many samples over at least this span [s] before it says anything.
 LEAK_MIN_SAMPLES, LEAK_MIN_SPAN_S = 10, 60.0
 #: The leak watch looks back at most this far [s].
@@ -65,25 +62,6 @@ LEAK_MAX_SPAN_S = 14 * 86400.0
 ALARM_DEDUP_S = 120.0
 #: At most this many samples go into a fit (evenly spaced by index beyond it).
 FIT_MAX_POINTS = 20_000
-#: Pressure transducers read far finer than their accuracy: without a stated resolution the
-#: samples are kept within 0.01 % of the span (a 4½-digit display; benchwarden default).
-SPAN_RESOLUTION = 1e-4
-
-
-def sample_tolerance(s: Supply) -> float:
-    """How close [Pa] the stored trace of a supply's pressure stays to every sample: the
-    transducer's (or gauge's) resolution, else 0.01 % of its span (or of the transducer's
-    range), else 100 Pa."""
-    if s.source is not None and s.source.resolution is not None:
-        return s.source.resolution.typed_pa
-    spec = source_gauge_spec(s)
-    if spec is not None and spec.resolution_pa is not None:
-        return spec.resolution_pa
-    if spec is not None:
-        return spec.span_pa * SPAN_RESOLUTION
-    if s.source is not None and s.source.range is not None:
-        return s.source.range.typed_pa * SPAN_RESOLUTION
-    return 100.0
 
 
 def _ts(at: dt.datetime) -> float:
@@ -97,146 +75,6 @@ def _dt(t: float, tz: dt.tzinfo | None) -> dt.datetime:
 def _iso(text: str, tz: dt.tzinfo | None) -> dt.datetime:
     at = dt.datetime.fromisoformat(text)
     return at.replace(tzinfo=tz) if at.tzinfo is None else at
-
-
-# ----------------------------------------------------------------------------- polling
-
-
-@dataclass
-class Feed:
-    """One source being read: a supply's pressure, or a temperature."""
-
-    supply_id: str
-    quantity: str  # "pressure" | "temperature"
-    config: SourceBase
-    stream: int
-    interval_s: float
-    source: LiveSource | None = None
-    filter: SampleFilter | None = None
-    due: float = 0.0
-    failures: int = 0
-    last_good: dt.datetime | None = None
-    started: dt.datetime | None = None
-    why: str = ""
-    stored: int = 0
-
-    def silent(self, now: dt.datetime) -> bool:
-        since = self.last_good or self.started
-        return since is not None and (now - since).total_seconds() > SILENT_INTERVALS * self.interval_s
-
-
-class Watcher:
-    """Polls the sources of a profile and stores every sample (see module docstring).
-
-    ``open_source`` builds a source from its profile section (tests pass their own);
-    ``monotonic`` is the clock for scheduling, ``wallclock`` the time of a sample read."""
-
-    def __init__(self, prof: Profile, journal: Journal,
-                 open_source: Callable[[SourceBase, float], LiveSource] = make_source,
-                 monotonic: Callable[[], float] = time.monotonic,
-                 wallclock: Callable[[], dt.datetime] = lambda: dt.datetime.now().astimezone()) -> None:
-        self.prof, self.journal, self.open_source, self.monotonic = prof, journal, open_source, monotonic
-        #: the time a sample without its own timestamp gets (to the microsecond: two samples in
-        #: one second are two samples)
-        self.wallclock = wallclock
-        self.store = SampleStore(journal)
-        self.feeds: list[Feed] = []
-        bench = prof.bench.name
-        room_t = prof.room.temperature_source if prof.room is not None else None
-        for s in prof.supplies:
-            if s.source is not None:
-                sid = self.store.stream(bench, s.id, "pressure", sample_tolerance(s))
-                assert sid is not None
-                self.feeds.append(Feed(s.id, "pressure", s.source, sid, s.source.interval))
-            if s.temperature_source is not None:
-                sid = self.store.stream(bench, s.id, "temperature", TEMPERATURE_TOLERANCE_K)
-                assert sid is not None
-                self.feeds.append(Feed(s.id, "temperature", s.temperature_source, sid, s.temperature_source.interval))
-        if room_t is not None:
-            sid = self.store.stream(bench, "room", "temperature", TEMPERATURE_TOLERANCE_K)
-            assert sid is not None
-            self.feeds.append(Feed("room", "temperature", room_t, sid, room_t.interval))
-
-    def _filter(self, f: Feed) -> SampleFilter:
-        amb = self.prof.ambient_pa
-        if f.quantity == "temperature":
-            return SampleFilter(150.0, 400.0, 20.0)  # a cylinder or a room: −120 to +125 °C, 20 K jumps held
-        s = self.prof.supply(f.supply_id)
-        hi = s.test_pressure.abs_at(amb) if s.test_pressure is not None else s.service_pressure.abs_at(amb) * 1.5
-        src = s.source
-        if src is not None and src.range is not None:
-            hi = min(hi, src.range.abs_at(amb))
-        # a jump of more than 5 % of the range in one sample is held back until the next confirms it
-        return SampleFilter(0.0, hi * 1.0001, 0.05 * hi)
-
-    def next_due(self) -> float:
-        """Seconds until the next source is due (0 when one is due now)."""
-        if not self.feeds:
-            return math.inf
-        return max(0.0, min(f.due for f in self.feeds) - self.monotonic())
-
-    def poll(self, now: dt.datetime) -> int:
-        """Read every source that is due, store its samples (committed before returning);
-        returns how many were stored. Never raises for a source's failure: it becomes a bad
-        sample, the back-off and, in time, a silent gauge."""
-        stored = 0
-        mono = self.monotonic()
-        for f in self.feeds:
-            if f.started is None:
-                f.started = now
-            if mono < f.due:
-                continue
-            samples = []
-            try:
-                if f.source is None:
-                    f.source = self.open_source(f.config, self.prof.ambient_pa)
-                    f.filter = self._filter(f)
-                samples = f.source.poll(self.wallclock())
-            except InputError as exc:
-                f.why = str(exc)
-                f.source = None
-            good = False
-            rows: list[tuple[float, float | None]] = []
-            for raw in samples:
-                assert f.filter is not None
-                for smp in f.filter(raw):
-                    rows.append((_ts(smp.at), smp.value if smp.good else None))
-                    if smp.good:
-                        good = True
-                        f.last_good = smp.at if f.last_good is None else max(f.last_good, smp.at)
-                    else:
-                        f.why = smp.why
-            if rows:
-                added = self.store.add(f.stream, rows)  # JournalError goes up: the interface says so
-                f.stored += added
-                stored += added
-            if good or (samples and f.config.kind == "file"):
-                f.failures = 0
-                f.due = mono + f.interval_s
-            else:
-                if not samples and f.source is not None and f.config.kind == "file":
-                    f.due = mono + f.interval_s  # a log with nothing new yet is not a failure
-                    continue
-                f.failures += 1
-                f.due = mono + min(BACKOFF_MAX_S, f.interval_s * 2 ** min(f.failures - 1, 10))
-        return stored
-
-    def compact(self, now: dt.datetime) -> int:
-        """Compress samples older than the raw window (call now and then, e.g. hourly)."""
-        return sum(self.store.compact(f.stream, _ts(now)) for f in self.feeds)
-
-    def silent(self, now: dt.datetime) -> dict[str, str]:
-        """Supplies whose pressure gauge is silent, with the last reason."""
-        return {f.supply_id: f.why or "no sample" for f in self.feeds if f.quantity == "pressure" and f.silent(now)}
-
-    def close(self) -> None:
-        for f in self.feeds:
-            if f.source is not None:
-                try:
-                    f.source.close()
-                except Exception:  # noqa: BLE001 - closing a dead line must not stop the others
-                    pass
-                f.source = None
 
 
 # ----------------------------------------------------------------------------- what the samples say
@@ -365,6 +203,24 @@ def leak_watch_recorded(journal: Journal | None, prof: Profile, supply_id: str,
         except JournalError:
             pass
     return lw
+
+
+def last_bad_sample(journal: Journal | None, prof: Profile, supply_id: str,
+                    tz: dt.tzinfo | None = None) -> dict[str, str] | None:
+    """The supply's latest pressure sample that was not good — ``at``, ``status`` (``bad`` or
+    ``implausible``) and ``reason`` — or None."""
+    if journal is None:
+        return None
+    store = SampleStore(journal)
+    try:
+        sid = store.stream(prof.bench.name, supply_id, "pressure")
+        got = store.last_not_good(sid) if sid is not None else None
+    except JournalError:
+        return None
+    if got is None:
+        return None
+    return {"at": dt.datetime.fromtimestamp(got[0], tz).isoformat(timespec="seconds"), "status": got[1],
+            "reason": got[2]}
 
 
 def live_draw(journal: Journal | None, prof: Profile, supply_id: str, since: dt.datetime, now: dt.datetime,
