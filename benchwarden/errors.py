@@ -26,6 +26,30 @@ class JournalError(BenchwardenError, OSError):
     """The session journal cannot be opened or written."""
 
 
+class RangeError(InputError):
+    """A value outside the range allowed (physical, of the method, or of sense), with its data so
+    a renderer can word it in the display unit: ``what``, ``value`` (SI, or a date), the bounds
+    ``lo``/``hi`` (None: open), the SI ``unit`` and ``why`` the range holds."""
+
+    def __init__(self, msg: str, *, what: str, value: object, lo: object = None, hi: object = None,
+                 unit: str = "", why: str = "") -> None:
+        super().__init__(msg)
+        self.what = what
+        self.value = value
+        self.lo = lo
+        self.hi = hi
+        self.unit = unit
+        self.why = why
+
+
+class ConflictError(InputError):
+    """Two options (or keys) given together that exclude each other; ``names`` are both."""
+
+    def __init__(self, msg: str, *, names: tuple[str, ...]) -> None:
+        super().__init__(msg)
+        self.names = names
+
+
 class LabUnreachable(BenchwardenError, ConnectionError):
     """The lab database cannot be reached (the command line exits with status 4)."""
 

@@ -77,7 +77,7 @@ def test_runtime_json(capsys):
         (["contents", "--gas", "kryptonite", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "15 degC"],
          "unknown gas"),
         (["contents", "--gas", "n2", "--volume", "-50 L", "--pressure", "2 bar", "--temperature", "15 degC"],
-         "above 0"),
+         "from 10 mL to 5 m³"),
         (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "nan bar", "--temperature", "15 degC"],
          "finite"),
         (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "-250 degC"],

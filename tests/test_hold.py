@@ -160,10 +160,10 @@ def test_hold_cli_json_and_errors(capsys, tmp_path):
     for k in ("leak_rate_sccm", "leak_rate_uncertainty_sccm", "leak_rate_pa_m3_s", "mass_loss_kg", "verdict"):
         assert k in d
     for argv, frag in [
-        (["--duration", "-2 h"], "greater than zero"),
-        (["--duration", "0 h"], "greater than zero"),
+        (["--duration", "-2 h"], "from 1 min to a year"),
+        (["--duration", "0 h"], "from 1 min to a year"),
         (["--start", "300 bar"], "above the gauge range"),
-        (["--volume", "0 L"], "above 0"),
+        (["--volume", "0 L"], "from 1 mL to 5 m³"),
     ]:
         base = {"--gas": "n2", "--volume": "50 L", "--start": "152 bar", "--end": "150 bar", "--duration": "14 h",
                 "--gauge-range": "250 bar", "--gauge-class": "1.6"}

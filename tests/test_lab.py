@@ -211,3 +211,25 @@ def test_pg_env_is_not_needed_to_find_binaries():
     from pgserver import bin_dir
 
     assert bin_dir() is not None or os.environ.get("CI") != "true"
+
+
+async def test_the_lab_screen_shows_every_bench(lab, tmp_path):
+    import contextlib
+    import io
+
+    from benchwarden.tui.lab import make_lab_app
+
+    prof, journal = _bench(tmp_path, lab, "bench-2", "Bench 2 screen")
+    with contextlib.redirect_stdout(io.StringIO()):
+        assert main(["--journal", journal, "lab", "push", prof]) == 0
+    app = make_lab_app(lab.url("benchwarden_viewer"))
+    async with app.run_test(size=(100, 32)) as pilot:
+        for _ in range(50):  # the worker reads the database: wait for it, bounded
+            await pilot.pause(0.1)
+            if app.view is not None:
+                break
+        assert app.view is not None
+        table = app.query_one("#lab-supplies")
+        benches = {str(table.get_row_at(i)[0]) for i in range(table.row_count)}
+        assert {"bench-2", "bench-9"} <= benches
+        assert any(f.code == "idle-drop-leak" for f in app.query_one("#lab-findings").shown)

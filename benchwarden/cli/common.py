@@ -44,6 +44,31 @@ def one_line(msg: str, limit: int = 199) -> str:
     return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
+def number(text: str) -> float:
+    """argparse type: a bare number in digits 0-9 (``float`` alone would take ``٣`` as 3)."""
+    from benchwarden.units.limits import plain_number
+
+    try:
+        return float(plain_number(text, "value"))
+    except ValueError as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from None
+
+
+def whole_number(text: str) -> int:
+    """argparse type: a whole number in digits 0-9."""
+    from benchwarden.units.limits import plain_number
+
+    try:
+        return int(plain_number(text, "value", integer=True))
+    except ValueError as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from None
+
+
+def given(args: argparse.Namespace, *options: str) -> list[str]:
+    """The names of ``options`` (``--volume``) that were given, for :func:`units.limits.conflict`."""
+    return [o for o in options if getattr(args, o.lstrip("-").replace("-", "_"), None) not in (None, "")]
+
+
 def input_error(msg: str) -> Exception:
     from benchwarden.errors import InputError
 
@@ -116,7 +141,9 @@ def add_display(p: argparse.ArgumentParser) -> None:
 
 def ambient(args: argparse.Namespace) -> float:
     from benchwarden.units import ATM_PA, ambient_from_altitude, parse_length, pressure_abs
+    from benchwarden.units.limits import conflict
 
+    conflict(given(args, "--ambient", "--altitude"), "the ambient pressure is given, or derived from the altitude")
     if getattr(args, "ambient", None):
         amb = pressure_abs(args.ambient, 0.0, "ambient pressure")
         if not 30e3 <= amb <= 120e3:

@@ -19,6 +19,7 @@ from benchwarden.cli.common import (
     exit_for,
     input_error,
     read_text_file,
+    whole_number,
 )
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean
@@ -27,6 +28,7 @@ from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.storage.journal import Journal, default_path
 from benchwarden.storage.profile import Profile, load_profile
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
+from benchwarden.units.limits import EARLIEST_RECORD, RETEST_HORIZON_YEARS, within_dates
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows import cylinder as cy
 from benchwarden.workflows.bench import assess
@@ -60,7 +62,7 @@ def configure(sub: Any, name: str) -> None:
     elif name == "strike":
         p = sub.add_parser("strike", help="strike a wrong reading out (kept and marked, with the reason)")
         p.add_argument("profile", help="bench profile (TOML)")
-        p.add_argument("reading_id", type=int, help="the reading's number (see 'status --json' or 'reading --json')")
+        p.add_argument("reading_id", type=whole_number, help="the reading's number (see 'status --json' or 'reading --json')")
         p.add_argument("--reason", required=True, help="why, e.g. 'typed psi for bar'")
         add_journal(p)
         p.set_defaults(func=cmd_strike)
@@ -160,7 +162,7 @@ def cmd_reading(args: argparse.Namespace) -> int:
                    "findings": [finding_dict(f, d) for f in a.findings if f.subject in (entry.supply_id, "leaks")]})
         return 0
     what = d.gauge(entry.pressure_abs_pa) if entry.pressure_abs_pa is not None else f"{entry.weight_kg:g} kg"
-    print(f"recorded {entry.supply_id} {what} at {Display.clock(entry.at)}"
+    print(f"recorded {entry.supply_id} {what} at {Display.clock(entry.at, now)}"
           + (f" in session #{running.id}" if running else " (idle reading)"))
     _print_findings([f for f in a.findings if f.subject in (entry.supply_id, "leaks")], d)
     return 0
@@ -171,26 +173,39 @@ def cmd_swap(args: argparse.Namespace) -> int:
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     d = display(args, prof.ambient_pa, prof)
     entry = _entry(args, prof, now)
-    retest = None
-    if args.retest:
-        try:
-            retest = dt.date.fromisoformat(args.retest.strip())
-        except ValueError:
-            raise input_error(f"retest date {args.retest!r}: write it as YYYY-MM-DD") from None
+    retest = _retest(args.retest, now.date())
     cy.check_reading(prof, None, entry)  # limits only: a new fill may be higher
     with _open(args) as j:
         cid = cy.record_change(j, prof, entry, now, args.label, retest)
     if args.json:
         emit_json({"change_id": cid, "supply": entry.supply_id, "at": entry.at.isoformat(),
                    "pressure_abs_pa": entry.pressure_abs_pa, "weight_kg": entry.weight_kg,
-                   "label": args.label, "retest_due": retest.isoformat() if retest else None})
+                   "label": args.label, "retest_due": retest.isoformat() if retest else None,
+                   "retest_overdue": retest < now.date() if retest else None})
         return 0
     what = d.gauge(entry.pressure_abs_pa) if entry.pressure_abs_pa is not None else f"{entry.weight_kg:g} kg"
     print(f"cylinder change recorded on {entry.supply_id}: new fill {what}"
           + (f", {args.label}" if args.label else "") + (f", retest due {retest}" if retest else ""))
+    if retest is not None and retest < now.date():
+        print(f"  RETEST OVERDUE since {retest}: do not use this cylinder until it has been inspected")
     print("  check the new connection for leaks: a hold test (benchwarden hold) or leak-detection solution "
           "on every fitting you disturbed")
     return 0
+
+
+def _retest(text: str | None, today: dt.date) -> dt.date | None:
+    """A retest (periodic inspection) due date: from 1990 to 15 years ahead."""
+    if not text:
+        return None
+    try:
+        retest = dt.date.fromisoformat(text.strip()) if text.strip().isascii() else None
+    except ValueError:
+        retest = None
+    if retest is None:
+        raise input_error(f"retest date {text!r}: write it as YYYY-MM-DD")
+    latest = today.replace(year=today.year + RETEST_HORIZON_YEARS, day=min(today.day, 28))
+    return within_dates(retest, "retest date", EARLIEST_RECORD, latest, text=text,
+                        why="an inspection interval is at most 10 years")
 
 
 def cmd_strike(args: argparse.Namespace) -> int:

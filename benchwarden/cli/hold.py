@@ -6,7 +6,6 @@ import argparse
 import datetime as dt
 import sys
 from dataclasses import asdict
-from pathlib import Path
 from typing import Any
 
 from benchwarden.cli.common import (
@@ -18,8 +17,10 @@ from benchwarden.cli.common import (
     computation,
     emit_json,
     emit_table,
+    given,
     input_error,
     journal_if_exists,
+    number,
     one_line,
 )
 from benchwarden.core import hold as hd
@@ -38,7 +39,10 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
+from benchwarden.units.constants import BAR_PA
+from benchwarden.units.limits import conflict, in_range, within
 from benchwarden.workflows import holds
+from benchwarden.workflows.ranges import read_log
 
 HOLD_LOG_FORMAT = """\
 log file (--log): CSV with a header row, comma-separated, decimal points (a semicolon-separated
@@ -73,7 +77,7 @@ def configure(sub: Any, name: str) -> None:
     p.add_argument("--t-uncertainty", default=None,
                    help="standard uncertainty of each temperature (default 0.5 K; 1 K when no temperatures are given)")
     p.add_argument("--gauge-range", help="gauge full scale, e.g. '250 bar'")
-    p.add_argument("--gauge-class", type=float, help="gauge accuracy class (EN 837-1), e.g. 1.6")
+    p.add_argument("--gauge-class", type=number, help="gauge accuracy class (EN 837-1), e.g. 1.6")
     p.add_argument("--gauge-repeatability", help="the maker's repeatability (± limit), used for the difference "
                                                  "of the two readings, e.g. '0.05 bar'")
     p.add_argument("--resolution", help="smallest reading step, e.g. '1 bar'; adds resolution/√12 to each "
@@ -101,30 +105,58 @@ def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
             raise input_error("--resolution needs --gauge-range and --gauge-class")
         return None
     span = pressure_abs(args.gauge_range, amb, "gauge range") - amb
-    res = pressure_abs(args.resolution, 0.0, "resolution") if args.resolution else None
+    res = (within(pressure_abs(args.resolution, 0.0, "resolution"), "resolution", 0.01, span, "Pa", text=args.resolution,
+                  words="from 0.01 Pa to the gauge range") if args.resolution else None)
     rep = (pressure_abs(args.gauge_repeatability, amb, "gauge repeatability") - amb
            if args.gauge_repeatability is not None else None)
     return holds.gauge_spec(span, args.gauge_class, res, rep)
 
 
-def cmd_hold(args: argparse.Namespace) -> int:
-    g_, amb, d = computation(args)
+def _volume(args: argparse.Namespace) -> float:
+    """The held volume: given, or computed from the line's length and bore (not both)."""
+    conflict(given(args, "--volume", "--line-length", "--bore") if args.volume else [],
+             "the held volume is given, or computed from the line's length and bore")
     if args.volume:
         V = parse_volume(args.volume, "held volume")
     elif args.line_length and args.bore:
-        V = hd.line_volume(parse_length(args.line_length, "line length"), parse_length(args.bore, "bore"))
+        L = in_range("line length", parse_length(args.line_length, "line length"), text=args.line_length)
+        bore = in_range("bore", parse_length(args.bore, "bore"), text=args.bore)
+        V = hd.line_volume(L, bore)
     else:
         raise input_error("give the held --volume, or --line-length and --bore of the line")
+    return in_range("held volume", V, text=args.volume)
+
+
+def _reserve(args: argparse.Namespace, amb: float) -> float | None:
+    """The reserve: from 0 bar(g) to below the start pressure (when two readings are given)."""
+    if not args.reserve:
+        return None
+    reserve = pressure_abs(args.reserve, amb, "reserve")
+    start = pressure_abs(args.start, amb, "start pressure") if args.start and not args.log else None
+    hi = start - amb if start is not None else 2e8
+    within(reserve - amb, "reserve", 0.0, hi, "Pa(g)", text=args.reserve, hi_open=start is not None,
+           words=f"from 0 bar(g) to below the start pressure {args.start}" if start is not None
+           else f"from 0 to {2e8 / BAR_PA:g} bar(g)")
+    return reserve
+
+
+def cmd_hold(args: argparse.Namespace) -> int:
+    g_, amb, d = computation(args)
+    if args.log:
+        conflict(["--log", *given(args, "--start", "--end", "--duration")],
+                 "a log's readings replace the two readings and their duration")
+    V = _volume(args)
     gauge = _gauge(args, amb)
-    u_T = parse_temperature_difference(args.t_uncertainty) if args.t_uncertainty else hd.U_T_DEFAULT
+    u_T = (in_range("temperature uncertainty", parse_temperature_difference(args.t_uncertainty),
+                    text=args.t_uncertainty)
+           if args.t_uncertainty else hd.U_T_DEFAULT)
     target = hd.target_sccm(g_, parse_flow(args.target, what="target leak rate")) if args.target else None
-    reserve = pressure_abs(args.reserve, amb, "reserve") if args.reserve else None
+    if target is not None:
+        in_range("target leak rate", target, text=args.target)
+    reserve = _reserve(args, amb)
     fit = None
     if args.log:
-        try:
-            text = Path(args.log).expanduser().read_text(encoding="utf-8-sig")
-        except (OSError, UnicodeDecodeError) as exc:
-            raise input_error(f"cannot read log {args.log}: {getattr(exc, 'strerror', None) or exc}") from None
+        text = read_log(args.log)
         T_def = parse_temperature(args.t_start) if args.t_start else 293.15
         fit = hd.hold_from_log(g_, V, parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
                                reserve, amb)
@@ -134,7 +166,8 @@ def cmd_hold(args: argparse.Namespace) -> int:
             raise input_error("give --start, --end and --duration (or --log FILE.csv)")
         r = hd.hold_two_readings(
             g_, V, pressure_abs(args.start, amb, "start pressure"),
-            pressure_abs(args.end, amb, "end pressure"), parse_duration(args.duration, "hold duration"),
+            pressure_abs(args.end, amb, "end pressure"),
+            in_range("hold duration", parse_duration(args.duration, "hold duration"), text=args.duration),
             parse_temperature(args.t_start, "start temperature") if args.t_start else None,
             parse_temperature(args.t_end, "end temperature") if args.t_end else None,
             gauge, u_T, target, reserve, amb)

@@ -18,6 +18,7 @@ from benchwarden.cli.common import (
     input_error,
     journal_if_exists,
     one_line,
+    whole_number,
 )
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean, session_csv, write_output
@@ -62,7 +63,7 @@ def configure(sub: Any, name: str) -> None:
         p.set_defaults(func=cmd_sessions)
     elif name == "export":
         p = sub.add_parser("export", help="write one session's readings out")
-        p.add_argument("session", type=int, help="session number (see 'benchwarden sessions')")
+        p.add_argument("session", type=whole_number, help="session number (see 'benchwarden sessions')")
         p.add_argument("--format", choices=["csv"], default="csv")
         p.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output (kept if it "
                                                        "exists, unless --force)")

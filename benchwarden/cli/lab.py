@@ -32,7 +32,7 @@ _PROFILE_MAX = 1_000_000
 
 def configure(sub: Any, name: str) -> None:
     p = sub.add_parser("lab", help="the lab database: init, push a bench's record, status of all benches")
-    acts = p.add_subparsers(dest="action", metavar="init|push|status", required=True)
+    acts = p.add_subparsers(dest="action", metavar="init|push|status|open", required=True)
     a = acts.add_parser("init", help="create or migrate the lab schema and its roles (idempotent)")
     a.add_argument("url", help="PostgreSQL URL of the lab database, as its owner (no password: PGPASSWORD, ~/.pgpass)")
     a.add_argument("--bench", action="append", default=[], metavar="BENCH_ID",
@@ -49,6 +49,9 @@ def configure(sub: Any, name: str) -> None:
     add_json(c)
     add_fail_on(c)
     c.set_defaults(func=cmd_status)
+    o = acts.add_parser("open", help="the lab screen: every bench, read-only (in this terminal)")
+    o.add_argument("url", help="PostgreSQL URL of the lab database (the viewer role is enough)")
+    o.set_defaults(func=cmd_open)
 
 
 def _unreachable(exc: LabUnreachable) -> int:
@@ -136,6 +139,13 @@ def cmd_status(args: argparse.Namespace) -> int:
         text, figure = describe(f, d)
         print(f"  {SEVERITY_MARK[f.severity]:<12} {clean(f.subject)}: {clean(text)} [{figure}]")
     return exit_for(args, v.findings)
+
+
+def cmd_open(args: argparse.Namespace) -> int:
+    from benchwarden.tui.lab import make_lab_app
+
+    make_lab_app(args.url).run()
+    return 0
 
 
 __all__ = ["configure", "EXIT_UNREACHABLE", "EXIT_INPUT"]

@@ -7,7 +7,15 @@ import argparse
 import asyncio
 from typing import Any
 
-from benchwarden.cli.common import add_display, add_gas, add_journal, computation, input_error
+from benchwarden.cli.common import (
+    add_display,
+    add_gas,
+    add_journal,
+    computation,
+    input_error,
+    number,
+    whole_number,
+)
 from benchwarden.core import supply
 from benchwarden.live.simulator import Cylinder, serve
 from benchwarden.units import (
@@ -17,6 +25,7 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
+from benchwarden.units.limits import MIN_FLOW, in_range, within
 
 REGISTER_MAP = """\
 register map (127.0.0.1 only), the same values
@@ -60,14 +69,14 @@ def configure(sub: Any, name: str) -> None:
     p = sub.add_parser("simulate", help="serve a simulated cylinder as a Modbus/TCP pressure transducer",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=REGISTER_MAP)
     add_gas(p)
-    p.add_argument("--port", type=int, default=5020, help="TCP port on 127.0.0.1 (default 5020)")
-    p.add_argument("--unit", type=int, help="answer only this Modbus unit id, 0-255 (default: every unit id)")
+    p.add_argument("--port", type=whole_number, default=5020, help="TCP port on 127.0.0.1 (default 5020)")
+    p.add_argument("--unit", type=whole_number, help="answer only this Modbus unit id, 0-255 (default: every unit id)")
     p.add_argument("--volume", required=True, help="water volume, e.g. '50 L'")
     p.add_argument("--pressure", required=True, help="starting pressure, e.g. '150 bar'")
     p.add_argument("--temperature", default="20 degC", help="gas temperature (default 20 degC)")
     p.add_argument("--leak", default="0 sccm", help="a leak, e.g. '40 sccm'")
     p.add_argument("--draw", default="0 slpm", help="a draw, e.g. '2 slpm'")
-    p.add_argument("--speed", type=float, default=1.0, help="clock speed-up (default 1)")
+    p.add_argument("--speed", type=number, default=1.0, help="clock speed-up (default 1)")
     p.add_argument("--for", dest="duration", help="stop after this long, e.g. '10 min' (default: Ctrl-C)")
     p.set_defaults(func=cmd_simulate)
 
@@ -76,10 +85,7 @@ def _for(text: str | None) -> float | None:
     """``--for``: a duration above zero and at most a year (None: until Ctrl-C)."""
     if not text:
         return None
-    seconds = parse_duration(text, "--for")
-    if not 0 < seconds <= 366 * 86400:
-        raise input_error(f"--for {text!r}: above 0 s and at most a year")
-    return seconds
+    return in_range("run duration", parse_duration(text, "--for"), "--for", text)
 
 
 def cmd_simulate(args: argparse.Namespace) -> int:
@@ -91,9 +97,13 @@ def cmd_simulate(args: argparse.Namespace) -> int:
     if not (0 < args.speed <= 1e6):
         raise input_error(f"--speed {args.speed!r}: above 0 and at most 1e6")
     T = parse_temperature(args.temperature)
-    loss = sum(supply.mass_flow(g_, parse_flow(x, what=w)) for x, w in ((args.leak, "leak"), (args.draw, "draw")))
-    cyl = Cylinder(g_, parse_volume(args.volume, "cylinder volume"), pressure_abs(args.pressure, amb), T, loss,
-                   args.speed, amb)
+    flows = [(parse_flow(x, what=w), w, x) for x, w in ((args.leak, "leak"), (args.draw, "draw"))]
+    for f, w, x in flows:
+        if f.value != 0:
+            within(f.value, w, MIN_FLOW, None, "", text=x, words="0, or at least 0.001 sccm")
+    loss = sum(supply.mass_flow(g_, f) for f, _, _ in flows)
+    V = in_range("cylinder volume", parse_volume(args.volume, "cylinder volume"), text=args.volume)
+    cyl = Cylinder(g_, V, pressure_abs(args.pressure, amb), T, loss, args.speed, amb)
     duration = _for(args.duration)
     who = "every unit id" if args.unit is None else f"unit {args.unit}"
     print(f"simulated {g_.name} cylinder on 127.0.0.1:{args.port} ({who}): {d.gauge(cyl.pressure_abs_pa)}, "

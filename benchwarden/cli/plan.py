@@ -20,6 +20,7 @@ from benchwarden.cli.common import (
     emit_table,
     exit_for,
     journal_if_exists,
+    number,
 )
 from benchwarden.core.flow import orifice_flow
 from benchwarden.core.gap import breakdown
@@ -29,6 +30,7 @@ from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
 from benchwarden.render.plan import format_plan, plan_json
 from benchwarden.storage.profile import load_profile
 from benchwarden.units import parse_flow, parse_length, parse_temperature, pressure_abs
+from benchwarden.units.limits import in_range, within
 from benchwarden.workflows.bench import assess, leak_volume_flow
 from benchwarden.workflows.findings import outlet_findings
 
@@ -71,7 +73,7 @@ def configure(sub: Any, name: str) -> None:
         p.add_argument("--upstream", required=True, help="upstream pressure, e.g. '2 bar'")
         p.add_argument("--downstream", required=True, help="downstream pressure, e.g. '50 mbar(a)' or '0 bar'")
         p.add_argument("--temperature", required=True)
-        p.add_argument("--cd", type=float, default=0.62, help="discharge coefficient (default 0.62)")
+        p.add_argument("--cd", type=number, default=0.62, help="discharge coefficient (default 0.62)")
         add_ambient(p)
         add_display(p)
         add_json(p)
@@ -122,8 +124,9 @@ def cmd_throttle(args: argparse.Namespace) -> int:
 
 def cmd_gap(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
-    p = pressure_abs(args.pressure, amb, "gap pressure")
-    b = breakdown(g_, parse_length(args.spacing, "gap spacing"), p, parse_temperature(args.temperature))
+    p = in_range("gap pressure", pressure_abs(args.pressure, amb, "gap pressure"), text=args.pressure)
+    spacing = in_range("gap spacing", parse_length(args.spacing, "gap spacing"), text=args.spacing)
+    b = breakdown(g_, spacing, p, parse_temperature(args.temperature))
     if args.json:
         out = asdict(b)
         if not b.within_validity:
@@ -152,7 +155,9 @@ def cmd_orifice(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     up = pressure_abs(args.upstream, amb, "upstream pressure")
     down = pressure_abs(args.downstream, amb, "downstream pressure")
-    o = orifice_flow(g_, parse_length(args.diameter, "orifice diameter"), up, down,
+    within(args.cd, "--cd", 0.0, 1.0, "", lo_open=True, why="a discharge coefficient")
+    bore = in_range("orifice diameter", parse_length(args.diameter, "orifice diameter"), text=args.diameter)
+    o = orifice_flow(g_, bore, up, down,
                      parse_temperature(args.temperature), args.cd)
     if args.json:
         emit_json(asdict(o))

@@ -19,6 +19,7 @@ from benchwarden.cli.common import (
 from benchwarden.core import purge as pg
 from benchwarden.core import supply
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
+from benchwarden.units.limits import in_range
 from benchwarden.units.quantities import parse_fraction
 
 
@@ -41,7 +42,7 @@ def configure(sub: Any, name: str) -> None:
 
 def cmd_purge(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
-    V = parse_volume(args.volume, "purged volume")
+    V = in_range("purged volume", parse_volume(args.volume, "purged volume"), text=args.volume)
     hi = pressure_abs(args.high, amb, "fill pressure")
     lo = pressure_abs(args.low, amb, "vent pressure")
     T = parse_temperature(args.temperature)

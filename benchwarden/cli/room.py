@@ -20,11 +20,13 @@ from benchwarden.cli.common import (
     emit_table,
     gas,
     input_error,
+    number,
 )
 from benchwarden.render.hazards import hazard_items
 from benchwarden.render.room import floor_words, leak_rows, release_oxygen_words
 from benchwarden.render.supply import contents_refusal
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
+from benchwarden.units.limits import in_range, within
 from benchwarden.units.quantities import parse_amount, parse_ventilation
 from benchwarden.workflows.roomcheck import ContentsUnknown, leak_check, release_check
 
@@ -41,7 +43,7 @@ def configure(sub: Any, name: str) -> None:
     p.add_argument("--model", choices=["displacement", "mixed", "sealed"], default="displacement",
                    help="release model (default displacement, the most conservative)")
     p.add_argument("--temperature", default="20 degC", help="room temperature (default 20 degC)")
-    p.add_argument("--oxygen", type=float, default=20.95, help="initial oxygen, %% (default 20.95)")
+    p.add_argument("--oxygen", type=number, default=20.95, help="initial oxygen, %% (default 20.95)")
     p.add_argument("--supply-volume", help="with --leak: water volume of the cylinder that leaks, e.g. '50 L' "
                                            "(the leak stops when it is empty)")
     p.add_argument("--supply-pressure", help="with --leak: its pressure now, e.g. '200 bar'")
@@ -62,6 +64,7 @@ def cmd_room(args: argparse.Namespace) -> int:
     V = parse_volume(args.room_volume, "room volume")
     if V <= 0:
         raise input_error(f"room volume {args.room_volume!r} must be greater than zero")
+    in_range("room volume", V, text=args.room_volume)
     Q = parse_ventilation(args.ventilation).m3_s(V) if args.ventilation else 0.0
     if args.release:
         return _release(args, g_, V, T, amb)
@@ -73,16 +76,20 @@ def cmd_room(args: argparse.Namespace) -> int:
     if args.supply_volume is not None:
         sv = parse_volume(args.supply_volume, "supply volume")
         sp = pressure_abs(args.supply_pressure, amb, "supply pressure")
+    leak = parse_flow(args.leak, reference=args.flow_reference, what="leak")
+    in_range("flow", leak.value, "leak", args.leak)
     try:
-        ck = leak_check(g_, V, parse_flow(args.leak, reference=args.flow_reference, what="leak"), Q,
-                        args.ventilation_kind, args.oxygen, T, amb, sv, sp)
+        ck = leak_check(g_, V, leak, Q, args.ventilation_kind, args.oxygen, T, amb, sv, sp)
     except ContentsUnknown as exc:
         raise input_error(contents_refusal(exc.contents, display(args, amb))) from None
     return _leak(args, ck, V, Q)
 
 
 def _release(args: argparse.Namespace, g_: Any, V: float, T: float, amb: float) -> int:
-    ck = release_check(g_, V, parse_amount(args.release, "release"), args.model, args.oxygen, T, amb)
+    amount = parse_amount(args.release, "release")
+    within(amount.value, "release", 1e-6, 1e5, "m³" if amount.kind == "volume" else "kg", text=args.release,
+           words="from 1 mL to 1e5 m³ (or 1 mg to 1e5 kg)")
+    ck = release_check(g_, V, amount, args.model, args.oxygen, T, amb)
     r = ck.release
     hz = hazard_items(ck.toxic, ck.flammable, r.o2_percent_after_release, release=True)
     floor = ({"o2_percent_floor": ck.floor.o2_percent_after_release,

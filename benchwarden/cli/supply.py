@@ -16,6 +16,7 @@ from benchwarden.cli.common import (
     computation,
     emit_json,
     emit_table,
+    given,
     input_error,
 )
 from benchwarden.core import supply
@@ -35,8 +36,10 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
-from benchwarden.units.constants import T_FULL_K
+from benchwarden.units.constants import BAR_PA, T_FULL_K
+from benchwarden.units.limits import conflict, in_range, within
 from benchwarden.workflows.findings import contents_findings
+from benchwarden.workflows.ranges import check_weight_fits
 
 
 def configure(sub: Any, name: str) -> None:
@@ -87,19 +90,23 @@ def cmd_contents(args: argparse.Namespace) -> int:
     ref = get_reference(args.reference)
     T = parse_temperature(args.temperature) if args.temperature else T_FULL_K
     u_T = parse_temperature_difference(args.temperature_uncertainty)
+    conflict(given(args, "--pressure", "--gross", "--tare") if args.pressure else [],
+             "the contents come from the pressure or from the weights")
     if (args.gross is None) != (args.tare is None):
         raise input_error("--gross and --tare go together: give both weights")
     if args.gross is not None:
         if not args.volume:
             raise input_error("--gross and --tare need --volume (the cylinder's water volume): without it the state "
                               "in the cylinder (two-phase, liquid-full, supercritical) and its pressure are unknown")
-        c = supply.contents_by_weight(g_, parse_mass(args.gross, "gross weight"), parse_mass(args.tare, "tare weight"),
-                                      ref, T, parse_volume(args.volume, "cylinder volume"))
+        gross, tare = parse_mass(args.gross, "gross weight"), parse_mass(args.tare, "tare weight")
+        V = _volume(args.volume)
+        if gross > tare:
+            check_weight_fits(g_, gross - tare, V, T)
+        c = supply.contents_by_weight(g_, gross, tare, ref, T, V)
     else:
         if not (args.volume and args.pressure and args.temperature):
             raise input_error("contents needs --volume, --pressure and --temperature (or --gross, --tare and --volume)")
-        c = supply.contents(g_, parse_volume(args.volume, "cylinder volume"), pressure_abs(args.pressure, amb), T, ref,
-                            u_T)
+        c = supply.contents(g_, _volume(args.volume), pressure_abs(args.pressure, amb), T, ref, u_T)
     if c.mass_kg is None:
         # no pressure-based contents: the same one line and exit status in text and JSON modes
         raise input_error(contents_refusal(c, d))
@@ -141,13 +148,30 @@ def cmd_contents(args: argparse.Namespace) -> int:
     return 0
 
 
+def _volume(text: str) -> float:
+    return in_range("cylinder volume", parse_volume(text, "cylinder volume"), text=text)
+
+
+def _rating(text: str | None, what: str, amb: float, floor_gauge_pa: float = 0.0, why: str = "") -> float | None:
+    """A cylinder's service or test pressure: above ``floor_gauge_pa`` (gauge) and at most 2000 bar(g)."""
+    if not text:
+        return None
+    p = pressure_abs(text, amb, what)
+    within(p - amb, what, floor_gauge_pa, 2e8, "Pa(g)", lo_open=True, text=text, why=why,
+           words=f"above {floor_gauge_pa / BAR_PA:g} bar(g) and at most 2000 bar(g)")
+    return p
+
+
 def cmd_heat(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     p = pressure_abs(args.pressure, amb)
     T1 = parse_temperature(args.temperature)
     T2 = parse_temperature(args.to, "target temperature")
-    service = pressure_abs(args.service, amb, "service pressure") if args.service else None
-    test = pressure_abs(args.test, amb, "test pressure") if args.test else None
+    service = _rating(args.service, "service pressure", amb)
+    test = _rating(args.test, "test pressure", amb)
+    if service is not None and test is not None and test < service:
+        within(test - amb, "test pressure", service - amb, None, "Pa(g)", text=args.test,
+               words=f"at least the service pressure {args.service}", why="a cylinder is tested above its rating")
     h = supply.heat_up(g_, p, T1, T2, amb, service, test)
     if args.json:
         emit_json(asdict(h) | {"ambient_pressure_pa": amb})
@@ -175,11 +199,15 @@ def cmd_heat(args: argparse.Namespace) -> int:
 
 def cmd_runtime(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
-    V = parse_volume(args.volume, "cylinder volume")
+    V = _volume(args.volume)
     p = pressure_abs(args.pressure, amb)
     res = pressure_abs(args.reserve, amb, "reserve")
+    within(res - amb, "reserve", 0.0, p - amb, "Pa(g)", text=args.reserve, hi_open=True,
+           words=f"from 0 bar(g) to below the pressure now {args.pressure}")
     T = parse_temperature(args.temperature)
     flows = [parse_flow(f, reference=args.flow_reference) for f in args.flow]
+    for f in flows:
+        in_range("flow", f.value, "draw", f.text)
     draws = [supply.mass_flow(g_, f) for f in flows]
     r = supply.runtime(g_, V, p, res, T, sum(draws))
     now = dt.datetime.now().astimezone()

@@ -52,15 +52,15 @@ def connect(url: str) -> Iterator[Any]:
 
 def insert_events(conn: Any, bench_id: str, events: Sequence[Event]) -> int:
     """Insert a batch of events in one transaction; returns how many were new to the server."""
-    new = 0
+    if not events:
+        return 0
     with conn.transaction():
         cur = conn.cursor()
-        for e in events:
-            cur.execute("INSERT INTO lab_events(event_id, bench_id, seq, kind, bench_at, recorded_at, payload)"
+        cur.executemany("INSERT INTO lab_events(event_id, bench_id, seq, kind, bench_at, recorded_at, payload)"
                         " VALUES (%s, %s, %s, %s, %s, %s, %s) ON CONFLICT (event_id) DO NOTHING",
-                        (e.event_id, bench_id, e.seq, e.kind, e.at, e.recorded_at, json.dumps(e.payload)))
-            new += cur.rowcount
-    return new
+                        [(e.event_id, bench_id, e.seq, e.kind, e.at, e.recorded_at, json.dumps(e.payload))
+                         for e in events])
+        return max(0, int(cur.rowcount))  # psycopg 3: the rows the whole batch inserted
 
 
 def insert_snapshot(conn: Any, bench_id: str, taken_at: str, status: dict[str, Any], profile_text: str | None,

@@ -17,185 +17,9 @@ from pathlib import Path
 from typing import Any
 
 from benchwarden.errors import JournalError
-from benchwarden.storage.events import EVENT_MIGRATION, Event, event_trigger
-
-SCHEMA_VERSION = 8
-#: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
-APPLICATION_ID = 0x4753424A
-
-_MIGRATIONS: dict[int, str | tuple[str, ...]] = {
-    1: """
-    CREATE TABLE sessions (
-        id INTEGER PRIMARY KEY,
-        bench TEXT NOT NULL,
-        profile_path TEXT,
-        started_at TEXT NOT NULL,
-        stopped_at TEXT
-    );
-    CREATE TABLE readings (
-        id INTEGER PRIMARY KEY,
-        session_id INTEGER NOT NULL REFERENCES sessions(id),
-        supply_id TEXT NOT NULL,
-        at TEXT NOT NULL,
-        pressure_abs_pa REAL NOT NULL,
-        pressure_text TEXT NOT NULL,
-        temperature_k REAL NOT NULL,
-        entered_at TEXT NOT NULL
-    );
-    CREATE INDEX readings_session ON readings(session_id, at);
-    CREATE TABLE notes (
-        id INTEGER PRIMARY KEY,
-        session_id INTEGER NOT NULL REFERENCES sessions(id),
-        at TEXT NOT NULL,
-        text TEXT NOT NULL
-    );
-    """,
-    2: """
-    CREATE TABLE hold_tests (
-        id INTEGER PRIMARY KEY,
-        at TEXT NOT NULL,
-        bench TEXT,
-        supply_id TEXT,
-        gas TEXT NOT NULL,
-        volume_m3 REAL NOT NULL,
-        duration_s REAL NOT NULL,
-        verdict TEXT NOT NULL,
-        leak_rate_sccm REAL NOT NULL,
-        leak_rate_uncertainty_sccm REAL NOT NULL,
-        details TEXT
-    );
-    """,
-    3: """
-    CREATE TABLE readings_v3 (
-        id INTEGER PRIMARY KEY,
-        session_id INTEGER REFERENCES sessions(id),
-        bench TEXT,
-        supply_id TEXT NOT NULL,
-        at TEXT NOT NULL,
-        pressure_abs_pa REAL,
-        pressure_text TEXT NOT NULL,
-        temperature_k REAL NOT NULL,
-        entered_at TEXT NOT NULL,
-        weight_kg REAL,
-        ambient_pa REAL,
-        struck_at TEXT,
-        struck_reason TEXT
-    );
-    INSERT INTO readings_v3(id, session_id, bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,
-                            entered_at)
-        SELECT r.id, r.session_id, s.bench, r.supply_id, r.at, r.pressure_abs_pa, r.pressure_text, r.temperature_k,
-               r.entered_at FROM readings r LEFT JOIN sessions s ON s.id = r.session_id;
-    DROP INDEX readings_session;
-    DROP TABLE readings;
-    ALTER TABLE readings_v3 RENAME TO readings;
-    CREATE INDEX readings_session ON readings(session_id, at);
-    CREATE INDEX readings_supply ON readings(bench, supply_id, at);
-    CREATE TABLE changes (
-        id INTEGER PRIMARY KEY,
-        bench TEXT NOT NULL,
-        supply_id TEXT NOT NULL,
-        at TEXT NOT NULL,
-        pressure_abs_pa REAL,
-        pressure_text TEXT,
-        weight_kg REAL,
-        temperature_k REAL,
-        label TEXT,
-        retest_due TEXT,
-        entered_at TEXT NOT NULL
-    );
-    CREATE INDEX changes_supply ON changes(bench, supply_id, at);
-    ALTER TABLE sessions ADD COLUMN operator TEXT;
-    ALTER TABLE sessions ADD COLUMN shots INTEGER;
-    ALTER TABLE hold_tests ADD COLUMN kind TEXT;
-    """,
-    4: """
-    CREATE TABLE streams (
-        id INTEGER PRIMARY KEY,
-        bench TEXT NOT NULL,
-        supply_id TEXT NOT NULL,
-        quantity TEXT NOT NULL,
-        tolerance REAL NOT NULL,
-        UNIQUE (bench, supply_id, quantity)
-    );
-    CREATE TABLE samples (
-        stream INTEGER NOT NULL,
-        t REAL NOT NULL,
-        value REAL,
-        PRIMARY KEY (stream, t)
-    ) WITHOUT ROWID;
-    CREATE TABLE sample_blocks (
-        stream INTEGER NOT NULL,
-        t0 REAL NOT NULL,
-        t1 REAL NOT NULL,
-        n INTEGER NOT NULL,
-        bad INTEGER NOT NULL,
-        vmin REAL,
-        vmax REAL,
-        tolerance REAL NOT NULL,
-        points BLOB NOT NULL,
-        PRIMARY KEY (stream, t0)
-    ) WITHOUT ROWID;
-    CREATE TABLE alarms (
-        id INTEGER PRIMARY KEY,
-        bench TEXT NOT NULL,
-        supply_id TEXT,
-        code TEXT NOT NULL,
-        at TEXT NOT NULL,
-        text TEXT NOT NULL,
-        details TEXT
-    );
-    CREATE INDEX alarms_bench ON alarms(bench, at);
-    """,
-    5: """
-    CREATE TABLE accepted_stops (
-        id INTEGER PRIMARY KEY,
-        session_id INTEGER NOT NULL REFERENCES sessions(id),
-        at TEXT NOT NULL,
-        operator TEXT,
-        code TEXT NOT NULL,
-        subject TEXT NOT NULL,
-        text TEXT NOT NULL,
-        reason TEXT NOT NULL
-    );
-    CREATE INDEX accepted_stops_session ON accepted_stops(session_id);
-    ALTER TABLE readings ADD COLUMN note TEXT;
-    CREATE INDEX readings_struck ON readings(bench, supply_id) WHERE struck_at IS NOT NULL;
-    CREATE INDEX sessions_bench ON sessions(bench, started_at);
-    CREATE TABLE marks (
-        bench TEXT NOT NULL,
-        supply_id TEXT NOT NULL,
-        what TEXT NOT NULL,
-        reading_id INTEGER NOT NULL,
-        at TEXT NOT NULL,
-        PRIMARY KEY (bench, supply_id, what)
-    );
-    """,
-    6: """
-    ALTER TABLE samples ADD COLUMN status TEXT;
-    ALTER TABLE samples ADD COLUMN reason TEXT;
-    """,
-    7: EVENT_MIGRATION,
-    # purges run and hold tests started to finish later, each also an event (issue 29)
-    8: (
-        "CREATE TABLE purges (id INTEGER PRIMARY KEY, bench TEXT NOT NULL, supply_id TEXT NOT NULL,"
-        " at TEXT NOT NULL, operator TEXT, method TEXT NOT NULL, cycles INTEGER,"
-        " gas_standard_litres REAL NOT NULL, details TEXT, entered_at TEXT NOT NULL)",
-        "CREATE INDEX purges_supply ON purges(bench, supply_id, at)",
-        "CREATE TABLE hold_starts (id INTEGER PRIMARY KEY, bench TEXT NOT NULL, supply_id TEXT NOT NULL,"
-        " at TEXT NOT NULL, pressure_abs_pa REAL NOT NULL, pressure_text TEXT NOT NULL,"
-        " temperature_k REAL NOT NULL, ambient_pa REAL NOT NULL, hold_s REAL NOT NULL, entered_at TEXT NOT NULL)",
-        "CREATE INDEX hold_starts_supply ON hold_starts(bench, supply_id, at)",
-        "ALTER TABLE hold_tests ADD COLUMN start_id INTEGER REFERENCES hold_starts(id)",
-        event_trigger("purge", "purges", "INSERT", "NEW.bench", "NEW.at",
-                      "json_object('purge_id', NEW.id, 'supply_id', NEW.supply_id, 'operator', NEW.operator,"
-                      " 'method', NEW.method, 'cycles', NEW.cycles, 'gas_standard_litres', NEW.gas_standard_litres,"
-                      " 'details', json(COALESCE(NULLIF(NEW.details, ''), '{}')))"),
-        event_trigger("hold-start", "hold_starts", "INSERT", "NEW.bench", "NEW.at",
-                      "json_object('hold_start_id', NEW.id, 'supply_id', NEW.supply_id, 'pressure_abs_pa',"
-                      " NEW.pressure_abs_pa, 'pressure_text', NEW.pressure_text, 'temperature_k', NEW.temperature_k,"
-                      " 'ambient_pa', NEW.ambient_pa, 'hold_s', NEW.hold_s)"),
-    ),
-}
+from benchwarden.storage import journal_file as jf
+from benchwarden.storage.events import Event
+from benchwarden.storage.journal_schema import _MIGRATIONS, APPLICATION_ID, SCHEMA_VERSION  # noqa: F401
 
 
 def default_path(explicit: str | os.PathLike[str] | None = None) -> Path:
@@ -338,28 +162,31 @@ class Journal:
         #: one connection shared by the app's threads (the screen, the plan, the live gauges): a
         #: transaction and a read never interleave with another thread's
         self.lock = threading.RLock()
+        #: why this journal cannot be written (None: it can); reading works either way
+        self.read_only: str | None = None
         try:
             if self.path.exists() and not self.path.is_file():
                 raise JournalError(f"journal {self.path} is not a regular file")
-            if readonly:
-                # reading only (sessions, status, plan): works in a read-only folder, changes nothing
-                self.db = sqlite3.connect(f"{self.path.resolve().as_uri()}?mode=ro", uri=True, timeout=10.0,
-                                          isolation_level=None, check_same_thread=False)
-                self._identify()
-                if check:
-                    self._check_integrity()
-                if self.db.execute("PRAGMA user_version").fetchone()[0] == SCHEMA_VERSION:
+            # whose file is it: from its header, before anything opens it for writing
+            jf.identify(self.path, APPLICATION_ID, SCHEMA_VERSION)
+            if readonly or (self.path.exists() and not jf.writable(self.path)):
+                # reading only (sessions, export), or a file that cannot be written (a read-only
+                # mount): reading commands work, writes say why not
+                if self._open_readonly(check) == SCHEMA_VERSION:
                     return
-                self.db.close()  # an older schema: open it for writing so that it is migrated
-            self.path.parent.mkdir(parents=True, exist_ok=True)
-            self.db = sqlite3.connect(self.path, timeout=10.0, isolation_level=None, check_same_thread=False)
-            self._identify()  # before anything is changed: a foreign or newer file stays untouched
-            self.db.execute("PRAGMA journal_mode=WAL")
-            self.db.execute("PRAGMA synchronous=FULL")
-            self.db.execute("PRAGMA foreign_keys=ON")
-            if check:
-                self._check_integrity()
-            self._migrate()
+                self.db.close()
+                if not jf.writable(self.path):
+                    raise JournalError(f"journal {self.path} is from an older benchwarden and read-only: open it once "
+                                       "where it can be written (it is upgraded), then it reads here too")
+            self.read_only = None  # an older schema is opened for writing, so that it is migrated
+            try:
+                self._open_writable(check)
+            except jf.JournalFailure as exc:
+                self._readable_anyway(exc, check)
+            except JournalError:
+                raise
+            except (sqlite3.Error, OSError) as exc:
+                self._readable_anyway(jf.failure(self.path, exc), check)
         except JournalError:
             if hasattr(self, "db"):
                 self.db.close()
@@ -367,22 +194,66 @@ class Journal:
         except (sqlite3.Error, OSError) as exc:
             if hasattr(self, "db"):
                 self.db.close()
-            raise JournalError(f"cannot open the journal {self.path}: {exc}") from None
+            raise jf.failure(self.path, exc, writing=not readonly) from None
+
+    def _connect(self, query: str = "") -> sqlite3.Connection:
+        if not query:
+            return sqlite3.connect(self.path, timeout=10.0, isolation_level=None, check_same_thread=False)
+        return sqlite3.connect(f"{self.path.resolve().as_uri()}?{query}", uri=True, timeout=10.0,
+                               isolation_level=None, check_same_thread=False)
+
+    def _readable_anyway(self, err: jf.JournalFailure, check: bool) -> None:
+        """A journal that cannot be opened for writing (a full disk, a read-only file) is still
+        read: reading commands work, and every write says why not. Anything else is raised."""
+        if hasattr(self, "db"):
+            self.db.close()
+        if err.kind not in ("full", "read-only") or not self.path.exists():
+            raise err
+        if self._open_readonly(check, str(err)) != SCHEMA_VERSION:
+            raise err
+
+    def _open_readonly(self, check: bool, why: str | None = None) -> int:
+        """Open for reading only; the schema version. A WAL journal whose ``-shm`` cannot be made
+        (a read-only folder, a full disk) is read as an immutable file: nobody writes there."""
+        self.read_only = why or jf.read_only_words(self.path)
+        self.db = self._connect("mode=ro")
+        try:
+            self._identify()
+        except jf.JournalFailure as exc:
+            if exc.kind not in ("full", "read-only", "other"):
+                raise
+            self.db.close()
+            self.db = self._connect("mode=ro&immutable=1")
+            self._identify()
+        if check:
+            self._check_integrity()
+        return int(self.db.execute("PRAGMA user_version").fetchone()[0])
+
+    def _open_writable(self, check: bool) -> None:
+        new = not self.path.exists() or self.path.stat().st_size == 0
+        self.path.parent.mkdir(parents=True, exist_ok=True)
+        self.db = self._connect()
+        if new:  # the first write marks the file ours, so a crash before the schema leaves it ours
+            self.db.execute(f"PRAGMA application_id = {APPLICATION_ID}")
+        self._identify()  # before anything is changed: a foreign or newer file stays untouched
+        self.db.execute("PRAGMA journal_mode=WAL")
+        self.db.execute("PRAGMA synchronous=FULL")
+        self.db.execute("PRAGMA foreign_keys=ON")
+        if check:
+            self._check_integrity()
+        self._migrate()
 
     def _identify(self) -> None:
         """Refuse a SQLite file that is not a benchwarden journal, or one from a newer benchwarden,
-        before touching it."""
+        before touching it (on the open connection: what the write-ahead log holds counts too)."""
         try:
             app_id = self.db.execute("PRAGMA application_id").fetchone()[0]
             version = self.db.execute("PRAGMA user_version").fetchone()[0]
             tables = {r[0] for r in self.db.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
         except sqlite3.DatabaseError as exc:
-            raise JournalError(f"{self.path} is not a benchwarden journal ({exc}); point --journal at another "
-                               "file") from None
-        ours = app_id == APPLICATION_ID or (app_id == 0 and (not tables or "sessions" in tables and version >= 1))
-        if not ours:
-            raise JournalError(f"{self.path} is not a benchwarden journal (another program's SQLite file); it was "
-                               "left untouched — point --journal at another file")
+            raise jf.failure(self.path, exc, writing=False) from None
+        if not (jf.owned(app_id, APPLICATION_ID, version, tables) or (app_id == version == 0 and not tables)):
+            raise jf.foreign(self.path)
         if version > SCHEMA_VERSION:
             raise JournalError(f"journal {self.path} has schema {version}, newer than this benchwarden "
                                f"({SCHEMA_VERSION}): update benchwarden; the file was left untouched")
@@ -392,11 +263,11 @@ class Journal:
         try:
             result = self.db.execute("PRAGMA quick_check").fetchone()[0]
         except sqlite3.DatabaseError as exc:
+            if not str(getattr(exc, "sqlite_errorname", "")).startswith(("SQLITE_CORRUPT", "SQLITE_NOTADB")):
+                raise
             result = str(exc)
         if result != "ok":
-            raise JournalError(
-                f"journal {self.path} is damaged ({str(result)[:80]}); nothing was written. Keep a copy, then "
-                f"recover it with: sqlite3 '{self.path}' '.recover' | sqlite3 recovered.sqlite3")
+            raise jf.damaged(self.path, str(result))
 
     def _migrate(self) -> None:
         version = self.db.execute("PRAGMA user_version").fetchone()[0]
@@ -424,6 +295,9 @@ class Journal:
             except sqlite3.Error:
                 self.db.execute("ROLLBACK")
                 raise
+            # each step into the file at once: the write-ahead log never holds every step (a new
+            # journal on a small or nearly full disk needs about the final size, not twice it)
+            self.db.execute("PRAGMA wal_checkpoint(TRUNCATE)")
 
     def close(self) -> None:
         self.db.close()
@@ -441,6 +315,8 @@ class Journal:
             return self._write_locked(fn)
 
     def _write_locked(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
+        if self.read_only is not None:
+            raise JournalError(self.read_only)
         try:
             self.db.execute("BEGIN IMMEDIATE")
             try:
@@ -454,8 +330,7 @@ class Journal:
                     pass  # SQLite already rolled back (a full disk does that)
                 raise
         except sqlite3.Error as exc:
-            why = "the disk is full" if "full" in str(exc).lower() else str(exc)
-            raise JournalError(f"journal {self.path}: write failed ({why}); nothing was recorded") from None
+            raise jf.failure(self.path, exc) from None
 
     def write(self, fn: Callable[[sqlite3.Connection], Any]) -> Any:
         """Run ``fn(db)`` as one committed transaction (for the sample store)."""
@@ -618,7 +493,7 @@ class Journal:
             with self.lock:
                 return self.db.execute(sql, args).fetchall()
         except sqlite3.Error as exc:
-            raise JournalError(f"journal {self.path}: read failed ({exc})") from None
+            raise jf.failure(self.path, exc, writing=False) from None
 
     def sessions(self) -> list[SessionRow]:
         rows = self._read(
@@ -713,6 +588,8 @@ class Journal:
         return (int(rows[0][0]), str(rows[0][1])) if rows else None
 
     def set_mark(self, bench: str, supply_id: str, what: str, reading_id: int, at: str) -> None:
+        if self.read_only is not None:
+            return  # a mark only saves work: a journal that cannot be written is read in full instead
         self._write(lambda db: db.execute(
             "INSERT INTO marks(bench, supply_id, what, reading_id, at) VALUES (?, ?, ?, ?, ?)"
             " ON CONFLICT (bench, supply_id, what) DO UPDATE SET reading_id = excluded.reading_id, at = excluded.at",

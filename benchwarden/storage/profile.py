@@ -8,13 +8,16 @@ the line and the key. Every model forbids unknown keys. See ``docs/profile.md``.
 from __future__ import annotations
 
 import datetime as dt
+import os
 import re
+import stat
 import tomllib
 from importlib import resources
 from pathlib import Path
-from typing import Any, Literal
+from typing import Annotated, Any, Literal
 
 from pydantic import (
+    AfterValidator,
     Field,
     ValidationError,
     field_validator,
@@ -43,8 +46,17 @@ from benchwarden.storage.profile_fields import (
 )
 from benchwarden.storage.profile_fields import ProfileModel as _Model
 from benchwarden.storage.profile_fields import positive as _positive
+from benchwarden.units.limits import EARLIEST_RECORD, in_range, within_dates
 
 # ----------------------------------------------------------------------------- sections
+
+
+def _record_date(v: dt.date) -> dt.date:
+    """A due date in a profile: from 1990 to 30 years ahead (a slip of the year, beyond)."""
+    return within_dates(v, "date", EARLIEST_RECORD, dt.date(dt.date.today().year + 30, 12, 31))
+
+
+RecordDate = Annotated[dt.date, AfterValidator(_record_date)]
 
 
 class Bench(_Model):
@@ -111,7 +123,7 @@ class Supply(_Model):
     """Gross weight (liquefied gases: CO2, SF6)."""
     tare: MassQ | None = None
     """Tare weight stamped on the cylinder."""
-    fill_price: float | None = Field(default=None, ge=0)
+    fill_price: float | None = Field(default=None, ge=0, le=1e7, allow_inf_nan=False)
     """Price of one full cylinder, for gas cost per hour."""
     currency: str = Field(default="EUR", max_length=8)
     gauge: Gauge | None = None
@@ -120,7 +132,7 @@ class Supply(_Model):
     """How long the supplier takes to deliver a new cylinder, e.g. "10 d" (for the order-by date)."""
     spares: int = Field(default=0, ge=0, le=100)
     """Full spare cylinders of this gas on hand."""
-    retest_due: dt.date | None = None
+    retest_due: RecordDate | None = None
     """Periodic-inspection (retest) due date of the cylinder in use (the interval is the maker's or
     the local rule)."""
     source: Source | None = None
@@ -141,10 +153,16 @@ class Supply(_Model):
         if self.water_volume > 5.0:
             raise InputError(f"supply {self.id}: water_volume {self.water_volume:g} m³ is larger than a cylinder "
                              "bundle (5 m³); check the unit")
+        in_range("cylinder volume", self.water_volume, f"water_volume of supply {self.id}")
+        if self.leak_target is not None:
+            in_range("flow", self.leak_target.value, f"leak_target of supply {self.id}")
         if (self.gross is None) != (self.tare is None):
             raise InputError(f"supply {self.id}: gross and tare go together")
         if self.gross is not None and self.tare is not None and self.gross < self.tare:
             raise InputError(f"supply {self.id}: gross weight is below the tare weight")
+        if self.reserve.typed_as == "gauge" and self.reserve.typed_pa < 0:
+            raise _Located(("reserve",), f"supply {self.id}: reserve {self.reserve.text} is out of range: at least "
+                                         "0 bar(g) (a cylinder is never drawn below the room's pressure)")
         if self.reading is None and self.gross is None:
             raise InputError(f"supply {self.id}: give a reading (or gross and tare weights)")
         if self.leak_target is not None and self.leak_target.kind == "actual":
@@ -165,9 +183,10 @@ class Regulator(_Model):
     """Top of the outlet range (the outlet gauge/spring range)."""
     set_point: PressureQ
     """Outlet pressure as set at the supply's current reading."""
-    service_due: dt.date | None = None
+    service_due: RecordDate | None = None
     """When the regulator is due for service (the maker's interval or the lab's rule)."""
-    supply_pressure_effect: list[float] | float = 0.01
+    supply_pressure_effect: list[Annotated[float, Field(ge=0, le=0.5, allow_inf_nan=False)]] | Annotated[
+        float, Field(ge=0, le=0.5, allow_inf_nan=False)] = 0.01
     """Outlet rise per unit inlet fall, per stage (e.g. 0.01 = 1 %). Two stages: a list of two."""
     relief_setting: PressureQ | None = None
     """Set pressure of the outlet relief valve, if any."""
@@ -202,11 +221,16 @@ class Orifice(_Model):
     downstream: PressureQ = Field(default_factory=lambda: u.parse_pressure("0 bar"))
     """Pressure the orifice discharges into (default atmosphere)."""
 
+    @model_validator(mode="after")
+    def _check(self) -> Orifice:
+        in_range("orifice diameter", self.diameter)
+        return self
+
 
 class Valve(_Model):
-    kv: float | None = Field(default=None, gt=0)
+    kv: float | None = Field(default=None, gt=0, le=1e4, allow_inf_nan=False)
     """Flow coefficient Kv [m³/h] at the opening used."""
-    cv: float | None = Field(default=None, gt=0)
+    cv: float | None = Field(default=None, gt=0, le=1e4, allow_inf_nan=False)
     """Or Cv (US); Kv = Cv / 1.156."""
     xt: float = Field(default=0.7, gt=0, le=1)
     downstream: PressureQ = Field(default_factory=lambda: u.parse_pressure("0 bar"))
@@ -254,10 +278,16 @@ class Draw(_Model):
             if self.spacing is None:
                 raise InputError(f"gap {self.id}: spacing is required")
             _positive(self.spacing, f"spacing of gap {self.id}")
+            in_range("gap spacing", self.spacing, f"spacing of gap {self.id}")
         elif self.spacing is not None or self.exposed:
             raise InputError(f"draw {self.id}: spacing and exposed parts belong to kind = \"gap\"")
         if self.per_shot is not None:
             _positive(self.per_shot, f"per_shot of draw {self.id}")
+            in_range("per-shot volume", self.per_shot, f"per_shot of draw {self.id}")
+        if self.repetition_rate is not None:
+            in_range("repetition rate", self.repetition_rate, f"repetition_rate of draw {self.id}")
+        if self.flow is not None:
+            in_range("flow", self.flow.value, f"flow of draw {self.id}")
         return self
 
 
@@ -275,6 +305,7 @@ class Room(_Model):
     @model_validator(mode="after")
     def _check(self) -> Room:
         _positive(self.volume, "room volume")
+        in_range("room volume", self.volume)
         return self
 
 
@@ -291,6 +322,9 @@ class Session(_Model):
     @model_validator(mode="after")
     def _check(self) -> Session:
         _positive(self.duration, "session duration")
+        in_range("session duration", self.duration)
+        if self.repetition_rate is not None:
+            in_range("repetition rate", self.repetition_rate, "session repetition_rate")
         return self
 
 
@@ -496,28 +530,36 @@ def parse_profile(text: str, source: str = "<profile>") -> Profile:
         raise ProfileError(f"{source}: {exc}") from None
 
 
-def load_profile(path: str | Path) -> Profile:
-    """Load a bench profile file."""
+def read_text_file(path: str | Path, what: str, limit: int) -> str:
+    """The text of a file a person or a profile names, read with a size limit: it must be a
+    regular file (not ``/dev/zero``, a pipe or a folder) of at most ``limit`` bytes of UTF-8 (a
+    byte-order mark is accepted). Failures are one line naming the file."""
     p = Path(path).expanduser()
     try:
-        if not p.is_file():
-            raise ProfileError(f"{path}: not a regular file; give a bench profile (.toml)")
-        with open(p, "rb") as fh:  # read with a limit: /dev/zero or a huge file is not a profile
-            raw = fh.read(MAX_PROFILE_BYTES + 1)
+        # opened without blocking (a pipe does not hang), checked on the open file (no swap between
+        # a check and the read), read with a limit (a file may grow)
+        fd = os.open(p, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
+        with os.fdopen(fd, "rb") as fh:
+            if not stat.S_ISREG(os.fstat(fd).st_mode):
+                raise ProfileError(f"{path}: not a regular file; give a {what}")
+            raw = fh.read(limit + 1)
     except OSError as exc:
-        raise ProfileError(f"{path}: cannot read the profile: {exc.strerror or exc}") from None
-    if len(raw) > MAX_PROFILE_BYTES:
-        raise ProfileError(f"{path}: file is larger than 2 MB; not a bench profile")
+        raise ProfileError(f"{path}: cannot read the {what}: {exc.strerror or exc}") from None
+    if len(raw) > limit:
+        raise ProfileError(f"{path}: file is larger than {limit / 1e6:g} MB; not a {what}")
     try:
-        text = raw.decode("utf-8-sig")  # a byte-order mark is accepted
+        return raw.decode("utf-8-sig")
     except UnicodeDecodeError:
-        raise ProfileError(f"{path}: not UTF-8 text") from None
-    return parse_profile(text, str(path))
+        raise ProfileError(f"{path}: not UTF-8 text; give a {what}") from None
 
 
+def load_profile(path: str | Path) -> Profile:
+    """Load a bench profile file."""
+    return parse_profile(read_text_file(path, "bench profile (.toml)", MAX_PROFILE_BYTES), str(path))
+
+
+#: The largest bench profile or file a profile names (a checklist's items) read [bytes].
 MAX_PROFILE_BYTES = 2_000_000
-
-
 DEMO_NAME = "demo-teaching-bench.toml"
 
 

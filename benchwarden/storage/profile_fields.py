@@ -15,6 +15,7 @@ from benchwarden import units as u
 from benchwarden.core.gas import Gas, parse_gas
 from benchwarden.errors import InputError
 from benchwarden.units import quantities as q
+from benchwarden.units.limits import text_problem
 
 # ----------------------------------------------------------------------------- field types
 
@@ -60,19 +61,19 @@ def positive(value: float, what: str) -> float:
     return value
 
 
-_CONTROL_CHARS = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
-
-
 class ProfileModel(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True, arbitrary_types_allowed=True)
 
     @field_validator("*", mode="before")
     @classmethod
     def _no_control_characters(cls, v: Any) -> Any:
-        """Names and notes are shown on terminals and in files: no escape sequences or control
-        characters (a line break in a note is fine)."""
-        if isinstance(v, str) and _CONTROL_CHARS.search(v.replace("\n", "").replace("\t", "")):
-            raise InputError("control characters or escape sequences are not allowed in text")
+        """Names and notes are shown on terminals and in files: no escape sequences, control
+        characters or invisible format characters (bidi overrides and isolates, zero-width
+        characters; a line break or a tab in a note is fine)."""
+        if isinstance(v, str):
+            problem = text_problem(v)
+            if problem:
+                raise InputError(f"{problem} is not allowed in text")
         return v
 
 
@@ -99,8 +100,9 @@ class SourceBase(ProfileModel):
     kind: Literal["modbus-tcp", "modbus-rtu", "serial", "file"]
     host: str | None = Field(default=None, max_length=255)
     """Modbus/TCP: the device or gateway's address."""
-    port: int | str | None = None
-    """Modbus/TCP: the TCP port (502 by default); serial and Modbus RTU: the serial port, e.g. "/dev/ttyUSB0"."""
+    port: int | str | None = Field(default=None, union_mode="left_to_right")
+    """Modbus/TCP: the TCP port, 1 to 65535 (502 by default); serial and Modbus RTU: the serial port, e.g.
+    "/dev/ttyUSB0" or "COM3"."""
     device: int = Field(default=1, ge=0, le=255)
     """Modbus unit id (Modbus/TCP 0–255; Modbus RTU 1–247)."""
     address: int = Field(default=0, ge=0, le=65535, alias="register")
@@ -111,6 +113,7 @@ class SourceBase(ProfileModel):
     """``int16``, ``uint16``, ``int32``, ``uint32``, ``float32`` or ``float64``, with the byte order
     as a suffix: ``-abcd`` (default), ``-cdab``, ``-badc``, ``-dcba``."""
     scale: float = Field(default=1.0, allow_inf_nan=False)
+    """value × scale + offset: never zero (every sample would be the offset)."""
     offset: float = Field(default=0.0, allow_inf_nan=False)
     value_unit: str = Field(default="bar", max_length=16)
     """value × scale + offset is a pressure in this unit (gauge unless marked absolute)."""
@@ -146,6 +149,10 @@ class SourceBase(ProfileModel):
         for key in need:
             if getattr(self, key) in (None, ""):
                 raise InputError(f"a {self.kind} source needs {key}")
+        self._check_port()
+        if self.scale == 0 or not 1e-12 <= abs(self.scale) <= 1e12:
+            raise InputError(f"scale {self.scale:g} is out of range: not zero, and between 1e-12 and 1e12 in size "
+                             "(value × scale + offset)")
         self._check_unit()
         if self.format not in FORMAT_NAMES:
             raise InputError(f"format {self.format!r} is not one of {', '.join(TYPES)} with an optional byte order "
@@ -155,6 +162,21 @@ class SourceBase(ProfileModel):
         self._check_dialect()
         positive(self.interval, "source interval")
         return self
+
+    def _check_port(self) -> None:
+        """A TCP port is a whole number from 1 to 65535; a serial port is a device's name."""
+        port = self.port
+        if port is None:
+            return
+        if self.kind == "modbus-tcp":
+            if isinstance(port, bool) or not isinstance(port, int) or not 1 <= port <= 65535:
+                raise InputError(f"port {port!r} is out of range: a TCP port is a whole number from 1 to 65535")
+        elif self.kind in ("modbus-rtu", "serial"):
+            if not isinstance(port, str) or not re.fullmatch(r"(/\S+|COM[0-9]{1,3}|[a-z0-9]+://\S+)", port):
+                raise InputError(f"port {port!r} is not a serial port: give its device, e.g. \"/dev/ttyUSB0\" or "
+                                 "\"COM3\"")
+        else:
+            raise InputError(f"a {self.kind} source has no port")
 
     def _check_dialect(self) -> None:
         if self.pattern is not None:

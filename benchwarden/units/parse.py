@@ -23,8 +23,9 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import TYPE_CHECKING, Literal
 
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.units.constants import ATM_PA, BAR_PA, PSI_PA, T0_K, T_FULL_K
+from benchwarden.units.limits import check_quantity_text
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -88,9 +89,10 @@ def get_reference(key: str) -> Reference:
 # --------------------------------------------------------------------------------------
 # numbers
 
-_NUM = r"[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?|[-+]?(?:nan|inf|infinity)"
+# digits are ASCII only: Python's float() and ``\d`` also take Arabic-Indic or full-width digits
+_NUM = r"[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][-+]?[0-9]+)?|[-+]?(?:nan|inf|infinity)"
 _SPLIT = re.compile(rf"^\s*({_NUM})\s*(.*?)\s*$", re.IGNORECASE)
-_SEPARATOR = re.compile(r"^\s*[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[,_'\u2009\u202f]|\s+)\d")
+_SEPARATOR = re.compile(r"^\s*[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[,_'\u2009\u202f]|\s+)[0-9]")
 
 
 def split_number(text: str, what: str) -> tuple[float, str]:
@@ -99,6 +101,7 @@ def split_number(text: str, what: str) -> tuple[float, str]:
     1 L or 2 bar."""
     if not isinstance(text, str):
         text = str(text)
+    check_quantity_text(text, what)  # long, non-ASCII digits, invisible characters: refused at once
     if _SEPARATOR.match(text):
         raise InputError(
             f"{what} {shorten(text)!r}: write the number without thousands separators and with a "
@@ -142,8 +145,9 @@ def check_range(value: float, what: str, lo: float, hi: float, unit: str, why: s
     """
     check_finite(value, what)
     if not lo < value <= hi:
-        raise InputError(f"{what} {value:g} {unit} is outside the range allowed: above {lo:g} and at most {hi:g} "
-                         f"{unit}" + (f" ({why})" if why else ""))
+        raise RangeError(f"{what} {value:g} {unit} is outside the range allowed: above {lo:g} and at most {hi:g} "
+                         f"{unit}" + (f" ({why})" if why else ""), what=what, value=value, lo=lo, hi=hi, unit=unit,
+                         why=why)
     return float(value)
 
 
@@ -151,7 +155,8 @@ def check_positive(value: float, what: str, unit: str = "") -> float:
     """Return ``value`` if it is finite and > 0, else raise :class:`InputError`."""
     check_finite(value, what)
     if value <= 0:
-        raise InputError(f"{what} must be greater than zero, got {value:g}{(' ' + unit) if unit else ''}")
+        raise RangeError(f"{what} must be greater than zero, got {value:g}{(' ' + unit) if unit else ''}", what=what,
+                         value=value, lo=0.0, unit=unit)
     return float(value)
 
 
@@ -560,6 +565,8 @@ def fmt_hours(hours: float) -> str:
         return "never"
     if hours < 0:
         return "passed"
+    if hours > 10 * 366 * 24:  # beyond what any bench plans for: no 300-digit day counts
+        return "more than ten years"
     total_min = int(round(hours * 60))
     d, rem = divmod(total_min, 24 * 60)
     h, m = divmod(rem, 60)

@@ -11,12 +11,12 @@ from dataclasses import dataclass
 from typing import Literal
 
 from benchwarden.errors import InputError
+from benchwarden.units.limits import check_quantity_text, text_problem, within
 from benchwarden.units.parse import parse_flow, parse_mass, parse_volume, shorten, split_number
 
 __all__ = ["check_text", "Ventilation", "parse_ventilation", "Amount", "parse_amount", "parse_fraction"]
 
 
-_CONTROL_TEXT = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
 
 
 def check_text(value: str, what: str, max_len: int = 200) -> str:
@@ -27,8 +27,9 @@ def check_text(value: str, what: str, max_len: int = 200) -> str:
     'N2-0417'
     """
     v = value.strip()
-    if _CONTROL_TEXT.search(v):
-        raise InputError(f"{what} contains control characters or escape sequences; type plain text")
+    problem = text_problem(v)
+    if problem:
+        raise InputError(f"{what} contains {problem}; type plain text")
     if len(v) > max_len:
         raise InputError(f"{what} is {len(v)} characters long; at most {max_len}")
     return v
@@ -66,16 +67,21 @@ def parse_ventilation(text: str, what: str = "ventilation") -> Ventilation:
     """
     if not isinstance(text, str):
         raise InputError(f"{what} {text!r}: give air changes per hour (\"2/h\") or a volume flow (\"120 m3/h\")")
+    check_quantity_text(text, what)
     s = text.strip().lower().replace(" ", "")
     m = re.fullmatch(r"(.+?)(/h|/hr|ach|1/h|perh)", s)
     if m and not m.group(1).endswith(("m3", "l", "ft3")):
         ach, _ = split_number(m.group(1) + " x", what)
         if ach < 0:
             raise InputError(f"{what} {shorten(text)!r} must be zero or more air changes per hour")
+        if ach != 0:
+            within(ach, what, 0.01, 1000.0, "/h", text=text, words="0, or from 0.01 to 1000 air changes per hour")
         return Ventilation(ach, None, text.strip())
     f = parse_flow(text, what=what)
     if f.kind != "actual":
         raise InputError(f"{what} {shorten(text)!r}: give air changes per hour (\"2/h\") or a volume flow (\"120 m3/h\")")
+    if f.value != 0:
+        within(f.value, what, 1e-6, 100.0, "m³/s", text=text, words="0, or from 3.6 L/h to 100 m³/s")
     return Ventilation(None, f.value, text.strip())
 
 

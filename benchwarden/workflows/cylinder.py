@@ -32,6 +32,7 @@ from benchwarden.storage.profile import Profile, Supply, with_reading, with_weig
 from benchwarden.storage.samples import SampleStore
 from benchwarden.units import PSI_PA, Pressure, fmt_pressure
 from benchwarden.units.constants import BAR_PA, T0_K
+from benchwarden.units.limits import EARLIEST_RECORD, check_quantity_text, within_dates
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows.holds import (
     HoldRecord,
@@ -75,6 +76,8 @@ def parse_at(text: str | None, now: dt.datetime) -> dt.datetime:
     >>> parse_at("11:25", n), parse_at("yesterday 18:00", n)
     (datetime.datetime(2026, 12, 1, 11, 25), datetime.datetime(2026, 12, 1, 18, 0))
     """
+    if text:
+        check_quantity_text(text, "time")  # digits 0-9 only: int() would read '٠٩:٣٠' as 09:30
     t = " ".join((text or "").strip().lower().split())
     if t in ("", "now"):
         return now
@@ -99,6 +102,8 @@ def parse_at(text: str | None, now: dt.datetime) -> dt.datetime:
                          "or 'now'") from None
     if at > now + dt.timedelta(minutes=1):
         raise InputError(f"time {text} is in the future (now is {now:%Y-%m-%d %H:%M})")
+    within_dates(at, "time", EARLIEST_RECORD, None, text=text,
+                 why="a paper logbook's dates are fine; 1970 or 1900 is a clock or a default, not a reading")
     return at
 
 

@@ -26,7 +26,8 @@ from benchwarden.render.checklist.safety import SAFETY_ITEMS
 from benchwarden.render.display import Display
 from benchwarden.render.findings import describe
 from benchwarden.render.supply import mass_words, supply_state_words
-from benchwarden.storage.profile import Profile
+from benchwarden.storage.profile import MAX_PROFILE_BYTES, Profile, read_text_file
+from benchwarden.units.limits import text_problem
 from benchwarden.workflows.bench import Assessment
 from benchwarden.workflows.findings import SEVERITY_RANK, Finding, counts
 
@@ -72,12 +73,14 @@ def _load_items(text: str, source: str) -> dict[str, Any]:
     for i, s in enumerate(data.get("sections", [])):
         if not isinstance(s, dict) or "id" not in s:
             raise ProfileError(f"{source}: sections[{i}] needs an id")
+        _check_text(text, source, f"sections[{i}]", {k: v for k, v in s.items() if k != "items"})
         for j, it in enumerate(s.get("items", [])):
             if not isinstance(it, dict) or "id" not in it or not ({"text", "computed"} & set(it)):
                 raise ProfileError(f"{source}: sections[{i}].items[{j}] needs an id and a text (or computed)")
             bad = [k for k in ("id", "text", "computed") if k in it and not isinstance(it[k], str)]
             if bad:
                 raise ProfileError(f"{source}: sections[{i}].items[{j}].{bad[0]} must be text in quotes")
+            _check_text(text, source, f"sections[{i}].items[{j}]", it)
             keys = {"id", "text", "computed", "basis"}
             if set(it) - keys:
                 raise ProfileError(f"{source}: sections[{i}].items[{j}]: unknown key(s) "
@@ -87,7 +90,21 @@ def _load_items(text: str, source: str) -> dict[str, Any]:
             if "computed" in it and it["computed"] not in _COMPUTED:
                 raise ProfileError(f"{source}: sections[{i}].items[{j}]: unknown computed key {it['computed']!r}; "
                                    f"allowed: {', '.join(_COMPUTED)}")
+    for i, r in enumerate(data.get("reword", [])):
+        if isinstance(r, dict):
+            _check_text(text, source, f"reword[{i}]", r)
     return data
+
+
+def _check_text(text: str, source: str, where: str, entry: dict[str, Any]) -> None:
+    """An item's text is shown on terminals and in files: no control or invisible characters
+    (refused with the line, like a profile's)."""
+    for key, value in entry.items():
+        problem = text_problem(value) if isinstance(value, str) else None
+        if problem:
+            line = next((n for n, row in enumerate(text.splitlines(), 1) if value in row), None)
+            raise ProfileError(f"{source}{f':{line}' if line else ''}: {where}.{key}: {problem} is not allowed "
+                               "in text")
 
 
 def item_spec(lab_file: str | Path | None = None) -> list[dict[str, Any]]:
@@ -97,10 +114,7 @@ def item_spec(lab_file: str | Path | None = None) -> list[dict[str, Any]]:
     sections = [dict(s, items=list(s.get("items", []))) for s in base["sections"]]
     if lab_file is None:
         return sections
-    try:
-        text = Path(lab_file).read_text("utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise ProfileError(f"{lab_file}: cannot read the checklist items: {exc}") from None
+    text = read_text_file(lab_file, "checklist items file (.toml)", MAX_PROFILE_BYTES)
     lab = _load_items(text, str(lab_file))
     remove = set(lab.get("remove", []))
     reword = {r["id"]: r["text"] for r in lab.get("reword", []) if isinstance(r, dict) and "id" in r and "text" in r}

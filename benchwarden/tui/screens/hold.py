@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.containers import Horizontal, VerticalScroll
@@ -17,8 +15,15 @@ from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter, field
 from benchwarden.units import fmt_hours, parse_duration, parse_temperature, pressure_abs
+from benchwarden.units.limits import in_range
 from benchwarden.workflows import hold_runs
 from benchwarden.workflows.hold_runs import HoldRun, OpenHold
+from benchwarden.workflows.ranges import read_log
+
+
+def hold_duration(seconds: float, text: str) -> float:
+    """The hold's length in its range (one below zero is the core's to refuse, in its words)."""
+    return in_range("hold duration", seconds, text=text) if seconds > 0 else seconds
 
 
 class HoldScreen(ToolScreen):
@@ -97,6 +102,10 @@ class HoldScreen(ToolScreen):
     def _val(self, i: str) -> str:
         return self.query_one(f"#{i}", Input).value.strip()
 
+    def _duration(self, default: str = "") -> float:
+        text = self._val("hold-duration") or default
+        return hold_duration(parse_duration(text), text)
+
     def _temperature(self, i: str) -> float | None:
         return parse_temperature(self._val(i)) if self._val(i) else None
 
@@ -109,15 +118,12 @@ class HoldScreen(ToolScreen):
         amb = st.profile.ambient_pa
         try:
             if self._val("hold-log"):
-                try:
-                    text = Path(self._val("hold-log")).expanduser().read_text(encoding="utf-8")
-                except (OSError, UnicodeDecodeError) as exc:
-                    raise InputError(f"cannot read {self._val('hold-log')}: {exc}") from None
+                text = read_log(self._val("hold-log"))  # a regular file, read with a size limit
                 run = hold_runs.from_log(st.profile, self._supply(), text)
             else:
                 run = hold_runs.two_readings(
                     st.profile, self._supply(), pressure_abs(self._val("hold-start"), amb, "start"),
-                    pressure_abs(self._val("hold-end"), amb, "end"), parse_duration(self._val("hold-duration")),
+                    pressure_abs(self._val("hold-end"), amb, "end"), self._duration(),
                     self._temperature("hold-tstart"), self._temperature("hold-tend"))
         except BenchwardenError as exc:
             self._fail(exc)
@@ -141,7 +147,7 @@ class HoldScreen(ToolScreen):
         amb = st.profile.ambient_pa
         try:
             p = pressure_abs(self._val("hold-start"), amb, "start")
-            hold_s = parse_duration(self._val("hold-duration") or "12 h")
+            hold_s = self._duration("12 h")
             t = self._temperature("hold-tstart")
             if t is None:
                 raise InputError("give the start temperature: the test compensates it at the end")

@@ -13,6 +13,7 @@ from benchwarden.render.display import profile_display
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter, field
 from benchwarden.units import fmt_hours, parse_flow, parse_volume, pressure_abs
+from benchwarden.units.limits import in_range
 from benchwarden.units.quantities import parse_fraction
 from benchwarden.workflows import purges
 from benchwarden.workflows.purges import PurgePlan
@@ -72,7 +73,8 @@ class PurgeScreen(ToolScreen):
         try:
             plan = purges.plan_purge(
                 st.profile, str(self.query_one("#purge-supply", Select).value),
-                parse_volume(self._val("purge-volume"), "purged volume"),
+                in_range("purged volume", parse_volume(self._val("purge-volume"), "purged volume"),
+                         text=self._val("purge-volume")),
                 pressure_abs(self._val("purge-high"), amb, "fill pressure"),
                 pressure_abs(self._val("purge-low"), amb, "vent pressure"),
                 parse_fraction(self._val("purge-target"), "target oxygen"),

@@ -12,6 +12,7 @@ from benchwarden.render.room import room_lines
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter, field
 from benchwarden.units import fmt_hours
+from benchwarden.units.limits import in_range
 from benchwarden.workflows.room_tool import sealed_release, with_extra_leak
 
 
@@ -64,7 +65,9 @@ class RoomScreen(ToolScreen):
         if r is None:
             return
         try:
-            lk = with_extra_leak(st.profile, st.plan, parse_flow(event.value, what="leak"))
+            leak = parse_flow(event.value, what="leak")
+            in_range("flow", leak.value, "leak", event.value)
+            lk = with_extra_leak(st.profile, st.plan, leak)
         except BenchwardenError as exc:
             out.update(Text(f"✖ {exc}"))
             return
