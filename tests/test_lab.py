@@ -233,3 +233,37 @@ async def test_the_lab_screen_shows_every_bench(lab, tmp_path):
         benches = {str(table.get_row_at(i)[0]) for i in range(table.row_count)}
         assert {"bench-2", "bench-9"} <= benches
         assert any(f.code == "idle-drop-leak" for f in app.query_one("#lab-findings").shown)
+
+
+def test_the_background_shipper_pushes_backs_off_and_catches_up(lab, tmp_path):
+    import datetime as dt
+
+    from benchwarden.storage.profile import load_profile
+    from benchwarden.workflows.lab import Shipper
+
+    prof_path, journal = _bench(tmp_path, lab, "bench-3", "Bench 3 shipper")
+    prof = load_profile(prof_path)
+    t = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    with Journal(journal) as j:
+        sh = Shipper(prof, j, Path(prof_path).read_text(), lambda: t, interval_s=60.0)
+        sh.poll(0.0)
+        sh.join()
+        assert sh.last_ok == t and sh.last_error is None and sh.next_at == 60.0
+        assert not sh.due(59.0) and sh.due(60.0)
+        lab.stop()
+        try:
+            sh.poll(60.0)
+            sh.join()
+            assert sh.last_error and "cannot be reached" in sh.last_error
+            assert sh.next_at == 60.0 + 120.0  # backed off: twice the interval
+            _quiet("--journal", journal, "reading", prof_path, "n2-A", "--pressure", "119 bar", "--at",
+                   "2026-11-30T09:00")
+        finally:
+            lab.restart()
+        sh.poll(180.0)
+        sh.join()
+        assert sh.last_error is None and sh.wait_s == 60.0
+        n_local = len(j.events("Bench 3 shipper", 0, 10_000))
+    assert _count(lab, "SELECT count(*) FROM lab_events WHERE payload->>'pressure_text' = '119 bar' "
+                       "AND bench_id = 'bench-3'") == 1
+    assert n_local > 0

@@ -27,8 +27,7 @@ from benchwarden.render.checklist.render import (
     render_text,
 )
 from benchwarden.render.files import write_output
-from benchwarden.storage.journal import default_path
-from benchwarden.storage.profile import load_profile
+from benchwarden.workflows import computations as comp
 from benchwarden.workflows.bench import assess
 
 
@@ -52,7 +51,7 @@ def cmd_checklist(args: argparse.Namespace) -> int:
         raise input_error("--format pdf needs --output FILE")
     if args.print and not args.output:
         raise input_error("--print needs --output FILE")
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     journal = journal_if_exists(args)
     try:
         a = assess(prof, journal)
@@ -64,7 +63,7 @@ def cmd_checklist(args: argparse.Namespace) -> int:
     if args.format == "json" and not args.output:
         emit_json(checklist_json(cl))
         return exit_for(args, a.findings)
-    protected = (default_path(getattr(args, "journal", None)), args.profile)
+    protected = (comp.default_path(getattr(args, "journal", None)), args.profile)
     if args.format == "pdf":
         out = write_output(args.output, lambda tmp: render_pdf(cl, tmp), force=args.force, protected=protected)
     else:

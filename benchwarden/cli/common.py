@@ -13,8 +13,8 @@ from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any, NoReturn
 
 if TYPE_CHECKING:  # pragma: no cover
-    from benchwarden.core.gas import Gas
     from benchwarden.render.display import Display
+    from benchwarden.workflows.computations import Gas
 
 EXIT_INPUT = 2
 #: Exit status of a report with a finding at or above ``--fail-on``.
@@ -156,7 +156,7 @@ def ambient(args: argparse.Namespace) -> float:
 
 
 def gas(args: argparse.Namespace) -> Gas:
-    from benchwarden.core.gas import parse_gas
+    from benchwarden.workflows.computations import parse_gas
 
     return parse_gas(args.gas)
 
@@ -179,7 +179,7 @@ def computation(args: argparse.Namespace) -> tuple[Gas, float, Display]:
 
 def journal_if_exists(args: argparse.Namespace, readonly: bool = False) -> Any:
     """The journal when its file exists (commands that only read or add to it never create one)."""
-    from benchwarden.storage.journal import Journal, default_path
+    from benchwarden.workflows.computations import Journal, default_path
 
     path = default_path(getattr(args, "journal", None))
     return Journal(path, readonly=readonly) if path.exists() else None

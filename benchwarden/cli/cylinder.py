@@ -25,11 +25,10 @@ from benchwarden.render.display import Display
 from benchwarden.render.files import clean
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
 from benchwarden.render.numbers import fmt_uncertain
-from benchwarden.storage.journal import Journal, default_path
-from benchwarden.storage.profile import Profile, load_profile
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
 from benchwarden.units.limits import EARLIEST_RECORD, RETEST_HORIZON_YEARS, within_dates
 from benchwarden.units.quantities import check_text
+from benchwarden.workflows import computations as comp
 from benchwarden.workflows import cylinder as cy
 from benchwarden.workflows.bench import assess
 from benchwarden.workflows.importing import MAX_IMPORT_BYTES, import_readings
@@ -91,11 +90,11 @@ def _entry_args(p: argparse.ArgumentParser, bulk: bool = False) -> None:
     p.add_argument("--at", help=AT_HELP)
 
 
-def _open(args: argparse.Namespace) -> Journal:
-    return Journal(default_path(getattr(args, "journal", None)))
+def _open(args: argparse.Namespace) -> comp.Journal:
+    return comp.Journal(comp.default_path(getattr(args, "journal", None)))
 
 
-def _entry(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> cy.Entry:
+def _entry(args: argparse.Namespace, prof: comp.Profile, now: dt.datetime) -> cy.Entry:
     if args.supply not in {s.id for s in prof.supplies}:
         raise input_error(f"unknown supply {args.supply!r}; known: {', '.join(s.id for s in prof.supplies)}")
     T = parse_temperature(args.temperature, "cylinder temperature") if args.temperature else prof.ambient.temperature
@@ -109,7 +108,7 @@ def _entry(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> cy.Entr
     return cy.Entry(args.supply, at, T, weight_kg=w)
 
 
-def cmd_import(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> int:
+def cmd_import(args: argparse.Namespace, prof: comp.Profile, now: dt.datetime) -> int:
     """``reading --from FILE.csv``: many readings in one transaction (all or nothing)."""
     if args.temperature or args.at:
         raise input_error("--from takes the time and temperature from the file's columns: leave out "
@@ -137,7 +136,7 @@ def cmd_import(args: argparse.Namespace, prof: Profile, now: dt.datetime) -> int
 
 
 def cmd_reading(args: argparse.Namespace) -> int:
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     if getattr(args, "from_file", None):
         return cmd_import(args, prof, now)
@@ -169,7 +168,7 @@ def cmd_reading(args: argparse.Namespace) -> int:
 
 
 def cmd_swap(args: argparse.Namespace) -> int:
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     d = display(args, prof.ambient_pa, prof)
     entry = _entry(args, prof, now)
@@ -209,7 +208,7 @@ def _retest(text: str | None, today: dt.date) -> dt.date | None:
 
 
 def cmd_strike(args: argparse.Namespace) -> int:
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     reason = check_text(args.reason, "--reason", 200)
     if not reason:
@@ -224,11 +223,11 @@ def cmd_strike(args: argparse.Namespace) -> int:
 
 
 def cmd_status(args: argparse.Namespace) -> int:
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     d = display(args, prof.ambient_pa, prof)
-    path = default_path(getattr(args, "journal", None))
-    j = Journal(path) if path.exists() else None
+    path = comp.default_path(getattr(args, "journal", None))
+    j = comp.Journal(path) if path.exists() else None
     try:
         doc = status_document(prof, j, now)
     finally:

@@ -23,13 +23,11 @@ from benchwarden.cli.common import (
     number,
     one_line,
 )
-from benchwarden.core import hold as hd
 from benchwarden.errors import JournalError
 from benchwarden.render.budget import budget_assumption
 from benchwarden.render.display import Display
 from benchwarden.render.findings import verdict_words
 from benchwarden.render.numbers import fmt_uncertain
-from benchwarden.storage.holdlog import parse_log
 from benchwarden.units import (
     parse_duration,
     parse_flow,
@@ -41,6 +39,7 @@ from benchwarden.units import (
 )
 from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import conflict, in_range, within
+from benchwarden.workflows import computations as comp
 from benchwarden.workflows import holds
 from benchwarden.workflows.ranges import read_log
 
@@ -95,7 +94,7 @@ def configure(sub: Any, name: str) -> None:
     p.set_defaults(func=cmd_hold)
 
 
-def _gauge(args: argparse.Namespace, amb: float) -> hd.GaugeSpec | None:
+def _gauge(args: argparse.Namespace, amb: float) -> comp.GaugeSpec | None:
     if (args.gauge_range is None) != (args.gauge_class is None):
         raise input_error("--gauge-range and --gauge-class go together")
     if args.gauge_repeatability is not None and args.gauge_range is None:
@@ -121,7 +120,7 @@ def _volume(args: argparse.Namespace) -> float:
     elif args.line_length and args.bore:
         L = in_range("line length", parse_length(args.line_length, "line length"), text=args.line_length)
         bore = in_range("bore", parse_length(args.bore, "bore"), text=args.bore)
-        V = hd.line_volume(L, bore)
+        V = comp.line_volume(L, bore)
     else:
         raise input_error("give the held --volume, or --line-length and --bore of the line")
     return in_range("held volume", V, text=args.volume)
@@ -149,8 +148,8 @@ def cmd_hold(args: argparse.Namespace) -> int:
     gauge = _gauge(args, amb)
     u_T = (in_range("temperature uncertainty", parse_temperature_difference(args.t_uncertainty),
                     text=args.t_uncertainty)
-           if args.t_uncertainty else hd.U_T_DEFAULT)
-    target = hd.target_sccm(g_, parse_flow(args.target, what="target leak rate")) if args.target else None
+           if args.t_uncertainty else comp.U_T_DEFAULT)
+    target = comp.target_sccm(g_, parse_flow(args.target, what="target leak rate")) if args.target else None
     if target is not None:
         in_range("target leak rate", target, text=args.target)
     reserve = _reserve(args, amb)
@@ -158,13 +157,13 @@ def cmd_hold(args: argparse.Namespace) -> int:
     if args.log:
         text = read_log(args.log)
         T_def = parse_temperature(args.t_start) if args.t_start else 293.15
-        fit = hd.hold_from_log(g_, V, parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
+        fit = comp.hold_from_log(g_, V, comp.parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
                                reserve, amb)
         r = fit.result
     else:
         if not (args.start and args.end and args.duration):
             raise input_error("give --start, --end and --duration (or --log FILE.csv)")
-        r = hd.hold_two_readings(
+        r = comp.hold_two_readings(
             g_, V, pressure_abs(args.start, amb, "start pressure"),
             pressure_abs(args.end, amb, "end pressure"),
             in_range("hold duration", parse_duration(args.duration, "hold duration"), text=args.duration),
@@ -178,15 +177,15 @@ def cmd_hold(args: argparse.Namespace) -> int:
             out |= {"log_rows": fit.n, "slope_se_kg_s": fit.slope_se_kg_s, "residual_rms_kg": fit.residual_rms_kg,
                     "residual_max_kg": fit.residual_max_kg, "residual_rms_pa": fit.residual_rms_pa,
                     "curvature_significant": bool(fit.curvature_significant)}
-        emit_json(out | {"guidance": list(hd.GUIDANCE)})
+        emit_json(out | {"guidance": list(comp.GUIDANCE)})
         return 0
-    emit_table("Hold test", _rows(g_.name, V, r, fit, d), _notes(r, gauge, d) + list(hd.GUIDANCE[-2:]))
+    emit_table("Hold test", _rows(g_.name, V, r, fit, d), _notes(r, gauge, d) + list(comp.GUIDANCE[-2:]))
     if fit is not None and sys.stdout.isatty():
         _terminal_plot(fit)
     return 0
 
 
-def _rows(gas_name: str, V: float, r: hd.HoldResult, fit: hd.LogFit | None, d: Display) -> list[tuple[str, str]]:
+def _rows(gas_name: str, V: float, r: comp.HoldResult, fit: comp.LogFit | None, d: Display) -> list[tuple[str, str]]:
     rows = [("gas", gas_name), ("volume", f"{V * 1000:.4g} L"),
             ("start", f"{d.both(r.start_abs_pa)} at {d.temperature(r.start_temperature_k)}"),
             ("end", f"{d.both(r.end_abs_pa)} at {d.temperature(r.end_temperature_k)}"),
@@ -210,7 +209,7 @@ def _rows(gas_name: str, V: float, r: hd.HoldResult, fit: hd.LogFit | None, d: D
     return rows
 
 
-def _notes(r: hd.HoldResult, gauge: hd.GaugeSpec | None, d: Display) -> list[str]:
+def _notes(r: comp.HoldResult, gauge: comp.GaugeSpec | None, d: Display) -> list[str]:
     notes = list(r.notes)
     assumption = budget_assumption(r)
     if assumption:
@@ -225,7 +224,7 @@ def _notes(r: hd.HoldResult, gauge: hd.GaugeSpec | None, d: Display) -> list[str
     return notes
 
 
-def _record(args: argparse.Namespace, r: hd.HoldResult, kind: str) -> bool:
+def _record(args: argparse.Namespace, r: comp.HoldResult, kind: str) -> bool:
     """Store the hold test in the journal when the journal exists (tagged with --bench/--supply)."""
     try:
         j = journal_if_exists(args)
@@ -240,7 +239,7 @@ def _record(args: argparse.Namespace, r: hd.HoldResult, kind: str) -> bool:
     return True
 
 
-def _terminal_plot(fit: hd.LogFit) -> None:
+def _terminal_plot(fit: comp.LogFit) -> None:
     import plotext as plt
 
     hours = [t / 3600 for t in fit.t_s]

@@ -1,4 +1,4 @@
-"""Journal commands: ``session start|stop``, ``sessions``, ``export``."""
+"""comp.Journal commands: ``session start|stop``, ``sessions``, ``export``."""
 
 from __future__ import annotations
 
@@ -23,8 +23,7 @@ from benchwarden.cli.common import (
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean, session_csv, write_output
 from benchwarden.render.findings import describe
-from benchwarden.storage.journal import Journal, default_path
-from benchwarden.storage.profile import load_profile
+from benchwarden.workflows import computations as comp
 from benchwarden.workflows.bench import assess
 from benchwarden.workflows.cylinder import parse_at
 from benchwarden.workflows.findings import at_or_above
@@ -77,10 +76,10 @@ def _now() -> dt.datetime:
 
 
 def cmd_session_start(args: argparse.Namespace) -> int:
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     now = _now()
     at = parse_at(args.at, now)
-    with Journal(default_path(getattr(args, "journal", None))) as j:
+    with comp.Journal(comp.default_path(getattr(args, "journal", None))) as j:
         a = assess(prof, j, now)
         d = display(args, prof.ambient_pa, prof)
         try:
@@ -100,14 +99,14 @@ def cmd_session_start(args: argparse.Namespace) -> int:
 
 
 def cmd_session_stop(args: argparse.Namespace) -> int:
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     shots = None
     if args.shots is not None:
         if not args.shots.strip().isascii() or not args.shots.strip().isdigit():
             raise input_error(f"--shots {args.shots!r} must be a whole number of shots (digits only, e.g. 12000)")
         shots = int(args.shots)
     at = parse_at(args.at, _now())
-    with Journal(default_path(getattr(args, "journal", None))) as j:
+    with comp.Journal(comp.default_path(getattr(args, "journal", None))) as j:
         row = stop_session(j, prof, at, shots, args.note)
     print(f"session #{row.id} stopped {Display.clock(at.isoformat())}"
           + (f", {shots} shots" if shots is not None else ""))
@@ -128,11 +127,11 @@ def cmd_sessions(args: argparse.Namespace) -> int:
     j = journal_if_exists(args, readonly=True)
     records = session_records(j) if j is not None else []
     if args.json:
-        emit_json({"journal": str(default_path(getattr(args, "journal", None))),
+        emit_json({"journal": str(comp.default_path(getattr(args, "journal", None))),
                    "sessions": [_record_json(r) for r in records]})
         return 0
     if not records:
-        print(f"no sessions in {default_path(getattr(args, 'journal', None))}")
+        print(f"no sessions in {comp.default_path(getattr(args, 'journal', None))}")
         return 0
     print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  {'alarms':>6}  {'shots':>8}  operator"
           "  ·  bench")
@@ -159,7 +158,7 @@ def cmd_export(args: argparse.Namespace) -> int:
     text = session_csv(j, args.session)
     if args.output:
         out = write_output(args.output, text, force=args.force,
-                           protected=(default_path(getattr(args, "journal", None)),))
+                           protected=(comp.default_path(getattr(args, "journal", None)),))
         print(f"session {args.session} written to {out}")
     else:
         sys.stdout.write(text)

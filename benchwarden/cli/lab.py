@@ -24,6 +24,7 @@ from benchwarden.cli.common import (
 from benchwarden.errors import LabError, LabUnreachable
 from benchwarden.render.files import clean
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.workflows import computations as comp
 
 #: Exit status when the lab database cannot be reached.
 EXIT_UNREACHABLE = 4
@@ -60,19 +61,15 @@ def _unreachable(exc: LabUnreachable) -> int:
 
 
 def cmd_init(args: argparse.Namespace) -> int:
-    from benchwarden.lab import client, schema
+    from benchwarden.workflows.lab import init_lab, safe_url
 
     try:
-        done: list[str] = []
-        with client.connect(args.url) as conn:
-            done += schema.migrate(conn)
-            for b in args.bench:
-                done += schema.add_bench(conn, b)
+        done = init_lab(args.url, args.bench)
     except LabUnreachable as exc:
         return _unreachable(exc)
     except LabError as exc:
         raise input_error(str(exc)) from None
-    print(f"lab database {client.safe_url(args.url)}: " + ("; ".join(done) if done else "already up to date"))
+    print(f"lab database {safe_url(args.url)}: " + ("; ".join(done) if done else "already up to date"))
     if args.bench:
         print("  give each bench's role a password (ALTER ROLE ... PASSWORD) or a client certificate, and put "
               "[lab] url and bench_id in its profile")
@@ -80,15 +77,13 @@ def cmd_init(args: argparse.Namespace) -> int:
 
 
 def cmd_push(args: argparse.Namespace) -> int:
-    from benchwarden.storage.journal import Journal, default_path
-    from benchwarden.storage.profile import load_profile
     from benchwarden.workflows.lab import push
 
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     text = read_text_file(args.profile, "profile", _PROFILE_MAX)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     try:
-        with Journal(default_path(getattr(args, "journal", None))) as j:
+        with comp.Journal(comp.default_path(getattr(args, "journal", None))) as j:
             r = push(prof, j, text, now)
     except LabUnreachable as exc:
         return _unreachable(exc)

@@ -16,8 +16,6 @@ from benchwarden.cli.common import (
     number,
     whole_number,
 )
-from benchwarden.core import supply
-from benchwarden.live.simulator import Cylinder, serve
 from benchwarden.units import (
     parse_duration,
     parse_flow,
@@ -26,6 +24,7 @@ from benchwarden.units import (
     pressure_abs,
 )
 from benchwarden.units.limits import MIN_FLOW, in_range, within
+from benchwarden.workflows import computations as comp
 
 REGISTER_MAP = """\
 register map (127.0.0.1 only), the same values
@@ -101,9 +100,9 @@ def cmd_simulate(args: argparse.Namespace) -> int:
     for f, w, x in flows:
         if f.value != 0:
             within(f.value, w, MIN_FLOW, None, "", text=x, words="0, or at least 0.001 sccm")
-    loss = sum(supply.mass_flow(g_, f) for f, _, _ in flows)
+    loss = sum(comp.mass_flow(g_, f) for f, _, _ in flows)
     V = in_range("cylinder volume", parse_volume(args.volume, "cylinder volume"), text=args.volume)
-    cyl = Cylinder(g_, V, pressure_abs(args.pressure, amb), T, loss, args.speed, amb)
+    cyl = comp.Cylinder(g_, V, pressure_abs(args.pressure, amb), T, loss, args.speed, amb)
     duration = _for(args.duration)
     who = "every unit id" if args.unit is None else f"unit {args.unit}"
     print(f"simulated {g_.name} cylinder on 127.0.0.1:{args.port} ({who}): {d.gauge(cyl.pressure_abs_pa)}, "
@@ -111,7 +110,7 @@ def cmd_simulate(args: argparse.Namespace) -> int:
                                                                      if duration else "; Ctrl-C stops it"),
           flush=True)
     try:
-        asyncio.run(serve(cyl, args.port, duration_s=duration, unit=args.unit))
+        asyncio.run(comp.serve(cyl, args.port, duration_s=duration, unit=args.unit))
     except (OSError, RuntimeError) as exc:
         why = getattr(exc, "strerror", None) or "the port is in use or not allowed"
         raise input_error(f"cannot serve on 127.0.0.1:{args.port}: {why}") from None
@@ -150,11 +149,10 @@ def cmd_watch(args: argparse.Namespace) -> int:
     from benchwarden.cli.common import display
     from benchwarden.render.display import live_text
     from benchwarden.render.findings import describe
-    from benchwarden.storage.journal import Journal, default_path
-    from benchwarden.storage.profile import load_profile
+    from benchwarden.workflows.lab import Shipper
     from benchwarden.workflows.session import SessionState
 
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     if not any(s.source for s in prof.supplies):
         raise input_error(f"profile {args.profile} has no [supplies.source]: nothing to watch (see the README's "
                           "two-terminal demo)")
@@ -163,8 +161,10 @@ def cmd_watch(args: argparse.Namespace) -> int:
         raise input_error(f"--every {args.every!r}: between 0.1 s and 1 d")
     duration = _for(args.duration)
     d = display(args, prof.ambient_pa, prof)
-    journal = Journal(default_path(getattr(args, "journal", None)))
+    journal = comp.Journal(comp.default_path(getattr(args, "journal", None)))
     state = SessionState(Path(args.profile), journal)
+    shipper = (Shipper(prof, journal, Path(args.profile).read_text(encoding="utf-8"), state.clock)
+               if prof.lab is not None else None)
     stop = {"now": False}
 
     def _term(signum: int, frame: object) -> None:
@@ -186,9 +186,13 @@ def cmd_watch(args: argparse.Namespace) -> int:
         while not stop["now"] and time.monotonic() < end:
             state.poll_sources()
             mono = time.monotonic()
+            if shipper is not None:
+                shipper.poll(mono)
             if mono >= next_line:
                 next_line = mono + every
                 _report(state, d, describe, live_text, sys.stderr)
+                if shipper is not None:
+                    _lab_line(shipper)
             pause = min(state.watcher.next_due(), next_line - time.monotonic(), end - time.monotonic())
             time.sleep(min(max(pause, 0.02), 1.0))
     except KeyboardInterrupt:
@@ -197,9 +201,18 @@ def cmd_watch(args: argparse.Namespace) -> int:
         signal.signal(signal.SIGTERM, old)
         stored = sum(f.stored for f in state.watcher.feeds) if state.watcher is not None else 0
         state.stop_watching()
+        if shipper is not None:
+            shipper.join()
         journal.close()
     print(f"stopped: {stored} sample(s) stored", flush=True)
     return 0
+
+
+def _lab_line(shipper: Any) -> None:
+    """When the lab last received this bench's record (and why not, when it is away)."""
+    ok = shipper.last_ok
+    print("  lab: " + (f"last received {ok:%H:%M:%S}" if ok else "nothing received yet")
+          + (f"; not reachable now ({shipper.last_error[:80]}), retrying" if shipper.last_error else ""), flush=True)
 
 
 def _report(state: Any, d: Any, describe: Any, live_text: Any, err: Any) -> None:

@@ -22,15 +22,12 @@ from benchwarden.cli.common import (
     journal_if_exists,
     number,
 )
-from benchwarden.core.flow import orifice_flow
-from benchwarden.core.gap import breakdown
-from benchwarden.core.regulator import throttle
 from benchwarden.render.equipment import orifice_notes, orifice_rows, throttle_notes
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
 from benchwarden.render.plan import format_plan, plan_json
-from benchwarden.storage.profile import load_profile
 from benchwarden.units import parse_flow, parse_length, parse_temperature, pressure_abs
 from benchwarden.units.limits import in_range, within
+from benchwarden.workflows import computations as comp
 from benchwarden.workflows.bench import assess, leak_volume_flow
 from benchwarden.workflows.findings import outlet_findings
 
@@ -81,7 +78,7 @@ def configure(sub: Any, name: str) -> None:
 
 
 def cmd_plan(args: argparse.Namespace) -> int:
-    prof = load_profile(args.profile)
+    prof = comp.load_profile(args.profile)
     extra = leak_volume_flow(prof, parse_flow(args.leak, what="leak")) if args.leak else 0.0
     journal = journal_if_exists(args)
     try:
@@ -101,7 +98,7 @@ def cmd_throttle(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     p_in = pressure_abs(args.inlet, amb, "inlet pressure")
     p_out = pressure_abs(args.outlet, amb, "outlet pressure")
-    t = throttle(g_, p_in, p_out, parse_temperature(args.temperature))
+    t = comp.throttle(g_, p_in, p_out, parse_temperature(args.temperature))
     found = outlet_findings("the regulator", t.gas_name, t.outlet_temperature_k, t.solid_forms, t.liquid_forms,
                             t.dry_ice_margin_k)
     notes = throttle_notes(t, d)
@@ -126,7 +123,7 @@ def cmd_gap(args: argparse.Namespace) -> int:
     g_, amb, d = computation(args)
     p = in_range("gap pressure", pressure_abs(args.pressure, amb, "gap pressure"), text=args.pressure)
     spacing = in_range("gap spacing", parse_length(args.spacing, "gap spacing"), text=args.spacing)
-    b = breakdown(g_, spacing, p, parse_temperature(args.temperature))
+    b = comp.breakdown(g_, spacing, p, parse_temperature(args.temperature))
     if args.json:
         out = asdict(b)
         if not b.within_validity:
@@ -157,7 +154,7 @@ def cmd_orifice(args: argparse.Namespace) -> int:
     down = pressure_abs(args.downstream, amb, "downstream pressure")
     within(args.cd, "--cd", 0.0, 1.0, "", lo_open=True, why="a discharge coefficient")
     bore = in_range("orifice diameter", parse_length(args.diameter, "orifice diameter"), text=args.diameter)
-    o = orifice_flow(g_, bore, up, down,
+    o = comp.orifice_flow(g_, bore, up, down,
                      parse_temperature(args.temperature), args.cd)
     if args.json:
         emit_json(asdict(o))

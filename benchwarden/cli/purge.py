@@ -16,11 +16,10 @@ from benchwarden.cli.common import (
     emit_table,
     input_error,
 )
-from benchwarden.core import purge as pg
-from benchwarden.core import supply
 from benchwarden.units import parse_flow, parse_temperature, parse_volume, pressure_abs
 from benchwarden.units.limits import in_range
 from benchwarden.units.quantities import parse_fraction
+from benchwarden.workflows import computations as comp
 
 
 def configure(sub: Any, name: str) -> None:
@@ -51,11 +50,11 @@ def cmd_purge(args: argparse.Namespace) -> int:
     floor = parse_fraction(args.purity, "purge gas oxygen")
     if lo >= hi:
         raise input_error(f"--low {args.low!r} must be below --high {args.high!r}")
-    c = pg.cycle_purge(g_, V, hi, lo, T, x0, target, floor)
+    c = comp.cycle_purge(g_, V, hi, lo, T, x0, target, floor)
     f = None
     if args.flow:
         flow = parse_flow(args.flow, what="flush flow")
-        f = pg.flush(g_, V, supply.mass_flow(g_, flow, T, amb), amb, T, x0, target, floor)
+        f = comp.flush(g_, V, comp.mass_flow(g_, flow, T, amb), amb, T, x0, target, floor)
     if args.json:
         out: dict[str, Any] = asdict(c) | {"p_high_abs_pa": hi, "p_low_abs_pa": lo, "initial_fraction": x0,
                                            "target_fraction": target}

@@ -19,7 +19,6 @@ from benchwarden.cli.common import (
     given,
     input_error,
 )
-from benchwarden.core import supply
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
 from benchwarden.render.supply import (
     contents_notes,
@@ -38,6 +37,7 @@ from benchwarden.units import (
 )
 from benchwarden.units.constants import BAR_PA, T_FULL_K
 from benchwarden.units.limits import conflict, in_range, within
+from benchwarden.workflows import computations as comp
 from benchwarden.workflows.findings import contents_findings
 from benchwarden.workflows.ranges import check_weight_fits
 
@@ -102,11 +102,11 @@ def cmd_contents(args: argparse.Namespace) -> int:
         V = _volume(args.volume)
         if gross > tare:
             check_weight_fits(g_, gross - tare, V, T)
-        c = supply.contents_by_weight(g_, gross, tare, ref, T, V)
+        c = comp.contents_by_weight(g_, gross, tare, ref, T, V)
     else:
         if not (args.volume and args.pressure and args.temperature):
             raise input_error("contents needs --volume, --pressure and --temperature (or --gross, --tare and --volume)")
-        c = supply.contents(g_, _volume(args.volume), pressure_abs(args.pressure, amb), T, ref, u_T)
+        c = comp.contents(g_, _volume(args.volume), pressure_abs(args.pressure, amb), T, ref, u_T)
     if c.mass_kg is None:
         # no pressure-based contents: the same one line and exit status in text and JSON modes
         raise input_error(contents_refusal(c, d))
@@ -172,7 +172,7 @@ def cmd_heat(args: argparse.Namespace) -> int:
     if service is not None and test is not None and test < service:
         within(test - amb, "test pressure", service - amb, None, "Pa(g)", text=args.test,
                words=f"at least the service pressure {args.service}", why="a cylinder is tested above its rating")
-    h = supply.heat_up(g_, p, T1, T2, amb, service, test)
+    h = comp.heat_up(g_, p, T1, T2, amb, service, test)
     if args.json:
         emit_json(asdict(h) | {"ambient_pressure_pa": amb})
         return 0
@@ -208,8 +208,8 @@ def cmd_runtime(args: argparse.Namespace) -> int:
     flows = [parse_flow(f, reference=args.flow_reference) for f in args.flow]
     for f in flows:
         in_range("flow", f.value, "draw", f.text)
-    draws = [supply.mass_flow(g_, f) for f in flows]
-    r = supply.runtime(g_, V, p, res, T, sum(draws))
+    draws = [comp.mass_flow(g_, f) for f in flows]
+    r = comp.runtime(g_, V, p, res, T, sum(draws))
     now = dt.datetime.now().astimezone()
     at = now + dt.timedelta(hours=r.hours_to_reserve) if r.hours_to_reserve <= 24 * 366 else None
     if args.json:

@@ -22,7 +22,7 @@ from benchwarden.storage.profile import Profile
 from benchwarden.workflows.findings import Finding, lab_findings, ranked
 from benchwarden.workflows.status import status_document
 
-__all__ = ["PushResult", "push", "LabView", "lab_view", "BATCH", "ORDER_HORIZON_DAYS", "ALARM_WINDOW_S"]
+__all__ = ["init_lab", "safe_url", "Shipper", "PushResult", "push", "LabView", "lab_view", "BATCH", "ORDER_HORIZON_DAYS", "ALARM_WINDOW_S"]
 
 #: Events per transaction in a push.
 BATCH = 500
@@ -31,6 +31,26 @@ ORDER_HORIZON_DAYS = 14
 #: Alarms shown for a bench: those the lab received in the last day [s].
 ALARM_WINDOW_S = 86400.0
 _SENT, _PROFILE = "lab-sent", "lab-profile"
+
+
+def init_lab(url: str, benches: list[str]) -> list[str]:
+    """Create or migrate the lab schema and its roles, and add the benches (idempotent); returns
+    what was done."""
+    from benchwarden.lab import schema
+
+    done: list[str] = []
+    for b in benches:
+        schema.bench_role(b)  # a bad id is refused before anything is written
+    with client.connect(url) as conn:
+        done += schema.migrate(conn)
+        for b in benches:
+            done += schema.add_bench(conn, b)
+    return done
+
+
+def safe_url(url: str) -> str:
+    """The URL without a password, for messages."""
+    return client.safe_url(url)
 
 
 @dataclass(frozen=True)
@@ -125,3 +145,50 @@ def lab_view(url: str, today: dt.date) -> LabView:
                 o["by"] = min(o["by"], s["order_by"])
                 o["supplies"].append(f"{b['bench_id']}/{s['id']}")
     return LabView(benches, sorted(orders.values(), key=lambda o: o["by"]), ranked(lab_findings(benches, today)))
+
+
+class Shipper:
+    """Pushes a bench's record to its lab in the background while ``watch`` or the app runs: every
+    ``interval_s`` when the lab answers, backing off (doubling, up to an hour) when it does not.
+    One push at a time, in its own thread; the journal's lock keeps its writes whole."""
+
+    MAX_BACKOFF_S = 3600.0
+
+    def __init__(self, prof: Profile, journal: Journal, profile_text: str, clock: Any,
+                 interval_s: float = 300.0) -> None:
+        self.prof, self.journal, self.text, self.clock = prof, journal, profile_text, clock
+        self.interval_s = interval_s
+        self.wait_s = interval_s
+        self.next_at = 0.0
+        self.last_ok: dt.datetime | None = None
+        self.last_error: str | None = None
+        self.last_result: PushResult | None = None
+        self._thread: Any = None
+
+    def due(self, mono: float) -> bool:
+        return mono >= self.next_at and (self._thread is None or not self._thread.is_alive())
+
+    def poll(self, mono: float) -> None:
+        """Start a push if one is due (returns at once)."""
+        import threading
+
+        if self.prof.lab is None or not self.due(mono):
+            return
+        self._thread = threading.Thread(target=self._push, args=(mono,), daemon=True, name="lab-push")
+        self._thread.start()
+
+    def _push(self, mono: float) -> None:
+        from benchwarden.errors import BenchwardenError
+
+        try:
+            self.last_result = push(self.prof, self.journal, self.text, self.clock())
+        except BenchwardenError as exc:
+            self.last_error = str(exc)
+            self.wait_s = min(self.wait_s * 2.0, self.MAX_BACKOFF_S)
+        else:
+            self.last_ok, self.last_error, self.wait_s = self.clock(), None, self.interval_s
+        self.next_at = mono + self.wait_s
+
+    def join(self, timeout: float = 10.0) -> None:
+        if self._thread is not None:
+            self._thread.join(timeout)
