@@ -65,6 +65,22 @@ async def shoot() -> None:
             await settle()
             app.save_screenshot("history.svg", str(OUT))
             await pilot.press("escape")
+            await pilot.press("question_mark")
+            await settle()
+            app.save_screenshot("help.svg", str(OUT))
+            await pilot.press("escape")
+            await pilot.press("t")  # a hold test started now, to finish later
+            await settle()
+            for i, v in (("hold-start", "53 bar"), ("hold-duration", "12 h"), ("hold-tstart", "21 degC")):
+                app.screen.query_one(f"#{i}").value = v
+            app.screen.query_one("#hold-begin").press()
+            await settle()
+            app.save_screenshot("hold.svg", str(OUT))
+            await pilot.press("escape")
+            await settle()
+            app.clear_notifications()
+            await settle()
+            app.save_screenshot("hold-reminder.svg", str(OUT))
             await pilot.press("n")
             await settle()
             app.screen.query_one("#fill").value = "198 bar"
@@ -81,7 +97,24 @@ async def shoot() -> None:
                 await pilot.pause()
                 await app.workers.wait_for_complete()
                 await pilot.pause()
+            app.clear_notifications()
+            await pilot.pause()
             app.save_screenshot("overview-80x24.svg", str(OUT))
+            await pilot.press("r")
+            await pilot.pause()
+            app.screen.query_one("#pressure").value = "52 bar"
+            await pilot.pause()
+            app.save_screenshot("reading-80x24.svg", str(OUT))
+            await pilot.press("escape")
+            await pilot.press("p")
+            await pilot.pause()
+            for i, v in (("purge-volume", "0.8 L"), ("purge-flow", "1 slpm"), ("purge-operator", "A. Example")):
+                app.screen.query_one(f"#{i}").value = v
+            app.screen.query_one("#purge-record-cycles").press()
+            await pilot.pause()
+            await app.workers.wait_for_complete()
+            await pilot.pause()
+            app.save_screenshot("purge-80x24.svg", str(OUT))
 
 
 async def shoot_live() -> None:

@@ -23,3 +23,8 @@ async def settle(app, pilot, rounds: int = 2) -> None:
         await pilot.pause()
         await app.workers.wait_for_complete()
     await pilot.pause()
+
+
+def screen_text(app) -> list[str]:
+    """What the terminal shows now, line by line (the composited screen, modals included)."""
+    return ["".join(seg.text for seg in strip) for strip in app.screen._compositor.render_strips()]

@@ -34,7 +34,8 @@ from benchwarden.workflows.bench import assess
 from benchwarden.workflows.importing import MAX_IMPORT_BYTES, import_readings
 from benchwarden.workflows.status import RECENT_ALARMS_S, seconds, status_document
 
-AT_HELP = "when it was read: 'HH:MM' today (or last night), an ISO date-time, or now (default)"
+AT_HELP = ("when it was read: now (default), 'HH:MM' (its most recent past occurrence), 'yesterday 18:00', "
+           "or a date and time (2026-12-01 09:30, ISO 8601); never the future")
 
 
 def configure(sub: Any, name: str) -> None:

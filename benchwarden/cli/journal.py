@@ -122,21 +122,30 @@ def _record_json(r: SessionRecord) -> dict[str, Any]:
 
 
 def cmd_sessions(args: argparse.Namespace) -> int:
+    from benchwarden.render.numbers import fmt_count
+
     j = journal_if_exists(args, readonly=True)
-    rows = j.sessions() if j is not None else []
+    records = session_records(j) if j is not None else []
     if args.json:
-        records = session_records(j) if j is not None else []
         emit_json({"journal": str(comp.default_path(getattr(args, "journal", None))),
                    "sessions": [_record_json(r) for r in records]})
         return 0
-    if not rows:
+    if not records:
         print(f"no sessions in {comp.default_path(getattr(args, 'journal', None))}")
         return 0
-    print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  {'alarms':>6}  bench")
-    for r in rows:
+    print(f"{'#':>4}  {'started':<16}  {'stopped':<16}  {'readings':>8}  {'alarms':>6}  {'shots':>8}  operator"
+          "  ·  bench")
+    for rec in records:
+        r = rec.session
         stop = Display.clock(r.stopped_at) if r.stopped_at else "left running"
+        shots = fmt_count(r.shots) if r.shots is not None else "—"
         print(f"{r.id:>4}  {Display.clock(r.started_at):<16}  {stop:<16}  {r.readings:>8}  {r.alarms:>6}  "
-              f"{clean(r.bench)}")
+              f"{shots:>8}  {clean(r.operator or '—')}  ·  {clean(r.bench)}")
+        for _, note in rec.notes:
+            print(f"{'':>4}  note: {clean(note)}")
+        for a in rec.accepted_stops:
+            print(f"{'':>4}  accepted STOP {a.code} ({clean(a.subject)})"
+                  + (f" by {clean(a.operator)}" if a.operator else "") + f": {clean(a.reason)}")
     return 0
 
 

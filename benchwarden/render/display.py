@@ -18,7 +18,7 @@ from benchwarden.units import ATM_PA, T0_K, fmt_hours, fmt_pressure
 if TYPE_CHECKING:  # pragma: no cover
     from benchwarden.storage.profile import Profile
 
-__all__ = ["PRESSURE_UNITS", "Display", "display_for", "profile_display"]
+__all__ = ["PRESSURE_UNITS", "Display", "display_for", "profile_display", "live_text", "open_hold_text", "cylinder_text"]
 
 #: Pressure units a person can choose for display (gauge marked (g)/psig, absolute (a)/psia).
 PRESSURE_UNITS: tuple[str, ...] = ("bar", "psi", "kPa", "MPa")
@@ -31,13 +31,42 @@ class Display:
     pressure_unit: str = "bar"
     ambient_pa: float = ATM_PA
 
-    def gauge(self, abs_pa: float) -> str:
-        """A pressure as gauge, e.g. ``"64.0 bar(g)"`` or ``"928 psig"``."""
-        return fmt_pressure(abs_pa, self.ambient_pa, self.pressure_unit, "gauge")
+    def gauge(self, abs_pa: float, step_pa: float | None = None) -> str:
+        """A pressure as gauge, e.g. ``"64.0 bar(g)"`` or ``"928 psig"``; with the gauge's
+        ``step_pa`` (what its reading means: see ``workflows.holds.reading_step_pa``), no more
+        decimals than the gauge resolves, in every unit.
+
+        >>> d = Display("psi")
+        >>> d.gauge(198e5 + ATM_PA), d.gauge(198e5 + ATM_PA, 5e5)
+        ('2872 psig', '2872 psig')
+        >>> Display("kPa").gauge(198e5 + ATM_PA, 5e4), Display("MPa").gauge(198e5 + ATM_PA, 5e4)
+        ('19800 kPa(g)', '19.80 MPa(g)')
+        >>> Display().gauge(64e5 + ATM_PA, 5e5), Display().gauge(64e5 + ATM_PA, 1e3)
+        ('64 bar(g)', '64.00 bar(g)')
+        """
+        return self._fixed(abs_pa - self.ambient_pa, step_pa, self.gauge_label)
 
     def absolute(self, abs_pa: float) -> str:
         """A pressure as absolute, e.g. ``"1.013 bar(a)"`` or ``"14.70 psia"``."""
-        return fmt_pressure(abs_pa, self.ambient_pa, self.pressure_unit, "absolute")
+        return self._fixed(abs_pa, None, "psia" if self.pressure_unit == "psi" else f"{self.pressure_unit}(a)")
+
+    def _fixed(self, pa: float, step_pa: float | None, label: str) -> str:
+        """A pressure in the display unit: decimals from the step when given, else by size (one
+        decimal from 10, none from 1000), never a thousands separator."""
+        from benchwarden.units import pressure_factor
+
+        f = pressure_factor(self.pressure_unit)
+        v = pa / f
+        if step_pa is not None and math.isfinite(step_pa) and step_pa > 0:
+            digits = max(0, -math.floor(math.log10(step_pa / f) + 1e-9))
+        elif not math.isfinite(v):
+            return f"— {label}"
+        else:
+            digits = 0 if abs(v) >= 1000 else 1 if abs(v) >= 10 else (2 if abs(v) >= 1 else 3)
+        text = f"{v:.{digits}f}"
+        if text.lstrip("-").strip("0.") == "":
+            text = text.lstrip("-")  # no "-0.0"
+        return f"{text} {label}"
 
     def both(self, abs_pa: float) -> str:
         """Gauge and absolute: ``"64.0 bar(g) = 65.0 bar(a)"``; low pressures absolute in mbar."""
@@ -50,9 +79,9 @@ class Display:
         """The gauge unit label alone: ``bar(g)``, ``psig``, ``kPa(g)``."""
         return "psig" if self.pressure_unit == "psi" else f"{self.pressure_unit}(g)"
 
-    def gauge_number(self, abs_pa: float) -> str:
+    def gauge_number(self, abs_pa: float, step_pa: float | None = None) -> str:
         """A gauge pressure's number alone, in the display unit (for compact tables)."""
-        return self.gauge(abs_pa).rsplit(" ", 1)[0]
+        return self.gauge(abs_pa, step_pa).rsplit(" ", 1)[0]
 
     def next_unit(self) -> Display:
         """The same display in the next pressure unit of :data:`PRESSURE_UNITS` (a key cycles them)."""
@@ -82,14 +111,14 @@ class Display:
 
     @staticmethod
     def clock(when: str | dt.datetime | None, now: dt.datetime | None = None) -> str:
-        """A time for people: ``15:29`` today, ``Wed 15:29`` within a week, ``Wed 9 Dec 15:29``
-        beyond (local time; ISO 8601 stays in machine formats).
+        """A time for people: ``15:29`` today; any other day with its weekday and date, ``Wed 2 Dec
+        15:29`` (local time; ISO 8601 stays in machine formats).
 
         >>> n = dt.datetime(2026, 12, 1, 9, 0)
         >>> Display.clock("2026-12-01T15:29", n), Display.clock("2026-12-02T15:29", n)
-        ('15:29', 'Wed 15:29')
-        >>> Display.clock("2026-12-09T15:29", n)
-        'Wed 9 Dec 15:29'
+        ('15:29', 'Wed 2 Dec 15:29')
+        >>> Display.clock("2026-11-30T18:00", n), Display.clock("2019-03-04T09:15", n)
+        ('Mon 30 Nov 18:00', 'Mon 4 Mar 09:15')
         """
         if when is None:
             return "—"
@@ -99,12 +128,23 @@ class Display:
             now = now.replace(tzinfo=t.tzinfo)
         elif t.tzinfo is None and now.tzinfo is not None:
             t = t.replace(tzinfo=now.tzinfo)
-        days = (t.date() - now.date()).days
-        if days == 0:
+        elif t.tzinfo is not None and now.tzinfo is not None:
+            t = t.astimezone(now.tzinfo)
+        if t.date() == now.date():
             return t.strftime("%H:%M")
-        if 0 < days < 7:
-            return t.strftime("%a %H:%M")
         return f"{t:%a} {t.day} {t:%b %H:%M}"
+
+    @staticmethod
+    def short_clock(when: dt.datetime, now: dt.datetime) -> str:
+        """A compact time for a narrow column: ``15:29`` today, else ``2 Dec 15:29``.
+
+        >>> n = dt.datetime(2026, 12, 1, 9, 0)
+        >>> Display.short_clock(dt.datetime(2026, 12, 1, 23, 5), n), Display.short_clock(dt.datetime(2026, 12, 3, 1, 0), n)
+        ('23:05', '3 Dec 01:00')
+        """
+        if when.date() == now.date():
+            return when.strftime("%H:%M")
+        return f"{when.day} {when:%b %H:%M}"
 
     @staticmethod
     def ago(days: float) -> str:
@@ -169,3 +209,23 @@ def live_text(lv: Any, d: Display, today: dt.date | None = None) -> str:
                      f"{fmt_uncertain(lv.leak.leak_rate_sccm, lv.leak.leak_rate_uncertainty_sccm, 'sccm')} "
                      f"over {d.hours((lv.leak.until - lv.leak.since).total_seconds() / 3600)}")
     return "; ".join(parts)
+
+
+def open_hold_text(h: Any, d: Display, now: dt.datetime, step_pa: float | None = None) -> str:
+    """One line for a hold test started and not finished (a
+    :class:`benchwarden.workflows.hold_runs.OpenHold`): ``hold test on n2-A started at 18:02
+    with 62.0 bar(g); finish after 12 h 00 min (Thu 3 Dec 06:02)``, or ``due now``."""
+    due = "due now" if h.due(now) else f"finish after {fmt_hours(h.hold_s / 3600)} ({Display.clock(h.due_at, now)})"
+    return f"hold test on {h.supply_id} started at {Display.clock(h.at, now)} with {d.gauge(h.pressure_abs_pa, step_pa)}; {due}"
+
+
+def cylinder_text(c: Any, d: Display, now: dt.datetime) -> str:
+    """One line for a cylinder of a supply (a :class:`benchwarden.workflows.record.CylinderLife`):
+    ``N2-0417 · fill 198 bar · Tue 1 Dec 09:30 → in use · 4 readings · 1.25 kg used · 1 hold
+    test · retest 2031-05-01``."""
+    since = Display.clock(c.since, now) if c.since else "first record"
+    until = Display.clock(c.until, now) if c.until else "in use"
+    used = f"{c.gas_used_kg:.2f} kg used" if c.gas_used_kg is not None else "gas used: needs two readings"
+    return "  ·  ".join([c.label or "no label", f"fill {c.fill_text or '—'}", f"{since} → {until}",
+                         f"{c.readings} reading(s)", used, f"{c.hold_tests} hold test(s)",
+                         f"retest {c.retest_due or 'not recorded'}"])

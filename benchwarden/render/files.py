@@ -60,6 +60,20 @@ def csv_cell(value: object) -> object:
     return value
 
 
+def _umask() -> int:
+    """The process's umask (read from /proc where it can be, else set and restored)."""
+    try:
+        with open("/proc/self/status", encoding="ascii") as fh:
+            for line in fh:
+                if line.startswith("Umask:"):
+                    return int(line.split()[1], 8)
+    except (OSError, ValueError):
+        pass
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return mask
+
+
 #: The files SQLite keeps beside a database (sqlite.org/tempfiles.html): the write-ahead log, its
 #: shared-memory index and the rollback journal. Overwriting one loses committed data.
 SIDE_FILES = ("-wal", "-shm", "-journal")
@@ -113,6 +127,7 @@ def write_output(path: str | os.PathLike[str], data: bytes | str | Callable[[Pat
                 fh.write(data.encode("utf-8") if isinstance(data, str) else data)
                 fh.flush()
                 os.fsync(fh.fileno())
+        os.chmod(tmp, 0o666 & ~_umask())  # a document like any other (mkstemp made it 0600)
         os.replace(tmp, out)
     except OSError as exc:
         tmp.unlink(missing_ok=True)
@@ -136,7 +151,9 @@ def session_csv(journal: Journal, session_id: int, ambient_pa: float = ATM_PA) -
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(["session", "bench", "supply", "time", "pressure_abs_pa", "pressure_gauge_pa", "typed",
-                "temperature_k", "weight_kg", "ambient_pa", "struck_at", "struck_reason"])
+                "temperature_k", "weight_kg", "ambient_pa", "struck_at", "struck_reason", "session_operator",
+                "session_shots", "session_notes"])
+    notes = " | ".join(text for _, text in journal.notes(session_id))
     for r in journal.readings(session_id):
         amb = r.ambient_pa if r.ambient_pa is not None else ambient_pa
         w.writerow([csv_cell(x) for x in (
@@ -144,5 +161,6 @@ def session_csv(journal: Journal, session_id: int, ambient_pa: float = ATM_PA) -
             "" if r.pressure_abs_pa is None else f"{r.pressure_abs_pa:.1f}",
             "" if r.pressure_abs_pa is None else f"{r.pressure_abs_pa - amb:.1f}", r.pressure_text,
             f"{r.temperature_k:.2f}", "" if r.weight_kg is None else f"{r.weight_kg:.3f}",
-            f"{amb:.1f}", r.struck_at or "", r.struck_reason or "")])
+            f"{amb:.1f}", r.struck_at or "", r.struck_reason or "", s.operator or "",
+            "" if s.shots is None else s.shots, notes)])
     return buf.getvalue()

@@ -10,7 +10,11 @@ from __future__ import annotations
 
 import math
 
-__all__ = ["fmt_value", "fmt_uncertain"]
+__all__ = ["fmt_value", "fmt_uncertain", "fmt_count", "THIN_SPACE"]
+
+#: Digits are grouped by threes with a thin space, as SI writes them (never a comma or a point,
+#: which read as a decimal sign somewhere).
+THIN_SPACE = "\u2009"
 
 
 def _decimals_for(x: float, sig: int) -> int:
@@ -69,3 +73,17 @@ def fmt_uncertain(x: float, u: float, unit: str = "") -> str:
     if xs in ("-0", "-0.0") or (xr == 0 and xs.startswith("-")):
         xs = xs[1:]
     return f"{xs} ± {us}{tail}"
+
+
+def fmt_count(n: float) -> str:
+    """A whole count, grouped by threes with a thin space from five digits on (SI).
+
+    >>> fmt_count(339440).replace(THIN_SPACE, "_"), fmt_count(1000), fmt_count(-12345.4).replace(THIN_SPACE, "_")
+    ('339_440', '1000', '-12_345')
+    """
+    if not math.isfinite(n):
+        return "—"
+    text = f"{round(n):d}"
+    if len(text.lstrip("-")) < 5:
+        return text
+    return f"{round(n):,d}".replace(",", THIN_SPACE)

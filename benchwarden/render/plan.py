@@ -8,6 +8,7 @@ from typing import Any
 
 from benchwarden.render.display import Display
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.render.numbers import fmt_count
 from benchwarden.render.room import room_lines
 from benchwarden.render.supply import mass_words, supply_state_words
 from benchwarden.workflows.bench import Assessment
@@ -49,7 +50,8 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
         band = (f" (gauge band {d.hours(s.hours_band[0])} – {d.hours(s.hours_band[1])})"
                 if s.hours_band[0] != s.hours_band[1] else "")
         out += [f"  {s.id}: {s.gas_name}" + (" (liquefied; by weight)" if s.liquefied else ""),
-                f"    now {d.gauge(s.pressure_abs_pa)}, {d.temperature(s.temperature_k)}; reserve {d.gauge(s.reserve_abs_pa)}",
+                f"    now {d.gauge(s.pressure_abs_pa, a.steps.get(s.id))}, {d.temperature(s.temperature_k)}; "
+                f"reserve {d.gauge(s.reserve_abs_pa)}",
                 f"    contents {mass_words(s.mass_kg, s.mass_uncertainty_kg)} = {s.free_volume_m3:.3f} m³ at "
                 f"{s.reference_label}; usable {s.usable_mass_kg:.3f} kg",
                 f"    state {supply_state_words(s, d)}",
@@ -58,7 +60,7 @@ def format_plan(a: Assessment, display: Display | None = None) -> str:
                 + f"; to reserve {d.hours(s.hours_to_reserve)}{band}"
                 + (f", at {d.clock(s.reserve_at, _start(plan))}" if s.reserve_at else "")]
         if s.shots_to_reserve:
-            out.append(f"    shots to reserve {s.shots_to_reserve:,.0f}")
+            out.append(f"    shots to reserve {fmt_count(s.shots_to_reserve)}")
         if s.cost_per_hour is not None:
             out.append(f"    gas cost {s.cost_per_hour:.2f} {s.currency}/h")
     out += ["", "Regulators"]

@@ -14,7 +14,7 @@ import json
 from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["EVENT_MIGRATION", "Event", "EVENT_KINDS"]
+__all__ = ["EVENT_MIGRATION", "Event", "EVENT_KINDS", "event_trigger"]
 
 #: A random (version 4) UUID from SQLite's own random source.
 _UUID = ("(lower(hex(randomblob(4))) || '-' || lower(hex(randomblob(2))) || '-4' || "
@@ -88,6 +88,12 @@ def _backfill(kind: str, table: str, when: str, bench: str, at: str, payload: st
     return (f"INSERT INTO events(event_id, bench, kind, at, payload) SELECT {_UUID}, {bench}, '{kind}', {at}, "
             f"{payload} FROM {table} AS NEW{where.get(kind, '')} ORDER BY "
             + ("NEW.t0, NEW.stream" if table == "sample_blocks" else "NEW.rowid"))
+
+
+def event_trigger(kind: str, table: str, when: str, bench: str, at: str, payload: str) -> str:
+    """The trigger that appends an event of ``kind`` for each row written to ``table`` (for a
+    later migration's new tables)."""
+    return _trigger(kind, table, when, bench, at, payload)
 
 
 #: The statements of the journal migration that adds the events (one transaction).

@@ -113,6 +113,37 @@ class HoldRow:
 
 
 @dataclass(frozen=True)
+class PurgeRow:
+    """A purge that was run on a supply's line: who, when, how, the gas it used."""
+
+    id: int
+    bench: str
+    supply_id: str
+    at: str
+    operator: str | None
+    method: str
+    cycles: int | None
+    gas_standard_litres: float
+    details: str | None
+
+
+@dataclass(frozen=True)
+class HoldStartRow:
+    """The first reading of a hold test started now and finished later."""
+
+    id: int
+    bench: str
+    supply_id: str
+    at: str
+    pressure_abs_pa: float
+    pressure_text: str
+    temperature_k: float
+    ambient_pa: float
+    hold_s: float
+    finished_by: int | None = None
+
+
+@dataclass(frozen=True)
 class AlarmRow:
     id: int
     bench: str
@@ -264,6 +295,9 @@ class Journal:
             except sqlite3.Error:
                 self.db.execute("ROLLBACK")
                 raise
+            # each step into the file at once: the write-ahead log never holds every step (a new
+            # journal on a small or nearly full disk needs about the final size, not twice it)
+            self.db.execute("PRAGMA wal_checkpoint(TRUNCATE)")
 
     def close(self) -> None:
         self.db.close()
@@ -404,7 +438,55 @@ class Journal:
             "INSERT INTO alarms(bench, supply_id, code, at, text, details) VALUES (?, ?, ?, ?, ?, ?)",
             (bench, supply_id, code, at, text, details)).lastrowid))
 
+    def add_purge(self, bench: str, supply_id: str, at: str, entered_at: str, method: str, cycles: int | None,
+                  gas_standard_litres: float, operator: str | None = None, details: str = "") -> int:
+        """Record a purge that was run (who, when, cycles or a flush, the gas it used)."""
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO purges(bench, supply_id, at, operator, method, cycles, gas_standard_litres, details,"
+            " entered_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (bench, supply_id, at, operator, method, cycles, gas_standard_litres, details, entered_at)).lastrowid))
+
+    def add_hold_start(self, bench: str, supply_id: str, at: str, pressure_abs_pa: float, pressure_text: str,
+                       temperature_k: float, ambient_pa: float, hold_s: float, entered_at: str) -> int:
+        """Record the start of a hold test to be finished later (its first reading)."""
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO hold_starts(bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k,"
+            " ambient_pa, hold_s, entered_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (bench, supply_id, at, pressure_abs_pa, pressure_text, temperature_k, ambient_pa, hold_s,
+             entered_at)).lastrowid))
+
+    def add_finished_hold_test(self, start_id: int, at: str, bench: str | None, supply_id: str | None, gas: str,
+                               volume_m3: float, duration_s: float, verdict: str, rate_sccm: float, u_sccm: float,
+                               details: str = "", kind: str | None = None) -> int:
+        """A hold test that finishes a started one (:meth:`add_hold_start`): stored like any
+        hold test, with the start it closes."""
+        return int(self._write(lambda db: db.execute(
+            "INSERT INTO hold_tests(at, bench, supply_id, gas, volume_m3, duration_s, verdict, leak_rate_sccm,"
+            " leak_rate_uncertainty_sccm, details, kind, start_id) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+            (at, bench, supply_id, gas, volume_m3, duration_s, verdict, rate_sccm, u_sccm, details, kind,
+             start_id)).lastrowid))
+
     # -- reads
+
+    def purges(self, bench: str, supply_id: str | None = None) -> list[PurgeRow]:
+        sql = ("SELECT id, bench, supply_id, at, operator, method, cycles, gas_standard_litres, details FROM purges"
+               " WHERE bench = ?")
+        args: tuple[Any, ...] = (bench,)
+        if supply_id is not None:
+            sql += " AND supply_id = ?"
+            args += (supply_id,)
+        return [PurgeRow(*r) for r in self._read(sql + " ORDER BY at, id", args)]
+
+    def hold_starts(self, bench: str, supply_id: str | None = None) -> list[HoldStartRow]:
+        """Hold tests started, each with the hold test that finished it (None while open)."""
+        sql = ("SELECT s.id, s.bench, s.supply_id, s.at, s.pressure_abs_pa, s.pressure_text, s.temperature_k,"
+               " s.ambient_pa, s.hold_s, (SELECT MIN(h.id) FROM hold_tests h WHERE h.start_id = s.id)"
+               " FROM hold_starts s WHERE s.bench = ?")
+        args: tuple[Any, ...] = (bench,)
+        if supply_id is not None:
+            sql += " AND s.supply_id = ?"
+            args += (supply_id,)
+        return [HoldStartRow(*r) for r in self._read(sql + " ORDER BY s.at, s.id", args)]
 
     def _read(self, sql: str, args: tuple[Any, ...] = ()) -> list[tuple[Any, ...]]:
         try:

@@ -4,9 +4,9 @@ that opens and writes it."""
 
 from __future__ import annotations
 
-from benchwarden.storage.events import EVENT_MIGRATION
+from benchwarden.storage.events import EVENT_MIGRATION, event_trigger
 
-SCHEMA_VERSION = 7
+SCHEMA_VERSION = 8
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -162,4 +162,24 @@ _MIGRATIONS: dict[int, str | tuple[str, ...]] = {
     ALTER TABLE samples ADD COLUMN reason TEXT;
     """,
     7: EVENT_MIGRATION,
+    # purges run and hold tests started to finish later, each also an event (issue 29)
+    8: (
+        "CREATE TABLE purges (id INTEGER PRIMARY KEY, bench TEXT NOT NULL, supply_id TEXT NOT NULL,"
+        " at TEXT NOT NULL, operator TEXT, method TEXT NOT NULL, cycles INTEGER,"
+        " gas_standard_litres REAL NOT NULL, details TEXT, entered_at TEXT NOT NULL)",
+        "CREATE INDEX purges_supply ON purges(bench, supply_id, at)",
+        "CREATE TABLE hold_starts (id INTEGER PRIMARY KEY, bench TEXT NOT NULL, supply_id TEXT NOT NULL,"
+        " at TEXT NOT NULL, pressure_abs_pa REAL NOT NULL, pressure_text TEXT NOT NULL,"
+        " temperature_k REAL NOT NULL, ambient_pa REAL NOT NULL, hold_s REAL NOT NULL, entered_at TEXT NOT NULL)",
+        "CREATE INDEX hold_starts_supply ON hold_starts(bench, supply_id, at)",
+        "ALTER TABLE hold_tests ADD COLUMN start_id INTEGER REFERENCES hold_starts(id)",
+        event_trigger("purge", "purges", "INSERT", "NEW.bench", "NEW.at",
+                      "json_object('purge_id', NEW.id, 'supply_id', NEW.supply_id, 'operator', NEW.operator,"
+                      " 'method', NEW.method, 'cycles', NEW.cycles, 'gas_standard_litres', NEW.gas_standard_litres,"
+                      " 'details', json(COALESCE(NULLIF(NEW.details, ''), '{}')))"),
+        event_trigger("hold-start", "hold_starts", "INSERT", "NEW.bench", "NEW.at",
+                      "json_object('hold_start_id', NEW.id, 'supply_id', NEW.supply_id, 'pressure_abs_pa',"
+                      " NEW.pressure_abs_pa, 'pressure_text', NEW.pressure_text, 'temperature_k', NEW.temperature_k,"
+                      " 'ambient_pa', NEW.ambient_pa, 'hold_s', NEW.hold_s)"),
+    ),
 }

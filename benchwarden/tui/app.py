@@ -7,6 +7,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
+from textual import events
 from textual.app import App
 from textual.binding import Binding
 
@@ -21,9 +22,17 @@ class BenchwardenApp(App[int]):
     HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (120, "-wide")]
     ENABLE_COMMAND_PALETTE = False
     BINDINGS = [
-        Binding("c", "cautions", "Cautions"),  # not priority: a focused input keeps its "c"
-        Binding("question_mark", "help", "Help", key_display="?"),
-        Binding("q", "quit", "Quit"),
+        # priority: focus moves the moment Tab is read, so the keys typed right after it (a
+        # paste, a scanner, a quick typist) land in the next field, not in the one being left
+        Binding("tab", "focus_next", "Next field", show=False, priority=True, tooltip="next field or button"),
+        Binding("shift+tab", "focus_previous", "Previous field", show=False, priority=True,
+                tooltip="previous field or button"),
+        Binding("c", "cautions", "Cautions", tooltip="cautions for this bench"),  # not priority: a field keeps "c"
+        Binding("question_mark", "help", "Help", key_display="?", tooltip="every key of this screen"),
+        Binding("q", "quit", "Quit", tooltip="quit (asks while a session runs or a reading is unsaved)"),
+        # the same two while typing in a field, where ? and q are text
+        Binding("f1", "help", "Help", tooltip="every key of this screen (also while typing)", priority=True),
+        Binding("ctrl+q", "quit", "Quit", key_display="^q", tooltip="quit (also while typing)", priority=True),
     ]
 
     def __init__(self, state: SessionState) -> None:
@@ -34,6 +43,19 @@ class BenchwardenApp(App[int]):
         from benchwarden.tui.screens.overview import OverviewScreen
 
         self.push_screen(OverviewScreen(self.state))
+
+    async def on_event(self, event: events.Event) -> None:
+        """Keys read while a form is still opening are held for it, in order (see TypeAhead)."""
+        from benchwarden.tui.screens.base import TypeAhead
+
+        if isinstance(event, events.Key):
+            if not self._screen_stack:
+                return  # closing: no screen takes keys any more
+            screen = self.screen
+            if isinstance(screen, TypeAhead) and not screen.typing_ready:
+                screen.hold_key(event)
+                return
+        await super().on_event(event)
 
     def action_cautions(self) -> None:
         from benchwarden.tui.screens.modals import CautionsScreen
@@ -70,7 +92,7 @@ class BenchwardenApp(App[int]):
         from benchwarden.tui.screens.modals import HelpScreen
 
         if not isinstance(self.screen, HelpScreen):
-            self.push_screen(HelpScreen())
+            self.push_screen(HelpScreen(self.screen))
 
 
 def make_app(profile_path: str | Path | None = None, journal_path: str | Path | None = None,

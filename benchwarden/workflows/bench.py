@@ -29,8 +29,15 @@ from benchwarden.workflows.cylinder import (
     record_idle_drops,
 )
 from benchwarden.workflows.findings import Finding, life_findings, live_findings, ranked
-from benchwarden.workflows.holds import LastHold, hold_finding, last_hold_test, standing_leaks
+from benchwarden.workflows.holds import (
+    LastHold,
+    hold_finding,
+    last_hold_test,
+    reading_step_pa,
+    standing_leaks,
+)
 from benchwarden.workflows.model import Memo, Observed, Plan, memo_get
+from benchwarden.workflows.purges import PurgeState, purge_states
 
 __all__ = ["Assessment", "assess", "findings_of", "journal_state", "largest_supply", "leak_volume_flow"]
 
@@ -48,6 +55,10 @@ class Assessment:
     last_hold: LastHold | None
     findings: tuple[Finding, ...]
     orders: Mapping[str, OrderBy] = field(default_factory=dict)
+    #: supplies whose cylinder was changed, with the purge recorded since (checklist item)
+    purges: Mapping[str, PurgeState] = field(default_factory=dict)
+    #: per supply, the pressure step its reading means [Pa] (displays round to it)
+    steps: Mapping[str, float | None] = field(default_factory=dict)
 
 
 def findings_of(plan: Plan, last_hold: LastHold | None, observed: Mapping[str, Observed] | None = None,
@@ -74,7 +85,14 @@ def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | Non
     orders = orders_of(prof, plan, journal, now)
     extra = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
     return Assessment(plan, last, tuple(ranked(list(findings_of(plan, last, observed, session_end, running))
-                                               + extra)), orders)
+                                               + extra)), orders, purge_states(journal, prof),
+                      reading_steps(prof))
+
+
+def reading_steps(prof: Profile, live: Mapping[str, bool] | None = None) -> dict[str, float | None]:
+    """Per supply, the pressure step its reading means (its transducer's where ``live`` says the
+    live sample is the state, else its gauge's; see :func:`holds.reading_step_pa`)."""
+    return {s.id: reading_step_pa(s, live=bool((live or {}).get(s.id))) for s in prof.supplies}
 
 
 def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.datetime,

@@ -21,6 +21,7 @@ import bisect
 import datetime as dt
 import json
 import math
+import re
 from dataclasses import dataclass, field
 
 from benchwarden.core import gas as g
@@ -54,31 +55,53 @@ def _dt(text: str) -> dt.datetime:
     return dt.datetime.fromisoformat(text)
 
 
+_CLOCK = re.compile(r"(\d{1,2}):(\d{2})(?::(\d{2}))?")
+_DAY_WORDS = {"today": 0, "yesterday": 1}
+
+
+def _clock_time(text: str) -> dt.time:
+    m = _CLOCK.fullmatch(text)
+    if m is None:
+        raise ValueError(text)
+    return dt.time(int(m[1]), int(m[2]), int(m[3] or 0))
+
+
 def parse_at(text: str | None, now: dt.datetime) -> dt.datetime:
-    """A time a person typed: ``None``/``now``, ``HH:MM`` (today; yesterday when that is more
-    than an hour ahead, so 23:55 typed at 00:10 is last night), or an ISO date-time."""
+    """A time a person typed, never in the future: ``None``/``now``; ``HH:MM`` — its most recent
+    past occurrence (09:25 typed at 09:30 is today, 11:25 typed at 09:30 is yesterday);
+    ``yesterday 18:00`` or ``today 08:05``; a date and time, ``2026-12-01 09:30`` or ISO 8601
+    (``2026-12-01T09:30+01:00``). A time within a minute ahead of the clock is taken as now's.
+
+    >>> n = dt.datetime(2026, 12, 2, 9, 30)
+    >>> parse_at("11:25", n), parse_at("yesterday 18:00", n)
+    (datetime.datetime(2026, 12, 1, 11, 25), datetime.datetime(2026, 12, 1, 18, 0))
+    """
     if text:
         check_quantity_text(text, "time")  # digits 0-9 only: int() would read '٠٩:٣٠' as 09:30
-    t = (text or "").strip().lower()
+    t = " ".join((text or "").strip().lower().split())
     if t in ("", "now"):
         return now
     try:
-        if len(t) <= 8 and ":" in t and "-" not in t:
-            parts = [int(x) for x in t.split(":")]
-            if len(parts) not in (2, 3):
-                raise ValueError
-            hh, mm, ss = (parts + [0])[:3]
-            at = now.replace(hour=hh, minute=mm, second=ss, microsecond=0)
-            if at > now + dt.timedelta(hours=1):
-                at -= dt.timedelta(days=1)
+        words = t.split(" ", 1)
+        if words[0] in _DAY_WORDS:
+            clock = _clock_time(words[1] if len(words) > 1 else "")
+            day = now.date() - dt.timedelta(days=_DAY_WORDS[words[0]])
+            at = dt.datetime.combine(day, clock, now.tzinfo)
+        elif _CLOCK.fullmatch(t):
+            at = dt.datetime.combine(now.date(), _clock_time(t), now.tzinfo)
+            if at > now + dt.timedelta(minutes=1):
+                at -= dt.timedelta(days=1)  # the most recent past occurrence
         else:
-            at = dt.datetime.fromisoformat((text or "").strip())
+            at = dt.datetime.fromisoformat(" ".join((text or "").split()).upper().replace(" ", "T", 1))
             if at.tzinfo is None:
                 at = at.replace(tzinfo=now.tzinfo)
+            elif now.tzinfo is None:
+                at = at.astimezone().replace(tzinfo=None)
     except ValueError:
-        raise InputError(f"time {text!r}: use HH:MM, an ISO date-time (2026-12-01T09:30) or 'now'") from None
+        raise InputError(f"time {text!r}: write HH:MM, 'yesterday 18:00', a date and time (2026-12-01 09:30) "
+                         "or 'now'") from None
     if at > now + dt.timedelta(minutes=1):
-        raise InputError(f"time {text} is in the future")
+        raise InputError(f"time {text} is in the future (now is {now:%Y-%m-%d %H:%M})")
     within_dates(at, "time", EARLIEST_RECORD, None, text=text,
                  why="a paper logbook's dates are fine; 1970 or 1900 is a clock or a default, not a reading")
     return at

@@ -20,7 +20,7 @@ from benchwarden.storage.profile import Gauge, Supply
 from benchwarden.units.constants import BAR_PA
 from benchwarden.workflows.findings import Finding, hold_test_findings
 
-__all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "HoldRecord",
+__all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "reading_step_pa", "HoldRecord",
            "record_of", "store", "LastHold", "last_hold_test", "hold_finding", "JudgedHold",
            "judged_hold_tests", "standing_leaks", "LEAKING"]
 
@@ -54,6 +54,21 @@ def profile_gauge_spec(gauge: Gauge | None) -> GaugeSpec | None:
     return gauge_spec(gauge.range.typed_pa, gauge.accuracy_class,
                       gauge.resolution.typed_pa if gauge.resolution is not None else None,
                       gauge.repeatability.typed_pa if gauge.repeatability is not None else None)
+
+
+def reading_step_pa(supply: Supply, live: bool = False) -> float | None:
+    """The finest pressure step a supply's reading means [Pa]: the larger of its gauge's
+    resolution and its maximum permissible error (EN 837-1: class × span / 100) — of the
+    transducer when the live sample is the state (``live``), else of the supply's gauge; None
+    without either. Displays round to it, so no figure claims more than the gauge reads."""
+    src = supply.source
+    if live and src is not None and src.range is not None and src.accuracy_class is not None:
+        span, cls, res = src.range.typed_pa, src.accuracy_class, src.resolution
+    elif supply.gauge is not None:
+        span, cls, res = supply.gauge.range.typed_pa, supply.gauge.accuracy_class, supply.gauge.resolution
+    else:
+        return None
+    return max(float(span) * cls / 100.0, float(res.typed_pa) if res is not None else 0.0)
 
 
 def source_gauge_spec(supply: Supply) -> GaugeSpec | None:
@@ -108,10 +123,17 @@ _DETAIL_KEYS = ("start_abs_pa", "end_abs_pa", "start_temperature_k", "end_temper
                 "kind")
 
 
-def store(journal: Journal, record: HoldRecord, extra: dict[str, str] | None = None) -> int:
-    """Write the record to the journal (one committed transaction); returns its row id."""
+def store(journal: Journal, record: HoldRecord, extra: dict[str, str] | None = None,
+          start_id: int | None = None) -> int:
+    """Write the record to the journal (one committed transaction); returns its row id. A test
+    that finishes one started earlier names that start (``start_id``)."""
     d = asdict(record)
     details = json.dumps({k: d[k] for k in _DETAIL_KEYS} | (extra or {}), sort_keys=True)
+    if start_id is not None:
+        return journal.add_finished_hold_test(start_id, record.at, record.bench, record.supply_id, record.gas,
+                                              record.volume_m3, record.duration_s, record.verdict,
+                                              record.leak_rate_sccm, record.leak_rate_uncertainty_sccm, details,
+                                              record.kind)
     return journal.add_hold_test(record.at, record.bench, record.supply_id, record.gas, record.volume_m3,
                                  record.duration_s, record.verdict, record.leak_rate_sccm,
                                  record.leak_rate_uncertainty_sccm, details, record.kind)

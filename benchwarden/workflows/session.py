@@ -41,9 +41,11 @@ from benchwarden.workflows.holds import (
     judged_hold_tests,
     last_hold_test,
     profile_gauge_spec,
+    reading_step_pa,
     standing_leaks,
 )
 from benchwarden.workflows.model import Memo, Observed, Plan
+from benchwarden.workflows.purges import purge_states
 from benchwarden.workflows.record import StopsStand, standing_stops, start_session
 from benchwarden.workflows.watch import (
     AlarmBook,
@@ -257,10 +259,14 @@ class SessionState:
         return reading
 
     def parse_time(self, text: str) -> dt.datetime:
-        at = parse_at(text, self.clock())
-        if self.started_at is not None and self.running and at < self.started_at - dt.timedelta(hours=24):
-            raise InputError(f"time {text} is more than a day before the session started")
-        return at
+        """A typed time: a date and time, ``yesterday 18:00``, or ``HH:MM`` (its most recent past
+        occurrence); never in the future (:func:`benchwarden.workflows.cylinder.parse_at`)."""
+        return parse_at(text, self.clock())
+
+    def in_session(self, reading: Reading) -> bool:
+        """Whether a reading counts in the running session: taken after it started (a time
+        before the start is an idle reading, whatever moment it was typed)."""
+        return self.running and (self.started_at is None or reading.at >= self.started_at)
 
     def questions(self, reading: Reading) -> list[Question]:
         """What is implausible about a checked reading (a rise without a change, a drop far faster
@@ -274,7 +280,7 @@ class SessionState:
         (committed), then memory. If the journal write fails the reading is kept in memory,
         marked unsaved (retried by :meth:`retry_unsaved`), and the JournalError is raised."""
         assert self.profile is not None
-        if self.running and reading.pressure_abs_pa is not None:
+        if self.in_session(reading) and reading.pressure_abs_pa is not None:
             self.readings.setdefault(reading.supply_id, []).append(reading)
         if self.journal is not None:
             try:
@@ -288,7 +294,7 @@ class SessionState:
     def _write_reading(self, reading: Reading) -> None:
         assert self.journal is not None and self.profile is not None
         reading.journal_id = record_reading(self.journal, self.profile, reading.entry(),
-                                            self.session_id if self.running else None, self.clock())
+                                            self.session_id if self.in_session(reading) else None, self.clock())
 
     def retry_unsaved(self) -> int:
         """Write the readings the journal refused before; returns how many are still unsaved."""
@@ -348,6 +354,13 @@ class SessionState:
         if note:
             self.journal.add_note(self.session_id, self.clock().isoformat(timespec="seconds"), note)
 
+    def reading_step(self, supply_id: str) -> float | None:
+        """The pressure step the supply's gauge resolves [Pa] (figures are shown to it)."""
+        if self.profile is None:
+            return None
+        lv = self.live.get(supply_id)
+        return reading_step_pa(self.profile.supply(supply_id), live=lv is not None and lv.sample is not None)
+
     def last_reading(self, supply_id: str) -> Reading | None:
         rs = self.readings.get(supply_id)
         return max(rs, key=lambda r: r.at) if rs else None
@@ -383,8 +396,10 @@ class SessionState:
         """The bench now, as the command line's ``plan`` and ``checklist`` see it."""
         assert self.plan is not None
         last = self.last_hold_test()
+        assert self.profile is not None
         return Assessment(self.plan, last, findings_of(self.plan, last, self.observed, self.session_end,
-                                                       self.running))
+                                                       self.running), purges=purge_states(self.journal, self.profile),
+                          steps={s.id: self.reading_step(s.id) for s in self.profile.supplies})
 
     def findings(self) -> list[Finding]:
         """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""

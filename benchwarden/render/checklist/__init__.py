@@ -54,6 +54,8 @@ class Checklist:
     warnings: int = 0
     attentions: int = 0
     notes: tuple[str, ...] = field(default=())
+    #: when it was made, ISO 8601 with the UTC offset (for machines; ``generated_at`` is for people)
+    generated_iso: str = ""
 
 
 # ----------------------------------------------------------------------------- item files
@@ -164,7 +166,7 @@ def _supply_contents(ctx: _Ctx) -> list[Item]:
     d = ctx.display
     return [_item(ctx, f"supply-contents:{s.id}", f"{s.id} ({s.gas_name}) contents",
                   f"{mass_words(s.mass_kg, s.mass_uncertainty_kg)} = {s.free_volume_m3:.3f} m³ at "
-                  f"{s.reference_label}" + ("" if s.liquefied else f"; now {d.gauge(s.pressure_abs_pa)}")
+                  f"{s.reference_label}" + ("" if s.liquefied else f"; now {d.gauge(s.pressure_abs_pa, ctx.a.steps.get(s.id))}")
                   + f"; {supply_state_words(s, d)}",
                   ctx.about(s.id, _CONTENTS_CODES),
                   "by weight (liquefied)" if s.liquefied else "real gas at the last reading",
@@ -215,6 +217,25 @@ def _leak_status(ctx: _Ctx) -> list[Item]:
     last = ctx.a.last_hold
     return [Item("leak-status", "Hold test of the supply and lines", status, figure, sentence,
                  last.age_days if last else None, "last_hold_test.age_days" if last else None, f.code)]
+
+
+def _purge_after_change(ctx: _Ctx) -> list[Item]:
+    """Each supply whose cylinder was changed: the purge on record since, or a box to tick."""
+    d = ctx.display
+    out = []
+    for sid, ps in ctx.a.purges.items():
+        when = d.clock(ps.change.at, ctx.now)
+        p = ps.purge
+        if p is None:
+            out.append(Item(f"purge-after-change:{sid}", f"{sid}: purge the line of air after the cylinder change "
+                            f"of {when} (no purge recorded)"))
+            continue
+        how = f"{p.cycles} pressure cycles" if p.cycles is not None else "a flush"
+        out.append(Item(f"purge-after-change:{sid}", f"{sid}: line purged after the cylinder change of {when}", "ok",
+                        f"{how}, {p.gas_standard_litres:.3g} standard L of gas, {d.clock(p.at, ctx.now)}"
+                        + (f" by {p.operator}" if p.operator else ""), "purge recorded in the journal",
+                        p.gas_standard_litres, None))
+    return out
 
 
 def _room_release(ctx: _Ctx) -> list[Item]:
@@ -310,6 +331,7 @@ _COMPUTED: dict[str, Callable[[_Ctx], list[Item]]] = {
     "regulator-ratings": _regulator_ratings,
     "regulator-outlet": _regulator_outlet,
     "leak-status": _leak_status,
+    "purge-after-change": _purge_after_change,
     "room-release": _room_release,
     "room-vented": _room_vented,
     "gap-margins": _gap_margins,
@@ -347,13 +369,14 @@ def build_checklist(prof: Profile, assessment: Assessment, profile_dir: Path | N
                      f"{display.hours(plan.session_hours)} from {display.clock(plan.start, now)}", tuple(sections),
                      cautions,
                      operator=operator or prof.checklist.operator, second_person=prof.checklist.second_person,
-                     stops=n["stop"], warnings=n["warning"], attentions=n["attention"])
+                     stops=n["stop"], warnings=n["warning"], attentions=n["attention"],
+                     generated_iso=(now if now.tzinfo is not None else now.astimezone()).isoformat(timespec="seconds"))
 
 
 def checklist_json(cl: Checklist) -> dict[str, Any]:
     """The checklist for scripts: every item with its status, finding code and figure."""
     return {
-        "bench": cl.bench, "generated_at": cl.generated_at, "session": cl.session,
+        "bench": cl.bench, "generated_at": cl.generated_iso or cl.generated_at, "session": cl.session,
         "finding_counts": {"stop": cl.stops, "warning": cl.warnings, "attention": cl.attentions},
         "sections": [{"id": s.id, "title": s.title, "items": [
             {"id": it.id, "text": it.text, "kind": "tick" if it.status is None else "computed",

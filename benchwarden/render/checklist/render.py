@@ -193,6 +193,9 @@ def render_pdf(cl: Checklist, path: str | Path) -> Path:
     pdf.add_page()
     w = pdf.epw
     initials_w = 22.0
+    pdf.set_font("DejaVu", "B", 7)
+    #: the status column: as wide as the widest status word, so none is cut ("ATTENTION")
+    mark_w = max(9.0, max(pdf.get_string_width(m) for m in MARK.values()) + 2.0)
 
     def text(t: str, size: float = 10, style: str = "", gap: float = 1.0) -> None:
         pdf.set_font("DejaVu", style, size)
@@ -206,17 +209,17 @@ def render_pdf(cl: Checklist, path: str | Path) -> Path:
     def item(it: Item) -> None:
         pdf.set_font("DejaVu", "B" if it.status in ("stop", "warning") else "", 10)
         body = _tick(it) if it.status is None else _line(it)[len(_box(it)) + 1:]
-        lines = pdf.multi_cell(w - 9 - initials_w, 5, body, dry_run=True, output="LINES")
+        lines = pdf.multi_cell(w - mark_w - initials_w, 5, body, dry_run=True, output="LINES")
         room_for(5 * len(lines if isinstance(lines, list) else [body]) + 1.5)
         x, y = pdf.l_margin, pdf.get_y()
         if it.status is None:
             pdf.rect(x, y + 0.8, 3.6, 3.6)  # a box to tick
         else:
             pdf.set_font("DejaVu", "B", 7)
-            pdf.text(x, y + 3.8, MARK[it.status][:4])
+            pdf.text(x, y + 3.8, MARK[it.status])
             pdf.set_font("DejaVu", "B" if it.status in ("stop", "warning") else "", 10)
-        pdf.set_xy(x + 9, y)
-        pdf.multi_cell(w - 9 - initials_w, 5, body, new_x="LMARGIN", new_y="NEXT")
+        pdf.set_xy(x + mark_w, y)
+        pdf.multi_cell(w - mark_w - initials_w, 5, body, new_x="LMARGIN", new_y="NEXT")
         end = pdf.get_y()
         pdf.line(x + w - initials_w + 4, y + 4.5, x + w, y + 4.5)  # initials
         pdf.set_y(max(end, y + 5) + 1.5)

@@ -13,16 +13,17 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
 from textual.timer import Timer
-from textual.widgets import DataTable, Footer, Header, Static
+from textual.widgets import DataTable, Header, Static
 
 from benchwarden.errors import BenchwardenError, JournalError
-from benchwarden.render.display import Display, live_text, profile_display
+from benchwarden.render.display import Display, live_text, open_hold_text, profile_display
 from benchwarden.render.findings import SEVERITY_MARK, describe, question_text
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.render.supply import mass_words, phase_short
-from benchwarden.tui.widgets import FindingsPanel, bar
+from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
 from benchwarden.units import fmt_hours
 from benchwarden.workflows.findings import Finding
+from benchwarden.workflows.hold_runs import open_holds
 from benchwarden.workflows.session import Reading, SessionState
 
 #: How often the live figures (plan, leak watch, alarms) are recomputed from new samples [s].
@@ -32,18 +33,20 @@ MAX_STOP_LINES = 5
 
 
 class OverviewScreen(Screen[None]):
+    # priority: acted on the moment the key is read, so keys typed right after (the reading
+    # itself) reach the form it opens; the overview has no field of its own to type into
     BINDINGS = [
-        Binding("s", "toggle_session", "Session"),
-        Binding("r", "reading", "Reading"),
-        Binding("g", "graph", "Graph"),
-        Binding("t", "hold", "Hold"),
-        Binding("o", "oxygen", "O2"),
-        Binding("k", "checklist", "Checklist"),
-        Binding("n", "change", "New cylinder"),
-        Binding("p", "purge", "Purge"),
-        Binding("h", "history", "History"),
-        Binding("l", "reload", "Reload"),
-        Binding("u", "units", "Units"),
+        Binding("s", "toggle_session", "Session", tooltip="start or stop a session", priority=True),
+        Binding("r", "reading", "Reading", tooltip="enter a gauge reading or a weight (any time)", priority=True),
+        Binding("n", "change", "New cyl.", tooltip="record a new cylinder (a cylinder change)", priority=True),
+        Binding("h", "history", "History", tooltip="history: readings, cylinders, sessions, hold tests", priority=True),
+        Binding("g", "graph", "Graph", tooltip="graph: supply pressure over the session", priority=True),
+        Binding("t", "hold", "Hold", tooltip="hold test: now, from a log, or start now and finish later", priority=True),
+        Binding("o", "oxygen", "O2", tooltip="room oxygen", priority=True),
+        Binding("k", "checklist", "Checklist", tooltip="checklist preview and export", priority=True),
+        Binding("p", "purge", "Purge", tooltip="purge a line after a cylinder change, and record it", priority=True),
+        Binding("u", "units", "Units", tooltip="pressure unit: bar, psi, kPa, MPa", priority=True),
+        Binding("l", "reload", "Reload", tooltip="reload the profile after editing it", priority=True),
     ]
 
     def __init__(self, state: SessionState) -> None:
@@ -84,14 +87,14 @@ class OverviewScreen(Screen[None]):
                 with Vertical(id="findings-box"):
                     yield Static("Findings", classes="heading")
                     yield FindingsPanel(id="findings")
-        yield Footer()
+        yield KeysFooter()
 
     def on_mount(self) -> None:
         sup = self.query_one("#supplies", DataTable)
         # fixed widths: the layout does not jump as figures change, and is the same every run
         # two tables so that every figure shows at 80 columns: the countdown, then the contents
-        for label, key, width in (("Supply", "id", 8), ("Reading", "reading", 13), ("To reserve", "left", 10),
-                                  ("At", "at", 9), ("Left", "bar", 8)):
+        for label, key, width in (("Supply", "id", 8), ("Reading", "reading", 15), ("To reserve", "left", 10),
+                                  ("At", "at", 12), ("Left", "bar", 8)):
             sup.add_column(label, key=key, width=width)
         more = self.query_one("#supplies-more", DataTable)
         for label, key, width in (("Supply", "id", 8), ("Gas", "gas", 9), ("Contents", "contents", 9),
@@ -201,7 +204,8 @@ class OverviewScreen(Screen[None]):
                 coldest = min(r.outlet_temperature_k for r in regs)
                 outlet = ("/".join(disp.gauge_number(r.set_point_abs_pa) for r in regs)
                           + f" {disp.gauge_label} {disp.temperature(coldest).replace(' °C', '°C')}")
-            reading = phase_short(s, disp) if s.liquefied or s.phase == "liquid-full" else disp.gauge(s.pressure_abs_pa)
+            reading = (phase_short(s, disp) if s.liquefied or s.phase == "liquid-full"
+                       else disp.gauge(s.pressure_abs_pa, st.reading_step(s.id)))
             sup.add_row(s.id, reading, "", "", "", key=s.id)
             more.add_row(s.id, s.gas_short[:9], mass_words(s.mass_kg, s.mass_uncertainty_kg, 2), f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
         dr = self.query_one("#draws", DataTable)
@@ -233,7 +237,7 @@ class OverviewScreen(Screen[None]):
 
     def _observed_line(self) -> None:
         st = self.state
-        assert st.plan is not None
+        assert st.plan is not None and st.profile is not None
         parts = []
         for s in st.plan.supplies:
             ob = st.observed.get(s.id)
@@ -248,6 +252,8 @@ class OverviewScreen(Screen[None]):
                          + ("" if ob.resolved else "  (not resolved yet: the plan's projection stands)"))
         for sid, lv in st.live.items():
             parts.append(f"{sid}: {live_text(lv, self.units)}")
+        parts += [f"⏲ {open_hold_text(h, self.units, st.clock(), st.reading_step(h.supply_id))}"
+                  for h in open_holds(st.journal, st.profile)]  # a hold test started, to finish
         self.query_one("#observed", Static).update(Text("\n".join(parts)))
 
     def tick(self) -> None:
@@ -285,8 +291,7 @@ class OverviewScreen(Screen[None]):
             colour = "green" if h >= left else ("yellow" if h >= 0.5 * left else "red")
             b = bar(h / st.plan.session_hours if st.plan.session_hours else 0.0, 8)
             for col, val in (("left", fmt_hours(h)), ("bar", (b, colour)),
-                             ("at", (at.strftime("%H:%M") if at.date() == now.date() else at.strftime("%a %H:%M"))
-                                     if at else "never")):
+                             ("at", Display.short_clock(at, now) if at else "never")):
                 self._set(f"{s.id}/{col}", val, self._cell_setter(sup, s.id, col))
 
     @staticmethod
@@ -380,9 +385,12 @@ class OverviewScreen(Screen[None]):
 
     def _save_reading(self, reading: Reading) -> None:
         try:
-            self.state.add_reading(reading)
-            if not self.state.running:
-                self.notify("Idle reading saved (no session running)", timeout=4)
+            st = self.state
+            st.add_reading(reading)
+            where = ("in the session" if st.in_session(reading) else
+                     "as an idle reading (before the session started)" if st.running else "as an idle reading")
+            self.notify(f"{reading.supply_id} {reading.pressure_text} at {Display.clock(reading.at, st.clock())} "
+                        f"saved {where}", timeout=4, markup=False)
         except JournalError as exc:
             self.notify(f"{exc}. The reading is kept on screen, marked unsaved, and retried.", title="Journal",
                         severity="error", timeout=15, markup=False)

@@ -1,0 +1,137 @@
+"""Running a hold test on a supply of the bench, as the app does it: two readings now, a
+logged series, or a deliberate test **started now and finished later** (its first reading is
+stored at once, the overview reminds of it, and its result is stored like any hold test).
+
+The method is :mod:`benchwarden.core.hold` (the same as ``benchwarden hold``); the record is
+:func:`benchwarden.workflows.holds.record_of`. Interfaces parse what a person typed and pass
+SI numbers here.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass
+
+from benchwarden.core import hold as hd
+from benchwarden.errors import InputError, JournalError
+from benchwarden.storage.holdlog import parse_log
+from benchwarden.storage.journal import HoldStartRow, Journal
+from benchwarden.storage.profile import Profile
+from benchwarden.workflows import holds
+
+__all__ = ["HoldRun", "two_readings", "from_log", "save", "OpenHold", "start_hold", "open_holds", "finish_hold",
+           "GUIDANCE"]
+
+#: How to run a hold test well (the method's own guidance).
+GUIDANCE = hd.GUIDANCE
+#: The longest a deliberate hold test may be planned for [s] (a week).
+MAX_HOLD_S = 7 * 86400.0
+
+
+@dataclass(frozen=True)
+class HoldRun:
+    """A computed hold test on a supply, and the logged series it came from (if any)."""
+
+    supply_id: str
+    result: hd.HoldResult
+    kind: str
+    fit: hd.LogFit | None = None
+
+
+def two_readings(prof: Profile, supply_id: str, start_abs_pa: float, end_abs_pa: float, duration_s: float,
+                 t_start_k: float | None, t_end_k: float | None) -> HoldRun:
+    """A hold test from two readings of the supply's gauge."""
+    s = prof.supply(supply_id)
+    amb = prof.ambient_pa
+    r = hd.hold_two_readings(s.gas, s.water_volume, start_abs_pa, end_abs_pa, duration_s, t_start_k, t_end_k,
+                             holds.profile_gauge_spec(s.gauge), target_sccm=holds.supply_target_sccm(s),
+                             reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
+    return HoldRun(supply_id, r, "two-readings")
+
+
+def from_log(prof: Profile, supply_id: str, text: str) -> HoldRun:
+    """A hold test from a logged series (CSV text, the format of ``benchwarden hold --log``)."""
+    s = prof.supply(supply_id)
+    amb = prof.ambient_pa
+    fit = hd.hold_from_log(s.gas, s.water_volume, parse_log(text, None, amb), holds.profile_gauge_spec(s.gauge),
+                           target_sccm=holds.supply_target_sccm(s), ambient_pa=amb,
+                           reserve_abs=s.reserve.abs_at(amb))
+    return HoldRun(supply_id, fit.result, "log", fit)
+
+
+def save(journal: Journal, prof: Profile, run: HoldRun, now: dt.datetime, start_id: int | None = None) -> int:
+    """Store the hold test (one committed write); returns its row id."""
+    return holds.store(journal, holds.record_of(run.result, now, prof.bench.name, run.supply_id, run.kind),
+                       start_id=start_id)
+
+
+@dataclass(frozen=True)
+class OpenHold:
+    """A hold test started and not finished yet."""
+
+    id: int
+    supply_id: str
+    at: dt.datetime
+    pressure_abs_pa: float
+    pressure_text: str
+    temperature_k: float
+    hold_s: float
+
+    @property
+    def due_at(self) -> dt.datetime:
+        return self.at + dt.timedelta(seconds=self.hold_s)
+
+    def due(self, now: dt.datetime) -> bool:
+        return now >= self.due_at
+
+
+def start_hold(journal: Journal, prof: Profile, supply_id: str, pressure_abs_pa: float, pressure_text: str,
+               temperature_k: float, hold_s: float, now: dt.datetime) -> int:
+    """Store the first reading of a hold test to be finished after ``hold_s`` seconds."""
+    s = prof.supply(supply_id)
+    if not 0 < hold_s <= MAX_HOLD_S:
+        raise InputError("hold for more than zero and at most 7 days (e.g. '12 h')")
+    if pressure_abs_pa <= prof.ambient_pa:
+        raise InputError(f"hold test start {pressure_text!r}: the supply must be under pressure")
+    if s.gas.sold_liquefied and s.gross is not None:
+        raise InputError(f"{supply_id} is weighed, not read by pressure: a pressure hold test does not apply")
+    return journal.add_hold_start(prof.bench.name, supply_id, now.isoformat(timespec="seconds"), pressure_abs_pa,
+                                  pressure_text, temperature_k, prof.ambient_pa, hold_s,
+                                  now.isoformat(timespec="seconds"))
+
+
+def _open(row: HoldStartRow) -> OpenHold:
+    return OpenHold(row.id, row.supply_id, dt.datetime.fromisoformat(row.at), row.pressure_abs_pa,
+                    row.pressure_text, row.temperature_k, row.hold_s)
+
+
+def open_holds(journal: Journal | None, prof: Profile) -> list[OpenHold]:
+    """The hold tests started and not finished, the latest per supply; one started before the
+    supply's latest cylinder change is void (a hold test never straddles a change)."""
+    if journal is None:
+        return []
+    out = []
+    try:
+        for s in prof.supplies:
+            rows = journal.hold_starts(prof.bench.name, s.id)
+            if not rows or rows[-1].finished_by is not None:
+                continue
+            changes = journal.changes(prof.bench.name, s.id)
+            if changes and dt.datetime.fromisoformat(changes[-1].at) > dt.datetime.fromisoformat(rows[-1].at):
+                continue
+            out.append(_open(rows[-1]))
+    except JournalError:
+        return []
+    return out
+
+
+def finish_hold(journal: Journal, prof: Profile, start: OpenHold, end_abs_pa: float, t_end_k: float | None,
+                now: dt.datetime) -> HoldRun:
+    """Finish a started hold test with the end reading now; stored like any hold test."""
+    duration = (now - start.at).total_seconds()
+    if duration <= 0:
+        raise InputError("the hold test was started in the future of this clock; nothing stored")
+    run = two_readings(prof, start.supply_id, start.pressure_abs_pa, end_abs_pa, duration, start.temperature_k,
+                       t_end_k if t_end_k is not None else start.temperature_k)
+    save(journal, prof, run, now, start_id=start.id)
+    return run
