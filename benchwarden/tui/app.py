@@ -99,8 +99,7 @@ def make_app(profile_path: str | Path | None = None, journal_path: str | Path | 
              clock: Callable[[], dt.datetime] = now_local) -> BenchwardenApp:
     """Build the app for a profile (default: the bundled demo bench) and a journal file
     (default: ``$BENCHWARDEN_JOURNAL`` or the user data directory)."""
-    from benchwarden.storage.journal import open_journal
-    from benchwarden.storage.profile import demo_profile_path
+    from benchwarden.workflows.computations import demo_profile_path, open_journal
 
     path = Path(profile_path) if profile_path else demo_profile_path()
     journal = open_journal(journal_path)
@@ -111,7 +110,7 @@ def run_app(profile_path: str | None, journal_path: str | None) -> int:
     import os
 
     from benchwarden.errors import InputError
-    from benchwarden.storage.profile import load_profile
+    from benchwarden.workflows.computations import load_profile
 
     if os.environ.get("TERM", "") in ("dumb", "unknown"):
         raise InputError("the app needs a full-screen terminal (TERM is 'dumb'); use the commands instead, "

@@ -55,7 +55,7 @@ class ChecklistScreen(ToolScreen):
         slug = re.sub(r"[^A-Za-z0-9]+", "-", self.checklist.bench).strip("-").lower()[:40] or "bench"
         stamp = st.clock().strftime("%Y%m%d-%H%M%S")
         if folder is None:  # next to the profile; for the bundled demo, the current folder
-            from benchwarden.storage.profile import demo_profile_path
+            from benchwarden.workflows.computations import demo_profile_path
 
             folder = st.profile_path.resolve().parent
             if st.profile_path.resolve() == demo_profile_path().resolve() or not os.access(folder, os.W_OK):

@@ -12,11 +12,11 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen, Screen
 from textual.widgets import Button, Input, Label, Select, Static
 
-from benchwarden.core.cautions import DEFER, ESTIMATES, GENERAL, gas_cautions
 from benchwarden.errors import InputError
 from benchwarden.tui.screens.base import TypeAhead
 from benchwarden.tui.widgets import field
 from benchwarden.units.constants import T0_K
+from benchwarden.workflows.computations import DEFER, ESTIMATES, GENERAL, gas_cautions
 from benchwarden.workflows.session import Reading, SessionState
 
 
