@@ -24,6 +24,7 @@ from benchwarden.cli.common import (
 from benchwarden.errors import LabError, LabUnreachable
 from benchwarden.render.files import clean
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.units.constants import ATM_PA
 from benchwarden.workflows import computations as comp
 
 #: Exit status when the lab database cannot be reached.
@@ -109,7 +110,7 @@ def cmd_status(args: argparse.Namespace) -> int:
         return _unreachable(exc)
     except LabError as exc:
         raise input_error(str(exc)) from None
-    d = display(args, 101325.0)
+    d = display(args, ATM_PA)
     if args.json:
         emit_json({"benches": [{k: b[k] for k in ("bench_id", "bench", "snapshot_at", "snapshot_age_s", "supplies",
                                                    "alarms")} for b in v.benches],

@@ -16,6 +16,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from benchwarden.errors import ConflictError, InputError, RangeError
+from benchwarden.units.constants import SCCM_PER_M3_S
 
 __all__ = ["within", "in_range", "Range", "RANGES", "within_dates", "conflict", "plain_number", "MAX_QUANTITY_CHARS", "check_quantity_text", "text_problem",
            "EARLIEST_RECORD", "RETEST_HORIZON_YEARS", "MIN_FLOW"]
@@ -27,7 +28,7 @@ MAX_QUANTITY_CHARS = 100
 EARLIEST_RECORD = dt.date(1990, 1, 1)
 #: A flow too small to be a draw or a leak [standard m³/s, m³/s or kg/s]: 0.001 sccm (a slip of the
 #: unit or the exponent; run times of thousands of years follow from less).
-MIN_FLOW = 1e-3 / 60e6
+MIN_FLOW = 1e-3 / SCCM_PER_M3_S
 #: How far ahead a retest (periodic inspection) date may lie: intervals are at most 10 years
 #: (common practice, from memory), with room for a fill dated before its stamp.
 RETEST_HORIZON_YEARS = 15

@@ -8,6 +8,7 @@ from __future__ import annotations
 from benchwarden.core import gas as g
 from benchwarden.errors import PropertyError
 from benchwarden.storage.profile import read_text_file
+from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import within
 
 __all__ = ["MAX_FILL_PRESSURE_PA", "check_weight_fits", "MAX_LOG_BYTES", "read_log"]
@@ -43,4 +44,4 @@ def check_weight_fits(gas: g.Gas, net_kg: float, volume_m3: float, T: float, tex
     cap = rho_max * volume_m3
     return within(net_kg, "net weight (gross − tare)", 0.0, cap, "kg", lo_open=True, text=text or None,
                   words=f"at most {cap:.3g} kg: {volume_m3 * 1000:.3g} L of {gas.name} holds no more even at "
-                        f"{MAX_FILL_PRESSURE_PA / 1e5:g} bar; check the weights and the volume")
+                        f"{MAX_FILL_PRESSURE_PA / BAR_PA:g} bar; check the weights and the volume")
