@@ -145,7 +145,7 @@ def test_order_by_date_from_a_synthetic_journal(tmp_path, capsys):
     import datetime as dt
 
     from benchwarden.storage.journal import Journal
-    from benchwarden.workflows.cylinder import consumption
+    from benchwarden.workflows.orders import consumption
 
     text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text().replace(
         'currency = "EUR"', 'currency = "EUR"\nlead_time = "10 d"')

@@ -20,14 +20,7 @@ from benchwarden.storage.profile import Profile
 from benchwarden.units import Flow
 from benchwarden.units.constants import SECONDS_PER_DAY
 from benchwarden.workflows.build import build_plan, full_mass, largest_supply
-from benchwarden.workflows.cylinder import (
-    Consumption,
-    OrderBy,
-    consumption,
-    journal_profile,
-    order_by,
-    record_idle_drops,
-)
+from benchwarden.workflows.cylinder import journal_profile
 from benchwarden.workflows.findings import Finding, life_findings, live_findings, ranked
 from benchwarden.workflows.holds import (
     LastHold,
@@ -36,7 +29,9 @@ from benchwarden.workflows.holds import (
     reading_step_pa,
     standing_leaks,
 )
+from benchwarden.workflows.idledrops import record_idle_drops
 from benchwarden.workflows.model import Memo, Observed, Plan, memo_get
+from benchwarden.workflows.orders import Consumption, OrderBy, consumption, order_by
 from benchwarden.workflows.purges import PurgeState, purge_states
 
 __all__ = ["Assessment", "assess", "findings_of", "journal_state", "largest_supply", "leak_volume_flow"]
@@ -75,7 +70,7 @@ def assess(prof: Profile, journal: Journal | None = None, now: dt.datetime | Non
            observed: Mapping[str, Observed] | None = None, session_end: dt.datetime | None = None,
            running: bool = False) -> Assessment:
     """Plan the bench as the journal records it (each supply's latest reading or fill, see
-    :func:`benchwarden.workflows.cylinder.journal_profile`), turn new idle drops into hold tests,
+    `benchwarden.workflows.cylinder.journal_profile`), turn new idle drops into hold tests,
     and judge it with the latest hold test."""
     now = now or dt.datetime.now().astimezone().replace(second=0, microsecond=0)
     prof = journal_state(prof, journal, now)

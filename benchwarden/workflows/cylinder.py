@@ -10,23 +10,19 @@ since: readings (in a session or idle), struck readings, cylinder changes and ho
   implausible one raises (a rise without a change, a drop far faster than planned, a unit that
   looks swapped), each a code with numbers for the interfaces to ask.
 * :func:`record_reading`, :func:`record_change` — write them (journal first).
-* :func:`idle_drops` — two readings of a supply that bracket a time with no session and no
-  change form an idle drop; :func:`record_idle_drops` turns each into a hold test (the same
-  method, budget and record as ``hold``), stored once.
+Idle drops are in :mod:`benchwarden.workflows.idledrops`, consumption and order-by dates in
+:mod:`benchwarden.workflows.orders`.
 """
 
 from __future__ import annotations
 
-import bisect
 import datetime as dt
-import json
 import math
 import re
 from dataclasses import dataclass, field
 
 from benchwarden.core import gas as g
-from benchwarden.core import hold as hd
-from benchwarden.errors import BenchwardenError, InputError, JournalError
+from benchwarden.errors import InputError, JournalError
 from benchwarden.storage.journal import ChangeRow, Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply, with_reading, with_weight
 from benchwarden.storage.samples import SampleStore
@@ -35,15 +31,12 @@ from benchwarden.units.constants import BAR_PA, T0_K
 from benchwarden.units.limits import EARLIEST_RECORD, check_quantity_text, within_dates
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows.holds import (
-    HoldRecord,
     profile_gauge_spec,
-    record_of,
-    store,
-    supply_target_sccm,
 )
 
-__all__ = ["Consumption", "OrderBy", "consumption", "order_by", "Entry", "Question", "current_change", "readings_since_change", "idle_drop_counts", "unresolved_idle_drop", "last_reading", "journal_profile", "check_reading",
-           "record_reading", "record_change", "IdleDrop", "idle_drops", "record_idle_drops", "parse_at"]
+__all__ = ["stamp", "Entry", "Question", "current_change", "readings_since_change", "last_reading", "journal_profile",
+           "check_reading", "check_limits", "questions_after", "record_reading", "record_change", "parse_at",
+           "latest_state", "live_is_state", "LatestSample"]
 
 #: Temperatures a cylinder reading may carry [K] (−73 °C to 77 °C): beyond, the unit slipped.
 READING_T_RANGE = (200.0, 350.0)
@@ -51,7 +44,8 @@ READING_T_RANGE = (200.0, 350.0)
 FAST_DROP_FACTOR = 5.0
 
 
-def _dt(text: str) -> dt.datetime:
+def stamp(text: str) -> dt.datetime:
+    """A time as the journal stores it (ISO 8601) as a datetime."""
     return dt.datetime.fromisoformat(text)
 
 
@@ -207,7 +201,7 @@ def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
 
 def _newer(live: LatestSample, last_p: ReadingRow | None, change: ChangeRow | None) -> bool:
     """Whether a live sample is newer than the latest pressure reading and cylinder change."""
-    newest = max([_dt(x) for x in (last_p.at if last_p else None, change.at if change else None) if x], default=None)
+    newest = max([stamp(x) for x in (last_p.at if last_p else None, change.at if change else None) if x], default=None)
     at = live.at if newest is None or newest.tzinfo is not None else live.at.replace(tzinfo=None)
     return newest is None or at > newest
 
@@ -257,7 +251,7 @@ def check_reading(prof: Profile, journal: Journal | None, entry: Entry, planned_
                                   before=entry.at.isoformat(timespec="seconds"))
     if prev is None or prev.pressure_abs_pa is None:
         return []
-    return questions_after(prof, Entry(s.id, _dt(prev.at), prev.temperature_k, prev.pressure_abs_pa), entry,
+    return questions_after(prof, Entry(s.id, stamp(prev.at), prev.temperature_k, prev.pressure_abs_pa), entry,
                            planned_kg_s, prev.at)
 
 
@@ -345,248 +339,3 @@ def record_change(journal: Journal, prof: Profile, entry: Entry, now: dt.datetim
     running = journal.unfinished_session(prof.bench.name)
     record_reading(journal, prof, entry, running.id if running else None, now)
     return cid
-
-
-# ----------------------------------------------------------------------------- idle drops
-
-
-@dataclass(frozen=True)
-class IdleDrop:
-    """Two readings of a supply with no session and no cylinder change between them."""
-
-    supply_id: str
-    first: ReadingRow
-    last: ReadingRow
-
-    @property
-    def key(self) -> str:
-        return f"{self.first.id}-{self.last.id}"
-
-
-class _Sessions:
-    """The bench's session spans, read once per call: is a time span inside a session?"""
-
-    def __init__(self, journal: Journal, bench: str, now: dt.datetime) -> None:
-        self.spans = [(_dt(a), _dt(b) if b else now) for a, b in journal.session_spans(bench)]
-
-    def overlap(self, a: dt.datetime, b: dt.datetime) -> bool:
-        return any(start < b and stop > a for start, stop in self.spans)
-
-
-def _is_idle(sessions: _Sessions, a: ReadingRow, b: ReadingRow) -> bool:
-    ta, tb = _dt(a.at), _dt(b.at)
-    if tb <= ta:
-        return False
-    # strictly inside the interval: a session that ended at the first reading or began at the last is fine
-    inner_a, inner_b = ta + dt.timedelta(seconds=1), tb - dt.timedelta(seconds=1)
-    return not (inner_b > inner_a and sessions.overlap(inner_a, inner_b))
-
-
-def idle_drops(journal: Journal | None, prof: Profile, supply_id: str, now: dt.datetime) -> list[IdleDrop]:
-    """Consecutive pressure readings of the supply's current cylinder that bracket a time with
-    no session running (readings taken in a session may open or close one)."""
-    if journal is None:
-        return []
-    rows = [r for r in readings_since_change(journal, prof.bench.name, supply_id) if r.pressure_abs_pa is not None]
-    sessions = _Sessions(journal, prof.bench.name, now)
-    return [IdleDrop(supply_id, a, b) for a, b in zip(rows, rows[1:], strict=False) if _is_idle(sessions, a, b)]
-
-
-def _new_drops(journal: Journal, prof: Profile, supply_id: str, now: dt.datetime) -> tuple[list[IdleDrop], int]:
-    """The idle drops that may be new since the last scan (see :func:`record_idle_drops`): the
-    pairs each reading written since then forms with its neighbours on the current cylinder,
-    and the pair that closes around each reading struck out since then. Returns them and the
-    newest reading id seen. The first scan of a supply reads its current cylinder once."""
-    bench = prof.bench.name
-    mark = journal.mark(bench, supply_id, "idle-drops")
-    if mark is None:
-        rows = readings_since_change(journal, bench, supply_id, include_struck=True)
-        return idle_drops(journal, prof, supply_id, now), max((r.id for r in rows), default=0)
-    last_id, scanned_at = mark
-    change = current_change(journal, bench, supply_id)
-    since = change.at if change is not None else ""
-    fresh = journal.readings_after(bench, supply_id, last_id)
-    touched = [r for r in fresh if not r.struck and r.pressure_abs_pa is not None and r.at >= since]
-    touched += [r for r in journal.struck_readings(bench, supply_id, scanned_at) if r.at >= since]
-    sessions = _Sessions(journal, bench, now)
-    pairs: dict[str, IdleDrop] = {}
-    for r in touched:
-        before = journal.neighbour_reading(bench, supply_id, r.at, r.id, after=False)
-        after = journal.neighbour_reading(bench, supply_id, r.at, r.id, after=True)
-        ends = [x for x in (before, after) if x is not None and x.at >= since]
-        if r.struck:  # the pair closes around the struck reading
-            candidates = [(ends[0], ends[1])] if len(ends) == 2 else []
-        else:
-            candidates = [(x, r) if x is before else (r, x) for x in ends]
-        for a, b in candidates:
-            if _is_idle(sessions, a, b):
-                pairs[f"{a.id}-{b.id}"] = IdleDrop(supply_id, a, b)
-    newest = max([last_id] + [r.id for r in fresh])
-    return list(pairs.values()), newest
-
-
-def idle_drop_result(prof: Profile, drop: IdleDrop) -> hd.HoldResult:
-    """The hold test of an idle drop: :func:`benchwarden.core.hold.hold_two_readings` on the supply's
-    water volume, gas and gauge, temperature-compensated with the readings' temperatures."""
-    s = prof.supply(drop.supply_id)
-    assert drop.first.pressure_abs_pa is not None and drop.last.pressure_abs_pa is not None
-    amb = prof.ambient_pa
-    duration = (_dt(drop.last.at) - _dt(drop.first.at)).total_seconds()
-    return hd.hold_two_readings(s.gas, s.water_volume, drop.first.pressure_abs_pa, drop.last.pressure_abs_pa,
-                                duration, drop.first.temperature_k, drop.last.temperature_k,
-                                profile_gauge_spec(s.gauge), target_sccm=supply_target_sccm(s),
-                                reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
-
-
-def idle_drop_counts(r: hd.HoldResult) -> bool:
-    """An idle drop becomes a hold test only when its span could resolve the target leak with
-    this gauge (expanded uncertainty below the target), or when it shows something regardless:
-    a leak beyond the uncertainty, or a pressure that rose beyond it (always recorded). Two
-    readings a minute apart tell nothing and are not stored as a test."""
-    return r.verdict in ("leak", "pressure-rose") or r.smallest_resolvable_sccm < r.target_sccm
-
-
-def unresolved_idle_drop(journal: Journal | None, prof: Profile, supply_id: str,
-                         now: dt.datetime) -> hd.HoldResult | None:
-    """The supply's latest idle drop when it was too short to resolve the target leak (so no
-    hold test was stored from it): its result says how long a hold would need
-    (``hold_needed_h``). None when the latest drop counted or there is none."""
-    s = prof.supply(supply_id)
-    if journal is None or (s.gas.sold_liquefied and s.gross is not None):
-        return None
-    bench = prof.bench.name
-    change = current_change(journal, bench, supply_id)
-    last = journal.latest_reading(bench, supply_id, change.at if change else None)
-    if last is None:
-        return None
-    first = journal.neighbour_reading(bench, supply_id, last.at, last.id, after=False)
-    if first is None or (change is not None and first.at < change.at):
-        return None
-    if not _is_idle(_Sessions(journal, bench, now), first, last):
-        return None
-    try:
-        r = idle_drop_result(prof, IdleDrop(supply_id, first, last))
-    except BenchwardenError:
-        return None
-    return None if idle_drop_counts(r) else r
-
-
-def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) -> list[HoldRecord]:
-    """Turn every new idle drop of every supply into a stored hold test (once each, and only
-    when it counts: :func:`idle_drop_counts`); returns the new records. Incremental: only the
-    readings written or struck out since the last call are looked at (a mark per supply)."""
-    if journal is None:
-        return []
-    done = set()
-    for h in journal.hold_tests(prof.bench.name):
-        if h.kind == "idle-drop" and h.details:
-            try:
-                done.add(json.loads(h.details).get("idle_drop"))
-            except ValueError:
-                continue
-    new: list[HoldRecord] = []
-    stamp = now.isoformat(timespec="seconds")
-    for s in prof.supplies:
-        if s.gas.sold_liquefied and s.gross is not None:
-            continue  # a liquefied gas's pressure is its vapour pressure: no hold test from it
-        drops, newest = _new_drops(journal, prof, s.id, now)
-        for drop in drops:
-            if drop.key in done:
-                continue
-            r = idle_drop_result(prof, drop)
-            if not idle_drop_counts(r):
-                continue
-            rec = record_of(r, _dt(drop.last.at), prof.bench.name, s.id, "idle-drop")
-            store(journal, rec, {"idle_drop": drop.key})
-            new.append(rec)
-        mark = journal.mark(prof.bench.name, s.id, "idle-drops")
-        if mark is None or mark[0] != newest or drops:
-            journal.set_mark(prof.bench.name, s.id, "idle-drops", newest, stamp)
-    return new
-
-
-# ----------------------------------------------------------------------------- ordering
-
-
-@dataclass(frozen=True)
-class Consumption:
-    """A supply's consumption from the journal: real-gas mass per week, with its spread."""
-
-    supply_id: str
-    kg_per_week: float
-    spread_kg_per_week: float
-    intervals: int
-    days_covered: float
-
-
-def _mass_of(prof: Profile, s: Supply, r: ReadingRow) -> float | None:
-    if r.weight_kg is not None and s.tare is not None:
-        return r.weight_kg - s.tare
-    if r.pressure_abs_pa is None:
-        return None
-    try:
-        return g.density(s.gas, r.temperature_k, r.pressure_abs_pa) * s.water_volume
-    except Exception:  # noqa: BLE001 - outside the equation of state: the reading is skipped
-        return None
-
-
-#: Consumption is taken from the supply's newest readings, at most this many: the recent use is
-#: what the next order depends on, and the cost of a status stays the same as the journal grows.
-CONSUMPTION_READINGS = 300
-
-
-def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consumption | None:
-    """Consumption per week from the pairs of consecutive readings on the same cylinder (no
-    change between them, none struck) among the newest :data:`CONSUMPTION_READINGS`: mass used
-    over the time between, weighted by time; the spread is the time-weighted standard deviation
-    of the interval rates. None without at least one interval."""
-    if journal is None:
-        return None
-    s = prof.supply(supply_id)
-    rows = journal.recent_readings(prof.bench.name, supply_id, CONSUMPTION_READINGS)
-    changes = sorted(_dt(c.at) for c in journal.changes(prof.bench.name, supply_id))
-    masses = [_mass_of(prof, s, r) for r in rows]
-    times = [_dt(r.at) for r in rows]
-    rates: list[tuple[float, float]] = []  # (kg/s, seconds)
-    for i in range(1, len(rows)):
-        ta, tb = times[i - 1], times[i]
-        k = bisect.bisect_right(changes, ta)  # the first change after ta: does it fall before tb?
-        if tb <= ta or (k < len(changes) and changes[k] <= tb):
-            continue
-        ma, mb = masses[i - 1], masses[i]
-        if ma is None or mb is None or mb > ma:
-            continue
-        dt_s = (tb - ta).total_seconds()
-        rates.append(((ma - mb) / dt_s, dt_s))
-    if not rates:
-        return None
-    total = sum(w for _, w in rates)
-    mean = sum(r * w for r, w in rates) / total
-    var = sum(w * (r - mean) ** 2 for r, w in rates) / total
-    week = 7 * 86400.0
-    return Consumption(supply_id, mean * week, math.sqrt(var) * week, len(rates), total / 86400.0)
-
-
-@dataclass(frozen=True)
-class OrderBy:
-    supply_id: str
-    order_by: dt.datetime | None  # None: no consumption recorded yet
-    days_of_gas: float
-    lead_time_days: float
-    spares: int
-    #: the consumption it was computed from (None: none recorded)
-    consumption: Consumption | None = None
-
-
-def order_by(prof: Profile, plan_usable_kg: float, cons: Consumption | None, supply_id: str,
-             now: dt.datetime, full_usable_kg: float) -> OrderBy:
-    """The date by which to order the next cylinder so the bench never waits: the gas left
-    above the reserve plus the spares on hand, at the journal's consumption, less the
-    supplier's lead time."""
-    s = prof.supply(supply_id)
-    lead_days = (s.lead_time or 0.0) / 86400.0
-    if cons is None or cons.kg_per_week <= 0:
-        return OrderBy(supply_id, None, math.inf, lead_days, s.spares, cons)
-    days = (plan_usable_kg + s.spares * full_usable_kg) / (cons.kg_per_week / 7.0)
-    days = min(days, 3650.0)
-    return OrderBy(supply_id, now + dt.timedelta(days=days - lead_days), days, lead_days, s.spares, cons)

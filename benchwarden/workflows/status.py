@@ -14,6 +14,7 @@ from typing import Any, cast
 from benchwarden.storage.journal import Journal
 from benchwarden.storage.profile import Profile
 from benchwarden.workflows import cylinder as cy
+from benchwarden.workflows import idledrops, orders
 from benchwarden.workflows.bench import Assessment, assess
 from benchwarden.workflows.holds import judged_hold_tests
 from benchwarden.workflows.watch import last_bad_sample, leak_watch_recorded
@@ -35,17 +36,17 @@ class StatusDocument:
     last_hold_test: dict[str, Any] | None
 
 
-def _order_date(o: cy.OrderBy | None) -> str | None:
+def _order_date(o: orders.OrderBy | None) -> str | None:
     return o.order_by.date().isoformat() if o is not None and o.order_by is not None else None
 
 
-def _cons(o: cy.OrderBy | None) -> float | None:
+def _cons(o: orders.OrderBy | None) -> float | None:
     return o.consumption.kg_per_week if o is not None and o.consumption is not None else None
 
 
 def _needed(j: Journal | None, prof: Profile, sid: str, now: dt.datetime) -> float | None:
     """How long a hold would need, when the latest idle drop was too short to tell [s]."""
-    r = cy.unresolved_idle_drop(j, prof, sid, now)
+    r = idledrops.unresolved_idle_drop(j, prof, sid, now)
     return seconds(r.hold_needed_h) if r is not None else None
 
 

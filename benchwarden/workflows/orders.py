@@ -1,0 +1,100 @@
+"""Ordering: a supply's consumption from the journal and the date to order its next cylinder."""
+
+from __future__ import annotations
+
+import bisect
+import datetime as dt
+import math
+from dataclasses import dataclass
+
+from benchwarden.core import gas as g
+from benchwarden.storage.journal import Journal, ReadingRow
+from benchwarden.storage.profile import Profile, Supply
+from benchwarden.workflows.cylinder import stamp
+
+__all__ = ["Consumption", "OrderBy", "consumption", "order_by", "CONSUMPTION_READINGS"]
+
+
+
+@dataclass(frozen=True)
+class Consumption:
+    """A supply's consumption from the journal: real-gas mass per week, with its spread."""
+
+    supply_id: str
+    kg_per_week: float
+    spread_kg_per_week: float
+    intervals: int
+    days_covered: float
+
+
+def _mass_of(prof: Profile, s: Supply, r: ReadingRow) -> float | None:
+    if r.weight_kg is not None and s.tare is not None:
+        return r.weight_kg - s.tare
+    if r.pressure_abs_pa is None:
+        return None
+    try:
+        return g.density(s.gas, r.temperature_k, r.pressure_abs_pa) * s.water_volume
+    except Exception:  # noqa: BLE001 - outside the equation of state: the reading is skipped
+        return None
+
+
+#: Consumption is taken from the supply's newest readings, at most this many: the recent use is
+#: what the next order depends on, and the cost of a status stays the same as the journal grows.
+CONSUMPTION_READINGS = 300
+
+
+def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consumption | None:
+    """Consumption per week from the pairs of consecutive readings on the same cylinder (no
+    change between them, none struck) among the newest :data:`CONSUMPTION_READINGS`: mass used
+    over the time between, weighted by time; the spread is the time-weighted standard deviation
+    of the interval rates. None without at least one interval."""
+    if journal is None:
+        return None
+    s = prof.supply(supply_id)
+    rows = journal.recent_readings(prof.bench.name, supply_id, CONSUMPTION_READINGS)
+    changes = sorted(stamp(c.at) for c in journal.changes(prof.bench.name, supply_id))
+    masses = [_mass_of(prof, s, r) for r in rows]
+    times = [stamp(r.at) for r in rows]
+    rates: list[tuple[float, float]] = []  # (kg/s, seconds)
+    for i in range(1, len(rows)):
+        ta, tb = times[i - 1], times[i]
+        k = bisect.bisect_right(changes, ta)  # the first change after ta: does it fall before tb?
+        if tb <= ta or (k < len(changes) and changes[k] <= tb):
+            continue
+        ma, mb = masses[i - 1], masses[i]
+        if ma is None or mb is None or mb > ma:
+            continue
+        dt_s = (tb - ta).total_seconds()
+        rates.append(((ma - mb) / dt_s, dt_s))
+    if not rates:
+        return None
+    total = sum(w for _, w in rates)
+    mean = sum(r * w for r, w in rates) / total
+    var = sum(w * (r - mean) ** 2 for r, w in rates) / total
+    week = 7 * 86400.0
+    return Consumption(supply_id, mean * week, math.sqrt(var) * week, len(rates), total / 86400.0)
+
+
+@dataclass(frozen=True)
+class OrderBy:
+    supply_id: str
+    order_by: dt.datetime | None  # None: no consumption recorded yet
+    days_of_gas: float
+    lead_time_days: float
+    spares: int
+    #: the consumption it was computed from (None: none recorded)
+    consumption: Consumption | None = None
+
+
+def order_by(prof: Profile, plan_usable_kg: float, cons: Consumption | None, supply_id: str,
+             now: dt.datetime, full_usable_kg: float) -> OrderBy:
+    """The date by which to order the next cylinder so the bench never waits: the gas left
+    above the reserve plus the spares on hand, at the journal's consumption, less the
+    supplier's lead time."""
+    s = prof.supply(supply_id)
+    lead_days = (s.lead_time or 0.0) / 86400.0
+    if cons is None or cons.kg_per_week <= 0:
+        return OrderBy(supply_id, None, math.inf, lead_days, s.spares, cons)
+    days = (plan_usable_kg + s.spares * full_usable_kg) / (cons.kg_per_week / 7.0)
+    days = min(days, 3650.0)
+    return OrderBy(supply_id, now + dt.timedelta(days=days - lead_days), days, lead_days, s.spares, cons)
