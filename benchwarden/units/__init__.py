@@ -5,6 +5,8 @@ dimensioned values; `quantities` ventilation, release amounts, fractions and fre
 below the interfaces takes SI numbers or these typed values, never text.
 """
 
+from benchwarden.units.flows import Flow, FlowKind, parse_flow  # noqa: F401
+from benchwarden.units.format import fmt_hours, fmt_pressure, fmt_temperature, pressure_factor  # noqa: F401
 from benchwarden.units.parse import (  # noqa: F401 - the public surface
     ATM_PA,
     PSI_PA,
@@ -12,8 +14,6 @@ from benchwarden.units.parse import (  # noqa: F401 - the public surface
     REFERENCES,
     SANITY_LIMITS,
     T0_K,
-    Flow,
-    FlowKind,
     Pressure,
     PressureKind,
     Reference,
@@ -21,12 +21,8 @@ from benchwarden.units.parse import (  # noqa: F401 - the public surface
     check_finite,
     check_positive,
     check_range,
-    fmt_hours,
-    fmt_pressure,
-    fmt_temperature,
     get_reference,
     parse_duration,
-    parse_flow,
     parse_frequency,
     parse_length,
     parse_mass,
@@ -36,7 +32,6 @@ from benchwarden.units.parse import (  # noqa: F401 - the public surface
     parse_voltage,
     parse_volume,
     pressure_abs,
-    pressure_factor,
     shorten,
     split_number,
     target_names,

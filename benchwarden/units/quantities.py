@@ -11,8 +11,9 @@ from dataclasses import dataclass
 from typing import Literal
 
 from benchwarden.errors import InputError
+from benchwarden.units.flows import parse_flow
 from benchwarden.units.limits import check_quantity_text, text_problem, within
-from benchwarden.units.parse import parse_flow, parse_mass, parse_volume, shorten, split_number
+from benchwarden.units.parse import parse_mass, parse_volume, shorten, split_number
 
 __all__ = ["check_text", "Ventilation", "parse_ventilation", "Amount", "parse_amount", "parse_fraction"]
 

@@ -1,0 +1,104 @@
+"""Standard flows with their reference condition (sccm, slpm, scfh, Nm³/h ...), read from text.
+
+A standard-flow unit carries its reference condition: sccm and slpm at 0 °C / 101.325 kPa unless
+another reference is chosen; scfh and scfm at 70 °F / 14.696 psia; Nm³/h and NL/min at 0 °C /
+101.325 kPa (DIN 1343). A mass flow (g/min, kg/h) needs no reference.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Literal
+
+from benchwarden.errors import InputError
+from benchwarden.units.parse import (
+    Reference,
+    _need_unit,
+    _pint_quantity,
+    _sane,
+    get_reference,
+    split_number,
+)
+
+__all__ = ["Flow", "FlowKind", "parse_flow"]
+
+
+FlowKind = Literal["standard", "mass", "actual"]
+
+
+@dataclass(frozen=True)
+class Flow:
+    """A parsed flow.
+
+    ``kind`` is ``standard`` (``value`` in standard m³/s at ``reference``), ``mass``
+    (``value`` in kg/s) or ``actual`` (``value`` in m³/s at the conditions where it flows).
+    """
+
+    kind: FlowKind
+    value: float
+    reference: Reference | None
+    text: str
+
+    def describe(self) -> str:
+        if self.kind == "standard" and self.reference is not None:
+            return f"{self.text} (standard, at {self.reference.label})"
+        return self.text
+
+
+# unit -> (standard m³/s per unit, default reference key)
+_STANDARD_FLOW_UNITS: dict[str, tuple[float, str]] = {
+    "sccm": (1e-6 / 60.0, "0C"),
+    "slpm": (1e-3 / 60.0, "0C"),
+    "slm": (1e-3 / 60.0, "0C"),
+    "sl/min": (1e-3 / 60.0, "0C"),
+    "slph": (1e-3 / 3600.0, "0C"),
+    "sl/h": (1e-3 / 3600.0, "0C"),
+    "nl/min": (1e-3 / 60.0, "0C"),
+    "nl/h": (1e-3 / 3600.0, "0C"),
+    "nm3/h": (1.0 / 3600.0, "0C"),
+    "nm3/min": (1.0 / 60.0, "0C"),
+    "nm3/d": (1.0 / 86400.0, "0C"),
+    "scfh": (0.3048**3 / 3600.0, "70F"),
+    "scfm": (0.3048**3 / 60.0, "70F"),
+    "scfd": (0.3048**3 / 86400.0, "70F"),
+}
+
+
+def parse_flow(text: str, reference: str | None = None, what: str = "flow") -> Flow:
+    """Parse a flow: standard (``2 slpm``, ``500 sccm``, ``40 scfh``, ``3 Nm3/h``), mass
+    (``5 g/min``) or actual volumetric (``2 L/min``, ``60 m3/h``).
+
+    ``reference`` overrides the reference condition of sccm/slpm-type units (never of
+    ``Nm³``, which DIN 1343 fixes at 0 °C, nor of scfh/scfm, fixed at 70 °F by the trade).
+
+    >>> f = parse_flow("2 slpm"); f.kind, round(f.value * 60e3, 9), f.reference.key
+    ('standard', 2.0, '0C')
+    >>> parse_flow("40 scfh").reference.key
+    '70F'
+    """
+    value, unit = split_number(text, what)
+    _need_unit(unit, text, what, '"2 slpm", "500 sccm", "40 scfh", "3 Nm3/h" or "5 g/min"')
+    if value < 0:
+        raise InputError(f"{what} {text!r} is negative; a flow must be zero or more")
+    key = unit.strip().lower().replace(" ", "").replace("³", "3").replace("**", "")
+    if key in _STANDARD_FLOW_UNITS:
+        factor, ref_key = _STANDARD_FLOW_UNITS[key]
+        if reference is not None and key.startswith("s") and not key.startswith("scf"):
+            ref_key = reference
+        return Flow("standard", _sane(value * factor, "flow", text, what), get_reference(ref_key), text.strip())
+    import pint
+
+    q = _pint_quantity(value, unit, text, what)
+    try:
+        return Flow("mass", _sane(float(q.to("kg/s").magnitude), "flow", text, what), None, text.strip())
+    except pint.errors.DimensionalityError:
+        pass
+    try:
+        return Flow("actual", _sane(float(q.to("m**3/s").magnitude), "flow", text, what), None, text.strip())
+    except pint.errors.DimensionalityError:
+        raise InputError(
+            f"{what} {text!r} is not a flow; use sccm, slpm, scfh, Nm3/h (standard), g/min (mass) "
+            "or L/min (actual volume)"
+        ) from None
+
+
