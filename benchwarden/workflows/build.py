@@ -8,6 +8,7 @@ import dataclasses
 import datetime as dt
 import math
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 from benchwarden.core import flow as fl
@@ -17,9 +18,8 @@ from benchwarden.core import regulator as rg
 from benchwarden.core import supply as sp
 from benchwarden.core.hold import kg_s_from_sccm
 from benchwarden.core.tables import DensityTable
-from benchwarden.storage.profile import Draw, Profile, Supply
+from benchwarden.storage.profile import Draw, Profile, Regulator, Supply
 from benchwarden.units import ATM_PA, REFERENCES, T0_K
-from benchwarden.units.constants import T_FULL_K
 from benchwarden.workflows import findings as fd
 from benchwarden.workflows.holds import profile_gauge_spec
 from benchwarden.workflows.model import (
@@ -132,163 +132,165 @@ def build_plan(prof: Profile, now: dt.datetime | None = None, points: int = PROJ
     profile's planned start time today, else from ``now``. ``leaks_sccm``: a leak found on a
     supply's current cylinder, counted as one more draw on it (time to reserve, reserve clock,
     projection and cost include it)."""
-    import numpy as np
-
-    amb = prof.ambient_pa
-    T_amb = prof.ambient.temperature
     session_h = prof.session.duration / 3600.0
     now = now or dt.datetime.now().astimezone().replace(second=0, microsecond=0)
     start = start_at or now
     if start_at is None and prof.session.start:
         hh, mm = (int(x) for x in prof.session.start.split(":"))
         start = now.replace(hour=hh, minute=mm)
-    ref = REFERENCES["15C"]
-
-    # -- regulators: outlet at start
-    reg_plans: dict[str, RegulatorPlan] = {}
-    supply_models: dict[str, SupplyModel] = {}
-    supply_state: dict[str, tuple[float, float, float]] = {}  # p_now, T, mass_now
-    weight_states: dict[str, sp.WeightState | None] = {}
-    for s in prof.supplies:
-        gas = s.gas
-        T = _supply_T(prof, s)
-        p_read = None if s.reading is None else s.reading.abs_at(amb)
-        liquefied = _memo(memo, ("liquefied", gas.key, T, p_read), _is_liquefied, gas, T, p_read)
-        fill = (s.gross - s.tare) if gas.sold_liquefied and s.gross is not None and s.tare is not None else 0.0
-        ws = _memo(memo, ("by-weight", gas.key, fill, s.water_volume, T), sp.state_by_weight, gas, fill,
-                   s.water_volume, T) if fill > 0 else None
-        if ws is not None and (liquefied or s.reading is None):
-            p_now = ws.pressure_abs_pa  # the vapour pressure, or a liquid-full cylinder's hydraulic pressure
-        elif liquefied:
-            p_now = g.saturation_pressure(gas, T)
-        else:
-            assert s.reading is not None
-            p_now = s.reading.abs_at(amb)
-        weight_states[s.id] = ws
-        p_hi = max(p_now, s.service_pressure.abs_at(amb)) * 1.02
-        p_arg = None if s.reading is None else p_now
-        model = _memo(memo, ("model", gas.key, s.water_volume, T, p_hi, amb, liquefied),
-                      SupplyModel, gas, s.water_volume, T, p_hi, amb, p_arg)
-        supply_models[s.id] = model
-        if liquefied:
-            if s.gross is None or s.tare is None:
-                mass_now = model.rho_vsat * s.water_volume
-            else:
-                mass_now = s.gross - s.tare
-        else:
-            mass_now = _memo(memo, ("rho", gas.key, T, p_now), g.density, gas, T, p_now) * s.water_volume
-        supply_state[s.id] = (p_now, T, mass_now)
-
-    for r in prof.regulators:
-        s = prof.supply(r.supply)
-        p_now, T, _ = supply_state[s.id]
-        set_abs = r.set_point.abs_at(amb)
-        res_abs = s.reserve.abs_at(amb)
-        hot = _memo(memo, ("hot", s.gas.key, s.water_volume, T, p_now, prof.ambient.hot_day, amb),
-                    _hot_day_pressure, s, prof, p_now, T)
-        # a regulator reduces pressure only while its inlet is above its set point; below that it
-        # stands wide open and its outlet follows the cylinder down (and the gaps' voltage with it)
-        regulating = p_now > set_abs * (1.0 + 1e-9)
-        outlet = set_abs if regulating else p_now
-        out_res = min(rg.outlet_drift(set_abs, p_now, res_abs, r.effects), res_abs)
-        if regulating:
-            sat = supply_models[s.id].liquefied
-            th = _memo(memo, ("throttle", s.gas.key, p_now, set_abs, T, sat),
-                       rg.throttle, s.gas, p_now, set_abs, T, saturated_vapour=sat)
-            t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.flags
-            margin = th.dry_ice_margin_k
-        else:
-            t_out, solid, liquid, notes, margin = T, False, False, (), None
-        reg_plans[r.id] = RegulatorPlan(r.id, s.id, r.stages, p_now, set_abs, out_res, t_out, solid, liquid, notes,
-                                        r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet,
-                                        margin)
-
-    # -- draws
-    draw_plans: list[DrawPlan] = []
-    for d in prof.draws:
-        r = prof.regulator(d.regulator)
-        s = prof.supply(r.supply)
-        rp = reg_plans[r.id]
-        mdot, how, choked = _memo(memo, ("draw", repr(d), s.gas.key, rp.outlet_abs_pa, prof.ambient_pa,
-                                         prof.ambient.temperature, _draw_rate(prof, d)),
-                                  _draw_flow, prof, d, s.gas, rp.outlet_abs_pa)
-        rho_std = _memo(memo, ("rho", s.gas.key, T0_K, ATM_PA), g.density, s.gas, T0_K, ATM_PA)
-        gap_plan = None
-        if d.kind == "gap" and d.spacing is not None:
-            b0 = gp.breakdown(s.gas, d.spacing, rp.outlet_abs_pa, T_amb)
-            b1 = gp.breakdown(s.gas, d.spacing, rp.outlet_at_reserve_abs_pa, T_amb)
-            m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
-                       for x in d.exposed)
-            m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
-                       for x in d.exposed)
-            gap_plan = GapPlan(d.spacing, b0.breakdown_kv, b1.breakdown_kv, b0.method, b0.validity, m0, m1,
-                               b0.within_validity and b1.within_validity, max(b0.pd_bar_cm_20c, b1.pd_bar_cm_20c))
-        draw_plans.append(DrawPlan(d.id, d.kind, r.id, s.id, how, mdot, mdot / rho_std * 60e3, d.vents_to_room,
-                                   choked, _draw_rate(prof, d), gap_plan))
-
-    # -- supplies
-    supply_plans: list[SupplyPlan] = []
-    for s in prof.supplies:
-        p_now, T, mass_now = supply_state[s.id]
-        model = supply_models[s.id]
-        res_abs = s.reserve.abs_at(amb)
-        mass_res = model.mass_at(res_abs)
-        if math.isnan(mass_res):  # reserve above the vapour pressure of a liquefied gas
-            mass_res = model.rho_vsat * s.water_volume
-        usable = max(0.0, mass_now - mass_res)
-        draws_here = [dp for dp in draw_plans if dp.supply_id == s.id]
-        leak_sccm = max(0.0, (leaks_sccm or {}).get(s.id, 0.0))
-        mdot = sum(dp.mass_flow_kg_s for dp in draws_here) + kg_s_from_sccm(s.gas, leak_sccm)
-        hours = usable / mdot / 3600.0 if mdot > 0 else math.inf
-        band = (hours, hours)
-        if s.gauge is not None and not model.liquefied and mdot > 0:
-            spec = profile_gauge_spec(s.gauge)
-            mpe = spec.mpe_pa if spec is not None else 0.0  # the gauge's own rule (EN 837-1)
-            lo_p, hi_p = max(p_now - mpe, res_abs * 1.0001), p_now + mpe
-            h_lo = max(0.0, (model.mass_at(lo_p) - mass_res) / mdot / 3600.0)
-            h_hi = max(0.0, (model.mass_at(hi_p) - mass_res) / mdot / 3600.0)
-            band = (h_lo, h_hi)
-        reserve_at = _clock_after(start, hours)
-        rates = [dp.rate_hz for dp in draws_here if dp.rate_hz]
-        shots = hours * 3600.0 * max(rates) if rates and math.isfinite(hours) else None
-        cost = None
-        if s.fill_price is not None:
-            if model.liquefied and s.gross is not None and s.tare is not None:
-                full = s.gross - s.tare
-            else:
-                p_full = s.service_pressure.abs_at(amb)
-                full = _memo(memo, ("rho", s.gas.key, T_FULL_K, p_full), g.density, s.gas, T_FULL_K, p_full) \
-                    * s.water_volume
-            cost = s.fill_price / full * mdot * 3600.0
-        fits = hours >= session_h
-        # projection
-        t_h = np.linspace(0.0, session_h, points)
-        masses = np.clip(mass_now - mdot * t_h * 3600.0, 1e-6 * max(mass_now, 1e-9), None)
-        p_proj = model.pressures(masses)
-        outlets: dict[str, tuple[float, ...]] = {}
-        gap_kv: dict[str, tuple[float, ...]] = {}
-        for r in prof.regulators:
-            if r.supply != s.id:
-                continue
-            rp = reg_plans[r.id]
-            o = rp.set_point_abs_pa + rp.effect_total * (p_now - p_proj)
-            outlets[r.id] = tuple(float(x) for x in o)
-            for dp in draw_plans:
-                if dp.regulator_id == r.id and dp.gap is not None:
-                    gap_kv[dp.id] = tuple(float(x) for x in gp.breakdown_series(s.gas, dp.gap.spacing_m, o, T_amb))
-        fv = _memo(memo, ("free", s.gas.key, mass_now, ref.key), sp.free_volume, s.gas, mass_now, ref) \
-            if mass_now > 0 else 0.0
-        supply_plans.append(SupplyPlan(
-            s.id, s.gas.name, s.gas.short_name, model.liquefied, p_now, T, res_abs, mass_now, fv, ref.label, usable, mdot, hours,
-            band, reserve_at, shots, cost, s.currency, fits, tuple(float(x) for x in t_h),
-            tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm,
-            **_memo(memo, ("state", s.gas.key, weight_states[s.id], model.liquefied, s.water_volume, p_now, T),
-                    _state_fields, s.gas, weight_states[s.id], model.liquefied, s.water_volume, p_now, T)))
+    states = {s.id: _supply_state(prof, s, memo) for s in prof.supplies}
+    reg_plans = {r.id: _regulator_plan(prof, r, states[r.supply], memo) for r in prof.regulators}
+    draw_plans = [_draw_plan(prof, d, reg_plans, memo) for d in prof.draws]
+    supply_plans = [_supply_plan(prof, s, states[s.id], reg_plans, draw_plans,
+                                 max(0.0, (leaks_sccm or {}).get(s.id, 0.0)), start, points, memo)
+                    for s in prof.supplies]
     room_plan_ = room_plan(prof, draw_plans, supply_plans, extra_leak_m3_s, memo)
     fits = all(sp_.fits_session or sp_.draw_kg_s == 0 for sp_ in supply_plans)
-    plan = Plan(prof.bench.name, amb, T_amb, session_h, start.isoformat(timespec="minutes"), tuple(supply_plans),
-                tuple(reg_plans.values()), tuple(draw_plans), room_plan_, (), fits)
+    plan = Plan(prof.bench.name, prof.ambient_pa, prof.ambient.temperature, session_h,
+                start.isoformat(timespec="minutes"), tuple(supply_plans), tuple(reg_plans.values()),
+                tuple(draw_plans), room_plan_, (), fits)
     return dataclasses.replace(plan, findings=tuple(fd.plan_findings(prof, plan)))
+
+
+@dataclass(frozen=True)
+class _State:
+    """A supply now: pressure [Pa(a)], temperature [K], mass [kg], its mass ↔ pressure model and,
+    for a gas weighed in, its state by weight."""
+
+    p_now: float
+    T: float
+    mass_now: float
+    model: SupplyModel
+    by_weight: sp.WeightState | None
+
+
+def _supply_state(prof: Profile, s: Supply, memo: Memo | None) -> _State:
+    amb, gas = prof.ambient_pa, s.gas
+    T = _supply_T(prof, s)
+    p_read = None if s.reading is None else s.reading.abs_at(amb)
+    liquefied = _memo(memo, ("liquefied", gas.key, T, p_read), _is_liquefied, gas, T, p_read)
+    fill = (s.gross - s.tare) if gas.sold_liquefied and s.gross is not None and s.tare is not None else 0.0
+    ws = _memo(memo, ("by-weight", gas.key, fill, s.water_volume, T), sp.state_by_weight, gas, fill,
+               s.water_volume, T) if fill > 0 else None
+    if ws is not None and (liquefied or s.reading is None):
+        p_now = ws.pressure_abs_pa  # the vapour pressure, or a liquid-full cylinder's hydraulic pressure
+    elif liquefied:
+        p_now = g.saturation_pressure(gas, T)
+    else:
+        assert p_read is not None
+        p_now = p_read
+    p_hi = max(p_now, s.service_pressure.abs_at(amb)) * 1.02
+    p_arg = None if s.reading is None else p_now
+    model = _memo(memo, ("model", gas.key, s.water_volume, T, p_hi, amb, liquefied),
+                  SupplyModel, gas, s.water_volume, T, p_hi, amb, p_arg)
+    if liquefied:
+        mass_now = model.rho_vsat * s.water_volume if s.gross is None or s.tare is None else s.gross - s.tare
+    else:
+        mass_now = _memo(memo, ("rho", gas.key, T, p_now), g.density, gas, T, p_now) * s.water_volume
+    return _State(p_now, T, mass_now, model, ws)
+
+
+def _regulator_plan(prof: Profile, r: Regulator, st: _State, memo: Memo | None) -> RegulatorPlan:
+    """A regulator's outlet now and at the reserve, its outlet temperature, its hot-day inlet."""
+    amb = prof.ambient_pa
+    s = prof.supply(r.supply)
+    p_now, T = st.p_now, st.T
+    set_abs = r.set_point.abs_at(amb)
+    res_abs = s.reserve.abs_at(amb)
+    hot = _memo(memo, ("hot", s.gas.key, s.water_volume, T, p_now, prof.ambient.hot_day, amb),
+                _hot_day_pressure, s, prof, p_now, T)
+    # a regulator reduces pressure only while its inlet is above its set point; below that it
+    # stands wide open and its outlet follows the cylinder down (and the gaps' voltage with it)
+    regulating = p_now > set_abs * (1.0 + 1e-9)
+    outlet = set_abs if regulating else p_now
+    out_res = min(rg.outlet_drift(set_abs, p_now, res_abs, r.effects), res_abs)
+    if regulating:
+        sat = st.model.liquefied
+        th = _memo(memo, ("throttle", s.gas.key, p_now, set_abs, T, sat),
+                   rg.throttle, s.gas, p_now, set_abs, T, saturated_vapour=sat)
+        t_out, solid, liquid, notes = th.outlet_temperature_k, th.solid_forms, th.liquid_forms, th.flags
+        margin = th.dry_ice_margin_k
+    else:
+        t_out, solid, liquid, notes, margin = T, False, False, (), None
+    return RegulatorPlan(r.id, s.id, r.stages, p_now, set_abs, out_res, t_out, solid, liquid, notes,
+                         r.inlet_rating.abs_at(amb), hot, math.prod(r.effects), regulating, outlet, margin)
+
+
+def _draw_plan(prof: Profile, d: Draw, reg_plans: Mapping[str, RegulatorPlan], memo: Memo | None) -> DrawPlan:
+    """A draw's flow from its regulator's outlet now, and a gap's firing voltage and margins."""
+    T_amb = prof.ambient.temperature
+    r = prof.regulator(d.regulator)
+    s = prof.supply(r.supply)
+    rp = reg_plans[r.id]
+    mdot, how, choked = _memo(memo, ("draw", repr(d), s.gas.key, rp.outlet_abs_pa, prof.ambient_pa, T_amb,
+                                     _draw_rate(prof, d)), _draw_flow, prof, d, s.gas, rp.outlet_abs_pa)
+    rho_std = _memo(memo, ("rho", s.gas.key, T0_K, ATM_PA), g.density, s.gas, T0_K, ATM_PA)
+    gap_plan = None
+    if d.kind == "gap" and d.spacing is not None:
+        b0 = gp.breakdown(s.gas, d.spacing, rp.outlet_abs_pa, T_amb)
+        b1 = gp.breakdown(s.gas, d.spacing, rp.outlet_at_reserve_abs_pa, T_amb)
+        m0 = tuple(gp.flashover_margin(x.name, b0.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
+                   for x in d.exposed)
+        m1 = tuple(gp.flashover_margin(x.name, b1.breakdown_high_kv, x.clearance, x.rating / 1000 if x.rating else None)
+                   for x in d.exposed)
+        gap_plan = GapPlan(d.spacing, b0.breakdown_kv, b1.breakdown_kv, b0.method, b0.validity, m0, m1,
+                           b0.within_validity and b1.within_validity, max(b0.pd_bar_cm_20c, b1.pd_bar_cm_20c))
+    return DrawPlan(d.id, d.kind, r.id, s.id, how, mdot, mdot / rho_std * 60e3, d.vents_to_room, choked,
+                    _draw_rate(prof, d), gap_plan)
+
+
+def _supply_plan(prof: Profile, s: Supply, st: _State, reg_plans: Mapping[str, RegulatorPlan],
+                 draw_plans: list[DrawPlan], leak_sccm: float, start: dt.datetime, points: int,
+                 memo: Memo | None) -> SupplyPlan:
+    """A supply's usable gas, draw (its draws and a found leak), time to the reserve with the
+    gauge's band, shots, cost, and the projection of its pressure, outlets and gap voltages."""
+    import numpy as np
+
+    amb, T_amb, model = prof.ambient_pa, prof.ambient.temperature, st.model
+    session_h = prof.session.duration / 3600.0
+    res_abs = s.reserve.abs_at(amb)
+    mass_res = model.mass_at(res_abs)
+    if math.isnan(mass_res):  # reserve above the vapour pressure of a liquefied gas
+        mass_res = model.rho_vsat * s.water_volume
+    usable = max(0.0, st.mass_now - mass_res)
+    draws_here = [dp for dp in draw_plans if dp.supply_id == s.id]
+    mdot = sum(dp.mass_flow_kg_s for dp in draws_here) + kg_s_from_sccm(s.gas, leak_sccm)
+    hours = usable / mdot / 3600.0 if mdot > 0 else math.inf
+    band = (hours, hours)
+    spec = profile_gauge_spec(s.gauge)
+    if spec is not None and not model.liquefied and mdot > 0:
+        mpe = spec.mpe_pa  # the gauge's own rule (EN 837-1)
+        lo_p, hi_p = max(st.p_now - mpe, res_abs * 1.0001), st.p_now + mpe
+        band = (max(0.0, (model.mass_at(lo_p) - mass_res) / mdot / 3600.0),
+                max(0.0, (model.mass_at(hi_p) - mass_res) / mdot / 3600.0))
+    rates = [dp.rate_hz for dp in draws_here if dp.rate_hz]
+    shots = hours * 3600.0 * max(rates) if rates and math.isfinite(hours) else None
+    cost = None
+    if s.fill_price is not None:
+        cost = s.fill_price / full_mass(prof, s, memo) * mdot * 3600.0
+    t_h = np.linspace(0.0, session_h, points)
+    masses = np.clip(st.mass_now - mdot * t_h * 3600.0, 1e-6 * max(st.mass_now, 1e-9), None)
+    p_proj = model.pressures(masses)
+    outlets: dict[str, tuple[float, ...]] = {}
+    gap_kv: dict[str, tuple[float, ...]] = {}
+    for r in prof.regulators:
+        if r.supply != s.id:
+            continue
+        rp = reg_plans[r.id]
+        o = rp.set_point_abs_pa + rp.effect_total * (st.p_now - p_proj)
+        outlets[r.id] = tuple(float(x) for x in o)
+        for dp in draw_plans:
+            if dp.regulator_id == r.id and dp.gap is not None:
+                gap_kv[dp.id] = tuple(float(x) for x in gp.breakdown_series(s.gas, dp.gap.spacing_m, o, T_amb))
+    ref = REFERENCES["15C"]
+    fv = _memo(memo, ("free", s.gas.key, st.mass_now, ref.key), sp.free_volume, s.gas, st.mass_now, ref) \
+        if st.mass_now > 0 else 0.0
+    return SupplyPlan(
+        s.id, s.gas.name, s.gas.short_name, model.liquefied, st.p_now, st.T, res_abs, st.mass_now, fv, ref.label,
+        usable, mdot, hours, band, _clock_after(start, hours), shots, cost, s.currency, hours >= session_h,
+        tuple(float(x) for x in t_h), tuple(float(x) for x in p_proj), outlets, gap_kv, leak_sccm,
+        **_memo(memo, ("state", s.gas.key, st.by_weight, model.liquefied, s.water_volume, st.p_now, st.T),
+                _state_fields, s.gas, st.by_weight, model.liquefied, s.water_volume, st.p_now, st.T))
 
 
 def _state_fields(gas: g.Gas, ws: sp.WeightState | None, liquefied: bool, V: float, p: float,
