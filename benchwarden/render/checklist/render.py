@@ -10,6 +10,7 @@ import re
 import textwrap
 from importlib import resources
 from pathlib import Path
+from typing import Any
 
 from benchwarden.render.checklist import Checklist, Item
 
@@ -167,10 +168,8 @@ def _font_path(bold: bool = False) -> str:
     return str(resources.files("benchwarden.data").joinpath("fonts").joinpath(name))
 
 
-def render_pdf(cl: Checklist, path: str | Path) -> Path:
-    """Write the checklist as an A4 PDF (fpdf2, DejaVu Sans): the bench and date in a header and
-    "page x of y" in a footer on every page, drawn boxes to tick and a column for initials,
-    sections never split from their first line, the sign-off kept whole."""
+def _new_pdf(cl: Checklist) -> Any:
+    """An A4 document with the bench and date in a header and "page x of y" in a footer."""
     from fpdf import FPDF
 
     class _Pdf(FPDF):
@@ -191,26 +190,38 @@ def render_pdf(cl: Checklist, path: str | Path) -> Path:
     pdf.add_font("DejaVu", "B", _font_path(bold=True))
     pdf.set_title(f"Pre-session checklist — {cl.bench}")
     pdf.add_page()
-    w = pdf.epw
-    initials_w = 22.0
-    pdf.set_font("DejaVu", "B", 7)
-    #: the status column: as wide as the widest status word, so none is cut ("ATTENTION")
-    mark_w = max(9.0, max(pdf.get_string_width(m) for m in MARK.values()) + 2.0)
+    return pdf
 
-    def text(t: str, size: float = 10, style: str = "", gap: float = 1.0) -> None:
-        pdf.set_font("DejaVu", style, size)
-        pdf.multi_cell(w, size * 0.5, t, new_x="LMARGIN", new_y="NEXT")
-        pdf.ln(gap)
 
-    def room_for(mm: float) -> None:
+class _PdfWriter:
+    """Paragraphs, page breaks that keep blocks whole, and checklist lines with a status or a box
+    to tick and a line for initials."""
+
+    INITIALS_W = 22.0
+
+    def __init__(self, pdf: Any) -> None:
+        self.pdf = pdf
+        self.w = pdf.epw
+        pdf.set_font("DejaVu", "B", 7)
+        #: the status column: as wide as the widest status word, so none is cut ("ATTENTION")
+        self.mark_w = max(9.0, max(pdf.get_string_width(m) for m in MARK.values()) + 2.0)
+
+    def text(self, t: str, size: float = 10, style: str = "", gap: float = 1.0) -> None:
+        self.pdf.set_font("DejaVu", style, size)
+        self.pdf.multi_cell(self.w, size * 0.5, t, new_x="LMARGIN", new_y="NEXT")
+        self.pdf.ln(gap)
+
+    def room_for(self, mm: float) -> None:
+        pdf = self.pdf
         if pdf.get_y() + mm > pdf.h - pdf.b_margin:
             pdf.add_page()
 
-    def item(it: Item) -> None:
+    def item(self, it: Item) -> None:
+        pdf, w, mark_w, initials_w = self.pdf, self.w, self.mark_w, self.INITIALS_W
         pdf.set_font("DejaVu", "B" if it.status in ("stop", "warning") else "", 10)
         body = _tick(it) if it.status is None else _line(it)[len(_box(it)) + 1:]
         lines = pdf.multi_cell(w - mark_w - initials_w, 5, body, dry_run=True, output="LINES")
-        room_for(5 * len(lines if isinstance(lines, list) else [body]) + 1.5)
+        self.room_for(5 * len(lines if isinstance(lines, list) else [body]) + 1.5)
         x, y = pdf.l_margin, pdf.get_y()
         if it.status is None:
             pdf.rect(x, y + 0.8, 3.6, 3.6)  # a box to tick
@@ -224,31 +235,39 @@ def render_pdf(cl: Checklist, path: str | Path) -> Path:
         pdf.line(x + w - initials_w + 4, y + 4.5, x + w, y + 4.5)  # initials
         pdf.set_y(max(end, y + 5) + 1.5)
 
-    text(f"Pre-session checklist — {cl.bench}", 15, "B", 2)
-    text(f"Generated {cl.generated_at}; planned session {cl.session}. Summary: {_summary(cl)}.", 10)
+
+def render_pdf(cl: Checklist, path: str | Path) -> Path:
+    """Write the checklist as an A4 PDF (fpdf2, DejaVu Sans): the bench and date in a header and
+    "page x of y" in a footer on every page, drawn boxes to tick and a column for initials,
+    sections never split from their first line, the sign-off kept whole."""
+    pdf = _new_pdf(cl)
+    out = _PdfWriter(pdf)
+    out.text(f"Pre-session checklist — {cl.bench}", 15, "B", 2)
+    out.text(f"Generated {cl.generated_at}; planned session {cl.session}. Summary: {_summary(cl)}.", 10)
     pdf.set_font("DejaVu", "", 8)
     pdf.cell(0, 5, "Tick each box when done; initials on the right.", new_x="LMARGIN", new_y="NEXT")
     for sec in cl.sections:
-        room_for(20)  # a section never starts at the foot of a page
+        out.room_for(20)  # a section never starts at the foot of a page
         pdf.ln(2)
-        text(sec.title, 12, "B", 1)
+        out.text(sec.title, 12, "B", 1)
         for it in sec.items:
-            item(it)
-    room_for(30)
+            out.item(it)
+    out.room_for(30)
     pdf.ln(2)
-    text("Cautions", 12, "B")
+    out.text("Cautions", 12, "B")
     for c in cl.cautions:
-        text(f"{c.topic}: {c.text}", 9, "", 0.5)
+        out.text(f"{c.topic}: {c.text}", 9, "", 0.5)
     pdf.ln(1)
-    text(cl.estimates, 9)
-    text(cl.defer, 9)
-    room_for(45 if cl.second_person else 30)  # the sign-off block stays whole
+    out.text(cl.estimates, 9)
+    out.text(cl.defer, 9)
+    out.room_for(45 if cl.second_person else 30)  # the sign-off block stays whole
     pdf.ln(3)
-    text("Sign-off", 12, "B")
-    text(f"Operator: {cl.operator or '______________________'}    Date and time: ______________    "
-         "Signature: ______________", 10)
+    out.text("Sign-off", 12, "B")
+    out.text(f"Operator: {cl.operator or '______________________'}    Date and time: ______________    "
+             "Signature: ______________", 10)
     if cl.second_person:
-        text("Second person: ______________________    Date and time: ______________    Signature: ______________", 10)
-    out = Path(path)
-    pdf.output(str(out))
-    return out
+        out.text("Second person: ______________________    Date and time: ______________    "
+                 "Signature: ______________", 10)
+    target = Path(path)
+    pdf.output(str(target))
+    return target
