@@ -176,28 +176,12 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     h = g.saturated_vapour_enthalpy(gas, T_in) if saturated else g.enthalpy(gas, T_in, p_in)
     extra: dict[str, Any] = {"inlet_saturated": saturated, "inlet_vapour_pressure_abs_pa": p_sat}
     if gas.is_mixture:
-        fl = flash_ph(gas, h, p_out, T_in)
-        liquid = fl.phase.kind in ("two-phase", "liquid")
-        flags += ["component-condenses"] * liquid + ["outlet-below-freezing"] * (fl.T < T0_K)
-        return Throttle(gas.name, p_in, p_out, T_in, fl.T, fl.T - T_in, False, liquid,
-                        fl.phase.vapour_fraction if liquid else None, tuple(flags),
-                        "isenthalpic, real gas (CoolProp HEOS, phase-equilibrium (h, p) flash)", **extra)
+        return _mixture_outlet(gas, h, p_in, p_out, T_in, flags, extra)
     Tt, pt = g.triple_point(gas)
     T_solid = _solid_line_temperature(gas, p_out)
     if p_out < pt and g.has_sublimation_line(gas):
         assert T_solid is not None
-        h_vap_sub = g.vapour_enthalpy(gas, T_solid, p_out)
-        if h <= h_vap_sub:
-            solid = min(1.0, (h_vap_sub - h) / sublimation_enthalpy(gas, T_solid))
-            return Throttle(gas.name, p_in, p_out, T_in, T_solid, T_solid - T_in, True, False, 1.0 - solid,
-                            tuple(flags + ["dry-ice", "outlet-below-freezing"]),
-                            "isenthalpic, real gas (CoolProp HEOS); Span & Wagner 1996 sublimation line below the "
-                            "triple point", dry_ice_margin_k=0.0, solid_fraction=solid, **extra)
-        T_out = _vapour_outlet(gas, h, p_out, T_solid, max(T_in, T_solid + 1.0) + 50.0)
-        flags += ["outlet-below-freezing"] * (T_out < T0_K)
-        return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, False, False, None, tuple(flags),
-                        "isenthalpic, real gas (CoolProp HEOS, vapour branch)", dry_ice_margin_k=T_out - T_solid,
-                        **extra)
+        return _below_triple_point(gas, h, p_in, p_out, T_in, T_solid, flags, extra)
     try:
         fl = flash_ph(gas, h, p_out, T_in)
     except PropertyError:
@@ -209,6 +193,34 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     return Throttle(gas.name, p_in, p_out, T_in, fl.T, fl.T - T_in, solid, liquid,
                     fl.phase.vapour_fraction if liquid else None, tuple(flags), "isenthalpic, real gas (CoolProp HEOS)",
                     dry_ice_margin_k=margin, **extra)
+
+
+def _mixture_outlet(gas: g.Gas, h: float, p_in: float, p_out: float, T_in: float, flags: list[str],
+                    extra: dict[str, Any]) -> Throttle:
+    """A mixture's outlet by a phase-equilibrium (h, p) flash: does a component condense?"""
+    fl = flash_ph(gas, h, p_out, T_in)
+    liquid = fl.phase.kind in ("two-phase", "liquid")
+    flags = flags + ["component-condenses"] * liquid + ["outlet-below-freezing"] * (fl.T < T0_K)
+    return Throttle(gas.name, p_in, p_out, T_in, fl.T, fl.T - T_in, False, liquid,
+                    fl.phase.vapour_fraction if liquid else None, tuple(flags),
+                    "isenthalpic, real gas (CoolProp HEOS, phase-equilibrium (h, p) flash)", **extra)
+
+
+def _below_triple_point(gas: g.Gas, h: float, p_in: float, p_out: float, T_in: float, T_solid: float,
+                        flags: list[str], extra: dict[str, Any]) -> Throttle:
+    """An outlet below the triple-point pressure: on the sublimation line with solid forming when
+    the enthalpy is below the vapour's there (Span & Wagner 1996), else vapour above the line."""
+    h_vap_sub = g.vapour_enthalpy(gas, T_solid, p_out)
+    if h <= h_vap_sub:
+        solid = min(1.0, (h_vap_sub - h) / sublimation_enthalpy(gas, T_solid))
+        return Throttle(gas.name, p_in, p_out, T_in, T_solid, T_solid - T_in, True, False, 1.0 - solid,
+                        tuple(flags + ["dry-ice", "outlet-below-freezing"]),
+                        "isenthalpic, real gas (CoolProp HEOS); Span & Wagner 1996 sublimation line below the "
+                        "triple point", dry_ice_margin_k=0.0, solid_fraction=solid, **extra)
+    T_out = _vapour_outlet(gas, h, p_out, T_solid, max(T_in, T_solid + 1.0) + 50.0)
+    flags = flags + ["outlet-below-freezing"] * (T_out < T0_K)
+    return Throttle(gas.name, p_in, p_out, T_in, T_out, T_out - T_in, False, False, None, tuple(flags),
+                    "isenthalpic, real gas (CoolProp HEOS, vapour branch)", dry_ice_margin_k=T_out - T_solid, **extra)
 
 
 def joule_thomson_coefficient(gas: g.Gas, T: float, p: float, dp: float = 1e3) -> float:
