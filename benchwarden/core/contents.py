@@ -194,34 +194,19 @@ def contents(
     g.check_state(gas, T, p_abs)
     ideal_free = volume_m3 * (p_abs / reference.pressure_pa) * (reference.temperature_k / T)
     ideal_mass = p_abs * volume_m3 * gas.molar_mass / (g.R * T)
-    below_critical = _liquefied_below_critical(gas, T)
-    p_sat = g.saturation_pressure(gas, T) if below_critical else None
+    p_sat = g.saturation_pressure(gas, T) if _liquefied_below_critical(gas, T) else None
     Tc = g.critical_temperature(gas) if gas.sold_liquefied else None
     if p_sat is not None and p_abs >= p_sat:
-        full = p_abs > g.LIQUID_FULL_FACTOR * p_sat
-        kind = "liquid-full" if full else "liquefied"
-        return Contents(
-            gas.name, volume_m3, T, p_abs, True, None, None, None, None, reference, None,
-            None, None, None, "liquid-full: no vapour space" if full else "liquefied: weigh the cylinder",
-            (kind,), phase=kind, vapour_pressure_abs_pa=p_sat, critical_temperature_k=Tc,
-        )
+        return _liquid_in_cylinder(gas, volume_m3, T, p_abs, p_sat, reference, Tc)
     st = g.pt_state(gas, T, p_abs)
     ph, rho, z = st.phase, st.density, st.z
     if ph.kind == "supercritical" and p_abs < g.critical_pressure(gas):
         ph = g.Phase("gas", None)  # above the critical temperature but below its pressure: a gas
     mass = rho * volume_m3
     fv = free_volume(gas, mass, reference)
-    flags: list[str] = []
-    if ph.kind in ("two-phase", "liquid"):
-        flags.append(ph.kind)
-    if p_sat is not None:
-        flags.append("near-vapour-pressure" if p_abs >= NEAR_VAPOUR_PRESSURE * p_sat else "vapour-only")
     slope, u_m, liquid = temperature_sensitivity(gas, volume_m3, p_abs, T, u_T)
-    if liquid:
-        flags.append("may-hold-liquid")
     pairs = tuple(f"{a}–{b}" for a, b in g.estimated_pairs(gas))
-    if pairs:
-        flags.append("estimated-mixing")
+    flags = _flags(ph.kind, p_abs, p_sat, liquid, bool(pairs))
     return Contents(
         gas.name, volume_m3, T, p_abs, False, rho, z, mass, mass / gas.molar_mass, reference, fv,
         ideal_mass, ideal_free, 100.0 * (fv - ideal_free) / ideal_free,
@@ -231,6 +216,31 @@ def contents(
         temperature_uncertainty_k=u_T, mass_uncertainty_kg=u_m, vapour_pressure_abs_pa=p_sat,
         estimated_pairs=pairs, critical_temperature_k=Tc,
     )
+
+def _liquid_in_cylinder(gas: g.Gas, V: float, T: float, p_abs: float, p_sat: float, reference: Reference,
+                        Tc: float | None) -> Contents:
+    """A pressure at or above the vapour pressure: liquid in the cylinder (or liquid-full, well
+    above it); the pressure says nothing about the contents."""
+    full = p_abs > g.LIQUID_FULL_FACTOR * p_sat
+    kind = "liquid-full" if full else "liquefied"
+    return Contents(
+        gas.name, V, T, p_abs, True, None, None, None, None, reference, None,
+        None, None, None, "liquid-full: no vapour space" if full else "liquefied: weigh the cylinder",
+        (kind,), phase=kind, vapour_pressure_abs_pa=p_sat, critical_temperature_k=Tc,
+    )
+
+
+def _flags(kind: str, p_abs: float, p_sat: float | None, may_hold_liquid: bool, estimated: bool) -> list[str]:
+    """The informational codes of a contents result (the interfaces word them)."""
+    flags: list[str] = [kind] if kind in ("two-phase", "liquid") else []
+    if p_sat is not None:
+        flags.append("near-vapour-pressure" if p_abs >= NEAR_VAPOUR_PRESSURE * p_sat else "vapour-only")
+    if may_hold_liquid:
+        flags.append("may-hold-liquid")
+    if estimated:
+        flags.append("estimated-mixing")
+    return flags
+
 
 @dataclass(frozen=True)
 class WeightState:
