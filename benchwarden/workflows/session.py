@@ -18,23 +18,22 @@ from benchwarden.core.hold import U_T_DEFAULT
 from benchwarden.errors import InputError, JournalError
 from benchwarden.storage.journal import Journal, ReadingRow
 from benchwarden.storage.profile import Profile, load_profile, with_reading
-from benchwarden.storage.samples import Columns, SampleStore
+from benchwarden.storage.samples import Columns
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows import build as pl
+from benchwarden.workflows import session_live as live_gauges
 from benchwarden.workflows.bench import Assessment, findings_of, journal_state, orders_of
 from benchwarden.workflows.cylinder import (
     Entry,
-    LatestSample,
     Question,
     check_reading,
-    latest_state,
     parse_at,
     readings_since_change,
     record_change,
     record_reading,
 )
-from benchwarden.workflows.findings import Finding, alarm_findings, life_findings, ranked
+from benchwarden.workflows.findings import Finding, life_findings, ranked
 from benchwarden.workflows.holds import (
     JudgedHold,
     LastHold,
@@ -47,18 +46,12 @@ from benchwarden.workflows.holds import (
 from benchwarden.workflows.model import Memo, Observed, Plan
 from benchwarden.workflows.purges import purge_states
 from benchwarden.workflows.record import StopsStand, standing_stops, start_session
+from benchwarden.workflows.session_live import LiveSupply  # noqa: F401 - re-exported
 from benchwarden.workflows.watch import (
     AlarmBook,
-    LeakWatch,
     Watcher,
-    leak_watch_recorded,
     live_draw,
 )
-
-#: Samples older than the raw window are compressed this often while gauges are read [s].
-COMPACT_EVERY_S = 3600.0
-#: The leak watch's fit is redone this often (the latest sample follows every refresh) [s].
-LEAK_REFRESH_S = 30.0
 
 
 def now_local() -> dt.datetime:
@@ -81,18 +74,6 @@ class Reading:
     def entry(self) -> Entry:
         return Entry(self.supply_id, self.at, self.temperature_k, self.pressure_abs_pa, self.pressure_text,
                      self.weight_kg)
-
-
-@dataclass(frozen=True)
-class LiveSupply:
-    """What a supply's live gauge says now: its latest sample, the leak watch, silence."""
-
-    supply_id: str
-    sample: LatestSample | None
-    leak: LeakWatch | None
-    silent: str | None
-    last_bad: str | None = None
-    """The reason of the latest sample this watch set aside (bad or implausible)."""
 
 
 @dataclass
@@ -430,64 +411,19 @@ class SessionState:
     def poll_sources(self) -> int:
         """Read the sources that are due and store their samples; once an hour, compress the
         samples older than the raw window (blocking: call from a worker)."""
-        if self.watcher is None:
-            return 0
-        now = self.clock()
-        n = self.watcher.poll(now)
-        if self._compacted is None or (now - self._compacted).total_seconds() >= COMPACT_EVERY_S:
-            self._compacted = now
-            self.watcher.compact(now)
-        return n
+        return live_gauges.poll_sources(self)
+
 
     def refresh_live(self) -> None:
         """Recompute the plan from the latest samples, run the leak watch of each idle supply
         (storing a hold test once it resolves) and note silent gauges (blocking)."""
-        if self.profile is None:
-            return
-        now = self.clock()
-        self.recompute()
-        silent = self.watcher.silent(now) if self.watcher is not None else {}
-        reasons = self.watcher.last_reasons(now) if self.watcher is not None else {}
-        live: dict[str, LiveSupply] = {}
-        for s in self.profile.supplies:
-            if s.source is None:
-                continue
-            before = self.live.get(s.id)
-            if self.running:
-                lw = None
-            elif (before is not None and before.leak is not None and self._leak_at is not None
-                  and (now - self._leak_at).total_seconds() < LEAK_REFRESH_S):
-                lw = before.leak  # the fit over a long idle stretch costs a few tenths of a second
-            else:
-                lw = leak_watch_recorded(self.journal, self.profile, s.id, now)
-            live[s.id] = LiveSupply(s.id, latest_state(self.journal, self.profile, s.id, now.tzinfo), lw,
-                                    silent.get(s.id), reasons.get(s.id))
-        if self._leak_at is None or (now - self._leak_at).total_seconds() >= LEAK_REFRESH_S:
-            self._leak_at = now
-        self.live = live
+        live_gauges.refresh_live(self)
+
 
     def alarms(self, now: dt.datetime, finding_codes: set[str]) -> list[Finding]:
         """The alarms now (the rule is :func:`benchwarden.workflows.findings.alarm_findings`)."""
-        assert self.plan is not None
-        hours = {s.id: self.hours_left(s.id, now) for s in self.plan.supplies}
-        drawing = {s.id: s.draw_kg_s > 0 for s in self.plan.supplies}
-        for sid, lv in self.live.items():
-            # an idle supply that leaks runs down too: the leak watch's time to the reserve
-            lw = lv.leak
-            if lw is not None and lw.verdict == "leak" and lw.result.hours_to_reserve is not None and not self.running:
-                hours[sid] = min(hours.get(sid, math.inf),
-                                 lw.result.hours_to_reserve - (now - lw.until).total_seconds() / 3600.0)
-                drawing[sid] = True
-        ahead = self.profile.session.alert_before / 3600.0 if self.profile is not None else 0.5
-        over = None
-        if self.running and self.started_at is not None:
-            over = (now - self.started_at).total_seconds() / 3600.0 - self.plan.session_hours
-        leaks = {k: (v.leak.leak_rate_sccm, v.leak.leak_rate_uncertainty_sccm) for k, v in self.live.items()
-                 if v.leak is not None and v.leak.verdict == "leak"}
-        silent = {k: v.silent for k, v in self.live.items() if v.silent}
-        if self.watcher is not None:
-            silent |= self.watcher.silent(now)
-        return alarm_findings(hours, drawing, ahead, over, finding_codes, silent, leaks)
+        return live_gauges.alarms_now(self, now, finding_codes)
+
 
     def new_alarms(self, alarms: list[Finding], now: dt.datetime, describe: Callable[[Finding], str]) -> list[Finding]:
         """Keep the alarms showing; those that are new get a line in the journal (ring for them)."""
@@ -498,11 +434,4 @@ class SessionState:
     def live_trace(self, supply_id: str, since: dt.datetime, until: dt.datetime, columns: int) -> Columns | None:
         """The supply's live pressure between two times as minimum and maximum per plot column
         (absolute Pa; None without samples)."""
-        if self.journal is None or self.profile is None or until <= since:
-            return None
-        store = SampleStore(self.journal)
-        sid = store.stream(self.profile.bench.name, supply_id, "pressure")
-        if sid is None:
-            return None
-        cols = store.columns(sid, since.timestamp(), until.timestamp(), max(1, columns))
-        return cols if bool((cols.vmin == cols.vmin).any()) else None
+        return live_gauges.live_trace(self, supply_id, since, until, columns)
