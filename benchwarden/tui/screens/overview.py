@@ -11,7 +11,6 @@ from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
-from textual.screen import Screen
 from textual.timer import Timer
 from textual.widgets import DataTable, Header, Static
 
@@ -20,6 +19,7 @@ from benchwarden.render.display import Display, live_text, open_hold_text, profi
 from benchwarden.render.findings import SEVERITY_MARK, describe, question_text
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.render.supply import mass_words, phase_short
+from benchwarden.tui.screens.overview_actions import OverviewActions
 from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
 from benchwarden.units import fmt_hours
 from benchwarden.workflows.findings import Finding
@@ -32,7 +32,7 @@ LIVE_REFRESH_S = 5.0
 MAX_STOP_LINES = 5
 
 
-class OverviewScreen(Screen[None]):
+class OverviewScreen(OverviewActions):
     # priority: acted on the moment the key is read, so keys typed right after (the reading
     # itself) reach the form it opens; the overview has no field of its own to type into
     BINDINGS = [
@@ -310,55 +310,6 @@ class OverviewScreen(Screen[None]):
 
     # -- actions
 
-    def action_toggle_session(self) -> None:
-        from benchwarden.tui.screens.modals import StopScreen
-
-        st = self.state
-        if st.plan is None:
-            return
-        if st.running:
-            self.app.push_screen(StopScreen(), self._stop_answered)
-            return
-        stops = st.standing_stops()
-        if stops:
-            from benchwarden.tui.screens.accept import AcceptStopsScreen
-
-            words = [describe(f, self.units)[0] for f in stops]
-            self.app.push_screen(AcceptStopsScreen(words), self._stops_answered)
-            return
-        self._start()
-
-    def _stops_answered(self, answer: tuple[str, str] | None) -> None:
-        if answer is None:
-            self.notify("Session not started: STOP findings stand", title="Session", severity="warning")
-            return
-        self._start(*answer)
-
-    def _start(self, operator: str | None = None, reason: str | None = None) -> None:
-        st = self.state
-        try:
-            st.start(lambda f: describe(f, self.units)[0], operator, reason)
-            self.notify(f"Session #{st.session_id} started" + (" over accepted STOP findings" if reason else ""),
-                        title="Session", severity="warning" if reason else "information")
-            if not self.cautions_shown:
-                self.cautions_shown = True
-                self.app.call_later(self.app.run_action, "cautions")
-        except JournalError as exc:
-            self.notify(str(exc), title="Journal", severity="error", timeout=10)
-        self.refresh_view()
-
-    def _stop_answered(self, record: tuple[str, int | None, str] | None) -> None:
-        if record is None:
-            return
-        st = self.state
-        try:
-            st.record_session(*record)
-            st.stop()
-            self.notify("Session stopped and saved", title="Session")
-        except JournalError as exc:
-            self.notify(str(exc), title="Journal", severity="error", timeout=10)
-        self.refresh_view()
-
     def action_reading(self) -> None:
         from benchwarden.tui.screens.modals import ReadingScreen
 
@@ -422,18 +373,6 @@ class OverviewScreen(Screen[None]):
                                            "of air with p.)"),
                              lambda yes: self.action_hold() if yes else None)
 
-    def action_purge(self) -> None:
-        from benchwarden.tui.screens.tools import PurgeScreen
-
-        if self.state.plan is not None:
-            self.app.push_screen(PurgeScreen(self.state))
-
-    def action_history(self) -> None:
-        from benchwarden.tui.screens.tools import HistoryScreen
-
-        if self.state.plan is not None:
-            self.app.push_screen(HistoryScreen(self.state))
-
     def on_screen_resume(self) -> None:
         # back from a tool (a hold test saved, a reading struck): the figures and findings follow
         if self.state.plan is not None:
@@ -468,26 +407,3 @@ class OverviewScreen(Screen[None]):
         self.app.call_from_thread(self._start_live)  # the sources may have changed
         self.app.call_from_thread(self.refresh_view)
 
-    def action_graph(self) -> None:
-        from benchwarden.tui.screens.tools import GraphScreen
-
-        if self.state.plan is not None:
-            self.app.push_screen(GraphScreen(self.state))
-
-    def action_hold(self) -> None:
-        from benchwarden.tui.screens.tools import HoldScreen
-
-        if self.state.plan is not None:
-            self.app.push_screen(HoldScreen(self.state))
-
-    def action_oxygen(self) -> None:
-        from benchwarden.tui.screens.tools import RoomScreen
-
-        if self.state.plan is not None:
-            self.app.push_screen(RoomScreen(self.state))
-
-    def action_checklist(self) -> None:
-        from benchwarden.tui.screens.tools import ChecklistScreen
-
-        if self.state.plan is not None:
-            self.app.push_screen(ChecklistScreen(self.state))

@@ -1,0 +1,110 @@
+"""The overview's actions that open a dialog or a tool: starting a session (over accepted STOPs)
+and stopping it, and the tool screens. :class:`OverviewScreen` shows the figures."""
+
+from __future__ import annotations
+
+from textual.screen import Screen
+
+from benchwarden.errors import JournalError
+from benchwarden.render.display import Display
+from benchwarden.render.findings import describe
+from benchwarden.workflows.session import SessionState
+
+
+class OverviewActions(Screen[None]):
+    """Actions of the overview (the base of :class:`benchwarden.tui.screens.overview.OverviewScreen`)."""
+
+    state: SessionState
+    cautions_shown: bool
+
+    @property
+    def units(self) -> Display:  # pragma: no cover - the overview defines it
+        raise NotImplementedError
+
+    def refresh_view(self) -> None:  # pragma: no cover - the overview defines it
+        raise NotImplementedError
+
+    def action_toggle_session(self) -> None:
+        from benchwarden.tui.screens.modals import StopScreen
+
+        st = self.state
+        if st.plan is None:
+            return
+        if st.running:
+            self.app.push_screen(StopScreen(), self._stop_answered)
+            return
+        stops = st.standing_stops()
+        if stops:
+            from benchwarden.tui.screens.accept import AcceptStopsScreen
+
+            words = [describe(f, self.units)[0] for f in stops]
+            self.app.push_screen(AcceptStopsScreen(words), self._stops_answered)
+            return
+        self._start()
+
+    def _stops_answered(self, answer: tuple[str, str] | None) -> None:
+        if answer is None:
+            self.notify("Session not started: STOP findings stand", title="Session", severity="warning")
+            return
+        self._start(*answer)
+
+    def _start(self, operator: str | None = None, reason: str | None = None) -> None:
+        st = self.state
+        try:
+            st.start(lambda f: describe(f, self.units)[0], operator, reason)
+            self.notify(f"Session #{st.session_id} started" + (" over accepted STOP findings" if reason else ""),
+                        title="Session", severity="warning" if reason else "information")
+            if not self.cautions_shown:
+                self.cautions_shown = True
+                self.app.call_later(self.app.run_action, "cautions")
+        except JournalError as exc:
+            self.notify(str(exc), title="Journal", severity="error", timeout=10)
+        self.refresh_view()
+
+    def _stop_answered(self, record: tuple[str, int | None, str] | None) -> None:
+        if record is None:
+            return
+        st = self.state
+        try:
+            st.record_session(*record)
+            st.stop()
+            self.notify("Session stopped and saved", title="Session")
+        except JournalError as exc:
+            self.notify(str(exc), title="Journal", severity="error", timeout=10)
+        self.refresh_view()
+
+    def action_purge(self) -> None:
+        from benchwarden.tui.screens.tools import PurgeScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(PurgeScreen(self.state))
+
+    def action_history(self) -> None:
+        from benchwarden.tui.screens.tools import HistoryScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(HistoryScreen(self.state))
+
+    def action_graph(self) -> None:
+        from benchwarden.tui.screens.tools import GraphScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(GraphScreen(self.state))
+
+    def action_hold(self) -> None:
+        from benchwarden.tui.screens.tools import HoldScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(HoldScreen(self.state))
+
+    def action_oxygen(self) -> None:
+        from benchwarden.tui.screens.tools import RoomScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(RoomScreen(self.state))
+
+    def action_checklist(self) -> None:
+        from benchwarden.tui.screens.tools import ChecklistScreen
+
+        if self.state.plan is not None:
+            self.app.push_screen(ChecklistScreen(self.state))
