@@ -22,7 +22,7 @@ from benchwarden.cli.common import (
 )
 from benchwarden.render.display import Display
 from benchwarden.render.files import clean, session_csv, write_output
-from benchwarden.render.findings import describe
+from benchwarden.render.findings import SEVERITY_WORD, describe
 from benchwarden.workflows import computations as comp
 from benchwarden.workflows.bench import assess
 from benchwarden.workflows.cylinder import parse_at
@@ -88,13 +88,13 @@ def cmd_session_start(args: argparse.Namespace) -> int:
         except StopsStand as exc:
             sys.stderr.write(one_line(f"benchwarden: error: {exc}") + "\n")
             for f, words in zip(exc.stops, exc.words, strict=True):
-                sys.stderr.write(one_line(f"  STOP  {f.code} ({f.subject}): {words}", 400) + "\n")
+                sys.stderr.write(one_line(f"  {SEVERITY_WORD['stop']}  {f.code} ({f.subject}): {words}", 400) + "\n")
             return EXIT_INPUT
     stops = at_or_above(a.findings, "stop")
     print(f"session #{sid} of {clean(prof.bench.name)} started {Display.clock(at.isoformat())}"
           + (f" by {clean(args.operator)}" if args.operator else ""))
     for f in stops:
-        print(f"  accepted STOP {f.code} ({f.subject}): {clean(args.accept_stop)}")
+        print(f"  accepted {SEVERITY_WORD['stop']} {f.code} ({f.subject}): {clean(args.accept_stop)}")
     return 0
 
 
@@ -144,7 +144,7 @@ def cmd_sessions(args: argparse.Namespace) -> int:
         for _, note in rec.notes:
             print(f"{'':>4}  note: {clean(note)}")
         for a in rec.accepted_stops:
-            print(f"{'':>4}  accepted STOP {a.code} ({clean(a.subject)})"
+            print(f"{'':>4}  accepted {SEVERITY_WORD['stop']} {a.code} ({clean(a.subject)})"
                   + (f" by {clean(a.operator)}" if a.operator else "") + f": {clean(a.reason)}")
     return 0
 

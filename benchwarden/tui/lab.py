@@ -14,6 +14,7 @@ from textual.widgets import DataTable, Footer, Header, Static
 
 from benchwarden.errors import BenchwardenError
 from benchwarden.render.display import Display
+from benchwarden.render.findings import SEVERITY_MARK
 from benchwarden.tui.widgets import FindingsPanel
 from benchwarden.workflows.lab import LabView, lab_view
 
@@ -99,7 +100,7 @@ class LabApp(App[int]):
         self.query_one("#lab-findings", FindingsPanel).show(v.findings, d)
         stops = sum(1 for f in v.findings if f.severity == "stop")
         status = self.query_one("#lab-status", Static)
-        status.update(Text((f"✖ STOP ({stops})  " if stops else "") + f"{len(v.benches)} bench(es) — "
+        status.update(Text((f"{SEVERITY_MARK['stop']} ({stops})  " if stops else "") + f"{len(v.benches)} bench(es) — "
                            f"read {dt.datetime.now().astimezone():%H:%M}; r refreshes"))
         status.set_class(bool(stops), "stop")
 

@@ -9,6 +9,8 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, Static
 
+from benchwarden.render.findings import SEVERITY_MARK
+
 
 class AcceptStopsScreen(ModalScreen[tuple[str, str] | None]):
     """Lists every STOP that stands; the session starts only when a person gives their name and
@@ -22,7 +24,8 @@ class AcceptStopsScreen(ModalScreen[tuple[str, str] | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(id="dialog", classes="dialog wide"):
-            yield Static(Text(f"✖ {len(self.stops)} STOP finding(s) stand", style="bold"), classes="heading stop")
+            yield Static(Text(f"{SEVERITY_MARK['stop']}: {len(self.stops)} finding(s) stand", style="bold"),
+                         classes="heading stop")
             with VerticalScroll(id="stops"):
                 for words in self.stops:
                     yield Static(Text(f"✖ {words}"), classes="stop-item")

@@ -13,6 +13,7 @@ from textual.widgets import DataTable, Header, Input, Select, Static
 
 from benchwarden.errors import JournalError
 from benchwarden.render.display import Display, cylinder_text, profile_display
+from benchwarden.render.findings import SEVERITY_WORD
 from benchwarden.render.numbers import fmt_count, fmt_uncertain
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter
@@ -136,6 +137,6 @@ def _session_line(rec: SessionRecord, d: Display, now: dt.datetime) -> str:
              s.operator or "operator not recorded",
              f"{fmt_count(s.shots)} shots" if s.shots is not None else "shots not recorded"]
     parts += [f"note: {text}" for _, text in rec.notes]
-    parts += [f"accepted STOP {a.code} ({a.subject})" + (f" by {a.operator}" if a.operator else "")
+    parts += [f"accepted {SEVERITY_WORD['stop']} {a.code} ({a.subject})" + (f" by {a.operator}" if a.operator else "")
               + f": {a.reason}" for a in rec.accepted_stops]
     return "  ·  ".join(parts)

@@ -231,7 +231,7 @@ class OverviewScreen(OverviewActions):
         box = self.query_one("#stops", Static)
         lines = [f"{SEVERITY_MARK['stop']}  {f.subject}: {describe(f, self.units)[0]}" for f in stops]
         if len(lines) > MAX_STOP_LINES:  # each STOP still counted on screen; the findings list has all
-            lines = lines[:MAX_STOP_LINES - 1] + [f"✖ … and {len(lines) - MAX_STOP_LINES + 1} more STOP findings"]
+            lines = lines[:MAX_STOP_LINES - 1] + [f"{SEVERITY_MARK['stop']} … and {len(lines) - MAX_STOP_LINES + 1} more"]
         box.update(Text("\n".join(lines), no_wrap=True, overflow="ellipsis"))
         box.display = bool(stops)
 
@@ -273,7 +273,7 @@ class OverviewScreen(OverviewActions):
             status = f"○ no session — press s to start ({fmt_hours(st.plan.session_hours)} planned)"
         n_stops = sum(1 for f in self._findings if f.severity == "stop")
         if n_stops:
-            status = f"✖ STOP ({n_stops})  " + status
+            status = f"{SEVERITY_MARK['stop']} ({n_stops})  " + status
         self.query_one("#status", Static).set_class(bool(n_stops), "stop")
         if st.unsaved and int(now.timestamp()) % 10 == 0:
             st.retry_unsaved()  # the journal may be free again
