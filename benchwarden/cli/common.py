@@ -202,25 +202,3 @@ def exit_for(args: argparse.Namespace, findings: Any) -> int:
     level = getattr(args, "fail_on", None)
     return EXIT_FINDING if level is not None and at_or_above(findings, level) else 0
 
-
-def read_text_file(path: str, what: str, max_bytes: int) -> str:
-    """A text file named on the command line: a regular file no larger than ``max_bytes``,
-    UTF-8; anything else is one clear line (exit 2)."""
-    import os
-    import stat
-
-    try:
-        st = os.stat(path)
-    except OSError as exc:
-        raise input_error(f"{what} {path!r}: cannot read it ({exc.strerror})") from None
-    if not stat.S_ISREG(st.st_mode):
-        raise input_error(f"{what} {path!r} is not a regular file")
-    if st.st_size > max_bytes:
-        raise input_error(f"{what} {path!r} is {st.st_size / 1e6:.0f} MB; at most {max_bytes / 1e6:.0f} MB is read")
-    try:
-        with open(path, encoding="utf-8-sig", newline="") as fh:
-            return fh.read(max_bytes + 1)
-    except UnicodeDecodeError:
-        raise input_error(f"{what} {path!r} is not UTF-8 text") from None
-    except OSError as exc:
-        raise input_error(f"{what} {path!r}: cannot read it ({exc.strerror})") from None

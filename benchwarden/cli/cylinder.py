@@ -18,7 +18,6 @@ from benchwarden.cli.common import (
     emit_table,
     exit_for,
     input_error,
-    read_text_file,
     whole_number,
 )
 from benchwarden.render.display import Display
@@ -113,7 +112,7 @@ def cmd_import(args: argparse.Namespace, prof: comp.Profile, now: dt.datetime) -
     if args.temperature or args.at:
         raise input_error("--from takes the time and temperature from the file's columns: leave out "
                           "--at and --temperature")
-    text = read_text_file(args.from_file, "--from", MAX_IMPORT_BYTES)
+    text = comp.read_text_file(args.from_file, "reading file (.csv)", MAX_IMPORT_BYTES)
     d = display(args, prof.ambient_pa, prof)
     with _open(args) as j:
         a = assess(prof, j, now)

@@ -19,7 +19,6 @@ from benchwarden.cli.common import (
     exit_for,
     input_error,
     one_line,
-    read_text_file,
 )
 from benchwarden.errors import LabError, LabUnreachable
 from benchwarden.render.files import clean
@@ -29,7 +28,6 @@ from benchwarden.workflows import computations as comp
 
 #: Exit status when the lab database cannot be reached.
 EXIT_UNREACHABLE = 4
-_PROFILE_MAX = 1_000_000
 
 
 def configure(sub: Any, name: str) -> None:
@@ -81,7 +79,7 @@ def cmd_push(args: argparse.Namespace) -> int:
     from benchwarden.workflows.lab import push
 
     prof = comp.load_profile(args.profile)
-    text = read_text_file(args.profile, "profile", _PROFILE_MAX)
+    text = comp.read_text_file(args.profile, "bench profile (.toml)", comp.MAX_PROFILE_BYTES)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     try:
         with comp.Journal(comp.default_path(getattr(args, "journal", None))) as j:

@@ -34,14 +34,20 @@ if TYPE_CHECKING:  # the names as mypy sees them; at run time each loads when fi
     from benchwarden.live.simulator import Cylinder, serve
     from benchwarden.storage.holdlog import parse_log
     from benchwarden.storage.journal import Journal, default_path, open_journal
-    from benchwarden.storage.profile import Profile, demo_profile_path, load_profile
+    from benchwarden.storage.profile import (
+        MAX_PROFILE_BYTES,
+        Profile,
+        demo_profile_path,
+        load_profile,
+        read_text_file,
+    )
 
 __all__ = [
     "DEFER", "ESTIMATES", "GENERAL", "gas_cautions", "orifice_flow", "breakdown", "Gas", "parse_gas", "GUIDANCE",
     "U_T_DEFAULT", "GaugeSpec", "HoldResult", "LogFit", "hold_from_log", "hold_two_readings", "line_volume",
     "target_sccm", "cycle_purge", "flush", "throttle", "contents", "contents_by_weight", "heat_up", "mass_flow",
     "runtime", "Cylinder", "serve", "parse_log", "Journal", "default_path", "open_journal", "Profile",
-    "demo_profile_path", "load_profile",
+    "demo_profile_path", "load_profile", "read_text_file", "MAX_PROFILE_BYTES",
 ]
 
 #: name → module it comes from (imported when first used: `--help` and a quick command stay fast)
@@ -79,6 +85,8 @@ _WHERE: dict[str, str] = {
     "open_journal": "benchwarden.storage.journal",
     "Profile": "benchwarden.storage.profile",
     "demo_profile_path": "benchwarden.storage.profile",
+    "read_text_file": "benchwarden.storage.profile",
+    "MAX_PROFILE_BYTES": "benchwarden.storage.profile",
     "load_profile": "benchwarden.storage.profile",
 }
 
