@@ -14,7 +14,7 @@ import json
 from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["EVENT_MIGRATION", "Event", "EVENT_KINDS", "event_trigger"]
+__all__ = ["EVENT_MIGRATION", "SAMPLES_LAST_MIGRATION", "Event", "EVENT_KINDS", "event_trigger"]
 
 #: A random (version 4) UUID from SQLite's own random source.
 _UUID = ("(lower(hex(randomblob(4))) || '-' || lower(hex(randomblob(2))) || '-4' || "
@@ -108,6 +108,19 @@ EVENT_MIGRATION: tuple[str, ...] = (
     " SELECT RAISE(ABORT, 'events are immutable'); END",
     "CREATE TRIGGER events_immutable_delete BEFORE DELETE ON events BEGIN"
     " SELECT RAISE(ABORT, 'events are immutable'); END",
+)
+
+
+#: Journal migration 9: an hour of samples also keeps its last good value (``vlast``), and its
+#: event says it (``last``); blocks compressed before keep ``last`` null.
+SAMPLES_LAST_MIGRATION: tuple[str, ...] = (
+    "ALTER TABLE sample_blocks ADD COLUMN vlast REAL",
+    "DROP TRIGGER event_samples_hour",
+    _trigger("samples-hour", "sample_blocks", "INSERT", "(SELECT bench FROM streams WHERE id = NEW.stream)",
+             "strftime('%Y-%m-%dT%H:%M:%SZ', NEW.t0, 'unixepoch')",
+             "json_object('supply_id', (SELECT supply_id FROM streams WHERE id = NEW.stream), 'quantity',"
+             " (SELECT quantity FROM streams WHERE id = NEW.stream), 't0', NEW.t0, 't1', NEW.t1, 'n', NEW.n,"
+             " 'bad', NEW.bad, 'min', NEW.vmin, 'max', NEW.vmax, 'last', NEW.vlast)"),
 )
 
 

@@ -4,9 +4,9 @@ that opens and writes it."""
 
 from __future__ import annotations
 
-from benchwarden.storage.events import EVENT_MIGRATION, event_trigger
+from benchwarden.storage.events import EVENT_MIGRATION, SAMPLES_LAST_MIGRATION, event_trigger
 
-SCHEMA_VERSION = 8
+SCHEMA_VERSION = 9
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -182,4 +182,6 @@ _MIGRATIONS: dict[int, str | tuple[str, ...]] = {
                       " NEW.pressure_abs_pa, 'pressure_text', NEW.pressure_text, 'temperature_k', NEW.temperature_k,"
                       " 'ambient_pa', NEW.ambient_pa, 'hold_s', NEW.hold_s)"),
     ),
+    # an hour of live samples keeps its last value, and its lab event says it (issue 30)
+    9: SAMPLES_LAST_MIGRATION,
 }

@@ -227,24 +227,26 @@ class SampleStore:
                     tt, vv = swinging_door([r[0] for r in good], [r[1] for r in good], tolerance)
                     vals = [r[1] for r in good]
                     blocks.append((stream, b0, good[-1][0], len(good), bad, min(vals), max(vals), tolerance,
-                                   _pack(b0, tt, vv)))
+                                   _pack(b0, tt, vv), good[-1][1]))
                 else:
-                    blocks.append((stream, b0, rows[j - 1][0], 0, bad, None, None, tolerance, b""))
+                    blocks.append((stream, b0, rows[j - 1][0], 0, bad, None, None, tolerance, b"", None))
                 i = j
             merged = self._merge(db, stream, blocks)
             db.executemany("INSERT OR REPLACE INTO sample_blocks(stream, t0, t1, n, bad, vmin, vmax, tolerance, "
-                           "points) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)", merged)
+                           "points, vlast) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", merged)
             db.execute("DELETE FROM samples WHERE stream = ? AND t < ?", (stream, limit))
             return len(moved)
 
         return int(self.journal.write(move))
 
     def _merge(self, db: sqlite3.Connection, stream: int, blocks: list[tuple[Any, ...]]) -> list[tuple[Any, ...]]:
-        """Late samples for a block already compressed join its vertices (never overwrite it)."""
+        """Late samples for a block already compressed join its vertices (never overwrite it); the
+        block's last value is that of its latest good sample (late rows all come after the stored
+        ones). A block is (stream, t0, t1, n, bad, vmin, vmax, tolerance, points, last value)."""
         out = []
         for b in blocks:
-            old = db.execute("SELECT t1, n, bad, vmin, vmax, points FROM sample_blocks WHERE stream = ? AND t0 = ?",
-                             (stream, b[1])).fetchone()
+            old = db.execute("SELECT t1, n, bad, vmin, vmax, points, vlast FROM sample_blocks WHERE stream = ? "
+                             "AND t0 = ?", (stream, b[1])).fetchone()
             if old is None:
                 out.append(b)
                 continue
@@ -258,7 +260,8 @@ class SampleStore:
             vmaxs = [x for x in (old[4], b[6]) if x is not None]
             out.append((stream, b[1], max(old[0], b[2]), old[1] + b[3], old[2] + b[4],
                         min(vmins) if vmins else None, max(vmaxs) if vmaxs else None, b[7],
-                        _pack(b[1], t[order], np.concatenate([ov, nv])[order])))
+                        _pack(b[1], t[order], np.concatenate([ov, nv])[order]),
+                        old[6] if b[9] is None else b[9]))  # late rows come after the stored ones
         return out
 
     # -- reading
