@@ -267,3 +267,39 @@ def test_the_background_shipper_pushes_backs_off_and_catches_up(lab, tmp_path):
     assert _count(lab, "SELECT count(*) FROM lab_events WHERE payload->>'pressure_text' = '119 bar' "
                        "AND bench_id = 'bench-3'") == 1
     assert n_local > 0
+
+
+async def test_the_app_pushes_in_the_background_and_says_when_the_lab_last_received(lab, tmp_path):
+    # the app with a [lab] profile: a push starts by itself, the line shows the server's receipt
+    # time; with the server away the line says so and the app keeps running
+    import datetime as dt
+
+    from benchwarden.tui.app import make_app
+
+    prof_path, journal = _bench(tmp_path, lab, "bench-9", "Bench 9 app")
+    clock = dt.datetime(2026, 12, 1, 9, 0, tzinfo=dt.UTC)
+    app = make_app(prof_path, journal, clock=lambda: clock)
+    async with app.run_test(size=(100, 40)) as pilot:
+        st = app.state
+        for _ in range(100):  # the plan, then the first push, each in a thread: wait, bounded
+            await pilot.pause(0.1)
+            if st.shipper is not None and st.shipper.last_result is not None:
+                break
+        assert st.shipper is not None and st.shipper.last_result is not None
+        assert st.shipper.last_result.events_sent >= 2 and st.shipper.last_received is not None
+        await pilot.pause(1.2)  # the next tick shows it
+        line = str(app.screen.query_one("#lab-link").render())
+        assert line.startswith("lab: last received ") and "event(s) this run" in line
+        lab.stop()
+        try:
+            st.shipper.next_at = 0.0  # due now
+            for _ in range(100):
+                await pilot.pause(0.1)
+                if st.shipper.last_error:
+                    break
+            await pilot.pause(1.2)
+            line = str(app.screen.query_one("#lab-link").render())
+            assert "not reachable" in line and "retry in" in line and "last received" in line
+        finally:
+            lab.restart()
+    assert _count(lab, "SELECT count(*) FROM lab_snapshots WHERE bench_id = 'bench-9'") >= 1

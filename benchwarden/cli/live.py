@@ -210,9 +210,11 @@ def cmd_watch(args: argparse.Namespace) -> int:
 
 def _lab_line(shipper: Any) -> None:
     """When the lab last received this bench's record (and why not, when it is away)."""
-    ok = shipper.last_ok
-    print("  lab: " + (f"last received {ok:%H:%M:%S}" if ok else "nothing received yet")
-          + (f"; not reachable now ({shipper.last_error[:80]}), retrying" if shipper.last_error else ""), flush=True)
+    import time
+
+    from benchwarden.render.display import lab_link_text
+
+    print("  " + lab_link_text(shipper.link(time.monotonic()), shipper.clock()), flush=True)
 
 
 def _report(state: Any, d: Any, describe: Any, live_text: Any, err: Any) -> None:

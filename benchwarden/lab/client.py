@@ -64,11 +64,13 @@ def insert_events(conn: Any, bench_id: str, events: Sequence[Event]) -> int:
 
 
 def insert_snapshot(conn: Any, bench_id: str, taken_at: str, status: dict[str, Any], profile_text: str | None,
-                    profile_sha256: str | None) -> None:
+                    profile_sha256: str | None) -> str:
+    """Insert a status snapshot; returns when the server received it (its own clock, ISO 8601)."""
     with conn.transaction():
-        conn.execute("INSERT INTO lab_snapshots(bench_id, taken_at, status, profile_text, profile_sha256)"
-                     " VALUES (%s, %s, %s, %s, %s)",
-                     (bench_id, taken_at, json.dumps(status), profile_text, profile_sha256))
+        row = conn.execute("INSERT INTO lab_snapshots(bench_id, taken_at, status, profile_text, profile_sha256)"
+                           " VALUES (%s, %s, %s, %s, %s) RETURNING received_at",
+                           (bench_id, taken_at, json.dumps(status), profile_text, profile_sha256)).fetchone()
+    return str(row[0].isoformat())
 
 
 def latest_snapshots(conn: Any) -> list[tuple[str, str, float, dict[str, Any]]]:

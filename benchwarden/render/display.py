@@ -18,7 +18,8 @@ from benchwarden.units import ATM_PA, T0_K, fmt_hours, fmt_pressure
 if TYPE_CHECKING:  # pragma: no cover
     from benchwarden.storage.profile import Profile
 
-__all__ = ["PRESSURE_UNITS", "Display", "display_for", "profile_display", "live_text", "open_hold_text", "cylinder_text"]
+__all__ = ["PRESSURE_UNITS", "Display", "display_for", "profile_display", "live_text", "open_hold_text", "cylinder_text",
+           "lab_link_text"]
 
 #: Pressure units a person can choose for display (gauge marked (g)/psig, absolute (a)/psia).
 PRESSURE_UNITS: tuple[str, ...] = ("bar", "psi", "kPa", "MPa")
@@ -229,3 +230,25 @@ def cylinder_text(c: Any, d: Display, now: dt.datetime) -> str:
     return "  ·  ".join([c.label or "no label", f"fill {c.fill_text or '—'}", f"{since} → {until}",
                          f"{c.readings} reading(s)", used, f"{c.hold_tests} hold test(s)",
                          f"retest {c.retest_due or 'not recorded'}"])
+
+
+def lab_link_text(link: Any, now: dt.datetime) -> str:
+    """How the background push to the lab stands (a :class:`~benchwarden.workflows.lab.LabLink`):
+    when the lab last received this bench's record, by the server's clock, and why not now.
+
+    >>> from types import SimpleNamespace as L
+    >>> n = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
+    >>> lab_link_text(L(received_at=dt.datetime(2026, 12, 1, 9, 25, tzinfo=dt.UTC), error=None,
+    ...                 retry_in_s=240.0, events_sent=12), n)
+    'lab: last received 09:25 (12 event(s) this run)'
+    >>> lab_link_text(L(received_at=None, error="lab database x cannot be reached: refused", retry_in_s=125.0,
+    ...                 events_sent=0), n)
+    'lab: nothing received yet; not reachable (lab database x cannot be reached: refused), retry in 2 min'
+    """
+    head = ("lab: last received " + Display.clock(link.received_at, now)
+            + f" ({link.events_sent} event(s) this run)") if link.received_at else "lab: nothing received yet"
+    if not link.error:
+        return head
+    wait = link.retry_in_s
+    again = f"{wait:.0f} s" if wait < 90 else (f"{wait / 60:.0f} min" if wait < 5400 else f"{wait / 3600:.1f} h")
+    return f"{head}; not reachable ({link.error[:80]}), retry in {again}"

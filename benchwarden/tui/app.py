@@ -120,6 +120,8 @@ def run_app(profile_path: str | None, journal_path: str | None) -> int:
     app = make_app(profile_path, journal_path)  # a damaged or foreign journal: one line, before the screen
     app.run()
     app.state.stop_watching()  # the live gauges' connections and serial ports are let go
+    if app.state.shipper is not None:
+        app.state.shipper.join()  # a push in flight finishes (or times out) before the journal closes
     if app.state.journal is not None:
         app.state.journal.close()
     return app.return_code or 0

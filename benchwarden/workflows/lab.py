@@ -22,7 +22,7 @@ from benchwarden.storage.profile import Profile
 from benchwarden.workflows.findings import Finding, lab_findings, ranked
 from benchwarden.workflows.status import status_document
 
-__all__ = ["init_lab", "safe_url", "Shipper", "PushResult", "push", "LabView", "lab_view", "BATCH", "ORDER_HORIZON_DAYS", "ALARM_WINDOW_S"]
+__all__ = ["init_lab", "safe_url", "Shipper", "LabLink", "PushResult", "push", "LabView", "lab_view", "BATCH", "ORDER_HORIZON_DAYS", "ALARM_WINDOW_S"]
 
 #: Events per transaction in a push.
 BATCH = 500
@@ -61,6 +61,8 @@ class PushResult:
     profile_sent: bool
     last_seq: int
     bench_id: str
+    received_at: str = ""
+    """When the lab received the snapshot, by the server's clock (ISO 8601)."""
 
 
 def _finding_json(f: Finding) -> dict[str, Any]:
@@ -93,10 +95,10 @@ def push(prof: Profile, journal: Journal, profile_text: str, now: dt.datetime) -
             last = events[-1].seq
             journal.set_mark(bench, "", _SENT, last, stamp)  # after the batch is committed on the server
         changed = prev_sha is None or prev_sha[1] != sha
-        client.insert_snapshot(conn, lab.bench_id, stamp, status, profile_text if changed else None, sha)
+        received = client.insert_snapshot(conn, lab.bench_id, stamp, status, profile_text if changed else None, sha)
     if changed:
         journal.set_mark(bench, "", _PROFILE, 0, sha)
-    return PushResult(sent, already, True, changed, last, lab.bench_id)
+    return PushResult(sent, already, True, changed, last, lab.bench_id, received)
 
 
 @dataclass(frozen=True)
@@ -147,6 +149,20 @@ def lab_view(url: str, today: dt.date) -> LabView:
     return LabView(benches, sorted(orders.values(), key=lambda o: o["by"]), ranked(lab_findings(benches, today)))
 
 
+@dataclass(frozen=True)
+class LabLink:
+    """How a bench's background push stands, for the app and ``watch`` to show."""
+
+    received_at: dt.datetime | None
+    """When the lab last received this bench's record (the server's clock); None: not yet."""
+    error: str | None
+    """Why the last push failed (None: it went through)."""
+    retry_in_s: float
+    """Seconds until the next push."""
+    events_sent: int
+    """Events the lab received from this bench since the app or ``watch`` started."""
+
+
 class Shipper:
     """Pushes a bench's record to its lab in the background while ``watch`` or the app runs: every
     ``interval_s`` when the lab answers, backing off (doubling, up to an hour) when it does not.
@@ -163,6 +179,8 @@ class Shipper:
         self.last_ok: dt.datetime | None = None
         self.last_error: str | None = None
         self.last_result: PushResult | None = None
+        self.last_received: dt.datetime | None = None
+        self.events_sent = 0
         self._thread: Any = None
 
     def due(self, mono: float) -> bool:
@@ -187,7 +205,14 @@ class Shipper:
             self.wait_s = min(self.wait_s * 2.0, self.MAX_BACKOFF_S)
         else:
             self.last_ok, self.last_error, self.wait_s = self.clock(), None, self.interval_s
+            self.events_sent += self.last_result.events_sent
+            if self.last_result.received_at:
+                self.last_received = dt.datetime.fromisoformat(self.last_result.received_at)
         self.next_at = mono + self.wait_s
+
+    def link(self, mono: float) -> LabLink:
+        """How the link stands at monotonic time ``mono``."""
+        return LabLink(self.last_received, self.last_error, max(0.0, self.next_at - mono), self.events_sent)
 
     def join(self, timeout: float = 10.0) -> None:
         if self._thread is not None:

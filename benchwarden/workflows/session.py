@@ -13,6 +13,7 @@ import re
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from benchwarden.core.hold import U_T_DEFAULT
 from benchwarden.errors import InputError, JournalError
@@ -52,6 +53,9 @@ from benchwarden.workflows.watch import (
     Watcher,
     live_draw,
 )
+
+if TYPE_CHECKING:  # the lab's modules load only when a profile has a [lab]
+    from benchwarden.workflows.lab import LabLink, Shipper
 
 
 def now_local() -> dt.datetime:
@@ -99,6 +103,8 @@ class SessionState:
     _life: list[Finding] = field(default_factory=list)
     #: property results kept between refreshes (a premix's flashes are not repeated)
     _memo: Memo = field(default_factory=Memo)
+    #: the background push to the profile's lab (made on the first poll_lab)
+    shipper: Shipper | None = None
 
     # -- profile and plan
 
@@ -413,17 +419,19 @@ class SessionState:
         samples older than the raw window (blocking: call from a worker)."""
         return live_gauges.poll_sources(self)
 
+    def poll_lab(self, mono: float) -> LabLink | None:
+        """Push to the profile's ``[lab]`` in the background when due (returns at once); how the
+        link stands, or None when the profile has no lab."""
+        return live_gauges.poll_lab(self, mono)
 
     def refresh_live(self) -> None:
         """Recompute the plan from the latest samples, run the leak watch of each idle supply
         (storing a hold test once it resolves) and note silent gauges (blocking)."""
         live_gauges.refresh_live(self)
 
-
     def alarms(self, now: dt.datetime, finding_codes: set[str]) -> list[Finding]:
         """The alarms now (the rule is :func:`benchwarden.workflows.findings.alarm_findings`)."""
         return live_gauges.alarms_now(self, now, finding_codes)
-
 
     def new_alarms(self, alarms: list[Finding], now: dt.datetime, describe: Callable[[Finding], str]) -> list[Finding]:
         """Keep the alarms showing; those that are new get a line in the journal (ring for them)."""

@@ -15,9 +15,10 @@ from benchwarden.workflows.findings import Finding, alarm_findings
 from benchwarden.workflows.watch import LeakWatch, leak_watch_recorded
 
 if TYPE_CHECKING:
+    from benchwarden.workflows.lab import LabLink
     from benchwarden.workflows.session import SessionState
 
-__all__ = ["LiveSupply", "poll_sources", "refresh_live", "alarms_now", "live_trace", "COMPACT_EVERY_S",
+__all__ = ["LiveSupply", "poll_sources", "poll_lab", "refresh_live", "alarms_now", "live_trace", "COMPACT_EVERY_S",
            "LEAK_REFRESH_S"]
 
 #: Samples older than the raw window are compressed this often while gauges are read [s].
@@ -50,6 +51,24 @@ def poll_sources(st: SessionState) -> int:
         st._compacted = now
         st.watcher.compact(now)
     return n
+
+
+def poll_lab(st: SessionState, mono: float) -> LabLink | None:
+    """Start a background push to the profile's ``[lab]`` when one is due (returns at once; the
+    :class:`~benchwarden.workflows.lab.Shipper` backs off while the lab is away); how the link
+    stands, or None without a lab."""
+    if st.profile is None or st.profile.lab is None or st.journal is None:
+        return None
+    if st.shipper is None or st.shipper.prof is not st.profile:
+        from benchwarden.workflows.lab import Shipper
+
+        old = st.shipper
+        st.shipper = Shipper(st.profile, st.journal, st.profile_path.read_text(encoding="utf-8"), st.clock)
+        if old is not None:  # a reloaded profile: keep what the old one knew, and its push in flight
+            for k in ("last_received", "events_sent", "last_ok", "last_error", "next_at", "wait_s", "_thread"):
+                setattr(st.shipper, k, getattr(old, k))
+    st.shipper.poll(mono)
+    return st.shipper.link(mono)
 
 
 def refresh_live(st: SessionState) -> None:

@@ -15,7 +15,13 @@ from textual.timer import Timer
 from textual.widgets import DataTable, Header, Static
 
 from benchwarden.errors import BenchwardenError, JournalError
-from benchwarden.render.display import Display, live_text, open_hold_text, profile_display
+from benchwarden.render.display import (
+    Display,
+    lab_link_text,
+    live_text,
+    open_hold_text,
+    profile_display,
+)
 from benchwarden.render.findings import SEVERITY_MARK, describe, question_text
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.render.supply import mass_words, phase_short
@@ -80,6 +86,7 @@ class OverviewScreen(OverviewActions):
             yield DataTable(id="supplies", cursor_type="none", zebra_stripes=True)
             yield DataTable(id="supplies-more", cursor_type="none", zebra_stripes=True)
             yield Static("", id="observed")
+            yield Static("", id="lab-link")
             with Horizontal(id="lower"):
                 with Vertical(id="draws-box"):
                     yield Static("Draws and gaps", classes="heading")
@@ -280,6 +287,7 @@ class OverviewScreen(OverviewActions):
         if st.unsaved:
             status += f"   ✖ {len(st.unsaved)} reading(s) NOT saved to the journal (retrying)"
         self._alerts(now)
+        self._lab_link(now)
         self._set("status", status, lambda v: self.query_one("#status", Static).update(Text(str(v))))
         sup = self.query_one("#supplies", DataTable)
         for s in st.plan.supplies:
@@ -293,6 +301,16 @@ class OverviewScreen(OverviewActions):
             for col, val in (("left", fmt_hours(h)), ("bar", (b, colour)),
                              ("at", Display.short_clock(at, now) if at else "never")):
                 self._set(f"{s.id}/{col}", val, self._cell_setter(sup, s.id, col))
+
+    def _lab_link(self, now: dt.datetime) -> None:
+        """Push to the lab in the background when the profile has one; say when it last received."""
+        import time
+
+        link = self.state.poll_lab(time.monotonic())
+        box = self.query_one("#lab-link", Static)
+        box.display = link is not None
+        if link is not None:
+            self._set("lab-link", lab_link_text(link, now), lambda v: box.update(Text(str(v))))
 
     @staticmethod
     def _cell_setter(table: DataTable[object], row: str, col: str) -> Callable[[object], object]:
