@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import datetime as dt
 
+from textual import events
+
 T0 = dt.datetime(2026, 12, 1, 9, 30, tzinfo=dt.UTC)
 
 
@@ -28,3 +30,16 @@ async def settle(app, pilot, rounds: int = 2) -> None:
 def screen_text(app) -> list[str]:
     """What the terminal shows now, line by line (the composited screen, modals included)."""
     return ["".join(seg.text for seg in strip) for strip in app.screen._compositor.render_strips()]
+
+
+_NAMES = {" ": "space", ",": "comma", ".": "full_stop", "-": "minus", ":": "colon", "/": "slash", "'": "apostrophe"}
+
+
+def burst(app, *keys: str) -> None:
+    """Keys as a terminal delivers a paste or a scanner: all queued at once, no pause between."""
+    for k in keys:
+        for ch in ([k] if k in ("tab", "shift+tab", "enter", "escape") else list(k)):
+            name = _NAMES.get(ch, ch)
+            ev = events.Key(name, ch if len(ch) == 1 else None)
+            ev.set_sender(app)
+            app._driver.send_message(ev)

@@ -9,8 +9,7 @@ import re
 from pathlib import Path
 
 import pytest
-from apptools import T0, Clock, screen_text, settle
-from textual import events
+from apptools import T0, Clock, burst, screen_text, settle
 from textual.widgets import Input, Label
 
 from benchwarden.storage.journal import Journal
@@ -29,19 +28,6 @@ pytestmark = pytest.mark.slow
 ROOT = Path(__file__).resolve().parents[1]
 BENCH = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"
 SIZES = [(80, 24), (120, 34)]
-_NAMES = {" ": "space", ",": "comma", ".": "full_stop", "-": "minus", ":": "colon", "/": "slash", "'": "apostrophe"}
-
-
-def burst(app, *keys: str) -> None:
-    """Keys as a terminal delivers a paste or a scanner: all queued at once, no pause between."""
-    for k in keys:
-        for ch in ([k] if k in ("tab", "shift+tab", "enter", "escape") else list(k)):
-            name = _NAMES.get(ch, ch)
-            ev = events.Key(name, ch if len(ch) == 1 else None)
-            ev.set_sender(app)
-            app._driver.send_message(ev)
-
-
 async def until(app, pilot, condition, what: str, rounds: int = 200) -> None:
     for _ in range(rounds):
         if condition():

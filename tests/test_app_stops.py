@@ -3,7 +3,7 @@ a session starts over it only when a person accepts each STOP with a reason, rec
 
 from pathlib import Path
 
-from apptools import Clock, settle
+from apptools import Clock, burst, settle
 
 from benchwarden.storage.journal import Journal
 from benchwarden.tui.app import make_app
@@ -56,6 +56,21 @@ async def test_a_session_over_a_stop_needs_a_name_and_a_reason_recorded(tmp_path
         assert acc.operator == "R. Okafor" and acc.reason == "door open, portable monitor worn"
         assert acc.code == "room-release" and "oxygen" in acc.text
         assert j.sessions()[-1].operator == "R. Okafor"
+
+
+async def test_a_name_and_reason_typed_while_the_form_opens_land_in_their_fields(tmp_path):
+    # "s", the name, Tab, the reason and Enter in one burst (a fast typist, a paste): nothing lost
+    journal = tmp_path / "j.sqlite"
+    app = make_app(_uncontrolled(tmp_path), journal, clock=Clock())
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(app, pilot)
+        burst(app, "s", "A. Brandt", "tab", "monitor checked", "enter")
+        await settle(app, pilot)
+        await settle(app, pilot)
+        assert app.state.running
+    with Journal(journal) as j:
+        (acc,) = j.accepted_stops(app.state.session_id)
+        assert (acc.operator, acc.reason) == ("A. Brandt", "monitor checked")
 
 
 async def test_escape_does_not_start_a_session_over_a_stop(tmp_path):

@@ -10,12 +10,15 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, Static
 
 from benchwarden.render.findings import SEVERITY_MARK
+from benchwarden.tui.screens.base import TypeAhead
 
 
-class AcceptStopsScreen(ModalScreen[tuple[str, str] | None]):
+class AcceptStopsScreen(TypeAhead, ModalScreen[tuple[str, str] | None]):
     """Lists every STOP that stands; the session starts only when a person gives their name and
-    the reason they accept them (both recorded in the journal). Escape: do not start."""
+    the reason they accept them (both recorded in the journal). Escape: do not start. The name
+    and reason typed right after ``s``, before the form is open, land in their fields."""
 
+    FIRST_FIELD = "#operator"
     BINDINGS = [Binding("escape", "cancel", "Do not start")]
 
     def __init__(self, stops: list[str]) -> None:
@@ -39,9 +42,6 @@ class AcceptStopsScreen(ModalScreen[tuple[str, str] | None]):
             with Horizontal(classes="buttons"):
                 yield Button("Accept and start", variant="error", id="accept")
                 yield Button("Do not start", variant="primary", id="cancel")
-
-    def on_mount(self) -> None:
-        self.query_one("#operator", Input).focus()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         if event.input.id == "operator":
