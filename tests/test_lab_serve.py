@@ -18,6 +18,7 @@ import base64
 import contextlib
 import io
 import os
+import re
 import select
 import shlex
 import shutil
@@ -343,6 +344,11 @@ def test_ctrl_c_stops_the_server_and_the_app_of_an_open_connection(lab):
     async def connect_then_interrupt() -> list[int]:
         base = f"127.0.0.1:{served.port}"
         async with aiohttp.ClientSession() as session:
+            async with session.get(f"http://{base}/") as r:  # the page names no other host
+                page = await r.text()
+            assert r.status == 200 and "benchwarden" in page
+            fetched = re.sub(r'xmlns="[^"]*"', "", page)  # an XML namespace is a name, not a request
+            assert set(re.findall(r"(?:https?|wss?)://([^/\"'?]+)", fetched)) == {base}
             with pytest.raises(aiohttp.WSServerHandshakeError) as refused:  # a page of another site
                 await session.ws_connect(f"ws://{base}/ws", headers={"Origin": "http://elsewhere.example"})
             assert refused.value.status == 403

@@ -6,7 +6,8 @@ with the URL as given (it never holds a password: the caller refuses one) and th
 inherited, so the password comes from PGPASSWORD, ~/.pgpass or a service file. The server has
 no login of its own. A browser's websocket is accepted only from a page of this server (the
 ``Origin`` must name the host the request came to), so another web site open in the same
-browser cannot read the lab through it. SIGINT and SIGTERM stop it: every open page's app is
+browser cannot read the lab through it. The page asks nothing of any other host (the library's
+page links a web font; that link is left out, the terminal falls back to a local monospace font). SIGINT and SIGTERM stop it: every open page's app is
 told to quit and awaited (at most :data:`STOP_WAIT_S`).
 """
 
@@ -19,6 +20,7 @@ import shlex
 import signal
 import sys
 from collections.abc import Callable
+from pathlib import Path
 from typing import Any
 from urllib.parse import urlsplit
 
@@ -50,6 +52,16 @@ class LabServer(Server):
 
     def initialize_logging(self) -> None:
         logging.basicConfig(level=logging.WARNING, format="benchwarden lab serve: %(message)s")
+
+    async def _make_app(self) -> web.Application:
+        import aiohttp_jinja2
+        import jinja2
+
+        app = await super()._make_app()
+        page = (Path(self.templates_path) / "app_index.html").read_text(encoding="utf-8")
+        page = re.sub(r"<link[^>]*//fonts\.googleapis\.com[^>]*>", "", page)
+        aiohttp_jinja2.setup(app, loader=jinja2.DictLoader({"app_index.html": page}))
+        return app
 
     async def on_startup(self, app: web.Application) -> None:
         """Nothing: the one line is printed once the port is listening."""
