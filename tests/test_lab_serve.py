@@ -166,6 +166,27 @@ def test_a_role_with_a_write_grant_or_no_read_grant_is_refused(lab, capsys):
     assert code == 2 and "cannot read lab_events" in err
 
 
+def test_a_port_in_use_is_one_line_and_exit_2(lab):
+    with socket.socket() as busy:
+        busy.bind(("127.0.0.1", 0))
+        busy.listen()
+        port = busy.getsockname()[1]
+        p = subprocess.run([sys.executable, "-m", "benchwarden", "lab", "serve", lab.url("benchwarden_viewer"),
+                            "--port", str(port)], capture_output=True, text=True, timeout=START_S)
+    assert p.returncode == 2 and p.stdout == "" and len(p.stderr.strip().splitlines()) == 1
+    assert f"--port {port}" in p.stderr
+
+
+def test_without_chromium_the_page_test_skips_with_one_line_or_fails_under_ci(monkeypatch):
+    monkeypatch.setenv("BENCHWARDEN_CHROMIUM", "/nonexistent/chromium")
+    monkeypatch.delenv("CI", raising=False)
+    with pytest.raises(pytest.skip.Exception, match="install the Debian package 'chromium'"):
+        chromium_or_skip()
+    monkeypatch.setenv("CI", "true")
+    with pytest.raises(pytest.fail.Exception, match="CI=true"):
+        chromium_or_skip()
+
+
 # ------------------------------------------------------------------------------ the served page
 
 
