@@ -373,6 +373,14 @@ def test_ctrl_c_stops_the_server_and_the_app_of_an_open_connection(lab):
             with pytest.raises(aiohttp.WSServerHandshakeError) as refused:  # a page of another site
                 await session.ws_connect(f"ws://{base}/ws", headers={"Origin": "http://elsewhere.example"})
             assert refused.value.status == 403
+            for path in ("/", "/ws"):  # a site's name re-pointed at 127.0.0.1 (same origin, foreign host)
+                async with session.get(f"http://{base}{path}", headers={
+                        "Host": f"lab.elsewhere.example:{served.port}",
+                        "Origin": f"http://lab.elsewhere.example:{served.port}"}) as r:
+                    assert r.status == 403
+            async with session.get(f"http://{base}/", headers={"X-Forwarded-Host": "lab.example",
+                                                              "X-Forwarded-Proto": "https"}) as r:
+                assert 'data-session-websocket-url="wss://lab.example/ws"' in await r.text()  # behind a proxy
             async with session.ws_connect(f"ws://{base}/ws?width=100&height=30",
                                           headers={"Origin": f"http://{base}"}) as ws:
                 got = b""

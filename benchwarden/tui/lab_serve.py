@@ -6,7 +6,9 @@ with the URL as given (it never holds a password: the caller refuses one) and th
 inherited, so the password comes from PGPASSWORD, ~/.pgpass or a service file. The server has
 no login of its own. A browser's websocket is accepted only from a page of this server (the
 ``Origin`` must name the host the request came to), so another web site open in the same
-browser cannot read the lab through it. The page asks nothing of any other host (the library's
+browser cannot read the lab through it, and on a loopback address a request must name a loopback
+host unless a reverse proxy forwards ``X-Forwarded-Host`` (a site whose name was re-pointed at
+127.0.0.1 gets nothing). The page asks nothing of any other host (the library's
 page links a web font; that link is left out, the terminal falls back to a local monospace font). SIGINT and SIGTERM stop it: every open page's app is
 told to quit and awaited (at most :data:`STOP_WAIT_S`).
 """
@@ -14,6 +16,7 @@ told to quit and awaited (at most :data:`STOP_WAIT_S`).
 from __future__ import annotations
 
 import asyncio
+import ipaddress
 import logging
 import re
 import shlex
@@ -34,6 +37,18 @@ TITLE = "benchwarden — lab"
 #: How long a stop waits for the open pages' apps to quit [s].
 STOP_WAIT_S = 10.0
 _HOST = re.compile(r"[A-Za-z0-9.\-]+(:[0-9]{1,5})?|\[[0-9A-Fa-f:.]+\](:[0-9]{1,5})?")
+
+
+def _loopback(host: str) -> bool:
+    """Whether a host name or address is this machine's loopback.
+
+    >>> [_loopback(h) for h in ("127.0.0.1", "localhost", "::1", "0.0.0.0", "lab.example")]
+    [True, True, True, False, False]
+    """
+    try:
+        return ipaddress.ip_address(host.strip("[]")).is_loopback
+    except ValueError:
+        return host.lower() == "localhost"
 
 
 def lab_open_command(url: str) -> str:
@@ -77,12 +92,22 @@ class LabServer(Server):
         host = request.headers.get("X-Forwarded-Host", request.host)
         return host if _HOST.fullmatch(host) else f"{self.host}:{self.port}"
 
+    def _check_host(self, request: web.Request) -> None:
+        """On a loopback address, a request must name a loopback host (or come through a proxy that
+        says ``X-Forwarded-Host``): a web site whose name was re-pointed at 127.0.0.1 is refused."""
+        if "X-Forwarded-Host" in request.headers or not _loopback(self.host):
+            return
+        if not _loopback(urlsplit("//" + request.host).hostname or ""):
+            raise web.HTTPForbidden(text="this lab view answers only to a loopback host name")
+
     async def handle_index(self, request: web.Request) -> Any:
+        self._check_host(request)
         proto = request.headers.get("X-Forwarded-Proto", request.scheme)
         self.public_url = f"{proto if proto in ('http', 'https') else 'http'}://{self._host_of(request)}"
         return await super().handle_index(request)  # no await before the page is built from it
 
     async def handle_websocket(self, request: web.Request) -> web.WebSocketResponse:
+        self._check_host(request)
         origin = request.headers.get("Origin")
         if origin is not None and urlsplit(origin).netloc != self._host_of(request):
             raise web.HTTPForbidden(text="a page of another site may not open the lab view")
