@@ -1,4 +1,5 @@
-"""The lab: ``lab init``, ``lab push``, ``lab status`` (exit 4 when the server cannot be reached)."""
+"""The lab: ``lab init``, ``lab push``, ``lab status``, ``lab open``, ``lab serve`` (exit 4 when the server cannot be
+reached)."""
 
 from __future__ import annotations
 
@@ -19,6 +20,7 @@ from benchwarden.cli.common import (
     exit_for,
     input_error,
     one_line,
+    whole_number,
 )
 from benchwarden.errors import LabError, LabUnreachable
 from benchwarden.render.files import clean
@@ -28,11 +30,13 @@ from benchwarden.workflows import computations as comp
 
 #: Exit status when the lab database cannot be reached.
 EXIT_UNREACHABLE = 4
+#: Where ``lab serve`` listens unless told otherwise (loopback only).
+SERVE_HOST, SERVE_PORT = "127.0.0.1", 8760
 
 
 def configure(sub: Any, name: str) -> None:
     p = sub.add_parser("lab", help="the lab database: init, push a bench's record, status of all benches")
-    acts = p.add_subparsers(dest="action", metavar="init|push|status|open", required=True)
+    acts = p.add_subparsers(dest="action", metavar="init|push|status|open|serve", required=True)
     a = acts.add_parser("init", help="create or migrate the lab schema and its roles (idempotent)")
     a.add_argument("url", help="PostgreSQL URL of the lab database, as its owner (no password: PGPASSWORD, ~/.pgpass)")
     a.add_argument("--bench", action="append", default=[], metavar="BENCH_ID",
@@ -52,6 +56,13 @@ def configure(sub: Any, name: str) -> None:
     o = acts.add_parser("open", help="the lab screen: every bench, read-only (in this terminal)")
     o.add_argument("url", help="PostgreSQL URL of the lab database (the viewer role is enough)")
     o.set_defaults(func=cmd_open)
+    w = acts.add_parser("serve", help="the lab screen as a web page, read-only, with the viewer role (no login of its "
+                                      "own: put a login-protected reverse proxy in front before exposing it)")
+    w.add_argument("url", help="PostgreSQL URL of the lab database as a read-only role such as benchwarden_viewer "
+                               "(no password: PGPASSWORD, ~/.pgpass)")
+    w.add_argument("--host", default=SERVE_HOST, help=f"address to listen on (default {SERVE_HOST}, this machine only)")
+    w.add_argument("--port", type=whole_number, default=SERVE_PORT, help=f"TCP port (default {SERVE_PORT})")
+    w.set_defaults(func=cmd_serve)
 
 
 def _unreachable(exc: LabUnreachable) -> int:
@@ -142,4 +153,31 @@ def cmd_open(args: argparse.Namespace) -> int:
     return 0
 
 
-__all__ = ["configure", "EXIT_UNREACHABLE", "EXIT_INPUT"]
+def cmd_serve(args: argparse.Namespace) -> int:
+    from benchwarden.workflows.lab_serve import check_viewer
+
+    if not (1 <= args.port <= 65535):
+        raise input_error(f"--port {args.port}: a TCP port between 1 and 65535")
+    try:
+        role = check_viewer(args.url)
+    except LabUnreachable as exc:
+        return _unreachable(exc)
+    except LabError as exc:
+        raise input_error(str(exc)) from None
+    from benchwarden.tui.lab_serve import LabServer
+
+    where = f"[{args.host}]" if ":" in args.host else args.host
+
+    def announce() -> None:
+        print(f"lab view of {clean(args.url)} (role {clean(role)}) at http://{where}:{args.port}/ — it has no login of "
+              "its own: anyone who can reach that address sees the lab; Ctrl-C stops it", flush=True)
+
+    try:
+        LabServer(args.url, args.host, args.port, announce).serve()
+    except OSError as exc:
+        why = exc.strerror or str(exc) or "the address is in use or not allowed"
+        raise input_error(f"cannot serve on --host {args.host} --port {args.port}: {why}") from None
+    return 0
+
+
+__all__ = ["configure", "EXIT_UNREACHABLE", "EXIT_INPUT", "SERVE_HOST", "SERVE_PORT"]

@@ -56,7 +56,7 @@ class LabApp(App[int]):
 
     def on_mount(self) -> None:
         t = self.query_one("#lab-supplies", DataTable)
-        for label, width in (("Bench", 10), ("Supply", 8), ("Gas", 10), ("Pressure", 12), ("To reserve", 10),
+        for label, width in (("Bench", 10), ("Supply", 8), ("Gas", 10), ("Pressure", 12), ("To reserve", 12),
                              ("Order by", 10), ("Leak", 12), ("Snapshot", 12)):
             t.add_column(label, width=width)
         self.load()
