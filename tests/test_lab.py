@@ -303,3 +303,20 @@ async def test_the_app_pushes_in_the_background_and_says_when_the_lab_last_recei
         finally:
             lab.restart()
     assert _count(lab, "SELECT count(*) FROM lab_snapshots WHERE bench_id = 'bench-9'") >= 1
+
+
+def test_a_bench_with_one_reading_pushes_its_endless_figures_as_null(lab, tmp_path, capsys):
+    # one reading: no observed draw, so days of gas and the like are endless (inf); JSON (RFC 8259)
+    # and PostgreSQL's jsonb have no infinity, so the snapshot says null instead of failing
+    prof = tmp_path / "one.toml"
+    prof.write_text(DEMO.replace('name = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"', 'name = "One reading"')
+                    + f'\n[lab]\nurl = "{lab.url("bw_bench_bench_2")}"\nbench_id = "bench-2"\n')
+    journal = str(tmp_path / "one.sqlite")
+    _quiet("--journal", journal, "reading", str(prof), "n2-A", "--pressure", "150 bar", "--at", "2026-11-27T18:00")
+    code, out, err = run(capsys, "--journal", journal, "lab", "push", str(prof), "--json")
+    assert code == 0, err
+    assert json.loads(out)["snapshot_sent"] is True
+    with psycopg.connect(lab.url()) as conn:
+        (doc,) = conn.execute("SELECT status::text FROM lab_snapshots WHERE status->>'bench' = 'One reading'"
+                              " ORDER BY id DESC LIMIT 1").fetchone()
+    assert "Infinity" not in doc and "NaN" not in doc

@@ -50,6 +50,28 @@ def connect(url: str) -> Iterator[Any]:
         conn.close()
 
 
+def _finite(obj: Any) -> Any:
+    """The document with every non-finite number (an endless time, NaN) as null: PostgreSQL's
+    jsonb, like JSON itself, has no infinity.
+
+    >>> _finite({"days_of_gas": float("inf"), "x": [1.5, float("nan")], "n": 3})
+    {'days_of_gas': None, 'x': [1.5, None], 'n': 3}
+    """
+    import math
+
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if isinstance(obj, dict):
+        return {k: _finite(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_finite(v) for v in obj]
+    return obj
+
+
+def _dumps(obj: Any) -> str:
+    return json.dumps(_finite(obj), allow_nan=False)
+
+
 def insert_events(conn: Any, bench_id: str, events: Sequence[Event]) -> int:
     """Insert a batch of events in one transaction; returns how many were new to the server."""
     if not events:
@@ -58,7 +80,7 @@ def insert_events(conn: Any, bench_id: str, events: Sequence[Event]) -> int:
         cur = conn.cursor()
         cur.executemany("INSERT INTO lab_events(event_id, bench_id, seq, kind, bench_at, recorded_at, payload)"
                         " VALUES (%s, %s, %s, %s, %s, %s, %s) ON CONFLICT (event_id) DO NOTHING",
-                        [(e.event_id, bench_id, e.seq, e.kind, e.at, e.recorded_at, json.dumps(e.payload))
+                        [(e.event_id, bench_id, e.seq, e.kind, e.at, e.recorded_at, _dumps(e.payload))
                          for e in events])
         return max(0, int(cur.rowcount))  # psycopg 3: the rows the whole batch inserted
 
@@ -69,7 +91,7 @@ def insert_snapshot(conn: Any, bench_id: str, taken_at: str, status: dict[str, A
     with conn.transaction():
         row = conn.execute("INSERT INTO lab_snapshots(bench_id, taken_at, status, profile_text, profile_sha256)"
                            " VALUES (%s, %s, %s, %s, %s) RETURNING received_at",
-                           (bench_id, taken_at, json.dumps(status), profile_text, profile_sha256)).fetchone()
+                           (bench_id, taken_at, _dumps(status), profile_text, profile_sha256)).fetchone()
     return str(row[0].isoformat())
 
 
