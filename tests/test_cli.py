@@ -81,7 +81,7 @@ def test_runtime_json(capsys):
         (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "nan bar", "--temperature", "15 degC"],
          "finite"),
         (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "-250 degC"],
-         "outside the equation of state"),
+         "out of range: at least -210.0 °C"),  # the equation of state of nitrogen, from 63.15 K
         (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "15 degC",
           "--reference", "25C"], "unknown reference"),
         (["runtime", "--gas", "n2", "--volume", "50 L", "--pressure", "5 bar", "--temperature", "15 degC",

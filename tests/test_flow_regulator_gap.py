@@ -68,7 +68,7 @@ def test_per_shot_flow():
 
 
 def test_orifice_bad_input():
-    with pytest.raises(InputError, match="not below upstream"):
+    with pytest.raises(InputError, match="below the upstream pressure"):
         flow.orifice_flow(N2, 0.2e-3, 1e5, 2e5, 293.15)
     with pytest.raises(InputError, match="above 0"):
         flow.orifice_flow(N2, 0.0, 2e5, 1e5, 293.15)

@@ -162,7 +162,7 @@ def test_hold_cli_json_and_errors(capsys, tmp_path):
     for argv, frag in [
         (["--duration", "-2 h"], "from 1 min to a year"),
         (["--duration", "0 h"], "from 1 min to a year"),
-        (["--start", "300 bar"], "above the gauge range"),
+        (["--start", "300 bar"], "at most the gauge range"),
         (["--volume", "0 L"], "from 1 mL to 5 m³"),
     ]:
         base = {"--gas": "n2", "--volume": "50 L", "--start": "152 bar", "--end": "150 bar", "--duration": "14 h",

@@ -70,7 +70,7 @@ def test_contents_by_weight():
     assert c.mass_kg == pytest.approx(10.0)
     # ideal free volume of 10 kg SF6 at 15 °C, 1 atm: n·R·T/p
     assert c.ideal_free_volume_m3 == pytest.approx(10.0 / 0.1460554 * g.R * 288.15 / ATM_PA)
-    with pytest.raises(InputError, match="below the tare"):
+    with pytest.raises(InputError, match="at least the tare weight"):
         supply.contents_by_weight(g.parse_gas("sf6"), 40.0, 50.0, volume_m3=0.01)
     with pytest.raises(InputError, match="water volume"):
         supply.contents_by_weight(g.parse_gas("sf6"), 60.0, 50.0)

@@ -13,7 +13,7 @@ import importlib
 import sys
 from collections.abc import Sequence
 
-from benchwarden.cli.common import EXIT_INPUT, Parser, one_line
+from benchwarden.cli.common import EXIT_INPUT, Parser, error_text, one_line
 
 #: name → (module under benchwarden.cli, one-line help)
 COMMANDS: dict[str, tuple[str, str]] = {
@@ -107,7 +107,7 @@ def main(argv: Sequence[str] | None = None) -> int:
             return _run_app(args, None)
         return int(args.func(args))
     except BenchwardenError as exc:
-        sys.stderr.write(one_line(f"benchwarden: error: {exc}") + "\n")
+        sys.stderr.write(one_line(f"benchwarden: error: {error_text(exc, args)}") + "\n")
         return EXIT_INPUT
     except KeyboardInterrupt:
         return 130

@@ -161,14 +161,34 @@ def gas(args: argparse.Namespace) -> Gas:
     return parse_gas(args.gas)
 
 
+#: The display the running command chose (its errors are worded in it); set by :func:`display`.
+_SHOWN: dict[str, Display] = {}
+
+
 def display(args: argparse.Namespace, ambient_pa: float, profile: Any = None) -> Display:
     """The display of this command: ``--pressure-unit``, else the profile's, else bar."""
     from benchwarden.render.display import display_for, profile_display
 
     unit = getattr(args, "pressure_unit", None)
-    if profile is not None:
-        return profile_display(profile, unit)
-    return display_for(unit, ambient_pa)
+    shown = profile_display(profile, unit) if profile is not None else display_for(unit, ambient_pa)
+    _SHOWN["display"] = shown
+    return shown
+
+
+def error_text(exc: BaseException, args: argparse.Namespace | None = None) -> str:
+    """An error for the person, worded by the renderer (``render.errors.error_line``) in the display
+    the command chose, else in ``--pressure-unit`` (when it is one), else in bar."""
+    from benchwarden.errors import InputError
+    from benchwarden.render.display import display_for
+    from benchwarden.render.errors import error_line
+
+    d = _SHOWN.get("display")
+    if d is None:
+        try:
+            d = display_for(getattr(args, "pressure_unit", None))
+        except InputError:
+            d = None
+    return error_line(exc, d)
 
 
 def computation(args: argparse.Namespace) -> tuple[Gas, float, Display]:

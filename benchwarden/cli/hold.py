@@ -37,7 +37,6 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
-from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import conflict, in_range, within
 from benchwarden.workflows import computations as comp
 from benchwarden.workflows import holds
@@ -134,8 +133,7 @@ def _reserve(args: argparse.Namespace, amb: float) -> float | None:
     start = pressure_abs(args.start, amb, "start pressure") if args.start and not args.log else None
     hi = start - amb if start is not None else 2e8
     within(reserve - amb, "reserve", 0.0, hi, "Pa(g)", text=args.reserve, hi_open=start is not None,
-           words=f"from 0 bar(g) to below the start pressure {args.start}" if start is not None
-           else f"from 0 to {2e8 / BAR_PA:g} bar(g)")
+           hi_name="the start pressure" if start is not None else "")
     return reserve
 
 

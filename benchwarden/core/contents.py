@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from benchwarden.core import gas as g
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.units import REFERENCES, Reference, check_positive, check_range
 from benchwarden.units.constants import T_FULL_K
 
@@ -338,10 +338,11 @@ def contents_by_weight(
     for v, what in ((gross_kg, "gross weight"), (tare_kg, "tare weight")):
         check_positive(v, what, "kg")
     if gross_kg < tare_kg:
-        raise InputError(f"gross weight {gross_kg:g} kg is below the tare weight {tare_kg:g} kg")
+        raise RangeError(what="gross weight", value=gross_kg, lo=tare_kg, unit="kg", lo_name="the tare weight")
     mass = gross_kg - tare_kg
     if mass <= 0:
-        raise InputError(f"gross weight {gross_kg:g} kg equals the tare weight: the cylinder is empty")
+        raise RangeError(what="gross weight", value=gross_kg, lo=tare_kg, lo_open=True, unit="kg",
+                         lo_name="the tare weight", why="at the tare weight the cylinder is empty")
     if volume_m3 is None:
         raise InputError("contents by weight need the cylinder's water volume: without it the state "
                          "(two-phase, liquid-full, supercritical) and the pressure are unknown")

@@ -25,8 +25,7 @@ from benchwarden.core.gas import (
     state_at,
     triple_point,
 )
-from benchwarden.errors import PropertyError
-from benchwarden.units import fmt_pressure, fmt_temperature
+from benchwarden.errors import KELVIN, PA_ABS, PropertyError
 
 __all__ = ["Flash", "FlashPH", "flash_ph", "isentrope", "isentrope_state", "solve_increasing"]
 
@@ -106,7 +105,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
     hi = min(tmax, T_guess)
     while f(hi) < 0:
         if hi >= tmax:
-            raise PropertyError(f"no state of {gas.name} at {fmt_pressure(p, kind='absolute')} up to {fmt_temperature(tmax)}")
+            raise PropertyError(f"no state of {gas.name} at {{0}} up to {{1}}", quantities=((p, PA_ABS), (tmax, KELVIN)))
         hi = min(tmax, hi + 20.0)
     lo: float | None = None
     T, last_ok = hi, hi
@@ -122,7 +121,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
     T_gas = solve_increasing(f, lo, last_ok, tol) if lo is not None else math.nan
     if not verify:
         if lo is None:
-            raise PropertyError(f"no gas state of {gas.name} at {fmt_pressure(p, kind='absolute')}")
+            raise PropertyError(f"no gas state of {gas.name} at {{0}}", quantities=((p, PA_ABS),))
         return T_gas
 
     def equilibrium(T: float) -> tuple[bool, float]:
@@ -153,7 +152,8 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
             raise PropertyError("no bracket")
         return solve_increasing(lambda T: equilibrium(T)[1] - target, T_low, T_dew, tol)
     except PropertyError:
-        raise PropertyError(f"the phase equilibrium of {gas.name} cannot be solved at {fmt_pressure(p, kind='absolute')}") from None
+        raise PropertyError(f"the phase equilibrium of {gas.name} cannot be solved at {{0}}",
+                            quantities=((p, PA_ABS),)) from None
 
 
 def _from_state(gas: Gas, AS: Any) -> Flash:
@@ -204,8 +204,8 @@ def _pure(gas: Gas, pair: str, prop: str, target: float, p: float) -> Flash:
         return _pure_fallback(gas, prop, target, p)
     except PropertyError:
         what = "h" if prop == "hmass" else "s"
-        raise PropertyError(f"the equation of state of {gas.name} has no state at {fmt_pressure(p, kind='absolute')} "
-                            f"with {what} = {target / 1e3:.6g} kJ/kg{'·K' if what == 's' else ''}") from None
+        raise PropertyError(f"the equation of state of {gas.name} has no state at {{0}} with {what} = {{1}}",
+                            quantities=((p, PA_ABS), (target, "J/kg" if what == "h" else "J/(kg·K)"))) from None
 
 
 def flash_ph(gas: Gas, h: float, p: float, T_guess: float) -> Flash:

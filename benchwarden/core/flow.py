@@ -13,8 +13,8 @@ from typing import Any
 
 from benchwarden.core import gas as g
 from benchwarden.core.flash import Flash, isentrope, isentrope_state
-from benchwarden.errors import InputError
-from benchwarden.units import ATM_PA, T0_K, check_positive, check_range, fmt_pressure
+from benchwarden.errors import PA_ABS, InputError, RangeError
+from benchwarden.units import ATM_PA, T0_K, check_positive, check_range
 
 heat_capacity_ratio = g.heat_capacity_ratio
 
@@ -202,6 +202,13 @@ def _cylinder_phase(gas: g.Gas, kind: str, p: float) -> str:
     return "gas" if kind == "supercritical" and p < g.critical_pressure(gas) else kind
 
 
+def _below_upstream(p_down: float, p_up: float) -> None:
+    """Refuse a downstream pressure [Pa] not below the upstream one [Pa] (no flow), with its data."""
+    if p_down >= p_up:
+        raise RangeError(what="downstream pressure", value=p_down, hi=p_up, hi_open=True, unit=PA_ABS,
+                         hi_name="the upstream pressure", why="no flow otherwise")
+
+
 def orifice_flow(
     gas: g.Gas, diameter_m: float, p_up: float, p_down: float, T: float, cd: float = 0.62,
 ) -> OrificeFlow:
@@ -244,10 +251,7 @@ def orifice_flow(
     check_range(diameter_m, "orifice diameter", 0.0, 0.05, "m", "a bleed orifice or needle-valve bore")
     if not 0 < cd <= 1:
         raise InputError(f"discharge coefficient {cd:g} must be > 0 and ≤ 1")
-    if p_down >= p_up:
-        raise InputError(
-            f"downstream pressure {fmt_pressure(p_down, kind='absolute')} is not below upstream {fmt_pressure(p_up, kind='absolute')}: no flow"
-        )
+    _below_upstream(p_down, p_up)
     inlet = g.pt_state(gas, T, p_up)
     inlet_phase = _cylinder_phase(gas, inlet.phase.kind, p_up)
     A = math.pi * diameter_m**2 / 4.0
@@ -308,10 +312,7 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
     from fluids.control_valve import size_control_valve_g
 
     check_positive(kv, "valve Kv", "m³/h")
-    if p_down >= p_up:
-        raise InputError(
-            f"downstream pressure {fmt_pressure(p_down, kind='absolute')} is not below upstream {fmt_pressure(p_up, kind='absolute')}: no flow"
-        )
+    _below_upstream(p_down, p_up)
     Z = g.z_factor(gas, T, p_up)
     k = heat_capacity_ratio(gas, T, p_up)
     MW = gas.molar_mass * 1000.0
@@ -360,5 +361,5 @@ def per_shot_mass_flow(gas: g.Gas, volume_m3: float, p_abs: float, T: float, rat
     """
     check_positive(volume_m3, "volume per shot", "m³")
     if not math.isfinite(rate_hz) or rate_hz < 0:
-        raise InputError(f"repetition rate {rate_hz!r} Hz must be zero or more")
+        raise RangeError(what="repetition rate", value=rate_hz, lo=0.0, unit="Hz")
     return g.density(gas, T, p_abs) * volume_m3 * rate_hz

@@ -35,6 +35,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from benchwarden.core import gas as g
+from benchwarden.errors import PA_ABS
 from benchwarden.units import check_positive, check_range
 from benchwarden.units.constants import BAR_PA, TORR_PA
 
@@ -337,7 +338,7 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     (36.6, 'empirical uniform-field formula for air (Kuffel')
     """
     check_range(spacing_m, "gap spacing", 0.0, 0.5, "m", "a spark gap")
-    check_positive(p_abs, "gap pressure (absolute)", "Pa")
+    check_positive(p_abs, "gap pressure (absolute)", PA_ABS)
     g.check_state(gas, T, p_abs)
     pd_bar_cm = p_abs / BAR_PA * spacing_m * 100.0 * T_REF / T
     kv = float(breakdown_series(gas, spacing_m, p_abs, T))

@@ -11,8 +11,7 @@ import math
 import re
 from dataclasses import dataclass, field
 
-from benchwarden.errors import InputError
-from benchwarden.units import fmt_pressure, fmt_temperature
+from benchwarden.errors import KELVIN, PA_ABS, InputError, RangeError
 from benchwarden.units.constants import T0_K
 
 #: Molar mass of dry air, [kg/mol] (Lemmon et al. 2000, J. Phys. Chem. Ref. Data 29, 331).
@@ -258,7 +257,8 @@ def sublimation_pressure(gas: Gas, T: float) -> float:
         raise InputError(f"no sublimation line is known here for {gas.name}")
     Tt, pt, terms = _SUBLIMATION[gas.components[0][0].key]
     if not 0 < T <= Tt:
-        raise InputError(f"temperature {fmt_temperature(T)} is not below the triple point of {gas.name}")
+        raise RangeError(what="temperature", value=T, lo=0.0, lo_open=True, hi=Tt, unit=KELVIN,
+                         hi_name=f"the triple point of {gas.name}")
     x = 1.0 - T / Tt
     return pt * math.exp(Tt / T * sum(a * x**e for a, e in terms))
 
@@ -274,7 +274,8 @@ def sublimation_temperature(gas: Gas, p: float) -> float:
     if not has_sublimation_line(gas):
         raise InputError(f"no sublimation line is known here for {gas.name}")
     if not 0 < p <= pt:
-        raise InputError(f"pressure {fmt_pressure(p, kind='absolute')} is not below the triple-point pressure of {gas.name}")
+        raise RangeError(what="pressure", value=p, lo=0.0, lo_open=True, hi=pt, unit=PA_ABS,
+                         hi_name=f"the triple-point pressure of {gas.name}")
     lo, hi = 100.0, Tt
     for _ in range(80):
         mid = 0.5 * (lo + hi)

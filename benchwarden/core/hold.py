@@ -45,15 +45,13 @@ from benchwarden.core.uncertainty import (  # noqa: F401 - re-exported: hold tes
     mass_sensitivities,
     verdict_of,
 )
-from benchwarden.errors import InputError
+from benchwarden.errors import PA_GAUGE, InputError, RangeError
 from benchwarden.units import (
     Flow,
     check_positive,
     check_range,
-    fmt_pressure,
-    fmt_temperature,
 )
-from benchwarden.units.constants import ATM_PA, BAR_PA, SCCM_PER_M3_S, SECONDS_PER_DAY, T0_K
+from benchwarden.units.constants import ATM_PA, SCCM_PER_M3_S, SECONDS_PER_DAY, T0_K
 
 #: Largest held volume of a hold test [m³].
 MAX_HELD_M3 = 100.0
@@ -212,17 +210,17 @@ def hold_two_readings(
     if target_sccm is not None:
         check_range(target_sccm, "target leak rate", 0.0, 1e9, "sccm")
     if not math.isfinite(duration_s) or duration_s <= 0:
-        raise InputError(f"hold duration {duration_s!r} s must be greater than zero")
+        raise RangeError(what="hold duration", value=duration_s, lo=0.0, lo_open=True, unit="s")
     for p, what in ((p_start, "start pressure"), (p_end, "end pressure")):
         if gauge is not None and p - ambient_pa > gauge.span_pa * 1.0001:
-            raise InputError(f"{what} {fmt_pressure(p, ambient_pa)} is above the gauge range "
-                             f"{gauge.span_pa / BAR_PA:.4g} bar")
+            raise RangeError(what=what, value=p - ambient_pa, hi=gauge.span_pa, unit=PA_GAUGE,
+                             hi_name="the gauge range")
     notes: list[str] = []
     temps_given = T_start is not None and T_end is not None
     if not temps_given:
         T = T_start or T_end or 293.15
         T_start = T_end = T
-        notes.append(f"no temperatures given: assumed unchanged at {fmt_temperature(T)}; a 1 K change at "
+        notes.append(f"no temperatures given: assumed unchanged at {T - T0_K:.1f} °C; a 1 K change at "
                      "high pressure moves the gauge as much as a real leak — give --t-start and --t-end")
     assert T_start is not None and T_end is not None
     m1, dm1p, dm1T = mass_sensitivities(gas, volume_m3, T_start, p_start)
@@ -289,7 +287,8 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
         raise InputError("a log fit needs at least three readings")
     if gauge is not None and float(np.max(p)) - ambient_pa > gauge.span_pa * 1.0001:
         i = int(np.argmax(p))
-        raise InputError(f"log row {i + 2}: pressure {fmt_pressure(p[i], ambient_pa)} is above the gauge range")
+        raise RangeError(what="pressure", value=float(p[i]) - ambient_pa, hi=gauge.span_pa, unit=PA_GAUGE,
+                         hi_name="the gauge range", where=f"log row {i + 2}")
     T = np.asarray(log.T_k) if log.T_k is not None else np.full(n, T_default)
     table = DensityTable(gas, float(p.min()) * 0.999, float(p.max()) * 1.001, float(T.min()), float(T.max()) + 1e-6)
     m = table.density(p, T) * volume_m3
@@ -299,7 +298,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
     if log.T_k is None:
-        notes.append(f"no temperature column: assumed constant {fmt_temperature(T_default)}")
+        notes.append(f"no temperature column: assumed constant {T_default - T0_K:.1f} °C")
     u_T_eff = u_T if log.T_k is not None else max(u_T, U_T_UNMEASURED)
     mf = fit_mass_loss(gas, volume_m3, t, p, T, m, u_p, u_T_eff)
     tc = t - mf.t_mean_s

@@ -19,8 +19,7 @@ from typing import Any
 
 from benchwarden.core import eos
 from benchwarden.core.gases import Gas, R, parse_gas  # noqa: F401 - parse_gas: the doctests use it
-from benchwarden.errors import InputError, PropertyError
-from benchwarden.units import fmt_pressure, fmt_temperature
+from benchwarden.errors import KELVIN, PA_ABS, InputError, PropertyError, RangeError
 
 __all__ = ["coolprop", "state", "estimated_pairs", "SUPERANCILLARY_SWITCH", "limits",
            "melting_temperature", "check_state", "state_at", "Phase", "phase_of", "phase",
@@ -97,26 +96,22 @@ def check_state(gas: Gas, T: float, p: float | None = None) -> None:
     fluid's reference equation of state.
     """
     if not isinstance(T, (int, float)) or not math.isfinite(T) or T <= 0:
-        raise InputError(f"temperature {T!r} K is not a positive finite number")
+        raise RangeError(what="temperature", value=T, lo=0.0, lo_open=True, unit=KELVIN, why="a finite temperature")
     tmin, tmax, pmax = limits(gas)
     if not tmin <= T <= tmax:
-        raise InputError(
-            f"temperature {fmt_temperature(T)} is outside the equation of state for {gas.name} "
-            f"({fmt_temperature(tmin)} to {fmt_temperature(tmax)})"
-        )
+        raise RangeError(what="temperature", value=T, lo=tmin, hi=tmax, unit=KELVIN,
+                         why=f"the equation of state for {gas.name}")
     if p is None:
         return
     if not isinstance(p, (int, float)) or not math.isfinite(p) or p <= 0:
-        raise InputError(f"absolute pressure {p!r} Pa must be greater than zero")
+        raise RangeError(what="absolute pressure", value=p, lo=0.0, lo_open=True, unit=PA_ABS)
     if p > pmax:
-        raise InputError(f"pressure {fmt_pressure(p, kind='absolute')} is beyond the equation of state for {gas.name} "
-                         f"(up to {fmt_pressure(pmax, kind='absolute')})")
+        raise RangeError(what="pressure", value=p, hi=pmax, unit=PA_ABS, why=f"the equation of state for {gas.name}")
     Tm = melting_temperature(gas, p)
     if Tm is not None and T < Tm:
-        raise InputError(
-            f"{gas.name} is solid at {fmt_temperature(T)} and {fmt_pressure(p, kind='absolute')} (it melts at "
-            f"{fmt_temperature(Tm)} at that pressure): no gas state there"
-        )
+        raise RangeError(what="temperature", value=T, lo=Tm, unit=KELVIN, lo_name="the melting point",
+                         where=f"{gas.name} at {{0}}", why="solid below it: no gas state there",
+                         quantities=((p, PA_ABS),))
 
 
 def state_at(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None) -> Any:
@@ -138,12 +133,12 @@ def state_at(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None
     """
     AS = eos.update(gas, pair, a, b, imposed)
     if AS is None:
-        what = {"PT_INPUTS": f"{fmt_pressure(a, kind='absolute')}, {fmt_temperature(b)}",
-                "DmassT_INPUTS": f"{a:.6g} kg/m³, {fmt_temperature(b)}",
-                "HmassP_INPUTS": f"h = {a / 1e3:.6g} kJ/kg, {fmt_pressure(b, kind='absolute')}",
-                "PSmass_INPUTS": f"{fmt_pressure(a, kind='absolute')}, s = {b / 1e3:.6g} kJ/(kg·K)",
-                "QT_INPUTS": f"saturation at {fmt_temperature(b)}"}.get(pair, "")
-        raise PropertyError(f"the equation of state of {gas.name} has no solution at {what}")
+        what, figures = {"PT_INPUTS": ("{0}, {1}", ((a, PA_ABS), (b, KELVIN))),
+                         "DmassT_INPUTS": ("{0}, {1}", ((a, "kg/m³"), (b, KELVIN))),
+                         "HmassP_INPUTS": ("h = {0}, {1}", ((a, "J/kg"), (b, PA_ABS))),
+                         "PSmass_INPUTS": ("{0}, s = {1}", ((a, PA_ABS), (b, "J/(kg·K)"))),
+                         "QT_INPUTS": ("saturation at {0}", ((b, KELVIN),))}.get(pair, ("", ()))
+        raise PropertyError(f"the equation of state of {gas.name} has no solution at {what}", quantities=figures)
     return AS
 
 
@@ -299,7 +294,7 @@ def pressure_from_density(gas: Gas, rho: float, T: float) -> float:
     """
     check_state(gas, T)
     if not math.isfinite(rho) or rho <= 0:
-        raise InputError(f"density {rho!r} kg/m³ must be greater than zero")
+        raise RangeError(what="density", value=rho, lo=0.0, lo_open=True, unit="kg/m³")
     return float(state_at(gas, "DmassT_INPUTS", rho, T).p())
 
 
@@ -436,5 +431,5 @@ def _vapour_state(gas: Gas, T: float, p: float) -> Any:
         raise InputError("the vapour branch below the triple point is for pure gases")
     AS = eos.update(gas, "PT_INPUTS", p, T, imposed="gas")
     if AS is None:
-        raise PropertyError(f"no vapour state of {gas.name} at {fmt_temperature(T)}, {fmt_pressure(p, kind='absolute')}")
+        raise PropertyError(f"no vapour state of {gas.name} at {{0}}, {{1}}", quantities=((T, KELVIN), (p, PA_ABS)))
     return AS

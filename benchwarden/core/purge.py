@@ -22,7 +22,7 @@ import math
 from dataclasses import dataclass
 
 from benchwarden.core import gas as g
-from benchwarden.errors import InputError
+from benchwarden.errors import PA_ABS, InputError, RangeError
 from benchwarden.units import ATM_PA, T0_K, check_range
 
 __all__ = ["CyclePurge", "cycle_purge", "Flush", "flush", "O2_IN_AIR"]
@@ -56,7 +56,8 @@ def cycle_purge(gas: g.Gas, volume_m3: float, p_high: float, p_low: float, T: fl
         if not (math.isfinite(x) and 0 <= x <= 1):
             raise InputError(f"{what} {x!r} must be a fraction between 0 and 1")
     if not p_high > p_low > 0:
-        raise InputError(f"the purge pressures must satisfy high > low > 0 (absolute); got {p_high:g} and {p_low:g} Pa")
+        raise RangeError(what="low purge pressure", value=p_low, lo=0.0, lo_open=True, hi=p_high, hi_open=True,
+                         unit=PA_ABS, hi_name="the high pressure")
     if target >= x0:
         raise InputError("the target impurity is not below the starting one: no purge is needed")
     if target <= purity_impurity:

@@ -16,8 +16,8 @@ from typing import Any
 
 from benchwarden.core import gas as g
 from benchwarden.core.flash import flash_ph, solve_increasing
-from benchwarden.errors import InputError, PropertyError
-from benchwarden.units import T0_K, fmt_pressure, fmt_temperature
+from benchwarden.errors import KELVIN, PA_ABS, InputError, PropertyError, RangeError
+from benchwarden.units import T0_K
 
 
 @dataclass(frozen=True)
@@ -106,9 +106,8 @@ def _inlet(gas: g.Gas, p_in: float, T_in: float, saturated_vapour: bool) -> tupl
     p_sat = g.saturation_pressure(gas, T_in)
     if p_in > g.LIQUID_FULL_FACTOR * p_sat:
         raise InputError(
-            f"inlet {fmt_pressure(p_in, kind='absolute')} is far above the vapour pressure of {gas.name} at "
-            f"{fmt_temperature(T_in)} ({fmt_pressure(p_sat, kind='absolute')}): not vapour over liquid — "
-            "liquid-full, warmer than stated, or another gas")
+            f"inlet {{0}} is far above the vapour pressure of {gas.name} at {{1}} ({{2}}): not vapour over liquid — "
+            "liquid-full, warmer than stated, or another gas", quantities=((p_in, PA_ABS), (T_in, KELVIN), (p_sat, PA_ABS)))
     if p_in >= p_sat:
         return True, ["inlet-saturated"], p_sat
     if p_in >= g.NEAR_VAPOUR_PRESSURE * p_sat:
@@ -168,9 +167,8 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     (-73.5, True)
     """
     if p_out >= p_in:
-        raise InputError(
-            f"outlet {fmt_pressure(p_out, kind='absolute')} is not below inlet {fmt_pressure(p_in, kind='absolute')}: a regulator only reduces pressure"
-        )
+        raise RangeError(what="outlet pressure", value=p_out, hi=p_in, hi_open=True, unit=PA_ABS,
+                         hi_name="the inlet pressure", why="a regulator only reduces pressure")
     g.check_state(gas, T_in, p_in)
     saturated, flags, p_sat = _inlet(gas, p_in, T_in, saturated_vapour)
     h = g.saturated_vapour_enthalpy(gas, T_in) if saturated else g.enthalpy(gas, T_in, p_in)
@@ -185,7 +183,7 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     try:
         fl = flash_ph(gas, h, p_out, T_in)
     except PropertyError:
-        raise PropertyError(f"no outlet state for {gas.name} throttled to {fmt_pressure(p_out, kind='absolute')}") from None
+        raise PropertyError(f"no outlet state for {gas.name} throttled to {{0}}", quantities=((p_out, PA_ABS),)) from None
     liquid = fl.phase.kind in ("two-phase", "liquid")
     solid = liquid and p_out <= pt * 1.02
     flags += ["liquid-forms"] * liquid + ["solid-at-triple-point"] * solid + ["outlet-below-freezing"] * (fl.T < T0_K)

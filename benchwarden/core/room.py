@@ -30,7 +30,7 @@ from dataclasses import dataclass
 from typing import Literal
 
 from benchwarden.core import gas as g
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.units import Flow, check_positive
 from benchwarden.units.quantities import Amount
 
@@ -159,9 +159,9 @@ def leak_o2(room_volume_m3: float, leak_m3_s: float, ventilation_m3_s: float = 0
     """
     check_positive(room_volume_m3, "room volume", "m³")
     if not math.isfinite(leak_m3_s) or leak_m3_s < 0:
-        raise InputError(f"leak {leak_m3_s!r} m³/s must be zero or more")
+        raise RangeError(what="leak", value=leak_m3_s, lo=0.0, unit="m³/s")
     if not math.isfinite(ventilation_m3_s) or ventilation_m3_s < 0:
-        raise InputError(f"ventilation {ventilation_m3_s!r} m³/s must be zero or more")
+        raise RangeError(what="ventilation", value=ventilation_m3_s, lo=0.0, unit="m³/s")
     if kind not in ("exhaust", "supply"):
         raise InputError(f"unknown ventilation kind {kind!r}; allowed: exhaust, supply")
     if not (math.isfinite(c0_percent) and 0 < c0_percent <= 100):

@@ -145,9 +145,7 @@ def check_range(value: float, what: str, lo: float, hi: float, unit: str, why: s
     """
     check_finite(value, what)
     if not lo < value <= hi:
-        raise RangeError(f"{what} {value:g} {unit} is outside the range allowed: above {lo:g} and at most {hi:g} "
-                         f"{unit}" + (f" ({why})" if why else ""), what=what, value=value, lo=lo, hi=hi, unit=unit,
-                         why=why)
+        raise RangeError(what=what, value=value, lo=lo, hi=hi, unit=unit, why=why, lo_open=True)
     return float(value)
 
 
@@ -155,8 +153,7 @@ def check_positive(value: float, what: str, unit: str = "") -> float:
     """Return ``value`` if it is finite and > 0, else raise :class:`InputError`."""
     check_finite(value, what)
     if value <= 0:
-        raise RangeError(f"{what} must be greater than zero, got {value:g}{(' ' + unit) if unit else ''}", what=what,
-                         value=value, lo=0.0, unit=unit)
+        raise RangeError(what=what, value=value, lo=0.0, unit=unit, lo_open=True)
     return float(value)
 
 

@@ -12,7 +12,7 @@ from benchwarden.errors import BenchwardenError, InputError, JournalError
 from benchwarden.render.budget import budget_assumption
 from benchwarden.render.display import Display, open_hold_text, profile_display
 from benchwarden.render.numbers import fmt_uncertain
-from benchwarden.tui.screens.base import ToolScreen
+from benchwarden.tui.screens.base import ToolScreen, said
 from benchwarden.tui.widgets import KeysFooter, field
 from benchwarden.units import fmt_hours, parse_duration, parse_temperature, pressure_abs
 from benchwarden.units.limits import in_range
@@ -110,7 +110,7 @@ class HoldScreen(ToolScreen):
         return parse_temperature(self._val(i)) if self._val(i) else None
 
     def _fail(self, exc: Exception) -> None:
-        self.query_one("#hold-result", Static).update(Text(f"✖ {exc}"))
+        self.query_one("#hold-result", Static).update(Text(f"✖ {said(exc, self.state)}"))
 
     def compute(self) -> None:
         st = self.state
@@ -134,7 +134,7 @@ class HoldScreen(ToolScreen):
                 hold_runs.save(st.journal, st.profile, run, st.clock())
                 saved = "saved to the journal"
             except JournalError as exc:
-                saved = f"✖ not saved: {exc}"
+                saved = f"✖ not saved: {said(exc, self.state)}"
         self._show(run, saved)
 
     def begin(self) -> None:

@@ -16,6 +16,7 @@ from textual.widgets import DataTable, Header, Static
 
 from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.render.display import Display, live_text, open_hold_text, profile_display
+from benchwarden.render.errors import error_line
 from benchwarden.render.findings import SEVERITY_MARK, describe, question_text
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.render.supply import mass_words, phase_short
@@ -325,7 +326,7 @@ class OverviewScreen(OverviewActions):
         try:
             questions = self.state.questions(reading)
         except BenchwardenError as exc:
-            self.notify(str(exc), severity="error", markup=False)
+            self.notify(error_line(exc, self.units), severity="error", markup=False)
             return
         if questions:
             text = "; ".join(question_text(q, self.units) for q in questions)
@@ -346,7 +347,7 @@ class OverviewScreen(OverviewActions):
             self.notify(f"{exc}. The reading is kept on screen, marked unsaved, and retried.", title="Journal",
                         severity="error", timeout=15, markup=False)
         except BenchwardenError as exc:
-            self.notify(str(exc), severity="error", markup=False)
+            self.notify(error_line(exc, self.units), severity="error", markup=False)
             return
         self.load_plan()
 
@@ -365,7 +366,7 @@ class OverviewScreen(OverviewActions):
         try:
             self.state.change_cylinder(reading, label, retest)
         except BenchwardenError as exc:
-            self.notify(str(exc), title="Cylinder change", severity="error", timeout=10, markup=False)
+            self.notify(error_line(exc, self.units), title="Cylinder change", severity="error", timeout=10, markup=False)
             return
         self.load_plan()
         self.app.push_screen(ConfirmScreen(f"New cylinder on {reading.supply_id} recorded. Check the new "
@@ -400,7 +401,7 @@ class OverviewScreen(OverviewActions):
         try:
             self.state.reload()
         except BenchwardenError as exc:
-            self.app.call_from_thread(self.notify, f"{exc} — the profile loaded before stays in use.",
+            self.app.call_from_thread(self.notify, f"{error_line(exc, self.units)} — the profile loaded before stays in use.",
                                       title="Profile not reloaded", severity="error", timeout=15)
             return
         self.app.call_from_thread(self.notify, "Profile reloaded", title="Profile")
