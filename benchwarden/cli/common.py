@@ -141,15 +141,13 @@ def add_display(p: argparse.ArgumentParser) -> None:
 
 def ambient(args: argparse.Namespace) -> float:
     from benchwarden.units import ATM_PA, ambient_from_altitude, parse_length, pressure_abs
-    from benchwarden.units.limits import conflict
+    from benchwarden.units.limits import conflict, within
 
     conflict(given(args, "--ambient", "--altitude"), "the ambient pressure is given, or derived from the altitude")
     if getattr(args, "ambient", None):
         amb = pressure_abs(args.ambient, 0.0, "ambient pressure")
-        if not 30e3 <= amb <= 120e3:
-            raise input_error(f"ambient pressure {args.ambient!r} is outside 30 kPa to 120 kPa (sea level is "
-                              "101.325 kPa; the highest labs are near 50 kPa)")
-        return amb
+        return within(amb, "ambient pressure", 30e3, 120e3, "Pa(a)", text=args.ambient,
+                      why="sea level is 101.325 kPa; the highest labs are near 50 kPa")
     if getattr(args, "altitude", None) is not None:
         return ambient_from_altitude(parse_length(args.altitude, "altitude"))
     return ATM_PA
@@ -173,6 +171,11 @@ def display(args: argparse.Namespace, ambient_pa: float, profile: Any = None) ->
     shown = profile_display(profile, unit) if profile is not None else display_for(unit, ambient_pa)
     _SHOWN["display"] = shown
     return shown
+
+
+def forget_display() -> None:
+    """A new command: no display chosen yet (``main`` runs many commands in one process in tests)."""
+    _SHOWN.clear()
 
 
 def error_text(exc: BaseException, args: argparse.Namespace | None = None) -> str:

@@ -61,7 +61,7 @@ def error_line(exc: BaseException, d: Display | None = None) -> str:
     'outlet pressure 290.1 psig is out of range: below the inlet pressure 145.0 psig (a regulator only reduces pressure)'
     >>> from benchwarden.errors import PropertyError
     >>> error_line(PropertyError("no gas state of CO2 at {0}", quantities=((5e6, "Pa(a)"),)), Display("MPa"))
-    'no gas state of CO2 at 5.000 MPa(a)'
+    'no gas state of CO2 at 5.00 MPa(a)'
     """
     shown = d or Display()
 

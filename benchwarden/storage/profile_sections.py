@@ -18,7 +18,7 @@ from pydantic import (
 )
 
 from benchwarden import units as u
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.storage.profile_fields import (
     DurationQ,
     FlowQ,
@@ -150,8 +150,8 @@ class Supply(_Model):
     def _check(self) -> Supply:
         _positive(self.water_volume, f"water_volume of supply {self.id}")
         if self.water_volume > 5.0:
-            raise InputError(f"supply {self.id}: water_volume {self.water_volume:g} m³ is larger than a cylinder "
-                             "bundle (5 m³); check the unit")
+            raise RangeError(what="water_volume", value=self.water_volume, hi=5.0, unit="m³", where=f"supply {self.id}",
+                             why="a cylinder bundle at most; check the unit")
         in_range("cylinder volume", self.water_volume, f"water_volume of supply {self.id}")
         if self.leak_target is not None:
             in_range("flow", self.leak_target.value, f"leak_target of supply {self.id}")

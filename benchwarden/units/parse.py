@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import TYPE_CHECKING, Literal
 
-from benchwarden.errors import InputError, RangeError
+from benchwarden.errors import PA_ABS, InputError, RangeError
 from benchwarden.units.constants import ATM_PA, BAR_PA, PSI_PA, T0_K, T_FULL_K
 from benchwarden.units.limits import check_quantity_text
 
@@ -235,8 +235,8 @@ def parse_pressure(text: str, ambient_pa: float = ATM_PA, what: str = "pressure"
     abs_pa = pa + ambient_pa if kind == "gauge" else pa
     if abs_pa < 0:
         raise InputError(
-            f"{what} {text!r} is below vacuum (absolute {abs_pa / BAR_PA:.4g} bar(a)); "
-            "a gauge reading cannot be lower than minus the ambient pressure"
+            f"{what} {text!r} is below vacuum (absolute {{0}}); "
+            "a gauge reading cannot be lower than minus the ambient pressure", quantities=((abs_pa, PA_ABS),)
         )
     return Pressure(kind, pa, text.strip())
 
@@ -261,7 +261,7 @@ def ambient_from_altitude(altitude_m: float) -> float:
     """
     check_finite(altitude_m, "altitude")
     if not -2000.0 <= altitude_m <= 11000.0:
-        raise InputError(f"altitude {altitude_m:g} m is outside -2000 m to 11000 m (ISO 2533 troposphere)")
+        raise RangeError(what="altitude", value=altitude_m, lo=-2000.0, hi=11000.0, unit="m", why="ISO 2533 troposphere")
     return ATM_PA * (1.0 - 2.25577e-5 * altitude_m) ** 5.25588
 
 

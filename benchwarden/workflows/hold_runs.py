@@ -13,7 +13,7 @@ import datetime as dt
 from dataclasses import dataclass
 
 from benchwarden.core import hold as hd
-from benchwarden.errors import InputError, JournalError
+from benchwarden.errors import InputError, JournalError, RangeError
 from benchwarden.storage.holdlog import parse_log
 from benchwarden.storage.journal import HoldStartRow, Journal
 from benchwarden.storage.profile import Profile
@@ -90,7 +90,7 @@ def start_hold(journal: Journal, prof: Profile, supply_id: str, pressure_abs_pa:
     """Store the first reading of a hold test to be finished after ``hold_s`` seconds."""
     s = prof.supply(supply_id)
     if not 0 < hold_s <= MAX_HOLD_S:
-        raise InputError("hold for more than zero and at most 7 days (e.g. '12 h')")
+        raise RangeError(what="hold", value=hold_s, lo=0.0, lo_open=True, hi=MAX_HOLD_S, unit="s", why="e.g. '12 h'")
     if pressure_abs_pa <= prof.ambient_pa:
         raise InputError(f"hold test start {pressure_text!r}: the supply must be under pressure")
     if s.gas.sold_liquefied and s.gross is not None:

@@ -1,0 +1,89 @@
+"""Errors carry data and are worded once, by the renderer, in the display unit (issue 22, item 9).
+
+Unit conversions checked here: 1 psi = 6 894.757 Pa and 1 bar = 100 kPa (NIST SP 811, appendix B).
+"""
+
+from __future__ import annotations
+
+import shutil
+from pathlib import Path
+
+import pytest
+
+from benchwarden.cli import main
+from benchwarden.core import gas as g
+from benchwarden.errors import KELVIN, PA_ABS, PA_GAUGE, InputError, PropertyError, RangeError
+from benchwarden.render.display import Display
+from benchwarden.render.errors import error_line
+from benchwarden.workflows import computations as comp
+
+ROOT = Path(__file__).resolve().parents[1]
+PSI = 6894.757  # Pa per psi (NIST SP 811)
+
+
+def run(capsys, *argv):
+    try:
+        code = main(list(argv))
+    except SystemExit as exc:
+        code = exc.code
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def test_a_range_error_is_worded_from_its_data_in_the_display_unit():
+    e = RangeError(what="start pressure", value=300 * PSI, hi=250 * PSI, unit=PA_GAUGE, hi_name="the gauge range")
+    assert error_line(e, Display("psi")) == ("start pressure 300.0 psig is out of range: at most the gauge range "
+                                              "250.0 psig")
+    # 300 psi = 20.68 bar = 2068 kPa (NIST SP 811)
+    assert "20.7 bar(g)" in error_line(e, Display("bar")) and "2068 kPa(g)" in error_line(e, Display("kPa"))
+    # str() stays plain SI for logs: no display unit at all
+    assert str(e) == "start pressure 2.068e+06 Pa(g) is out of range: at most the gauge range 1.724e+06 Pa(g)"
+
+
+def test_an_error_quoting_quantities_is_filled_in_the_display_unit():
+    e = PropertyError("no gas state of X at {0} and {1}", quantities=((50e5, PA_ABS), (253.15, KELVIN)))
+    assert error_line(e, Display("MPa")) == "no gas state of X at 5.00 MPa(a) and -20.0 °C"
+    assert str(e) == "no gas state of X at 5e+06 Pa(a) and 253.2 K(abs)"
+    assert error_line(InputError("unknown gas 'xenonx'"), Display("psi")) == "unknown gas 'xenonx'"
+
+
+def test_the_core_refuses_with_data_not_words():
+    n2 = comp.parse_gas("nitrogen")
+    with pytest.raises(RangeError) as exc:
+        comp.throttle(n2, 10e5, 20e5, 293.15)
+    e = exc.value
+    assert (e.what, e.value, e.hi, e.hi_open, e.unit) == ("outlet pressure", 20e5, 10e5, True, PA_ABS)
+    with pytest.raises(RangeError) as exc:
+        g.density(n2, 20.0, 1e5)  # below nitrogen's triple point 63.15 K (from memory): outside the EOS
+    assert exc.value.unit == KELVIN and exc.value.lo == pytest.approx(63.15, abs=0.01)
+
+
+def test_the_command_line_words_a_refusal_in_its_pressure_unit(capsys):
+    base = ["throttle", "--gas", "n2", "--inlet", "10 bar", "--outlet", "20 bar", "--temperature", "20 degC"]
+    code, _, err = run(capsys, *base, "--pressure-unit", "psi")
+    # 20 bar(g) + 1.01325 bar = 21.01325 bar(a) = 304.8 psia (NIST SP 811)
+    assert code == 2 and err.count("\n") == 1
+    assert "outlet pressure 304.8 psia is out of range: below the inlet pressure 159.7 psia" in err
+    code, _, err = run(capsys, *base)
+    assert code == 2 and "outlet pressure 21.0 bar(a)" in err and "psia" not in err  # a display does not linger
+
+
+def test_the_command_line_words_a_quoted_refusal_in_its_pressure_unit(capsys):
+    code, _, err = run(capsys, "throttle", "--gas", "co2", "--inlet", "150 bar", "--outlet", "2 bar", "--temperature",
+                       "20 degC", "--pressure-unit", "kPa")
+    # 150 bar(g) = 15 101 kPa(a); CO2's vapour pressure at 20 °C is 57.29 bar(a) (NIST Webbook, from memory)
+    assert code == 2 and "inlet 15101 kPa(a)" in err and "(5729 kPa(a))" in err
+
+
+def test_the_app_words_an_error_in_the_profile_display_unit(tmp_path):
+    from benchwarden.tui.screens.base import said
+    from benchwarden.workflows.session import SessionState
+
+    prof = tmp_path / "bench.toml"
+    shutil.copy(ROOT / "profiles" / "demo-teaching-bench.toml", prof)
+    prof.write_text(prof.read_text() + '\n[display]\npressure_unit = "psi"\n')
+    state = SessionState(prof, None)
+    state.profile = comp.load_profile(prof)
+    e = RangeError(what="reading", value=320e5, hi=315e5, unit=PA_GAUGE, hi_name="the gauge range")
+    # 315 bar = 4569 psi (NIST SP 811)
+    assert said(e, state) == "reading 4641 psig is out of range: at most the gauge range 4569 psig"
