@@ -60,7 +60,13 @@ class PropertyError(BenchwardenError, ValueError):
 
 
 class ProfileError(InputError):
-    """A bench profile does not load or does not validate (names file, line and key)."""
+    """A bench profile does not load or does not validate (names file, line and key). Where a
+    value's own error carries data, it is kept as ``inner`` with the words around it (``prefix``,
+    ``suffix``), so a renderer words the value in the display unit."""
+
+    def __init__(self, msg: str, *, inner: BaseException | None = None, prefix: str = "", suffix: str = "") -> None:
+        super().__init__(msg)
+        self.inner, self.prefix, self.suffix = inner, prefix, suffix
 
 
 class JournalError(BenchwardenError, OSError):

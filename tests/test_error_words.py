@@ -87,3 +87,14 @@ def test_the_app_words_an_error_in_the_profile_display_unit(tmp_path):
     e = RangeError(what="reading", value=320e5, hi=315e5, unit=PA_GAUGE, hi_name="the gauge range")
     # 315 bar = 4569 psi (NIST SP 811)
     assert said(e, state) == "reading 4641 psig is out of range: at most the gauge range 4569 psig"
+
+
+def test_a_profile_error_keeps_the_value_data_and_its_place(tmp_path, capsys):
+    prof = tmp_path / "bench.toml"
+    text = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
+    prof.write_text(text.replace('reserve = "15 bar"', 'reserve = "3000 bar"'))
+    code, _, err = run(capsys, "plan", str(prof), "--pressure-unit", "MPa")
+    # the file, the line and the key stay; 2000 bar(a) = 200 MPa(a) (NIST SP 811)
+    assert code == 2 and f"{prof}:" in err and "reserve: value '3000 bar' is out of range: at most 200.0 MPa(a)" in err
+    code, _, err = run(capsys, "plan", str(prof))
+    assert code == 2 and "at most 2000 bar(a)" in err

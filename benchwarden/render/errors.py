@@ -14,6 +14,7 @@ from benchwarden.errors import (
     PA_DIFF,
     PA_GAUGE,
     BenchwardenError,
+    ProfileError,
     RangeError,
     fill,
     range_sentence,
@@ -68,6 +69,8 @@ def error_line(exc: BaseException, d: Display | None = None) -> str:
     def fmt(v: object, u: str) -> str | None:
         return quantity(v, u, shown)
 
+    if isinstance(exc, ProfileError) and exc.inner is not None:
+        return exc.prefix + error_line(exc.inner, shown) + exc.suffix
     if isinstance(exc, RangeError) and exc.unit != "date":
         return range_sentence(exc, fmt)
     if isinstance(exc, BenchwardenError) and exc.quantities:

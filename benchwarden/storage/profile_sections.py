@@ -18,7 +18,7 @@ from pydantic import (
 )
 
 from benchwarden import units as u
-from benchwarden.errors import InputError, RangeError
+from benchwarden.errors import PA_GAUGE, InputError, RangeError
 from benchwarden.storage.profile_fields import (
     DurationQ,
     FlowQ,
@@ -45,9 +45,11 @@ from benchwarden.units.limits import EARLIEST_RECORD, in_range, within_dates
 class Located(InputError):
     """A check across sections, with the key it is about (for the line number)."""
 
-    def __init__(self, loc: tuple[str | int, ...], msg: str) -> None:
-        super().__init__(msg)
+    def __init__(self, loc: tuple[str | int, ...], msg: str | InputError) -> None:
+        super().__init__(str(msg))
         self.loc = loc
+        #: the value's own error, where it carries data (a renderer words it in the display unit)
+        self.inner = msg if isinstance(msg, InputError) else None
 
 
 def _record_date(v: dt.date) -> dt.date:
@@ -160,8 +162,9 @@ class Supply(_Model):
         if self.gross is not None and self.tare is not None and self.gross < self.tare:
             raise InputError(f"supply {self.id}: gross weight is below the tare weight")
         if self.reserve.typed_as == "gauge" and self.reserve.typed_pa < 0:
-            raise Located(("reserve",), f"supply {self.id}: reserve {self.reserve.text} is out of range: at least "
-                                         "0 bar(g) (a cylinder is never drawn below the room's pressure)")
+            raise Located(("reserve",), RangeError(what="reserve", value=self.reserve.typed_pa, typed=self.reserve.text,
+                                                   lo=0.0, unit=PA_GAUGE, where=f"supply {self.id}",
+                                                   why="a cylinder is never drawn below the room's pressure"))
         if self.reading is None and self.gross is None:
             raise InputError(f"supply {self.id}: give a reading (or gross and tare weights)")
         if self.leak_target is not None and self.leak_target.kind == "actual":
