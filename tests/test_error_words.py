@@ -98,3 +98,27 @@ def test_a_profile_error_keeps_the_value_data_and_its_place(tmp_path, capsys):
     assert code == 2 and f"{prof}:" in err and "reserve: value '3000 bar' is out of range: at most 200.0 MPa(a)" in err
     code, _, err = run(capsys, "plan", str(prof))
     assert code == 2 and "at most 2000 bar(a)" in err
+
+
+def test_formatting_for_people_lives_in_render_only():
+    """The units layer has no formatting module any more, and no refusal in the core writes a
+    figure itself (a format spec, or a pressure or temperature unit, inside its message)."""
+    import ast
+    import importlib.util
+    import re
+
+    assert importlib.util.find_spec("benchwarden.units.format") is None
+    written = []
+    for path in sorted((ROOT / "benchwarden" / "core").glob("*.py")):
+        src = path.read_text()
+        for node in ast.walk(ast.parse(src)):
+            name = getattr(node, "func", None)
+            name = getattr(name, "id", None) or getattr(name, "attr", None)
+            if isinstance(node, ast.Call) and name in ("InputError", "PropertyError", "RangeError") and node.args:
+                message = node.args[0]
+                figures = [v for v in ast.walk(message) if isinstance(v, ast.FormattedValue) and v.format_spec
+                           and "gas" not in ast.unparse(v.value)]
+                text = ast.unparse(message)
+                if re.search(r"bar\(|°C|\bPa\b|fmt_", text) or any("1e5" in ast.unparse(v) for v in figures):
+                    written.append(f"{path.name}:{node.lineno}")
+    assert not written, written

@@ -493,7 +493,7 @@ def test_a_past_retest_date_is_called_overdue(capsys):
 
 
 def test_run_times_beyond_ten_years_are_not_printed_in_days():
-    from benchwarden.units import fmt_hours
+    from benchwarden.render.display import fmt_hours
 
     assert fmt_hours(1e300) == "more than ten years" and fmt_hours(48.5) == "2 d 0 h"
 

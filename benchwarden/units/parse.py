@@ -171,6 +171,18 @@ _ALWAYS_ABSOLUTE = {"atm", "torr", "mmhg"}
 PressureKind = Literal["gauge", "absolute"]
 
 
+def pressure_factor(unit: str) -> float:
+    """Pascals per one ``unit`` (bar, psi, kPa, MPa, mbar, ...).
+
+    >>> pressure_factor("psi") == PSI_PA
+    True
+    """
+    try:
+        return _PRESSURE_UNITS[unit.lower()]
+    except KeyError:
+        raise InputError(f"unknown pressure unit {unit!r}") from None
+
+
 @dataclass(frozen=True)
 class Pressure:
     """A typed pressure: its value as typed [Pa] and whether it was gauge or absolute.

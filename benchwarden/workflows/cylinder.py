@@ -26,7 +26,7 @@ from benchwarden.errors import KELVIN, PA_GAUGE, InputError, JournalError, Range
 from benchwarden.storage.journal import ChangeRow, Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply, with_reading, with_weight
 from benchwarden.storage.samples import SampleStore
-from benchwarden.units import PSI_PA, Pressure, fmt_pressure
+from benchwarden.units import PSI_PA, Pressure
 from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import EARLIEST_RECORD, check_quantity_text, within_dates
 from benchwarden.units.quantities import check_text
@@ -173,7 +173,7 @@ def latest_state(journal: Journal | None, prof: Profile, supply_id: str,
                 break
     except JournalError:
         return None
-    return LatestSample(dt.datetime.fromtimestamp(got[0], tz).replace(microsecond=0), got[1], temp, fmt_pressure(got[1], prof.ambient_pa))
+    return LatestSample(dt.datetime.fromtimestamp(got[0], tz).replace(microsecond=0), got[1], temp, "live sample")
 
 
 

@@ -10,11 +10,11 @@ from textual_plotext import PlotextPlot
 
 from benchwarden.errors import BenchwardenError, InputError, JournalError
 from benchwarden.render.budget import budget_assumption
-from benchwarden.render.display import Display, open_hold_text, profile_display
+from benchwarden.render.display import Display, fmt_hours, open_hold_text, profile_display
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.tui.screens.base import ToolScreen, said
 from benchwarden.tui.widgets import KeysFooter, field
-from benchwarden.units import fmt_hours, parse_duration, parse_temperature, pressure_abs
+from benchwarden.units import parse_duration, parse_temperature, pressure_abs
 from benchwarden.units.limits import in_range
 from benchwarden.workflows import hold_runs
 from benchwarden.workflows.hold_runs import HoldRun, OpenHold

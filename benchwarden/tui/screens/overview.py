@@ -15,14 +15,19 @@ from textual.timer import Timer
 from textual.widgets import DataTable, Header, Static
 
 from benchwarden.errors import BenchwardenError, JournalError
-from benchwarden.render.display import Display, live_text, open_hold_text, profile_display
+from benchwarden.render.display import (
+    Display,
+    fmt_hours,
+    live_text,
+    open_hold_text,
+    profile_display,
+)
 from benchwarden.render.errors import error_line
 from benchwarden.render.findings import SEVERITY_MARK, describe, question_text
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.render.supply import mass_words, phase_short
 from benchwarden.tui.screens.overview_actions import OverviewActions
 from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
-from benchwarden.units import fmt_hours
 from benchwarden.workflows.findings import Finding
 from benchwarden.workflows.hold_runs import open_holds
 from benchwarden.workflows.session import Reading, SessionState

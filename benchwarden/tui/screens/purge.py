@@ -9,10 +9,10 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, Header, Input, Label, Select, Static
 
 from benchwarden.errors import BenchwardenError, InputError
-from benchwarden.render.display import profile_display
+from benchwarden.render.display import fmt_hours, profile_display
 from benchwarden.tui.screens.base import ToolScreen, said
 from benchwarden.tui.widgets import KeysFooter, field
-from benchwarden.units import fmt_hours, parse_flow, parse_volume, pressure_abs
+from benchwarden.units import parse_flow, parse_volume, pressure_abs
 from benchwarden.units.limits import in_range
 from benchwarden.units.quantities import parse_fraction
 from benchwarden.workflows import purges
