@@ -127,6 +127,16 @@ class Display:
         return fmt_hours(h)
 
     @staticmethod
+    def elapsed(seconds: float) -> str:
+        """Time elapsed as a running clock, ``h:mm:ss``.
+
+        >>> Display.elapsed(3905.7)
+        '1:05:05'
+        """
+        s = max(0, int(seconds))
+        return f"{s // 3600}:{s % 3600 // 60:02d}:{s % 60:02d}"
+
+    @staticmethod
     def clock(when: str | dt.datetime | None, now: dt.datetime | None = None) -> str:
         """A time for people: ``15:29`` today; any other day with its weekday and date, ``Wed 2 Dec
         15:29`` (local time; ISO 8601 stays in machine formats).

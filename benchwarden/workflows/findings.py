@@ -27,7 +27,7 @@ from benchwarden.workflows.model import Observed, Plan
 
 __all__ = [
     "SEVERITIES", "SEVERITY_RANK", "Finding", "Severity", "HOLD_TEST_MAX_AGE_DAYS", "plan_findings",
-    "live_findings", "hold_test_findings", "ranked", "counts", "at_or_above", "contents_findings", "mass_findings",
+    "live_findings", "countdown_findings", "hold_test_findings", "ranked", "counts", "at_or_above", "contents_findings", "mass_findings",
     "outlet_findings",
 ]
 
@@ -316,6 +316,25 @@ def live_findings(plan: Plan, observed: Mapping[str, Observed], session_end: dt.
             out.append(Finding("reserve-before-end-live", "warning", s.id, {
                 "reserve_at": at, "session_end": session_end.isoformat(timespec="minutes")}))
     return ranked(out)
+
+
+def countdown_findings(hours_left: Mapping[str, float], now: dt.datetime, session_end: dt.datetime | None,
+                       session_hours: float) -> list[Finding]:
+    """Each supply's countdown against the time the session has left (all of ``session_hours``
+    before it starts): ``countdown-short`` (stop) when its reserve comes before
+    :data:`RESERVE_STOP_FRACTION` of that time, ``countdown-before-end`` (warning) before the end;
+    none when the supply lasts. The overview colours its countdown bars by them."""
+    left = (session_end - now).total_seconds() / 3600.0 if session_end is not None else session_hours
+    out: list[Finding] = []
+    for sid, h in hours_left.items():
+        if h >= left:
+            continue
+        values = {"hours": h, "session_left_hours": left}
+        if h < RESERVE_STOP_FRACTION * left:
+            out.append(Finding("countdown-short", "stop", sid, values))
+        else:
+            out.append(Finding("countdown-before-end", "warning", sid, values))
+    return out
 
 
 # ----------------------------------------------------------------------------- hold tests
