@@ -58,6 +58,10 @@ def test_heat_json(capsys):
     code, out, _ = run(capsys, "heat", "--gas", "n2", "--pressure", "200 bar", "--temperature", "15 degC",
                        "--to", "50 degC", "--service", "200 bar", "--test", "300 bar")
     assert "exceeds the service pressure" in out
+    code, out, _ = run(capsys, "heat", "--gas", "n2", "--pressure", "200 bar", "--temperature", "15 degC",
+                       "--to", "70 degC", "--test", "250 bar", "--pressure-unit", "kPa")
+    # the STOP comes from the heat-above-test finding, worded by the renderer in kPa
+    assert code == 0 and "✖ STOP: heated, the cylinder reaches" in out and "above its test pressure 25000 kPa(g)" in out
 
 
 def test_runtime_json(capsys):

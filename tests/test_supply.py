@@ -104,6 +104,21 @@ def test_heat_up_warnings():
     assert h.above_test_pressure
 
 
+def test_heat_up_findings_are_codes_worded_by_the_renderer():
+    from benchwarden.render.display import Display
+    from benchwarden.render.findings import describe
+    from benchwarden.workflows.findings import heat_findings
+
+    h = supply.heat_up(N2, 201e5, 288.15, 338.15, service_abs=201e5, test_abs=301e5)
+    assert {(f.code, f.severity) for f in heat_findings(h)} == {("heat-above-service", "warning"),
+                                                               ("heat-storage-limit", "warning")}
+    h = supply.heat_up(N2, 290e5, 288.15, 338.15, service_abs=201e5, test_abs=301e5)
+    found = heat_findings(h)
+    assert [(f.code, f.severity) for f in found] == [("heat-above-test", "stop"), ("heat-storage-limit", "warning")]
+    # worded in the display unit: 300 bar(g) = 4351 psig (1 psi = 6894.757 Pa, NIST SP 811)
+    assert "above its test pressure 4351 psig" in describe(found[0], Display("psi", 101325.0))[0]
+
+
 def test_mass_flow_of_standard_flow_uses_real_density_at_reference():
     # 1 slpm of N2 at 0 °C, 1 atm: ρ = 1.2504 kg/m³ (Z = 0.99955; NIST Webbook, from memory).
     assert supply.mass_flow(N2, parse_flow("1 slpm")) == pytest.approx(1.2504e-3 / 60, rel=2e-4)

@@ -38,7 +38,7 @@ from benchwarden.units import (
 from benchwarden.units.constants import T_FULL_K
 from benchwarden.units.limits import conflict, in_range, within
 from benchwarden.workflows import computations as comp
-from benchwarden.workflows.findings import contents_findings
+from benchwarden.workflows.findings import contents_findings, heat_findings
 from benchwarden.workflows.ranges import check_weight_fits
 
 
@@ -182,16 +182,7 @@ def cmd_heat(args: argparse.Namespace) -> int:
         ("ideal gas would say", d.both(h.ideal_pressure_abs_pa)),
         ("method", h.method),
     ]
-    warnings = []
-    if h.above_storage_limit:
-        warnings.append(f"{d.temperature(T2)} is above the 52 °C (125 °F) limit for storing cylinders (CGA P-1, "
-                        "from memory): keep cylinders out of sun and away from heat")
-    if h.above_test_pressure and h.test_abs_pa is not None:
-        warnings.append(f"STOP: {d.gauge(h.pressure_abs_pa)} exceeds the test pressure {d.gauge(h.test_abs_pa)}; "
-                        "never heat a cylinder")
-    elif h.above_service_pressure and h.service_abs_pa is not None:
-        warnings.append(f"{d.gauge(h.pressure_abs_pa)} exceeds the service pressure {d.gauge(h.service_abs_pa)} "
-                        "(rated at 15 °C); check the regulator's inlet rating")
+    warnings = [f"{SEVERITY_MARK[f.severity]}: {describe(f, d)[0]}" for f in heat_findings(h)]
     emit_table("Closed cylinder heated or cooled", rows, warnings)
     return 0
 

@@ -222,6 +222,15 @@ TEMPLATES: dict[str, Template] = {
     "leak-watch-leak": lambda f, v, d: (
         f"the leak watch on {v['supply']} found a leak while the bench stood idle: find and fix it first",
         _hold_figure(v)),
+    "heat-above-test": lambda f, v, d: (
+        f"heated, {f.subject} reaches {d.gauge(v['pressure_abs_pa'])}, above its test pressure "
+        f"{d.gauge(v['test_abs_pa'])}: never heat a cylinder", d.gauge(v["pressure_abs_pa"])),
+    "heat-above-service": lambda f, v, d: (
+        f"{d.gauge(v['pressure_abs_pa'])} exceeds the service pressure {d.gauge(v['service_abs_pa'])} (rated at "
+        "15 °C); check the regulator's inlet rating", d.gauge(v["pressure_abs_pa"])),
+    "heat-storage-limit": lambda f, v, d: (
+        f"{d.temperature(v['temperature_k'])} is above the {d.temperature(v['limit_k'])} (125 °F) limit for storing "
+        "cylinders (CGA P-1, from memory): keep cylinders out of sun and away from heat", d.temperature(v["temperature_k"])),
     "countdown-short": lambda f, v, d: (
         f"{f.subject} reaches its reserve in {d.hours(v['hours'])}, before half of the session's remaining "
         f"{d.hours(v['session_left_hours'])}", f"{v['hours']:.2f} h"),
