@@ -5,6 +5,7 @@ the GUM (JCGM 100:2008) with EN 837-1 accuracy classes.
 """
 
 import math
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -18,6 +19,8 @@ from benchwarden.storage.holdlog import parse_log
 
 N2 = g.parse_gas("nitrogen")
 AMB = 101325.0
+
+ROOT = Path(__file__).resolve().parents[1]
 
 
 def test_worked_example_ideal_gas_temperature_compensated():
@@ -215,3 +218,37 @@ def test_log_cells_that_are_not_plain_numbers_are_refused_with_their_row(cell):
     text = f"time (h),pressure (bar)\n0,150\n1,{cell}\n2,149.8\n"
     with pytest.raises(InputError, match="row 3"):
         parse_log(text)
+
+
+def test_the_command_line_and_the_app_share_one_computation_and_one_wording(capsys, tmp_path):
+    """One application function computes a hold test (``hold_runs.compute``) and one renderer
+    words it (``render.hold``): the command line prints exactly the renderer's lines, and the
+    app's computation on a profile supply gives the same result for the same readings."""
+    from benchwarden.render.display import Display
+    from benchwarden.render.hold import hold_lines
+    from benchwarden.units.constants import ATM_PA
+    from benchwarden.workflows import hold_runs, holds
+    from benchwarden.workflows.computations import load_profile
+
+    n2 = g.parse_gas("nitrogen")
+    gauge = holds.gauge_spec(315e5, 1.6)
+    run = hold_runs.compute(n2, 0.05, start_abs_pa=152e5 + ATM_PA, end_abs_pa=150e5 + ATM_PA, duration_s=14 * 3600.0,
+                            t_start_k=294.15, t_end_k=291.15, gauge=gauge, reserve_abs=15e5 + ATM_PA)
+    capsys.readouterr()
+    assert main(["hold", "--gas", "nitrogen", "--volume", "50 L", "--start", "152 bar", "--end", "150 bar",
+                 "--duration", "14 h", "--t-start", "21 degC", "--t-end", "18 degC", "--gauge-range", "315 bar",
+                 "--gauge-class", "1.6", "--reserve", "15 bar", "--pressure-unit", "psi",
+                 "--journal", str(tmp_path / "none.sqlite3")]) == 0
+    printed = [line.strip() for line in capsys.readouterr().out.splitlines()]
+    for line in hold_lines(run, Display("psi")):
+        assert line.lstrip("! ").strip() in " ".join(printed), line
+    # the app's path: the demo supply n2-A is this cylinder (50 L, gauge 315 bar class 1.6, reserve 15 bar)
+    prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
+    app_run = hold_runs.two_readings(prof, "n2-A", 152e5 + prof.ambient_pa, 150e5 + prof.ambient_pa, 14 * 3600.0,
+                                     294.15, 291.15)
+    assert app_run.gauge == gauge and app_run.kind == run.kind == "two-readings"
+    same = hold_runs.compute(n2, 0.05, start_abs_pa=152e5 + prof.ambient_pa, end_abs_pa=150e5 + prof.ambient_pa,
+                             duration_s=14 * 3600.0, t_start_k=294.15, t_end_k=291.15, gauge=gauge,
+                             reserve_abs=15e5 + prof.ambient_pa, ambient_pa=prof.ambient_pa,
+                             target_sccm=holds.supply_target_sccm(prof.supply("n2-A")))
+    assert app_run.result == same.result
