@@ -3,10 +3,13 @@
 import json
 import subprocess
 import sys
+from pathlib import Path
 
 import pytest
 
 from benchwarden.cli import main
+
+ROOT = Path(__file__).resolve().parents[1]
 
 
 def run(capsys, *argv):
@@ -125,3 +128,13 @@ def test_flow_reference_option_changes_the_mass_flow(capsys):
     assert d20["draw_kg_s"] / d0["draw_kg_s"] == pytest.approx(273.15 / 293.15, rel=1e-3)
     assert main(base + ["--flow-reference", "25C"]) == 2
     assert "unknown reference" in capsys.readouterr().err
+
+
+@pytest.mark.slow
+def test_json_into_a_closed_pipe_is_quiet():
+    # Regression: `benchwarden … --json | head -1` ended in a BrokenPipeError traceback.
+    proc = subprocess.run(
+        f"{sys.executable} -m benchwarden contents --gas nitrogen --volume '50 L' --pressure '200 bar' "
+        "--temperature '15 degC' --json | head -1", shell=True, capture_output=True, text=True, cwd=ROOT,
+        timeout=120)
+    assert proc.stdout.strip() == "{" and "Traceback" not in proc.stderr

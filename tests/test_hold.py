@@ -4,6 +4,7 @@ Method: the pressure-change (pressure-decay) method of EN 13184 and ASTM E2930; 
 the GUM (JCGM 100:2008) with EN 837-1 accuracy classes.
 """
 
+import json
 import math
 from pathlib import Path
 
@@ -12,10 +13,21 @@ import pytest
 
 from benchwarden.cli import main
 from benchwarden.core import gas as g
+from benchwarden.core import hold
 from benchwarden.core import hold as h
 from benchwarden.core.tables import DensityTable
 from benchwarden.errors import InputError
 from benchwarden.storage.holdlog import parse_log
+
+
+def run(capsys, *argv):
+    try:
+        code = main(list(argv))
+    except SystemExit as exc:
+        code = exc.code
+    out, err = capsys.readouterr()
+    return code, out, err
+
 
 N2 = g.parse_gas("nitrogen")
 AMB = 101325.0
@@ -252,3 +264,64 @@ def test_the_command_line_and_the_app_share_one_computation_and_one_wording(caps
                              reserve_abs=15e5 + prof.ambient_pa, ambient_pa=prof.ambient_pa,
                              target_sccm=holds.supply_target_sccm(prof.supply("n2-A")))
     assert app_run.result == same.result
+
+
+def test_hold_log_json_does_not_crash(capsys, tmp_path):
+    # Regression: a numpy bool in the result broke --json.
+    log = tmp_path / "log.csv"
+    log.write_text("time (h),pressure (bar),temperature (degC)\n" +
+                   "".join(f"{i},{150 - 0.05 * i:.3f},20\n" for i in range(12)))
+    code, out, _ = run(capsys, "hold", "--gas", "nitrogen", "--volume", "50 L", "--log", str(log), "--json",
+                       "--gauge-range", "250 bar", "--gauge-class", "0.25", "--journal", str(tmp_path / "j.db"))
+    assert code == 0 and isinstance(json.loads(out)["curvature_significant"], bool)
+
+
+def test_perfectly_linear_log_is_not_called_curved():
+    # A pressure falling exactly linearly: real-gas mass is very slightly curved (Z changes),
+    # far less than a class 0.25 gauge resolves. Regression: flagged as "curved".
+    t = np.arange(0, 25) * 3600.0
+    p = 151.01325e5 - 0.1e5 * np.arange(25)
+    log = hold.HoldLog(tuple(t), tuple(p), None)
+    fit = hold.hold_from_log(N2, 0.05, log, hold.GaugeSpec(250e5, 0.25))
+    assert not fit.curvature_significant and not any("curved" in n for n in fit.result.notes)
+
+
+def test_a_real_step_in_the_log_is_called_curved():
+    t = np.arange(0, 25) * 3600.0
+    # a temperature swing: most of a 2 bar drop in the first hours, then flat
+    p = 151.01325e5 - 2.0e5 * (1.0 - np.exp(-np.arange(25) / 4.0))
+    fit = hold.hold_from_log(N2, 0.05, hold.HoldLog(tuple(t), tuple(p), None), hold.GaugeSpec(250e5, 0.25))
+    assert fit.curvature_significant
+
+
+def test_two_readings_and_a_two_row_log_share_one_budget():
+    # GUM (JCGM 100:2008): the same two readings give the same uncertainty either way; a log
+    # of three collinear readings adds no scatter.
+    gauge = hold.GaugeSpec(250e5, 1.0)
+    two = hold.hold_two_readings(N2, 0.05, 151e5, 149e5, 86400.0, 293.15, 293.15, gauge)
+    log = hold.HoldLog((0.0, 43200.0, 86400.0), (151e5, 150e5, 149e5), (293.15, 293.15, 293.15))
+    fit = hold.hold_from_log(N2, 0.05, log, gauge)
+    assert fit.result.leak_rate_uncertainty_sccm == pytest.approx(two.leak_rate_uncertainty_sccm, rel=2e-3)
+
+
+def test_semicolon_log_with_decimal_commas_is_refused():
+    # Regression: '0;150,5;20' was misread with exit 0 and a wrong leak rate.
+    with pytest.raises(InputError, match="decimal"):
+        parse_log("time (h);pressure (bar);temperature (degC)\n0;150,5;20\n1;150,4;20\n")
+    with pytest.raises(InputError, match="fields"):
+        parse_log("time (h),pressure (bar)\n0,150,5\n1,150,4\n")
+    ok = parse_log("time (h);pressure (bar)\n0;150.5\n1;150.4\n")
+    assert len(ok.t_s) == 2
+
+
+def test_mixed_time_zones_in_a_log_are_refused():
+    with pytest.raises(InputError, match="offset"):
+        parse_log("timestamp,pressure (bar)\n2026-11-27T18:00,150\n2026-11-28T06:00+00:00,149.9\n"
+                       "2026-11-28T18:00,149.8\n")
+
+
+def test_shipped_example_log_runs(capsys, tmp_path):
+    example = ROOT / "examples" / "hold-log.csv"
+    code, out, _ = run(capsys, "hold", "--gas", "nitrogen", "--volume", "50 L", "--log", str(example),
+                       "--gauge-range", "250 bar", "--gauge-class", "0.25", "--journal", str(tmp_path / "j.db"))
+    assert code == 0 and "leak rate" in out
