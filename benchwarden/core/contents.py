@@ -77,6 +77,11 @@ def free_volume(gas: g.Gas, mass_kg: float, reference: Reference) -> float:
     mass_kg : Mass, [kg]
     reference : the reference condition (temperature [K], pressure [Pa])
 
+    Returns
+    -------
+    float
+        Free-gas volume [m³] at the reference condition.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -157,6 +162,12 @@ def contents(
     T : Gas temperature, [K]
     reference : Free-gas reference condition
     u_T : Standard uncertainty of the temperature, [K]
+
+    Returns
+    -------
+    Contents
+        Mass [kg] with its uncertainty, free-gas volume [m³] at the reference, density [kg/m³], Z
+        [-], phase and codes (``flags``).
 
     Notes
     -----
@@ -264,6 +275,12 @@ def state_by_weight(gas: g.Gas, mass_kg: float, volume_m3: float, T: float) -> W
     volume_m3 : Water (internal) volume, [m³]
     T : Temperature, [K]
 
+    Returns
+    -------
+    WeightState
+        Phase, pressure [Pa], density [kg/m³], liquid-full temperature [K] and vapour
+        pressure [Pa] of the fill.
+
     Notes
     -----
     The mean density ρ = m/V and T fix the state (a (ρ, T) flash of the reference equation of
@@ -322,6 +339,11 @@ def contents_by_weight(
     reference : Free-gas reference condition
     T : Temperature, [K]
     volume_m3 : Water volume, [m³]; required: without it the state and the pressure are unknown
+
+    Returns
+    -------
+    Contents
+        Mass [kg], the fill's phase and pressure [Pa], free-gas volume [m³], filling ratio [kg/L] and codes.
 
     References
     ----------

@@ -53,6 +53,11 @@ def solve_increasing(f: Any, lo: float, hi: float, tol: float = 1e-7) -> float:
     lo, hi : Bracket, [same unit as the variable]
     tol : Relative tolerance on the bracket, [-]
 
+    Returns
+    -------
+    float
+        The root, in the unit of ``lo`` and ``hi``.
+
     Notes
     -----
     Regula falsi with the Illinois modification: each end that stays is halved in weight.
@@ -218,6 +223,12 @@ def flash_ph(gas: Gas, h: float, p: float, T_guess: float) -> Flash:
     p : Absolute pressure, [Pa]
     T_guess : Temperature to start a mixture's search from, [K]
 
+    Returns
+    -------
+    Flash
+        Temperature [K], phase (with its vapour fraction [-]), density [kg/m³] and enthalpy
+        [J/kg] of the state.
+
     Notes
     -----
     Pure gases use CoolProp's (h, p) flash (with :func:`_pure_fallback` where it fails). Mixtures
@@ -254,6 +265,11 @@ def isentrope_state(gas: Gas, s: float, p: float, T_guess: float, verify: bool =
     T_guess : Start of a mixture's search, [K]
     verify : check a mixture's stability (False: stay on its gas branch)
 
+    Returns
+    -------
+    Flash
+        Temperature [K], phase, density [kg/m³], enthalpy [J/kg] of the state.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -277,6 +293,11 @@ def isentrope(gas: Gas, s: float, p: float, T_guess: float, verify: bool = True)
     p : Absolute pressure, [Pa]
     T_guess : Start of a mixture's search, [K]
     verify : check a mixture's stability
+
+    Returns
+    -------
+    tuple of float
+        (h [J/kg], ρ [kg/m³], T [K]) on the isentrope.
 
     References
     ----------

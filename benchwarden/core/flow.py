@@ -26,6 +26,11 @@ def critical_pressure_ratio(k: float) -> float:
     ----------
     k : Heat-capacity ratio cp/cv, [-]
 
+    Returns
+    -------
+    float
+        p*/p0 [-].
+
     References
     ----------
     Shapiro, "The Dynamics and Thermodynamics of Compressible Fluid Flow" (1953), ch. 4.
@@ -51,6 +56,11 @@ def ideal_nozzle_mass_flux(rho1: float, p1: float, k: float, r: float) -> tuple[
     p1 : Inlet absolute pressure, [Pa]
     k : Heat-capacity ratio, [-]
     r : Pressure ratio p2/p1, [-]
+
+    Returns
+    -------
+    tuple
+        (G [kg/(m²·s)], choked).
 
     References
     ----------
@@ -97,6 +107,11 @@ def nozzle_throat(gas: g.Gas, p1: float, T1: float, p2: float) -> tuple[float, b
     T1 : Inlet temperature, [K]
     p2 : Downstream absolute pressure, [Pa]
 
+    Returns
+    -------
+    tuple
+        (G [kg/(m²·s)], choked, p*/p1 [-], throat state).
+
     References
     ----------
     ISO 9300:2022 (real-gas critical flow function);
@@ -138,6 +153,11 @@ def real_nozzle_mass_flux(gas: g.Gas, p1: float, T1: float, p2: float) -> tuple[
     T1 : Inlet temperature, [K]
     p2 : Downstream absolute pressure, [Pa]
 
+    Returns
+    -------
+    tuple
+        (G [kg/(m²·s)], choked, p*/p1 [-]).
+
     References
     ----------
     ISO 9300:2022 (real-gas critical flow function); Shapiro (1953), ch. 4;
@@ -161,6 +181,11 @@ def liquid_orifice_mass_flux(rho1: float, p1: float, p2: float) -> float:
     ----------
     rho1 : Liquid (or inlet) density, [kg/m³]
     p1, p2 : Absolute pressures upstream and downstream, [Pa]
+
+    Returns
+    -------
+    float
+        Mass flux G [kg/(m²·s)].
 
     References
     ----------
@@ -222,6 +247,12 @@ def orifice_flow(
     p_up, p_down : Absolute pressures upstream and downstream, [Pa]
     T : Upstream temperature, [K]
     cd : Discharge coefficient, [-] (0.61–0.62 for a sharp-edged orifice, common practice)
+
+    Returns
+    -------
+    OrificeFlow
+        Mass flow [kg/s], standard flow [slpm], choking and its pressure ratio [-], inlet and
+        throat phases, the ideal-gas comparison [kg/s].
 
     Notes
     -----
@@ -299,6 +330,11 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
     T : Upstream temperature, [K]
     xT : Pressure-differential ratio factor at choked flow, [-]
 
+    Returns
+    -------
+    ValveFlow
+        Mass flow [kg/s], standard flow [slpm] and whether the flow is choked.
+
     References
     ----------
     IEC 60534-2-1:2011 (gas sizing), as implemented in `fluids.control_valve` (C. Bell).
@@ -353,6 +389,11 @@ def per_shot_mass_flow(gas: g.Gas, volume_m3: float, p_abs: float, T: float, rat
     p_abs : Absolute pressure, [Pa]
     T : Temperature, [K]
     rate_hz : Repetition rate, [Hz]
+
+    Returns
+    -------
+    float
+        Mass flow [kg/s].
 
     References
     ----------

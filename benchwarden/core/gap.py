@@ -100,6 +100,11 @@ def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA)
     B : [V/(cm·Torr)]
     gamma : Secondary emission coefficient, [-]
 
+    Returns
+    -------
+    float
+        Breakdown voltage [V] (``inf`` where none occurs).
+
     References
     ----------
     Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
@@ -125,6 +130,11 @@ def paschen_minimum(A: float, B: float, gamma: float = GAMMA) -> tuple[float, fl
     B : [V/(cm·Torr)]
     gamma : Secondary emission coefficient, [-]
 
+    Returns
+    -------
+    tuple of float
+        ((p·d)_min [Torr·cm], V_min [V]).
+
     References
     ----------
     Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
@@ -140,6 +150,11 @@ def air_uniform_field_kv(pd_bar_cm_20c: float) -> float:
     Parameters
     ----------
     pd_bar_cm_20c : Pressure × spacing at 20 °C, [bar·cm]
+
+    Returns
+    -------
+    float
+        Breakdown voltage [kV].
 
     References
     ----------
@@ -160,6 +175,11 @@ def sf6_uniform_field_kv(pd_bar_cm_20c: float) -> float:
     Parameters
     ----------
     pd_bar_cm_20c : Pressure × spacing at 20 °C, [bar·cm]
+
+    Returns
+    -------
+    float
+        Breakdown voltage [kV].
 
     References
     ----------
@@ -182,6 +202,11 @@ def upper_spread(gas: g.Gas) -> float:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
 
+    Returns
+    -------
+    float
+        Relative spread of the upper estimate above the estimate [-].
+
     References
     ----------
     benchwarden rule (common practice for the spread of relative strengths).
@@ -196,6 +221,11 @@ def relative_strength(gas: g.Gas) -> float:
     Parameters
     ----------
     gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float
+        Dielectric strength relative to air [-].
 
     References
     ----------
@@ -244,6 +274,11 @@ def join_parameters(gas: g.Gas) -> tuple[float, float] | None:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
 
+    Returns
+    -------
+    tuple of float or None
+        (c, n) of the join, or None.
+
     References
     ----------
     Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
@@ -275,6 +310,11 @@ def breakdown_series(gas: g.Gas, spacing_m: float, p_abs: Any, T: float = T_REF)
     spacing_m : Gap spacing, [m]
     p_abs : Absolute pressures, [Pa]
     T : Temperature, [K]
+
+    Returns
+    -------
+    numpy.ndarray
+        Breakdown voltages [kV], one per pressure.
 
     References
     ----------
@@ -325,6 +365,12 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     spacing_m : Gap spacing, [m]
     p_abs : Absolute pressure, [Pa]
     T : Temperature, [K]
+
+    Returns
+    -------
+    Breakdown
+        Estimated and upper breakdown voltages [kV], p·d at 20 °C [bar·cm], whether it is
+        within the method's validity, and the method.
 
     References
     ----------
@@ -400,6 +446,11 @@ def flashover_margin(part: str, breakdown_kv: float, clearance_m: float, rating_
     breakdown_kv : Firing voltage (the upper estimate), [kV]
     clearance_m : Air clearance, [m]
     rating_kv : The part's voltage rating, [kV], or None
+
+    Returns
+    -------
+    Margin
+        Margin [kV] between the part's flashover and the gap's firing voltage, and its status.
 
     References
     ----------

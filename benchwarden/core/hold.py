@@ -61,23 +61,86 @@ T_STD, P_STD = T0_K, ATM_PA
 
 
 def standard_density(gas: g.Gas) -> float:
-    """Real density at 0 °C, 101.325 kPa [kg/m³] (CoolProp HEOS)."""
+    """Real density at 0 °C, 101.325 kPa [kg/m³] (CoolProp HEOS).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float
+        Density at 0 °C, 101.325 kPa [kg/m³].
+
+    References
+    ----------
+    DIN 1343 standard conditions (0 °C, 101.325 kPa) for sccm; CoolProp HEOS (Bell et al., Ind. Eng.
+    Chem. Res. 53 (2014) 2498–2508).
+    """
     return g.density(gas, T_STD, P_STD)
 
 
 def kg_s_from_sccm(gas: g.Gas, sccm: float) -> float:
     """Standard flow [sccm at 0 °C, 101.325 kPa] as a mass flow [kg/s] (real density at the
-    reference); the inverse of :func:`sccm_from_kg_s`."""
+    reference); the inverse of :func:`sccm_from_kg_s`.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    sccm : Standard flow, [sccm at 0 °C, 101.325 kPa]
+
+    Returns
+    -------
+    float
+        Mass flow [kg/s].
+
+    References
+    ----------
+    DIN 1343 standard conditions (0 °C, 101.325 kPa) for sccm; CoolProp HEOS (Bell et al., Ind. Eng.
+    Chem. Res. 53 (2014) 2498–2508).
+    """
     return sccm / SCCM_PER_M3_S * standard_density(gas) if sccm else 0.0
 
 
 def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
-    """Mass flow [kg/s] as sccm at 0 °C, 101.325 kPa (real density at the reference)."""
+    """Mass flow [kg/s] as sccm at 0 °C, 101.325 kPa (real density at the reference).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    mdot : Mass flow, [kg/s]
+
+    Returns
+    -------
+    float
+        Standard flow [sccm at 0 °C, 101.325 kPa].
+
+    References
+    ----------
+    DIN 1343 standard conditions (0 °C, 101.325 kPa) for sccm; CoolProp HEOS (Bell et al., Ind. Eng.
+    Chem. Res. 53 (2014) 2498–2508).
+    """
     return mdot / standard_density(gas) * SCCM_PER_M3_S
 
 
 def target_sccm(gas: g.Gas, flow: Flow) -> float:
-    """A target leak rate (any standard or mass flow) as sccm at 0 °C, 101.325 kPa."""
+    """A target leak rate (any standard or mass flow) as sccm at 0 °C, 101.325 kPa.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    flow : a standard or mass flow (as typed and parsed)
+
+    Returns
+    -------
+    float
+        The target as standard flow [sccm at 0 °C, 101.325 kPa].
+
+    References
+    ----------
+    DIN 1343 standard conditions (0 °C, 101.325 kPa) for sccm; CoolProp HEOS (Bell et al., Ind. Eng.
+    Chem. Res. 53 (2014) 2498–2508).
+    """
     from benchwarden.core.supply import mass_flow
 
     return sccm_from_kg_s(gas, mass_flow(gas, flow))
@@ -86,6 +149,21 @@ def target_sccm(gas: g.Gas, flow: Flow) -> float:
 def pa_m3_s_from_sccm(sccm: float) -> float:
     """pV throughput [Pa·m³/s] of a standard flow at 101.325 kPa: 1 sccm = 101325/6e7 Pa·m³/s.
 
+    Parameters
+    ----------
+    sccm : Standard flow, [sccm at 0 °C, 101.325 kPa]
+
+    Returns
+    -------
+    float
+        pV throughput [Pa·m³/s].
+
+    References
+    ----------
+    DIN 1343 standard conditions (0 °C, 101.325 kPa); 1 sccm = 1e-6 m³/min at them.
+
+    Examples
+    --------
     >>> round(pa_m3_s_from_sccm(1.0), 8)
     0.00168875
     """
@@ -95,6 +173,22 @@ def pa_m3_s_from_sccm(sccm: float) -> float:
 def line_volume(length_m: float, bore_m: float) -> float:
     """Trapped volume of a tube [m³]: π/4·d²·L.
 
+    Parameters
+    ----------
+    length_m : Tube length, [m]
+    bore_m : Inner diameter, [m]
+
+    Returns
+    -------
+    float
+        Volume [m³].
+
+    References
+    ----------
+    Volume of a cylinder, V = π/4·d²·L (geometry).
+
+    Examples
+    --------
     >>> round(line_volume(2.0, 4e-3) * 1e6, 2)   # 2 m of 4 mm bore: 25.13 cm³
     25.13
     """
@@ -197,6 +291,33 @@ def hold_two_readings(
 ) -> HoldResult:
     """Leak rate from two readings (see module docstring for method and uncertainty).
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    volume_m3 : Held volume, [m³]
+    p_start : Start pressure, absolute, [Pa]
+    p_end : End pressure, absolute, [Pa]
+    duration_s : Hold duration, [s]
+    T_start : Start temperature, [K], or None (unchanged, assumed)
+    T_end : End temperature, [K], or None
+    gauge : the gauge the readings were taken with (range, class, resolution), or None
+    u_T : Standard uncertainty of a temperature reading, [K]
+    target_sccm : Target leak rate the test must resolve, [sccm], or None (1 % of the contents per day)
+    reserve_abs : The supply's reserve, absolute, [Pa], or None
+    ambient_pa : Ambient pressure the gauge reads against, [Pa]
+
+    Returns
+    -------
+    HoldResult
+        Mass loss [kg] and leak rate [kg/s, sccm, Pa·m³/s] with their standard uncertainties, the
+        verdict, the smallest resolvable leak [sccm], times to empty and to the reserve [h] and notes.
+
+    References
+    ----------
+    EN 13184 (pressure-change method) and ASTM E2930 (pressure decay); JCGM 100:2008 (GUM)
+    for the uncertainty, EN 837-1 gauge accuracy classes; CoolProp HEOS (Bell et al., Ind. Eng.
+    Chem. Res. 53 (2014) 2498–2508).
+
     Examples
     --------
     A 10 L volume at 5 bar(a) losing 0.05 bar over 24 h at constant 20 °C; ideal-gas hand
@@ -274,7 +395,33 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     matters: its departure from the line exceeds what the gauge resolves (one reading's
     uncertainty, or the log's smallest pressure step without a gauge), or the curve's end
     slopes would give another verdict. The uncertainty budget is the one of
-    :func:`hold_two_readings` (first and last reading) over the span, ⊕ the fit's standard error."""
+    :func:`hold_two_readings` (first and last reading) over the span, ⊕ the fit's standard error.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    volume_m3 : Held volume, [m³]
+    log : the logged readings (times [s], absolute pressures [Pa], temperatures [K])
+    T_default : Temperature taken where the log has none, [K]
+    gauge : the gauge the readings were taken with (range, class, resolution), or None
+    u_T : Standard uncertainty of a temperature reading, [K]
+    target_sccm : Target leak rate the test must resolve, [sccm], or None (1 % of the contents per day)
+    reserve_abs : The supply's reserve, absolute, [Pa], or None
+    ambient_pa : Ambient pressure the gauge reads against, [Pa]
+
+    Returns
+    -------
+    LogFit
+        The hold test (as :func:`hold_two_readings`), the fit's slope and standard error [kg/s],
+        its residuals [kg, Pa] and whether a curvature is significant.
+
+    References
+    ----------
+    EN 13184 (pressure-change method) and ASTM E2930 (pressure decay); JCGM 100:2008 (GUM)
+    for the uncertainty, EN 837-1 gauge accuracy classes; CoolProp HEOS (Bell et al., Ind. Eng.
+    Chem. Res. 53 (2014) 2498–2508).
+    Least squares with its covariance (numpy ``polyfit``).
+    """
     import numpy as np
 
     check_range(volume_m3, "held volume", 0.0, MAX_HELD_M3, "m³", "cylinders, lines and a vessel or two")

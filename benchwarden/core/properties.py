@@ -42,6 +42,11 @@ def limits(gas: Gas) -> tuple[float, float, float]:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
 
+    Returns
+    -------
+    tuple of float
+        (T_min [K], T_max [K], p_max [Pa]) of the equation of state.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -62,6 +67,11 @@ def melting_temperature(gas: Gas, p: float) -> float | None:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float or None
+        Melting temperature [K], or None where no melting line is known.
 
     References
     ----------
@@ -89,6 +99,12 @@ def check_state(gas: Gas, T: float, p: float | None = None) -> None:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa], or None to check the temperature alone
+
+    Returns
+    -------
+    None
+        Nothing; raises :class:`~benchwarden.errors.RangeError` (with its data) for a state outside
+        the equation of state or solid.
 
     References
     ----------
@@ -126,6 +142,12 @@ def state_at(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None
     a, b : the pair's values, SI ([Pa], [K], [kg/m³], [J/kg], [J/(kg·K)])
     imposed : a phase to impose for this call (``"gas"``, ``"liquid"``), or None
 
+    Returns
+    -------
+    AbstractState
+        This thread's CoolProp state, updated; raises :class:`~benchwarden.errors.PropertyError`
+        naming the inputs where there is no solution.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -160,6 +182,11 @@ def phase_of(gas: Gas, AS: Any) -> Phase:
     gas : the gas (pure or a mixture by mole fraction)
     AS : a CoolProp state just updated
 
+    Returns
+    -------
+    Phase
+        Phase kind and vapour fraction [-] of the state.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -188,6 +215,11 @@ def phase(gas: Gas, T: float, p: float) -> Phase:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    Phase
+        Phase kind and vapour fraction [-].
 
     References
     ----------
@@ -221,6 +253,11 @@ def pt_state(gas: Gas, T: float, p: float) -> PTState:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    PTState
+        Density [kg/m³], compressibility factor Z [-] and phase.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -241,6 +278,11 @@ def density(gas: Gas, T: float, p: float) -> float:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Mass density [kg/m³].
 
     References
     ----------
@@ -265,6 +307,11 @@ def z_factor(gas: Gas, T: float, p: float) -> float:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    float
+        Compressibility factor Z [-].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -282,6 +329,11 @@ def pressure_from_density(gas: Gas, rho: float, T: float) -> float:
     gas : the gas (pure or a mixture by mole fraction)
     rho : Mass density, [kg/m³]
     T : Temperature, [K]
+
+    Returns
+    -------
+    float
+        Absolute pressure [Pa].
 
     Notes
     -----
@@ -307,6 +359,11 @@ def enthalpy(gas: Gas, T: float, p: float) -> float:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    float
+        Specific enthalpy [J/kg].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -325,6 +382,11 @@ def entropy(gas: Gas, T: float, p: float) -> float:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    float
+        Specific entropy [J/(kg·K)].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -342,6 +404,11 @@ def heat_capacity_ratio(gas: Gas, T: float, p: float) -> float:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        cp/cv of the real fluid [-].
 
     Notes
     -----
@@ -366,6 +433,11 @@ def ideal_gas_heat_capacity_ratio(gas: Gas, T: float) -> float:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
+
+    Returns
+    -------
+    float
+        cp0/cv0 of the ideal gas [-].
 
     References
     ----------
@@ -394,6 +466,11 @@ def vapour_enthalpy(gas: Gas, T: float, p: float) -> float:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    float
+        Vapour specific enthalpy [J/kg].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -417,6 +494,11 @@ def vapour_density(gas: Gas, T: float, p: float) -> float:
     gas : a pure gas
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Vapour mass density [kg/m³].
 
     References
     ----------

@@ -66,6 +66,11 @@ def sublimation_enthalpy(gas: g.Gas, T: float) -> float:
     gas : CO2
     T : Temperature, [K] (below the triple point)
 
+    Returns
+    -------
+    float
+        Enthalpy of sublimation [J/kg].
+
     References
     ----------
     Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596, eq. 3.12 (sublimation line).
@@ -124,6 +129,11 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     p_in, p_out : Absolute inlet and outlet pressures, [Pa]
     T_in : Inlet temperature, [K]
     saturated_vapour : take the inlet as saturated vapour at T_in (vapour drawn off the liquid)
+
+    Returns
+    -------
+    Throttle
+        Outlet temperature [K], phase, vapour or solid fraction [-] and codes (``flags``).
 
     Notes
     -----
@@ -231,6 +241,11 @@ def joule_thomson_coefficient(gas: g.Gas, T: float, p: float, dp: float = 1e3) -
     p : Absolute pressure, [Pa]
     dp : Pressure step, [Pa]
 
+    Returns
+    -------
+    float
+        μ_JT [K/Pa].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -259,6 +274,11 @@ def outlet_drift(set_point_abs: float, inlet_at_setting_abs: float, inlet_abs: f
     inlet_at_setting_abs : Inlet pressure when it was set, [Pa]
     inlet_abs : Inlet pressure now, [Pa]
     effects : Supply-pressure effect of each stage, [Pa/Pa]
+
+    Returns
+    -------
+    float
+        Outlet absolute pressure [Pa].
 
     References
     ----------

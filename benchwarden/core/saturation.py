@@ -27,6 +27,11 @@ def saturated_vapour_enthalpy(gas: Gas, T: float) -> float:
     gas : a pure gas
     T : Temperature, [K]
 
+    Returns
+    -------
+    float
+        Saturated vapour specific enthalpy [J/kg].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -42,6 +47,11 @@ def critical_temperature(gas: Gas) -> float:
     Parameters
     ----------
     gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float
+        Critical (or pseudo-critical) temperature [K].
 
     Notes
     -----
@@ -65,6 +75,11 @@ def triple_point(gas: Gas) -> tuple[float, float]:
     ----------
     gas : a pure gas
 
+    Returns
+    -------
+    tuple of float
+        (T [K], p [Pa]) of the triple point.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -84,6 +99,11 @@ def saturation_pressure(gas: Gas, T: float) -> float:
     gas : a pure gas
     T : Temperature, [K]
 
+    Returns
+    -------
+    float
+        Vapour pressure [Pa].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -101,6 +121,11 @@ def critical_pressure(gas: Gas) -> float:
     Parameters
     ----------
     gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float
+        Critical (or pseudo-critical) pressure [Pa].
 
     Notes
     -----
@@ -124,6 +149,11 @@ def saturation_densities(gas: Gas, T: float) -> tuple[float, float]:
     gas : a pure gas
     T : Temperature, [K]
 
+    Returns
+    -------
+    tuple of float
+        (saturated liquid, saturated vapour) densities [kg/m³].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -142,6 +172,11 @@ def saturated_vapour_density_at_p(gas: Gas, p: float) -> float:
     ----------
     gas : a pure gas
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Saturated vapour density [kg/m³].
 
     References
     ----------
@@ -163,6 +198,11 @@ def liquid_full_temperature(gas: Gas, rho: float) -> float | None:
     ----------
     gas : a pure gas
     rho : Mean density of the fill (mass / water volume), [kg/m³]
+
+    Returns
+    -------
+    float or None
+        Temperature [K] at which the fill becomes liquid-full, or None.
 
     Notes
     -----
@@ -215,6 +255,11 @@ def is_liquid_full(gas: Gas, T: float, p: float) -> bool:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    bool
+        True where the cylinder is full of liquid.
+
     Notes
     -----
     Threshold :data:`LIQUID_FULL_FACTOR` (10 % above the vapour pressure: gauge error and a
@@ -240,6 +285,11 @@ def is_liquefied(gas: Gas, T: float, p: float) -> bool:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    bool
+        True where the cylinder holds liquid.
 
     Notes
     -----

@@ -65,6 +65,12 @@ def heat_up(
     ambient_pa : Ambient pressure, [Pa]
     service_abs, test_abs : Service and test pressures (absolute), [Pa]
 
+    Returns
+    -------
+    HeatUp
+        Pressure after the change [Pa] (real and ideal gas) and whether it passes the storage limit,
+        the service and the test pressure.
+
     Notes
     -----
     Isochoric: ρ = ρ(T1, p1) stays; p2 = p(ρ, T2).
@@ -107,6 +113,11 @@ def mass_flow(gas: g.Gas, flow: Flow, T: float | None = None, p_abs: float | Non
     flow : a parsed flow (standard with its reference, mass, or actual volume)
     T : Temperature of an actual volume flow, [K]
     p_abs : Absolute pressure of an actual volume flow, [Pa]
+
+    Returns
+    -------
+    float
+        Mass flow [kg/s].
 
     References
     ----------
@@ -153,6 +164,11 @@ def runtime(gas: g.Gas, volume_m3: float, p_abs: float, reserve_abs: float, T: f
     reserve_abs : Absolute reserve pressure, [Pa]
     T : Temperature, [K]
     draw_kg_s : Total draw, [kg/s]
+
+    Returns
+    -------
+    Runtime
+        Usable mass, mass now and at the reserve [kg], and hours to the reserve [h].
 
     References
     ----------
