@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import TYPE_CHECKING, Literal
 
-from benchwarden.errors import PA_ABS, InputError, RangeError
+from benchwarden.errors import PA_ABS, PA_DIFF, InputError, RangeError
 from benchwarden.units.constants import ATM_PA, BAR_PA, PSI_PA, T0_K, T_FULL_K
 from benchwarden.units.limits import check_quantity_text
 
@@ -364,8 +364,11 @@ SANITY_LIMITS: dict[str, tuple[float, str]] = {
 
 def _sane(value: float, kind: str, text: str, what: str) -> float:
     hi, words = SANITY_LIMITS[kind]
-    if abs(value) > hi:
-        raise InputError(f"{what} {shorten(text)!r} is beyond {words}, more than any bench uses; check the unit")
+    if abs(value) > hi:  # a pressure's limit is worded in the display unit, the others as written here
+        raise RangeError(what=what, value=value, typed=shorten(text), lo=-hi if value < 0 else None,
+                         hi=hi if value > 0 else None, unit=PA_DIFF if kind == "pressure" else kind,
+                         words=None if kind == "pressure" else f"at most {words}",
+                         why="more than any bench uses; check the unit")
     return value
 
 
