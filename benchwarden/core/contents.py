@@ -172,18 +172,12 @@ def contents(
     Notes
     -----
     A gas sold liquefied (CO2, SF6) below its critical temperature at or above its vapour
-    pressure has no pressure-based contents: ``phase`` is ``liquefied`` (or ``liquid-full`` more
-    than 10 % above it) and the mass fields are None; weigh it (:func:`contents_by_weight`).
-    Just below the vapour pressure the answer is the vapour's mass, flagged
-    ``near-vapour-pressure``: there is no step between a refusal and an answer.
-
-    The sensitivity ∂m/∂T at the measured pressure is a central difference (±0.05 K) of the
-    real-gas mass; the mass uncertainty is the larger change of the mass over T ± u_T (GUM,
-    JCGM 100:2008, §5.1.2 with a non-linear model evaluated at its ends). Where T − u_T lies
-    below the saturation temperature at p, the cylinder may hold liquid: the mass there is
-    taken as the saturated vapour's (a lower bound) and ``may-hold-liquid`` is flagged. Near
-    the critical point the mass moves by kilograms per kelvin (CO2 at 72 bar(g), 31 °C:
-    about 2.6 kg/K in 50 L).
+    pressure has no pressure-based contents (``phase`` ``liquefied`` or ``liquid-full``; mass
+    None; weigh it, :func:`contents_by_weight`); just below it, the vapour's mass, flagged
+    ``near-vapour-pressure``. ∂m/∂T is a central difference (±0.05 K); the mass uncertainty the
+    larger change of the mass over T ± u_T (GUM §5.1.2, the model evaluated at its ends); where
+    T − u_T is below the saturation temperature at p, the saturated vapour's mass (a lower bound,
+    ``may-hold-liquid``). Near the critical point: kilograms per kelvin (CO2, 72 bar(g), 31 °C).
 
     References
     ----------

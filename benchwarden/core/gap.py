@@ -35,6 +35,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from benchwarden.core import gas as g
+from benchwarden.core.flashover import AIR_FLASHOVER_KV_PER_MM, Margin, flashover_margin  # noqa: F401 - re-exported
 from benchwarden.errors import PA_ABS
 from benchwarden.units import check_positive, check_range
 from benchwarden.units.constants import BAR_PA, TORR_PA
@@ -83,9 +84,6 @@ ROUGH_SPREAD = 0.20
 #: Gases whose method is a smooth-electrode, uniform-field value (the upper estimate itself:
 #: real electrodes fire lower).
 _UPPER_METHODS = ("air", "nitrogen", "sulfur hexafluoride")
-
-#: Flashover strength of a short, non-uniform air clearance: about 1 kV per mm (common practice).
-AIR_FLASHOVER_KV_PER_MM = 1.0
 
 
 def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA) -> float:
@@ -415,60 +413,3 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
                     "no estimate")
     return Breakdown(gas.name, spacing_m, p_abs, T, pd_bar_cm, kv, within, method, validity,
                      kv * (1.0 + upper_spread(gas)))
-
-
-@dataclass(frozen=True)
-class Margin:
-    part: str
-    clearance_m: float
-    rating_kv: float | None
-    withstand_kv: float
-    margin_kv: float
-    margin_percent: float
-    status: str  # "ok" | "attention" | "stop"
-    method: str
-    #: the firing voltage the margin is taken against [kV]: the gap's upper estimate
-    firing_kv: float = math.nan
-
-
-def flashover_margin(part: str, breakdown_kv: float, clearance_m: float, rating_kv: float | None) -> Margin:
-    """Margin of an exposed high-voltage part against the gap's firing voltage; pass the *upper*
-    estimate (:attr:`Breakdown.breakdown_high_kv`): a gap that fires higher than planned leaves
-    less margin.
-
-    Withstand = min(clearance × 1 kV/mm (short non-uniform air gaps, common practice), rating).
-    Status: ``stop`` when the firing voltage reaches the withstand, ``attention`` below 20 %
-    margin, else ``ok``.
-
-    Parameters
-    ----------
-    part : the exposed part's name
-    breakdown_kv : Firing voltage (the upper estimate), [kV]
-    clearance_m : Air clearance, [m]
-    rating_kv : The part's voltage rating, [kV], or None
-
-    Returns
-    -------
-    Margin
-        Margin [kV] between the part's flashover and the gap's firing voltage, and its status.
-
-    References
-    ----------
-    Common practice (about 1 kV/mm for a short, non-uniform air clearance).
-
-    Examples
-    --------
-    >>> m = flashover_margin("feedthrough", 30.0, 25e-3, 40.0)
-    >>> m.withstand_kv, m.margin_kv, m.status
-    (25.0, -5.0, 'stop')
-    """
-    check_positive(clearance_m, f"air clearance of {part}", "m")
-    flash = clearance_m * 1000.0 * AIR_FLASHOVER_KV_PER_MM
-    withstand = min(flash, rating_kv) if rating_kv is not None else flash
-    margin = withstand - breakdown_kv
-    pct = 100.0 * margin / breakdown_kv if breakdown_kv > 0 else math.inf
-    status = "stop" if margin <= 0 else ("attention" if pct < 20.0 else "ok")
-    return Margin(part, clearance_m, rating_kv, withstand, margin, pct, status,
-                  "clearance × 1 kV/mm (common practice) or rating, whichever is lower", breakdown_kv)
-
-

@@ -29,8 +29,19 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from benchwarden.core import gas as g
+from benchwarden.core.leakrate import (  # noqa: F401 - re-exported: leak rates in their units
+    P_STD,
+    T_STD,
+    kg_s_from_sccm,
+    line_volume,
+    pa_m3_s_from_sccm,
+    sccm_from_kg_s,
+    standard_density,
+)
+from benchwarden.core.leakrate import target_sccm as _target_sccm
 from benchwarden.core.tables import DensityTable
 from benchwarden.core.uncertainty import (  # noqa: F401 - re-exported: hold tests' measurement model
     K_EXPANDED,
@@ -47,155 +58,15 @@ from benchwarden.core.uncertainty import (  # noqa: F401 - re-exported: hold tes
 )
 from benchwarden.errors import PA_GAUGE, InputError, RangeError
 from benchwarden.units import (
-    Flow,
-    check_positive,
     check_range,
 )
 from benchwarden.units.constants import ATM_PA, SCCM_PER_M3_S, SECONDS_PER_DAY, T0_K
 
+#: A target leak rate as sccm (re-exported from :mod:`benchwarden.core.leakrate`).
+target_sccm = _target_sccm
+
 #: Largest held volume of a hold test [m³].
 MAX_HELD_M3 = 100.0
-
-#: Standard-flow reference for leak rates: 0 °C, 101.325 kPa.
-T_STD, P_STD = T0_K, ATM_PA
-
-
-def standard_density(gas: g.Gas) -> float:
-    """Real density at 0 °C, 101.325 kPa [kg/m³] (CoolProp HEOS).
-
-    Parameters
-    ----------
-    gas : the gas (pure or a mixture by mole fraction)
-
-    Returns
-    -------
-    float
-        Density at 0 °C, 101.325 kPa [kg/m³].
-
-    References
-    ----------
-    DIN 1343 standard conditions (0 °C, 101.325 kPa) for sccm; CoolProp HEOS (Bell et al., Ind. Eng.
-    Chem. Res. 53 (2014) 2498–2508).
-    """
-    return g.density(gas, T_STD, P_STD)
-
-
-def kg_s_from_sccm(gas: g.Gas, sccm: float) -> float:
-    """Standard flow [sccm at 0 °C, 101.325 kPa] as a mass flow [kg/s] (real density at the
-    reference); the inverse of :func:`sccm_from_kg_s`.
-
-    Parameters
-    ----------
-    gas : the gas (pure or a mixture by mole fraction)
-    sccm : Standard flow, [sccm at 0 °C, 101.325 kPa]
-
-    Returns
-    -------
-    float
-        Mass flow [kg/s].
-
-    References
-    ----------
-    DIN 1343 standard conditions (0 °C, 101.325 kPa) for sccm; CoolProp HEOS (Bell et al., Ind. Eng.
-    Chem. Res. 53 (2014) 2498–2508).
-    """
-    return sccm / SCCM_PER_M3_S * standard_density(gas) if sccm else 0.0
-
-
-def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
-    """Mass flow [kg/s] as sccm at 0 °C, 101.325 kPa (real density at the reference).
-
-    Parameters
-    ----------
-    gas : the gas (pure or a mixture by mole fraction)
-    mdot : Mass flow, [kg/s]
-
-    Returns
-    -------
-    float
-        Standard flow [sccm at 0 °C, 101.325 kPa].
-
-    References
-    ----------
-    DIN 1343 standard conditions (0 °C, 101.325 kPa) for sccm; CoolProp HEOS (Bell et al., Ind. Eng.
-    Chem. Res. 53 (2014) 2498–2508).
-    """
-    return mdot / standard_density(gas) * SCCM_PER_M3_S
-
-
-def target_sccm(gas: g.Gas, flow: Flow) -> float:
-    """A target leak rate (any standard or mass flow) as sccm at 0 °C, 101.325 kPa.
-
-    Parameters
-    ----------
-    gas : the gas (pure or a mixture by mole fraction)
-    flow : a standard or mass flow (as typed and parsed)
-
-    Returns
-    -------
-    float
-        The target as standard flow [sccm at 0 °C, 101.325 kPa].
-
-    References
-    ----------
-    DIN 1343 standard conditions (0 °C, 101.325 kPa) for sccm; CoolProp HEOS (Bell et al., Ind. Eng.
-    Chem. Res. 53 (2014) 2498–2508).
-    """
-    from benchwarden.core.supply import mass_flow
-
-    return sccm_from_kg_s(gas, mass_flow(gas, flow))
-
-
-def pa_m3_s_from_sccm(sccm: float) -> float:
-    """pV throughput [Pa·m³/s] of a standard flow at 101.325 kPa: 1 sccm = 101325/6e7 Pa·m³/s.
-
-    Parameters
-    ----------
-    sccm : Standard flow, [sccm at 0 °C, 101.325 kPa]
-
-    Returns
-    -------
-    float
-        pV throughput [Pa·m³/s].
-
-    References
-    ----------
-    DIN 1343 standard conditions (0 °C, 101.325 kPa); 1 sccm = 1e-6 m³/min at them.
-
-    Examples
-    --------
-    >>> round(pa_m3_s_from_sccm(1.0), 8)
-    0.00168875
-    """
-    return sccm * P_STD / SCCM_PER_M3_S
-
-
-def line_volume(length_m: float, bore_m: float) -> float:
-    """Trapped volume of a tube [m³]: π/4·d²·L.
-
-    Parameters
-    ----------
-    length_m : Tube length, [m]
-    bore_m : Inner diameter, [m]
-
-    Returns
-    -------
-    float
-        Volume [m³].
-
-    References
-    ----------
-    Volume of a cylinder, V = π/4·d²·L (geometry).
-
-    Examples
-    --------
-    >>> round(line_volume(2.0, 4e-3) * 1e6, 2)   # 2 m of 4 mm bore: 25.13 cm³
-    25.13
-    """
-    check_positive(length_m, "line length", "m")
-    check_positive(bore_m, "line bore", "m")
-    return math.pi / 4.0 * bore_m**2 * length_m
-
 
 @dataclass(frozen=True)
 class HoldResult:
@@ -382,20 +253,38 @@ class LogFit:
     fit_kg: tuple[float, ...]
 
 
+def _curved(tc: Any, m: Any, fit: Any, p: Any, u_p: float | None, dm2p: float, slope: float, u_rate: float) -> bool:
+    """Whether a quadratic term is significant (3 standard errors) and matters: its departure
+    from the line exceeds what the gauge resolves (``u_p`` [Pa]; None: the log's smallest
+    pressure step), or the curve's end slopes would give another verdict."""
+    import numpy as np
+
+    c2, cov2 = np.polyfit(tc, m, 2, cov=True)
+    significant = cov2[0, 0] > 0 and abs(c2[0]) > 3.0 * math.sqrt(cov2[0, 0])
+    # how far the curve departs from the line over the log, as mass [kg]
+    departure = float(np.max(np.abs(np.polyval(c2, tc) - fit)))
+    # what the gauge can resolve, as mass: one reading's uncertainty, or without a gauge
+    # the smallest step between the log's own distinct pressures
+    steps = np.diff(np.unique(p))
+    resolvable_pa = u_p if u_p is not None else (float(steps.min()) if steps.size else 0.0)
+    resolvable = dm2p * resolvable_pa
+    # the end slopes of the curve against the fitted rate: does it change the verdict?
+    slope_ends = [-(2.0 * c2[0] * x + c2[1]) for x in (tc[0], tc[-1])]
+    U = K_EXPANDED * u_rate
+    verdict_changes = any((s > U) != (slope > U) for s in slope_ends)
+    return bool(significant and (departure > resolvable or verdict_changes))
+
+
 def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec | None = None,
                   T_default: float = 293.15, u_T: float = U_T_DEFAULT, target_sccm: float | None = None,
                   reserve_abs: float | None = None, ambient_pa: float = ATM_PA) -> LogFit:
-    """Fit the held mass against time by least squares (numpy ``polyfit`` with its covariance):
-    the slope is the leak rate, its standard error the scatter part of the uncertainty; the
-    gauge's systematic part (MPE over the span of the log, GUM) is added in quadrature.
-
-    Masses come from a Z(p, T) table (:class:`benchwarden.core.tables.DensityTable`, error < 1e-4),
-    not from one CoolProp call per row. A quadratic term significant at 3 standard errors
-    flags a curved decay (a temperature swing, a step, a leak that changes) only where it
-    matters: its departure from the line exceeds what the gauge resolves (one reading's
-    uncertainty, or the log's smallest pressure step without a gauge), or the curve's end
-    slopes would give another verdict. The uncertainty budget is the one of
-    :func:`hold_two_readings` (first and last reading) over the span, ⊕ the fit's standard error.
+    """Fit the held mass against time by least squares: the slope is the leak rate, its standard
+    error the scatter part of the uncertainty, the budget of :func:`hold_two_readings` (first and
+    last reading) over the span added in quadrature. Masses come from a Z(p, T) table
+    (:class:`~benchwarden.core.tables.DensityTable`, error < 1e-4). A quadratic term significant
+    at 3 standard errors flags a curved decay (a temperature swing, a step, a changing leak) only
+    where its departure from the line exceeds what the gauge resolves, or the curve's end slopes
+    would give another verdict.
 
     Parameters
     ----------
@@ -403,11 +292,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     volume_m3 : Held volume, [m³]
     log : the logged readings (times [s], absolute pressures [Pa], temperatures [K])
     T_default : Temperature taken where the log has none, [K]
-    gauge : the gauge the readings were taken with (range, class, resolution), or None
-    u_T : Standard uncertainty of a temperature reading, [K]
-    target_sccm : Target leak rate the test must resolve, [sccm], or None (1 % of the contents per day)
-    reserve_abs : The supply's reserve, absolute, [Pa], or None
-    ambient_pa : Ambient pressure the gauge reads against, [Pa]
+    gauge, u_T, target_sccm, reserve_abs, ambient_pa : as in :func:`hold_two_readings` ([K], [sccm], [Pa])
 
     Returns
     -------
@@ -419,8 +304,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     ----------
     EN 13184 (pressure-change method) and ASTM E2930 (pressure decay); JCGM 100:2008 (GUM)
     for the uncertainty, EN 837-1 gauge accuracy classes; CoolProp HEOS (Bell et al., Ind. Eng.
-    Chem. Res. 53 (2014) 2498–2508).
-    Least squares with its covariance (numpy ``polyfit``).
+    Chem. Res. 53 (2014) 2498–2508); least squares with its covariance (numpy ``polyfit``).
     """
     import numpy as np
 
@@ -453,22 +337,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     fit = np.polyval(coef, tc)
     resid = m - fit
     slope, se, u_rate, dm2p, span = mf.rate_kg_s, mf.se_kg_s, mf.u_kg_s, mf.dmdp_last, mf.span_s
-    curved = False
-    if n >= 5:
-        c2, cov2 = np.polyfit(tc, m, 2, cov=True)
-        significant = cov2[0, 0] > 0 and abs(c2[0]) > 3.0 * math.sqrt(cov2[0, 0])
-        # how far the curve departs from the line over the log, as mass [kg]
-        departure = float(np.max(np.abs(np.polyval(c2, tc) - fit)))
-        # what the gauge can resolve, as mass: one reading's uncertainty, or without a gauge
-        # the smallest step between the log's own distinct pressures
-        steps = np.diff(np.unique(p))
-        resolvable_pa = u_p if gauge is not None else (float(steps.min()) if steps.size else 0.0)
-        resolvable = dm2p * resolvable_pa
-        # the end slopes of the curve against the fitted rate: does it change the verdict?
-        slope_ends = [-(2.0 * c2[0] * x + c2[1]) for x in (tc[0], tc[-1])]
-        U = K_EXPANDED * u_rate
-        verdict_changes = any((s > U) != (slope > U) for s in slope_ends)
-        curved = bool(significant and (departure > resolvable or verdict_changes))
+    curved = n >= 5 and _curved(tc, m, fit, p, u_p if gauge is not None else None, dm2p, slope, u_rate)
     rms = float(np.sqrt(np.mean(resid**2)))
     res = _common(gas, volume_m3, span, float(p[0]), float(p[-1]), float(T[0]), float(T[-1]), slope, u_rate,
                   u_rate * span, float(m[0]), float(m[-1]), dm2p, gauge, target_sccm, reserve_abs, ambient_pa,

@@ -3,12 +3,11 @@ phases, enthalpy, entropy, heat-capacity ratios (re-exported by :mod:`benchwarde
 
 References
 ----------
-Bell, I. H., Wronski, J., Quoilin, S. and Lemort, V., "Pure and pseudo-pure fluid thermophysical
-property evaluation and the open-source thermophysical property library CoolProp", Ind. Eng.
-Chem. Res. 53 (2014) 2498–2508, with each fluid's reference equation of state (Span et al. 2000
-for nitrogen, Tegeler et al. 1999 for argon, Lemmon et al. 2000 for air, Span & Wagner 1996 for
-CO2, Guder & Wagner 2009 for SF6, ...); mixtures by GERG-2008 / Kunz–Wagner mixing (Kunz &
-Wagner, J. Chem. Eng. Data 57 (2012) 3032–3091).
+Bell, Wronski, Quoilin & Lemort, "Pure and pseudo-pure fluid thermophysical property evaluation
+and the open-source thermophysical property library CoolProp", Ind. Eng. Chem. Res. 53 (2014)
+2498–2508, with each fluid's reference equation of state (Span et al. 2000 nitrogen, Tegeler et
+al. 1999 argon, Lemmon et al. 2000 air, Span & Wagner 1996 CO2, Guder & Wagner 2009 SF6, ...);
+mixtures by GERG-2008 / Kunz–Wagner (J. Chem. Eng. Data 57 (2012) 3032–3091).
 """
 
 from __future__ import annotations
@@ -19,16 +18,14 @@ from typing import Any
 
 from benchwarden.core import eos
 from benchwarden.core.gases import Gas, R, parse_gas  # noqa: F401 - parse_gas: the doctests use it
-from benchwarden.errors import KELVIN, PA_ABS, InputError, PropertyError, RangeError
+from benchwarden.errors import KELVIN, PA_ABS, PropertyError, RangeError
 
 __all__ = ["coolprop", "state", "estimated_pairs", "SUPERANCILLARY_SWITCH", "limits",
            "melting_temperature", "check_state", "state_at", "Phase", "phase_of", "phase",
            "PTState", "pt_state", "density", "z_factor", "pressure_from_density", "enthalpy",
-           "entropy", "heat_capacity_ratio", "ideal_gas_heat_capacity_ratio", "vapour_enthalpy",
-           "vapour_density"]
+           "entropy", "heat_capacity_ratio", "ideal_gas_heat_capacity_ratio"]
 
-# CoolProp's states live in :mod:`benchwarden.core.eos` (one door: a failed update never leaves
-# a half-set state behind); re-exported here for callers that need the module or a constant.
+# CoolProp's states live in :mod:`benchwarden.core.eos` (one door), re-exported here.
 coolprop = eos.coolprop
 state = eos.state
 estimated_pairs = eos.estimated_pairs
@@ -103,8 +100,7 @@ def check_state(gas: Gas, T: float, p: float | None = None) -> None:
     Returns
     -------
     None
-        Nothing; raises :class:`~benchwarden.errors.RangeError` (with its data) for a state outside
-        the equation of state or solid.
+        Raises :class:`~benchwarden.errors.RangeError` (with its data) outside the EOS or solid.
 
     References
     ----------
@@ -452,66 +448,3 @@ def ideal_gas_heat_capacity_ratio(gas: Gas, T: float) -> float:
     AS = state_at(gas, "PT_INPUTS", 1e3, T, imposed="gas")  # cp0 depends on T alone
     cp0 = float(AS.cp0mass())
     return cp0 / (cp0 - R / gas.molar_mass)
-
-
-def vapour_enthalpy(gas: Gas, T: float, p: float) -> float:
-    """Specific enthalpy [J/kg] of the *vapour* at (T, p), also below the triple-point
-    temperature where CoolProp's range check stops (the vapour branch of the same Helmholtz
-    equation, evaluated with the gas phase imposed; used for CO2 vapour above its
-    sublimation line). Pure gases only.
-
-    Parameters
-    ----------
-    gas : a pure gas
-    T : Temperature, [K]
-    p : Absolute pressure, [Pa]
-
-    Returns
-    -------
-    float
-        Vapour specific enthalpy [J/kg].
-
-    References
-    ----------
-    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
-    fluid's reference equation of state.
-    Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596 (CO2).
-
-    Examples
-    --------
-    >>> round(vapour_enthalpy(parse_gas("co2"), 204.15, 101325.0) / 1e3, 1)
-    429.9
-    """
-    return float(_vapour_state(gas, T, p).hmass())
-
-
-def vapour_density(gas: Gas, T: float, p: float) -> float:
-    """Mass density [kg/m³] of the *vapour* at (T, p), also below the triple-point temperature
-    (the vapour branch imposed, as in :func:`vapour_enthalpy`). Pure gases only.
-
-    Parameters
-    ----------
-    gas : a pure gas
-    T : Temperature, [K]
-    p : Absolute pressure, [Pa]
-
-    Returns
-    -------
-    float
-        Vapour mass density [kg/m³].
-
-    References
-    ----------
-    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
-    fluid's reference equation of state.
-    """
-    return float(_vapour_state(gas, T, p).rhomass())
-
-
-def _vapour_state(gas: Gas, T: float, p: float) -> Any:
-    if gas.is_mixture:
-        raise InputError("the vapour branch below the triple point is for pure gases")
-    AS = eos.update(gas, "PT_INPUTS", p, T, imposed="gas")
-    if AS is None:
-        raise PropertyError(f"no vapour state of {gas.name} at {{0}}, {{1}}", quantities=((T, KELVIN), (p, PA_ABS)))
-    return AS

@@ -148,12 +148,10 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     Mixtures use a phase-equilibrium (h, p) flash (:func:`benchwarden.core.flash.flash_ph`)
     that says when a component condenses. Freezing is a result, not an error.
 
-    A gas sold liquefied, below its critical temperature: at or up to 10 % above its vapour
-    pressure (gauge error) the inlet is saturated vapour drawn off the liquid; within 5 % below
-    it, it is also *treated* as saturated — conservative, since saturated vapour forms more
-    solid than the slightly superheated vapour the reading would mean (``inlet-near-vapour-
-    pressure``); further above, the input is refused (a liquid-full cylinder, a warmer cylinder,
-    or another gas).
+    A gas sold liquefied, below its critical temperature: up to 10 % above its vapour pressure
+    the inlet is saturated vapour drawn off the liquid; within 5 % below it, it is *treated* as
+    saturated (conservative: more solid forms; ``inlet-near-vapour-pressure``); further above,
+    the input is refused (a liquid-full cylinder, a warmer cylinder, or another gas).
 
     References
     ----------
