@@ -21,6 +21,7 @@ from benchwarden.cli.common import (
     whole_number,
 )
 from benchwarden.render.display import Display
+from benchwarden.render.errors import error_line
 from benchwarden.render.files import clean
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
 from benchwarden.render.numbers import fmt_uncertain
@@ -117,7 +118,7 @@ def cmd_import(args: argparse.Namespace, prof: comp.Profile, now: dt.datetime) -
         a = assess(prof, j, now)
         planned = next((s.draw_kg_s for s in a.plan.supplies if s.id == args.supply), None)
         r = import_readings(j, prof, args.supply, text, now, args.confirm, planned)
-    refused = [{"line": n, "reason": why} for n, why in r.refused]
+    refused = [{"line": n, "reason": why if isinstance(why, str) else error_line(why, d)} for n, why in r.refused]
     if not r.refused and not args.confirm:
         refused += [{"line": n, "reason": "implausible: " + question_text(q, d) + " (record it with --confirm)"}
                     for n, q in r.questions]

@@ -130,7 +130,7 @@ class OverviewScreen(OverviewActions):
             else:
                 self.state.recompute()
         except BenchwardenError as exc:
-            self.app.call_from_thread(self._error, str(exc))
+            self.app.call_from_thread(self._error, error_line(exc, self.units))
             return
         self.app.call_from_thread(self._plan_ready)
 
@@ -189,7 +189,7 @@ class OverviewScreen(OverviewActions):
                 st.refresh_live()
                 self.app.call_from_thread(self.refresh_view)
         except BenchwardenError as exc:
-            self.app.call_from_thread(self.notify, str(exc), title="Live gauges", severity="error", timeout=10)
+            self.app.call_from_thread(self.notify, error_line(exc, self.units), title="Live gauges", severity="error", timeout=10)
 
     def _error(self, msg: str) -> None:
         self.query_one("#status", Static).update(Text(f"✖ {msg}"))
