@@ -115,6 +115,18 @@ class RangeError(InputError):
         super().__init__(msg or range_sentence(self))
         self.quantities = quantities  # the sentence has them already; kept for the renderer
 
+    def located(self, where: str) -> "RangeError":
+        """The same error placed (``where``: a log row, a file line) in front of its own place.
+
+        >>> str(RangeError(what="pressure", value=3e7, hi=2e7, unit="Pa(a)").located("log row 4"))
+        'log row 4: pressure 3e+07 Pa(a) is out of range: at most 2e+07 Pa(a)'
+        """
+        e = RangeError.__new__(RangeError)
+        e.__dict__.update(self.__dict__)
+        e.where = f"{where}: {self.where}" if self.where else where
+        e.args = (range_sentence(e),)
+        return e
+
 
 def range_sentence(e: RangeError, fmt: Format | None = None) -> str:
     """The one sentence of a :class:`RangeError`, its figures written by ``fmt(value, unit)``
