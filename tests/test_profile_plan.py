@@ -106,7 +106,7 @@ def _bad(replace_from: str, replace_to: str) -> str:
     [
         (_bad('water_volume = "50 L"', 'water_volume = "50 L"\nwater_colour = "blue"'), "unknown key"),
         (_bad('regulator = "reg-channel"', 'regulator = "reg-missing"'), "does not exist"),
-        (_bad('set_point = "3 bar"', 'set_point = "12 bar"'), "outside the outlet range"),
+        (_bad('set_point = "3 bar"', 'set_point = "12 bar"'), "out of range"),
         (_bad('spacing = "1.4 mm"', 'spacing = "0 mm"'), "greater than zero"),
         (_bad('reserve = "15 bar"', 'reserve = "250 bar"'), "reserve"),
         (_bad('reading = "64 bar"', 'reading = "400 bar"'), "test pressure"),

@@ -22,7 +22,7 @@ from pydantic import (
 )
 
 from benchwarden import units as u
-from benchwarden.errors import BenchwardenError, InputError, ProfileError, RangeError
+from benchwarden.errors import PA_GAUGE, BenchwardenError, InputError, ProfileError, RangeError
 from benchwarden.storage.profile_fields import ProfileModel as _Model
 from benchwarden.storage.profile_fields import (
     SourceBase,
@@ -107,9 +107,9 @@ class Profile(_Model):
                                f"regulator {r.id}: supply_pressure_effect needs {r.stages} value(s), one per stage")
             sp, lo, hi = (x.abs_at(amb) for x in (r.set_point, r.outlet_min, r.outlet_max))
             if not lo <= sp <= hi:
-                raise Located(("regulators", i, "set_point"),
-                               f"regulator {r.id}: set point {r.set_point.text} is outside the outlet range "
-                               f"{r.outlet_min.text} to {r.outlet_max.text}")
+                raise Located(("regulators", i, "set_point"), RangeError(
+                    what="set point", value=sp - amb, typed=r.set_point.text, lo=lo - amb, hi=hi - amb, unit=PA_GAUGE,
+                    where=f"regulator {r.id}", why="the regulator's outlet range"))
         for i, d in enumerate(self.draws):
             if d.regulator not in regs:
                 raise Located(("draws", i, "regulator"), f"draw {d.id}: regulator {d.regulator!r} does not exist "

@@ -15,7 +15,7 @@ from typing import Any
 
 from benchwarden.core import hold as hd
 from benchwarden.core.gas import Gas
-from benchwarden.errors import InputError, JournalError, RangeError
+from benchwarden.errors import PA_GAUGE, InputError, JournalError, RangeError
 from benchwarden.storage.holdlog import parse_log
 from benchwarden.storage.journal import HoldStartRow, Journal
 from benchwarden.storage.profile import Profile
@@ -119,7 +119,8 @@ def start_hold(journal: Journal, prof: Profile, supply_id: str, pressure_abs_pa:
     if not 0 < hold_s <= MAX_HOLD_S:
         raise RangeError(what="hold", value=hold_s, lo=0.0, lo_open=True, hi=MAX_HOLD_S, unit="s", why="e.g. '12 h'")
     if pressure_abs_pa <= prof.ambient_pa:
-        raise InputError(f"hold test start {pressure_text!r}: the supply must be under pressure")
+        raise RangeError(what="hold test start", value=pressure_abs_pa - prof.ambient_pa, typed=pressure_text, lo=0.0,
+                         lo_open=True, unit=PA_GAUGE, why="the supply must be under pressure")
     if s.gas.sold_liquefied and s.gross is not None:
         raise InputError(f"{supply_id} is weighed, not read by pressure: a pressure hold test does not apply")
     return journal.add_hold_start(prof.bench.name, supply_id, now.isoformat(timespec="seconds"), pressure_abs_pa,
