@@ -122,3 +122,19 @@ def test_formatting_for_people_lives_in_render_only():
                 if re.search(r"bar\(|°C|\bPa\b|fmt_", text) or any("1e5" in ast.unparse(v) for v in figures):
                     written.append(f"{path.name}:{node.lineno}")
     assert not written, written
+
+
+def test_an_error_before_the_command_chose_its_display_uses_the_profile_s(tmp_path):
+    import argparse
+
+    from benchwarden.cli.common import error_text, forget_display
+
+    prof = tmp_path / "bench.toml"
+    prof.write_text((ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
+                    + '\n[display]\npressure_unit = "kPa"\n')
+    forget_display()
+    e = RangeError(what="reading", value=320e5, hi=300e5, unit=PA_GAUGE, hi_name="the cylinder's test pressure")
+    # 300 bar = 30 000 kPa (NIST SP 811); --pressure-unit wins over the profile's unit
+    assert "30000 kPa(g)" in error_text(e, argparse.Namespace(profile=str(prof), pressure_unit=None))
+    assert "4351 psig" in error_text(e, argparse.Namespace(profile=str(prof), pressure_unit="psi"))
+    assert "300.0 bar(g)" in error_text(e, argparse.Namespace(profile=str(tmp_path / "missing.toml")))

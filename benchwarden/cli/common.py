@@ -180,16 +180,26 @@ def forget_display() -> None:
 
 def error_text(exc: BaseException, args: argparse.Namespace | None = None) -> str:
     """An error for the person, worded by the renderer (``render.errors.error_line``) in the display
-    the command chose, else in ``--pressure-unit`` (when it is one), else in bar."""
-    from benchwarden.errors import InputError
-    from benchwarden.render.display import display_for
+    the command chose, else its profile's (when the profile loads), else ``--pressure-unit`` (when
+    it is one), else bar."""
+    from benchwarden.errors import BenchwardenError, ProfileError
+    from benchwarden.render.display import display_for, profile_display
     from benchwarden.render.errors import error_line
 
     d = _SHOWN.get("display")
+    unit = getattr(args, "pressure_unit", None)
+    profile = getattr(args, "profile", None)
+    if d is None and isinstance(profile, str) and not isinstance(exc, ProfileError):
+        try:
+            from benchwarden.workflows.computations import load_profile
+
+            d = profile_display(load_profile(profile), unit)
+        except BenchwardenError:
+            d = None
     if d is None:
         try:
-            d = display_for(getattr(args, "pressure_unit", None))
-        except InputError:
+            d = display_for(unit)
+        except BenchwardenError:
             d = None
     return error_line(exc, d)
 
