@@ -29,3 +29,25 @@ def pytest_collection_modifyitems(config, items):
         if (module in SLOW_MODULES or "pr_flash" in getattr(item, "fixturenames", ())
                 or "peng_robinson" in item.name):
             item.add_marker(pytest.mark.slow)
+
+
+@pytest.fixture(scope="module")
+def pr_flash():
+    """An independent flash: Caleb Bell's ``thermo`` library with the Peng–Robinson (1976)
+    equation of state and its own phase-equilibrium flash — a different equation of state in a
+    different implementation, so agreement is expected within a few percent, not exactly."""
+    thermo = pytest.importorskip("thermo")
+    from thermo.interaction_parameters import IPDB
+
+    def make(ids):
+        constants, props = thermo.ChemicalConstantsPackage.from_IDs(ids)
+        kw = dict(Tcs=constants.Tcs, Pcs=constants.Pcs, omegas=constants.omegas)
+        if len(ids) > 1:
+            kw["kijs"] = IPDB.get_ip_asymmetric_matrix("ChemSep PR", constants.CASs, "kij")
+        gas = thermo.CEOSGas(thermo.PRMIX, kw, HeatCapacityGases=props.HeatCapacityGases)
+        liq = thermo.CEOSLiquid(thermo.PRMIX, kw, HeatCapacityGases=props.HeatCapacityGases)
+        if len(ids) > 1:
+            return thermo.FlashVL(constants, props, liquid=liq, gas=gas)
+        return thermo.FlashPureVLS(constants, props, gas=gas, liquids=[liq], solids=[])
+
+    return make

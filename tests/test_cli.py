@@ -3,10 +3,13 @@
 import json
 import subprocess
 import sys
+from pathlib import Path
 
 import pytest
 
 from benchwarden.cli import main
+
+ROOT = Path(__file__).resolve().parents[1]
 
 
 def run(capsys, *argv):
@@ -58,6 +61,10 @@ def test_heat_json(capsys):
     code, out, _ = run(capsys, "heat", "--gas", "n2", "--pressure", "200 bar", "--temperature", "15 degC",
                        "--to", "50 degC", "--service", "200 bar", "--test", "300 bar")
     assert "exceeds the service pressure" in out
+    code, out, _ = run(capsys, "heat", "--gas", "n2", "--pressure", "200 bar", "--temperature", "15 degC",
+                       "--to", "70 degC", "--test", "250 bar", "--pressure-unit", "kPa")
+    # the STOP comes from the heat-above-test finding, worded by the renderer in kPa
+    assert code == 0 and "✖ STOP: heated, the cylinder reaches" in out and "above its test pressure 25000 kPa(g)" in out
 
 
 def test_runtime_json(capsys):
@@ -81,7 +88,7 @@ def test_runtime_json(capsys):
         (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "nan bar", "--temperature", "15 degC"],
          "finite"),
         (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "-250 degC"],
-         "outside the equation of state"),
+         "out of range: at least -210.0 °C"),  # the equation of state of nitrogen, from 63.15 K
         (["contents", "--gas", "n2", "--volume", "50 L", "--pressure", "2 bar", "--temperature", "15 degC",
           "--reference", "25C"], "unknown reference"),
         (["runtime", "--gas", "n2", "--volume", "50 L", "--pressure", "5 bar", "--temperature", "15 degC",
@@ -121,3 +128,13 @@ def test_flow_reference_option_changes_the_mass_flow(capsys):
     assert d20["draw_kg_s"] / d0["draw_kg_s"] == pytest.approx(273.15 / 293.15, rel=1e-3)
     assert main(base + ["--flow-reference", "25C"]) == 2
     assert "unknown reference" in capsys.readouterr().err
+
+
+@pytest.mark.slow
+def test_json_into_a_closed_pipe_is_quiet():
+    # Regression: `benchwarden … --json | head -1` ended in a BrokenPipeError traceback.
+    proc = subprocess.run(
+        f"{sys.executable} -m benchwarden contents --gas nitrogen --volume '50 L' --pressure '200 bar' "
+        "--temperature '15 degC' --json | head -1", shell=True, capture_output=True, text=True, cwd=ROOT,
+        timeout=120)
+    assert proc.stdout.strip() == "{" and "Traceback" not in proc.stderr

@@ -137,7 +137,7 @@ def test_weight_readings_of_a_liquefied_supply_feed_its_contents(capsys, journal
     s = next(x for x in status(capsys, PREMIX, journal)["supplies"] if x["id"] == "sf6")
     assert s["mass_kg"] == pytest.approx(6.6) and s["liquefied"] is True
     code, _, err = run(capsys, "reading", PREMIX, "sf6", "--weight", "10 kg", "--journal", journal)
-    assert code == 2 and "below the tare" in err
+    assert code == 2 and "at least the tare weight of sf6 18.4 kg" in err
 
 
 def test_at_times():

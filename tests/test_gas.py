@@ -6,10 +6,24 @@ verification values), Incropera & DeWitt "Fundamentals of Heat and Mass Transfer
 of state from the `thermo`/`chemicals` libraries as a ±5 % sanity band.
 """
 
+import json
+import os
+import subprocess
+import sys
+import threading
+from pathlib import Path
+
 import pytest
 
 from benchwarden.core import gas as g
+from benchwarden.core import regulator, supply
 from benchwarden.errors import InputError
+from benchwarden.render.display import Display
+from benchwarden.render.supply import contents_notes
+
+CO2 = g.parse_gas("co2")
+N2 = g.parse_gas("nitrogen")
+ROOT = Path(__file__).resolve().parents[1]
 
 
 def test_span_2000_nitrogen_verification_value():
@@ -149,7 +163,7 @@ def test_bad_gas_names(bad, match):
 
 
 def test_temperature_outside_eos_is_input_error():
-    with pytest.raises(InputError, match="outside the equation of state"):
+    with pytest.raises(InputError, match="out of range.*the equation of state"):
         g.density(g.parse_gas("nitrogen"), 20.0, 1e5)
 
 
@@ -159,3 +173,82 @@ def test_handling_facts_have_sources():
     assert g.parse_gas("hydrogen").components[0][0].handling.lfl_percent == 4.0
     assert g.parse_gas("sf6").relative_density_to_air > 5
     assert g.parse_gas("helium").relative_density_to_air < 0.2
+
+
+@pytest.mark.slow
+def test_coolprop_8_import_prints_nothing_on_stdout():
+    # CoolProp 8 announces the disabled superancillaries on standard output (fd 1); --json
+    # output must stay pure JSON. Run in a fresh process so the import really happens.
+    env = {k: v for k, v in os.environ.items() if k != g.SUPERANCILLARY_SWITCH}
+    out = subprocess.run(
+        [sys.executable, "-m", "benchwarden", "contents", "--gas", "co2", "--gross", "75 kg", "--tare",
+         "68.5 kg", "--volume", "13.4 L", "--json"], capture_output=True, text=True, env=env, cwd=ROOT, timeout=120)
+    assert out.returncode == 0, out.stderr
+    assert json.loads(out.stdout)["mass_kg"] == pytest.approx(6.5)
+    assert "superancillar" not in out.stdout
+
+
+def test_co2_vapour_pressure_without_superancillaries():
+    # Span & Wagner (1996) Table 34 (from memory): p_sat(20 °C) = 5.7291 MPa; the issue's
+    # measurement with superancillaries on gave 5 729 052.58 Pa.
+    assert g.saturation_pressure(CO2, 293.15) == pytest.approx(5729052.58, rel=1e-9)
+
+
+def test_premix_at_200_bar_flashes_without_a_forced_phase():
+    # the bundled He/N2/CO2 premix: a single supercritical/gas phase at 200 bar, 20 °C
+    mix = g.parse_gas("he:0.8,n2:0.135,co2:0.065")
+    assert g.phase(mix, 293.15, 201e5).kind in ("gas", "supercritical")
+    # ideal-gas density p·M/(R·T) within 10 % (helium-rich: Z ≈ 1.08, from the same flash)
+    ideal = 201e5 * mix.molar_mass / (g.R * 293.15)
+    assert g.density(mix, 293.15, 201e5) == pytest.approx(ideal, rel=0.10)
+
+
+def test_co2_sublimation_line_against_published_points():
+    # Normal sublimation point of CO2: 194.69 K at 101.325 kPa (NIST Chemistry WebBook,
+    # from memory); triple point 216.592 K, 0.51795 MPa (Span & Wagner 1996).
+    assert g.sublimation_temperature(CO2, 101325.0) == pytest.approx(194.69, abs=0.05)
+    assert g.sublimation_pressure(CO2, 216.592) == pytest.approx(0.51795e6, rel=1e-9)
+    Tt, pt = g.triple_point(CO2)
+    assert Tt == pytest.approx(216.592, abs=1e-3) and pt == pytest.approx(0.51795e6, rel=1e-3)
+
+
+def test_co2_sublimation_enthalpy_against_handbook():
+    # ΔH_sub of CO2 at the normal sublimation point ≈ 25.2 kJ/mol = 571 kJ/kg (CRC Handbook,
+    # from memory): Clausius–Clapeyron on the Span & Wagner line within 1 %.
+    assert regulator.sublimation_enthalpy(CO2, 194.69) == pytest.approx(571e3, rel=0.01)
+
+
+def test_solid_helium_is_refused():
+    # Helium melts at about 6.9 K under 300 bar (melting line of Ortiz Vega et al., in CoolProp);
+    # at 4.15 K it is solid. Regression: accepted with Z = 13.7.
+    with pytest.raises(InputError, match="solid"):
+        g.density(g.parse_gas("helium"), 4.15, 301e5)
+
+
+def test_liquid_nitrogen_is_said_to_be_liquid():
+    c = supply.contents(N2, 0.05, 2e5, 73.15)
+    assert c.phase == "liquid" and "liquid" in c.flags
+    assert any("a liquid" in n for n in contents_notes(c, Display()))
+
+
+def test_properties_are_right_from_many_threads_at_once():
+    # Regression: one shared AbstractState per gas returned 482 wrong values in 400 000.
+    cases = [(N2, 250.0 + 10 * i, (20 + 15 * i) * 1e5) for i in range(8)]
+    cases += [(CO2, 320.0 + 5 * i, (10 + 3 * i) * 1e5) for i in range(8)]
+    expected = [g.density(gs, T, p) for gs, T, p in cases]
+    wrong: list[tuple[float, float]] = []
+
+    def hammer(offset: int) -> None:
+        for k in range(3000):
+            j = (k + offset) % len(cases)
+            gs, T, p = cases[j]
+            v = g.density(gs, T, p)
+            if v != expected[j]:
+                wrong.append((v, expected[j]))
+
+    threads = [threading.Thread(target=hammer, args=(i,)) for i in range(4)]
+    for t in threads:
+        t.start()
+    for t in threads:
+        t.join(timeout=120)
+    assert not wrong

@@ -4,20 +4,35 @@ Method: the pressure-change (pressure-decay) method of EN 13184 and ASTM E2930; 
 the GUM (JCGM 100:2008) with EN 837-1 accuracy classes.
 """
 
+import json
 import math
+from pathlib import Path
 
 import numpy as np
 import pytest
 
 from benchwarden.cli import main
 from benchwarden.core import gas as g
+from benchwarden.core import hold
 from benchwarden.core import hold as h
 from benchwarden.core.tables import DensityTable
 from benchwarden.errors import InputError
 from benchwarden.storage.holdlog import parse_log
 
+
+def run(capsys, *argv):
+    try:
+        code = main(list(argv))
+    except SystemExit as exc:
+        code = exc.code
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
 N2 = g.parse_gas("nitrogen")
 AMB = 101325.0
+
+ROOT = Path(__file__).resolve().parents[1]
 
 
 def test_worked_example_ideal_gas_temperature_compensated():
@@ -162,7 +177,7 @@ def test_hold_cli_json_and_errors(capsys, tmp_path):
     for argv, frag in [
         (["--duration", "-2 h"], "from 1 min to a year"),
         (["--duration", "0 h"], "from 1 min to a year"),
-        (["--start", "300 bar"], "above the gauge range"),
+        (["--start", "300 bar"], "at most the gauge range"),
         (["--volume", "0 L"], "from 1 mL to 5 m³"),
     ]:
         base = {"--gas": "n2", "--volume": "50 L", "--start": "152 bar", "--end": "150 bar", "--duration": "14 h",
@@ -215,3 +230,98 @@ def test_log_cells_that_are_not_plain_numbers_are_refused_with_their_row(cell):
     text = f"time (h),pressure (bar)\n0,150\n1,{cell}\n2,149.8\n"
     with pytest.raises(InputError, match="row 3"):
         parse_log(text)
+
+
+def test_the_command_line_and_the_app_share_one_computation_and_one_wording(capsys, tmp_path):
+    """One application function computes a hold test (``hold_runs.compute``) and one renderer
+    words it (``render.hold``): the command line prints exactly the renderer's lines, and the
+    app's computation on a profile supply gives the same result for the same readings."""
+    from benchwarden.render.display import Display
+    from benchwarden.render.hold import hold_lines
+    from benchwarden.units.constants import ATM_PA
+    from benchwarden.workflows import hold_runs, holds
+    from benchwarden.workflows.computations import load_profile
+
+    n2 = g.parse_gas("nitrogen")
+    gauge = holds.gauge_spec(315e5, 1.6)
+    run = hold_runs.compute(n2, 0.05, start_abs_pa=152e5 + ATM_PA, end_abs_pa=150e5 + ATM_PA, duration_s=14 * 3600.0,
+                            t_start_k=294.15, t_end_k=291.15, gauge=gauge, reserve_abs=15e5 + ATM_PA)
+    capsys.readouterr()
+    assert main(["hold", "--gas", "nitrogen", "--volume", "50 L", "--start", "152 bar", "--end", "150 bar",
+                 "--duration", "14 h", "--t-start", "21 degC", "--t-end", "18 degC", "--gauge-range", "315 bar",
+                 "--gauge-class", "1.6", "--reserve", "15 bar", "--pressure-unit", "psi",
+                 "--journal", str(tmp_path / "none.sqlite3")]) == 0
+    printed = [line.strip() for line in capsys.readouterr().out.splitlines()]
+    for line in hold_lines(run, Display("psi")):
+        assert line.lstrip("! ").strip() in " ".join(printed), line
+    # the app's path: the demo supply n2-A is this cylinder (50 L, gauge 315 bar class 1.6, reserve 15 bar)
+    prof = load_profile(ROOT / "profiles" / "demo-teaching-bench.toml")
+    app_run = hold_runs.two_readings(prof, "n2-A", 152e5 + prof.ambient_pa, 150e5 + prof.ambient_pa, 14 * 3600.0,
+                                     294.15, 291.15)
+    assert app_run.gauge == gauge and app_run.kind == run.kind == "two-readings"
+    same = hold_runs.compute(n2, 0.05, start_abs_pa=152e5 + prof.ambient_pa, end_abs_pa=150e5 + prof.ambient_pa,
+                             duration_s=14 * 3600.0, t_start_k=294.15, t_end_k=291.15, gauge=gauge,
+                             reserve_abs=15e5 + prof.ambient_pa, ambient_pa=prof.ambient_pa,
+                             target_sccm=holds.supply_target_sccm(prof.supply("n2-A")))
+    assert app_run.result == same.result
+
+
+def test_hold_log_json_does_not_crash(capsys, tmp_path):
+    # Regression: a numpy bool in the result broke --json.
+    log = tmp_path / "log.csv"
+    log.write_text("time (h),pressure (bar),temperature (degC)\n" +
+                   "".join(f"{i},{150 - 0.05 * i:.3f},20\n" for i in range(12)))
+    code, out, _ = run(capsys, "hold", "--gas", "nitrogen", "--volume", "50 L", "--log", str(log), "--json",
+                       "--gauge-range", "250 bar", "--gauge-class", "0.25", "--journal", str(tmp_path / "j.db"))
+    assert code == 0 and isinstance(json.loads(out)["curvature_significant"], bool)
+
+
+def test_perfectly_linear_log_is_not_called_curved():
+    # A pressure falling exactly linearly: real-gas mass is very slightly curved (Z changes),
+    # far less than a class 0.25 gauge resolves. Regression: flagged as "curved".
+    t = np.arange(0, 25) * 3600.0
+    p = 151.01325e5 - 0.1e5 * np.arange(25)
+    log = hold.HoldLog(tuple(t), tuple(p), None)
+    fit = hold.hold_from_log(N2, 0.05, log, hold.GaugeSpec(250e5, 0.25))
+    assert not fit.curvature_significant and not any("curved" in n for n in fit.result.notes)
+
+
+def test_a_real_step_in_the_log_is_called_curved():
+    t = np.arange(0, 25) * 3600.0
+    # a temperature swing: most of a 2 bar drop in the first hours, then flat
+    p = 151.01325e5 - 2.0e5 * (1.0 - np.exp(-np.arange(25) / 4.0))
+    fit = hold.hold_from_log(N2, 0.05, hold.HoldLog(tuple(t), tuple(p), None), hold.GaugeSpec(250e5, 0.25))
+    assert fit.curvature_significant
+
+
+def test_two_readings_and_a_two_row_log_share_one_budget():
+    # GUM (JCGM 100:2008): the same two readings give the same uncertainty either way; a log
+    # of three collinear readings adds no scatter.
+    gauge = hold.GaugeSpec(250e5, 1.0)
+    two = hold.hold_two_readings(N2, 0.05, 151e5, 149e5, 86400.0, 293.15, 293.15, gauge)
+    log = hold.HoldLog((0.0, 43200.0, 86400.0), (151e5, 150e5, 149e5), (293.15, 293.15, 293.15))
+    fit = hold.hold_from_log(N2, 0.05, log, gauge)
+    assert fit.result.leak_rate_uncertainty_sccm == pytest.approx(two.leak_rate_uncertainty_sccm, rel=2e-3)
+
+
+def test_semicolon_log_with_decimal_commas_is_refused():
+    # Regression: '0;150,5;20' was misread with exit 0 and a wrong leak rate.
+    with pytest.raises(InputError, match="decimal"):
+        parse_log("time (h);pressure (bar);temperature (degC)\n0;150,5;20\n1;150,4;20\n")
+    with pytest.raises(InputError, match="fields"):
+        parse_log("time (h),pressure (bar)\n0,150,5\n1,150,4\n")
+    ok = parse_log("time (h);pressure (bar)\n0;150.5\n1;150.4\n")
+    assert len(ok.t_s) == 2
+
+
+def test_mixed_time_zones_in_a_log_are_refused():
+    with pytest.raises(InputError, match="offset"):
+        parse_log("timestamp,pressure (bar)\n2026-11-27T18:00,150\n2026-11-28T06:00+00:00,149.9\n"
+                       "2026-11-28T18:00,149.8\n")
+
+
+def test_shipped_example_log_runs(capsys, tmp_path):
+    example = ROOT / "examples" / "hold-log.csv"
+    code, out, _ = run(capsys, "hold", "--gas", "nitrogen", "--volume", "50 L", "--log", str(example),
+                       "--gauge-range", "250 bar", "--gauge-class", "0.25", "--journal", str(tmp_path / "j.db"))
+    assert code == 0 and "leak rate" in out

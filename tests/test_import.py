@@ -88,3 +88,14 @@ def test_bad_files_say_why(capsys, tmp_path, text, fragment):
 def test_from_refuses_a_non_regular_file(capsys, tmp_path):
     code, _, err = run(capsys, "--journal", str(tmp_path / "j.sqlite"), "reading", DEMO, "n2-A", "--from", "/dev/zero")
     assert code == 2 and "not a regular file" in err
+
+
+def test_a_refused_row_is_worded_in_the_display_unit(capsys, tmp_path):
+    # the demo's n2-A cylinder is tested at 300 bar; 320 bar is refused and the reason is worded
+    # from the row's error data in the unit asked for: 300 bar = 4351 psi (1 psi = 6894.757 Pa)
+    text = "time,pressure\n2026-11-20T09:00,320 bar\n"
+    code, out, _ = _imp(capsys, tmp_path, text, "--pressure-unit", "psi")
+    d = json.loads(out)
+    assert code == 2 and d["refused"][0]["line"] == 2
+    assert "at most the cylinder's test pressure 4351 psig" in d["refused"][0]["reason"]
+    assert _readings(tmp_path) == []

@@ -21,9 +21,12 @@ from benchwarden.core import supply
 from benchwarden.render.checklist import build_checklist
 from benchwarden.render.display import Display
 from benchwarden.render.plan import format_plan
+from benchwarden.render.supply import contents_refusal
 from benchwarden.storage.profile import load_profile
 from benchwarden.workflows.bench import assess
 from benchwarden.workflows.findings import contents_findings
+
+CO2 = g.parse_gas("co2")
 
 CO2, SF6 = g.parse_gas("co2"), g.parse_gas("sf6")
 
@@ -189,3 +192,19 @@ def test_temperature_uncertainty_option_and_a_quiet_nitrogen_cylinder(capsys):
     # nitrogen at 200 bar: m ∝ 1/(Z·T) roughly, so ∂m/∂T ≈ −m/T × ~1.3: well under 5 % for 1 K
     assert -0.08 < n2["mass_sensitivity_kg_per_k"] < -0.03 and n2["mass_uncertainty_kg"] < 0.01 * n2["mass_kg"]
     assert n2["findings"] == []
+
+
+def test_liquid_full_co2_cylinder_is_a_hazard_not_a_vapour_pressure(capsys):
+    c = supply.contents(CO2, 0.05, 81e5, 293.15)
+    assert c.phase == "liquid-full" and "hydraulic" in contents_refusal(c, Display())
+    for extra in ((), ("--json",)):
+        code, out, err = run(capsys, "contents", "--gas", "co2", "--volume", "50 L", "--pressure", "80 bar",
+                             "--temperature", "20 degC", *extra)
+        assert code == 2 and out == "" and "liquid" in err and "vapour pressure" in err
+
+
+def test_co2_filling_ratio_above_common_practice_is_flagged():
+    # Common practice for CO2: at most 0.75 kg per litre of water capacity.
+    ok = supply.contents_by_weight(CO2, 20.0, 13.0, volume_m3=0.010)   # 0.70 kg/L
+    over = supply.contents_by_weight(CO2, 21.0, 13.0, volume_m3=0.010)  # 0.80 kg/L
+    assert not ok.overfilled and over.overfilled and over.filling_ratio_kg_l == pytest.approx(0.8)

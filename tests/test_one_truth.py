@@ -187,3 +187,45 @@ async def test_app_units_key_cycles_the_pressure_unit(tmp_path):
         await pilot.pause()
         row = str(table.get_row_at(0))
         assert "psig" in row and "bar(g)" not in row
+
+
+def test_countdown_severity_follows_the_reserve_rule():
+    """The overview's countdown colours come from one rule in the findings: a reserve before the
+    session's end is a warning, before half of what is left a stop (benchwarden rule, the same
+    fraction as the plan's reserve-before-end)."""
+    import datetime as dt
+
+    from benchwarden.workflows.findings import RESERVE_STOP_FRACTION, countdown_findings
+
+    now = dt.datetime(2026, 12, 2, 9, 0)
+    end = now + dt.timedelta(hours=4)
+    got = {f.subject: (f.code, f.severity) for f in countdown_findings(
+        {"lasts": 4.0, "tight": 3.9, "edge": RESERVE_STOP_FRACTION * 4.0, "short": 1.9}, now, end, 8.0)}
+    assert got == {"tight": ("countdown-before-end", "warning"), "edge": ("countdown-before-end", "warning"),
+                   "short": ("countdown-short", "stop")}
+    # before a session starts, the whole planned session counts
+    assert [f.severity for f in countdown_findings({"a": 3.0}, now, None, 8.0)] == ["stop"]
+
+
+async def test_the_overview_colours_its_countdowns_from_the_findings(tmp_path):
+    # (its OVER TIME words come from the alarm finding: tests/test_app_life.py)
+    from apptools import Clock
+
+    from benchwarden.render.findings import OK_STYLE, SEVERITY_STYLE
+    from benchwarden.workflows.findings import countdown_findings
+
+    prof, journal = _bench(tmp_path, "reserve-before-end")
+    app = make_app(prof, journal, clock=Clock())
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        st, scr = app.state, app.screen
+        now = st.clock()
+        hours = {s.id: st.hours_left(s.id, now) for s in st.plan.supplies}
+        judged = {f.subject: f.severity for f in countdown_findings(hours, now, st.session_end, st.plan.session_hours)}
+        assert judged  # the 22 bar supply runs short
+        table = scr.query_one("#supplies")
+        for sid in hours:
+            cell = table.get_cell(sid, "bar")
+            assert cell.style == (SEVERITY_STYLE[judged[sid]] if sid in judged else OK_STYLE), sid

@@ -13,11 +13,15 @@ import subprocess
 import sys
 import textwrap
 
+import numpy as np
 import pytest
 
 from benchwarden.cli import main
+from benchwarden.core import flow
 from benchwarden.core import gas as g
 from benchwarden.core.flow import orifice_flow
+
+N2 = g.parse_gas("nitrogen")
 
 CO2 = g.parse_gas("co2")
 A = math.pi / 4 * 0.3e-3**2
@@ -85,3 +89,44 @@ def test_orifice_json_keys_and_words(capsys):
     assert "inlet phase" in out and "liquid (short orifice)" in out and "ideal-gas" not in out
     assert main([*base, "--temperature", "20 degC"]) == 0
     assert "two-phase (86 % vapour by mass)" in capsys.readouterr().out
+
+
+@pytest.mark.parametrize("name, thermo_id, p_bar, ideal_off, tol", [
+    ("hydrogen", "hydrogen", 700.0, -0.10, 0.04),
+    ("co2", "carbon dioxide", 40.0, 0.17, 0.01),
+    ("nitrogen", "nitrogen", 200.0, -0.02, 0.01),
+])
+def test_real_gas_nozzle_against_peng_robinson_isentrope(pr_flash, name, thermo_id, p_bar, ideal_off, tol):
+    # Maximum of ρ·√(2Δh) along the isentrope, computed independently with thermo's
+    # Peng–Robinson (p, s) flash on a 200-point grid. The ideal-gas nozzle with real k is off
+    # by about ideal_off (sign and size as reproduced in the issue).
+    gas_ = g.parse_gas(name)
+    p1, T1 = (p_bar + 1.01325) * 1e5, 293.15
+    fl = pr_flash([thermo_id])
+    s0 = fl.flash(T=T1, P=p1)
+    MW = s0.MW() / 1000.0
+    best = max(
+        st.rho_mass() * math.sqrt(max(0.0, 2.0 * (s0.H() - st.H()) / MW))
+        for st in (fl.flash(P=p1 * x, S=s0.S()) for x in np.linspace(0.3, 0.7, 200))
+    )
+    G, choked, _ = flow.real_nozzle_mass_flux(gas_, p1, T1, 1e5)
+    assert choked and G == pytest.approx(best, rel=tol)
+    rho = g.density(gas_, T1, p1)
+    G_ideal, _ = flow.ideal_nozzle_mass_flux(rho, p1, g.heat_capacity_ratio(gas_, T1, p1), 1e5 / p1)
+    assert G_ideal / G - 1 == pytest.approx(ideal_off, abs=0.03)
+
+
+@pytest.mark.parametrize("p_up, p_down", [(3e5, 1e5), (2e5, 1.5e5), (5e5, 1e5)])
+def test_real_nozzle_agrees_with_ideal_formula_at_a_few_bar(p_up, p_down):
+    # Shapiro (1953) ideal-gas nozzle: within 0.5 % where nitrogen is nearly ideal.
+    o = flow.orifice_flow(N2, 0.3e-3, p_up, p_down, 293.15)
+    assert o.mass_flow_kg_s == pytest.approx(o.ideal_mass_flow_kg_s, rel=0.005)
+
+
+def test_nitrogen_critical_flow_function_at_low_pressure():
+    # ISO 9300 critical flow function of an ideal gas with γ = 1.4: C* = 0.6847; nitrogen at
+    # 1 bar, 20 °C is within 0.1 % of it: G* = C*·p0/√(R·T0/M).
+    p0, T0 = 1.0e5, 293.15
+    G, _, _ = flow.real_nozzle_mass_flux(N2, p0, T0, 0.2e5)
+    c_star = G * math.sqrt(g.R / N2.molar_mass * T0) / p0
+    assert c_star == pytest.approx(0.6847, rel=0.002)

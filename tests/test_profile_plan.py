@@ -106,7 +106,7 @@ def _bad(replace_from: str, replace_to: str) -> str:
     [
         (_bad('water_volume = "50 L"', 'water_volume = "50 L"\nwater_colour = "blue"'), "unknown key"),
         (_bad('regulator = "reg-channel"', 'regulator = "reg-missing"'), "does not exist"),
-        (_bad('set_point = "3 bar"', 'set_point = "12 bar"'), "outside the outlet range"),
+        (_bad('set_point = "3 bar"', 'set_point = "12 bar"'), "out of range"),
         (_bad('spacing = "1.4 mm"', 'spacing = "0 mm"'), "greater than zero"),
         (_bad('reserve = "15 bar"', 'reserve = "250 bar"'), "reserve"),
         (_bad('reading = "64 bar"', 'reading = "400 bar"'), "test pressure"),
@@ -229,3 +229,20 @@ def test_a_kept_memo_gives_the_same_plan_as_a_fresh_computation():
         # a reading that changes the state is not served from the memo
         later = build_plan(with_reading(prof, prof.supplies[0].id, parse_pressure("40 bar"), 294.15), now=now, memo=memo)
         assert later.supplies[0].mass_kg < first.supplies[0].mass_kg
+
+
+def test_co2_vapour_supply_gives_no_solid_stop_in_a_plan():
+    # A CO2 cylinder read at 50 bar(g), 21 °C holds only vapour (vapour pressure 58.6 bar(a),
+    # Span & Wagner 1996); throttled to a low set point it stays above the sublimation line.
+    from benchwarden.storage.profile import demo_profile_text, parse_profile
+    from benchwarden.workflows.build import build_plan
+
+    text = (demo_profile_text().replace('gas = "nitrogen"', 'gas = "co2"')
+            .replace('reading = "64 bar"', 'reading = "50 bar"')
+            .replace('service_pressure = "200 bar"', 'service_pressure = "57 bar"')
+            .replace('test_pressure = "300 bar"', 'test_pressure = "250 bar"')
+            .replace('set_point = "3 bar"', 'set_point = "0.2 bar"'))
+    plan = build_plan(parse_profile(text, "co2-bench.toml"))
+    assert not any(f.code == "regulator-solid" for f in plan.findings)
+    assert all(not r.solid_forms and r.outlet_temperature_k > 194.69 for r in plan.regulators)
+    assert not plan.supplies[0].liquefied

@@ -5,16 +5,30 @@ real-gas correction quoted by gas suppliers (about 5 % for nitrogen and 12 % for
 200–300 bar: common practice), and a Peng-Robinson isochoric heat-up from `thermo` as a band.
 """
 
+import json
 import math
 
 import pytest
 
+from benchwarden.cli import main
 from benchwarden.core import gas as g
 from benchwarden.core import supply
 from benchwarden.errors import InputError
 from benchwarden.render.display import Display
 from benchwarden.render.supply import contents_refusal
-from benchwarden.units import ATM_PA, REFERENCES, parse_flow
+from benchwarden.units import ATM_PA, REFERENCES, parse_flow, pressure_abs
+
+CO2 = g.parse_gas("co2")
+
+
+def run(capsys, *argv):
+    try:
+        code = main(list(argv))
+    except SystemExit as exc:
+        code = exc.code
+    out, err = capsys.readouterr()
+    return code, out, err
+
 
 N2 = g.parse_gas("nitrogen")
 HE = g.parse_gas("helium")
@@ -70,7 +84,7 @@ def test_contents_by_weight():
     assert c.mass_kg == pytest.approx(10.0)
     # ideal free volume of 10 kg SF6 at 15 °C, 1 atm: n·R·T/p
     assert c.ideal_free_volume_m3 == pytest.approx(10.0 / 0.1460554 * g.R * 288.15 / ATM_PA)
-    with pytest.raises(InputError, match="below the tare"):
+    with pytest.raises(InputError, match="at least the tare weight"):
         supply.contents_by_weight(g.parse_gas("sf6"), 40.0, 50.0, volume_m3=0.01)
     with pytest.raises(InputError, match="water volume"):
         supply.contents_by_weight(g.parse_gas("sf6"), 60.0, 50.0)
@@ -104,6 +118,21 @@ def test_heat_up_warnings():
     assert h.above_test_pressure
 
 
+def test_heat_up_findings_are_codes_worded_by_the_renderer():
+    from benchwarden.render.display import Display
+    from benchwarden.render.findings import describe
+    from benchwarden.workflows.findings import heat_findings
+
+    h = supply.heat_up(N2, 201e5, 288.15, 338.15, service_abs=201e5, test_abs=301e5)
+    assert {(f.code, f.severity) for f in heat_findings(h)} == {("heat-above-service", "warning"),
+                                                               ("heat-storage-limit", "warning")}
+    h = supply.heat_up(N2, 290e5, 288.15, 338.15, service_abs=201e5, test_abs=301e5)
+    found = heat_findings(h)
+    assert [(f.code, f.severity) for f in found] == [("heat-above-test", "stop"), ("heat-storage-limit", "warning")]
+    # worded in the display unit: 300 bar(g) = 4351 psig (1 psi = 6894.757 Pa, NIST SP 811)
+    assert "above its test pressure 4351 psig" in describe(found[0], Display("psi", 101325.0))[0]
+
+
 def test_mass_flow_of_standard_flow_uses_real_density_at_reference():
     # 1 slpm of N2 at 0 °C, 1 atm: ρ = 1.2504 kg/m³ (Z = 0.99955; NIST Webbook, from memory).
     assert supply.mass_flow(N2, parse_flow("1 slpm")) == pytest.approx(1.2504e-3 / 60, rel=2e-4)
@@ -123,3 +152,24 @@ def test_runtime_mass_balance_and_inverse_scaling():
 def test_runtime_rejects_reserve_above_reading():
     with pytest.raises(InputError, match="reserve"):
         supply.runtime(N2, 0.05, 10e5, 11e5, 293.15, 1e-4)
+
+
+def test_two_phase_mixture_contents_use_a_real_flash(capsys, pr_flash):
+    # Regression: the gas branch was forced and gave 158.6 kg/m³. thermo's Peng–Robinson flash
+    # of the same state gives ~217 kg/m³ with vapour fraction ~0.64.
+    mix = g.parse_gas("co2:0.95,nitrogen:0.05")
+    T, p = 283.15, pressure_abs("50 bar")
+    ref = pr_flash(["carbon dioxide", "nitrogen"]).flash(T=T, P=p, zs=[0.95, 0.05])
+    c = supply.contents(mix, 0.05, p, T)
+    assert c.phase == "two-phase"
+    assert c.density_kg_m3 == pytest.approx(ref.rho_mass(), rel=0.03)
+    assert c.vapour_fraction == pytest.approx(ref.VF, abs=0.03)
+    code, out, _ = run(capsys, "contents", "--gas", "co2:0.95,nitrogen:0.05", "--volume", "50 L",
+                       "--pressure", "50 bar", "--temperature", "10 degC", "--json")
+    d = json.loads(out)
+    assert code == 0 and d["phase"] == "two-phase" and d["density_kg_m3"] == pytest.approx(212.7, rel=1e-3)
+
+
+def test_empty_cylinder_by_weight_is_a_clear_error():
+    with pytest.raises(InputError, match="empty"):
+        supply.contents_by_weight(CO2, 13.0, 13.0, volume_m3=0.01)

@@ -11,8 +11,11 @@ import pytest
 
 from benchwarden.cli import main
 from benchwarden.core import gas as g
+from benchwarden.core import regulator
 from benchwarden.core.regulator import throttle
 from benchwarden.errors import InputError
+from benchwarden.render.display import Display
+from benchwarden.render.equipment import throttle_notes
 from benchwarden.workflows.findings import outlet_findings
 
 CO2 = g.parse_gas("co2")
@@ -123,3 +126,46 @@ def test_the_plan_warns_near_the_dry_ice_line_and_shows_the_margin():
     assert rp.dry_ice_margin_k == pytest.approx(1.1, abs=0.05)
     assert any(f.code == "regulator-near-dry-ice" and f.severity == "warning" for f in a.findings)
     assert "K above the dry-ice line" in format_plan(a, Display())
+
+
+def test_mixture_throttle_says_when_a_component_condenses(pr_flash):
+    # CO2-rich mixture from 70 bar(a), 30 °C to 20 bar(a): the outlet enters the two-phase
+    # region. thermo's Peng–Robinson (h, p) flash agrees: about −21.5 °C, vapour fraction 0.92.
+    mix = g.parse_gas("co2:0.95,nitrogen:0.05")
+    flasher = pr_flash(["carbon dioxide", "nitrogen"])
+    for p_in, T_in, p_out in ((70e5, 303.15, 20e5), (60e5, 293.15, 15e5)):
+        t = regulator.throttle(mix, p_in, p_out, T_in)
+        inlet = flasher.flash(T=T_in, P=p_in, zs=[0.95, 0.05])
+        outlet = flasher.flash(H=inlet.H(), P=p_out, zs=[0.95, 0.05])
+        assert outlet.VF < 1.0
+        assert t.liquid_forms and "component-condenses" in t.flags
+        assert any("condenses" in n for n in throttle_notes(t, Display()))
+        assert t.outlet_temperature_k == pytest.approx(outlet.T, abs=1.0)
+        assert t.vapour_fraction == pytest.approx(outlet.VF, abs=0.03)
+    # and a case that stays gas in both: 51 bar(a), 30 °C to 11 bar(a)
+    t = regulator.throttle(mix, 51.01325e5, 11e5, 303.15)
+    inlet = flasher.flash(T=303.15, P=51.01325e5, zs=[0.95, 0.05])
+    outlet = flasher.flash(H=inlet.H(), P=11e5, zs=[0.95, 0.05])
+    assert not t.liquid_forms and outlet.VF == 1.0
+    assert t.outlet_temperature_k == pytest.approx(outlet.T, abs=2.0)
+
+
+def test_liquid_co2_cylinder_to_half_a_bar_leaves_on_the_sublimation_line(capsys):
+    # Regression: the outlet was pinned at the triple point (−56.6 °C). On the sublimation
+    # line at 1.51 bar(a) it is about −73.5 °C (Span & Wagner 1996 eq. 3.12).
+    code, out, _ = run(capsys, "throttle", "--gas", "co2", "--inlet", "57 bar", "--outlet", "0.5 bar",
+                       "--temperature", "20 degC", "--json")
+    d = json.loads(out)
+    assert code == 0 and d["solid_forms"] is True
+    assert d["outlet_temperature_k"] - 273.15 == pytest.approx(-73.5, abs=0.2)
+
+
+def test_co2_vapour_inlet_leaves_as_vapour(capsys):
+    # 50 bar(g) at 20 °C is below the vapour pressure (56.3 bar(g)): gas. Expanded to 1 atm it
+    # leaves near −69 °C, above the −78.5 °C sublimation point: no solid.
+    code, out, _ = run(capsys, "throttle", "--gas", "co2", "--inlet", "50 bar", "--outlet", "0 bar",
+                       "--temperature", "20 degC", "--json")
+    d = json.loads(out)
+    assert code == 0 and d["solid_forms"] is False
+    assert d["outlet_temperature_k"] - 273.15 == pytest.approx(-69.2, abs=0.5)
+    assert d["outlet_temperature_k"] > g.sublimation_temperature(CO2, 101325.0)

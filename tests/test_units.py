@@ -7,6 +7,7 @@ import math
 
 import pytest
 
+from benchwarden.cli import main
 from benchwarden.errors import InputError
 from benchwarden.units import (
     ATM_PA,
@@ -21,6 +22,16 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
+
+
+def run(capsys, *argv):
+    try:
+        code = main(list(argv))
+    except SystemExit as exc:
+        code = exc.code
+    out, err = capsys.readouterr()
+    return code, out, err
+
 
 R = 8.314462618  # CODATA 2018, exact
 
@@ -181,3 +192,16 @@ def test_temperature_arithmetic_agrees_with_pint():
     for text, unit in (("21.5 degC", "degC"), ("-40 degF", "degF"), ("300 K", "K"), ("500 degR", "degR")):
         v = float(text.split()[0])
         assert parse_temperature(text) == pytest.approx(Q_(v, unit).to("K").magnitude, rel=1e-12)
+
+
+@pytest.mark.parametrize("text", ["1,000 L", "2,5 L", "1 000 L", "1_000 L"])
+def test_thousands_separators_and_decimal_commas_are_refused(text):
+    # Regression: "1,000 L" was read as 1 L — a silent factor of 1000.
+    with pytest.raises(InputError, match="decimal point"):
+        parse_volume(text)
+
+
+def test_thousands_separator_in_a_pressure_is_refused_on_the_command_line(capsys):
+    code, out, err = run(capsys, "contents", "--gas", "nitrogen", "--volume", "50 L", "--pressure", "1,000 psi",
+                         "--temperature", "20 degC")
+    assert code == 2 and out == "" and "decimal point" in err and err.count("\n") == 1

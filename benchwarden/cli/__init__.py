@@ -13,7 +13,7 @@ import importlib
 import sys
 from collections.abc import Sequence
 
-from benchwarden.cli.common import EXIT_INPUT, Parser, one_line
+from benchwarden.cli.common import EXIT_INPUT, Parser, error_text, forget_display, one_line
 
 #: name → (module under benchwarden.cli, one-line help)
 COMMANDS: dict[str, tuple[str, str]] = {
@@ -97,6 +97,7 @@ def main(argv: Sequence[str] | None = None) -> int:
             except (ValueError, OSError):
                 pass
     args = build_parser(argv).parse_args(argv)
+    forget_display()
     for name, value in vars(args).items():
         if isinstance(value, str) and not value.strip() and name not in ("command",):
             sys.stderr.write(f"benchwarden: error: --{name.replace('_', '-')} is empty: give a value or leave the "
@@ -107,7 +108,7 @@ def main(argv: Sequence[str] | None = None) -> int:
             return _run_app(args, None)
         return int(args.func(args))
     except BenchwardenError as exc:
-        sys.stderr.write(one_line(f"benchwarden: error: {exc}") + "\n")
+        sys.stderr.write(one_line(f"benchwarden: error: {error_text(exc, args)}") + "\n")
         return EXIT_INPUT
     except KeyboardInterrupt:
         return 130

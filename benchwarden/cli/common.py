@@ -141,15 +141,13 @@ def add_display(p: argparse.ArgumentParser) -> None:
 
 def ambient(args: argparse.Namespace) -> float:
     from benchwarden.units import ATM_PA, ambient_from_altitude, parse_length, pressure_abs
-    from benchwarden.units.limits import conflict
+    from benchwarden.units.limits import conflict, within
 
     conflict(given(args, "--ambient", "--altitude"), "the ambient pressure is given, or derived from the altitude")
     if getattr(args, "ambient", None):
         amb = pressure_abs(args.ambient, 0.0, "ambient pressure")
-        if not 30e3 <= amb <= 120e3:
-            raise input_error(f"ambient pressure {args.ambient!r} is outside 30 kPa to 120 kPa (sea level is "
-                              "101.325 kPa; the highest labs are near 50 kPa)")
-        return amb
+        return within(amb, "ambient pressure", 30e3, 120e3, "Pa(a)", text=args.ambient,
+                      why="sea level is 101.325 kPa; the highest labs are near 50 kPa")
     if getattr(args, "altitude", None) is not None:
         return ambient_from_altitude(parse_length(args.altitude, "altitude"))
     return ATM_PA
@@ -161,14 +159,49 @@ def gas(args: argparse.Namespace) -> Gas:
     return parse_gas(args.gas)
 
 
+#: The display the running command chose (its errors are worded in it); set by :func:`display`.
+_SHOWN: dict[str, Display] = {}
+
+
 def display(args: argparse.Namespace, ambient_pa: float, profile: Any = None) -> Display:
     """The display of this command: ``--pressure-unit``, else the profile's, else bar."""
     from benchwarden.render.display import display_for, profile_display
 
     unit = getattr(args, "pressure_unit", None)
-    if profile is not None:
-        return profile_display(profile, unit)
-    return display_for(unit, ambient_pa)
+    shown = profile_display(profile, unit) if profile is not None else display_for(unit, ambient_pa)
+    _SHOWN["display"] = shown
+    return shown
+
+
+def forget_display() -> None:
+    """A new command: no display chosen yet (``main`` runs many commands in one process in tests)."""
+    _SHOWN.clear()
+
+
+def error_text(exc: BaseException, args: argparse.Namespace | None = None) -> str:
+    """An error for the person, worded by the renderer (``render.errors.error_line``) in the display
+    the command chose, else its profile's (when the profile loads), else ``--pressure-unit`` (when
+    it is one), else bar."""
+    from benchwarden.errors import BenchwardenError, ProfileError
+    from benchwarden.render.display import display_for, profile_display
+    from benchwarden.render.errors import error_line
+
+    d = _SHOWN.get("display")
+    unit = getattr(args, "pressure_unit", None)
+    profile = getattr(args, "profile", None)
+    if d is None and isinstance(profile, str) and not isinstance(exc, ProfileError):
+        try:
+            from benchwarden.workflows.computations import load_profile
+
+            d = profile_display(load_profile(profile), unit)
+        except BenchwardenError:
+            d = None
+    if d is None:
+        try:
+            d = display_for(unit)
+        except BenchwardenError:
+            d = None
+    return error_line(exc, d)
 
 
 def computation(args: argparse.Namespace) -> tuple[Gas, float, Display]:

@@ -21,11 +21,12 @@ from benchwarden.cli.common import (
     whole_number,
 )
 from benchwarden.render.display import Display
+from benchwarden.render.errors import error_line
 from benchwarden.render.files import clean
 from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict, question_text
 from benchwarden.render.numbers import fmt_uncertain
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
-from benchwarden.units.limits import EARLIEST_RECORD, RETEST_HORIZON_YEARS, within_dates
+from benchwarden.units.limits import EARLIEST_RECORD, RETEST_HORIZON_YEARS, within, within_dates
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows import computations as comp
 from benchwarden.workflows import cylinder as cy
@@ -102,8 +103,7 @@ def _entry(args: argparse.Namespace, prof: comp.Profile, now: dt.datetime) -> cy
         p = parse_pressure(args.pressure, prof.ambient_pa)
         return cy.Entry(args.supply, at, T, pressure_abs_pa=p.abs_at(prof.ambient_pa), pressure_text=p.text)
     w = parse_mass(args.weight, "weight")
-    if not 0 < w <= 1e3:
-        raise input_error(f"weight {args.weight!r} must be above zero and at most 1000 kg")
+    within(w, "weight", 0.0, 1e3, "kg", lo_open=True, text=args.weight)
     return cy.Entry(args.supply, at, T, weight_kg=w)
 
 
@@ -118,7 +118,7 @@ def cmd_import(args: argparse.Namespace, prof: comp.Profile, now: dt.datetime) -
         a = assess(prof, j, now)
         planned = next((s.draw_kg_s for s in a.plan.supplies if s.id == args.supply), None)
         r = import_readings(j, prof, args.supply, text, now, args.confirm, planned)
-    refused = [{"line": n, "reason": why} for n, why in r.refused]
+    refused = [{"line": n, "reason": why if isinstance(why, str) else error_line(why, d)} for n, why in r.refused]
     if not r.refused and not args.confirm:
         refused += [{"line": n, "reason": "implausible: " + question_text(q, d) + " (record it with --confirm)"}
                     for n, q in r.questions]

@@ -25,9 +25,7 @@ from benchwarden.cli.common import (
 )
 from benchwarden.errors import JournalError
 from benchwarden.render.budget import budget_assumption
-from benchwarden.render.display import Display
-from benchwarden.render.findings import verdict_words
-from benchwarden.render.numbers import fmt_uncertain
+from benchwarden.render.hold import hold_notes, hold_rows
 from benchwarden.units import (
     parse_duration,
     parse_flow,
@@ -37,10 +35,9 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
-from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import conflict, in_range, within
 from benchwarden.workflows import computations as comp
-from benchwarden.workflows import holds
+from benchwarden.workflows import hold_runs, holds
 from benchwarden.workflows.ranges import read_log
 
 HOLD_LOG_FORMAT = """\
@@ -134,8 +131,7 @@ def _reserve(args: argparse.Namespace, amb: float) -> float | None:
     start = pressure_abs(args.start, amb, "start pressure") if args.start and not args.log else None
     hi = start - amb if start is not None else 2e8
     within(reserve - amb, "reserve", 0.0, hi, "Pa(g)", text=args.reserve, hi_open=start is not None,
-           words=f"from 0 bar(g) to below the start pressure {args.start}" if start is not None
-           else f"from 0 to {2e8 / BAR_PA:g} bar(g)")
+           hi_name="the start pressure" if start is not None else "")
     return reserve
 
 
@@ -153,24 +149,22 @@ def cmd_hold(args: argparse.Namespace) -> int:
     if target is not None:
         in_range("target leak rate", target, text=args.target)
     reserve = _reserve(args, amb)
-    fit = None
+    given_to = {"gauge": gauge, "u_T": u_T, "target_sccm": target, "reserve_abs": reserve, "ambient_pa": amb,
+                "supply_id": args.supply}
     if args.log:
-        text = read_log(args.log)
-        T_def = parse_temperature(args.t_start) if args.t_start else 293.15
-        fit = comp.hold_from_log(g_, V, comp.parse_log(text, args.log_unit, amb), gauge, T_def, u_T, target,
-                               reserve, amb)
-        r = fit.result
+        run = hold_runs.compute(g_, V, log_text=read_log(args.log), log_unit=args.log_unit,
+                                t_default_k=parse_temperature(args.t_start) if args.t_start else 293.15, **given_to)
     else:
         if not (args.start and args.end and args.duration):
             raise input_error("give --start, --end and --duration (or --log FILE.csv)")
-        r = comp.hold_two_readings(
-            g_, V, pressure_abs(args.start, amb, "start pressure"),
-            pressure_abs(args.end, amb, "end pressure"),
-            in_range("hold duration", parse_duration(args.duration, "hold duration"), text=args.duration),
-            parse_temperature(args.t_start, "start temperature") if args.t_start else None,
-            parse_temperature(args.t_end, "end temperature") if args.t_end else None,
-            gauge, u_T, target, reserve, amb)
-    saved = _record(args, r, "log" if fit is not None else "two-readings")
+        run = hold_runs.compute(
+            g_, V, start_abs_pa=pressure_abs(args.start, amb, "start pressure"),
+            end_abs_pa=pressure_abs(args.end, amb, "end pressure"),
+            duration_s=in_range("hold duration", parse_duration(args.duration, "hold duration"), text=args.duration),
+            t_start_k=parse_temperature(args.t_start, "start temperature") if args.t_start else None,
+            t_end_k=parse_temperature(args.t_end, "end temperature") if args.t_end else None, **given_to)
+    r, fit = run.result, run.fit
+    saved = _record(args, run)
     if args.json:
         out = asdict(r) | {"saved_to_journal": saved, "budget_assumption": budget_assumption(r)}
         if fit is not None:
@@ -179,59 +173,20 @@ def cmd_hold(args: argparse.Namespace) -> int:
                     "curvature_significant": bool(fit.curvature_significant)}
         emit_json(out | {"guidance": list(comp.GUIDANCE)})
         return 0
-    emit_table("Hold test", _rows(g_.name, V, r, fit, d), _notes(r, gauge, d) + list(comp.GUIDANCE[-2:]))
+    emit_table("Hold test", hold_rows(run, d), hold_notes(run, d) + list(hold_runs.GUIDANCE[-2:]))
     if fit is not None and sys.stdout.isatty():
         _terminal_plot(fit)
     return 0
 
 
-def _rows(gas_name: str, V: float, r: comp.HoldResult, fit: comp.LogFit | None, d: Display) -> list[tuple[str, str]]:
-    rows = [("gas", gas_name), ("volume", f"{V * 1000:.4g} L"),
-            ("start", f"{d.both(r.start_abs_pa)} at {d.temperature(r.start_temperature_k)}"),
-            ("end", f"{d.both(r.end_abs_pa)} at {d.temperature(r.end_temperature_k)}"),
-            ("hold", d.hours(r.duration_s / 3600)),
-            ("mass loss", fmt_uncertain(r.mass_loss_kg * 1000, r.mass_loss_uncertainty_kg * 1000, "g") + " (1σ)"),
-            ("leak rate", fmt_uncertain(r.leak_rate_sccm, r.leak_rate_uncertainty_sccm, "sccm")
-             + " (0 °C, 101.325 kPa; 1σ)"),
-            ("", f"{r.leak_rate_pa_m3_s:.3g} Pa·m³/s = {r.leak_rate_mbar_l_s:.3g} mbar·L/s"),
-            ("", f"{r.kg_per_day * 1000:.3g} g/day = {r.percent_per_day:.3g} % of contents/day = "
-                 f"{d.difference(r.pressure_fall_per_day_pa)}/day at constant temperature"),
-            ("verdict", verdict_words(r.verdict, r.leak_rate_sccm, r.smallest_resolvable_sccm, r.target_sccm)),
-            ("target", f"{r.target_sccm:.3g} sccm; hold needed to resolve it ≈ {d.hours(r.hold_needed_h)}"),
-            ("to empty at this rate", d.hours(r.hours_to_empty) if r.leak_rate_kg_s > 0 else "—")]
-    if r.hours_to_reserve is not None:
-        rows.append(("to reserve at this rate", d.hours(r.hours_to_reserve)))
-    if fit is not None:
-        rows.append(("log fit", f"{fit.n} rows; residual rms {d.difference(fit.residual_rms_pa)} "
-                                f"(max {d.difference(fit.residual_max_kg * fit.residual_rms_pa / fit.residual_rms_kg)})"
-                                if fit.residual_rms_kg > 0 else f"{fit.n} rows; no residual"))
-    rows.append(("method", r.method))
-    return rows
-
-
-def _notes(r: comp.HoldResult, gauge: comp.GaugeSpec | None, d: Display) -> list[str]:
-    notes = list(r.notes)
-    assumption = budget_assumption(r)
-    if assumption:
-        notes.append(assumption)
-    if gauge is not None and r.astm_resolution_ok is False:
-        res = gauge.resolution_pa if gauge.resolution_pa is not None else gauge.mpe_pa
-        notes.append(f"ASTM E2930 rule: resolution {d.difference(res)} should be ≤ 1/10 of the "
-                     f"{d.difference(r.target_pressure_change_pa)} the target leak causes in this hold")
-    if gauge is not None and r.astm_accuracy_ok is False:
-        notes.append(f"ASTM E2930 rule: accuracy ±{d.difference(gauge.mpe_pa)} should be ≤ 1/4 of "
-                     f"{d.difference(r.target_pressure_change_pa)}")
-    return notes
-
-
-def _record(args: argparse.Namespace, r: comp.HoldResult, kind: str) -> bool:
+def _record(args: argparse.Namespace, run: hold_runs.HoldRun) -> bool:
     """Store the hold test in the journal when the journal exists (tagged with --bench/--supply)."""
     try:
         j = journal_if_exists(args)
         if j is None:
             return False
         with j:
-            holds.store(j, holds.record_of(r, dt.datetime.now().astimezone(), args.bench, args.supply, kind))
+            hold_runs.record(j, run, dt.datetime.now().astimezone(), args.bench)
     except JournalError as exc:
         # the result still counts: print it, and say it was not stored
         sys.stderr.write(one_line(f"benchwarden: warning: the hold test was not stored: {exc}") + "\n")

@@ -35,10 +35,10 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
-from benchwarden.units.constants import BAR_PA, T_FULL_K
+from benchwarden.units.constants import T_FULL_K
 from benchwarden.units.limits import conflict, in_range, within
 from benchwarden.workflows import computations as comp
-from benchwarden.workflows.findings import contents_findings
+from benchwarden.workflows.findings import contents_findings, heat_findings
 from benchwarden.workflows.ranges import check_weight_fits
 
 
@@ -157,8 +157,7 @@ def _rating(text: str | None, what: str, amb: float, floor_gauge_pa: float = 0.0
     if not text:
         return None
     p = pressure_abs(text, amb, what)
-    within(p - amb, what, floor_gauge_pa, 2e8, "Pa(g)", lo_open=True, text=text, why=why,
-           words=f"above {floor_gauge_pa / BAR_PA:g} bar(g) and at most 2000 bar(g)")
+    within(p - amb, what, floor_gauge_pa, 2e8, "Pa(g)", lo_open=True, text=text, why=why)
     return p
 
 
@@ -171,7 +170,7 @@ def cmd_heat(args: argparse.Namespace) -> int:
     test = _rating(args.test, "test pressure", amb)
     if service is not None and test is not None and test < service:
         within(test - amb, "test pressure", service - amb, None, "Pa(g)", text=args.test,
-               words=f"at least the service pressure {args.service}", why="a cylinder is tested above its rating")
+               lo_name="the service pressure", why="a cylinder is tested above its rating")
     h = comp.heat_up(g_, p, T1, T2, amb, service, test)
     if args.json:
         emit_json(asdict(h) | {"ambient_pressure_pa": amb})
@@ -183,16 +182,7 @@ def cmd_heat(args: argparse.Namespace) -> int:
         ("ideal gas would say", d.both(h.ideal_pressure_abs_pa)),
         ("method", h.method),
     ]
-    warnings = []
-    if h.above_storage_limit:
-        warnings.append(f"{d.temperature(T2)} is above the 52 °C (125 °F) limit for storing cylinders (CGA P-1, "
-                        "from memory): keep cylinders out of sun and away from heat")
-    if h.above_test_pressure and h.test_abs_pa is not None:
-        warnings.append(f"STOP: {d.gauge(h.pressure_abs_pa)} exceeds the test pressure {d.gauge(h.test_abs_pa)}; "
-                        "never heat a cylinder")
-    elif h.above_service_pressure and h.service_abs_pa is not None:
-        warnings.append(f"{d.gauge(h.pressure_abs_pa)} exceeds the service pressure {d.gauge(h.service_abs_pa)} "
-                        "(rated at 15 °C); check the regulator's inlet rating")
+    warnings = [f"{SEVERITY_MARK[f.severity]}: {describe(f, d)[0]}" for f in heat_findings(h)]
     emit_table("Closed cylinder heated or cooled", rows, warnings)
     return 0
 
@@ -203,7 +193,7 @@ def cmd_runtime(args: argparse.Namespace) -> int:
     p = pressure_abs(args.pressure, amb)
     res = pressure_abs(args.reserve, amb, "reserve")
     within(res - amb, "reserve", 0.0, p - amb, "Pa(g)", text=args.reserve, hi_open=True,
-           words=f"from 0 bar(g) to below the pressure now {args.pressure}")
+           hi_name="the pressure now")
     T = parse_temperature(args.temperature)
     flows = [parse_flow(f, reference=args.flow_reference) for f in args.flow]
     for f in flows:

@@ -68,7 +68,24 @@ def _toxic_part(comp: PureGas, x: float) -> str:
 
 def gas_caution(gas: Gas) -> Caution:
     """The caution for one gas as it is: the mixture's density, liquefaction, flammability (its
-    LFL by Le Chatelier's rule), oxidising power and the toxicity of each component, with sources."""
+    LFL by Le Chatelier's rule), oxidising power and the toxicity of each component, with sources.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    Caution
+        The topic and one paragraph of caution for this gas.
+
+    References
+    ----------
+    The catalogue's handling facts with their sources (:mod:`benchwarden.core.gases`: supplier
+    SDSs, EIGA, CGA, OSHA).
+    Le Chatelier (1891), as given in Crowl & Louvar, *Chemical Process Safety* (from memory):
+    the LFL of a mixture.
+    """
     parts: list[str] = []
     sources: list[str] = []
     o2 = hz.gas_o2_percent(gas)
@@ -108,7 +125,21 @@ def gas_caution(gas: Gas) -> Caution:
 
 
 def gas_cautions(gases: list[Gas]) -> list[Caution]:
-    """One caution per distinct gas on a bench, built for the gas as it is (see :func:`gas_caution`)."""
+    """One caution per distinct gas on a bench, built for the gas as it is (see :func:`gas_caution`).
+
+    Parameters
+    ----------
+    gases : the gases of the bench's supplies
+
+    Returns
+    -------
+    list of Caution
+        One caution per distinct gas, in the order first met.
+
+    References
+    ----------
+    As :func:`gas_caution`.
+    """
     out: list[Caution] = []
     seen: set[str] = set()
     for gas in gases:

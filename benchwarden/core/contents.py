@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from benchwarden.core import gas as g
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.units import REFERENCES, Reference, check_positive, check_range
 from benchwarden.units.constants import T_FULL_K
 
@@ -76,6 +76,11 @@ def free_volume(gas: g.Gas, mass_kg: float, reference: Reference) -> float:
     gas : the gas (pure or a mixture by mole fraction)
     mass_kg : Mass, [kg]
     reference : the reference condition (temperature [K], pressure [Pa])
+
+    Returns
+    -------
+    float
+        Free-gas volume [m³] at the reference condition.
 
     References
     ----------
@@ -158,21 +163,21 @@ def contents(
     reference : Free-gas reference condition
     u_T : Standard uncertainty of the temperature, [K]
 
+    Returns
+    -------
+    Contents
+        Mass [kg] with its uncertainty, free-gas volume [m³] at the reference, density [kg/m³], Z
+        [-], phase and codes (``flags``).
+
     Notes
     -----
     A gas sold liquefied (CO2, SF6) below its critical temperature at or above its vapour
-    pressure has no pressure-based contents: ``phase`` is ``liquefied`` (or ``liquid-full`` more
-    than 10 % above it) and the mass fields are None; weigh it (:func:`contents_by_weight`).
-    Just below the vapour pressure the answer is the vapour's mass, flagged
-    ``near-vapour-pressure``: there is no step between a refusal and an answer.
-
-    The sensitivity ∂m/∂T at the measured pressure is a central difference (±0.05 K) of the
-    real-gas mass; the mass uncertainty is the larger change of the mass over T ± u_T (GUM,
-    JCGM 100:2008, §5.1.2 with a non-linear model evaluated at its ends). Where T − u_T lies
-    below the saturation temperature at p, the cylinder may hold liquid: the mass there is
-    taken as the saturated vapour's (a lower bound) and ``may-hold-liquid`` is flagged. Near
-    the critical point the mass moves by kilograms per kelvin (CO2 at 72 bar(g), 31 °C:
-    about 2.6 kg/K in 50 L).
+    pressure has no pressure-based contents (``phase`` ``liquefied`` or ``liquid-full``; mass
+    None; weigh it, :func:`contents_by_weight`); just below it, the vapour's mass, flagged
+    ``near-vapour-pressure``. ∂m/∂T is a central difference (±0.05 K); the mass uncertainty the
+    larger change of the mass over T ± u_T (GUM §5.1.2, the model evaluated at its ends); where
+    T − u_T is below the saturation temperature at p, the saturated vapour's mass (a lower bound,
+    ``may-hold-liquid``). Near the critical point: kilograms per kelvin (CO2, 72 bar(g), 31 °C).
 
     References
     ----------
@@ -264,6 +269,12 @@ def state_by_weight(gas: g.Gas, mass_kg: float, volume_m3: float, T: float) -> W
     volume_m3 : Water (internal) volume, [m³]
     T : Temperature, [K]
 
+    Returns
+    -------
+    WeightState
+        Phase, pressure [Pa], density [kg/m³], liquid-full temperature [K] and vapour
+        pressure [Pa] of the fill.
+
     Notes
     -----
     The mean density ρ = m/V and T fix the state (a (ρ, T) flash of the reference equation of
@@ -323,6 +334,11 @@ def contents_by_weight(
     T : Temperature, [K]
     volume_m3 : Water volume, [m³]; required: without it the state and the pressure are unknown
 
+    Returns
+    -------
+    Contents
+        Mass [kg], the fill's phase and pressure [Pa], free-gas volume [m³], filling ratio [kg/L] and codes.
+
     References
     ----------
     ADR packing instruction P200 filling ratios (from memory);
@@ -338,10 +354,11 @@ def contents_by_weight(
     for v, what in ((gross_kg, "gross weight"), (tare_kg, "tare weight")):
         check_positive(v, what, "kg")
     if gross_kg < tare_kg:
-        raise InputError(f"gross weight {gross_kg:g} kg is below the tare weight {tare_kg:g} kg")
+        raise RangeError(what="gross weight", value=gross_kg, lo=tare_kg, unit="kg", lo_name="the tare weight")
     mass = gross_kg - tare_kg
     if mass <= 0:
-        raise InputError(f"gross weight {gross_kg:g} kg equals the tare weight: the cylinder is empty")
+        raise RangeError(what="gross weight", value=gross_kg, lo=tare_kg, lo_open=True, unit="kg",
+                         lo_name="the tare weight", why="at the tare weight the cylinder is empty")
     if volume_m3 is None:
         raise InputError("contents by weight need the cylinder's water volume: without it the state "
                          "(two-phase, liquid-full, supercritical) and the pressure are unknown")

@@ -66,7 +66,21 @@ def _import_quietly() -> Any:
 
 
 def coolprop() -> Any:
-    """The ``CoolProp`` module, imported quietly on first use (thread-safe)."""
+    """The ``CoolProp`` module, imported quietly on first use (thread-safe).
+
+    Parameters
+    ----------
+    None
+
+    Returns
+    -------
+    module
+        The imported ``CoolProp`` module.
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+    """
     module = sys.modules.get("CoolProp")
     if module is not None and hasattr(module, "AbstractState"):
         return module
@@ -128,18 +142,62 @@ def state(gas: Gas) -> Any:
     through :func:`update`.
 
     Each thread has its own states: an ``AbstractState`` is updated in place by every call,
-    so sharing one between threads returns another thread's numbers."""
+    so sharing one between threads returns another thread's numbers.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    AbstractState
+        This thread's CoolProp state of the gas (not updated here).
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+    """
     return _state(gas.key).AS
 
 
 def estimated_pairs(gas: Gas) -> tuple[tuple[str, str], ...]:
-    """Binary pairs of a mixture whose interaction parameters were estimated (Lorentz-Berthelot)."""
+    """Binary pairs of a mixture whose interaction parameters were estimated (Lorentz-Berthelot).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    tuple of (str, str)
+        The component pairs whose parameters were estimated.
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+    Lorentz–Berthelot combining rules for binary pairs without fitted parameters (CoolProp's
+    estimated interaction parameters).
+    """
     return _state(gas.key).estimated_pairs
 
 
 def discard(gas: Gas | None = None) -> None:
     """Throw away this thread's state of ``gas`` (of every gas when None); the next call builds
-    a fresh one."""
+    a fresh one.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction), or None for every gas
+
+    Returns
+    -------
+    None
+        Nothing; the next call builds a fresh state.
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+    """
     states: dict[str, _State] | None = getattr(_local, "states", None)
     if not states:
         return
@@ -172,7 +230,24 @@ def update(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None) 
 
     A failed update throws the state away and the same inputs are tried once more on a fresh
     state (see the module docstring); a second failure throws that one away too, so no call
-    leaves a half-set state behind."""
+    leaves a half-set state behind.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    pair : CoolProp input pair, e.g. ``"PT_INPUTS"``
+    a, b : the pair's values, SI ([Pa], [K], [kg/m³], [J/kg], [J/(kg·K)])
+    imposed : a phase to impose for this call (``"gas"``), or None
+
+    Returns
+    -------
+    AbstractState or None
+        The updated state, or None where the equation of state has no solution.
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+    """
     CP = coolprop()
     code = getattr(CP, pair)
     phase_code = None if imposed is None else getattr(CP, f"iphase_{imposed}")

@@ -25,8 +25,7 @@ from benchwarden.core.gas import (
     state_at,
     triple_point,
 )
-from benchwarden.errors import PropertyError
-from benchwarden.units import fmt_pressure, fmt_temperature
+from benchwarden.errors import KELVIN, PA_ABS, PropertyError
 
 __all__ = ["Flash", "FlashPH", "flash_ph", "isentrope", "isentrope_state", "solve_increasing"]
 
@@ -53,6 +52,11 @@ def solve_increasing(f: Any, lo: float, hi: float, tol: float = 1e-7) -> float:
     f : an increasing function of one variable
     lo, hi : Bracket, [same unit as the variable]
     tol : Relative tolerance on the bracket, [-]
+
+    Returns
+    -------
+    float
+        The root, in the unit of ``lo`` and ``hi``.
 
     Notes
     -----
@@ -106,7 +110,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
     hi = min(tmax, T_guess)
     while f(hi) < 0:
         if hi >= tmax:
-            raise PropertyError(f"no state of {gas.name} at {fmt_pressure(p, kind='absolute')} up to {fmt_temperature(tmax)}")
+            raise PropertyError(f"no state of {gas.name} at {{0}} up to {{1}}", quantities=((p, PA_ABS), (tmax, KELVIN)))
         hi = min(tmax, hi + 20.0)
     lo: float | None = None
     T, last_ok = hi, hi
@@ -122,7 +126,7 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
     T_gas = solve_increasing(f, lo, last_ok, tol) if lo is not None else math.nan
     if not verify:
         if lo is None:
-            raise PropertyError(f"no gas state of {gas.name} at {fmt_pressure(p, kind='absolute')}")
+            raise PropertyError(f"no gas state of {gas.name} at {{0}}", quantities=((p, PA_ABS),))
         return T_gas
 
     def equilibrium(T: float) -> tuple[bool, float]:
@@ -153,7 +157,8 @@ def _solve_mixture(gas: Gas, prop: str, target: float, p: float, T_guess: float,
             raise PropertyError("no bracket")
         return solve_increasing(lambda T: equilibrium(T)[1] - target, T_low, T_dew, tol)
     except PropertyError:
-        raise PropertyError(f"the phase equilibrium of {gas.name} cannot be solved at {fmt_pressure(p, kind='absolute')}") from None
+        raise PropertyError(f"the phase equilibrium of {gas.name} cannot be solved at {{0}}",
+                            quantities=((p, PA_ABS),)) from None
 
 
 def _from_state(gas: Gas, AS: Any) -> Flash:
@@ -204,8 +209,8 @@ def _pure(gas: Gas, pair: str, prop: str, target: float, p: float) -> Flash:
         return _pure_fallback(gas, prop, target, p)
     except PropertyError:
         what = "h" if prop == "hmass" else "s"
-        raise PropertyError(f"the equation of state of {gas.name} has no state at {fmt_pressure(p, kind='absolute')} "
-                            f"with {what} = {target / 1e3:.6g} kJ/kg{'·K' if what == 's' else ''}") from None
+        raise PropertyError(f"the equation of state of {gas.name} has no state at {{0}} with {what} = {{1}}",
+                            quantities=((p, PA_ABS), (target, "J/kg" if what == "h" else "J/(kg·K)"))) from None
 
 
 def flash_ph(gas: Gas, h: float, p: float, T_guess: float) -> Flash:
@@ -217,6 +222,12 @@ def flash_ph(gas: Gas, h: float, p: float, T_guess: float) -> Flash:
     h : Specific enthalpy, [J/kg]
     p : Absolute pressure, [Pa]
     T_guess : Temperature to start a mixture's search from, [K]
+
+    Returns
+    -------
+    Flash
+        Temperature [K], phase (with its vapour fraction [-]), density [kg/m³] and enthalpy
+        [J/kg] of the state.
 
     Notes
     -----
@@ -254,6 +265,11 @@ def isentrope_state(gas: Gas, s: float, p: float, T_guess: float, verify: bool =
     T_guess : Start of a mixture's search, [K]
     verify : check a mixture's stability (False: stay on its gas branch)
 
+    Returns
+    -------
+    Flash
+        Temperature [K], phase, density [kg/m³], enthalpy [J/kg] of the state.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -277,6 +293,11 @@ def isentrope(gas: Gas, s: float, p: float, T_guess: float, verify: bool = True)
     p : Absolute pressure, [Pa]
     T_guess : Start of a mixture's search, [K]
     verify : check a mixture's stability
+
+    Returns
+    -------
+    tuple of float
+        (h [J/kg], ρ [kg/m³], T [K]) on the isentrope.
 
     References
     ----------

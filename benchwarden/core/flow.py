@@ -13,8 +13,8 @@ from typing import Any
 
 from benchwarden.core import gas as g
 from benchwarden.core.flash import Flash, isentrope, isentrope_state
-from benchwarden.errors import InputError
-from benchwarden.units import ATM_PA, T0_K, check_positive, check_range, fmt_pressure
+from benchwarden.errors import PA_ABS, InputError, RangeError
+from benchwarden.units import ATM_PA, T0_K, check_positive, check_range
 
 heat_capacity_ratio = g.heat_capacity_ratio
 
@@ -25,6 +25,11 @@ def critical_pressure_ratio(k: float) -> float:
     Parameters
     ----------
     k : Heat-capacity ratio cp/cv, [-]
+
+    Returns
+    -------
+    float
+        p*/p0 [-].
 
     References
     ----------
@@ -51,6 +56,11 @@ def ideal_nozzle_mass_flux(rho1: float, p1: float, k: float, r: float) -> tuple[
     p1 : Inlet absolute pressure, [Pa]
     k : Heat-capacity ratio, [-]
     r : Pressure ratio p2/p1, [-]
+
+    Returns
+    -------
+    tuple
+        (G [kg/(m²·s)], choked).
 
     References
     ----------
@@ -97,6 +107,11 @@ def nozzle_throat(gas: g.Gas, p1: float, T1: float, p2: float) -> tuple[float, b
     T1 : Inlet temperature, [K]
     p2 : Downstream absolute pressure, [Pa]
 
+    Returns
+    -------
+    tuple
+        (G [kg/(m²·s)], choked, p*/p1 [-], throat state).
+
     References
     ----------
     ISO 9300:2022 (real-gas critical flow function);
@@ -138,6 +153,11 @@ def real_nozzle_mass_flux(gas: g.Gas, p1: float, T1: float, p2: float) -> tuple[
     T1 : Inlet temperature, [K]
     p2 : Downstream absolute pressure, [Pa]
 
+    Returns
+    -------
+    tuple
+        (G [kg/(m²·s)], choked, p*/p1 [-]).
+
     References
     ----------
     ISO 9300:2022 (real-gas critical flow function); Shapiro (1953), ch. 4;
@@ -161,6 +181,11 @@ def liquid_orifice_mass_flux(rho1: float, p1: float, p2: float) -> float:
     ----------
     rho1 : Liquid (or inlet) density, [kg/m³]
     p1, p2 : Absolute pressures upstream and downstream, [Pa]
+
+    Returns
+    -------
+    float
+        Mass flux G [kg/(m²·s)].
 
     References
     ----------
@@ -202,6 +227,13 @@ def _cylinder_phase(gas: g.Gas, kind: str, p: float) -> str:
     return "gas" if kind == "supercritical" and p < g.critical_pressure(gas) else kind
 
 
+def _below_upstream(p_down: float, p_up: float) -> None:
+    """Refuse a downstream pressure [Pa] not below the upstream one [Pa] (no flow), with its data."""
+    if p_down >= p_up:
+        raise RangeError(what="downstream pressure", value=p_down, hi=p_up, hi_open=True, unit=PA_ABS,
+                         hi_name="the upstream pressure", why="no flow otherwise")
+
+
 def orifice_flow(
     gas: g.Gas, diameter_m: float, p_up: float, p_down: float, T: float, cd: float = 0.62,
 ) -> OrificeFlow:
@@ -215,6 +247,12 @@ def orifice_flow(
     p_up, p_down : Absolute pressures upstream and downstream, [Pa]
     T : Upstream temperature, [K]
     cd : Discharge coefficient, [-] (0.61–0.62 for a sharp-edged orifice, common practice)
+
+    Returns
+    -------
+    OrificeFlow
+        Mass flow [kg/s], standard flow [slpm], choking and its pressure ratio [-], inlet and
+        throat phases, the ideal-gas comparison [kg/s].
 
     Notes
     -----
@@ -244,10 +282,7 @@ def orifice_flow(
     check_range(diameter_m, "orifice diameter", 0.0, 0.05, "m", "a bleed orifice or needle-valve bore")
     if not 0 < cd <= 1:
         raise InputError(f"discharge coefficient {cd:g} must be > 0 and ≤ 1")
-    if p_down >= p_up:
-        raise InputError(
-            f"downstream pressure {fmt_pressure(p_down, kind='absolute')} is not below upstream {fmt_pressure(p_up, kind='absolute')}: no flow"
-        )
+    _below_upstream(p_down, p_up)
     inlet = g.pt_state(gas, T, p_up)
     inlet_phase = _cylinder_phase(gas, inlet.phase.kind, p_up)
     A = math.pi * diameter_m**2 / 4.0
@@ -295,6 +330,11 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
     T : Upstream temperature, [K]
     xT : Pressure-differential ratio factor at choked flow, [-]
 
+    Returns
+    -------
+    ValveFlow
+        Mass flow [kg/s], standard flow [slpm] and whether the flow is choked.
+
     References
     ----------
     IEC 60534-2-1:2011 (gas sizing), as implemented in `fluids.control_valve` (C. Bell).
@@ -308,10 +348,7 @@ def valve_flow(gas: g.Gas, kv: float, p_up: float, p_down: float, T: float, xT: 
     from fluids.control_valve import size_control_valve_g
 
     check_positive(kv, "valve Kv", "m³/h")
-    if p_down >= p_up:
-        raise InputError(
-            f"downstream pressure {fmt_pressure(p_down, kind='absolute')} is not below upstream {fmt_pressure(p_up, kind='absolute')}: no flow"
-        )
+    _below_upstream(p_down, p_up)
     Z = g.z_factor(gas, T, p_up)
     k = heat_capacity_ratio(gas, T, p_up)
     MW = gas.molar_mass * 1000.0
@@ -353,6 +390,11 @@ def per_shot_mass_flow(gas: g.Gas, volume_m3: float, p_abs: float, T: float, rat
     T : Temperature, [K]
     rate_hz : Repetition rate, [Hz]
 
+    Returns
+    -------
+    float
+        Mass flow [kg/s].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -360,5 +402,5 @@ def per_shot_mass_flow(gas: g.Gas, volume_m3: float, p_abs: float, T: float, rat
     """
     check_positive(volume_m3, "volume per shot", "m³")
     if not math.isfinite(rate_hz) or rate_hz < 0:
-        raise InputError(f"repetition rate {rate_hz!r} Hz must be zero or more")
+        raise RangeError(what="repetition rate", value=rate_hz, lo=0.0, unit="Hz")
     return g.density(gas, T, p_abs) * volume_m3 * rate_hz

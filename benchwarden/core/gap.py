@@ -35,6 +35,8 @@ from dataclasses import dataclass
 from typing import Any
 
 from benchwarden.core import gas as g
+from benchwarden.core.flashover import AIR_FLASHOVER_KV_PER_MM, Margin, flashover_margin  # noqa: F401 - re-exported
+from benchwarden.errors import PA_ABS
 from benchwarden.units import check_positive, check_range
 from benchwarden.units.constants import BAR_PA, TORR_PA
 
@@ -83,9 +85,6 @@ ROUGH_SPREAD = 0.20
 #: real electrodes fire lower).
 _UPPER_METHODS = ("air", "nitrogen", "sulfur hexafluoride")
 
-#: Flashover strength of a short, non-uniform air clearance: about 1 kV per mm (common practice).
-AIR_FLASHOVER_KV_PER_MM = 1.0
-
 
 def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA) -> float:
     """Paschen's law breakdown voltage [V] at p·d [Torr·cm] (Townsend criterion).
@@ -98,6 +97,11 @@ def paschen_voltage(pd_torr_cm: float, A: float, B: float, gamma: float = GAMMA)
     A : [1/(cm·Torr)]
     B : [V/(cm·Torr)]
     gamma : Secondary emission coefficient, [-]
+
+    Returns
+    -------
+    float
+        Breakdown voltage [V] (``inf`` where none occurs).
 
     References
     ----------
@@ -124,6 +128,11 @@ def paschen_minimum(A: float, B: float, gamma: float = GAMMA) -> tuple[float, fl
     B : [V/(cm·Torr)]
     gamma : Secondary emission coefficient, [-]
 
+    Returns
+    -------
+    tuple of float
+        ((p·d)_min [Torr·cm], V_min [V]).
+
     References
     ----------
     Raizer, "Gas Discharge Physics" (1991), Table 4.1 (from memory).
@@ -139,6 +148,11 @@ def air_uniform_field_kv(pd_bar_cm_20c: float) -> float:
     Parameters
     ----------
     pd_bar_cm_20c : Pressure × spacing at 20 °C, [bar·cm]
+
+    Returns
+    -------
+    float
+        Breakdown voltage [kV].
 
     References
     ----------
@@ -159,6 +173,11 @@ def sf6_uniform_field_kv(pd_bar_cm_20c: float) -> float:
     Parameters
     ----------
     pd_bar_cm_20c : Pressure × spacing at 20 °C, [bar·cm]
+
+    Returns
+    -------
+    float
+        Breakdown voltage [kV].
 
     References
     ----------
@@ -181,6 +200,11 @@ def upper_spread(gas: g.Gas) -> float:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
 
+    Returns
+    -------
+    float
+        Relative spread of the upper estimate above the estimate [-].
+
     References
     ----------
     benchwarden rule (common practice for the spread of relative strengths).
@@ -195,6 +219,11 @@ def relative_strength(gas: g.Gas) -> float:
     Parameters
     ----------
     gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float
+        Dielectric strength relative to air [-].
 
     References
     ----------
@@ -243,6 +272,11 @@ def join_parameters(gas: g.Gas) -> tuple[float, float] | None:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
 
+    Returns
+    -------
+    tuple of float or None
+        (c, n) of the join, or None.
+
     References
     ----------
     Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
@@ -274,6 +308,11 @@ def breakdown_series(gas: g.Gas, spacing_m: float, p_abs: Any, T: float = T_REF)
     spacing_m : Gap spacing, [m]
     p_abs : Absolute pressures, [Pa]
     T : Temperature, [K]
+
+    Returns
+    -------
+    numpy.ndarray
+        Breakdown voltages [kV], one per pressure.
 
     References
     ----------
@@ -325,6 +364,12 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     p_abs : Absolute pressure, [Pa]
     T : Temperature, [K]
 
+    Returns
+    -------
+    Breakdown
+        Estimated and upper breakdown voltages [kV], p·d at 20 °C [bar·cm], whether it is
+        within the method's validity, and the method.
+
     References
     ----------
     Kuffel, Zaengl & Kuffel, "High Voltage Engineering Fundamentals", 2nd ed. (2000).
@@ -337,7 +382,7 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
     (36.6, 'empirical uniform-field formula for air (Kuffel')
     """
     check_range(spacing_m, "gap spacing", 0.0, 0.5, "m", "a spark gap")
-    check_positive(p_abs, "gap pressure (absolute)", "Pa")
+    check_positive(p_abs, "gap pressure (absolute)", PA_ABS)
     g.check_state(gas, T, p_abs)
     pd_bar_cm = p_abs / BAR_PA * spacing_m * 100.0 * T_REF / T
     kv = float(breakdown_series(gas, spacing_m, p_abs, T))
@@ -368,55 +413,3 @@ def breakdown(gas: g.Gas, spacing_m: float, p_abs: float, T: float = T_REF) -> B
                     "no estimate")
     return Breakdown(gas.name, spacing_m, p_abs, T, pd_bar_cm, kv, within, method, validity,
                      kv * (1.0 + upper_spread(gas)))
-
-
-@dataclass(frozen=True)
-class Margin:
-    part: str
-    clearance_m: float
-    rating_kv: float | None
-    withstand_kv: float
-    margin_kv: float
-    margin_percent: float
-    status: str  # "ok" | "attention" | "stop"
-    method: str
-    #: the firing voltage the margin is taken against [kV]: the gap's upper estimate
-    firing_kv: float = math.nan
-
-
-def flashover_margin(part: str, breakdown_kv: float, clearance_m: float, rating_kv: float | None) -> Margin:
-    """Margin of an exposed high-voltage part against the gap's firing voltage; pass the *upper*
-    estimate (:attr:`Breakdown.breakdown_high_kv`): a gap that fires higher than planned leaves
-    less margin.
-
-    Withstand = min(clearance × 1 kV/mm (short non-uniform air gaps, common practice), rating).
-    Status: ``stop`` when the firing voltage reaches the withstand, ``attention`` below 20 %
-    margin, else ``ok``.
-
-    Parameters
-    ----------
-    part : the exposed part's name
-    breakdown_kv : Firing voltage (the upper estimate), [kV]
-    clearance_m : Air clearance, [m]
-    rating_kv : The part's voltage rating, [kV], or None
-
-    References
-    ----------
-    Common practice (about 1 kV/mm for a short, non-uniform air clearance).
-
-    Examples
-    --------
-    >>> m = flashover_margin("feedthrough", 30.0, 25e-3, 40.0)
-    >>> m.withstand_kv, m.margin_kv, m.status
-    (25.0, -5.0, 'stop')
-    """
-    check_positive(clearance_m, f"air clearance of {part}", "m")
-    flash = clearance_m * 1000.0 * AIR_FLASHOVER_KV_PER_MM
-    withstand = min(flash, rating_kv) if rating_kv is not None else flash
-    margin = withstand - breakdown_kv
-    pct = 100.0 * margin / breakdown_kv if breakdown_kv > 0 else math.inf
-    status = "stop" if margin <= 0 else ("attention" if pct < 20.0 else "ok")
-    return Margin(part, clearance_m, rating_kv, withstand, margin, pct, status,
-                  "clearance × 1 kV/mm (common practice) or rating, whichever is lower", breakdown_kv)
-
-

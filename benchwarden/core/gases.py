@@ -11,8 +11,7 @@ import math
 import re
 from dataclasses import dataclass, field
 
-from benchwarden.errors import InputError
-from benchwarden.units import fmt_pressure, fmt_temperature
+from benchwarden.errors import KELVIN, PA_ABS, InputError, RangeError
 from benchwarden.units.constants import T0_K
 
 #: Molar mass of dry air, [kg/mol] (Lemmon et al. 2000, J. Phys. Chem. Ref. Data 29, 331).
@@ -133,7 +132,22 @@ def _norm(name: str) -> str:
 
 
 def pure_gas(name: str) -> PureGas:
-    """Look up a pure gas by name or common spelling (``co2``, ``sf6``, ``n2``)."""
+    """Look up a pure gas by name or common spelling (``co2``, ``sf6``, ``n2``).
+
+    Parameters
+    ----------
+    name : a gas name or common spelling
+
+    Returns
+    -------
+    PureGas
+        The catalogue's entry with its handling facts.
+
+    References
+    ----------
+    The catalogue's handling facts name their sources (supplier SDSs, EIGA, CGA, OSHA); the
+    fluids are CoolProp's (Bell et al. 2014).
+    """
     key = _ALIASES.get(_norm(name)) or _ALIASES.get(_norm(name).replace(" ", ""))
     if key is None:
         raise InputError(f"unknown gas {name!r}; known: {', '.join(PURE_GASES)} (or a mixture 'a:0.9,b:0.1')")
@@ -197,6 +211,21 @@ class Gas:
 def parse_gas(text: str) -> Gas:
     """Parse a gas name or a mixture ``"helium:0.8,nitrogen:0.135,carbon dioxide:0.065"``.
 
+    Parameters
+    ----------
+    text : a gas name, or ``name:fraction`` pairs joined by commas (mole fractions)
+
+    Returns
+    -------
+    Gas
+        The pure gas or the mixture, its mole fractions summing to 1.
+
+    References
+    ----------
+    Fluid names of CoolProp (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+
+    Examples
+    --------
     >>> parse_gas("co2").name
     'carbon dioxide'
     >>> parse_gas("he:0.8, n2:0.135, co2:0.065").key
@@ -244,6 +273,21 @@ _SUBLIMATION = {
 
 
 def has_sublimation_line(gas: Gas) -> bool:
+    """Whether a sublimation line is known here for the gas (pure CO2).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    bool
+        True for pure CO2.
+
+    References
+    ----------
+    Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596, eq. 3.12 (CO2's sublimation line).
+    """
     return not gas.is_mixture and gas.components[0][0].key in _SUBLIMATION
 
 
@@ -251,6 +295,22 @@ def sublimation_pressure(gas: Gas, T: float) -> float:
     """Sublimation pressure [Pa] of solid CO2 at T [K] below its triple point
     (Span & Wagner 1996, eq. 3.12).
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction) (pure CO2)
+    T : Temperature below the triple point, [K]
+
+    Returns
+    -------
+    float
+        Sublimation pressure [Pa].
+
+    References
+    ----------
+    Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596, eq. 3.12.
+
+    Examples
+    --------
     >>> round(sublimation_pressure(parse_gas("co2"), 194.686) / 1e3, 2)   # 1 atm
     101.33
     """
@@ -258,7 +318,8 @@ def sublimation_pressure(gas: Gas, T: float) -> float:
         raise InputError(f"no sublimation line is known here for {gas.name}")
     Tt, pt, terms = _SUBLIMATION[gas.components[0][0].key]
     if not 0 < T <= Tt:
-        raise InputError(f"temperature {fmt_temperature(T)} is not below the triple point of {gas.name}")
+        raise RangeError(what="temperature", value=T, lo=0.0, lo_open=True, hi=Tt, unit=KELVIN,
+                         hi_name=f"the triple point of {gas.name}")
     x = 1.0 - T / Tt
     return pt * math.exp(Tt / T * sum(a * x**e for a, e in terms))
 
@@ -267,6 +328,22 @@ def sublimation_temperature(gas: Gas, p: float) -> float:
     """Temperature [K] on the sublimation line at absolute pressure p [Pa] (inverse of
     :func:`sublimation_pressure` by bisection).
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction) (pure CO2)
+    p : Absolute pressure below the triple-point pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Temperature on the sublimation line [K].
+
+    References
+    ----------
+    Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596, eq. 3.12 (inverted by bisection).
+
+    Examples
+    --------
     >>> round(sublimation_temperature(parse_gas("co2"), 101325.0) - 273.15, 2)
     -78.46
     """
@@ -274,7 +351,8 @@ def sublimation_temperature(gas: Gas, p: float) -> float:
     if not has_sublimation_line(gas):
         raise InputError(f"no sublimation line is known here for {gas.name}")
     if not 0 < p <= pt:
-        raise InputError(f"pressure {fmt_pressure(p, kind='absolute')} is not below the triple-point pressure of {gas.name}")
+        raise RangeError(what="pressure", value=p, lo=0.0, lo_open=True, hi=pt, unit=PA_ABS,
+                         hi_name=f"the triple-point pressure of {gas.name}")
     lo, hi = 100.0, Tt
     for _ in range(80):
         mid = 0.5 * (lo + hi)

@@ -97,6 +97,23 @@ def toxic(gas: Gas, gas_percent: float) -> Toxic | None:
     room's air (each component at ``gas_percent`` × its mole fraction); None if no component has
     an exposure limit.
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    gas_percent : the gas's share of the room's air, [vol %]
+
+    Returns
+    -------
+    Toxic or None
+        The worst component, its concentration [vol %] and its band, or None.
+
+    References
+    ----------
+    Exposure limits of the catalogue (:mod:`benchwarden.core.gases`): OSHA 29 CFR 1910.1000
+    Table Z-1 (TWA), NIOSH Pocket Guide (STEL, IDLH; from memory).
+
+    Examples
+    --------
     >>> from benchwarden.core.gases import parse_gas
     >>> toxic(parse_gas("co2"), 12.7).band           # 7 kg of CO2 in 30 m³
     'incapacitating'
@@ -126,6 +143,22 @@ def le_chatelier(fractions: list[float], lfls: list[float]) -> float:
     LFL = 1 / Σ (y_i / LFL_i), with y_i the fuels' fractions normalised to 1 (Le Chatelier 1891;
     as in Crowl & Louvar, Chemical Process Safety, from memory).
 
+    Parameters
+    ----------
+    fractions : the fuels' fractions, [-] (normalised to 1 here)
+    lfls : the fuels' lower flammability limits, [vol %]
+
+    Returns
+    -------
+    float
+        LFL of the fuel mixture [vol %].
+
+    References
+    ----------
+    Le Chatelier (1891), as given in Crowl & Louvar, *Chemical Process Safety* (from memory).
+
+    Examples
+    --------
     >>> round(le_chatelier([0.5, 0.5], [4.0, 5.0]), 3)
     4.444
     """
@@ -139,6 +172,22 @@ def mixture_lfl(gas: Gas) -> float | None:
     counted as diluent only, which ignores their slight narrowing of the range). None when no
     component burns or when the gas cannot reach its LFL even undiluted (LFL ≥ 100 %).
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float or None
+        LFL of the gas as a whole in air [vol %], or None.
+
+    References
+    ----------
+    Le Chatelier (1891), as given in Crowl & Louvar, *Chemical Process Safety* (from memory).
+    LFL values of the catalogue with their sources.
+
+    Examples
+    --------
     >>> from benchwarden.core.gases import parse_gas
     >>> mixture_lfl(parse_gas("hydrogen")), mixture_lfl(parse_gas("hydrogen:0.05,argon:0.95"))
     (4.0, 80.0)
@@ -159,7 +208,24 @@ def mixture_lfl(gas: Gas) -> float | None:
 
 def flammable(gas: Gas, gas_percent: float) -> Flammable | None:
     """A flammable gas at ``gas_percent`` of the room's air against its (mixture) LFL; None if
-    the gas cannot burn in air."""
+    the gas cannot burn in air.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    gas_percent : the gas's share of the room's air, [vol %]
+
+    Returns
+    -------
+    Flammable or None
+        The concentration against the LFL [vol %] and its share of it [%], or None.
+
+    References
+    ----------
+    Le Chatelier (1891), as given in Crowl & Louvar, *Chemical Process Safety* (from memory).
+    LFL values of the catalogue with their sources; 25 % of the LFL as the first alarm level
+    (common practice).
+    """
     lfl = mixture_lfl(gas)
     if lfl is None:
         return None
@@ -171,23 +237,82 @@ def flammable(gas: Gas, gas_percent: float) -> Flammable | None:
 
 
 def gas_o2_percent(gas: Gas) -> float:
-    """Oxygen in the gas itself, vol % (pure oxygen 100, air 20.95)."""
+    """Oxygen in the gas itself, vol % (pure oxygen 100, air 20.95).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float
+        Oxygen in the gas [vol %].
+
+    References
+    ----------
+    Air's oxygen 20.95 vol % (Lemmon et al., J. Phys. Chem. Ref. Data 29 (2000) 331, composition).
+    """
     return 100.0 * gas.fraction("oxygen") + _AIR_O2 * gas.fraction("air")
 
 
 def is_oxidiser(gas: Gas) -> bool:
-    """An oxidising gas: more oxygen than an enriched atmosphere (> 23.5 %)."""
+    """An oxidising gas: more oxygen than an enriched atmosphere (> 23.5 %).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    bool
+        True above 23.5 vol % oxygen.
+
+    References
+    ----------
+    OSHA 29 CFR 1910.146(b), oxygen-enriched atmosphere (from memory); EIGA Doc 04.
+    """
     return gas_o2_percent(gas) > ENRICHED_O2
 
 
 def uses_co2(gas: Gas) -> bool:
+    """Whether the gas contains carbon dioxide (a detector for CO2 is then asked for).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    bool
+        True where any carbon dioxide is in the gas.
+
+    References
+    ----------
+    OSHA 29 CFR 1910.1000 Table Z-1 (CO2 is toxic in its own right: a CO2 detector, not only an
+    oxygen monitor; common practice).
+    """
     return gas.fraction("carbon dioxide") > 0
 
 
 def oxygen_rank(o2_percent: float) -> int:
     """How bad an oxygen level is on the scale of the toxicity bands (0 fine … 4 collapse):
     ≥ 19.5 % 0, below 19.5 % 1, below 18 % 2, below 16 % 3, below 10 % 4 (29 CFR 1910.134,
-    EIGA Doc 44, CGA SB-2; from memory)."""
+    EIGA Doc 44, CGA SB-2; from memory).
+
+    Parameters
+    ----------
+    o2_percent : oxygen in the room, [vol %]
+
+    Returns
+    -------
+    int
+        Rank from 0 (fine) to 4 (collapse).
+
+    References
+    ----------
+    OSHA 29 CFR 1910.134 (19.5 %), 29 CFR 1910.146(b) (23.5 %, oxygen-enriched), CGA SB-2 and
+    EIGA Doc 44 (effects of oxygen deficiency); from memory.
+    """
     for rank, bound in ((4, 10.0), (3, IMPAIRED_O2), (2, 18.0), (1, 19.5)):
         if o2_percent < bound:
             return rank
@@ -198,6 +323,25 @@ def lead_hazard(o2_percent: float, tox: Toxic | None) -> Literal["toxic", "oxyge
     """The worse of the two hazards of an asphyxiant that is also toxic: the gas's own toxicity
     band or the oxygen it leaves (a tie goes to toxicity, the one a person does not expect).
 
+    Parameters
+    ----------
+    o2_percent : oxygen left in the room, [vol %]
+    tox : the toxicity band of the gas, or None
+
+    Returns
+    -------
+    str
+        ``"toxic"`` or ``"oxygen"``.
+
+    References
+    ----------
+    Exposure limits of the catalogue (:mod:`benchwarden.core.gases`): OSHA 29 CFR 1910.1000
+    Table Z-1 (TWA), NIOSH Pocket Guide (STEL, IDLH; from memory).
+    OSHA 29 CFR 1910.134 (19.5 %), 29 CFR 1910.146(b) (23.5 %, oxygen-enriched), CGA SB-2 and
+    EIGA Doc 44 (effects of oxygen deficiency); from memory.
+
+    Examples
+    --------
     >>> from benchwarden.core.gases import parse_gas
     >>> lead_hazard(18.3, toxic(parse_gas("co2"), 12.7))
     'toxic'

@@ -29,8 +29,19 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from benchwarden.core import gas as g
+from benchwarden.core.leakrate import (  # noqa: F401 - re-exported: leak rates in their units
+    P_STD,
+    T_STD,
+    kg_s_from_sccm,
+    line_volume,
+    pa_m3_s_from_sccm,
+    sccm_from_kg_s,
+    standard_density,
+)
+from benchwarden.core.leakrate import target_sccm as _target_sccm
 from benchwarden.core.tables import DensityTable
 from benchwarden.core.uncertainty import (  # noqa: F401 - re-exported: hold tests' measurement model
     K_EXPANDED,
@@ -45,65 +56,17 @@ from benchwarden.core.uncertainty import (  # noqa: F401 - re-exported: hold tes
     mass_sensitivities,
     verdict_of,
 )
-from benchwarden.errors import InputError
+from benchwarden.errors import PA_GAUGE, InputError, RangeError
 from benchwarden.units import (
-    Flow,
-    check_positive,
     check_range,
-    fmt_pressure,
-    fmt_temperature,
 )
-from benchwarden.units.constants import ATM_PA, BAR_PA, SCCM_PER_M3_S, SECONDS_PER_DAY, T0_K
+from benchwarden.units.constants import ATM_PA, SCCM_PER_M3_S, SECONDS_PER_DAY, T0_K
+
+#: A target leak rate as sccm (re-exported from :mod:`benchwarden.core.leakrate`).
+target_sccm = _target_sccm
 
 #: Largest held volume of a hold test [m³].
 MAX_HELD_M3 = 100.0
-
-#: Standard-flow reference for leak rates: 0 °C, 101.325 kPa.
-T_STD, P_STD = T0_K, ATM_PA
-
-
-def standard_density(gas: g.Gas) -> float:
-    """Real density at 0 °C, 101.325 kPa [kg/m³] (CoolProp HEOS)."""
-    return g.density(gas, T_STD, P_STD)
-
-
-def kg_s_from_sccm(gas: g.Gas, sccm: float) -> float:
-    """Standard flow [sccm at 0 °C, 101.325 kPa] as a mass flow [kg/s] (real density at the
-    reference); the inverse of :func:`sccm_from_kg_s`."""
-    return sccm / SCCM_PER_M3_S * standard_density(gas) if sccm else 0.0
-
-
-def sccm_from_kg_s(gas: g.Gas, mdot: float) -> float:
-    """Mass flow [kg/s] as sccm at 0 °C, 101.325 kPa (real density at the reference)."""
-    return mdot / standard_density(gas) * SCCM_PER_M3_S
-
-
-def target_sccm(gas: g.Gas, flow: Flow) -> float:
-    """A target leak rate (any standard or mass flow) as sccm at 0 °C, 101.325 kPa."""
-    from benchwarden.core.supply import mass_flow
-
-    return sccm_from_kg_s(gas, mass_flow(gas, flow))
-
-
-def pa_m3_s_from_sccm(sccm: float) -> float:
-    """pV throughput [Pa·m³/s] of a standard flow at 101.325 kPa: 1 sccm = 101325/6e7 Pa·m³/s.
-
-    >>> round(pa_m3_s_from_sccm(1.0), 8)
-    0.00168875
-    """
-    return sccm * P_STD / SCCM_PER_M3_S
-
-
-def line_volume(length_m: float, bore_m: float) -> float:
-    """Trapped volume of a tube [m³]: π/4·d²·L.
-
-    >>> round(line_volume(2.0, 4e-3) * 1e6, 2)   # 2 m of 4 mm bore: 25.13 cm³
-    25.13
-    """
-    check_positive(length_m, "line length", "m")
-    check_positive(bore_m, "line bore", "m")
-    return math.pi / 4.0 * bore_m**2 * length_m
-
 
 @dataclass(frozen=True)
 class HoldResult:
@@ -199,6 +162,33 @@ def hold_two_readings(
 ) -> HoldResult:
     """Leak rate from two readings (see module docstring for method and uncertainty).
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    volume_m3 : Held volume, [m³]
+    p_start : Start pressure, absolute, [Pa]
+    p_end : End pressure, absolute, [Pa]
+    duration_s : Hold duration, [s]
+    T_start : Start temperature, [K], or None (unchanged, assumed)
+    T_end : End temperature, [K], or None
+    gauge : the gauge the readings were taken with (range, class, resolution), or None
+    u_T : Standard uncertainty of a temperature reading, [K]
+    target_sccm : Target leak rate the test must resolve, [sccm], or None (1 % of the contents per day)
+    reserve_abs : The supply's reserve, absolute, [Pa], or None
+    ambient_pa : Ambient pressure the gauge reads against, [Pa]
+
+    Returns
+    -------
+    HoldResult
+        Mass loss [kg] and leak rate [kg/s, sccm, Pa·m³/s] with their standard uncertainties, the
+        verdict, the smallest resolvable leak [sccm], times to empty and to the reserve [h] and notes.
+
+    References
+    ----------
+    EN 13184 (pressure-change method) and ASTM E2930 (pressure decay); JCGM 100:2008 (GUM)
+    for the uncertainty, EN 837-1 gauge accuracy classes; CoolProp HEOS (Bell et al., Ind. Eng.
+    Chem. Res. 53 (2014) 2498–2508).
+
     Examples
     --------
     A 10 L volume at 5 bar(a) losing 0.05 bar over 24 h at constant 20 °C; ideal-gas hand
@@ -212,17 +202,17 @@ def hold_two_readings(
     if target_sccm is not None:
         check_range(target_sccm, "target leak rate", 0.0, 1e9, "sccm")
     if not math.isfinite(duration_s) or duration_s <= 0:
-        raise InputError(f"hold duration {duration_s!r} s must be greater than zero")
+        raise RangeError(what="hold duration", value=duration_s, lo=0.0, lo_open=True, unit="s")
     for p, what in ((p_start, "start pressure"), (p_end, "end pressure")):
         if gauge is not None and p - ambient_pa > gauge.span_pa * 1.0001:
-            raise InputError(f"{what} {fmt_pressure(p, ambient_pa)} is above the gauge range "
-                             f"{gauge.span_pa / BAR_PA:.4g} bar")
+            raise RangeError(what=what, value=p - ambient_pa, hi=gauge.span_pa, unit=PA_GAUGE,
+                             hi_name="the gauge range")
     notes: list[str] = []
     temps_given = T_start is not None and T_end is not None
     if not temps_given:
         T = T_start or T_end or 293.15
         T_start = T_end = T
-        notes.append(f"no temperatures given: assumed unchanged at {fmt_temperature(T)}; a 1 K change at "
+        notes.append(f"no temperatures given: assumed unchanged at {T - T0_K:.1f} °C; a 1 K change at "
                      "high pressure moves the gauge as much as a real leak — give --t-start and --t-end")
     assert T_start is not None and T_end is not None
     m1, dm1p, dm1T = mass_sensitivities(gas, volume_m3, T_start, p_start)
@@ -263,20 +253,59 @@ class LogFit:
     fit_kg: tuple[float, ...]
 
 
+def _curved(tc: Any, m: Any, fit: Any, p: Any, u_p: float | None, dm2p: float, slope: float, u_rate: float) -> bool:
+    """Whether a quadratic term is significant (3 standard errors) and matters: its departure
+    from the line exceeds what the gauge resolves (``u_p`` [Pa]; None: the log's smallest
+    pressure step), or the curve's end slopes would give another verdict."""
+    import numpy as np
+
+    c2, cov2 = np.polyfit(tc, m, 2, cov=True)
+    significant = cov2[0, 0] > 0 and abs(c2[0]) > 3.0 * math.sqrt(cov2[0, 0])
+    # how far the curve departs from the line over the log, as mass [kg]
+    departure = float(np.max(np.abs(np.polyval(c2, tc) - fit)))
+    # what the gauge can resolve, as mass: one reading's uncertainty, or without a gauge
+    # the smallest step between the log's own distinct pressures
+    steps = np.diff(np.unique(p))
+    resolvable_pa = u_p if u_p is not None else (float(steps.min()) if steps.size else 0.0)
+    resolvable = dm2p * resolvable_pa
+    # the end slopes of the curve against the fitted rate: does it change the verdict?
+    slope_ends = [-(2.0 * c2[0] * x + c2[1]) for x in (tc[0], tc[-1])]
+    U = K_EXPANDED * u_rate
+    verdict_changes = any((s > U) != (slope > U) for s in slope_ends)
+    return bool(significant and (departure > resolvable or verdict_changes))
+
+
 def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec | None = None,
                   T_default: float = 293.15, u_T: float = U_T_DEFAULT, target_sccm: float | None = None,
                   reserve_abs: float | None = None, ambient_pa: float = ATM_PA) -> LogFit:
-    """Fit the held mass against time by least squares (numpy ``polyfit`` with its covariance):
-    the slope is the leak rate, its standard error the scatter part of the uncertainty; the
-    gauge's systematic part (MPE over the span of the log, GUM) is added in quadrature.
+    """Fit the held mass against time by least squares: the slope is the leak rate, its standard
+    error the scatter part of the uncertainty, the budget of :func:`hold_two_readings` (first and
+    last reading) over the span added in quadrature. Masses come from a Z(p, T) table
+    (:class:`~benchwarden.core.tables.DensityTable`, error < 1e-4). A quadratic term significant
+    at 3 standard errors flags a curved decay (a temperature swing, a step, a changing leak) only
+    where its departure from the line exceeds what the gauge resolves, or the curve's end slopes
+    would give another verdict.
 
-    Masses come from a Z(p, T) table (:class:`benchwarden.core.tables.DensityTable`, error < 1e-4),
-    not from one CoolProp call per row. A quadratic term significant at 3 standard errors
-    flags a curved decay (a temperature swing, a step, a leak that changes) only where it
-    matters: its departure from the line exceeds what the gauge resolves (one reading's
-    uncertainty, or the log's smallest pressure step without a gauge), or the curve's end
-    slopes would give another verdict. The uncertainty budget is the one of
-    :func:`hold_two_readings` (first and last reading) over the span, ⊕ the fit's standard error."""
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    volume_m3 : Held volume, [m³]
+    log : the logged readings (times [s], absolute pressures [Pa], temperatures [K])
+    T_default : Temperature taken where the log has none, [K]
+    gauge, u_T, target_sccm, reserve_abs, ambient_pa : as in :func:`hold_two_readings` ([K], [sccm], [Pa])
+
+    Returns
+    -------
+    LogFit
+        The hold test (as :func:`hold_two_readings`), the fit's slope and standard error [kg/s],
+        its residuals [kg, Pa] and whether a curvature is significant.
+
+    References
+    ----------
+    EN 13184 (pressure-change method) and ASTM E2930 (pressure decay); JCGM 100:2008 (GUM)
+    for the uncertainty, EN 837-1 gauge accuracy classes; CoolProp HEOS (Bell et al., Ind. Eng.
+    Chem. Res. 53 (2014) 2498–2508); least squares with its covariance (numpy ``polyfit``).
+    """
     import numpy as np
 
     check_range(volume_m3, "held volume", 0.0, MAX_HELD_M3, "m³", "cylinders, lines and a vessel or two")
@@ -289,7 +318,8 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
         raise InputError("a log fit needs at least three readings")
     if gauge is not None and float(np.max(p)) - ambient_pa > gauge.span_pa * 1.0001:
         i = int(np.argmax(p))
-        raise InputError(f"log row {i + 2}: pressure {fmt_pressure(p[i], ambient_pa)} is above the gauge range")
+        raise RangeError(what="pressure", value=float(p[i]) - ambient_pa, hi=gauge.span_pa, unit=PA_GAUGE,
+                         hi_name="the gauge range", where=f"log row {i + 2}")
     T = np.asarray(log.T_k) if log.T_k is not None else np.full(n, T_default)
     table = DensityTable(gas, float(p.min()) * 0.999, float(p.max()) * 1.001, float(T.min()), float(T.max()) + 1e-6)
     m = table.density(p, T) * volume_m3
@@ -299,7 +329,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     if gauge is None:
         notes.append("no gauge range and class given: pressure uncertainty not included")
     if log.T_k is None:
-        notes.append(f"no temperature column: assumed constant {fmt_temperature(T_default)}")
+        notes.append(f"no temperature column: assumed constant {T_default - T0_K:.1f} °C")
     u_T_eff = u_T if log.T_k is not None else max(u_T, U_T_UNMEASURED)
     mf = fit_mass_loss(gas, volume_m3, t, p, T, m, u_p, u_T_eff)
     tc = t - mf.t_mean_s
@@ -307,22 +337,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     fit = np.polyval(coef, tc)
     resid = m - fit
     slope, se, u_rate, dm2p, span = mf.rate_kg_s, mf.se_kg_s, mf.u_kg_s, mf.dmdp_last, mf.span_s
-    curved = False
-    if n >= 5:
-        c2, cov2 = np.polyfit(tc, m, 2, cov=True)
-        significant = cov2[0, 0] > 0 and abs(c2[0]) > 3.0 * math.sqrt(cov2[0, 0])
-        # how far the curve departs from the line over the log, as mass [kg]
-        departure = float(np.max(np.abs(np.polyval(c2, tc) - fit)))
-        # what the gauge can resolve, as mass: one reading's uncertainty, or without a gauge
-        # the smallest step between the log's own distinct pressures
-        steps = np.diff(np.unique(p))
-        resolvable_pa = u_p if gauge is not None else (float(steps.min()) if steps.size else 0.0)
-        resolvable = dm2p * resolvable_pa
-        # the end slopes of the curve against the fitted rate: does it change the verdict?
-        slope_ends = [-(2.0 * c2[0] * x + c2[1]) for x in (tc[0], tc[-1])]
-        U = K_EXPANDED * u_rate
-        verdict_changes = any((s > U) != (slope > U) for s in slope_ends)
-        curved = bool(significant and (departure > resolvable or verdict_changes))
+    curved = n >= 5 and _curved(tc, m, fit, p, u_p if gauge is not None else None, dm2p, slope, u_rate)
     rms = float(np.sqrt(np.mean(resid**2)))
     res = _common(gas, volume_m3, span, float(p[0]), float(p[-1]), float(T[0]), float(T[-1]), slope, u_rate,
                   u_rate * span, float(m[0]), float(m[-1]), dm2p, gauge, target_sccm, reserve_abs, ambient_pa,

@@ -3,12 +3,11 @@ phases, enthalpy, entropy, heat-capacity ratios (re-exported by :mod:`benchwarde
 
 References
 ----------
-Bell, I. H., Wronski, J., Quoilin, S. and Lemort, V., "Pure and pseudo-pure fluid thermophysical
-property evaluation and the open-source thermophysical property library CoolProp", Ind. Eng.
-Chem. Res. 53 (2014) 2498–2508, with each fluid's reference equation of state (Span et al. 2000
-for nitrogen, Tegeler et al. 1999 for argon, Lemmon et al. 2000 for air, Span & Wagner 1996 for
-CO2, Guder & Wagner 2009 for SF6, ...); mixtures by GERG-2008 / Kunz–Wagner mixing (Kunz &
-Wagner, J. Chem. Eng. Data 57 (2012) 3032–3091).
+Bell, Wronski, Quoilin & Lemort, "Pure and pseudo-pure fluid thermophysical property evaluation
+and the open-source thermophysical property library CoolProp", Ind. Eng. Chem. Res. 53 (2014)
+2498–2508, with each fluid's reference equation of state (Span et al. 2000 nitrogen, Tegeler et
+al. 1999 argon, Lemmon et al. 2000 air, Span & Wagner 1996 CO2, Guder & Wagner 2009 SF6, ...);
+mixtures by GERG-2008 / Kunz–Wagner (J. Chem. Eng. Data 57 (2012) 3032–3091).
 """
 
 from __future__ import annotations
@@ -19,17 +18,14 @@ from typing import Any
 
 from benchwarden.core import eos
 from benchwarden.core.gases import Gas, R, parse_gas  # noqa: F401 - parse_gas: the doctests use it
-from benchwarden.errors import InputError, PropertyError
-from benchwarden.units import fmt_pressure, fmt_temperature
+from benchwarden.errors import KELVIN, PA_ABS, PropertyError, RangeError
 
 __all__ = ["coolprop", "state", "estimated_pairs", "SUPERANCILLARY_SWITCH", "limits",
            "melting_temperature", "check_state", "state_at", "Phase", "phase_of", "phase",
            "PTState", "pt_state", "density", "z_factor", "pressure_from_density", "enthalpy",
-           "entropy", "heat_capacity_ratio", "ideal_gas_heat_capacity_ratio", "vapour_enthalpy",
-           "vapour_density"]
+           "entropy", "heat_capacity_ratio", "ideal_gas_heat_capacity_ratio"]
 
-# CoolProp's states live in :mod:`benchwarden.core.eos` (one door: a failed update never leaves
-# a half-set state behind); re-exported here for callers that need the module or a constant.
+# CoolProp's states live in :mod:`benchwarden.core.eos` (one door), re-exported here.
 coolprop = eos.coolprop
 state = eos.state
 estimated_pairs = eos.estimated_pairs
@@ -42,6 +38,11 @@ def limits(gas: Gas) -> tuple[float, float, float]:
     Parameters
     ----------
     gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    tuple of float
+        (T_min [K], T_max [K], p_max [Pa]) of the equation of state.
 
     References
     ----------
@@ -63,6 +64,11 @@ def melting_temperature(gas: Gas, p: float) -> float | None:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float or None
+        Melting temperature [K], or None where no melting line is known.
 
     References
     ----------
@@ -91,32 +97,33 @@ def check_state(gas: Gas, T: float, p: float | None = None) -> None:
     T : Temperature, [K]
     p : Absolute pressure, [Pa], or None to check the temperature alone
 
+    Returns
+    -------
+    None
+        Raises :class:`~benchwarden.errors.RangeError` (with its data) outside the EOS or solid.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
     fluid's reference equation of state.
     """
     if not isinstance(T, (int, float)) or not math.isfinite(T) or T <= 0:
-        raise InputError(f"temperature {T!r} K is not a positive finite number")
+        raise RangeError(what="temperature", value=T, lo=0.0, lo_open=True, unit=KELVIN, why="a finite temperature")
     tmin, tmax, pmax = limits(gas)
     if not tmin <= T <= tmax:
-        raise InputError(
-            f"temperature {fmt_temperature(T)} is outside the equation of state for {gas.name} "
-            f"({fmt_temperature(tmin)} to {fmt_temperature(tmax)})"
-        )
+        raise RangeError(what="temperature", value=T, lo=tmin, hi=tmax, unit=KELVIN,
+                         why=f"the equation of state for {gas.name}")
     if p is None:
         return
     if not isinstance(p, (int, float)) or not math.isfinite(p) or p <= 0:
-        raise InputError(f"absolute pressure {p!r} Pa must be greater than zero")
+        raise RangeError(what="absolute pressure", value=p, lo=0.0, lo_open=True, unit=PA_ABS)
     if p > pmax:
-        raise InputError(f"pressure {fmt_pressure(p, kind='absolute')} is beyond the equation of state for {gas.name} "
-                         f"(up to {fmt_pressure(pmax, kind='absolute')})")
+        raise RangeError(what="pressure", value=p, hi=pmax, unit=PA_ABS, why=f"the equation of state for {gas.name}")
     Tm = melting_temperature(gas, p)
     if Tm is not None and T < Tm:
-        raise InputError(
-            f"{gas.name} is solid at {fmt_temperature(T)} and {fmt_pressure(p, kind='absolute')} (it melts at "
-            f"{fmt_temperature(Tm)} at that pressure): no gas state there"
-        )
+        raise RangeError(what="temperature", value=T, lo=Tm, unit=KELVIN, lo_name="the melting point",
+                         where=f"{gas.name} at {{0}}", why="solid below it: no gas state there",
+                         quantities=((p, PA_ABS),))
 
 
 def state_at(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None) -> Any:
@@ -131,6 +138,12 @@ def state_at(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None
     a, b : the pair's values, SI ([Pa], [K], [kg/m³], [J/kg], [J/(kg·K)])
     imposed : a phase to impose for this call (``"gas"``, ``"liquid"``), or None
 
+    Returns
+    -------
+    AbstractState
+        This thread's CoolProp state, updated; raises :class:`~benchwarden.errors.PropertyError`
+        naming the inputs where there is no solution.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -138,12 +151,12 @@ def state_at(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None
     """
     AS = eos.update(gas, pair, a, b, imposed)
     if AS is None:
-        what = {"PT_INPUTS": f"{fmt_pressure(a, kind='absolute')}, {fmt_temperature(b)}",
-                "DmassT_INPUTS": f"{a:.6g} kg/m³, {fmt_temperature(b)}",
-                "HmassP_INPUTS": f"h = {a / 1e3:.6g} kJ/kg, {fmt_pressure(b, kind='absolute')}",
-                "PSmass_INPUTS": f"{fmt_pressure(a, kind='absolute')}, s = {b / 1e3:.6g} kJ/(kg·K)",
-                "QT_INPUTS": f"saturation at {fmt_temperature(b)}"}.get(pair, "")
-        raise PropertyError(f"the equation of state of {gas.name} has no solution at {what}")
+        what, figures = {"PT_INPUTS": ("{0}, {1}", ((a, PA_ABS), (b, KELVIN))),
+                         "DmassT_INPUTS": ("{0}, {1}", ((a, "kg/m³"), (b, KELVIN))),
+                         "HmassP_INPUTS": ("h = {0}, {1}", ((a, "J/kg"), (b, PA_ABS))),
+                         "PSmass_INPUTS": ("{0}, s = {1}", ((a, PA_ABS), (b, "J/(kg·K)"))),
+                         "QT_INPUTS": ("saturation at {0}", ((b, KELVIN),))}.get(pair, ("", ()))
+        raise PropertyError(f"the equation of state of {gas.name} has no solution at {what}", quantities=figures)
     return AS
 
 
@@ -164,6 +177,11 @@ def phase_of(gas: Gas, AS: Any) -> Phase:
     ----------
     gas : the gas (pure or a mixture by mole fraction)
     AS : a CoolProp state just updated
+
+    Returns
+    -------
+    Phase
+        Phase kind and vapour fraction [-] of the state.
 
     References
     ----------
@@ -193,6 +211,11 @@ def phase(gas: Gas, T: float, p: float) -> Phase:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    Phase
+        Phase kind and vapour fraction [-].
 
     References
     ----------
@@ -226,6 +249,11 @@ def pt_state(gas: Gas, T: float, p: float) -> PTState:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    PTState
+        Density [kg/m³], compressibility factor Z [-] and phase.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -246,6 +274,11 @@ def density(gas: Gas, T: float, p: float) -> float:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Mass density [kg/m³].
 
     References
     ----------
@@ -270,6 +303,11 @@ def z_factor(gas: Gas, T: float, p: float) -> float:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    float
+        Compressibility factor Z [-].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -288,6 +326,11 @@ def pressure_from_density(gas: Gas, rho: float, T: float) -> float:
     rho : Mass density, [kg/m³]
     T : Temperature, [K]
 
+    Returns
+    -------
+    float
+        Absolute pressure [Pa].
+
     Notes
     -----
     A (ρ, T) flash: inside the two-phase region of a pure gas it returns the vapour pressure.
@@ -299,7 +342,7 @@ def pressure_from_density(gas: Gas, rho: float, T: float) -> float:
     """
     check_state(gas, T)
     if not math.isfinite(rho) or rho <= 0:
-        raise InputError(f"density {rho!r} kg/m³ must be greater than zero")
+        raise RangeError(what="density", value=rho, lo=0.0, lo_open=True, unit="kg/m³")
     return float(state_at(gas, "DmassT_INPUTS", rho, T).p())
 
 
@@ -311,6 +354,11 @@ def enthalpy(gas: Gas, T: float, p: float) -> float:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Specific enthalpy [J/kg].
 
     References
     ----------
@@ -330,6 +378,11 @@ def entropy(gas: Gas, T: float, p: float) -> float:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    float
+        Specific entropy [J/(kg·K)].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -347,6 +400,11 @@ def heat_capacity_ratio(gas: Gas, T: float, p: float) -> float:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        cp/cv of the real fluid [-].
 
     Notes
     -----
@@ -372,6 +430,11 @@ def ideal_gas_heat_capacity_ratio(gas: Gas, T: float) -> float:
     gas : the gas (pure or a mixture by mole fraction)
     T : Temperature, [K]
 
+    Returns
+    -------
+    float
+        cp0/cv0 of the ideal gas [-].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -385,56 +448,3 @@ def ideal_gas_heat_capacity_ratio(gas: Gas, T: float) -> float:
     AS = state_at(gas, "PT_INPUTS", 1e3, T, imposed="gas")  # cp0 depends on T alone
     cp0 = float(AS.cp0mass())
     return cp0 / (cp0 - R / gas.molar_mass)
-
-
-def vapour_enthalpy(gas: Gas, T: float, p: float) -> float:
-    """Specific enthalpy [J/kg] of the *vapour* at (T, p), also below the triple-point
-    temperature where CoolProp's range check stops (the vapour branch of the same Helmholtz
-    equation, evaluated with the gas phase imposed; used for CO2 vapour above its
-    sublimation line). Pure gases only.
-
-    Parameters
-    ----------
-    gas : a pure gas
-    T : Temperature, [K]
-    p : Absolute pressure, [Pa]
-
-    References
-    ----------
-    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
-    fluid's reference equation of state.
-    Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596 (CO2).
-
-    Examples
-    --------
-    >>> round(vapour_enthalpy(parse_gas("co2"), 204.15, 101325.0) / 1e3, 1)
-    429.9
-    """
-    return float(_vapour_state(gas, T, p).hmass())
-
-
-def vapour_density(gas: Gas, T: float, p: float) -> float:
-    """Mass density [kg/m³] of the *vapour* at (T, p), also below the triple-point temperature
-    (the vapour branch imposed, as in :func:`vapour_enthalpy`). Pure gases only.
-
-    Parameters
-    ----------
-    gas : a pure gas
-    T : Temperature, [K]
-    p : Absolute pressure, [Pa]
-
-    References
-    ----------
-    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
-    fluid's reference equation of state.
-    """
-    return float(_vapour_state(gas, T, p).rhomass())
-
-
-def _vapour_state(gas: Gas, T: float, p: float) -> Any:
-    if gas.is_mixture:
-        raise InputError("the vapour branch below the triple point is for pure gases")
-    AS = eos.update(gas, "PT_INPUTS", p, T, imposed="gas")
-    if AS is None:
-        raise PropertyError(f"no vapour state of {gas.name} at {fmt_temperature(T)}, {fmt_pressure(p, kind='absolute')}")
-    return AS

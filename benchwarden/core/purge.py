@@ -22,7 +22,7 @@ import math
 from dataclasses import dataclass
 
 from benchwarden.core import gas as g
-from benchwarden.errors import InputError
+from benchwarden.errors import PA_ABS, InputError, RangeError
 from benchwarden.units import ATM_PA, T0_K, check_range
 
 __all__ = ["CyclePurge", "cycle_purge", "Flush", "flush", "O2_IN_AIR"]
@@ -47,6 +47,30 @@ def cycle_purge(gas: g.Gas, volume_m3: float, p_high: float, p_low: float, T: fl
     """Cycles of fill to ``p_high`` and vent to ``p_low`` [Pa abs] needed to bring the impurity
     of ``volume_m3`` from ``x0`` to ``target`` (mole fractions), see module docstring.
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction) (the purge gas)
+    volume_m3 : Purged volume, [m³]
+    p_high : Fill pressure, absolute, [Pa]
+    p_low : Vent pressure, absolute, [Pa]
+    T : Temperature, [K]
+    x0 : Impurity before the purge, mole fraction [-]
+    target : Impurity to reach, mole fraction [-]
+    purity_impurity : The purge gas's own impurity, mole fraction [-]
+    max_cycles : Most cycles allowed (more is refused)
+
+    Returns
+    -------
+    CyclePurge
+        Cycles needed, the impurity after each [-], the floor [-], gas per cycle and in all [kg, standard L].
+
+    References
+    ----------
+    Dilution models of purging (CGA P-59 / ISA practice, from memory); CoolProp HEOS (Bell et al.,
+    Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+
+    Examples
+    --------
     >>> r = cycle_purge(g.parse_gas("nitrogen"), 1e-3, 5e5, 1e5, 293.15, 0.2095, 10e-6)
     >>> r.cycles                     # (1/5)^n·0.2095 ≤ 1e-5: n = 7
     7
@@ -56,7 +80,8 @@ def cycle_purge(gas: g.Gas, volume_m3: float, p_high: float, p_low: float, T: fl
         if not (math.isfinite(x) and 0 <= x <= 1):
             raise InputError(f"{what} {x!r} must be a fraction between 0 and 1")
     if not p_high > p_low > 0:
-        raise InputError(f"the purge pressures must satisfy high > low > 0 (absolute); got {p_high:g} and {p_low:g} Pa")
+        raise RangeError(what="low purge pressure", value=p_low, lo=0.0, lo_open=True, hi=p_high, hi_open=True,
+                         unit=PA_ABS, hi_name="the high pressure")
     if target >= x0:
         raise InputError("the target impurity is not below the starting one: no purge is needed")
     if target <= purity_impurity:
@@ -89,6 +114,29 @@ def flush(gas: g.Gas, volume_m3: float, flow_kg_s: float, p: float, T: float, x0
     well-mixed volume at (p, T) from ``x0`` to ``target``: t = (V/Q)·ln((x0 − x_f)/(target − x_f))
     with Q = ṁ/ρ(p, T); the plug-flow bound is one exchange, V/Q.
 
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction) (the purge gas)
+    volume_m3 : Flushed volume, [m³]
+    flow_kg_s : Purge gas mass flow, [kg/s]
+    p : Absolute pressure of the volume, [Pa]
+    T : Temperature, [K]
+    x0 : Impurity before the flush, mole fraction [-]
+    target : Impurity to reach, mole fraction [-]
+    purity_impurity : The purge gas's own impurity, mole fraction [-]
+
+    Returns
+    -------
+    Flush
+        Time well mixed and plug-flow bound [s], volume exchanges [-], gas used [kg, standard L].
+
+    References
+    ----------
+    Dilution models of purging (CGA P-59 / ISA practice, from memory); CoolProp HEOS (Bell et al.,
+    Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+
+    Examples
+    --------
     >>> f = flush(g.parse_gas("nitrogen"), 1e-3, 1.25e-3 / 60, 101325.0, 273.15, 0.2095, 10e-6)
     >>> round(f.exchanges, 2), round(f.time_s)      # ln(20950) exchanges of 1 L at 1 L/min
     (9.95, 597)

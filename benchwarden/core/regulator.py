@@ -16,8 +16,8 @@ from typing import Any
 
 from benchwarden.core import gas as g
 from benchwarden.core.flash import flash_ph, solve_increasing
-from benchwarden.errors import InputError, PropertyError
-from benchwarden.units import T0_K, fmt_pressure, fmt_temperature
+from benchwarden.errors import KELVIN, PA_ABS, InputError, PropertyError, RangeError
+from benchwarden.units import T0_K
 
 
 @dataclass(frozen=True)
@@ -66,6 +66,11 @@ def sublimation_enthalpy(gas: g.Gas, T: float) -> float:
     gas : CO2
     T : Temperature, [K] (below the triple point)
 
+    Returns
+    -------
+    float
+        Enthalpy of sublimation [J/kg].
+
     References
     ----------
     Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596, eq. 3.12 (sublimation line).
@@ -106,9 +111,8 @@ def _inlet(gas: g.Gas, p_in: float, T_in: float, saturated_vapour: bool) -> tupl
     p_sat = g.saturation_pressure(gas, T_in)
     if p_in > g.LIQUID_FULL_FACTOR * p_sat:
         raise InputError(
-            f"inlet {fmt_pressure(p_in, kind='absolute')} is far above the vapour pressure of {gas.name} at "
-            f"{fmt_temperature(T_in)} ({fmt_pressure(p_sat, kind='absolute')}): not vapour over liquid — "
-            "liquid-full, warmer than stated, or another gas")
+            f"inlet {{0}} is far above the vapour pressure of {gas.name} at {{1}} ({{2}}): not vapour over liquid — "
+            "liquid-full, warmer than stated, or another gas", quantities=((p_in, PA_ABS), (T_in, KELVIN), (p_sat, PA_ABS)))
     if p_in >= p_sat:
         return True, ["inlet-saturated"], p_sat
     if p_in >= g.NEAR_VAPOUR_PRESSURE * p_sat:
@@ -126,6 +130,11 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     T_in : Inlet temperature, [K]
     saturated_vapour : take the inlet as saturated vapour at T_in (vapour drawn off the liquid)
 
+    Returns
+    -------
+    Throttle
+        Outlet temperature [K], phase, vapour or solid fraction [-] and codes (``flags``).
+
     Notes
     -----
     h_out = h_in (adiabatic, steady flow, negligible kinetic energy). Pure gases use CoolProp's
@@ -139,12 +148,10 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     Mixtures use a phase-equilibrium (h, p) flash (:func:`benchwarden.core.flash.flash_ph`)
     that says when a component condenses. Freezing is a result, not an error.
 
-    A gas sold liquefied, below its critical temperature: at or up to 10 % above its vapour
-    pressure (gauge error) the inlet is saturated vapour drawn off the liquid; within 5 % below
-    it, it is also *treated* as saturated — conservative, since saturated vapour forms more
-    solid than the slightly superheated vapour the reading would mean (``inlet-near-vapour-
-    pressure``); further above, the input is refused (a liquid-full cylinder, a warmer cylinder,
-    or another gas).
+    A gas sold liquefied, below its critical temperature: up to 10 % above its vapour pressure
+    the inlet is saturated vapour drawn off the liquid; within 5 % below it, it is *treated* as
+    saturated (conservative: more solid forms; ``inlet-near-vapour-pressure``); further above,
+    the input is refused (a liquid-full cylinder, a warmer cylinder, or another gas).
 
     References
     ----------
@@ -168,9 +175,8 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     (-73.5, True)
     """
     if p_out >= p_in:
-        raise InputError(
-            f"outlet {fmt_pressure(p_out, kind='absolute')} is not below inlet {fmt_pressure(p_in, kind='absolute')}: a regulator only reduces pressure"
-        )
+        raise RangeError(what="outlet pressure", value=p_out, hi=p_in, hi_open=True, unit=PA_ABS,
+                         hi_name="the inlet pressure", why="a regulator only reduces pressure")
     g.check_state(gas, T_in, p_in)
     saturated, flags, p_sat = _inlet(gas, p_in, T_in, saturated_vapour)
     h = g.saturated_vapour_enthalpy(gas, T_in) if saturated else g.enthalpy(gas, T_in, p_in)
@@ -185,7 +191,7 @@ def throttle(gas: g.Gas, p_in: float, p_out: float, T_in: float, saturated_vapou
     try:
         fl = flash_ph(gas, h, p_out, T_in)
     except PropertyError:
-        raise PropertyError(f"no outlet state for {gas.name} throttled to {fmt_pressure(p_out, kind='absolute')}") from None
+        raise PropertyError(f"no outlet state for {gas.name} throttled to {{0}}", quantities=((p_out, PA_ABS),)) from None
     liquid = fl.phase.kind in ("two-phase", "liquid")
     solid = liquid and p_out <= pt * 1.02
     flags += ["liquid-forms"] * liquid + ["solid-at-triple-point"] * solid + ["outlet-below-freezing"] * (fl.T < T0_K)
@@ -233,6 +239,11 @@ def joule_thomson_coefficient(gas: g.Gas, T: float, p: float, dp: float = 1e3) -
     p : Absolute pressure, [Pa]
     dp : Pressure step, [Pa]
 
+    Returns
+    -------
+    float
+        μ_JT [K/Pa].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -261,6 +272,11 @@ def outlet_drift(set_point_abs: float, inlet_at_setting_abs: float, inlet_abs: f
     inlet_at_setting_abs : Inlet pressure when it was set, [Pa]
     inlet_abs : Inlet pressure now, [Pa]
     effects : Supply-pressure effect of each stage, [Pa/Pa]
+
+    Returns
+    -------
+    float
+        Outlet absolute pressure [Pa].
 
     References
     ----------

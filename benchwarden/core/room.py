@@ -30,7 +30,7 @@ from dataclasses import dataclass
 from typing import Literal
 
 from benchwarden.core import gas as g
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.units import Flow, check_positive
 from benchwarden.units.quantities import Amount
 
@@ -59,7 +59,21 @@ VentKind = Literal["exhaust", "supply"]
 
 
 def effect_of(c_percent: float) -> str:
-    """Words for the effect of an oxygen level (see :data:`EFFECTS`); ``""`` if ≥ 19.5 %."""
+    """Words for the effect of an oxygen level (see :data:`EFFECTS`); ``""`` if ≥ 19.5 %.
+
+    Parameters
+    ----------
+    c_percent : Oxygen in the room, [vol %]
+
+    Returns
+    -------
+    str
+        Words for the effect, or ``""`` at 19.5 % and above.
+
+    References
+    ----------
+    OSHA 29 CFR 1910.134 (19.5 %), EIGA Doc 44 and CGA SB-2 (effects of oxygen deficiency); from memory.
+    """
     text = ""
     for bound, words in EFFECTS:
         if c_percent < bound:
@@ -98,6 +112,27 @@ def release(room_volume_m3: float, release_volume_m3: float, model: str = "displ
     (mixed) or Vg/(Vr + Vg) (sealed); the oxygen is C = C0·(1 − y) + Cg·y with Cg the oxygen in
     the released gas (0 for an inert gas, 100 for oxygen, which enriches the room).
 
+    Parameters
+    ----------
+    room_volume_m3 : Room volume, [m³]
+    release_volume_m3 : Released gas at room conditions, [m³]
+    model : ``"displacement"``, ``"mixed"`` or ``"sealed"``
+    c0_percent : Oxygen before the release, [vol %]
+    gas_o2_percent : Oxygen in the released gas, [vol %]
+
+    Returns
+    -------
+    Release
+        Oxygen after the release [vol %], the gas's share of the room [vol %], the effect and notes.
+
+    References
+    ----------
+    BCGA Guidance Note GN11 'Reduced oxygen atmospheres' (release models; from memory);
+    well-mixed oxygen balance of laboratory ODH assessments (from memory).
+    OSHA 29 CFR 1910.134 (19.5 %), EIGA Doc 44 and CGA SB-2 (effects of oxygen deficiency); from memory.
+
+    Examples
+    --------
     >>> round(release(50.0, 9.5).o2_percent_after_release, 2)   # 9.5 m³ into 50 m³
     16.97
     >>> round(release(50.0, 9.5, "mixed").o2_percent_after_release, 2)
@@ -153,15 +188,36 @@ def leak_o2(room_volume_m3: float, leak_m3_s: float, ventilation_m3_s: float = 0
     stops, with the ventilation running (``inf`` without ventilation: open doors and windows;
     NaN when the level never falls below 19.5 %).
 
+    Parameters
+    ----------
+    room_volume_m3 : Room volume, [m³]
+    leak_m3_s : Leak at room conditions, [m³/s]
+    ventilation_m3_s : Ventilation, [m³/s]
+    kind : ``"exhaust"`` or ``"supply"`` ventilation
+    c0_percent : Oxygen before the leak, [vol %]
+
+    Returns
+    -------
+    Leak
+        Steady oxygen [vol %], minutes to 19.5 % and 18 % and to recover [min], the effect.
+
+    References
+    ----------
+    BCGA Guidance Note GN11 'Reduced oxygen atmospheres' (release models; from memory);
+    well-mixed oxygen balance of laboratory ODH assessments (from memory).
+    OSHA 29 CFR 1910.134 (19.5 %), EIGA Doc 44 and CGA SB-2 (effects of oxygen deficiency); from memory.
+
+    Examples
+    --------
     >>> lk = leak_o2(50.0, 10 / 60000, 100 / 3600)   # 10 L/min into 50 m³ with 2 air changes/h
     >>> round(lk.o2_percent_steady, 3), lk.minutes_to_19_5
     (20.824, inf)
     """
     check_positive(room_volume_m3, "room volume", "m³")
     if not math.isfinite(leak_m3_s) or leak_m3_s < 0:
-        raise InputError(f"leak {leak_m3_s!r} m³/s must be zero or more")
+        raise RangeError(what="leak", value=leak_m3_s, lo=0.0, unit="m³/s")
     if not math.isfinite(ventilation_m3_s) or ventilation_m3_s < 0:
-        raise InputError(f"ventilation {ventilation_m3_s!r} m³/s must be zero or more")
+        raise RangeError(what="ventilation", value=ventilation_m3_s, lo=0.0, unit="m³/s")
     if kind not in ("exhaust", "supply"):
         raise InputError(f"unknown ventilation kind {kind!r}; allowed: exhaust, supply")
     if not (math.isfinite(c0_percent) and 0 < c0_percent <= 100):
@@ -226,6 +282,23 @@ def finite_leak(lk: Leak, gas_volume_m3: float) -> FiniteLeak:
     gas at room conditions): it lasts T = V_gas/R; the oxygen follows the leak's closed-form
     curve until T (its minimum), then recovers as C(t) = C0 − (C0 − C_T)·e^(−Q(t−T)/V).
 
+    Parameters
+    ----------
+    lk : the continuous leak (:func:`leak_o2`)
+    gas_volume_m3 : Free gas in the cylinder at room conditions, [m³]
+
+    Returns
+    -------
+    FiniteLeak
+        Minutes to empty [min], the lowest oxygen [vol %], minutes below 19.5 % and to recover [min].
+
+    References
+    ----------
+    BCGA Guidance Note GN11 'Reduced oxygen atmospheres' (release models; from memory);
+    well-mixed oxygen balance of laboratory ODH assessments (from memory).
+
+    Examples
+    --------
     >>> lk = leak_o2(30.0, 10 / 60000, 0.0)
     >>> f = finite_leak(lk, 1.0)      # 1 m³ of gas at 10 L/min: 100 min
     >>> round(f.minutes_to_empty), round(f.o2_percent_minimum, 2), f.steady_sustained
@@ -256,14 +329,47 @@ def finite_leak(lk: Leak, gas_volume_m3: float) -> FiniteLeak:
 
 
 def o2_at(lk: Leak, t_s: float) -> float:
-    """Oxygen % at time t after the leak starts (closed-form solution of the model in ``lk``)."""
+    """Oxygen % at time t after the leak starts (closed-form solution of the model in ``lk``).
+
+    Parameters
+    ----------
+    lk : the continuous leak (:func:`leak_o2`)
+    t_s : Time since the leak started, [s]
+
+    Returns
+    -------
+    float
+        Oxygen [vol %].
+
+    References
+    ----------
+    BCGA Guidance Note GN11 'Reduced oxygen atmospheres' (release models; from memory);
+    well-mixed oxygen balance of laboratory ODH assessments (from memory).
+    """
     return lk.o2_percent_steady + (lk.c0_percent - lk.o2_percent_steady) * math.exp(-lk.rate_per_s * t_s)
 
 
 def leak_volume_flow(gas: g.Gas, f: Flow, T_room: float, p_room: float) -> float:
     """A leak as actual volume flow at room conditions [m³/s]: a standard flow via the gas's real
     density at its reference and at the room (CoolProp HEOS), a mass flow via the density at the
-    room, a plain volume flow as given (taken at room conditions)."""
+    room, a plain volume flow as given (taken at room conditions).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    f : the leak as typed and parsed (standard, mass or volume flow)
+    T_room : Room temperature, [K]
+    p_room : Room pressure, absolute, [Pa]
+
+    Returns
+    -------
+    float
+        Actual volume flow at room conditions [m³/s].
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+    """
     if f.kind == "actual":
         return f.value
     from benchwarden.core.supply import mass_flow
@@ -273,14 +379,45 @@ def leak_volume_flow(gas: g.Gas, f: Flow, T_room: float, p_room: float) -> float
 
 def release_volume(gas: g.Gas, amount: Amount, T_room: float, p_room: float) -> float:
     """A release as a volume at room conditions [m³]: a mass through the gas's real density at
-    the room (CoolProp HEOS), a volume as given."""
+    the room (CoolProp HEOS), a volume as given.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    amount : the release as typed and parsed (a mass or a volume)
+    T_room : Room temperature, [K]
+    p_room : Room pressure, absolute, [Pa]
+
+    Returns
+    -------
+    float
+        Volume at room conditions [m³].
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+    """
     if amount.kind == "volume":
         return check_positive(amount.value, "release volume", "m³")
     return check_positive(amount.value, "release mass", "kg") / g.density(gas, T_room, p_room)
 
 
 def stratification_note(gas: g.Gas) -> str:
-    """Where the gas collects, from its density relative to air (ideal-gas ratio of molar masses)."""
+    """Where the gas collects, from its density relative to air (ideal-gas ratio of molar masses).
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    str
+        Where the gas collects (near the floor, under the ceiling, mixed).
+
+    References
+    ----------
+    Ideal-gas density ratio to air from the molar masses (air 28.96 g/mol, Lemmon et al. 2000).
+    """
     rd = gas.relative_density_to_air
     if rd > 1.2:
         return (f"{gas.name} is {rd:.1f}× as dense as air: it collects at floor level, in pits and "

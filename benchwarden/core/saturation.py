@@ -10,11 +10,14 @@ Wagner, J. Phys. Chem. Ref. Data 38 (2009) 33–94 (SF6).
 
 from __future__ import annotations
 
-from benchwarden.core.gases import Gas
-from benchwarden.core.properties import coolprop, density, state, state_at
-from benchwarden.errors import InputError
+from typing import Any
 
-__all__ = ["saturated_vapour_enthalpy", "critical_temperature", "triple_point",
+from benchwarden.core import eos
+from benchwarden.core.gases import Gas, parse_gas  # noqa: F401 - parse_gas: the doctests use it
+from benchwarden.core.properties import coolprop, density, state, state_at
+from benchwarden.errors import KELVIN, PA_ABS, InputError, PropertyError
+
+__all__ = ["vapour_enthalpy", "vapour_density", "saturated_vapour_enthalpy", "critical_temperature", "triple_point",
            "saturation_pressure", "critical_pressure", "saturation_densities",
            "saturated_vapour_density_at_p", "liquid_full_temperature", "NEAR_VAPOUR_PRESSURE",
            "LIQUID_FULL_FACTOR", "is_liquid_full", "is_liquefied"]
@@ -26,6 +29,11 @@ def saturated_vapour_enthalpy(gas: Gas, T: float) -> float:
     ----------
     gas : a pure gas
     T : Temperature, [K]
+
+    Returns
+    -------
+    float
+        Saturated vapour specific enthalpy [J/kg].
 
     References
     ----------
@@ -42,6 +50,11 @@ def critical_temperature(gas: Gas) -> float:
     Parameters
     ----------
     gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float
+        Critical (or pseudo-critical) temperature [K].
 
     Notes
     -----
@@ -65,6 +78,11 @@ def triple_point(gas: Gas) -> tuple[float, float]:
     ----------
     gas : a pure gas
 
+    Returns
+    -------
+    tuple of float
+        (T [K], p [Pa]) of the triple point.
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -84,6 +102,11 @@ def saturation_pressure(gas: Gas, T: float) -> float:
     gas : a pure gas
     T : Temperature, [K]
 
+    Returns
+    -------
+    float
+        Vapour pressure [Pa].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -101,6 +124,11 @@ def critical_pressure(gas: Gas) -> float:
     Parameters
     ----------
     gas : the gas (pure or a mixture by mole fraction)
+
+    Returns
+    -------
+    float
+        Critical (or pseudo-critical) pressure [Pa].
 
     Notes
     -----
@@ -124,6 +152,11 @@ def saturation_densities(gas: Gas, T: float) -> tuple[float, float]:
     gas : a pure gas
     T : Temperature, [K]
 
+    Returns
+    -------
+    tuple of float
+        (saturated liquid, saturated vapour) densities [kg/m³].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -142,6 +175,11 @@ def saturated_vapour_density_at_p(gas: Gas, p: float) -> float:
     ----------
     gas : a pure gas
     p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Saturated vapour density [kg/m³].
 
     References
     ----------
@@ -163,6 +201,11 @@ def liquid_full_temperature(gas: Gas, rho: float) -> float | None:
     ----------
     gas : a pure gas
     rho : Mean density of the fill (mass / water volume), [kg/m³]
+
+    Returns
+    -------
+    float or None
+        Temperature [K] at which the fill becomes liquid-full, or None.
 
     Notes
     -----
@@ -215,6 +258,11 @@ def is_liquid_full(gas: Gas, T: float, p: float) -> bool:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    bool
+        True where the cylinder is full of liquid.
+
     Notes
     -----
     Threshold :data:`LIQUID_FULL_FACTOR` (10 % above the vapour pressure: gauge error and a
@@ -241,6 +289,11 @@ def is_liquefied(gas: Gas, T: float, p: float) -> bool:
     T : Temperature, [K]
     p : Absolute pressure, [Pa]
 
+    Returns
+    -------
+    bool
+        True where the cylinder holds liquid.
+
     Notes
     -----
     Threshold :data:`NEAR_VAPOUR_PRESSURE` (a reading within 5 % below the vapour pressure
@@ -256,3 +309,66 @@ def is_liquefied(gas: Gas, T: float, p: float) -> bool:
     if T >= critical_temperature(gas):
         return False
     return p >= NEAR_VAPOUR_PRESSURE * saturation_pressure(gas, T)
+
+
+def vapour_enthalpy(gas: Gas, T: float, p: float) -> float:
+    """Specific enthalpy [J/kg] of the *vapour* at (T, p), also below the triple-point
+    temperature where CoolProp's range check stops (the vapour branch of the same Helmholtz
+    equation, evaluated with the gas phase imposed; used for CO2 vapour above its
+    sublimation line). Pure gases only.
+
+    Parameters
+    ----------
+    gas : a pure gas
+    T : Temperature, [K]
+    p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Vapour specific enthalpy [J/kg].
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
+    Span & Wagner, J. Phys. Chem. Ref. Data 25 (1996) 1509–1596 (CO2).
+
+    Examples
+    --------
+    >>> round(vapour_enthalpy(parse_gas("co2"), 204.15, 101325.0) / 1e3, 1)
+    429.9
+    """
+    return float(_vapour_state(gas, T, p).hmass())
+
+
+def vapour_density(gas: Gas, T: float, p: float) -> float:
+    """Mass density [kg/m³] of the *vapour* at (T, p), also below the triple-point temperature
+    (the vapour branch imposed, as in :func:`vapour_enthalpy`). Pure gases only.
+
+    Parameters
+    ----------
+    gas : a pure gas
+    T : Temperature, [K]
+    p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    float
+        Vapour mass density [kg/m³].
+
+    References
+    ----------
+    CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
+    fluid's reference equation of state.
+    """
+    return float(_vapour_state(gas, T, p).rhomass())
+
+
+def _vapour_state(gas: Gas, T: float, p: float) -> Any:
+    if gas.is_mixture:
+        raise InputError("the vapour branch below the triple point is for pure gases")
+    AS = eos.update(gas, "PT_INPUTS", p, T, imposed="gas")
+    if AS is None:
+        raise PropertyError(f"no vapour state of {gas.name} at {{0}}, {{1}}", quantities=((T, KELVIN), (p, PA_ABS)))
+    return AS

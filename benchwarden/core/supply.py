@@ -13,12 +13,10 @@ from benchwarden.core import gas as g
 from benchwarden.core.contents import *  # noqa: F403 - re-exported: supply is the one name for a cylinder
 from benchwarden.core.contents import MAX_SUPPLY_M3
 from benchwarden.core.contents import __all__ as _contents_all
-from benchwarden.errors import InputError
+from benchwarden.errors import KELVIN, PA_ABS, InputError, RangeError
 from benchwarden.units import (
     Flow,
     check_range,
-    fmt_pressure,
-    fmt_temperature,
 )
 from benchwarden.units.constants import ATM_PA, T0_K
 
@@ -67,6 +65,12 @@ def heat_up(
     ambient_pa : Ambient pressure, [Pa]
     service_abs, test_abs : Service and test pressures (absolute), [Pa]
 
+    Returns
+    -------
+    HeatUp
+        Pressure after the change [Pa] (real and ideal gas) and whether it passes the storage limit,
+        the service and the test pressure.
+
     Notes
     -----
     Isochoric: ρ = ρ(T1, p1) stays; p2 = p(ρ, T2).
@@ -85,9 +89,9 @@ def heat_up(
     """
     if g.is_liquefied(gas, T1, p_abs):
         raise InputError(
-            f"{gas.name} is liquid in the cylinder at {fmt_temperature(T1)}: its pressure follows the "
-            "vapour pressure and the fill ratio, not the gas law; use the supplier's filling-ratio data"
-        )
+            f"{gas.name} is liquid in the cylinder at {{0}}: its pressure follows the "
+            "vapour pressure and the fill ratio, not the gas law; use the supplier's filling-ratio data",
+            quantities=((T1, KELVIN),))
     rho = g.density(gas, T1, p_abs)
     p2 = g.pressure_from_density(gas, rho, T2)
     above_storage = T2 > STORAGE_LIMIT_K
@@ -109,6 +113,11 @@ def mass_flow(gas: g.Gas, flow: Flow, T: float | None = None, p_abs: float | Non
     flow : a parsed flow (standard with its reference, mass, or actual volume)
     T : Temperature of an actual volume flow, [K]
     p_abs : Absolute pressure of an actual volume flow, [Pa]
+
+    Returns
+    -------
+    float
+        Mass flow [kg/s].
 
     References
     ----------
@@ -156,6 +165,11 @@ def runtime(gas: g.Gas, volume_m3: float, p_abs: float, reserve_abs: float, T: f
     T : Temperature, [K]
     draw_kg_s : Total draw, [kg/s]
 
+    Returns
+    -------
+    Runtime
+        Usable mass, mass now and at the reserve [kg], and hours to the reserve [h].
+
     References
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508) and the
@@ -169,14 +183,13 @@ def runtime(gas: g.Gas, volume_m3: float, p_abs: float, reserve_abs: float, T: f
     """
     check_range(volume_m3, "cylinder volume", 0.0, MAX_SUPPLY_M3, "m³", "a cylinder bundle at most")
     if reserve_abs >= p_abs:
-        raise InputError(
-            f"reserve {fmt_pressure(reserve_abs, kind='absolute')} is at or above the current pressure "
-            f"{fmt_pressure(p_abs, kind='absolute')}: nothing is usable"
-        )
+        raise RangeError(what="reserve", value=reserve_abs, hi=p_abs, hi_open=True, unit=PA_ABS,
+                         hi_name="the current pressure", why="else nothing is usable")
     if not math.isfinite(draw_kg_s) or draw_kg_s < 0:
-        raise InputError(f"total draw {draw_kg_s!r} kg/s must be zero or more")
+        raise RangeError(what="total draw", value=draw_kg_s, lo=0.0, unit="kg/s")
     if g.is_liquefied(gas, T, p_abs):
-        raise InputError(f"{gas.name} is liquid in the cylinder at {fmt_temperature(T)}; run time needs the weight")
+        raise InputError(f"{gas.name} is liquid in the cylinder at {{0}}; run time needs the weight",
+                         quantities=((T, KELVIN),))
     m_now = g.density(gas, T, p_abs) * volume_m3
     m_res = g.density(gas, T, reserve_abs) * volume_m3
     usable = m_now - m_res

@@ -7,7 +7,7 @@ from typing import Any
 
 from benchwarden.core import gas as g
 from benchwarden.core.gas import Gas, R, density
-from benchwarden.errors import InputError, PropertyError
+from benchwarden.errors import PA_ABS, PropertyError, RangeError
 
 __all__ = ["DensityTable"]
 
@@ -31,7 +31,8 @@ class DensityTable:
         import numpy as np
 
         if not (p_hi > p_lo > 0):
-            raise InputError(f"pressure range {p_lo:g}–{p_hi:g} Pa is empty")
+            raise RangeError(what="table's lowest pressure", value=p_lo, lo=0.0, lo_open=True, hi=p_hi, hi_open=True,
+                             unit=PA_ABS, hi_name="its highest pressure")
         if n_T is None:
             n_T = 1 if T_hi - T_lo < 1e-9 else min(9, 2 + int((T_hi - T_lo) / 3.0))
         self.gas = gas

@@ -78,7 +78,25 @@ class GaugeSpec:
 
 
 def mass_sensitivities(gas: g.Gas, V: float, T: float, p: float) -> tuple[float, float, float]:
-    """mass, ∂m/∂p, ∂m/∂T at (T, p) by central differences of the real density."""
+    """mass, ∂m/∂p, ∂m/∂T at (T, p) by central differences of the real density.
+
+    Parameters
+    ----------
+    gas : the gas (pure or a mixture by mole fraction)
+    V : Volume, [m³]
+    T : Temperature, [K]
+    p : Absolute pressure, [Pa]
+
+    Returns
+    -------
+    tuple of float
+        (m [kg], ∂m/∂p [kg/Pa], ∂m/∂T [kg/K]).
+
+    References
+    ----------
+    JCGM 100:2008 (GUM), sensitivity coefficients (5.1.3) by central differences; CoolProp HEOS
+    (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
+    """
     dp = max(p * 1e-5, 1.0)
     dT = 0.01
     m = g.density(gas, T, p) * V
@@ -100,6 +118,26 @@ def mass_change_uncertainty(dm1p: float, dm2p: float, dm1T: float, dm2T: float, 
     ∂m/∂p·u_p and each temperature ∂m/∂T·u_T, taken as uncorrelated (conservative for one
     gauge: its zero error cancels in a difference, its hysteresis and non-linearity do not).
 
+    Parameters
+    ----------
+    dm1p : ∂m/∂p at the first reading, [kg/Pa]
+    dm2p : ∂m/∂p at the second reading, [kg/Pa]
+    dm1T : ∂m/∂T at the first reading, [kg/K]
+    dm2T : ∂m/∂T at the second reading, [kg/K]
+    u_p : Standard uncertainty of a pressure reading, [Pa]
+    u_T : Standard uncertainty of a temperature reading, [K]
+
+    Returns
+    -------
+    float
+        Standard uncertainty of the mass change [kg].
+
+    References
+    ----------
+    JCGM 100:2008 (GUM), law of propagation of uncertainty (5.1.2).
+
+    Examples
+    --------
     >>> round(mass_change_uncertainty(1.0, 1.0, 0.0, 0.0, 3.0, 0.5), 4)    # √2 · 3
     4.2426
     """
@@ -139,6 +177,12 @@ def fit_mass_loss(gas: g.Gas, volume_m3: float, t_s: Any, p_abs_pa: Any, T_k: An
     masses_kg : The held mass at each reading, [kg] (real-gas density × volume, by the caller)
     u_p : Standard uncertainty of each of the first and last pressure readings, [Pa]
     u_T : Standard uncertainty of each of the first and last temperatures, [K]
+
+    Returns
+    -------
+    MassFit
+        Rate of mass loss [kg/s], its standard error and standard uncertainty [kg/s], the
+        uncertainty of the mass change [kg] and the fit's coefficients.
 
     Notes
     -----

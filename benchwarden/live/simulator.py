@@ -16,7 +16,7 @@ import time
 from dataclasses import dataclass, field
 
 from benchwarden.core import gas as g
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.units.constants import ATM_PA, BAR_PA, T0_K
 
 __all__ = ["Cylinder", "serve"]
@@ -43,8 +43,8 @@ class Cylinder:
             raise InputError("the simulated cylinder's pressure must be above atmospheric")
         self.m0 = g.density(self.gas, self.temperature_k, self.pressure_abs_pa) * self.volume_m3
         if not (math.isfinite(self.loss_kg_s) and 0.0 <= self.loss_kg_s <= self.m0):
-            raise InputError(f"leak + draw {self.loss_kg_s * 6e4:.3g} g/min: zero or more, and less than the whole "
-                             f"cylinder ({self.m0:.3g} kg) per second")
+            raise RangeError(what="leak + draw", value=self.loss_kg_s, lo=0.0, hi=self.m0, unit="kg/s",
+                             hi_name="the whole cylinder per second")
         self.m_floor = g.density(self.gas, self.temperature_k, self.ambient_pa) * self.volume_m3
 
     def pressure_at(self, elapsed_s: float) -> float:

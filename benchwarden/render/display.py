@@ -13,16 +13,36 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 from benchwarden.errors import InputError
-from benchwarden.units import ATM_PA, T0_K, fmt_hours, fmt_pressure
+from benchwarden.units import ATM_PA, T0_K, pressure_factor
 
 if TYPE_CHECKING:  # pragma: no cover
     from benchwarden.storage.profile import Profile
 
-__all__ = ["PRESSURE_UNITS", "Display", "display_for", "profile_display", "live_text", "open_hold_text", "cylinder_text",
-           "lab_link_text"]
+__all__ = ["PRESSURE_UNITS", "Display", "display_for", "profile_display", "fmt_hours", "live_text", "open_hold_text",
+           "cylinder_text", "lab_link_text"]
 
 #: Pressure units a person can choose for display (gauge marked (g)/psig, absolute (a)/psia).
 PRESSURE_UNITS: tuple[str, ...] = ("bar", "psi", "kPa", "MPa")
+
+
+def fmt_hours(hours: float) -> str:
+    """Hours for people: ``"3 h 12 min"``, ``"2 d 0 h"`` (``"never"`` for infinity).
+
+    >>> fmt_hours(3.2), fmt_hours(48.5), fmt_hours(float("inf")), fmt_hours(1e300)
+    ('3 h 12 min', '2 d 0 h', 'never', 'more than ten years')
+    """
+    if not math.isfinite(hours):
+        return "never"
+    if hours < 0:
+        return "passed"
+    if hours > 10 * 366 * 24:  # beyond what any bench plans for: no 300-digit day counts
+        return "more than ten years"
+    total_min = int(round(hours * 60))
+    d, rem = divmod(total_min, 24 * 60)
+    h, m = divmod(rem, 60)
+    if d:
+        return f"{d} d {h} h"
+    return f"{h} h {m:02d} min"
 
 
 @dataclass(frozen=True)
@@ -54,8 +74,6 @@ class Display:
     def _fixed(self, pa: float, step_pa: float | None, label: str) -> str:
         """A pressure in the display unit: decimals from the step when given, else by size (one
         decimal from 10, none from 1000), never a thousands separator."""
-        from benchwarden.units import pressure_factor
-
         f = pressure_factor(self.pressure_unit)
         v = pa / f
         if step_pa is not None and math.isfinite(step_pa) and step_pa > 0:
@@ -72,7 +90,7 @@ class Display:
     def both(self, abs_pa: float) -> str:
         """Gauge and absolute: ``"64.0 bar(g) = 65.0 bar(a)"``; low pressures absolute in mbar."""
         if abs_pa < 1e4 and self.pressure_unit == "bar":
-            return f"{self.gauge(abs_pa)} = {fmt_pressure(abs_pa, self.ambient_pa, 'mbar', 'absolute')}"
+            return f"{self.gauge(abs_pa)} = {Display('mbar', self.ambient_pa).absolute(abs_pa)}"
         return f"{self.gauge(abs_pa)} = {self.absolute(abs_pa)}"
 
     @property
@@ -91,8 +109,6 @@ class Display:
 
     def difference(self, dp_pa: float) -> str:
         """A pressure difference (a drop, a band): no (g)/(a) mark."""
-        from benchwarden.units import pressure_factor
-
         v = dp_pa / pressure_factor(self.pressure_unit)
         digits = 1 if abs(v) >= 10 else (2 if abs(v) >= 1 else 3)
         return f"{v:.{digits}f} {self.pressure_unit}"
@@ -109,6 +125,16 @@ class Display:
     @staticmethod
     def hours(h: float) -> str:
         return fmt_hours(h)
+
+    @staticmethod
+    def elapsed(seconds: float) -> str:
+        """Time elapsed as a running clock, ``h:mm:ss``.
+
+        >>> Display.elapsed(3905.7)
+        '1:05:05'
+        """
+        s = max(0, int(seconds))
+        return f"{s // 3600}:{s % 3600 // 60:02d}:{s % 60:02d}"
 
     @staticmethod
     def clock(when: str | dt.datetime | None, now: dt.datetime | None = None) -> str:

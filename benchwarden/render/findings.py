@@ -17,11 +17,15 @@ from benchwarden.render.hazards import BAND_WORDS, CO2_DETECTOR, ENRICHMENT_TEXT
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.workflows.findings import Finding
 
-__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "TEMPLATES", "VERDICT_WORDS", "describe", "finding_dict", "verdict_words"]
+__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "SEVERITY_STYLE", "OK_STYLE", "TEMPLATES", "VERDICT_WORDS", "describe",
+           "finding_dict", "short_words", "verdict_words"]
 
 SEVERITY_MARK: dict[str, str] = {"stop": "✖ STOP", "warning": "▲ WARNING", "attention": "● ATTENTION",
                                  "info": "ℹ INFO"}
 SEVERITY_WORD: dict[str, str] = {"stop": "STOP", "warning": "WARNING", "attention": "ATTENTION", "info": "INFO"}
+#: The colour (a terminal style) of each severity, and of nothing to report.
+SEVERITY_STYLE: dict[str, str] = {"stop": "bold red", "warning": "dark_orange", "attention": "yellow", "info": "dim"}
+OK_STYLE = "green"
 
 Template = Callable[[Finding, Any, Display], tuple[str, str]]
 
@@ -218,6 +222,21 @@ TEMPLATES: dict[str, Template] = {
     "leak-watch-leak": lambda f, v, d: (
         f"the leak watch on {v['supply']} found a leak while the bench stood idle: find and fix it first",
         _hold_figure(v)),
+    "heat-above-test": lambda f, v, d: (
+        f"heated, {f.subject} reaches {d.gauge(v['pressure_abs_pa'])}, above its test pressure "
+        f"{d.gauge(v['test_abs_pa'])}: never heat a cylinder", d.gauge(v["pressure_abs_pa"])),
+    "heat-above-service": lambda f, v, d: (
+        f"{d.gauge(v['pressure_abs_pa'])} exceeds the service pressure {d.gauge(v['service_abs_pa'])} (rated at "
+        "15 °C); check the regulator's inlet rating", d.gauge(v["pressure_abs_pa"])),
+    "heat-storage-limit": lambda f, v, d: (
+        f"{d.temperature(v['temperature_k'])} is above the {d.temperature(v['limit_k'])} (125 °F) limit for storing "
+        "cylinders (CGA P-1, from memory): keep cylinders out of sun and away from heat", d.temperature(v["temperature_k"])),
+    "countdown-short": lambda f, v, d: (
+        f"{f.subject} reaches its reserve in {d.hours(v['hours'])}, before half of the session's remaining "
+        f"{d.hours(v['session_left_hours'])}", f"{v['hours']:.2f} h"),
+    "countdown-before-end": lambda f, v, d: (
+        f"{f.subject} reaches its reserve in {d.hours(v['hours'])}, before the session's remaining "
+        f"{d.hours(v['session_left_hours'])} are over", f"{v['hours']:.2f} h"),
     "alarm-reserve": lambda f, v, d: (
         f"{f.subject} reaches its reserve in {d.hours(v['hours'])}" if v["hours"] > 0
         else f"{f.subject} is at its reserve: close it and change the cylinder", f"{v['hours']:.2f} h"),
@@ -276,6 +295,21 @@ def _hold_figure(v: Any) -> str:
             f"{Display.ago(v['age_days'])}")
 
 
+
+
+#: A few words for a finding where a status line or a table row has room for no sentence.
+SHORT: dict[str, Callable[[Finding, Any, Display], str]] = {
+    "alarm-over-time": lambda f, v, d: f"OVER TIME by {d.hours(v['over_hours'])}",
+    "faster-than-planned": lambda f, v, d: "faster than planned",
+}
+
+
+def short_words(f: Finding, display: Display | None = None) -> str:
+    """The severity's sign and a few words (:data:`SHORT`; else the finding's figure):
+    ``▲ OVER TIME by 0 h 20 min``."""
+    d = display or Display()
+    words = SHORT[f.code](f, f.values, d) if f.code in SHORT else describe(f, d)[1]
+    return f"{SEVERITY_MARK[f.severity].split()[0]} {words}"
 
 
 def describe(f: Finding, display: Display | None = None) -> tuple[str, str]:

@@ -6,8 +6,8 @@ import math
 from typing import Any
 
 from benchwarden.core.hazards import ENRICHED_O2
+from benchwarden.render.display import fmt_hours
 from benchwarden.render.hazards import ENRICHMENT_TEXT
-from benchwarden.units import fmt_hours
 
 __all__ = ["floor_words", "leak_rows", "release_oxygen_words", "minutes", "case_line", "room_lines"]
 

@@ -18,7 +18,7 @@ import math
 import re
 
 from benchwarden.core.hold import HoldLog
-from benchwarden.errors import InputError
+from benchwarden.errors import InputError, RangeError
 from benchwarden.units import parse_temperature, pressure_abs
 from benchwarden.units.constants import ATM_PA, SECONDS_PER_DAY
 
@@ -170,6 +170,8 @@ def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = A
                     raise InputError(f"temperature {r[idx_T].strip()} is below absolute zero or beyond 10 000 K")
                 Ts.append(Tv)
         except (InputError, ValueError, IndexError) as exc:
+            if isinstance(exc, RangeError):  # keeps its data: worded in the display unit
+                raise exc.located(f"log row {n}") from None
             raise InputError(f"log row {n}: {exc}") from None
         if not math.isfinite(tv):
             raise InputError(f"log row {n}: time is not a finite number")

@@ -22,7 +22,7 @@ from pydantic import (
 )
 
 from benchwarden import units as u
-from benchwarden.errors import InputError, ProfileError
+from benchwarden.errors import PA_GAUGE, BenchwardenError, InputError, ProfileError, RangeError
 from benchwarden.storage.profile_fields import ProfileModel as _Model
 from benchwarden.storage.profile_fields import (
     SourceBase,
@@ -107,9 +107,9 @@ class Profile(_Model):
                                f"regulator {r.id}: supply_pressure_effect needs {r.stages} value(s), one per stage")
             sp, lo, hi = (x.abs_at(amb) for x in (r.set_point, r.outlet_min, r.outlet_max))
             if not lo <= sp <= hi:
-                raise Located(("regulators", i, "set_point"),
-                               f"regulator {r.id}: set point {r.set_point.text} is outside the outlet range "
-                               f"{r.outlet_min.text} to {r.outlet_max.text}")
+                raise Located(("regulators", i, "set_point"), RangeError(
+                    what="set point", value=sp - amb, typed=r.set_point.text, lo=lo - amb, hi=hi - amb, unit=PA_GAUGE,
+                    where=f"regulator {r.id}", why="the regulator's outlet range"))
         for i, d in enumerate(self.draws):
             if d.regulator not in regs:
                 raise Located(("draws", i, "regulator"), f"draw {d.id}: regulator {d.regulator!r} does not exist "
@@ -199,6 +199,7 @@ def parse_profile(text: str, source: str = "<profile>") -> Profile:
         cause = (err.get("ctx") or {}).get("error")
         if isinstance(cause, Located):
             loc = loc + cause.loc  # a check across sections names the key it is about
+            cause = cause.inner or cause
         msg = str(err.get("msg", "invalid")).removeprefix("Value error, ")
         if err["type"] == "extra_forbidden":
             msg = "unknown key (see docs/profile.md for the keys allowed here)"
@@ -208,9 +209,12 @@ def parse_profile(text: str, source: str = "<profile>") -> Profile:
         where = f"{source}:{line}" if line else source
         more = f" (and {exc.error_count() - 1} more problem(s))" if exc.error_count() > 1 else ""
         key = _fmt_loc(loc)
-        raise ProfileError(f"{where}: {key + ': ' if key else ''}{msg}{more}") from None
+        head = f"{where}: {key + ': ' if key else ''}"
+        inner = cause if isinstance(cause, BenchwardenError) and (isinstance(cause, RangeError) or cause.quantities) else None
+        raise ProfileError(f"{head}{msg}{more}", inner=inner, prefix=head, suffix=more) from None
     except (InputError, RecursionError) as exc:
-        raise ProfileError(f"{source}: {exc}") from None
+        raise ProfileError(f"{source}: {exc}", inner=exc if isinstance(exc, RangeError) else None,
+                           prefix=f"{source}: ") from None
 
 
 def read_text_file(path: str | Path, what: str, limit: int) -> str:

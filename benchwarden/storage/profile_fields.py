@@ -13,8 +13,9 @@ from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, field_valida
 
 from benchwarden import units as u
 from benchwarden.core.gas import Gas, parse_gas
-from benchwarden.errors import InputError
+from benchwarden.errors import KELVIN, PA_ABS, InputError, RangeError
 from benchwarden.units import quantities as q
+from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import text_problem
 
 # ----------------------------------------------------------------------------- field types
@@ -29,23 +30,26 @@ def _str_only(fn: Any) -> Any:
     return check
 
 
-def _within(fn: Any, hi: float, unit: str) -> Any:
-    """Parse, then refuse values beyond ``hi`` (SI): a huge number is a unit slip, not a bench."""
+def _within(fn: Any, hi: float, unit: str, shown: tuple[str, float] | None = None) -> Any:
+    """Parse, then refuse values beyond ``hi`` [SI ``unit``]: a huge number is a unit slip, not a
+    bench (``shown``: the unit of the plain message)."""
     def check(v: str) -> Any:
         out = fn(v)
         x = out.abs_at(u.ATM_PA) if isinstance(out, u.Pressure) else out
         if x > hi:
-            raise InputError(f"{v!r} is beyond {hi:g} {unit}, more than any bench uses; check the unit")
+            raise RangeError(what="value", value=x, typed=v, hi=hi, unit=unit, shown=shown,
+                             why="more than any bench uses; check the unit")
         return out
 
     return _str_only(check)
 
 
-PressureQ = Annotated[u.Pressure, BeforeValidator(_within(lambda s: u.parse_pressure(s), 2e8, "Pa (2000 bar)"))]
-TemperatureQ = Annotated[float, BeforeValidator(_within(u.parse_temperature, 773.15, "K (500 °C)"))]
+PressureQ = Annotated[u.Pressure, BeforeValidator(_within(lambda s: u.parse_pressure(s), 2e8, PA_ABS,
+                                                          ("bar(a)", BAR_PA)))]
+TemperatureQ = Annotated[float, BeforeValidator(_within(u.parse_temperature, 773.15, KELVIN, ("K", 1.0)))]
 VolumeQ = Annotated[float, BeforeValidator(_within(u.parse_volume, 1e6, "m³"))]
 LengthQ = Annotated[float, BeforeValidator(_within(u.parse_length, 1e4, "m"))]
-DurationQ = Annotated[float, BeforeValidator(_within(u.parse_duration, 365 * 86400.0, "s (a year)"))]
+DurationQ = Annotated[float, BeforeValidator(_within(u.parse_duration, 365 * 86400.0, "s"))]
 MassQ = Annotated[float, BeforeValidator(_within(u.parse_mass, 1e4, "kg"))]
 FrequencyQ = Annotated[float, BeforeValidator(_within(u.parse_frequency, 1e6, "Hz"))]
 VoltageQ = Annotated[float, BeforeValidator(_within(u.parse_voltage, 1e7, "V"))]

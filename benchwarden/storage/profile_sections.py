@@ -18,7 +18,7 @@ from pydantic import (
 )
 
 from benchwarden import units as u
-from benchwarden.errors import InputError
+from benchwarden.errors import PA_GAUGE, InputError, RangeError
 from benchwarden.storage.profile_fields import (
     DurationQ,
     FlowQ,
@@ -45,9 +45,11 @@ from benchwarden.units.limits import EARLIEST_RECORD, in_range, within_dates
 class Located(InputError):
     """A check across sections, with the key it is about (for the line number)."""
 
-    def __init__(self, loc: tuple[str | int, ...], msg: str) -> None:
-        super().__init__(msg)
+    def __init__(self, loc: tuple[str | int, ...], msg: str | InputError) -> None:
+        super().__init__(str(msg))
         self.loc = loc
+        #: the value's own error, where it carries data (a renderer words it in the display unit)
+        self.inner = msg if isinstance(msg, InputError) else None
 
 
 def _record_date(v: dt.date) -> dt.date:
@@ -150,8 +152,8 @@ class Supply(_Model):
     def _check(self) -> Supply:
         _positive(self.water_volume, f"water_volume of supply {self.id}")
         if self.water_volume > 5.0:
-            raise InputError(f"supply {self.id}: water_volume {self.water_volume:g} m³ is larger than a cylinder "
-                             "bundle (5 m³); check the unit")
+            raise RangeError(what="water_volume", value=self.water_volume, hi=5.0, unit="m³", where=f"supply {self.id}",
+                             why="a cylinder bundle at most; check the unit")
         in_range("cylinder volume", self.water_volume, f"water_volume of supply {self.id}")
         if self.leak_target is not None:
             in_range("flow", self.leak_target.value, f"leak_target of supply {self.id}")
@@ -160,8 +162,9 @@ class Supply(_Model):
         if self.gross is not None and self.tare is not None and self.gross < self.tare:
             raise InputError(f"supply {self.id}: gross weight is below the tare weight")
         if self.reserve.typed_as == "gauge" and self.reserve.typed_pa < 0:
-            raise Located(("reserve",), f"supply {self.id}: reserve {self.reserve.text} is out of range: at least "
-                                         "0 bar(g) (a cylinder is never drawn below the room's pressure)")
+            raise Located(("reserve",), RangeError(what="reserve", value=self.reserve.typed_pa, typed=self.reserve.text,
+                                                   lo=0.0, unit=PA_GAUGE, where=f"supply {self.id}",
+                                                   why="a cylinder is never drawn below the room's pressure"))
         if self.reading is None and self.gross is None:
             raise InputError(f"supply {self.id}: give a reading (or gross and tare weights)")
         if self.leak_target is not None and self.leak_target.kind == "actual":

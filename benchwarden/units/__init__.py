@@ -6,7 +6,6 @@ below the interfaces takes SI numbers or these typed values, never text.
 """
 
 from benchwarden.units.flows import Flow, FlowKind, parse_flow  # noqa: F401
-from benchwarden.units.format import fmt_hours, fmt_pressure, fmt_temperature, pressure_factor  # noqa: F401
 from benchwarden.units.parse import (  # noqa: F401 - the public surface
     ATM_PA,
     PSI_PA,
@@ -32,6 +31,7 @@ from benchwarden.units.parse import (  # noqa: F401 - the public surface
     parse_voltage,
     parse_volume,
     pressure_abs,
+    pressure_factor,
     shorten,
     split_number,
     target_names,
@@ -71,7 +71,4 @@ __all__ = [
     "Flow",
     "parse_flow",
     "pressure_factor",
-    "fmt_pressure",
-    "fmt_temperature",
-    "fmt_hours",
 ]

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import TYPE_CHECKING, Literal
 
-from benchwarden.errors import InputError, RangeError
+from benchwarden.errors import PA_ABS, PA_DIFF, InputError, RangeError
 from benchwarden.units.constants import ATM_PA, BAR_PA, PSI_PA, T0_K, T_FULL_K
 from benchwarden.units.limits import check_quantity_text
 
@@ -145,9 +145,7 @@ def check_range(value: float, what: str, lo: float, hi: float, unit: str, why: s
     """
     check_finite(value, what)
     if not lo < value <= hi:
-        raise RangeError(f"{what} {value:g} {unit} is outside the range allowed: above {lo:g} and at most {hi:g} "
-                         f"{unit}" + (f" ({why})" if why else ""), what=what, value=value, lo=lo, hi=hi, unit=unit,
-                         why=why)
+        raise RangeError(what=what, value=value, lo=lo, hi=hi, unit=unit, why=why, lo_open=True)
     return float(value)
 
 
@@ -155,8 +153,7 @@ def check_positive(value: float, what: str, unit: str = "") -> float:
     """Return ``value`` if it is finite and > 0, else raise :class:`InputError`."""
     check_finite(value, what)
     if value <= 0:
-        raise RangeError(f"{what} must be greater than zero, got {value:g}{(' ' + unit) if unit else ''}", what=what,
-                         value=value, lo=0.0, unit=unit)
+        raise RangeError(what=what, value=value, lo=0.0, unit=unit, lo_open=True)
     return float(value)
 
 
@@ -172,6 +169,18 @@ _PRESSURE_UNITS = {
 _ALWAYS_ABSOLUTE = {"atm", "torr", "mmhg"}
 
 PressureKind = Literal["gauge", "absolute"]
+
+
+def pressure_factor(unit: str) -> float:
+    """Pascals per one ``unit`` (bar, psi, kPa, MPa, mbar, ...).
+
+    >>> pressure_factor("psi") == PSI_PA
+    True
+    """
+    try:
+        return _PRESSURE_UNITS[unit.lower()]
+    except KeyError:
+        raise InputError(f"unknown pressure unit {unit!r}") from None
 
 
 @dataclass(frozen=True)
@@ -238,8 +247,8 @@ def parse_pressure(text: str, ambient_pa: float = ATM_PA, what: str = "pressure"
     abs_pa = pa + ambient_pa if kind == "gauge" else pa
     if abs_pa < 0:
         raise InputError(
-            f"{what} {text!r} is below vacuum (absolute {abs_pa / BAR_PA:.4g} bar(a)); "
-            "a gauge reading cannot be lower than minus the ambient pressure"
+            f"{what} {text!r} is below vacuum (absolute {{0}}); "
+            "a gauge reading cannot be lower than minus the ambient pressure", quantities=((abs_pa, PA_ABS),)
         )
     return Pressure(kind, pa, text.strip())
 
@@ -264,7 +273,7 @@ def ambient_from_altitude(altitude_m: float) -> float:
     """
     check_finite(altitude_m, "altitude")
     if not -2000.0 <= altitude_m <= 11000.0:
-        raise InputError(f"altitude {altitude_m:g} m is outside -2000 m to 11000 m (ISO 2533 troposphere)")
+        raise RangeError(what="altitude", value=altitude_m, lo=-2000.0, hi=11000.0, unit="m", why="ISO 2533 troposphere")
     return ATM_PA * (1.0 - 2.25577e-5 * altitude_m) ** 5.25588
 
 
@@ -355,8 +364,11 @@ SANITY_LIMITS: dict[str, tuple[float, str]] = {
 
 def _sane(value: float, kind: str, text: str, what: str) -> float:
     hi, words = SANITY_LIMITS[kind]
-    if abs(value) > hi:
-        raise InputError(f"{what} {shorten(text)!r} is beyond {words}, more than any bench uses; check the unit")
+    if abs(value) > hi:  # a pressure's limit is worded in the display unit, the others as written here
+        raise RangeError(what=what, value=value, typed=shorten(text), lo=-hi if value < 0 else None,
+                         hi=hi if value > 0 else None, unit=PA_DIFF if kind == "pressure" else kind,
+                         words=None if kind == "pressure" else f"at most {words}",
+                         why="more than any bench uses; check the unit")
     return value
 
 

@@ -22,12 +22,12 @@ import re
 from dataclasses import dataclass, field
 
 from benchwarden.core import gas as g
-from benchwarden.errors import InputError, JournalError
+from benchwarden.errors import KELVIN, PA_GAUGE, InputError, JournalError, RangeError
 from benchwarden.storage.journal import ChangeRow, Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply, with_reading, with_weight
 from benchwarden.storage.samples import SampleStore
-from benchwarden.units import PSI_PA, Pressure, fmt_pressure
-from benchwarden.units.constants import BAR_PA, T0_K
+from benchwarden.units import PSI_PA, Pressure
+from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import EARLIEST_RECORD, check_quantity_text, within_dates
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows.holds import (
@@ -173,7 +173,7 @@ def latest_state(journal: Journal | None, prof: Profile, supply_id: str,
                 break
     except JournalError:
         return None
-    return LatestSample(dt.datetime.fromtimestamp(got[0], tz).replace(microsecond=0), got[1], temp, fmt_pressure(got[1], prof.ambient_pa))
+    return LatestSample(dt.datetime.fromtimestamp(got[0], tz).replace(microsecond=0), got[1], temp, "live sample")
 
 
 
@@ -261,20 +261,21 @@ def check_limits(prof: Profile, entry: Entry) -> None:
     s = prof.supply(entry.supply_id)
     amb = prof.ambient_pa
     if not READING_T_RANGE[0] < entry.temperature_k < READING_T_RANGE[1]:
-        raise InputError(f"cylinder temperature {entry.temperature_k - T0_K:.1f} °C is outside −73 °C to 77 °C; "
-                         "check the unit")
+        raise RangeError(what="cylinder temperature", value=entry.temperature_k, lo=READING_T_RANGE[0],
+                         hi=READING_T_RANGE[1], lo_open=True, hi_open=True, unit=KELVIN, why="check the unit")
     if entry.pressure_abs_pa is not None:
         p = entry.pressure_abs_pa
         if s.test_pressure is not None and p > s.test_pressure.abs_at(amb):
-            raise InputError(f"{entry.pressure_text or 'the reading'} is above the cylinder's test pressure "
-                             f"{s.test_pressure.text}: check the gauge and the unit")
+            raise RangeError(what="reading", value=p - amb, typed=entry.pressure_text, hi=s.test_pressure.abs_at(amb) - amb,
+                             unit=PA_GAUGE, hi_name="the cylinder's test pressure", why="check the gauge and the unit")
         if s.gauge is not None and p > s.gauge.range.abs_at(amb) * 1.0001:
-            raise InputError(f"{entry.pressure_text or 'the reading'} is above the gauge range {s.gauge.range.text}")
+            raise RangeError(what="reading", value=p - amb, typed=entry.pressure_text,
+                             hi=s.gauge.range.abs_at(amb) - amb, unit=PA_GAUGE, hi_name="the gauge range")
     if entry.weight_kg is not None:
         if s.tare is None:
             raise InputError(f"supply {s.id} has no tare weight in the profile: a weight reading needs it")
         if entry.weight_kg < s.tare:
-            raise InputError(f"weight {entry.weight_kg:g} kg is below the tare weight {s.tare:g} kg of {s.id}")
+            raise RangeError(what="weight", value=entry.weight_kg, lo=s.tare, unit="kg", lo_name=f"the tare weight of {s.id}")
 
 
 def questions_after(prof: Profile, prev: Entry, entry: Entry, planned_kg_s: float | None = None,

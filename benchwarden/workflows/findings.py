@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 from typing import Any, Literal
 
 from benchwarden.core import gas as g
-from benchwarden.core.supply import Contents
+from benchwarden.core.supply import STORAGE_LIMIT_K, Contents, HeatUp
 from benchwarden.storage.profile import Profile
 from benchwarden.units import T0_K
 from benchwarden.workflows.findings_room import room_findings
@@ -27,7 +27,7 @@ from benchwarden.workflows.model import Observed, Plan
 
 __all__ = [
     "SEVERITIES", "SEVERITY_RANK", "Finding", "Severity", "HOLD_TEST_MAX_AGE_DAYS", "plan_findings",
-    "live_findings", "hold_test_findings", "ranked", "counts", "at_or_above", "contents_findings", "mass_findings",
+    "live_findings", "countdown_findings", "heat_findings", "hold_test_findings", "ranked", "counts", "at_or_above", "contents_findings", "mass_findings",
     "outlet_findings",
 ]
 
@@ -119,6 +119,22 @@ def contents_findings(c: Contents, subject: str = "the cylinder") -> list[Findin
         out.append(Finding("overfilled", "stop", subject, {
             "gas": c.gas_name, "mass_kg": c.mass_kg, "volume_m3": c.volume_m3,
             "filling_ratio_kg_l": c.filling_ratio_kg_l, "max_filling_ratio_kg_l": c.max_filling_ratio_kg_l}))
+    return ranked(out)
+
+
+def heat_findings(h: HeatUp, subject: str = "the cylinder") -> list[Finding]:
+    """Findings of one ``heat`` computation: above the test pressure (a stop), else above the
+    service pressure (a warning); a temperature above the storage limit (a warning)."""
+    out: list[Finding] = []
+    if h.above_storage_limit:
+        out.append(Finding("heat-storage-limit", "warning", subject, {
+            "temperature_k": h.temperature_to_k, "limit_k": STORAGE_LIMIT_K}))
+    if h.above_test_pressure and h.test_abs_pa is not None:
+        out.append(Finding("heat-above-test", "stop", subject, {
+            "pressure_abs_pa": h.pressure_abs_pa, "test_abs_pa": h.test_abs_pa}))
+    elif h.above_service_pressure and h.service_abs_pa is not None:
+        out.append(Finding("heat-above-service", "warning", subject, {
+            "pressure_abs_pa": h.pressure_abs_pa, "service_abs_pa": h.service_abs_pa}))
     return ranked(out)
 
 
@@ -316,6 +332,25 @@ def live_findings(plan: Plan, observed: Mapping[str, Observed], session_end: dt.
             out.append(Finding("reserve-before-end-live", "warning", s.id, {
                 "reserve_at": at, "session_end": session_end.isoformat(timespec="minutes")}))
     return ranked(out)
+
+
+def countdown_findings(hours_left: Mapping[str, float], now: dt.datetime, session_end: dt.datetime | None,
+                       session_hours: float) -> list[Finding]:
+    """Each supply's countdown against the time the session has left (all of ``session_hours``
+    before it starts): ``countdown-short`` (stop) when its reserve comes before
+    :data:`RESERVE_STOP_FRACTION` of that time, ``countdown-before-end`` (warning) before the end;
+    none when the supply lasts. The overview colours its countdown bars by them."""
+    left = (session_end - now).total_seconds() / 3600.0 if session_end is not None else session_hours
+    out: list[Finding] = []
+    for sid, h in hours_left.items():
+        if h >= left:
+            continue
+        values = {"hours": h, "session_left_hours": left}
+        if h < RESERVE_STOP_FRACTION * left:
+            out.append(Finding("countdown-short", "stop", sid, values))
+        else:
+            out.append(Finding("countdown-before-end", "warning", sid, values))
+    return out
 
 
 # ----------------------------------------------------------------------------- hold tests

@@ -11,15 +11,18 @@ from __future__ import annotations
 
 import datetime as dt
 from dataclasses import dataclass
+from typing import Any
 
 from benchwarden.core import hold as hd
-from benchwarden.errors import InputError, JournalError
+from benchwarden.core.gas import Gas
+from benchwarden.errors import PA_GAUGE, InputError, JournalError, RangeError
 from benchwarden.storage.holdlog import parse_log
 from benchwarden.storage.journal import HoldStartRow, Journal
 from benchwarden.storage.profile import Profile
+from benchwarden.units.constants import ATM_PA
 from benchwarden.workflows import holds
 
-__all__ = ["HoldRun", "two_readings", "from_log", "save", "OpenHold", "start_hold", "open_holds", "finish_hold",
+__all__ = ["HoldRun", "compute", "record", "two_readings", "from_log", "save", "OpenHold", "start_hold", "open_holds", "finish_hold",
            "GUIDANCE"]
 
 #: How to run a hold test well (the method's own guidance).
@@ -32,37 +35,61 @@ MAX_HOLD_S = 7 * 86400.0
 class HoldRun:
     """A computed hold test on a supply, and the logged series it came from (if any)."""
 
-    supply_id: str
+    supply_id: str | None
     result: hd.HoldResult
     kind: str
     fit: hd.LogFit | None = None
+    #: the gauge the readings were taken with (None: not given)
+    gauge: hd.GaugeSpec | None = None
+
+
+def compute(gas: Gas, volume_m3: float, *, start_abs_pa: float | None = None, end_abs_pa: float | None = None,
+            duration_s: float | None = None, t_start_k: float | None = None, t_end_k: float | None = None,
+            log_text: str | None = None, log_unit: str | None = None, t_default_k: float = 293.15,
+            gauge: hd.GaugeSpec | None = None, u_T: float = hd.U_T_DEFAULT, target_sccm: float | None = None,
+            reserve_abs: float | None = None, ambient_pa: float = ATM_PA, supply_id: str | None = None) -> HoldRun:
+    """The one computation of a hold test, for the command line and the app: a logged series
+    (``log_text``, CSV in the format of ``benchwarden hold --log``), else two readings over
+    ``duration_s``."""
+    if log_text is not None:
+        fit = hd.hold_from_log(gas, volume_m3, parse_log(log_text, log_unit, ambient_pa), gauge, t_default_k, u_T,
+                               target_sccm, reserve_abs, ambient_pa)
+        return HoldRun(supply_id, fit.result, "log", fit, gauge)
+    if start_abs_pa is None or end_abs_pa is None or duration_s is None:
+        raise InputError("a hold test needs its start and end pressures and its duration (or a logged series)")
+    r = hd.hold_two_readings(gas, volume_m3, start_abs_pa, end_abs_pa, duration_s, t_start_k, t_end_k, gauge, u_T,
+                             target_sccm, reserve_abs, ambient_pa)
+    return HoldRun(supply_id, r, "two-readings", None, gauge)
+
+
+def _on_supply(prof: Profile, supply_id: str, **given: Any) -> HoldRun:
+    s = prof.supply(supply_id)
+    amb = prof.ambient_pa
+    return compute(s.gas, s.water_volume, gauge=holds.profile_gauge_spec(s.gauge),
+                   target_sccm=holds.supply_target_sccm(s), reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb,
+                   supply_id=supply_id, **given)
 
 
 def two_readings(prof: Profile, supply_id: str, start_abs_pa: float, end_abs_pa: float, duration_s: float,
                  t_start_k: float | None, t_end_k: float | None) -> HoldRun:
     """A hold test from two readings of the supply's gauge."""
-    s = prof.supply(supply_id)
-    amb = prof.ambient_pa
-    r = hd.hold_two_readings(s.gas, s.water_volume, start_abs_pa, end_abs_pa, duration_s, t_start_k, t_end_k,
-                             holds.profile_gauge_spec(s.gauge), target_sccm=holds.supply_target_sccm(s),
-                             reserve_abs=s.reserve.abs_at(amb), ambient_pa=amb)
-    return HoldRun(supply_id, r, "two-readings")
+    return _on_supply(prof, supply_id, start_abs_pa=start_abs_pa, end_abs_pa=end_abs_pa, duration_s=duration_s,
+                      t_start_k=t_start_k, t_end_k=t_end_k)
 
 
 def from_log(prof: Profile, supply_id: str, text: str) -> HoldRun:
     """A hold test from a logged series (CSV text, the format of ``benchwarden hold --log``)."""
-    s = prof.supply(supply_id)
-    amb = prof.ambient_pa
-    fit = hd.hold_from_log(s.gas, s.water_volume, parse_log(text, None, amb), holds.profile_gauge_spec(s.gauge),
-                           target_sccm=holds.supply_target_sccm(s), ambient_pa=amb,
-                           reserve_abs=s.reserve.abs_at(amb))
-    return HoldRun(supply_id, fit.result, "log", fit)
+    return _on_supply(prof, supply_id, log_text=text)
+
+
+def record(journal: Journal, run: HoldRun, now: dt.datetime, bench: str | None, start_id: int | None = None) -> int:
+    """Store a hold test (one committed write), whoever ran it; returns its row id."""
+    return holds.store(journal, holds.record_of(run.result, now, bench, run.supply_id, run.kind), start_id=start_id)
 
 
 def save(journal: Journal, prof: Profile, run: HoldRun, now: dt.datetime, start_id: int | None = None) -> int:
-    """Store the hold test (one committed write); returns its row id."""
-    return holds.store(journal, holds.record_of(run.result, now, prof.bench.name, run.supply_id, run.kind),
-                       start_id=start_id)
+    """Store a hold test on a supply of the bench (:func:`record` under the bench's name)."""
+    return record(journal, run, now, prof.bench.name, start_id)
 
 
 @dataclass(frozen=True)
@@ -90,9 +117,10 @@ def start_hold(journal: Journal, prof: Profile, supply_id: str, pressure_abs_pa:
     """Store the first reading of a hold test to be finished after ``hold_s`` seconds."""
     s = prof.supply(supply_id)
     if not 0 < hold_s <= MAX_HOLD_S:
-        raise InputError("hold for more than zero and at most 7 days (e.g. '12 h')")
+        raise RangeError(what="hold", value=hold_s, lo=0.0, lo_open=True, hi=MAX_HOLD_S, unit="s", why="e.g. '12 h'")
     if pressure_abs_pa <= prof.ambient_pa:
-        raise InputError(f"hold test start {pressure_text!r}: the supply must be under pressure")
+        raise RangeError(what="hold test start", value=pressure_abs_pa - prof.ambient_pa, typed=pressure_text, lo=0.0,
+                         lo_open=True, unit=PA_GAUGE, why="the supply must be under pressure")
     if s.gas.sold_liquefied and s.gross is not None:
         raise InputError(f"{supply_id} is weighed, not read by pressure: a pressure hold test does not apply")
     return journal.add_hold_start(prof.bench.name, supply_id, now.isoformat(timespec="seconds"), pressure_abs_pa,

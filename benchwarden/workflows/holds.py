@@ -14,10 +14,9 @@ import math
 from dataclasses import asdict, dataclass
 
 from benchwarden.core.hold import GaugeSpec, HoldResult
-from benchwarden.errors import InputError, JournalError
+from benchwarden.errors import PA_DIFF, InputError, JournalError, RangeError
 from benchwarden.storage.journal import HoldRow, Journal
 from benchwarden.storage.profile import Gauge, Supply
-from benchwarden.units.constants import BAR_PA
 from benchwarden.workflows.findings import Finding, hold_test_findings
 
 __all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "reading_step_pa", "HoldRecord",
@@ -33,17 +32,18 @@ def gauge_spec(span_pa: float, accuracy_class: float, resolution_pa: float | Non
     """The gauge of a hold test or a reading: span [Pa] (full scale), accuracy class [% of
     span, EN 837-1], optional resolution [Pa]. The one place where a gauge is checked."""
     if not math.isfinite(span_pa) or span_pa <= 0:
-        raise InputError(f"gauge range {span_pa / BAR_PA:g} bar must be above zero")
+        raise RangeError(what="gauge range", value=span_pa, lo=0.0, lo_open=True, unit=PA_DIFF)
     lo, hi = CLASS_RANGE
     if not (math.isfinite(accuracy_class) and lo <= accuracy_class <= hi):
         raise InputError(f"gauge class {accuracy_class:g} must be between {lo:g} and {hi:g} "
                          "(EN 837-1 classes 0.1 to 4)")
     if resolution_pa is not None and not (math.isfinite(resolution_pa) and 0 < resolution_pa <= span_pa):
-        raise InputError(f"gauge resolution {resolution_pa / BAR_PA:g} bar must be above zero and within the range")
+        raise RangeError(what="gauge resolution", value=resolution_pa, lo=0.0, lo_open=True, hi=span_pa, unit=PA_DIFF,
+                         hi_name="the gauge range")
     if repeatability_pa is not None and not (math.isfinite(repeatability_pa)
                                              and 0 < repeatability_pa <= accuracy_class / 100.0 * span_pa):
-        raise InputError(f"gauge repeatability {repeatability_pa / BAR_PA:g} bar must be above zero and no more "
-                         "than the class error")
+        raise RangeError(what="gauge repeatability", value=repeatability_pa, lo=0.0, lo_open=True,
+                         hi=accuracy_class / 100.0 * span_pa, unit=PA_DIFF, hi_name="the class error")
     return GaugeSpec(span_pa, accuracy_class, resolution_pa, repeatability_pa)
 
 

@@ -35,12 +35,13 @@ MAX_IMPORT_BYTES = 64 * 1024 * 1024
 
 @dataclass
 class ImportResult:
-    """What an import did: rows recorded, skipped as already there, refused (line, reason), and
-    implausible (line, question) — recorded only when confirmed."""
+    """What an import did: rows recorded, skipped as already there, refused (line, reason: words,
+    or the row's error with its data for a renderer), and implausible (line, question) —
+    recorded only when confirmed."""
 
     recorded: int = 0
     skipped: int = 0
-    refused: list[tuple[int, str]] = field(default_factory=list)
+    refused: list[tuple[int, str | InputError]] = field(default_factory=list)
     questions: list[tuple[int, Question]] = field(default_factory=list)
 
 
@@ -91,7 +92,7 @@ def _read(prof: Profile, supply_id: str, text: str, now: dt.datetime,
                 entry, note = _entry(prof, supply_id, dict(zip(names, row, strict=True)), now)
                 check_limits(prof, entry)
             except InputError as exc:
-                result.refused.append((line, str(exc)))
+                result.refused.append((line, exc))
                 continue
             out.append((line, entry, note))
     except csv.Error as exc:

@@ -7,7 +7,14 @@ from textual.binding import Binding
 from textual.screen import Screen
 from textual.widgets import Input
 
+from benchwarden.render.display import profile_display
+from benchwarden.render.errors import error_line
 from benchwarden.workflows.session import SessionState
+
+
+def said(exc: BaseException, state: SessionState) -> str:
+    """An error as the person reads it: worded by the renderer in the bench's display unit."""
+    return error_line(exc, profile_display(state.profile))
 
 
 class TypeAhead:

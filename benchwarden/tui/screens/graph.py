@@ -10,9 +10,9 @@ from textual.binding import Binding
 from textual.widgets import Header, Static
 from textual_plotext import PlotextPlot
 
+from benchwarden.render.display import Display
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter
-from benchwarden.units import fmt_pressure
 from benchwarden.units.constants import BAR_PA
 from benchwarden.workflows.session import SessionState
 
@@ -96,7 +96,7 @@ class GraphScreen(ToolScreen):
         plt.xlabel("hours since " + ("session start" if st.started_at else "plan"))
         plt.ylabel("bar(g)")
         self.query_one("#graph-title", Static).update(
-            Text(f"{s.id} ({s.gas_name}): supply pressure, bar(g); reserve {fmt_pressure(s.reserve_abs_pa, amb)} "
+            Text(f"{s.id} ({s.gas_name}): supply pressure, bar(g); reserve {Display('bar', amb).gauge(s.reserve_abs_pa)} "
                  "(red line), planned end (blue line)" + (f"; {len(outside)} reading(s) before the session (x)"
                                                          if outside else "") + " — n: next supply, escape: back"))
         self.query_one(PlotextPlot).refresh()

@@ -15,7 +15,7 @@ from benchwarden.errors import JournalError
 from benchwarden.render.display import Display, cylinder_text, profile_display
 from benchwarden.render.findings import SEVERITY_WORD
 from benchwarden.render.numbers import fmt_count, fmt_uncertain
-from benchwarden.tui.screens.base import ToolScreen
+from benchwarden.tui.screens.base import ToolScreen, said
 from benchwarden.tui.widgets import KeysFooter
 from benchwarden.workflows.cylinders import cylinder_lives
 from benchwarden.workflows.record import SessionRecord, session_records
@@ -72,7 +72,7 @@ class HistoryScreen(ToolScreen):
         try:
             rows = st.history(sid)
         except JournalError as exc:
-            self.query_one("#history-result", Static).update(Text(f"✖ {exc}"))
+            self.query_one("#history-result", Static).update(Text(f"✖ {said(exc, self.state)}"))
             rows = []
         step = st.reading_step(sid)
         for r in rows:
@@ -119,7 +119,7 @@ class HistoryScreen(ToolScreen):
         try:
             self.state.strike(int(str(key)), event.value.strip())
         except (JournalError, ValueError) as exc:
-            out.update(Text(f"✖ {exc}"))
+            out.update(Text(f"✖ {said(exc, self.state)}"))
             return
         out.update(Text(f"reading {key} struck out: {event.value.strip()}"))
         event.input.value = ""

@@ -9,12 +9,12 @@ from textual.widgets import Button, Header, Input, Label, Select, Static
 from textual_plotext import PlotextPlot
 
 from benchwarden.errors import BenchwardenError, InputError, JournalError
-from benchwarden.render.budget import budget_assumption
-from benchwarden.render.display import Display, open_hold_text, profile_display
+from benchwarden.render.display import Display, fmt_hours, open_hold_text, profile_display
+from benchwarden.render.hold import hold_lines
 from benchwarden.render.numbers import fmt_uncertain
-from benchwarden.tui.screens.base import ToolScreen
+from benchwarden.tui.screens.base import ToolScreen, said
 from benchwarden.tui.widgets import KeysFooter, field
-from benchwarden.units import fmt_hours, parse_duration, parse_temperature, pressure_abs
+from benchwarden.units import parse_duration, parse_temperature, pressure_abs
 from benchwarden.units.limits import in_range
 from benchwarden.workflows import hold_runs
 from benchwarden.workflows.hold_runs import HoldRun, OpenHold
@@ -110,7 +110,7 @@ class HoldScreen(ToolScreen):
         return parse_temperature(self._val(i)) if self._val(i) else None
 
     def _fail(self, exc: Exception) -> None:
-        self.query_one("#hold-result", Static).update(Text(f"✖ {exc}"))
+        self.query_one("#hold-result", Static).update(Text(f"✖ {said(exc, self.state)}"))
 
     def compute(self) -> None:
         st = self.state
@@ -134,7 +134,7 @@ class HoldScreen(ToolScreen):
                 hold_runs.save(st.journal, st.profile, run, st.clock())
                 saved = "saved to the journal"
             except JournalError as exc:
-                saved = f"✖ not saved: {exc}"
+                saved = f"✖ not saved: {said(exc, self.state)}"
         self._show(run, saved)
 
     def begin(self) -> None:
@@ -179,20 +179,8 @@ class HoldScreen(ToolScreen):
                         "journal")
 
     def _show(self, run: HoldRun, saved: str | None) -> None:
-        r = run.result
-        lines = [f"{r.verdict.upper()}",
-                 f"leak rate {fmt_uncertain(r.leak_rate_sccm, r.leak_rate_uncertainty_sccm, 'sccm')} (1σ, 0 °C, "
-                 f"101.325 kPa) = {r.leak_rate_pa_m3_s:.3g} Pa·m³/s",
-                 f"mass loss {fmt_uncertain(r.mass_loss_kg * 1000, r.mass_loss_uncertainty_kg * 1000, 'g')}; "
-                 f"{r.percent_per_day:.3g} % of contents per day",
-                 f"smallest leak this test resolves: {r.smallest_resolvable_sccm:.3g} sccm; "
-                 f"hold needed for the {r.target_sccm:.3g} sccm target ≈ {fmt_hours(r.hold_needed_h)}"]
-        if saved:
-            lines.insert(1, saved)
-        lines += [f"! {n}" for n in r.notes]
-        assumption = budget_assumption(r)
-        if assumption:
-            lines.append(f"! {assumption}")
+        # the same words as `benchwarden hold` (render.hold), in the bench's display unit
+        lines = ([saved] if saved else []) + hold_lines(run, profile_display(self.state.profile))
         lines += [f"• {g}" for g in hold_runs.GUIDANCE]
         self.query_one("#last-hold", Static).update(Text(self._last_line()))
         self.query_one("#hold-result", Static).update(Text("\n".join(lines)))

@@ -13,7 +13,7 @@ from textual.screen import ModalScreen, Screen
 from textual.widgets import Button, Input, Label, Select, Static
 
 from benchwarden.errors import InputError
-from benchwarden.tui.screens.base import TypeAhead
+from benchwarden.tui.screens.base import TypeAhead, said
 from benchwarden.tui.widgets import field
 from benchwarden.units.constants import T0_K
 from benchwarden.workflows.computations import DEFER, ESTIMATES, GENERAL, gas_cautions
@@ -79,7 +79,7 @@ class ReadingScreen(TypeAhead, ModalScreen[Reading | None]):
                 str(supply), self.query_one("#pressure", Input).value, self.query_one("#temperature", Input).value,
                 self.query_one("#time", Input).value)
         except InputError as exc:
-            self.query_one("#error", Static).update(Text(f"✖ {exc}"))
+            self.query_one("#error", Static).update(Text(f"✖ {said(exc, self.state)}"))
             return
         self.dismiss(reading)
 
@@ -257,7 +257,7 @@ class ChangeScreen(_Form):
                 except ValueError:
                     raise InputError(f"retest date {val('retest')!r}: write it as YYYY-MM-DD") from None
         except InputError as exc:
-            self.query_one("#error", Static).update(Text(f"✖ {exc}"))
+            self.query_one("#error", Static).update(Text(f"✖ {said(exc, self.state)}"))
             return
         self.dismiss((reading, val("label") or None, retest))
 

@@ -17,18 +17,26 @@ from textual.widgets import DataTable, Header, Static
 from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.render.display import (
     Display,
+    fmt_hours,
     lab_link_text,
     live_text,
     open_hold_text,
     profile_display,
 )
-from benchwarden.render.findings import SEVERITY_MARK, describe, question_text
+from benchwarden.render.errors import error_line
+from benchwarden.render.findings import (
+    OK_STYLE,
+    SEVERITY_MARK,
+    SEVERITY_STYLE,
+    describe,
+    question_text,
+    short_words,
+)
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.render.supply import mass_words, phase_short
 from benchwarden.tui.screens.overview_actions import OverviewActions
 from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
-from benchwarden.units import fmt_hours
-from benchwarden.workflows.findings import Finding
+from benchwarden.workflows.findings import Finding, countdown_findings
 from benchwarden.workflows.hold_runs import open_holds
 from benchwarden.workflows.session import Reading, SessionState
 
@@ -124,7 +132,7 @@ class OverviewScreen(OverviewActions):
             else:
                 self.state.recompute()
         except BenchwardenError as exc:
-            self.app.call_from_thread(self._error, str(exc))
+            self.app.call_from_thread(self._error, error_line(exc, self.units))
             return
         self.app.call_from_thread(self._plan_ready)
 
@@ -183,7 +191,7 @@ class OverviewScreen(OverviewActions):
                 st.refresh_live()
                 self.app.call_from_thread(self.refresh_view)
         except BenchwardenError as exc:
-            self.app.call_from_thread(self.notify, str(exc), title="Live gauges", severity="error", timeout=10)
+            self.app.call_from_thread(self.notify, error_line(exc, self.units), title="Live gauges", severity="error", timeout=10)
 
     def _error(self, msg: str) -> None:
         self.query_one("#status", Static).update(Text(f"✖ {msg}"))
@@ -246,6 +254,7 @@ class OverviewScreen(OverviewActions):
         st = self.state
         assert st.plan is not None and st.profile is not None
         parts = []
+        fast = {f.subject: f for f in self._findings if f.code == "faster-than-planned"}
         for s in st.plan.supplies:
             ob = st.observed.get(s.id)
             if ob is None:
@@ -255,7 +264,7 @@ class OverviewScreen(OverviewActions):
                 continue
             parts.append(f"{s.id}: observed {fmt_uncertain(ob.draw_kg_s * 6e4, ob.draw_uncertainty_kg_s * 6e4, 'g/min')}"
                          f" vs planned {fmt_value(s.draw_kg_s * 6e4)} g/min"
-                         + ("  ▲ faster than planned" if ob.faster_than_planned else "")
+                         + (f"  {short_words(fast[s.id], self.units)}" if s.id in fast else "")
                          + ("" if ob.resolved else "  (not resolved yet: the plan's projection stands)"))
         for sid, lv in st.live.items():
             parts.append(f"{sid}: {live_text(lv, self.units)}")
@@ -269,13 +278,11 @@ class OverviewScreen(OverviewActions):
         if st.plan is None:
             return
         now = st.clock()
+        alarms = st.alarms(now, {f.code for f in self._findings})  # the rules live in the application layer
         if st.running and st.started_at is not None:
-            el = (now - st.started_at).total_seconds()
-            status = (f"● SESSION #{st.session_id} running {int(el // 3600)}:{int(el % 3600 // 60):02d}:"
-                      f"{int(el % 60):02d} of {fmt_hours(st.plan.session_hours)}")
-            over = el / 3600.0 - st.plan.session_hours
-            if over > 0:
-                status += f"   ▲ OVER TIME by {fmt_hours(over)}"
+            status = (f"● SESSION #{st.session_id} running {Display.elapsed((now - st.started_at).total_seconds())} "
+                      f"of {fmt_hours(st.plan.session_hours)}")
+            status += "".join(f"   {short_words(a, self.units)}" for a in alarms if a.code == "alarm-over-time")
         else:
             status = f"○ no session — press s to start ({fmt_hours(st.plan.session_hours)} planned)"
         n_stops = sum(1 for f in self._findings if f.severity == "stop")
@@ -286,17 +293,19 @@ class OverviewScreen(OverviewActions):
             st.retry_unsaved()  # the journal may be free again
         if st.unsaved:
             status += f"   ✖ {len(st.unsaved)} reading(s) NOT saved to the journal (retrying)"
-        self._alerts(now)
+        self._alerts(alarms, now)
         self._lab_link(now)
         self._set("status", status, lambda v: self.query_one("#status", Static).update(Text(str(v))))
         sup = self.query_one("#supplies", DataTable)
+        # the plan may have been recomputed and the table not yet refreshed: only the rows shown
+        hours = {s.id: st.hours_left(s.id, now) for s in st.plan.supplies if s.id in sup.rows}
+        judged = {f.subject: f for f in countdown_findings(hours, now, st.session_end, st.plan.session_hours)}
         for s in st.plan.supplies:
-            if s.id not in sup.rows:  # the plan was recomputed and the table not yet refreshed
+            if s.id not in hours:
                 continue
-            h = st.hours_left(s.id, now)
+            h = hours[s.id]
             at = now + dt.timedelta(hours=h) if math.isfinite(h) else None
-            left = (st.session_end - now).total_seconds() / 3600.0 if st.session_end else st.plan.session_hours
-            colour = "green" if h >= left else ("yellow" if h >= 0.5 * left else "red")
+            colour = SEVERITY_STYLE[judged[s.id].severity] if s.id in judged else OK_STYLE
             b = bar(h / st.plan.session_hours if st.plan.session_hours else 0.0, 8)
             for col, val in (("left", fmt_hours(h)), ("bar", (b, colour)),
                              ("at", Display.short_clock(at, now) if at else "never")):
@@ -343,7 +352,7 @@ class OverviewScreen(OverviewActions):
         try:
             questions = self.state.questions(reading)
         except BenchwardenError as exc:
-            self.notify(str(exc), severity="error", markup=False)
+            self.notify(error_line(exc, self.units), severity="error", markup=False)
             return
         if questions:
             text = "; ".join(question_text(q, self.units) for q in questions)
@@ -364,7 +373,7 @@ class OverviewScreen(OverviewActions):
             self.notify(f"{exc}. The reading is kept on screen, marked unsaved, and retried.", title="Journal",
                         severity="error", timeout=15, markup=False)
         except BenchwardenError as exc:
-            self.notify(str(exc), severity="error", markup=False)
+            self.notify(error_line(exc, self.units), severity="error", markup=False)
             return
         self.load_plan()
 
@@ -383,7 +392,7 @@ class OverviewScreen(OverviewActions):
         try:
             self.state.change_cylinder(reading, label, retest)
         except BenchwardenError as exc:
-            self.notify(str(exc), title="Cylinder change", severity="error", timeout=10, markup=False)
+            self.notify(error_line(exc, self.units), title="Cylinder change", severity="error", timeout=10, markup=False)
             return
         self.load_plan()
         self.app.push_screen(ConfirmScreen(f"New cylinder on {reading.supply_id} recorded. Check the new "
@@ -396,11 +405,10 @@ class OverviewScreen(OverviewActions):
         if self.state.plan is not None:
             self.load_plan()
 
-    def _alerts(self, now: dt.datetime) -> None:
+    def _alerts(self, alarms: list[Finding], now: dt.datetime) -> None:
         """Bell and banner for the alarms (the rule lives in the application layer); the bell
         rings, and the journal gets a line, once per new alarm."""
         st = self.state
-        alarms = st.alarms(now, {f.code for f in self._findings})
         new = st.new_alarms(alarms, now, lambda f: describe(f, self.units)[0])
         text = "   ▲ ".join(describe(a, self.units)[0] for a in alarms)
         banner = self.query_one("#banner", Static)
@@ -418,7 +426,7 @@ class OverviewScreen(OverviewActions):
         try:
             self.state.reload()
         except BenchwardenError as exc:
-            self.app.call_from_thread(self.notify, f"{exc} — the profile loaded before stays in use.",
+            self.app.call_from_thread(self.notify, f"{error_line(exc, self.units)} — the profile loaded before stays in use.",
                                       title="Profile not reloaded", severity="error", timeout=15)
             return
         self.app.call_from_thread(self.notify, "Profile reloaded", title="Profile")

@@ -9,10 +9,10 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, Header, Input, Label, Select, Static
 
 from benchwarden.errors import BenchwardenError, InputError
-from benchwarden.render.display import profile_display
-from benchwarden.tui.screens.base import ToolScreen
+from benchwarden.render.display import fmt_hours, profile_display
+from benchwarden.tui.screens.base import ToolScreen, said
 from benchwarden.tui.widgets import KeysFooter, field
-from benchwarden.units import fmt_hours, parse_flow, parse_volume, pressure_abs
+from benchwarden.units import parse_flow, parse_volume, pressure_abs
 from benchwarden.units.limits import in_range
 from benchwarden.units.quantities import parse_fraction
 from benchwarden.workflows import purges
@@ -80,7 +80,7 @@ class PurgeScreen(ToolScreen):
                 parse_fraction(self._val("purge-target"), "target oxygen"),
                 parse_flow(self._val("purge-flow"), what="flush flow") if self._val("purge-flow") else None)
         except BenchwardenError as exc:
-            out.update(Text(f"✖ {exc}"))
+            out.update(Text(f"✖ {said(exc, self.state)}"))
             self.plan = None
             return None
         c, f = plan.cycles, plan.flush
@@ -110,7 +110,7 @@ class PurgeScreen(ToolScreen):
             now = st.clock()
             purges.record_purge(st.journal, st.profile, plan, method, now, now, self._val("purge-operator"))
         except BenchwardenError as exc:
-            out.update(Text(f"✖ not recorded: {exc}"))
+            out.update(Text(f"✖ not recorded: {said(exc, self.state)}"))
             return
         litres = plan.flush.gas_standard_litres if method == "flush" and plan.flush else plan.cycles.gas_standard_litres
         what = "a flush" if method == "flush" else f"{plan.cycles.cycles} cycles"

@@ -8,10 +8,10 @@ from textual.containers import VerticalScroll
 from textual.widgets import Header, Input, Static
 
 from benchwarden.errors import BenchwardenError
+from benchwarden.render.display import fmt_hours
 from benchwarden.render.room import room_lines
-from benchwarden.tui.screens.base import ToolScreen
+from benchwarden.tui.screens.base import ToolScreen, said
 from benchwarden.tui.widgets import KeysFooter, field
-from benchwarden.units import fmt_hours
 from benchwarden.units.limits import in_range
 from benchwarden.workflows.room_tool import sealed_release, with_extra_leak
 
@@ -69,7 +69,7 @@ class RoomScreen(ToolScreen):
             in_range("flow", leak.value, "leak", event.value)
             lk = with_extra_leak(st.profile, st.plan, leak)
         except BenchwardenError as exc:
-            out.update(Text(f"✖ {exc}"))
+            out.update(Text(f"✖ {said(exc, self.state)}"))
             return
         if lk is None:
             return

@@ -7,7 +7,7 @@ from textual.containers import Vertical
 from textual.widgets import Footer, Static
 
 from benchwarden.render.display import Display
-from benchwarden.render.findings import SEVERITY_MARK, describe
+from benchwarden.render.findings import OK_STYLE, SEVERITY_MARK, SEVERITY_STYLE, describe
 from benchwarden.workflows.findings import Finding
 
 
@@ -26,9 +26,9 @@ class FindingsPanel(Static):
 
         self.shown = tuple(findings)
         if not findings:
-            self.update(Text("✔ no findings", style="green"))
+            self.update(Text("✔ no findings", style=OK_STYLE))
             return
-        style = {"stop": "bold red", "warning": "dark_orange", "attention": "yellow", "info": "dim"}
+        style = SEVERITY_STYLE
         out = Text()
         for i, f in enumerate(findings):
             if i:
