@@ -112,14 +112,24 @@ class OverviewScreen(OverviewActions):
     @work(thread=True, exclusive=True, group="plan")
     def load_plan(self) -> None:
         try:
-            if self.state.profile is None:
-                self.state.load()
-            else:
-                self.state.recompute()
+            if self.state.profile is None:  # draw first: the readings as recorded, then the plan
+                from benchwarden.workflows.cylinder import first_readings
+
+                self.state.load(plan=False)
+                assert self.state.profile is not None
+                self.app.call_from_thread(self._show_first, first_readings(self.state.profile, self.state.journal))
+            self.state.recompute()
         except BenchwardenError as exc:
             self.app.call_from_thread(self._error, str(exc))
             return
         self.app.call_from_thread(self._plan_ready)
+
+    def _show_first(self, pressures: dict[str, float]) -> None:
+        """The supplies' readings as the journal has them, while the plan is computed."""
+        sup = self.query_one("#supplies", DataTable)
+        if self.state.plan is None and not sup.row_count:
+            for sid, p in pressures.items():
+                sup.add_row(sid, self.units.gauge(p, self.state.reading_step(sid)), "", "", "", key=sid)
 
     def _plan_ready(self) -> None:
         self.refresh_view()
