@@ -27,7 +27,7 @@ import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
-ANCHOR = 'reading_temperature = "21 degC"'
+ANCHOR = 'gauge = { range = "315 bar", accuracy_class = 1.6 }'  # the last key of the first supply
 SIZE = ("120", "40")
 MINIMAL = """
 from textual.app import App
