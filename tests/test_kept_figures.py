@@ -82,3 +82,34 @@ def test_a_read_only_journal_computes_consumption_without_keeping_it(tmp_path):
         c = orders.consumption(j, prof, prof.supplies[0].id)
         assert c is not None and c.kg_per_week == pytest.approx(1.0, rel=1e-6)
         assert j.derived(prof.bench.name, prof.supplies[0].id, "consumption") is None
+
+
+# ----------------------------------------------------------------------------- hold-test logs
+
+
+def _log_text(head: str, rows: int) -> str:
+    body = "".join(f"{i * 0.5:.2f},{150 - 0.01 * i:.3f},{20 + 0.001 * i:.3f}\n" for i in range(rows))
+    return head + "time (h),pressure (bar),temperature (degC)\n" + body
+
+
+def test_a_log_reads_the_same_whatever_its_head_and_length():
+    # the header found in the log's head or after a long block of comments, the numbers read by
+    # numpy's parser or row by row (a comment line in the body): one result
+    from benchwarden.storage.holdlog import parse_log
+
+    plain = parse_log(_log_text("", 50))
+    long_head = parse_log(_log_text("# exported by a data logger\n" * 400, 50))  # > 8 kB of comments
+    commented = parse_log(_log_text("", 50).replace("\n3.00,", "\n# a note\n3.00,"))
+    assert plain == long_head == commented
+    assert plain.t_s[:2] == (0.0, 1800.0) and plain.p_abs_pa[0] == pytest.approx(150e5 + 101325.0)
+    assert plain.T_k is not None and plain.T_k[-1] == pytest.approx(20.049 + 273.15)
+
+
+@pytest.mark.parametrize("cell", ["nan", "inf", "1_000", "0x10"])
+def test_a_log_with_a_cell_numpy_would_take_is_read_row_by_row_and_refused(cell):
+    from benchwarden.errors import InputError
+    from benchwarden.storage.holdlog import parse_log
+
+    text = _log_text("", 20).replace("\n2.00,149.960,", f"\n2.00,{cell},")
+    with pytest.raises(InputError, match="log row 6"):
+        parse_log(text)
