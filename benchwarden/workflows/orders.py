@@ -17,6 +17,7 @@ from benchwarden.workflows.cylinder import stamp
 
 __all__ = ["Consumption", "OrderBy", "consumption", "order_by", "CONSUMPTION_READINGS"]
 
+
 @dataclass(frozen=True)
 class Consumption:
     """A supply's consumption from the journal: real-gas mass per week, with its spread."""
