@@ -60,6 +60,7 @@ class OverviewScreen(OverviewActions):
         #: what the tables and the findings panel show, so that an unchanged refresh redraws nothing
         self._rows: list[tuple[str, ...]] | None = None
         self._findings_shown: tuple[list[Finding], Display] | None = None
+        self._observed_lines: list[str] | None = None
         self._live_at: dt.datetime | None = None
         self._live_timer: Timer | None = None
 
@@ -272,7 +273,17 @@ class OverviewScreen(OverviewActions):
             parts.append(f"{sid}: {live_text(lv, self.units)}")
         parts += [f"⏲ {open_hold_text(h, self.units, st.clock(), st.reading_step(h.supply_id))}"
                   for h in open_holds(st.journal, st.profile)]  # a hold test started, to finish
-        self._set("observed", "\n".join(parts), lambda v: self.query_one("#observed", Static).update(Text(str(v))))
+        self._set("observed", "\n".join(parts), self._update_observed)
+
+    def _update_observed(self, text: object) -> None:
+        """The observed line; laid out again only when its height may change (a live sample's
+        new time every few seconds redraws the line alone)."""
+        box = self.query_one("#observed", Static)
+        lines, before = str(text).split("\n"), self._observed_lines
+        same = (before is not None and len(lines) == len(before) and box.content_size.width > 0
+                and all(len(ln) < box.content_size.width for ln in lines + before))
+        self._observed_lines = lines
+        box.update(Text(str(text)), layout=not same)
 
     def tick(self) -> None:
         """Once a second: elapsed time and countdowns (only these cells change)."""
