@@ -45,19 +45,12 @@ def default_path(explicit: str | os.PathLike[str] | None = None) -> Path:
 
 
 class Journal(RecordQueries):
-    """One open journal file."""
+    """One open journal file; ``check``: True (see :func:`journal_file.structure_problem`; the full
+    check when the file was not closed cleanly), ``"full"`` (``PRAGMA quick_check``) or False."""
 
     def __init__(self, path: str | os.PathLike[str], check: bool | str = True, readonly: bool = False) -> None:
-        """Open (creating or migrating) the journal at ``path``. ``check``: True checks the file on
-        every open with a cost that does not grow with it (header, identity, schema version, the
-        b-trees' first and last branches) and in full (``PRAGMA quick_check``) when it was not
-        closed cleanly or that check found something; ``"full"`` always checks in full; False
-        skips the check."""
         self.path = Path(path).expanduser()
-        full, check = check == "full", bool(check)
-        #: a full check is owed when the last connection did not close the file (seen before this
-        #: one opens it: an open WAL journal has its ``-wal`` beside it)
-        self._full_check = full or not jf.closed_cleanly(self.path)
+        self._full_check, check = check == "full" or not jf.closed_cleanly(self.path), bool(check)
         #: one connection shared by the app's threads (the screen, the plan, the live gauges): a
         #: transaction and a read never interleave with another thread's
         self.lock = threading.RLock()
@@ -68,9 +61,7 @@ class Journal(RecordQueries):
                 raise JournalError(f"journal {self.path} is not a regular file")
             # whose file is it: from its header, before anything opens it for writing
             jf.identify(self.path, APPLICATION_ID, SCHEMA_VERSION)
-            if check and not self._full_check and self.path.exists() and self.path.stat().st_size > 0:
-                # before this process connects (see jf.structure_problem); what it finds, the
-                # full check confirms or clears
+            if check and not self._full_check:  # before this process connects; the full check confirms
                 self._full_check = jf.structure_problem(self.path) is not None
             if readonly or (self.path.exists() and not jf.writable(self.path)):
                 # reading only (sessions, export), or a file that cannot be written (a read-only
@@ -162,9 +153,7 @@ class Journal(RecordQueries):
                                f"({SCHEMA_VERSION}): update benchwarden; the file was left untouched")
 
     def _check_integrity(self) -> None:
-        """A damaged file is refused (nothing is written to it), with how to recover. The full
-        check reads every page, so it runs only when owed or when the check of the file's
-        structure found something (see ``__init__``)."""
+        """A damaged file is refused (nothing written to it), with how to recover (the full check, when owed)."""
         if not self._full_check:
             return
         try:

@@ -131,7 +131,10 @@ def structure_problem(path: Path) -> str | None:
     the file was not closed cleanly or on demand.
 
     Run it before this process connects to the file: closing a file descriptor drops every POSIX
-    lock the process holds on the file, SQLite's included (sqlite.org/howtocorrupt.html, 2.2)."""
+    lock the process holds on the file, SQLite's included (sqlite.org/howtocorrupt.html, 2.2).
+    A missing or empty file (a new journal) has nothing to check."""
+    if not path.exists() or path.stat().st_size == 0:
+        return None
     try:
         db = sqlite3.connect(f"{path.resolve().as_uri()}?mode=ro&immutable=1", uri=True)
         try:
