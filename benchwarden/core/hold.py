@@ -265,8 +265,11 @@ def _curved(tc: Any, m: Any, fit: Any, p: Any, u_p: float | None, dm2p: float, s
     departure = float(np.max(np.abs(np.polyval(c2, tc) - fit)))
     # what the gauge can resolve, as mass: one reading's uncertainty, or without a gauge
     # the smallest step between the log's own distinct pressures
-    steps = np.diff(np.unique(p))
-    resolvable_pa = u_p if u_p is not None else (float(steps.min()) if steps.size else 0.0)
+    if u_p is not None:
+        resolvable_pa = u_p
+    else:  # the log's distinct pressures only without a gauge (a sort of the whole log)
+        steps = np.diff(np.unique(p))
+        resolvable_pa = float(steps.min()) if steps.size else 0.0
     resolvable = dm2p * resolvable_pa
     # the end slopes of the curve against the fitted rate: does it change the verdict?
     slope_ends = [-(2.0 * c2[0] * x + c2[1]) for x in (tc[0], tc[-1])]
@@ -344,7 +347,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
                   log.T_k is not None, notes,
                   "least-squares fit of real-gas mass vs time (EN 13184 / ASTM E2930 pressure decay), GUM uncertainty")
     return LogFit(res, n, slope, se, rms, float(np.max(np.abs(resid))), rms / dm2p if dm2p > 0 else math.nan, curved,
-                  tuple(float(x) for x in t), tuple(float(x) for x in m), tuple(float(x) for x in fit))
+                  tuple(t.astype(float).tolist()), tuple(m.tolist()), tuple(fit.tolist()))
 
 
 GUIDANCE: tuple[str, ...] = (

@@ -32,6 +32,8 @@ _NUMBER = re.compile(r"[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][-+]?[0-9]+)?
 #: The body of a log holding nothing but ASCII decimal numbers, separators, blanks and comment
 #: lines: the only text numpy's parser is given (so it cannot read inf, nan or 1_000 as numbers).
 _NUMBERS_ONLY = re.compile(r"(?:[ \t]*(?:#[^\n]*|[-+0-9.eE,; \t\r]*)\n?)*")
+#: the bytes a body of plain numbers without comments is made of (the same set as _NUMBERS_ONLY)
+_PLAIN_BYTES = b"-+0123456789.eE,; \t\r\n"
 
 
 def _header_unit(name: str) -> tuple[str, str | None]:
@@ -118,9 +120,27 @@ def _fast(text: str, delimiter: str, cols: tuple[int, int, int | None], scale: t
     return HoldLog(tuple(t.tolist()), tuple(p.tolist()), tuple(T.tolist()) if T is not None else None)
 
 
+def _first_line(text: str) -> str | None:
+    """The first line that is not blank or a comment, looked for in the log's head first (a long
+    log is split into lines only when its head holds no such line whole)."""
+    for split in (lambda: text[:8192].splitlines()[:-1], text.splitlines):
+        found = next((ln for ln in split() if ln.strip() and not ln.lstrip().startswith("#")), None)
+        if found is not None:
+            return found
+    return None
+
+
+def _plain_numbers(body: str) -> bool:
+    """Whether a log's body holds nothing but ASCII decimal numbers, separators, blanks and
+    comment lines (see ``_NUMBERS_ONLY``); without comments, one pass over its bytes."""
+    if "#" in body:
+        return _NUMBERS_ONLY.fullmatch(body) is not None
+    return body.isascii() and not body.encode("ascii").translate(None, _PLAIN_BYTES)
+
+
 def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = ATM_PA) -> HoldLog:
     """Read a hold-test log (see the module docstring); errors name the row."""
-    first = next((ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")), None)
+    first = _first_line(text)
     if first is None:
         raise InputError("the log is empty; it needs a header row and at least two readings")
     delimiter = ";" if first.count(";") > first.count(",") else ","
@@ -135,7 +155,7 @@ def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = A
     T_a, T_b = _affine(parse_temperature, header[idx_T][1] or "degC") if idx_T is not None else (1.0, 0.0)
     t_factor = TIME_UNITS.get((t_unit or "").lower())
     body = text[text.index(first) + len(first):]
-    if t_factor is not None and not text[:text.index(first)].strip() and _NUMBERS_ONLY.fullmatch(body) \
+    if t_factor is not None and not text[:text.index(first)].strip() and _plain_numbers(body) \
             and (delimiter == "," or "," not in body):
         fast = _fast(text, delimiter, (idx_t, idx_p, idx_T), (t_factor, p_a, p_b, T_a, T_b), len(raw))
         if fast is not None:

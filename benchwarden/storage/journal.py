@@ -45,10 +45,12 @@ def default_path(explicit: str | os.PathLike[str] | None = None) -> Path:
 
 
 class Journal(RecordQueries):
-    """One open journal file."""
+    """One open journal file; ``check``: True (see :func:`journal_file.structure_problem`; the full
+    check when the file was not closed cleanly), ``"full"`` (``PRAGMA quick_check``) or False."""
 
-    def __init__(self, path: str | os.PathLike[str], check: bool = True, readonly: bool = False) -> None:
+    def __init__(self, path: str | os.PathLike[str], check: bool | str = True, readonly: bool = False) -> None:
         self.path = Path(path).expanduser()
+        self._full_check, check = check == "full" or not jf.closed_cleanly(self.path), bool(check)
         #: one connection shared by the app's threads (the screen, the plan, the live gauges): a
         #: transaction and a read never interleave with another thread's
         self.lock = threading.RLock()
@@ -59,6 +61,8 @@ class Journal(RecordQueries):
                 raise JournalError(f"journal {self.path} is not a regular file")
             # whose file is it: from its header, before anything opens it for writing
             jf.identify(self.path, APPLICATION_ID, SCHEMA_VERSION)
+            if check and not self._full_check:  # before this process connects; the full check confirms
+                self._full_check = jf.structure_problem(self.path) is not None
             if readonly or (self.path.exists() and not jf.writable(self.path)):
                 # reading only (sessions, export), or a file that cannot be written (a read-only
                 # mount): reading commands work, writes say why not
@@ -149,7 +153,9 @@ class Journal(RecordQueries):
                                f"({SCHEMA_VERSION}): update benchwarden; the file was left untouched")
 
     def _check_integrity(self) -> None:
-        """A damaged file is refused (nothing is written to it), with how to recover."""
+        """A damaged file is refused (nothing written to it), with how to recover (the full check, when owed)."""
+        if not self._full_check:
+            return
         try:
             result = self.db.execute("PRAGMA quick_check").fetchone()[0]
         except sqlite3.DatabaseError as exc:

@@ -14,10 +14,12 @@ import os
 import sqlite3
 from dataclasses import dataclass
 from pathlib import Path
+from typing import BinaryIO
 
 from benchwarden.errors import JournalError
 
-__all__ = ["Header", "read_header", "identify", "owned", "writable", "failure", "JournalFailure", "damaged", "read_only_words"]
+__all__ = ["Header", "read_header", "identify", "owned", "writable", "failure", "JournalFailure", "damaged", "read_only_words",
+           "closed_cleanly", "structure_problem"]
 
 #: The first 16 bytes of every SQLite 3 database file (sqlite.org/fileformat.html, section 1.3.1).
 MAGIC = b"SQLite format 3\x00"
@@ -99,6 +101,98 @@ def identify(path: Path, ours: int, schema: int) -> None:
     if head.user_version > schema:
         raise JournalError(f"journal {path} has schema {head.user_version}, newer than this benchwarden "
                            f"({schema}): update benchwarden; the file was left untouched")
+
+
+def closed_cleanly(path: Path) -> bool:
+    """Whether the last connection closed the file: no write-ahead log or rollback journal with
+    content beside it (SQLite checkpoints and removes the ``-wal`` on the last close; one left
+    behind means a crash, a power cut, or another program that has it open)."""
+    for suffix in ("-wal", "-journal"):
+        try:
+            if os.path.getsize(f"{path}{suffix}") > 0:
+                return False
+        except OSError:
+            pass
+    return True
+
+
+#: b-tree page types (sqlite.org/fileformat.html, section 1.6): interior index, interior table,
+#: leaf index, leaf table
+_INTERIOR, _PAGE_TYPES = (2, 5), (2, 5, 10, 13)
+
+
+def structure_problem(path: Path) -> str | None:
+    """What a check whose cost does not grow with the file finds wrong with a closed journal (None:
+    nothing). It reads the header (page size; the page count it records against the file's size)
+    and, for every b-tree (tables and indexes, their root pages read through an ``immutable``
+    connection), the pages from the root down its first and its last branch (where new rows go),
+    checking each page's type, cell count and child pointers (sqlite.org/fileformat.html,
+    sections 1.3 and 1.6). It does not read every page: a full ``PRAGMA quick_check`` does, when
+    the file was not closed cleanly or on demand.
+
+    Run it before this process connects to the file: closing a file descriptor drops every POSIX
+    lock the process holds on the file, SQLite's included (sqlite.org/howtocorrupt.html, 2.2).
+    A missing or empty file (a new journal) has nothing to check."""
+    if not path.exists() or path.stat().st_size == 0:
+        return None
+    try:
+        db = sqlite3.connect(f"{path.resolve().as_uri()}?mode=ro&immutable=1", uri=True)
+        try:
+            roots = [int(r[0]) for r in db.execute("SELECT rootpage FROM sqlite_master WHERE rootpage > 0")]
+        finally:
+            db.close()
+    except sqlite3.DatabaseError as exc:
+        return str(exc)
+    try:
+        size = os.path.getsize(path)
+        with open(path, "rb") as fh:
+            head = fh.read(100)
+            ps = int.from_bytes(head[16:18], "big")
+            ps = 65536 if ps == 1 else ps
+            if ps < 512 or ps & (ps - 1):
+                return f"page size {ps} in the header"
+            usable = ps - head[20]
+            pages = int.from_bytes(head[28:32], "big")
+            if pages and head[24:28] == head[92:96] and pages * ps != size:
+                return f"the header counts {pages} pages of {ps} bytes, the file has {size} bytes"
+            if size % ps:
+                return f"the file's size {size} is not a whole number of {ps}-byte pages"
+            count = size // ps
+            for root in roots:
+                for side in (0, 1):
+                    problem = _branch(fh, root, side, ps, usable, count)
+                    if problem:
+                        return problem
+    except OSError as exc:
+        return str(exc)
+    return None
+
+
+def _branch(fh: BinaryIO, page: int, last: int, ps: int, usable: int, count: int) -> str | None:
+    """Follow one branch of a b-tree from ``page`` (``last``: the right-most child, else the first
+    cell's) down to its leaf, checking every page on the way."""
+    for _ in range(32):  # deeper than any b-tree of a file this size
+        if not 1 <= page <= count:
+            return f"page {page} is outside the file ({count} pages)"
+        fh.seek((page - 1) * ps)
+        data = fh.read(ps)
+        h = 100 if page == 1 else 0
+        kind, cells = data[h], int.from_bytes(data[h + 3:h + 5], "big")
+        if kind not in _PAGE_TYPES:
+            return f"page {page} is not a b-tree page (type {kind})"
+        top = h + (12 if kind in _INTERIOR else 8)
+        if top + 2 * cells > usable:
+            return f"page {page} claims {cells} cells"
+        if kind not in _INTERIOR:
+            return None
+        if last or not cells:
+            page = int.from_bytes(data[h + 8:h + 12], "big")
+            continue
+        cell = int.from_bytes(data[top:top + 2], "big")
+        if not top <= cell <= usable - 4:
+            return f"page {page} points its first cell outside the page"
+        page = int.from_bytes(data[cell:cell + 4], "big")
+    return "a b-tree deeper than 32 pages"
 
 
 def writable(path: Path) -> bool:

@@ -1,6 +1,6 @@
 """The journal's queries for the record's derived figures (the latest reading, neighbours for the
-idle-drop scan, struck readings, session spans, marks, events, purges and started hold tests):
-one mixin of :class:`benchwarden.storage.journal.Journal`, which provides ``_read``, ``_write``
+idle-drop scan, struck readings, session spans, marks, figures kept with the key of what they were
+computed from, events, purges and started hold tests): one mixin of :class:`benchwarden.storage.journal.Journal`, which provides ``_read``, ``_write``
 and ``_READING_COLUMNS``. Each query reads only what the figure needs (indexed), never the
 whole history."""
 
@@ -117,6 +117,24 @@ class RecordQueries:
             "INSERT INTO marks(bench, supply_id, what, reading_id, at) VALUES (?, ?, ?, ?, ?)"
             " ON CONFLICT (bench, supply_id, what) DO UPDATE SET reading_id = excluded.reading_id, at = excluded.at",
             (bench, supply_id, what, reading_id, at)))
+
+    def derived(self, bench: str, supply_id: str, what: str) -> tuple[str, str] | None:
+        """A kept derived figure: (the key of what it was computed from, its value as text)."""
+        if not self._read("SELECT 1 FROM sqlite_master WHERE name = 'derived'"):
+            return None  # a journal opened read-only before its migration
+        rows = self._read("SELECT key, value FROM derived WHERE bench = ? AND supply_id = ? AND what = ?",
+                          (bench, supply_id, what))
+        return (str(rows[0][0]), str(rows[0][1])) if rows else None
+
+    def keep_derived(self, bench: str, supply_id: str, what: str, key: str, value: str) -> None:
+        """Keep a derived figure with its key (nothing on a journal that cannot be written: a kept
+        figure only saves work)."""
+        if self.read_only is not None:
+            return
+        self._write(lambda db: db.execute(
+            "INSERT INTO derived(bench, supply_id, what, key, value) VALUES (?, ?, ?, ?, ?)"
+            " ON CONFLICT (bench, supply_id, what) DO UPDATE SET key = excluded.key, value = excluded.value",
+            (bench, supply_id, what, key, value)))
 
     def events(self, bench: str, after_seq: int = 0, limit: int = 1000) -> list[Event]:
         """The bench's events after sequence number ``after_seq``, oldest first (at most ``limit``)."""

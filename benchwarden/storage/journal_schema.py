@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from benchwarden.storage.events import EVENT_MIGRATION, SAMPLES_LAST_MIGRATION, event_trigger
 
-SCHEMA_VERSION = 9
+SCHEMA_VERSION = 10
 #: ``PRAGMA application_id`` of a benchwarden journal ("GSBJ"): a foreign SQLite file is refused.
 APPLICATION_ID = 0x4753424A
 
@@ -184,4 +184,8 @@ _MIGRATIONS: dict[int, str | tuple[str, ...]] = {
     ),
     # an hour of live samples keeps its last value, and its lab event says it (issue 30)
     9: SAMPLES_LAST_MIGRATION,
+    # figures derived from the record, kept with a key of what they were computed from, so that a
+    # status recomputes only what changed (issue 28)
+    10: ("CREATE TABLE derived (bench TEXT NOT NULL, supply_id TEXT NOT NULL, what TEXT NOT NULL,"
+         " key TEXT NOT NULL, value TEXT NOT NULL, PRIMARY KEY (bench, supply_id, what))",),
 }

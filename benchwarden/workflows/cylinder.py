@@ -199,6 +199,15 @@ def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
     return prof
 
 
+def first_readings(prof: Profile, journal: Journal | None) -> dict[str, float]:
+    """Each supply's pressure as the journal records it [Pa, absolute], before any property is
+    computed: the first figures a screen shows while the plan is computed. A weighed or
+    liquefied supply is left out (its pressure needs the equation of state)."""
+    jprof = journal_profile(prof, journal)
+    return {s.id: s.reading.abs_at(jprof.ambient_pa) for s in jprof.supplies
+            if s.reading is not None and s.gross is None and not s.gas.sold_liquefied}
+
+
 def _newer(live: LatestSample, last_p: ReadingRow | None, change: ChangeRow | None) -> bool:
     """Whether a live sample is newer than the latest pressure reading and cylinder change."""
     newest = max([stamp(x) for x in (last_p.at if last_p else None, change.at if change else None) if x], default=None)

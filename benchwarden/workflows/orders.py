@@ -4,16 +4,18 @@ from __future__ import annotations
 
 import bisect
 import datetime as dt
+import hashlib
+import json
 import math
-from dataclasses import dataclass
+from dataclasses import astuple, dataclass
 
 from benchwarden.core import gas as g
+from benchwarden.errors import JournalError
 from benchwarden.storage.journal import Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply
 from benchwarden.workflows.cylinder import stamp
 
 __all__ = ["Consumption", "OrderBy", "consumption", "order_by", "CONSUMPTION_READINGS"]
-
 
 
 @dataclass(frozen=True)
@@ -43,16 +45,44 @@ def _mass_of(prof: Profile, s: Supply, r: ReadingRow) -> float | None:
 CONSUMPTION_READINGS = 300
 
 
+#: The method's version in the key of a kept consumption: a change of method recomputes it.
+_METHOD = "consumption 1"
+
+
 def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consumption | None:
     """Consumption per week from the pairs of consecutive readings on the same cylinder (no
     change between them, none struck) among the newest :data:`CONSUMPTION_READINGS`: mass used
     over the time between, weighted by time; the spread is the time-weighted standard deviation
-    of the interval rates. None without at least one interval."""
+    of the interval rates. None without at least one interval.
+
+    The result is kept in the journal with a key of everything it depends on (those readings,
+    the cylinder changes among them, the supply's gas, volume and tare): a status computes it
+    again only when one of them changed, never the same real-gas densities twice."""
     if journal is None:
         return None
     s = prof.supply(supply_id)
     rows = journal.recent_readings(prof.bench.name, supply_id, CONSUMPTION_READINGS)
-    changes = sorted(stamp(c.at) for c in journal.changes(prof.bench.name, supply_id))
+    first = stamp(rows[0].at) if rows else None
+    changes = sorted((stamp(c.at), c.at) for c in journal.changes(prof.bench.name, supply_id))
+    changes = [c for c in changes if first is not None and c[0] >= first]  # only those among the readings
+    change_at = [at for _, at in changes]
+    key = hashlib.sha256(repr((_METHOD, s.gas.key, s.water_volume, s.tare, change_at,
+                               [(r.id, r.at, r.pressure_abs_pa, r.temperature_k, r.weight_kg) for r in rows])
+                              ).encode()).hexdigest()
+    kept = journal.derived(prof.bench.name, supply_id, "consumption")
+    if kept is not None and kept[0] == key:
+        value = json.loads(kept[1])
+        return None if value is None else Consumption(supply_id, *value)
+    cons = _consumption(prof, s, rows, [t for t, _ in changes])
+    try:
+        journal.keep_derived(prof.bench.name, supply_id, "consumption", key,
+                             json.dumps(None if cons is None else list(astuple(cons))[1:]))
+    except JournalError:
+        pass  # a kept figure only saves work
+    return cons
+
+
+def _consumption(prof: Profile, s: Supply, rows: list[ReadingRow], changes: list[dt.datetime]) -> Consumption | None:
     masses = [_mass_of(prof, s, r) for r in rows]
     times = [stamp(r.at) for r in rows]
     rates: list[tuple[float, float]] = []  # (kg/s, seconds)
@@ -72,7 +102,7 @@ def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consu
     mean = sum(r * w for r, w in rates) / total
     var = sum(w * (r - mean) ** 2 for r, w in rates) / total
     week = 7 * 86400.0
-    return Consumption(supply_id, mean * week, math.sqrt(var) * week, len(rates), total / 86400.0)
+    return Consumption(s.id, mean * week, math.sqrt(var) * week, len(rates), total / 86400.0)
 
 
 @dataclass(frozen=True)

@@ -108,10 +108,11 @@ class SessionState:
 
     # -- profile and plan
 
-    def load(self) -> None:
+    def load(self, plan: bool = True) -> None:
         """Load the profile and compute the plan (blocking: CoolProp; call from a worker)."""
         self.profile = load_profile(self.profile_path)
-        self.recompute()
+        if plan:
+            self.recompute()
 
     def reload(self) -> None:
         """Reload the edited profile; on error the old one stays in use and the error is raised."""

@@ -71,6 +71,10 @@ class OverviewScreen(OverviewActions):
         #: the pressure unit shown; starts from the profile's [display] setting, `u` cycles it
         self.pressure_unit: str | None = None
         self._findings: list[Finding] = []
+        #: what the tables and the findings panel show, so that an unchanged refresh redraws nothing
+        self._rows: list[tuple[str, ...]] | None = None
+        self._findings_shown: tuple[list[Finding], Display] | None = None
+        self._observed_lines: list[str] | None = None
         self._live_at: dt.datetime | None = None
         self._live_timer: Timer | None = None
 
@@ -127,14 +131,24 @@ class OverviewScreen(OverviewActions):
     @work(thread=True, exclusive=True, group="plan")
     def load_plan(self) -> None:
         try:
-            if self.state.profile is None:
-                self.state.load()
-            else:
-                self.state.recompute()
+            if self.state.profile is None:  # draw first: the readings as recorded, then the plan
+                from benchwarden.workflows.cylinder import first_readings
+
+                self.state.load(plan=False)
+                assert self.state.profile is not None
+                self.app.call_from_thread(self._show_first, first_readings(self.state.profile, self.state.journal))
+            self.state.recompute()
         except BenchwardenError as exc:
             self.app.call_from_thread(self._error, error_line(exc, self.units))
             return
         self.app.call_from_thread(self._plan_ready)
+
+    def _show_first(self, pressures: dict[str, float]) -> None:
+        """The supplies' readings as the journal has them, while the plan is computed."""
+        sup = self.query_one("#supplies", DataTable)
+        if self.state.plan is None and not sup.row_count:
+            for sid, p in pressures.items():
+                sup.add_row(sid, self.units.gauge(p, self.state.reading_step(sid)), "", "", "", key=sid)
 
     def _plan_ready(self) -> None:
         self.refresh_view()
@@ -205,11 +219,7 @@ class OverviewScreen(OverviewActions):
             return
         self.app.sub_title = st.plan.bench_name
         disp = self.units
-        sup = self.query_one("#supplies", DataTable)
-        more = self.query_one("#supplies-more", DataTable)
-        sup.clear()
-        more.clear()
-        self._shown.clear()
+        rows: list[tuple[str, ...]] = []  # (table, row key, cells)
         for s in st.plan.supplies:
             regs = [r for r in st.plan.regulators if r.supply_id == s.id]
             outlet = "—"
@@ -221,10 +231,9 @@ class OverviewScreen(OverviewActions):
                           + f" {disp.gauge_label} {disp.temperature(coldest).replace(' °C', '°C')}")
             reading = (phase_short(s, disp) if s.liquefied or s.phase == "liquid-full"
                        else disp.gauge(s.pressure_abs_pa, st.reading_step(s.id)))
-            sup.add_row(s.id, reading, "", "", "", key=s.id)
-            more.add_row(s.id, s.gas_short[:9], mass_words(s.mass_kg, s.mass_uncertainty_kg, 2), f"{s.usable_mass_kg:.2f} kg", outlet, key=s.id)
-        dr = self.query_one("#draws", DataTable)
-        dr.clear()
+            rows.append(("supplies", s.id, s.id, reading, "", "", ""))
+            rows.append(("supplies-more", s.id, s.id, s.gas_short[:9], mass_words(s.mass_kg, s.mass_uncertainty_kg, 2),
+                         f"{s.usable_mass_kg:.2f} kg", outlet))
         for d in st.plan.draws:
             kv = margin = "—"
             if d.gap is not None:
@@ -233,10 +242,20 @@ class OverviewScreen(OverviewActions):
                 if ms:
                     w = min(ms, key=lambda m: m.margin_kv)
                     margin = f"{w.margin_kv:+.1f} kV {w.status}"
-            dr.add_row(d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin, key=d.id)
+            rows.append(("draws", d.id, d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin))
+        if rows != self._rows:  # tables are rebuilt only when a figure in them changed (idle CPU)
+            self._rows = rows
+            self._shown.clear()
+            tables = {n: self.query_one(f"#{n}", DataTable) for n in ("supplies", "supplies-more", "draws")}
+            for t in tables.values():
+                t.clear()
+            for name, key, *cells in rows:
+                tables[name].add_row(*cells, key=key)
         self._observed_line()
         self._findings = st.findings()
-        self.query_one("#findings", FindingsPanel).show(self._findings, disp)
+        if (self._findings, disp) != self._findings_shown:
+            self._findings_shown = (self._findings, disp)
+            self.query_one("#findings", FindingsPanel).show(self._findings, disp)
         self._show_stops()
         self.tick()
 
@@ -247,7 +266,7 @@ class OverviewScreen(OverviewActions):
         lines = [f"{SEVERITY_MARK['stop']}  {f.subject}: {describe(f, self.units)[0]}" for f in stops]
         if len(lines) > MAX_STOP_LINES:  # each STOP still counted on screen; the findings list has all
             lines = lines[:MAX_STOP_LINES - 1] + [f"{SEVERITY_MARK['stop']} … and {len(lines) - MAX_STOP_LINES + 1} more"]
-        box.update(Text("\n".join(lines), no_wrap=True, overflow="ellipsis"))
+        self._set("stops", "\n".join(lines), lambda v: box.update(Text(str(v), no_wrap=True, overflow="ellipsis")))
         box.display = bool(stops)
 
     def _observed_line(self) -> None:
@@ -270,7 +289,17 @@ class OverviewScreen(OverviewActions):
             parts.append(f"{sid}: {live_text(lv, self.units)}")
         parts += [f"⏲ {open_hold_text(h, self.units, st.clock(), st.reading_step(h.supply_id))}"
                   for h in open_holds(st.journal, st.profile)]  # a hold test started, to finish
-        self.query_one("#observed", Static).update(Text("\n".join(parts)))
+        self._set("observed", "\n".join(parts), self._update_observed)
+
+    def _update_observed(self, text: object) -> None:
+        """The observed line; laid out again only when its height may change (a live sample's
+        new time every few seconds redraws the line alone)."""
+        box = self.query_one("#observed", Static)
+        lines, before = str(text).split("\n"), self._observed_lines
+        same = (before is not None and len(lines) == len(before) and box.content_size.width > 0
+                and all(len(ln) < box.content_size.width for ln in lines + before))
+        self._observed_lines = lines
+        box.update(Text(str(text)), layout=not same)
 
     def tick(self) -> None:
         """Once a second: elapsed time and countdowns (only these cells change)."""
