@@ -29,7 +29,6 @@ from benchwarden.render.findings import (
     SEVERITY_MARK,
     SEVERITY_STYLE,
     describe,
-    question_text,
     short_words,
 )
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
@@ -38,7 +37,7 @@ from benchwarden.tui.screens.overview_actions import OverviewActions
 from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
 from benchwarden.workflows.findings import Finding, countdown_findings
 from benchwarden.workflows.hold_runs import open_holds
-from benchwarden.workflows.session import Reading, SessionState
+from benchwarden.workflows.session import SessionState
 
 #: How often the live figures (plan, leak watch, alarms) are recomputed from new samples [s].
 LIVE_REFRESH_S = 5.0
@@ -365,69 +364,6 @@ class OverviewScreen(OverviewActions):
             apply(value)
 
     # -- actions
-
-    def action_reading(self) -> None:
-        from benchwarden.tui.screens.modals import ReadingScreen
-
-        if self.state.plan is None:
-            return
-        self.app.push_screen(ReadingScreen(self.state), self._reading_entered)
-
-    def _reading_entered(self, reading: Reading | None) -> None:
-        from benchwarden.tui.screens.modals import ConfirmScreen
-
-        if reading is None:
-            return
-        try:
-            questions = self.state.questions(reading)
-        except BenchwardenError as exc:
-            self.notify(error_line(exc, self.units), severity="error", markup=False)
-            return
-        if questions:
-            text = "; ".join(question_text(q, self.units) for q in questions)
-            self.app.push_screen(ConfirmScreen(f"{text}. Record this reading anyway?"),
-                                 lambda yes: self._save_reading(reading) if yes else None)
-            return
-        self._save_reading(reading)
-
-    def _save_reading(self, reading: Reading) -> None:
-        try:
-            st = self.state
-            st.add_reading(reading)
-            where = ("in the session" if st.in_session(reading) else
-                     "as an idle reading (before the session started)" if st.running else "as an idle reading")
-            self.notify(f"{reading.supply_id} {reading.pressure_text} at {Display.clock(reading.at, st.clock())} "
-                        f"saved {where}", timeout=4, markup=False)
-        except JournalError as exc:
-            self.notify(f"{exc}. The reading is kept on screen, marked unsaved, and retried.", title="Journal",
-                        severity="error", timeout=15, markup=False)
-        except BenchwardenError as exc:
-            self.notify(error_line(exc, self.units), severity="error", markup=False)
-            return
-        self.load_plan()
-
-    def action_change(self) -> None:
-        from benchwarden.tui.screens.modals import ChangeScreen
-
-        if self.state.plan is not None:
-            self.app.push_screen(ChangeScreen(self.state), self._changed)
-
-    def _changed(self, answer: tuple[Reading, str | None, dt.date | None] | None) -> None:
-        from benchwarden.tui.screens.modals import ConfirmScreen
-
-        if answer is None:
-            return
-        reading, label, retest = answer
-        try:
-            self.state.change_cylinder(reading, label, retest)
-        except BenchwardenError as exc:
-            self.notify(error_line(exc, self.units), title="Cylinder change", severity="error", timeout=10, markup=False)
-            return
-        self.load_plan()
-        self.app.push_screen(ConfirmScreen(f"New cylinder on {reading.supply_id} recorded. Check the new "
-                                           "connection for leaks now with a hold test? (Then purge the line "
-                                           "of air with p.)"),
-                             lambda yes: self.action_hold() if yes else None)
 
     def on_screen_resume(self) -> None:
         # back from a tool (a hold test saved, a reading struck): the figures and findings follow
