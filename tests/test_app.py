@@ -308,3 +308,22 @@ def test_checklist_preview_snapshot_80x24(snap_compare, tmp_path):
 def test_graph_snapshot_80x24(snap_compare, tmp_path):
     # planned end and reserve marked; the reading before the session shown as such (x)
     assert _tool_snapshot(snap_compare, tmp_path, "g")
+
+
+async def test_the_graph_plots_in_the_overviews_pressure_unit(journal_path, tmp_path):
+    # u on the overview switches bar → psi; the graph then labels its axis and reserve in psig and
+    # plots the reserve line at the same pressure in psi (1 psi = 6894.757 Pa, NIST SP 811)
+    app = make_app(None, journal_path, clock=Clock())
+    async with app.run_test(size=(100, 32)) as pilot:
+        await _ready(app, pilot)
+        await pilot.press("u")
+        await pilot.pause()
+        await pilot.press("g")
+        await pilot.pause()
+        screen = app.screen
+        assert type(screen).__name__ == "GraphScreen"
+        assert "psig" in str(screen.query_one("#graph-title").render())
+        s = app.state.plan.supplies[0]
+        reserve_psig = (s.reserve_abs_pa - app.state.plan.ambient_pa) / 6894.757
+        assert screen.units.gauge_value(s.reserve_abs_pa) == pytest.approx(reserve_psig, rel=1e-6)
+        assert "bar(g)" not in str(screen.query_one("#graph-title").render())

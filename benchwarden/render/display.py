@@ -93,6 +93,14 @@ class Display:
             return f"{self.gauge(abs_pa)} = {Display('mbar', self.ambient_pa).absolute(abs_pa)}"
         return f"{self.gauge(abs_pa)} = {self.absolute(abs_pa)}"
 
+    def gauge_value(self, abs_pa: float) -> float:
+        """A pressure as a gauge number in the display unit, for a plot's axis.
+
+        >>> Display("psi").gauge_value(198e5 + ATM_PA), Display().gauge_value(ATM_PA + 5e5)
+        (2871.7..., 5.0)
+        """
+        return (abs_pa - self.ambient_pa) / pressure_factor(self.pressure_unit)
+
     @property
     def gauge_label(self) -> str:
         """The gauge unit label alone: ``bar(g)``, ``psig``, ``kPa(g)``."""

@@ -10,10 +10,9 @@ from textual.binding import Binding
 from textual.widgets import Header, Static
 from textual_plotext import PlotextPlot
 
-from benchwarden.render.display import Display
+from benchwarden.render.display import Display, profile_display
 from benchwarden.tui.screens.base import ToolScreen
 from benchwarden.tui.widgets import KeysFooter
-from benchwarden.units.constants import BAR_PA
 from benchwarden.workflows.session import SessionState
 
 #: The graph shows live samples this far back when there is no session [h].
@@ -25,9 +24,11 @@ class GraphScreen(ToolScreen):
 
     BINDINGS = [Binding("n", "next_supply", "Next supply", tooltip="the next supply's graph")]
 
-    def __init__(self, state: SessionState) -> None:
+    def __init__(self, state: SessionState, units: Display | None = None) -> None:
         super().__init__(state)
         self.index = 0
+        #: the overview's display unit (its u key), else the profile's
+        self.units = units or profile_display(state.profile)
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -51,23 +52,23 @@ class GraphScreen(ToolScreen):
         origin = st.started_at or st.plan_at
         off = (st.plan_at - origin).total_seconds() / 3600.0
 
-        def bar_g(p: float) -> float:
-            return (p - amb) / BAR_PA
+        d = Display(self.units.pressure_unit, amb)
+        gauge = d.gauge_value  # every pressure as a gauge number in the display unit
 
         plt = self.query_one(PlotextPlot).plt
         plt.clear_data()
         plt.clear_figure()
-        floor = bar_g(0.0)  # nothing reads below vacuum: no line is drawn under it
+        floor = gauge(0.0)  # nothing reads below vacuum: no line is drawn under it
         xs = [off + h for h in s.projection_hours]
-        plt.plot(xs, [max(floor, bar_g(p)) for p in s.projection_pressure_abs_pa], label="planned",
+        plt.plot(xs, [max(floor, gauge(p)) for p in s.projection_pressure_abs_pa], label="planned",
                  marker="braille")
-        plt.hline(bar_g(s.reserve_abs_pa), "red")
+        plt.hline(gauge(s.reserve_abs_pa), "red")
         plt.vline(st.plan.session_hours + (off if not st.started_at else 0.0), "blue")  # the planned end
         rs = sorted((r for r in st.readings.get(s.id, []) if r.pressure_abs_pa is not None), key=lambda r: r.at)
         ob = st.observed.get(s.id)
         if ob is not None and ob.fit_at:
             fx = [(dt.datetime.fromisoformat(a) - origin).total_seconds() / 3600.0 for a in ob.fit_at]
-            plt.plot(fx, [max(floor, bar_g(p)) for p in ob.fit_pressure_abs_pa], label="fitted", marker="braille")
+            plt.plot(fx, [max(floor, gauge(p)) for p in ob.fit_pressure_abs_pa], label="fitted", marker="braille")
         now = st.clock()
         since = min(origin, now - dt.timedelta(hours=LIVE_LOOKBACK_H))
         trace = st.live_trace(s.id, since, now, max(20, self.size.width - 12))
@@ -75,9 +76,9 @@ class GraphScreen(ToolScreen):
         if trace is not None:  # the live gauge: its lowest and highest sample in each column
             keep = trace.vmin == trace.vmin
             tx = [(float(t) - origin.timestamp()) / 3600.0 for t in trace.t[keep]]
-            live_ys = [bar_g(float(p)) for p in trace.vmin[keep]] + [bar_g(float(p)) for p in trace.vmax[keep]]
-            plt.plot(tx, [bar_g(float(p)) for p in trace.vmax[keep]], label="live (max)", marker="braille")
-            plt.plot(tx, [bar_g(float(p)) for p in trace.vmin[keep]], label="live (min)", marker="braille")
+            live_ys = [gauge(float(p)) for p in trace.vmin[keep]] + [gauge(float(p)) for p in trace.vmax[keep]]
+            plt.plot(tx, [gauge(float(p)) for p in trace.vmax[keep]], label="live (max)", marker="braille")
+            plt.plot(tx, [gauge(float(p)) for p in trace.vmin[keep]], label="live (min)", marker="braille")
         inside = [((r.at - origin).total_seconds() / 3600.0, r.pressure_abs_pa or 0.0) for r in rs
                   if r.at >= origin]
         # the readings of this cylinder taken before the session (they do not count in it)
@@ -85,18 +86,18 @@ class GraphScreen(ToolScreen):
                    for r in st.history(s.id) if not r.struck and r.pressure_abs_pa is not None
                    and since <= dt.datetime.fromisoformat(r.at) < origin] if st.started_at else []
         if inside:  # drawn last so they stay visible
-            plt.scatter([h for h, _ in inside], [bar_g(p) for _, p in inside], label="readings", marker="o")
+            plt.scatter([h for h, _ in inside], [gauge(p) for _, p in inside], label="readings", marker="o")
         if outside:
-            plt.scatter([h for h, _ in outside], [bar_g(p) for _, p in outside], label="before the session",
+            plt.scatter([h for h, _ in outside], [gauge(p) for _, p in outside], label="before the session",
                         marker="x")
-        ys = ([bar_g(p) for p in s.projection_pressure_abs_pa] + [bar_g(p) for _, p in inside + outside]
+        ys = ([gauge(p) for p in s.projection_pressure_abs_pa] + [gauge(p) for _, p in inside + outside]
               + live_ys)
-        lo, hi = bar_g(s.reserve_abs_pa), max(ys)
+        lo, hi = gauge(s.reserve_abs_pa), max(ys)
         plt.ylim(min(lo, min(ys)) - 0.05 * (hi - lo), hi + 0.6 * (hi - lo))  # room above for the legend (four lines)
         plt.xlabel("hours since " + ("session start" if st.started_at else "plan"))
-        plt.ylabel("bar(g)")
+        plt.ylabel(d.gauge_label)
         self.query_one("#graph-title", Static).update(
-            Text(f"{s.id} ({s.gas_name}): supply pressure, bar(g); reserve {Display('bar', amb).gauge(s.reserve_abs_pa)} "
+            Text(f"{s.id} ({s.gas_name}): supply pressure, {d.gauge_label}; reserve {d.gauge(s.reserve_abs_pa)} "
                  "(red line), planned end (blue line)" + (f"; {len(outside)} reading(s) before the session (x)"
                                                          if outside else "") + " — n: next supply, escape: back"))
         self.query_one(PlotextPlot).refresh()

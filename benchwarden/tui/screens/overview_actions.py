@@ -162,7 +162,7 @@ class OverviewActions(Screen[None]):
         from benchwarden.tui.screens.tools import GraphScreen
 
         if self.state.plan is not None:
-            self.app.push_screen(GraphScreen(self.state))
+            self.app.push_screen(GraphScreen(self.state, self.units))
 
     def action_hold(self) -> None:
         from benchwarden.tui.screens.tools import HoldScreen
