@@ -8,9 +8,9 @@ import math
 from pathlib import Path
 
 import pytest
+from clitools import run
 from scipy.integrate import solve_ivp
 
-from benchwarden.cli import main
 from benchwarden.core import gas as g
 from benchwarden.core import purge, room
 from benchwarden.storage.profile import load_profile
@@ -20,10 +20,6 @@ ROOT = Path(__file__).resolve().parents[1]
 N2 = g.parse_gas("nitrogen")
 
 
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def test_demo_room_is_judged_on_the_largest_cylinder_full(capsys, tmp_path):

@@ -6,19 +6,13 @@ import sys
 from pathlib import Path
 
 import pytest
+from clitools import run
 
 from benchwarden.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
 
 
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:  # argparse usage errors
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def test_contents_json_keys(capsys):

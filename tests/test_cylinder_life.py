@@ -8,8 +8,8 @@ import json
 from pathlib import Path
 
 import pytest
+from clitools import run
 
-from benchwarden.cli import main
 from benchwarden.errors import InputError
 from benchwarden.storage.journal import Journal
 from benchwarden.workflows.cylinder import parse_at
@@ -24,13 +24,6 @@ def journal(tmp_path):
     return str(tmp_path / "journal.sqlite3")
 
 
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def status(capsys, profile, journal):

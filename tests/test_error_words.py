@@ -9,8 +9,8 @@ import shutil
 from pathlib import Path
 
 import pytest
+from clitools import run
 
-from benchwarden.cli import main
 from benchwarden.core import gas as g
 from benchwarden.errors import KELVIN, PA_ABS, PA_GAUGE, InputError, PropertyError, RangeError
 from benchwarden.render.display import Display
@@ -21,13 +21,6 @@ ROOT = Path(__file__).resolve().parents[1]
 PSI = 6894.757  # Pa per psi (NIST SP 811)
 
 
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def test_a_range_error_is_worded_from_its_data_in_the_display_unit():

@@ -5,21 +5,11 @@ import math
 
 import numpy as np
 import pytest
+from clitools import run
 
-from benchwarden.cli import main
 from benchwarden.core import flow, gap, regulator
 from benchwarden.core import gas as g
 from benchwarden.errors import InputError
-
-
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
-
 
 N2 = g.parse_gas("nitrogen")
 

@@ -10,6 +10,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from clitools import run
 
 from benchwarden.cli import main
 from benchwarden.core import gas as g
@@ -18,16 +19,6 @@ from benchwarden.core import hold as h
 from benchwarden.core.tables import DensityTable
 from benchwarden.errors import InputError
 from benchwarden.storage.holdlog import parse_log
-
-
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
-
 
 N2 = g.parse_gas("nitrogen")
 AMB = 101325.0

@@ -4,8 +4,8 @@ import json
 from pathlib import Path
 
 import pytest
+from clitools import run
 
-from benchwarden.cli import main
 from benchwarden.storage.journal import Journal
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -13,13 +13,6 @@ DEMO = str(ROOT / "profiles" / "demo-teaching-bench.toml")
 BENCH = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"
 
 
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def _imp(capsys, tmp_path, text, *extra):

@@ -7,6 +7,7 @@ from pathlib import Path
 
 import psycopg
 import pytest
+from clitools import run
 from pgserver import server_or_skip
 
 from benchwarden.cli import main
@@ -25,13 +26,6 @@ def pg():
         srv.cleanup()
 
 
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def _bench(tmp_path: Path, pg, bench_id: str, name: str) -> tuple[str, str]:

@@ -14,8 +14,8 @@ import sys
 import textwrap
 
 import pytest
+from clitools import run
 
-from benchwarden.cli import main
 from benchwarden.core import gas as g
 from benchwarden.core import supply
 from benchwarden.render.checklist import build_checklist
@@ -53,10 +53,6 @@ def ref():
     return json.loads(out.stdout.strip().splitlines()[-1])
 
 
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 # ----------------------------------------------------------------------------- item 1: by weight

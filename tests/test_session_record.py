@@ -4,8 +4,7 @@ import json
 from pathlib import Path
 
 import pytest
-
-from benchwarden.cli import main
+from clitools import run
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = str(ROOT / "profiles" / "demo-teaching-bench.toml")
@@ -17,13 +16,6 @@ def _uncontrolled(tmp_path: Path) -> str:
     return str(p)
 
 
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 @pytest.mark.parametrize("command", ["plan", "status", "checklist"])

@@ -9,8 +9,8 @@ import json
 import math
 
 import pytest
+from clitools import run
 
-from benchwarden.cli import main
 from benchwarden.core import gas as g
 from benchwarden.core import supply
 from benchwarden.errors import InputError
@@ -21,13 +21,6 @@ from benchwarden.units import ATM_PA, REFERENCES, parse_flow, pressure_abs
 CO2 = g.parse_gas("co2")
 
 
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 N2 = g.parse_gas("nitrogen")

@@ -8,8 +8,8 @@ import json
 import math
 
 import pytest
+from clitools import run
 
-from benchwarden.cli import main
 from benchwarden.core import gas as g
 from benchwarden.core import regulator
 from benchwarden.core.regulator import throttle
@@ -21,10 +21,6 @@ from benchwarden.workflows.findings import outlet_findings
 CO2 = g.parse_gas("co2")
 
 
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def span_wagner_sublimation_k(p_pa: float) -> float:

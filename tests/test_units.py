@@ -6,8 +6,8 @@ Sources beside each check; exact factors come from the unit definitions (NIST SP
 import math
 
 import pytest
+from clitools import run
 
-from benchwarden.cli import main
 from benchwarden.errors import InputError
 from benchwarden.units import (
     ATM_PA,
@@ -22,16 +22,6 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
-
-
-def run(capsys, *argv):
-    try:
-        code = main(list(argv))
-    except SystemExit as exc:
-        code = exc.code
-    out, err = capsys.readouterr()
-    return code, out, err
-
 
 R = 8.314462618  # CODATA 2018, exact
 
