@@ -11,6 +11,7 @@ from clitools import run
 from benchwarden.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
+DEMO = str(ROOT / "profiles" / "demo-teaching-bench.toml")
 
 
 
@@ -132,3 +133,25 @@ def test_json_into_a_closed_pipe_is_quiet():
         "--temperature '15 degC' --json | head -1", shell=True, capture_output=True, text=True, cwd=ROOT,
         timeout=120)
     assert proc.stdout.strip() == "{" and "Traceback" not in proc.stderr
+
+
+def test_words_a_first_user_tripped_on(capsys, tmp_path):
+    # a newcomer's trial: a stray "; x" closing the gauge-budget note, a STOP line whose figure ran
+    # into its sentence, and a refusal whose way out (--confirm) was cut off at the line's limit
+    from types import SimpleNamespace
+
+    from benchwarden.render.budget import budget_assumption
+
+    for budget in ("uncorrelated", "repeatability"):
+        note = budget_assumption(SimpleNamespace(pressure_budget=budget))
+        assert note is not None and note.endswith(")") and "; x" not in note
+    code, out, _ = run(capsys, "throttle", "--gas", "co2", "--inlet", "57 bar", "--outlet", "0.5 bar",
+                       "--temperature", "20 degC")
+    stop = next(ln for ln in out.splitlines() if "STOP" in ln)
+    assert code == 0 and stop.rstrip().endswith("]") and "pressure [outlet at" in stop
+    j = str(tmp_path / "j.sqlite")
+    assert run(capsys, "--journal", j, "reading", DEMO, "n2-A", "--pressure", "100 bar", "--at",
+               "2026-12-01T08:00")[0] == 0
+    code, _, err = run(capsys, "--journal", j, "reading", DEMO, "n2-A", "--pressure", "120 bar", "--at",
+                       "2026-12-01T09:00")
+    assert code == 2 and "repeat with --confirm" in err and len(err.strip().splitlines()) == 1

@@ -88,6 +88,14 @@ def test_push_is_idempotent_and_the_status_shows_the_bench(lab, tmp_path, capsys
     codes = {(f["code"], f["bench_id"]) for f in st["findings"]}
     assert ("idle-drop-leak", "bench-2") in codes
     assert ("lab-bench-silent", "bench-9") in codes  # registered, never pushed
+    leak = next(f for f in st["findings"] if f["code"] == "idle-drop-leak" and f["bench_id"] == "bench-2")
+    assert leak["subject"] == "leaks"
+    # the bench leads the line, never inside a sentence ("gas leaves bench-2: reg-gaps at …" was one)
+    assert all(f["bench_id"] not in f["text"] for f in st["findings"] if f["code"] != "lab-bench-silent")
+    assert any(f["subject"] in f["text"] for f in st["findings"])  # sentences that name their subject
+    code, out, _ = run(capsys, "lab", "status", lab.url("benchwarden_viewer"))
+    line = next(ln for ln in out.splitlines() if "lost pressure" in ln and "bench-2" in ln)
+    assert "bench-2: leaks: " in line and line.count("bench-2") == 1
     code, _, _ = run(capsys, "lab", "status", lab.url("benchwarden_viewer"), "--json", "--fail-on", "stop")
     assert code == 3
 

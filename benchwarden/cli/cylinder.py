@@ -146,8 +146,8 @@ def cmd_reading(args: argparse.Namespace) -> int:
         planned = next((s.draw_kg_s for s in a.plan.supplies if s.id == entry.supply_id), None)
         questions = cy.check_reading(prof, j, entry, planned)
         if questions and not args.confirm:
-            raise input_error("not recorded: " + "; ".join(question_text(q, d) for q in questions)
-                              + " — check it, and repeat with --confirm to record it")
+            raise input_error("not recorded (check it; repeat with --confirm to record it anyway): "
+                              + "; ".join(question_text(q, d) for q in questions))
         running = j.unfinished_session(prof.bench.name)
         rid = cy.record_reading(j, prof, entry, running.id if running else None, now)
         a = assess(prof, j, now)

@@ -24,7 +24,7 @@ from benchwarden.cli.common import (
 )
 from benchwarden.errors import LabError, LabUnreachable
 from benchwarden.render.files import clean
-from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict, where
 from benchwarden.units.constants import ATM_PA
 from benchwarden.workflows import computations as comp
 
@@ -142,7 +142,7 @@ def cmd_status(args: argparse.Namespace) -> int:
             print(f"  {o['gas']}: {o['cylinders']} cylinder(s) by {o['by']} ({', '.join(o['supplies'])})")
     for f in v.findings:
         text, figure = describe(f, d)
-        print(f"  {SEVERITY_MARK[f.severity]:<12} {clean(f.subject)}: {clean(text)} [{figure}]")
+        print(f"  {SEVERITY_MARK[f.severity]:<12} {clean(where(f))}: {clean(text)} [{figure}]")
     return exit_for(args, v.findings)
 
 

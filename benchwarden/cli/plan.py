@@ -23,7 +23,7 @@ from benchwarden.cli.common import (
     number,
 )
 from benchwarden.render.equipment import orifice_notes, orifice_rows, throttle_notes
-from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.render.findings import SEVERITY_MARK, finding_dict, worded
 from benchwarden.render.plan import format_plan, plan_json
 from benchwarden.units import parse_flow, parse_length, parse_temperature, pressure_abs
 from benchwarden.units.limits import in_range, within
@@ -115,7 +115,7 @@ def cmd_throttle(args: argparse.Namespace) -> int:
         rows.append(("dry-ice margin", f"{t.dry_ice_margin_k:.1f} K above the line where solid forms"))
     rows.append(("method", t.method))
     emit_table("Regulator outlet (isenthalpic)", rows,
-               [f"{SEVERITY_MARK[f.severity]}: {' '.join(describe(f, d))}" for f in found] + notes)
+               [f"{SEVERITY_MARK[f.severity]}: {worded(f, d)}" for f in found] + notes)
     return 0
 
 

@@ -19,7 +19,7 @@ from benchwarden.cli.common import (
     given,
     input_error,
 )
-from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict
+from benchwarden.render.findings import SEVERITY_MARK, describe, finding_dict, worded
 from benchwarden.render.supply import (
     contents_notes,
     contents_refusal,
@@ -111,7 +111,7 @@ def cmd_contents(args: argparse.Namespace) -> int:
         # no pressure-based contents: the same one line and exit status in text and JSON modes
         raise input_error(contents_refusal(c, d))
     found = contents_findings(c)
-    notes = [f"{SEVERITY_MARK[f.severity]}: {describe(f, d)[0]} [{describe(f, d)[1]}]" for f in found]
+    notes = [f"{SEVERITY_MARK[f.severity]}: {worded(f, d)}" for f in found]
     notes += contents_notes(c, d)
     if args.json:
         out = asdict(c)

@@ -15,5 +15,5 @@ def budget_assumption(r: Any) -> str | None:
                 "gauge's systematic error is taken to cancel in it)")
     if r.pressure_budget == "uncorrelated":
         return ("gauge budget: the two readings are taken as uncorrelated, each with the full class error — "
-                "conservative for one gauge (its zero error would cancel in the difference); x")
+                "conservative for one gauge (its zero error would cancel in the difference)")
     return None

@@ -17,7 +17,7 @@ from benchwarden.render.hazards import BAND_WORDS, CO2_DETECTOR, ENRICHMENT_TEXT
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.workflows.findings import Finding
 
-__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "SEVERITY_STYLE", "OK_STYLE", "TEMPLATES", "VERDICT_WORDS", "describe",
+__all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "SEVERITY_STYLE", "OK_STYLE", "TEMPLATES", "VERDICT_WORDS", "describe", "where", "worded",
            "finding_dict", "short_words", "verdict_words"]
 
 SEVERITY_MARK: dict[str, str] = {"stop": "✖ STOP", "warning": "▲ WARNING", "attention": "● ATTENTION",
@@ -124,7 +124,7 @@ TEMPLATES: dict[str, Template] = {
         f"gap {f.subject} works at p·d = {v['pd_bar_cm']:.0f} bar·cm, beyond the ~100 bar·cm the breakdown "
         "methods cover: no firing-voltage estimate", "no estimate"),
     "flashover": lambda f, v, d: (
-        f"gap {f.subject} fires near {v['breakdown_kv']:.1f} kV; {v['part']} withstands about "
+        f"gap {f.subject} fires near {v['breakdown_kv']:.1f} kV; {v['part']} withstand{'' if str(v['part']).endswith('s') else 's'} about "
         f"{v['withstand_kv']:.1f} kV ({'at the reserve (regulator drift)' if v['at_reserve'] else 'at the start'}): "
         + ("it will flash over — lower the gap pressure or increase the clearance" if f.severity == "stop"
            else "little margin — consider a lower gap pressure"),
@@ -319,6 +319,20 @@ def describe(f: Finding, display: Display | None = None) -> tuple[str, str]:
     if template is None:  # pragma: no cover - a test checks every code has a template
         return f.code, ", ".join(f"{k}={v}" for k, v in f.values.items())
     return template(f, f.values, d)
+
+
+def where(f: Finding) -> str:
+    """Whom a finding is about, as a line starts: its subject, led by its bench in a lab view
+    (``values["bench_id"]``), ``"bench-2: n2-A"``; the sentence itself keeps the subject alone."""
+    bench = f.values.get("bench_id")
+    return f.subject if not bench or f.subject == bench else f"{bench}: {f.subject}"
+
+
+def worded(f: Finding, display: Display | None = None) -> str:
+    """A finding's sentence with its figure in brackets, ``"… [−73.5 °C]"`` (no brackets
+    without a figure): one line of a command's notes."""
+    text, figure = describe(f, display)
+    return f"{text} [{figure}]" if figure else text
 
 
 def finding_dict(f: Finding, display: Display | None = None) -> dict[str, Any]:

@@ -433,6 +433,6 @@ def lab_findings(benches: Iterable[Mapping[str, Any]], today: dt.date) -> list[F
         for f in b.get("findings", []):
             sev = f.get("severity")
             if sev in SEVERITY_RANK:
-                out.append(Finding(str(f["code"]), sev, f"{bid}: {f['subject']}",
+                out.append(Finding(str(f["code"]), sev, str(f["subject"]),
                                    dict(f.get("values") or {}) | {"bench_id": bid}))
     return out

@@ -7,7 +7,7 @@ from textual.containers import Vertical
 from textual.widgets import Footer, Static
 
 from benchwarden.render.display import Display
-from benchwarden.render.findings import OK_STYLE, SEVERITY_MARK, SEVERITY_STYLE, describe
+from benchwarden.render.findings import OK_STYLE, SEVERITY_MARK, SEVERITY_STYLE, describe, where
 from benchwarden.workflows.findings import Finding
 
 
@@ -35,7 +35,7 @@ class FindingsPanel(Static):
                 out.append("\n")
             text, figure = describe(f, display)
             out.append(f"{SEVERITY_MARK[f.severity]:<12}", style=style[f.severity])
-            out.append(f" {f.subject}: {text} ")
+            out.append(f" {where(f)}: {text} ")
             out.append(f"[{figure}]", style="bold")
         self.update(out)
 
