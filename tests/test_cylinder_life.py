@@ -172,3 +172,23 @@ def test_export_reads_back_exactly_what_was_typed_at_altitude(capsys, journal, t
     rows = list(csv.DictReader(io.StringIO(out)))
     assert [float(r["pressure_gauge_pa"]) / 1e5 for r in rows] == [146.0, 145.5]
     assert [r["typed"] for r in rows] == ["146 bar", "145.5 bar"]
+
+
+def test_a_fall_the_gauge_cannot_resolve_sets_no_order_date(capsys, journal):
+    # a newcomer's trial: a new cylinder at 198 bar, then 190 bar 33 s later, gave "order the next
+    # cylinder now: the gas lasts 0 days". The demo's 315 bar class 1.6 gauge (EN 837-1: MPE 5.04
+    # bar) reads a difference to ±8.2 bar (k = 2, GUM): an 8 bar fall is no consumption
+    for argv in (["swap", DEMO, "n2-A", "--pressure", "198 bar", "--at", "2026-11-25T09:00:00"],
+                 ["reading", DEMO, "n2-A", "--pressure", "190 bar", "--at", "2026-11-25T09:00:33", "--confirm"]):
+        code, _, err = run(capsys, *argv, "--journal", journal)
+        assert code == 0, err
+    st = status(capsys, DEMO, journal)
+    sup = next(s for s in st["supplies"] if s["id"] == "n2-A")
+    assert sup["order_by"] is None
+    assert not [f for f in st["findings"] if f["code"] in ("order-now", "order-soon")]
+    # a fall the gauge does resolve, 190 → 170 bar over a day, is consumption again
+    code, _, err = run(capsys, "reading", DEMO, "n2-A", "--pressure", "170 bar", "--at", "2026-11-26T09:00",
+                       "--journal", journal)
+    assert code == 0, err
+    sup = next(s for s in status(capsys, DEMO, journal)["supplies"] if s["id"] == "n2-A")
+    assert sup["order_by"] is not None

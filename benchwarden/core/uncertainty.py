@@ -56,6 +56,17 @@ class GaugeSpec:
         return u
 
     @property
+    def resolved_drop_pa(self) -> float:
+        """The smallest fall between two readings of this gauge that is a fall at all: the
+        expanded uncertainty (k = 2) of their difference, k·√2·:attr:`u_difference_pa` [Pa]
+        (GUM, JCGM 100:2008, §6.2; the two readings' uncertainties combined in quadrature).
+
+        >>> round(GaugeSpec(315e5, 1.6).resolved_drop_pa / 1e5, 2)   # 5.04 bar MPE: 2·√2·5.04/√3
+        8.23
+        """
+        return K_EXPANDED * math.sqrt(2.0) * self.u_difference_pa
+
+    @property
     def mpe_pa(self) -> float:
         """Maximum permitted error (EN 837-1): class % of span."""
         return self.accuracy_class / 100.0 * self.span_pa

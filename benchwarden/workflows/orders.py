@@ -14,6 +14,7 @@ from benchwarden.errors import JournalError
 from benchwarden.storage.journal import Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply
 from benchwarden.workflows.cylinder import stamp
+from benchwarden.workflows.holds import profile_gauge_spec
 
 __all__ = ["Consumption", "OrderBy", "consumption", "order_by", "CONSUMPTION_READINGS"]
 
@@ -46,7 +47,7 @@ CONSUMPTION_READINGS = 300
 
 
 #: The method's version in the key of a kept consumption: a change of method recomputes it.
-_METHOD = "consumption 1"
+_METHOD = "consumption 2"
 
 
 def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consumption | None:
@@ -66,14 +67,15 @@ def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consu
     changes = sorted((stamp(c.at), c.at) for c in journal.changes(prof.bench.name, supply_id))
     changes = [c for c in changes if first is not None and c[0] >= first]  # only those among the readings
     change_at = [at for _, at in changes]
-    key = hashlib.sha256(repr((_METHOD, s.gas.key, s.water_volume, s.tare, change_at,
+    key = hashlib.sha256(repr((_METHOD, s.gas.key, s.water_volume, s.tare, change_at, s.gauge,
                                [(r.id, r.at, r.pressure_abs_pa, r.temperature_k, r.weight_kg) for r in rows])
                               ).encode()).hexdigest()
     kept = journal.derived(prof.bench.name, supply_id, "consumption")
     if kept is not None and kept[0] == key:
         value = json.loads(kept[1])
         return None if value is None else Consumption(supply_id, *value)
-    cons = _consumption(prof, s, rows, [t for t, _ in changes])
+    spec = profile_gauge_spec(s.gauge)
+    cons = _consumption(prof, s, rows, [t for t, _ in changes], spec.resolved_drop_pa if spec else None)
     try:
         journal.keep_derived(prof.bench.name, supply_id, "consumption", key,
                              json.dumps(None if cons is None else list(astuple(cons))[1:]))
@@ -82,10 +84,15 @@ def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consu
     return cons
 
 
-def _consumption(prof: Profile, s: Supply, rows: list[ReadingRow], changes: list[dt.datetime]) -> Consumption | None:
+def _consumption(prof: Profile, s: Supply, rows: list[ReadingRow], changes: list[dt.datetime],
+                 resolved_drop_pa: float | None = None) -> Consumption | None:
+    """The time-weighted consumption of the usable intervals; None when there is none, or when
+    the pressure the gauge read falling over them all is no more than ``resolved_drop_pa`` (a
+    fall the gauge cannot tell from its own error is no consumption: no order date from it)."""
     masses = [_mass_of(prof, s, r) for r in rows]
     times = [stamp(r.at) for r in rows]
     rates: list[tuple[float, float]] = []  # (kg/s, seconds)
+    drop_pa, by_weight = 0.0, False
     for i in range(1, len(rows)):
         ta, tb = times[i - 1], times[i]
         k = bisect.bisect_right(changes, ta)  # the first change after ta: does it fall before tb?
@@ -96,7 +103,14 @@ def _consumption(prof: Profile, s: Supply, rows: list[ReadingRow], changes: list
             continue
         dt_s = (tb - ta).total_seconds()
         rates.append(((ma - mb) / dt_s, dt_s))
+        pa, pb = rows[i - 1].pressure_abs_pa, rows[i].pressure_abs_pa
+        if rows[i - 1].weight_kg is not None or rows[i].weight_kg is not None or pa is None or pb is None:
+            by_weight = True
+        else:
+            drop_pa += pa - pb
     if not rates:
+        return None
+    if resolved_drop_pa is not None and not by_weight and drop_pa <= resolved_drop_pa:
         return None
     total = sum(w for _, w in rates)
     mean = sum(r * w for r, w in rates) / total
