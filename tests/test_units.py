@@ -195,3 +195,14 @@ def test_thousands_separator_in_a_pressure_is_refused_on_the_command_line(capsys
     code, out, err = run(capsys, "contents", "--gas", "nitrogen", "--volume", "50 L", "--pressure", "1,000 psi",
                          "--temperature", "20 degC")
     assert code == 2 and out == "" and "decimal point" in err and err.count("\n") == 1
+
+
+def test_an_unknown_flow_unit_says_which_are_allowed():
+    # one line naming the value and what is allowed (a newcomer typed "2 lpm")
+    from benchwarden.errors import InputError
+    from benchwarden.units import parse_flow
+
+    with pytest.raises(InputError) as exc:
+        parse_flow("2 lpm")
+    msg = str(exc.value)
+    assert "'2 lpm'" in msg and "slpm" in msg and "L/min" in msg and "\n" not in msg

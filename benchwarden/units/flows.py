@@ -64,6 +64,10 @@ _STANDARD_FLOW_UNITS: dict[str, tuple[float, str]] = {
 }
 
 
+#: The flow units a person may write, for messages.
+_FLOW_UNITS = "sccm, slpm, scfh, Nm3/h (standard), g/min (mass) or L/min (actual volume)"
+
+
 def parse_flow(text: str, reference: str | None = None, what: str = "flow") -> Flow:
     """Parse a flow: standard (``2 slpm``, ``500 sccm``, ``40 scfh``, ``3 Nm3/h``), mass
     (``5 g/min``) or actual volumetric (``2 L/min``, ``60 m3/h``).
@@ -88,7 +92,10 @@ def parse_flow(text: str, reference: str | None = None, what: str = "flow") -> F
         return Flow("standard", _sane(value * factor, "flow", text, what), get_reference(ref_key), text.strip())
     import pint
 
-    q = _pint_quantity(value, unit, text, what)
+    try:
+        q = _pint_quantity(value, unit, text, what)
+    except InputError as exc:  # the unit itself unknown: say which are
+        raise InputError(f"{exc}; use {_FLOW_UNITS}") from None
     try:
         return Flow("mass", _sane(float(q.to("kg/s").magnitude), "flow", text, what), None, text.strip())
     except pint.errors.DimensionalityError:
@@ -97,8 +104,6 @@ def parse_flow(text: str, reference: str | None = None, what: str = "flow") -> F
         return Flow("actual", _sane(float(q.to("m**3/s").magnitude), "flow", text, what), None, text.strip())
     except pint.errors.DimensionalityError:
         raise InputError(
-            f"{what} {text!r} is not a flow; use sccm, slpm, scfh, Nm3/h (standard), g/min (mass) "
-            "or L/min (actual volume)"
-        ) from None
+            f"{what} {text!r} is not a flow; use {_FLOW_UNITS}") from None
 
 
