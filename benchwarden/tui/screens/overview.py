@@ -123,8 +123,21 @@ class OverviewScreen(OverviewActions):
         for label, key, width in (("Draw", "id", 12), ("Kind", "kind", 7), ("Flow", "flow", 11),
                                   ("Fires at", "kv", 8), ("Margin", "margin", 19)):
             dr.add_column(label, key=key, width=width)
+        self._first_figures()
         self.load_plan()
         self.set_interval(1.0, self.tick)
+
+    def _first_figures(self) -> None:
+        """The supplies' readings as the journal records them, in the first frame drawn: the
+        profile and a few indexed queries, no equation of state (the plan follows in a worker)."""
+        from benchwarden.workflows.cylinder import first_readings
+
+        try:
+            self.state.load(plan=False)
+            assert self.state.profile is not None
+            self._show_first(first_readings(self.state.profile, self.state.journal))
+        except BenchwardenError:
+            self.state.profile = None  # the worker loads it again and says what is wrong
 
     # -- workers: CoolProp and the journal never block the screen
 
