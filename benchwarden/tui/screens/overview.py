@@ -124,7 +124,7 @@ class OverviewScreen(OverviewActions):
                                   ("Fires at", "kv", 8), ("Margin", "margin", 19)):
             dr.add_column(label, key=key, width=width)
         self._first_figures()
-        self.load_plan()
+        self.call_after_refresh(self.load_plan)  # drawn first: the plan's imports and CoolProp wait
         self.set_interval(1.0, self.tick)
 
     def _first_figures(self) -> None:
