@@ -919,7 +919,7 @@ def test_a_lying_gauge_gives_no_good_zero_no_live_zero_and_no_reserve_alarm(tmp_
 def test_the_live_line_shows_the_date_of_an_old_value_and_the_latest_reason_set_aside():
     from benchwarden.render.display import Display, live_text
     from benchwarden.workflows.cylinder import LatestSample
-    from benchwarden.workflows.session import LiveSupply
+    from benchwarden.workflows.session_live import LiveSupply
 
     old = dt.datetime(2025, 3, 1, 9, 30, tzinfo=dt.UTC)   # not today, whenever the test runs
     d = Display()

@@ -22,9 +22,6 @@ from benchwarden.storage.profile import Profile, load_profile, with_reading
 from benchwarden.storage.samples import Columns
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
 from benchwarden.units.quantities import check_text
-from benchwarden.workflows import build as pl
-from benchwarden.workflows import session_live as live_gauges
-from benchwarden.workflows.bench import Assessment, findings_of, journal_state, orders_of
 from benchwarden.workflows.cylinder import (
     Entry,
     Question,
@@ -45,17 +42,12 @@ from benchwarden.workflows.holds import (
     standing_leaks,
 )
 from benchwarden.workflows.model import Memo, Observed, Plan
-from benchwarden.workflows.purges import purge_states
-from benchwarden.workflows.record import StopsStand, standing_stops, start_session
-from benchwarden.workflows.session_live import LiveSupply  # noqa: F401 - re-exported
-from benchwarden.workflows.watch import (
-    AlarmBook,
-    Watcher,
-    live_draw,
-)
 
-if TYPE_CHECKING:  # the lab's modules load only when a profile has a [lab]
+if TYPE_CHECKING:  # the plan, the live gauges and the lab load when first used: the app draws first
+    from benchwarden.workflows.bench import Assessment
     from benchwarden.workflows.lab import LabLink, Shipper
+    from benchwarden.workflows.session_live import LiveSupply
+    from benchwarden.workflows.watch import AlarmBook, Watcher
 
 
 def now_local() -> dt.datetime:
@@ -128,6 +120,7 @@ class SessionState:
     def effective_profile(self) -> Profile:
         """The profile as the journal records it (every supply's latest reading or fill, new idle
         drops stored as hold tests), with readings not yet saved applied on top."""
+        from benchwarden.workflows.bench import journal_state
         assert self.profile is not None
         prof = journal_state(self.profile, self.journal, self.clock())
         for r in sorted(self.unsaved, key=lambda r: r.at):
@@ -135,6 +128,8 @@ class SessionState:
         return prof
 
     def recompute(self) -> None:
+        from benchwarden.workflows import build as pl
+        from benchwarden.workflows.bench import orders_of
         now = self.clock()
         latest = max((r.at for rs in self.readings.values() for r in rs), default=None)
         self.plan_at = latest or now
@@ -147,6 +142,8 @@ class SessionState:
         self._observe()
 
     def _observe(self) -> None:
+        from benchwarden.workflows import build as pl
+        from benchwarden.workflows.watch import live_draw
         assert self.profile is not None and self.plan is not None
         self.observed = {}
         for s in self.profile.supplies:
@@ -185,12 +182,14 @@ class SessionState:
 
     def standing_stops(self) -> list[Finding]:
         """The STOP findings that stand now (a session starts over them only when accepted)."""
+        from benchwarden.workflows.record import standing_stops
         return standing_stops(self.findings()) if self.plan is not None else []
 
     def start(self, describe: Callable[[Finding], str] = lambda f: f.code, operator: str | None = None,
               accept_reason: str | None = None) -> int:
         """Start a session now. While a STOP stands it is refused (:class:`StopsStand`) unless
         ``accept_reason`` is given; the acceptance is recorded with the operator."""
+        from benchwarden.workflows.record import StopsStand, start_session
         assert self.profile is not None
         now = self.clock()
         if self.journal is not None:
@@ -323,8 +322,7 @@ class SessionState:
             rs[:] = [r for r in rs if r.journal_id != reading_id]
 
     def close_left_running(self, session_id: int) -> None:
-        """Close a session left running (answer "no" to resuming it): it ends at its last reading,
-        or where it started."""
+        """Close a session left running (not resumed): it ends at its last reading, or its start."""
         if self.journal is None:
             return
         rows = self.journal.readings(session_id)
@@ -382,6 +380,8 @@ class SessionState:
 
     def assessment(self) -> Assessment:
         """The bench now, as the command line's ``plan`` and ``checklist`` see it."""
+        from benchwarden.workflows.bench import Assessment, findings_of
+        from benchwarden.workflows.purges import purge_states
         assert self.plan is not None
         last = self.last_hold_test()
         assert self.profile is not None
@@ -391,6 +391,7 @@ class SessionState:
 
     def findings(self) -> list[Finding]:
         """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""
+        from benchwarden.workflows.bench import findings_of
         assert self.plan is not None
         return ranked(list(findings_of(self.plan, self.last_hold_test(), self.observed, self.session_end,
                                        self.running)) + self._life)
@@ -400,6 +401,7 @@ class SessionState:
     def start_watching(self, describe: Callable[[Finding], str]) -> bool:
         """Poll the profile's sources from now on (needs a journal and at least one source);
         ``describe`` words an alarm for its journal line."""
+        from benchwarden.workflows.watch import AlarmBook, Watcher
         if self.profile is None or self.journal is None:
             return False
         if not any(s.source or s.temperature_source for s in self.profile.supplies) and not (
@@ -416,31 +418,33 @@ class SessionState:
         self.watcher = None
 
     def poll_sources(self) -> int:
-        """Read the sources that are due and store their samples; once an hour, compress the
-        samples older than the raw window (blocking: call from a worker)."""
-        return live_gauges.poll_sources(self)
+        """Read the sources that are due and store their samples; hourly, compress the old (blocking)."""
+        from benchwarden.workflows import session_live
+        return session_live.poll_sources(self)
 
     def poll_lab(self, mono: float) -> LabLink | None:
-        """Push to the profile's ``[lab]`` in the background when due (returns at once); how the
-        link stands, or None when the profile has no lab."""
-        return live_gauges.poll_lab(self, mono)
+        """Push to the profile's ``[lab]`` in the background when due; how the link stands, or None."""
+        from benchwarden.workflows import session_live
+        return session_live.poll_lab(self, mono)
 
     def refresh_live(self) -> None:
-        """Recompute the plan from the latest samples, run the leak watch of each idle supply
-        (storing a hold test once it resolves) and note silent gauges (blocking)."""
-        live_gauges.refresh_live(self)
+        """The plan from the latest samples, each idle supply's leak watch, silent gauges (blocking)."""
+        from benchwarden.workflows import session_live
+        session_live.refresh_live(self)
 
     def alarms(self, now: dt.datetime, finding_codes: set[str]) -> list[Finding]:
         """The alarms now (the rule is :func:`benchwarden.workflows.findings.alarm_findings`)."""
-        return live_gauges.alarms_now(self, now, finding_codes)
+        from benchwarden.workflows import session_live
+        return session_live.alarms_now(self, now, finding_codes)
 
     def new_alarms(self, alarms: list[Finding], now: dt.datetime, describe: Callable[[Finding], str]) -> list[Finding]:
         """Keep the alarms showing; those that are new get a line in the journal (ring for them)."""
+        from benchwarden.workflows.watch import AlarmBook
         if self.alarm_book is None:
             self.alarm_book = AlarmBook(self.journal, self.profile.bench.name if self.profile else "", describe)
         return self.alarm_book.update(alarms, now)
 
     def live_trace(self, supply_id: str, since: dt.datetime, until: dt.datetime, columns: int) -> Columns | None:
-        """The supply's live pressure between two times as minimum and maximum per plot column
-        (absolute Pa; None without samples)."""
-        return live_gauges.live_trace(self, supply_id, since, until, columns)
+        """The supply's live pressure between two times, min and max per plot column (Pa, or None)."""
+        from benchwarden.workflows import session_live
+        return session_live.live_trace(self, supply_id, since, until, columns)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import asyncio
 import datetime as dt
 import math
 from collections.abc import Callable
@@ -36,7 +37,6 @@ from benchwarden.render.supply import mass_words, phase_short
 from benchwarden.tui.screens.overview_actions import OverviewActions
 from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
 from benchwarden.workflows.findings import Finding, countdown_findings
-from benchwarden.workflows.hold_runs import open_holds
 from benchwarden.workflows.session import SessionState
 
 #: How often the live figures (plan, leak watch, alarms) are recomputed from new samples [s].
@@ -76,6 +76,7 @@ class OverviewScreen(OverviewActions):
         self._observed_lines: list[str] | None = None
         self._live_at: dt.datetime | None = None
         self._live_timer: Timer | None = None
+        self._polling = False
 
     @property
     def units(self) -> Display:
@@ -122,8 +123,21 @@ class OverviewScreen(OverviewActions):
         for label, key, width in (("Draw", "id", 12), ("Kind", "kind", 7), ("Flow", "flow", 11),
                                   ("Fires at", "kv", 8), ("Margin", "margin", 19)):
             dr.add_column(label, key=key, width=width)
-        self.load_plan()
+        self._first_figures()
+        self.call_after_refresh(self.load_plan)  # drawn first: the plan's imports and CoolProp wait
         self.set_interval(1.0, self.tick)
+
+    def _first_figures(self) -> None:
+        """The supplies' readings as the journal records them, in the first frame drawn: the
+        profile and a few indexed queries, no equation of state (the plan follows in a worker)."""
+        from benchwarden.workflows.cylinder import first_readings
+
+        try:
+            self.state.load(plan=False)
+            assert self.state.profile is not None
+            self._show_first(first_readings(self.state.profile, self.state.journal))
+        except BenchwardenError:
+            self.state.profile = None  # the worker loads it again and says what is wrong
 
     # -- workers: CoolProp and the journal never block the screen
 
@@ -191,20 +205,34 @@ class OverviewScreen(OverviewActions):
             self._live_at = None
             self.notify(f"Reading {len(st.watcher.feeds)} live gauge(s)", title="Live")
 
-    @work(thread=True, exclusive=True, group="live")
-    def poll_live(self) -> None:
+    async def poll_live(self) -> None:
         """Read the live gauges that are due; every few seconds the plan, the leak watch and the
-        alarms follow (in a worker: sources and CoolProp never block the screen)."""
+        alarms follow. The work runs in a pooled thread (sources and CoolProp never block the
+        screen), one poll at a time, and none starts while no source is due and no refresh is."""
         st = self.state
+        if self._polling or st.watcher is None:
+            return
+        now = st.clock()
+        refresh = self._live_at is None or (now - self._live_at).total_seconds() >= LIVE_REFRESH_S
+        if not refresh and st.watcher.next_due() > 0:
+            return  # nothing to read yet: no thread, no journal
+        self._polling = True
         try:
-            st.poll_sources()
-            now = st.clock()
-            if self._live_at is None or (now - self._live_at).total_seconds() >= LIVE_REFRESH_S:
-                self._live_at = now
-                st.refresh_live()
-                self.app.call_from_thread(self.refresh_view)
+            await asyncio.to_thread(self._poll_live, refresh, now)
         except BenchwardenError as exc:
-            self.app.call_from_thread(self.notify, error_line(exc, self.units), title="Live gauges", severity="error", timeout=10)
+            self.notify(error_line(exc, self.units), title="Live gauges", severity="error", timeout=10)
+            return
+        finally:
+            self._polling = False
+        if refresh:
+            self.refresh_view()
+
+    def _poll_live(self, refresh: bool, now: dt.datetime) -> None:
+        """In the pool's thread: the sources that are due, then, when ``refresh``, the live figures."""
+        self.state.poll_sources()
+        if refresh:
+            self._live_at = now
+            self.state.refresh_live()
 
     def _error(self, msg: str) -> None:
         self.query_one("#status", Static).update(Text(f"✖ {msg}"))
@@ -242,14 +270,20 @@ class OverviewScreen(OverviewActions):
                     w = min(ms, key=lambda m: m.margin_kv)
                     margin = f"{w.margin_kv:+.1f} kV {w.status}"
             rows.append(("draws", d.id, d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin))
-        if rows != self._rows:  # tables are rebuilt only when a figure in them changed (idle CPU)
-            self._rows = rows
-            self._shown.clear()
+        if rows != self._rows:  # only what changed is redrawn (idle CPU): the cells, or the tables when rows differ
+            before, self._rows = self._rows, rows
             tables = {n: self.query_one(f"#{n}", DataTable) for n in ("supplies", "supplies-more", "draws")}
-            for t in tables.values():
-                t.clear()
-            for name, key, *cells in rows:
-                tables[name].add_row(*cells, key=key)
+            if before is not None and [r[:2] for r in before] == [r[:2] for r in rows]:
+                for (name, key, *cells), (_, _, *was) in zip(rows, before, strict=True):
+                    for col, new, old in zip(tables[name].columns, cells, was, strict=True):
+                        if new != old:  # fixed widths: no layout
+                            tables[name].update_cell(key, col, new, update_width=False)
+            else:
+                self._shown.clear()
+                for t in tables.values():
+                    t.clear()
+                for name, key, *cells in rows:
+                    tables[name].add_row(*cells, key=key)
         self._observed_line()
         self._findings = st.findings()
         if (self._findings, disp) != self._findings_shown:
@@ -269,6 +303,8 @@ class OverviewScreen(OverviewActions):
         box.display = bool(stops)
 
     def _observed_line(self) -> None:
+        from benchwarden.workflows.hold_runs import open_holds  # after the first figures
+
         st = self.state
         assert st.plan is not None and st.profile is not None
         parts = []
