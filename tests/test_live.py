@@ -296,7 +296,38 @@ def test_reconnects_back_off():
             w.poll(dt.datetime.now(dt.UTC))
             waits.append(w.feeds[0].due - clock[0])
         w.close()
-    assert waits[:6] == [1.0, 2.0, 4.0, 8.0, 16.0, 32.0] and max(waits) == BACKOFF_MAX_S
+    assert waits[:6] == pytest.approx([1.0, 2.0, 4.0, 8.0, 16.0, 32.0]) and max(waits) == pytest.approx(BACKOFF_MAX_S)
+
+
+
+def test_a_1_s_gauge_is_read_every_tick_when_the_timer_fires_a_little_early():
+    # the app's timer ticks at the source's interval and can fire a few ms before the due time;
+    # a 1 s gauge must still be read on every tick (it was read every other one: every 2 s)
+    from benchwarden.live.sample import Sample
+
+    prof = parse_profile(DEMO.replace(ANCHOR, ANCHOR + f'\n[supplies.source]\nkind = "modbus-tcp"\nhost = '
+                                      f'"127.0.0.1"\nport = {_free_port()}\ninterval = "1 s"\n', 1), "x.toml")
+    reads = []
+
+    class Gauge:
+        def poll(self, now):
+            reads.append(clock[0])
+            return [Sample(now, 65e5, True)]
+
+        def close(self):
+            pass
+
+    clock = [100.0]
+    import tempfile
+
+    with tempfile.TemporaryDirectory() as d, Journal(Path(d) / "j.sqlite3") as j:
+        w = Watcher(prof, j, open_source=lambda cfg, amb: Gauge(), monotonic=lambda: clock[0])
+        t0 = dt.datetime(2026, 11, 20, 9, 0, tzinfo=dt.UTC)
+        for k in range(10):
+            clock[0] = 100.0 + k * 1.0 - (0.004 if k % 2 else 0.0)  # every other tick 4 ms early
+            w.poll(t0 + dt.timedelta(seconds=k))
+        w.close()
+    assert len(reads) == 10
 
 
 # ----------------------------------------------------------------------------- the command line

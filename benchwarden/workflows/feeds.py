@@ -118,6 +118,18 @@ class Feed:
         return since is not None and (now - since).total_seconds() > SILENT_INTERVALS * self.interval_s
 
 
+
+def early_s(interval_s: float) -> float:
+    """How early a source counts as due [s]: a tenth of its interval, at most 0.2 s. A timer
+    ticking at the source's own interval fires a little before or after the due time; without
+    this slack every tick that comes a millisecond early is skipped and a 1 s gauge is read
+    every 2 s.
+
+    >>> early_s(1.0), early_s(60.0), early_s(0.1)
+    (0.1, 0.2, 0.01)
+    """
+    return min(0.2, 0.1 * interval_s)
+
 class Watcher:
     """Polls the sources of a profile and stores every sample (see module docstring).
 
@@ -183,7 +195,7 @@ class Watcher:
         """Seconds until the next source is due (0 when one is due now)."""
         if not self.feeds:
             return math.inf
-        return max(0.0, min(f.due for f in self.feeds) - self.monotonic())
+        return max(0.0, min(f.due - early_s(f.interval_s) for f in self.feeds) - self.monotonic())
 
     def _dated(self, f: Feed, s: Sample, now: dt.datetime) -> Sample:
         """The sample, or a bad one when its time stamp cannot be right."""
@@ -225,7 +237,7 @@ class Watcher:
             f = self.feeds[(self.turn + k) % n]
             if f.started is None:
                 f.started = now
-            if mono < f.due:
+            if mono < f.due - early_s(f.interval_s):
                 continue
             if time.monotonic() - began > POLL_BUDGET_S:
                 self.turn = (self.turn + k) % n  # this one first next time
