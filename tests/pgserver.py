@@ -62,7 +62,10 @@ class PgServer:
         os.chmod(self.root, 0o700)
 
     def _run(self, *argv: str) -> None:
-        subprocess.run([str(self.bindir / argv[0]), *argv[1:]], check=True, capture_output=True, timeout=120,
+        # no timeout here: pg_ctl bounds its own waits (-t), and subprocess's timed wait polls
+        # with time.sleep, which under libfaketime (the date-independence check) can fail with
+        # EINVAL when the real monotonic clock is kept
+        subprocess.run([str(self.bindir / argv[0]), *argv[1:]], check=True, capture_output=True,
                        user=self.user, cwd=self.root)
 
     def start(self) -> None:
@@ -72,7 +75,7 @@ class PgServer:
 
     def stop(self) -> None:
         try:
-            self._run("pg_ctl", "-D", str(self.data), "-m", "immediate", "-w", "stop")
+            self._run("pg_ctl", "-D", str(self.data), "-m", "immediate", "-w", "-t", "60", "stop")
         except subprocess.CalledProcessError:
             pass
 
