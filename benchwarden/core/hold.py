@@ -54,6 +54,7 @@ from benchwarden.core.uncertainty import (  # noqa: F401 - re-exported: hold tes
     fit_mass_loss,
     mass_change_uncertainty,
     mass_sensitivities,
+    poly_lsq,
     verdict_of,
 )
 from benchwarden.errors import PA_GAUGE, InputError, RangeError
@@ -231,14 +232,41 @@ def hold_two_readings(
 # ----------------------------------------------------------------------------- logged series
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class HoldLog:
-    t_s: tuple[float, ...]
-    p_abs_pa: tuple[float, ...]
-    T_k: tuple[float, ...] | None
+    """A logged series: times [s], absolute pressures [Pa] and temperatures [K] (or None), each
+    held as a read-only float array (a sequence given is converted once)."""
+
+    t_s: Any
+    p_abs_pa: Any
+    T_k: Any | None
+
+    def __post_init__(self) -> None:
+        for name in ("t_s", "p_abs_pa", "T_k"):
+            v = getattr(self, name)
+            if v is not None:
+                object.__setattr__(self, name, _frozen_array(v))
+
+    def __eq__(self, other: object) -> bool:
+        import numpy as np
+
+        if not isinstance(other, HoldLog):
+            return NotImplemented
+        return all((a is None and b is None) or (a is not None and b is not None and np.array_equal(a, b))
+                   for a, b in ((self.t_s, other.t_s), (self.p_abs_pa, other.p_abs_pa), (self.T_k, other.T_k)))
+
+    __hash__ = None  # type: ignore[assignment]  # arrays: equal by value, not hashable
 
 
-@dataclass(frozen=True)
+def _frozen_array(values: Any) -> Any:
+    import numpy as np
+
+    a = np.array(values, dtype=float)  # a copy: the caller's array stays the caller's
+    a.flags.writeable = False
+    return a
+
+
+@dataclass(frozen=True, eq=False)
 class LogFit:
     result: HoldResult
     n: int
@@ -248,9 +276,10 @@ class LogFit:
     residual_max_kg: float
     residual_rms_pa: float
     curvature_significant: bool
-    t_s: tuple[float, ...]
-    mass_kg: tuple[float, ...]
-    fit_kg: tuple[float, ...]
+    #: times [s], held masses [kg] and the fitted line [kg] at each reading (float arrays)
+    t_s: Any
+    mass_kg: Any
+    fit_kg: Any
 
 
 def _curved(tc: Any, m: Any, fit: Any, p: Any, u_p: float | None, dm2p: float, slope: float, u_rate: float) -> bool:
@@ -259,8 +288,9 @@ def _curved(tc: Any, m: Any, fit: Any, p: Any, u_p: float | None, dm2p: float, s
     pressure step), or the curve's end slopes would give another verdict."""
     import numpy as np
 
-    c2, cov2 = np.polyfit(tc, m, 2, cov=True)
-    significant = cov2[0, 0] > 0 and abs(c2[0]) > 3.0 * math.sqrt(cov2[0, 0])
+    c2, inv, rss = poly_lsq(tc, m, 2)
+    var2 = float(inv[0, 0]) * rss / (len(tc) - 3)  # numpy.polyfit(cov=True)'s scaling
+    significant = var2 > 0 and abs(c2[0]) > 3.0 * math.sqrt(var2)
     # how far the curve departs from the line over the log, as mass [kg]
     departure = float(np.max(np.abs(np.polyval(c2, tc) - fit)))
     # what the gauge can resolve, as mass: one reading's uncertainty, or without a gauge
@@ -307,7 +337,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
     ----------
     EN 13184 (pressure-change method) and ASTM E2930 (pressure decay); JCGM 100:2008 (GUM)
     for the uncertainty, EN 837-1 gauge accuracy classes; CoolProp HEOS (Bell et al., Ind. Eng.
-    Chem. Res. 53 (2014) 2498–2508); least squares with its covariance (numpy ``polyfit``).
+    Chem. Res. 53 (2014) 2498–2508); least squares with its covariance (:func:`~benchwarden.core.uncertainty.poly_lsq`).
     """
     import numpy as np
 
@@ -347,7 +377,7 @@ def hold_from_log(gas: g.Gas, volume_m3: float, log: HoldLog, gauge: GaugeSpec |
                   log.T_k is not None, notes,
                   "least-squares fit of real-gas mass vs time (EN 13184 / ASTM E2930 pressure decay), GUM uncertainty")
     return LogFit(res, n, slope, se, rms, float(np.max(np.abs(resid))), rms / dm2p if dm2p > 0 else math.nan, curved,
-                  tuple(t.astype(float).tolist()), tuple(m.tolist()), tuple(fit.tolist()))
+                  t, m, fit)
 
 
 GUIDANCE: tuple[str, ...] = (

@@ -117,7 +117,7 @@ def _fast(text: str, delimiter: str, cols: tuple[int, int, int | None], scale: t
     T = d[:, 2] * T_a + T_b if idx_T is not None else None
     if (np.diff(t) <= 0).any() or (p < 0).any() or (T is not None and ((T <= 0) | (T >= 1e4)).any()):
         return None
-    return HoldLog(tuple(t.tolist()), tuple(p.tolist()), tuple(T.tolist()) if T is not None else None)
+    return HoldLog(t, p, T)
 
 
 def _first_line(text: str) -> str | None:
@@ -199,4 +199,4 @@ def parse_log(text: str, pressure_unit: str | None = None, ambient_pa: float = A
             raise InputError(f"log row {n}: time {raw_t} is not after the previous row's")
         ts.append(tv)
         ps.append(pv)
-    return HoldLog(tuple(ts), tuple(ps), tuple(Ts) if idx_T is not None else None)
+    return HoldLog(ts, ps, Ts if idx_T is not None else None)

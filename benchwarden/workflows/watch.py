@@ -162,8 +162,7 @@ def leak_watch(journal: Journal | None, prof: Profile, supply_id: str, now: dt.d
     t, p = t[keep], p[keep]
     T, measured = _temperatures(store, prof, supply_id, t, s.reading_temperature or prof.ambient.temperature)
     amb = prof.ambient_pa
-    log = hd.HoldLog(tuple(float(x) for x in t - t[0]), tuple(float(x) for x in p),
-                     tuple(float(x) for x in T) if measured else None)
+    log = hd.HoldLog(t - t[0], p, T if measured else None)
     try:
         fit = hd.hold_from_log(s.gas, s.water_volume, log, source_gauge_spec(s),
                                T_default=float(T[0]), target_sccm=supply_target_sccm(s),
