@@ -9,13 +9,15 @@ from __future__ import annotations
 import datetime as dt
 import math
 from collections.abc import Callable
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from benchwarden.core.hazards import IMPAIRED_O2
 from benchwarden.render.display import Display
 from benchwarden.render.hazards import BAND_WORDS, CO2_DETECTOR, ENRICHMENT_TEXT, LFL_RULE
 from benchwarden.render.numbers import fmt_uncertain, fmt_value
-from benchwarden.workflows.findings import Finding
+
+if TYPE_CHECKING:  # a finding is data: words need no rule loaded (the app draws first)
+    from benchwarden.workflows.findings import Finding
 
 __all__ = ["SEVERITY_MARK", "SEVERITY_WORD", "SEVERITY_STYLE", "OK_STYLE", "TEMPLATES", "VERDICT_WORDS", "describe", "where", "worded",
            "finding_dict", "short_words", "verdict_words"]
@@ -27,7 +29,7 @@ SEVERITY_WORD: dict[str, str] = {"stop": "STOP", "warning": "WARNING", "attentio
 SEVERITY_STYLE: dict[str, str] = {"stop": "bold red", "warning": "dark_orange", "attention": "yellow", "info": "dim"}
 OK_STYLE = "green"
 
-Template = Callable[[Finding, Any, Display], tuple[str, str]]
+Template = Callable[["Finding", Any, Display], tuple[str, str]]
 
 
 def _clock(iso: str) -> str:

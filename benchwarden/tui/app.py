@@ -10,6 +10,7 @@ from typing import Any
 from textual import events
 from textual.app import App
 from textual.binding import Binding
+from textual.screen import Screen
 
 from benchwarden.workflows.session import SessionState, now_local
 
@@ -39,10 +40,11 @@ class BenchwardenApp(App[int]):
         super().__init__()
         self.state = state
 
-    def on_mount(self) -> None:
+    def get_default_screen(self) -> Screen[Any]:
+        """The overview is the app's first screen: drawn once, not after a blank default screen."""
         from benchwarden.tui.screens.overview import OverviewScreen
 
-        self.push_screen(OverviewScreen(self.state))
+        return OverviewScreen(self.state)
 
     async def on_event(self, event: events.Event) -> None:
         """Keys read while a form is still opening are held for it, in order (see TypeAhead)."""

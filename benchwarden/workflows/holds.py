@@ -12,12 +12,16 @@ import datetime as dt
 import json
 import math
 from dataclasses import asdict, dataclass
+from typing import TYPE_CHECKING
 
-from benchwarden.core.hold import GaugeSpec, HoldResult
+from benchwarden.core.uncertainty import GaugeSpec
 from benchwarden.errors import PA_DIFF, InputError, JournalError, RangeError
 from benchwarden.storage.journal import HoldRow, Journal
 from benchwarden.storage.profile import Gauge, Supply
-from benchwarden.workflows.findings import Finding, hold_test_findings
+
+if TYPE_CHECKING:  # the findings and the hold test's core load when first used (the app draws first)
+    from benchwarden.core.hold import HoldResult
+    from benchwarden.workflows.findings import Finding
 
 __all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "reading_step_pa", "HoldRecord",
            "record_of", "store", "LastHold", "last_hold_test", "hold_finding", "JudgedHold",
@@ -242,6 +246,8 @@ def standing_leaks(journal: Journal | None, bench: str) -> dict[str, float]:
 
 def hold_finding(last: LastHold | None) -> list[Finding]:
     """The finding of the bench's latest hold test (the rule lives in :mod:`findings`)."""
+    from benchwarden.workflows.findings import hold_test_findings
+
     if last is None:
         return hold_test_findings(None)
     return hold_test_findings(last.verdict, last.leak_rate_sccm, last.leak_rate_uncertainty_sccm, last.age_days,

@@ -15,7 +15,6 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from benchwarden.core.hold import U_T_DEFAULT
 from benchwarden.errors import InputError, JournalError
 from benchwarden.storage.journal import Journal, ReadingRow
 from benchwarden.storage.profile import Profile, load_profile, with_reading
@@ -31,21 +30,20 @@ from benchwarden.workflows.cylinder import (
     record_change,
     record_reading,
 )
-from benchwarden.workflows.findings import Finding, life_findings, ranked
 from benchwarden.workflows.holds import (
     JudgedHold,
     LastHold,
     judged_hold_tests,
     last_hold_test,
-    profile_gauge_spec,
     reading_step_pa,
     standing_leaks,
 )
-from benchwarden.workflows.model import Memo, Observed, Plan
 
-if TYPE_CHECKING:  # the plan, the live gauges and the lab load when first used: the app draws first
+if TYPE_CHECKING:  # the plan, the findings, the live gauges and the lab load when first used: the app draws first
     from benchwarden.workflows.bench import Assessment
+    from benchwarden.workflows.findings import Finding
     from benchwarden.workflows.lab import LabLink, Shipper
+    from benchwarden.workflows.model import Memo, Observed, Plan
     from benchwarden.workflows.session_live import LiveSupply
     from benchwarden.workflows.watch import AlarmBook, Watcher
 
@@ -94,7 +92,7 @@ class SessionState:
     _leak_at: dt.datetime | None = None
     _life: list[Finding] = field(default_factory=list)
     #: property results kept between refreshes (a premix's flashes are not repeated)
-    _memo: Memo = field(default_factory=Memo)
+    _memo: Memo | None = None
     #: the background push to the profile's lab (made on the first poll_lab)
     shipper: Shipper | None = None
 
@@ -117,6 +115,14 @@ class SessionState:
             self.profile = old
             raise
 
+    @property
+    def memo(self) -> Memo:
+        """The property results kept between refreshes (made with the first plan)."""
+        if self._memo is None:
+            from benchwarden.workflows.model import Memo
+            self._memo = Memo()
+        return self._memo
+
     def effective_profile(self) -> Profile:
         """The profile as the journal records it (every supply's latest reading or fill, new idle
         drops stored as hold tests), with readings not yet saved applied on top."""
@@ -130,43 +136,21 @@ class SessionState:
     def recompute(self) -> None:
         from benchwarden.workflows import build as pl
         from benchwarden.workflows.bench import orders_of
+        from benchwarden.workflows.findings import life_findings
         now = self.clock()
         latest = max((r.at for rs in self.readings.values() for r in rs), default=None)
         self.plan_at = latest or now
         prof = self.effective_profile()
         self.plan = pl.build_plan(prof, now=self.plan_at, start_at=self.plan_at,
-                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name), memo=self._memo)
+                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name), memo=self.memo)
         # retest and service dates, and when to order: the same rule as the plan and status
-        orders = orders_of(prof, self.plan, self.journal, now, self._memo)
+        orders = orders_of(prof, self.plan, self.journal, now, self.memo)
         self._life = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
         self._observe()
 
     def _observe(self) -> None:
-        from benchwarden.workflows import build as pl
-        from benchwarden.workflows.watch import live_draw
-        assert self.profile is not None and self.plan is not None
-        self.observed = {}
-        for s in self.profile.supplies:
-            rs = sorted(self.readings.get(s.id, []), key=lambda r: r.at)
-            sp = next(x for x in self.plan.supplies if x.id == s.id)
-            if sp.liquefied:
-                continue
-            if self.running and self.started_at is not None and s.source is not None:
-                # a live gauge: the samples since the session began give the observed draw
-                live = live_draw(self.journal, self.profile, s.id, self.started_at, self.clock(), sp.draw_kg_s,
-                                 sp.reserve_abs_pa)
-                if live is not None:
-                    self.observed[s.id] = live
-                    continue
-            if len(rs) < 2:
-                continue
-            gauge = profile_gauge_spec(s.gauge)
-            u_p = gauge.u_difference_pa if gauge is not None else 0.0
-            ob = pl.observed_draw(s.gas, s.water_volume, sp.reserve_abs_pa, sp.draw_kg_s,
-                                  [(r.at, r.pressure_abs_pa, r.temperature_k) for r in rs
-                                   if r.pressure_abs_pa is not None], u_p, s.id, U_T_DEFAULT)
-            if ob is not None:
-                self.observed[s.id] = ob
+        from benchwarden.workflows import session_live
+        self.observed = session_live.observed_draws(self)
 
     # -- session
 
@@ -392,6 +376,7 @@ class SessionState:
     def findings(self) -> list[Finding]:
         """Every finding now: the plan's, the last hold test's and, in a session, the live ones."""
         from benchwarden.workflows.bench import findings_of
+        from benchwarden.workflows.findings import ranked
         assert self.plan is not None
         return ranked(list(findings_of(self.plan, self.last_hold_test(), self.observed, self.session_end,
                                        self.running)) + self._life)

@@ -9,16 +9,19 @@ import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
+from benchwarden.core.uncertainty import U_T_DEFAULT
 from benchwarden.storage.samples import Columns, SampleStore
 from benchwarden.workflows.cylinder import LatestSample, latest_state
 from benchwarden.workflows.findings import Finding, alarm_findings
-from benchwarden.workflows.watch import LeakWatch, leak_watch_recorded
+from benchwarden.workflows.holds import profile_gauge_spec
+from benchwarden.workflows.watch import LeakWatch, leak_watch_recorded, live_draw
 
 if TYPE_CHECKING:
     from benchwarden.workflows.lab import LabLink
+    from benchwarden.workflows.model import Observed
     from benchwarden.workflows.session import SessionState
 
-__all__ = ["LiveSupply", "poll_sources", "poll_lab", "refresh_live", "alarms_now", "live_trace", "COMPACT_EVERY_S",
+__all__ = ["LiveSupply", "observed_draws", "poll_sources", "poll_lab", "refresh_live", "alarms_now", "live_trace", "COMPACT_EVERY_S",
            "LEAK_REFRESH_S"]
 
 #: Samples older than the raw window are compressed this often while gauges are read [s].
@@ -134,3 +137,33 @@ def live_trace(st: SessionState, supply_id: str, since: dt.datetime, until: dt.d
         return None
     cols = store.columns(sid, since.timestamp(), until.timestamp(), max(1, columns))
     return cols if bool((cols.vmin == cols.vmin).any()) else None
+
+
+def observed_draws(st: SessionState) -> dict[str, Observed]:
+    """Each supply's observed draw in the running session: from its live samples since the
+    start, else from the readings typed (at least two)."""
+    from benchwarden.workflows import build as pl
+    assert st.profile is not None and st.plan is not None
+    out: dict[str, Observed] = {}
+    for s in st.profile.supplies:
+        rs = sorted(st.readings.get(s.id, []), key=lambda r: r.at)
+        sp = next(x for x in st.plan.supplies if x.id == s.id)
+        if sp.liquefied:
+            continue
+        if st.running and st.started_at is not None and s.source is not None:
+            # a live gauge: the samples since the session began give the observed draw
+            live = live_draw(st.journal, st.profile, s.id, st.started_at, st.clock(), sp.draw_kg_s,
+                             sp.reserve_abs_pa)
+            if live is not None:
+                out[s.id] = live
+                continue
+        if len(rs) < 2:
+            continue
+        gauge = profile_gauge_spec(s.gauge)
+        u_p = gauge.u_difference_pa if gauge is not None else 0.0
+        ob = pl.observed_draw(s.gas, s.water_volume, sp.reserve_abs_pa, sp.draw_kg_s,
+                              [(r.at, r.pressure_abs_pa, r.temperature_k) for r in rs
+                               if r.pressure_abs_pa is not None], u_p, s.id, U_T_DEFAULT)
+        if ob is not None:
+            out[s.id] = ob
+    return out

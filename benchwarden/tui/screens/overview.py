@@ -6,6 +6,7 @@ import asyncio
 import datetime as dt
 import math
 from collections.abc import Callable
+from typing import TYPE_CHECKING
 
 from rich.text import Text
 from textual import work
@@ -36,8 +37,10 @@ from benchwarden.render.numbers import fmt_uncertain, fmt_value
 from benchwarden.render.supply import mass_words, phase_short
 from benchwarden.tui.screens.overview_actions import OverviewActions
 from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
-from benchwarden.workflows.findings import Finding, countdown_findings
 from benchwarden.workflows.session import SessionState
+
+if TYPE_CHECKING:  # the findings' rules load with the plan, after the first frame
+    from benchwarden.workflows.findings import Finding
 
 #: How often the live figures (plan, leak watch, alarms) are recomputed from new samples [s].
 LIVE_REFRESH_S = 5.0
@@ -363,6 +366,8 @@ class OverviewScreen(OverviewActions):
         sup = self.query_one("#supplies", DataTable)
         # the plan may have been recomputed and the table not yet refreshed: only the rows shown
         hours = {s.id: st.hours_left(s.id, now) for s in st.plan.supplies if s.id in sup.rows}
+        from benchwarden.workflows.findings import countdown_findings
+
         judged = {f.subject: f for f in countdown_findings(hours, now, st.session_end, st.plan.session_hours)}
         for s in st.plan.supplies:
             if s.id not in hours:

@@ -2,13 +2,17 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from textual.app import ComposeResult
 from textual.containers import Vertical
 from textual.widgets import Footer, Static
 
 from benchwarden.render.display import Display
 from benchwarden.render.findings import OK_STYLE, SEVERITY_MARK, SEVERITY_STYLE, describe, where
-from benchwarden.workflows.findings import Finding
+
+if TYPE_CHECKING:
+    from benchwarden.workflows.findings import Finding
 
 
 class FindingsPanel(Static):
