@@ -113,3 +113,128 @@ def test_a_log_with_a_cell_numpy_would_take_is_read_row_by_row_and_refused(cell)
     text = _log_text("", 20).replace("\n2.00,149.960,", f"\n2.00,{cell},")
     with pytest.raises(InputError, match="log row 6"):
         parse_log(text)
+
+
+# -- the first frame: what a validated profile says, kept in the journal (issue 28)
+
+PROFILES = [ROOT / "profiles" / "demo-teaching-bench.toml", ROOT / "profiles" / "premix-switch-bench.toml"]
+T0 = dt.datetime(2026, 11, 20, 9, 0, tzinfo=dt.UTC)
+
+
+def _at(minutes: int) -> str:
+    return (T0 + dt.timedelta(minutes=minutes)).isoformat(timespec="seconds")
+
+
+def _record(j: Journal, prof, step: str) -> None:
+    """One more thing happens to every supply of the bench (see STEPS)."""
+    from benchwarden.storage.samples import SampleStore
+
+    b = prof.bench.name
+    for k, s in enumerate(prof.supplies):
+        p = 120e5 + 1e5 * k + prof.ambient_pa
+        if step == "change":
+            j.add_change(b, s.id, _at(10), _at(10), p, "120 bar", None, 293.15)
+        elif step == "weighed change":
+            j.add_change(b, s.id, _at(20), _at(20), None, None, 60.0, 293.15)
+        elif step == "reading":
+            j.add_reading(None, s.id, _at(30), p - 3e5, "x", 293.15, _at(30), bench=b, ambient_pa=prof.ambient_pa)
+        elif step == "weight":
+            j.add_reading(None, s.id, _at(40), None, "", 293.15, _at(40), bench=b, weight_kg=55.0)
+        elif step in ("old sample", "new sample"):
+            store = SampleStore(j)
+            sid = store.stream(b, s.id, "pressure", 0.0)
+            assert sid is not None
+            t = (T0 + dt.timedelta(minutes=5 if step == "old sample" else 90)).timestamp()
+            store.add(sid, [(t, p - 7e5)])
+
+
+STEPS = ["change", "reading", "old sample", "new sample", "weight", "weighed change"]
+
+
+@pytest.mark.parametrize("path", PROFILES, ids=lambda p: p.stem)
+def test_first_figures_from_the_kept_view_equal_the_journal_state_of_the_validated_profile(tmp_path, path):
+    # reference: the full path (the validated profile with the journal applied, as the plan and
+    # status see it); the first frame's figures must be exactly those, at every step of a life
+    from benchwarden.workflows.cylinder import first_readings, journal_profile, profile_view
+
+    prof = load_profile(path)
+    with Journal(tmp_path / "j.sqlite") as j:
+        for n in range(len(STEPS) + 1):
+            if n:
+                _record(j, prof, STEPS[n - 1])
+            full = journal_profile(prof, j)
+            expected = {s.id: s.reading.abs_at(full.ambient_pa) for s in full.supplies
+                        if s.reading is not None and s.gross is None and not s.gas.sold_liquefied}
+            got = first_readings(profile_view(prof), j)
+            assert got == expected, STEPS[:n]
+    assert n == len(STEPS) and not got  # weighed at the end: no pressure before the equation of state
+
+
+def test_a_view_is_kept_only_for_the_exact_text_validated(tmp_path, monkeypatch):
+    from benchwarden.storage import profile_view as pv
+    from benchwarden.workflows.cylinder import profile_view
+    from benchwarden.workflows.session import SessionState
+
+    path = tmp_path / "bench.toml"
+    text = PROFILES[1].read_text()
+    path.write_text(text)
+    with Journal(tmp_path / "j.sqlite") as j:
+        st = SessionState(path, j)
+        assert st.first_view() is None  # never validated
+        st.load(plan=False)
+        assert st.first_view() == profile_view(load_profile(path))
+        assert [s.weighed for s in st.first_view().supplies] == [False, True]
+        path.write_text(text + "# a comment changes the text\n")
+        assert st.first_view() is None
+        path.write_text(text)
+        assert st.first_view() is not None
+        monkeypatch.setattr(pv, "__version__", "0.0.0-another")
+        assert st.first_view() is None  # kept by another version of benchwarden
+        monkeypatch.undo()
+        what = f"profile-view {path.resolve()}"
+        key = j.derived("", "", what)[0]
+        for bad in ["{", '{"bench": "b"}', '{"bench":"b","ambient_pa":NaN,"pressure_unit":"bar","supplies":[]}',
+                    '{"bench":"b","ambient_pa":-1,"pressure_unit":"bar","supplies":[]}']:
+            j.keep_derived("", "", what, key, bad)
+            assert st.first_view() is None, bad  # a malformed kept view is ignored, never an error
+
+
+FIRST_FRAME = """
+import sys
+from benchwarden.storage.journal import Journal
+from benchwarden.workflows.session import SessionState
+from benchwarden.workflows.cylinder import first_readings
+with Journal(sys.argv[2]) as j:
+    view = SessionState(sys.argv[1], j).first_view()
+    figures = first_readings(view, j)
+print(sorted(m for m in sys.modules if m.split(".")[0] in ("pydantic", "CoolProp", "numpy")), figures)
+"""
+
+
+def test_a_start_with_a_kept_view_reads_no_profile_models_before_its_first_figures(tmp_path):
+    import subprocess
+    import sys
+
+    from benchwarden.workflows.session import SessionState
+
+    with Journal(tmp_path / "j.sqlite") as j:
+        SessionState(PROFILES[0], j).load(plan=False)
+    out = subprocess.run([sys.executable, "-c", FIRST_FRAME, str(PROFILES[0]), str(tmp_path / "j.sqlite")],
+                         capture_output=True, text=True, check=True).stdout
+    assert out.startswith("[] {'n2-A': ") and "6499891.7" in out  # 64 bar(g) on the demo's ambient
+
+
+def test_a_profile_broken_after_its_view_was_kept_is_refused_before_the_screen(tmp_path, capsys, monkeypatch):
+    from clitools import run
+
+    from benchwarden.workflows.session import SessionState
+
+    path = tmp_path / "bench.toml"
+    text = PROFILES[0].read_text()
+    path.write_text(text)
+    with Journal(tmp_path / "j.sqlite") as j:
+        SessionState(path, j).load(plan=False)
+    path.write_text(text.replace('id = "n2-A"', 'id = "n2 A!"', 1))
+    monkeypatch.setenv("TERM", "xterm-256color")
+    code, out, err = run(capsys, "--journal", str(tmp_path / "j.sqlite"), str(path))
+    assert code == 2 and err.count("\n") == 1 and "bench.toml" in err

@@ -7,11 +7,8 @@ the line and the key. Every model forbids unknown keys. See ``docs/profile.md``.
 
 from __future__ import annotations
 
-import os
 import re
-import stat
 import tomllib
-from importlib import resources
 from pathlib import Path
 from typing import Any
 
@@ -47,6 +44,13 @@ from benchwarden.storage.profile_sections import (  # noqa: F401 - re-exported: 
     Supply,
     Valve,
     _record_date,
+)
+from benchwarden.storage.profile_view import (  # noqa: F401 - re-exported: the profile's file
+    DEMO_NAME,
+    MAX_PROFILE_BYTES,
+    demo_profile_path,
+    demo_profile_text,
+    read_text_file,
 )
 
 
@@ -217,46 +221,9 @@ def parse_profile(text: str, source: str = "<profile>") -> Profile:
                            prefix=f"{source}: ") from None
 
 
-def read_text_file(path: str | Path, what: str, limit: int) -> str:
-    """The text of a file a person or a profile names, read with a size limit: it must be a
-    regular file (not ``/dev/zero``, a pipe or a folder) of at most ``limit`` bytes of UTF-8 (a
-    byte-order mark is accepted). Failures are one line naming the file."""
-    p = Path(path).expanduser()
-    try:
-        # opened without blocking (a pipe does not hang), checked on the open file (no swap between
-        # a check and the read), read with a limit (a file may grow)
-        fd = os.open(p, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
-        with os.fdopen(fd, "rb") as fh:
-            if not stat.S_ISREG(os.fstat(fd).st_mode):
-                raise ProfileError(f"{path}: not a regular file; give a {what}")
-            raw = fh.read(limit + 1)
-    except OSError as exc:
-        raise ProfileError(f"{path}: cannot read the {what}: {exc.strerror or exc}") from None
-    if len(raw) > limit:
-        raise ProfileError(f"{path}: file is larger than {limit / 1e6:g} MB; not a {what}")
-    try:
-        return raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        raise ProfileError(f"{path}: not UTF-8 text; give a {what}") from None
-
-
 def load_profile(path: str | Path) -> Profile:
     """Load a bench profile file."""
     return parse_profile(read_text_file(path, "bench profile (.toml)", MAX_PROFILE_BYTES), str(path))
-
-
-#: The largest bench profile or file a profile names (a checklist's items) read [bytes].
-MAX_PROFILE_BYTES = 2_000_000
-DEMO_NAME = "demo-teaching-bench.toml"
-
-
-def demo_profile_text() -> str:
-    """The bundled demo bench profile (shipped inside the package)."""
-    return resources.files("benchwarden.data").joinpath(DEMO_NAME).read_text(encoding="utf-8")
-
-
-def demo_profile_path() -> Path:
-    return Path(str(resources.files("benchwarden.data").joinpath(DEMO_NAME)))
 
 
 def with_reading(prof: Profile, supply_id: str, pressure: u.Pressure, temperature_k: float) -> Profile:

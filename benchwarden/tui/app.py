@@ -112,14 +112,20 @@ def run_app(profile_path: str | None, journal_path: str | None) -> int:
     import os
 
     from benchwarden.errors import InputError
-    from benchwarden.workflows.computations import load_profile
 
     if os.environ.get("TERM", "") in ("dumb", "unknown"):
         raise InputError("the app needs a full-screen terminal (TERM is 'dumb'); use the commands instead, "
                          "e.g. 'benchwarden status PROFILE'")
-    if profile_path:
-        load_profile(profile_path)  # a bad profile is a one-line error before the screen opens
     app = make_app(profile_path, journal_path)  # a damaged or foreign journal: one line, before the screen
+    if profile_path and app.state.first_view() is None:
+        # a bad profile is a one-line error before the screen opens (a profile whose exact text
+        # was validated before, by this version, is validated again after the first frame)
+        try:
+            app.state.load(plan=False)
+        except BaseException:
+            if app.state.journal is not None:
+                app.state.journal.close()
+            raise
     app.run()
     app.state.stop_watching()  # the live gauges' connections and serial ports are let go
     if app.state.shipper is not None:

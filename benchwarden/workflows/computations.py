@@ -84,9 +84,9 @@ _WHERE: dict[str, str] = {
     "default_path": "benchwarden.storage.journal",
     "open_journal": "benchwarden.storage.journal",
     "Profile": "benchwarden.storage.profile",
-    "demo_profile_path": "benchwarden.storage.profile",
-    "read_text_file": "benchwarden.storage.profile",
-    "MAX_PROFILE_BYTES": "benchwarden.storage.profile",
+    "demo_profile_path": "benchwarden.storage.profile_view",
+    "read_text_file": "benchwarden.storage.profile_view",
+    "MAX_PROFILE_BYTES": "benchwarden.storage.profile_view",
     "load_profile": "benchwarden.storage.profile",
 }
 

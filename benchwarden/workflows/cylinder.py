@@ -20,23 +20,26 @@ import datetime as dt
 import math
 import re
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 from benchwarden.core import gas as g
 from benchwarden.errors import KELVIN, PA_GAUGE, InputError, JournalError, RangeError
 from benchwarden.storage.journal import ChangeRow, Journal, ReadingRow
-from benchwarden.storage.profile import Profile, Supply, with_reading, with_weight
+from benchwarden.storage.profile_view import ProfileView, SupplyView
 from benchwarden.storage.samples import SampleStore
 from benchwarden.units import PSI_PA, Pressure
 from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import EARLIEST_RECORD, check_quantity_text, within_dates
 from benchwarden.units.quantities import check_text
-from benchwarden.workflows.holds import (
-    profile_gauge_spec,
-)
+from benchwarden.workflows.holds import profile_gauge_spec, reading_step_pa
+
+if TYPE_CHECKING:  # the profile's models load with the plan: the first frame needs only its view
+    from benchwarden.storage.profile import Profile, Supply
 
 __all__ = ["stamp", "Entry", "Question", "current_change", "readings_since_change", "last_reading", "journal_profile",
            "check_reading", "check_limits", "questions_after", "record_reading", "record_change", "parse_at",
-           "latest_state", "live_is_state", "LatestSample"]
+           "latest_state", "live_is_state", "LatestSample", "Recorded", "recorded", "profile_view", "first_readings",
+           "ProfileView"]
 
 #: Temperatures a cylinder reading may carry [K] (−73 °C to 77 °C): beyond, the unit slipped.
 READING_T_RANGE = (200.0, 350.0)
@@ -133,6 +136,8 @@ def last_reading(journal: Journal | None, bench: str, supply_id: str) -> Reading
 
 def _apply(prof: Profile, s: Supply, pressure_abs: float | None, weight: float | None, T: float | None,
            text: str) -> Profile:
+    from benchwarden.storage.profile import with_reading, with_weight
+
     T = T if T is not None else (s.reading_temperature or prof.ambient.temperature)
     if weight is not None:
         prof = with_weight(prof, s.id, weight)
@@ -156,25 +161,53 @@ def latest_state(journal: Journal | None, prof: Profile, supply_id: str,
                  tz: dt.tzinfo | None = None) -> LatestSample | None:
     """The supply's latest good pressure sample (with the latest temperature sample of the
     supply or the room), or None."""
+    return _latest_sample(journal, prof.bench.name, supply_id, tz)
+
+
+def _latest_sample(journal: Journal | None, bench: str, supply_id: str,
+                   tz: dt.tzinfo | None = None) -> LatestSample | None:
     if journal is None:
         return None
     store = SampleStore(journal)
     try:
-        sid = store.stream(prof.bench.name, supply_id, "pressure")
+        sid = store.stream(bench, supply_id, "pressure")
         got = store.latest(sid) if sid is not None else None
         if got is None:
             return None
         temp = None
         for owner in (supply_id, "room"):
-            tid = store.stream(prof.bench.name, owner, "temperature")
+            tid = store.stream(bench, owner, "temperature")
             last = store.latest(tid) if tid is not None else None
             if last is not None:
                 temp = last[1]
                 break
     except JournalError:
         return None
-    return LatestSample(dt.datetime.fromtimestamp(got[0], tz).replace(microsecond=0), got[1], temp, "live sample")
+    # aware always (the computer's zone unless ``tz``): a journal's times carry their offset
+    at = dt.datetime.fromtimestamp(got[0], tz) if tz is not None else dt.datetime.fromtimestamp(got[0]).astimezone()
+    return LatestSample(at.replace(microsecond=0), got[1], temp, "live sample")
 
+
+
+@dataclass(frozen=True)
+class Recorded:
+    """What the journal records of a supply's current cylinder: its change (fill), the latest
+    pressure and weight readings since, and its latest live sample when that is newer than both
+    the reading and the change (the one rule of which record is the supply's state)."""
+
+    change: ChangeRow | None
+    last_p: ReadingRow | None
+    last_w: ReadingRow | None
+    live: LatestSample | None
+
+
+def recorded(journal: Journal, bench: str, supply_id: str) -> Recorded:
+    change = current_change(journal, bench, supply_id)
+    since = change.at if change is not None else None
+    last_p = journal.latest_reading(bench, supply_id, since, "pressure")
+    last_w = journal.latest_reading(bench, supply_id, since, "weight")
+    live = _latest_sample(journal, bench, supply_id)
+    return Recorded(change, last_p, last_w, live if live is not None and _newer(live, last_p, change) else None)
 
 
 def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
@@ -182,36 +215,54 @@ def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
     if journal is None:
         return prof
     for s in prof.supplies:
-        change = current_change(journal, prof.bench.name, s.id)
-        if change is not None:
-            prof = _apply(prof, s, change.pressure_abs_pa, change.weight_kg, change.temperature_k,
-                          change.pressure_text or "")
-        since = change.at if change is not None else None
-        last_p = journal.latest_reading(prof.bench.name, s.id, since, "pressure")
-        last_w = journal.latest_reading(prof.bench.name, s.id, since, "weight")
-        if last_w is not None:
-            prof = _apply(prof, s, None, last_w.weight_kg, last_w.temperature_k, "")
-        if last_p is not None:
-            prof = _apply(prof, s, last_p.pressure_abs_pa, None, last_p.temperature_k, last_p.pressure_text)
-        live = latest_state(journal, prof, s.id)
-        if live is not None and not (s.gas.sold_liquefied and s.gross is not None) and _newer(live, last_p, change):
-            prof = _apply(prof, s, live.pressure_abs_pa, None, live.temperature_k, live.text)
+        r = recorded(journal, prof.bench.name, s.id)
+        if r.change is not None:
+            prof = _apply(prof, s, r.change.pressure_abs_pa, r.change.weight_kg, r.change.temperature_k,
+                          r.change.pressure_text or "")
+        if r.last_w is not None:
+            prof = _apply(prof, s, None, r.last_w.weight_kg, r.last_w.temperature_k, "")
+        if r.last_p is not None:
+            prof = _apply(prof, s, r.last_p.pressure_abs_pa, None, r.last_p.temperature_k, r.last_p.pressure_text)
+        if r.live is not None and not (s.gas.sold_liquefied and s.gross is not None):
+            prof = _apply(prof, s, r.live.pressure_abs_pa, None, r.live.temperature_k, r.live.text)
     return prof
 
 
-def first_readings(prof: Profile, journal: Journal | None) -> dict[str, float]:
+def profile_view(prof: Profile) -> ProfileView:
+    """What the first frame needs of a validated profile (kept in the journal, see
+    :mod:`benchwarden.storage.profile_view`)."""
+    amb = prof.ambient_pa
+    return ProfileView(prof.bench.name, amb, prof.display.pressure_unit, tuple(
+        SupplyView(s.id, s.reading.abs_at(amb) if s.reading is not None else None, s.gross is not None,
+                   s.gas.sold_liquefied, reading_step_pa(s)) for s in prof.supplies))
+
+
+def first_readings(view: ProfileView, journal: Journal | None) -> dict[str, float]:
     """Each supply's pressure as the journal records it [Pa, absolute], before any property is
-    computed: the first figures a screen shows while the plan is computed. A weighed or
-    liquefied supply is left out (its pressure needs the equation of state)."""
-    jprof = journal_profile(prof, journal)
-    return {s.id: s.reading.abs_at(jprof.ambient_pa) for s in jprof.supplies
-            if s.reading is not None and s.gross is None and not s.gas.sold_liquefied}
+    computed: the first figures a screen shows while the plan is computed (the same state as
+    :func:`journal_profile`). A weighed or liquefied supply is left out (its pressure needs the
+    equation of state)."""
+    out: dict[str, float] = {}
+    for s in view.supplies:
+        if s.liquefied:
+            continue
+        r = recorded(journal, view.bench, s.id) if journal is not None else Recorded(None, None, None, None)
+        if s.weighed or r.last_w is not None or (r.change is not None and r.change.weight_kg is not None):
+            continue
+        found = [r.live.pressure_abs_pa if r.live is not None else None,
+                 r.last_p.pressure_abs_pa if r.last_p is not None else None,
+                 r.change.pressure_abs_pa if r.change is not None else None, s.reading_abs_pa]
+        p = next((x for x in found if x is not None), None)  # the newest record that says a pressure
+        if p is not None:
+            out[s.id] = p
+    return out
 
 
 def _newer(live: LatestSample, last_p: ReadingRow | None, change: ChangeRow | None) -> bool:
     """Whether a live sample is newer than the latest pressure reading and cylinder change."""
     newest = max([stamp(x) for x in (last_p.at if last_p else None, change.at if change else None) if x], default=None)
-    at = live.at if newest is None or newest.tzinfo is not None else live.at.replace(tzinfo=None)
+    # a time recorded without an offset is the computer's local time
+    at = live.at if newest is None or newest.tzinfo is not None else live.at.astimezone().replace(tzinfo=None)
     return newest is None or at > newest
 
 

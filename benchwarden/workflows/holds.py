@@ -17,10 +17,10 @@ from typing import TYPE_CHECKING
 from benchwarden.core.uncertainty import GaugeSpec
 from benchwarden.errors import PA_DIFF, InputError, JournalError, RangeError
 from benchwarden.storage.journal import HoldRow, Journal
-from benchwarden.storage.profile import Gauge, Supply
 
 if TYPE_CHECKING:  # the findings and the hold test's core load when first used (the app draws first)
     from benchwarden.core.hold import HoldResult
+    from benchwarden.storage.profile import Gauge, Supply
     from benchwarden.workflows.findings import Finding
 
 __all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "reading_step_pa", "HoldRecord",

@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING
 
 from benchwarden.errors import InputError, JournalError
 from benchwarden.storage.journal import Journal, ReadingRow
-from benchwarden.storage.profile import Profile, load_profile, with_reading
+from benchwarden.storage.profile_view import ProfileView, kept_view
 from benchwarden.storage.samples import Columns
 from benchwarden.units import parse_mass, parse_pressure, parse_temperature
 from benchwarden.units.quantities import check_text
@@ -40,6 +40,7 @@ from benchwarden.workflows.holds import (
 )
 
 if TYPE_CHECKING:  # the plan, the findings, the live gauges and the lab load when first used: the app draws first
+    from benchwarden.storage.profile import Profile
     from benchwarden.workflows.bench import Assessment
     from benchwarden.workflows.findings import Finding
     from benchwarden.workflows.lab import LabLink, Shipper
@@ -100,13 +101,29 @@ class SessionState:
 
     def load(self, plan: bool = True) -> None:
         """Load the profile and compute the plan (blocking: CoolProp; call from a worker)."""
-        self.profile = load_profile(self.profile_path)
+        self.profile = self._validated()
         if plan:
             self.recompute()
 
+    def _validated(self) -> Profile:
+        """The profile, validated; what the first frame needs of it is kept for the next start."""
+        from benchwarden.storage.profile import MAX_PROFILE_BYTES, parse_profile, read_text_file
+        from benchwarden.storage.profile_view import keep_view
+        from benchwarden.workflows.cylinder import profile_view
+
+        text = read_text_file(self.profile_path, "bench profile (.toml)", MAX_PROFILE_BYTES)
+        prof = parse_profile(text, str(self.profile_path))
+        keep_view(self.journal, self.profile_path, text, profile_view(prof))
+        return prof
+
+    def first_view(self) -> ProfileView | None:
+        """What the first frame needs of the profile, kept when this exact profile text was last
+        validated (no profile parse), else None."""
+        return kept_view(self.journal, self.profile_path)
+
     def reload(self) -> None:
         """Reload the edited profile; on error the old one stays in use and the error is raised."""
-        new = load_profile(self.profile_path)
+        new = self._validated()
         old = self.profile
         self.profile = new
         try:
@@ -115,17 +132,10 @@ class SessionState:
             self.profile = old
             raise
 
-    @property
-    def memo(self) -> Memo:
-        """The property results kept between refreshes (made with the first plan)."""
-        if self._memo is None:
-            from benchwarden.workflows.model import Memo
-            self._memo = Memo()
-        return self._memo
-
     def effective_profile(self) -> Profile:
         """The profile as the journal records it (every supply's latest reading or fill, new idle
         drops stored as hold tests), with readings not yet saved applied on top."""
+        from benchwarden.storage.profile import with_reading
         from benchwarden.workflows.bench import journal_state
         assert self.profile is not None
         prof = journal_state(self.profile, self.journal, self.clock())
@@ -137,14 +147,16 @@ class SessionState:
         from benchwarden.workflows import build as pl
         from benchwarden.workflows.bench import orders_of
         from benchwarden.workflows.findings import life_findings
+        from benchwarden.workflows.model import Memo
+        self._memo = self._memo if self._memo is not None else Memo()  # made with the first plan
         now = self.clock()
         latest = max((r.at for rs in self.readings.values() for r in rs), default=None)
         self.plan_at = latest or now
         prof = self.effective_profile()
         self.plan = pl.build_plan(prof, now=self.plan_at, start_at=self.plan_at,
-                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name), memo=self.memo)
+                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name), memo=self._memo)
         # retest and service dates, and when to order: the same rule as the plan and status
-        orders = orders_of(prof, self.plan, self.journal, now, self.memo)
+        orders = orders_of(prof, self.plan, self.journal, now, self._memo)
         self._life = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
         self._observe()
 

@@ -19,6 +19,7 @@ from textual.widgets import DataTable, Header, Static
 from benchwarden.errors import BenchwardenError, JournalError
 from benchwarden.render.display import (
     Display,
+    display_for,
     fmt_hours,
     lab_link_text,
     live_text,
@@ -40,6 +41,7 @@ from benchwarden.tui.widgets import FindingsPanel, KeysFooter, bar
 from benchwarden.workflows.session import SessionState
 
 if TYPE_CHECKING:  # the findings' rules load with the plan, after the first frame
+    from benchwarden.workflows.cylinder import ProfileView
     from benchwarden.workflows.findings import Finding
 
 #: How often the live figures (plan, leak watch, alarms) are recomputed from new samples [s].
@@ -131,14 +133,18 @@ class OverviewScreen(OverviewActions):
         self.set_interval(1.0, self.tick)
 
     def _first_figures(self) -> None:
-        """The supplies' readings as the journal records them, in the first frame drawn: the
-        profile and a few indexed queries, no equation of state (the plan follows in a worker)."""
-        from benchwarden.workflows.cylinder import first_readings
+        """The supplies' readings as the journal records them, in the first frame drawn: what the
+        profile said when last validated (kept in the journal; else the profile, validated now)
+        and a few indexed queries, no equation of state (the plan follows in a worker)."""
+        from benchwarden.workflows.cylinder import first_readings, profile_view
 
         try:
-            self.state.load(plan=False)
-            assert self.state.profile is not None
-            self._show_first(first_readings(self.state.profile, self.state.journal))
+            view = self.state.first_view()
+            if view is None:
+                self.state.load(plan=False)
+                assert self.state.profile is not None
+                view = profile_view(self.state.profile)
+            self._show_first(view, first_readings(view, self.state.journal))
         except BenchwardenError:
             self.state.profile = None  # the worker loads it again and says what is wrong
 
@@ -148,23 +154,26 @@ class OverviewScreen(OverviewActions):
     def load_plan(self) -> None:
         try:
             if self.state.profile is None:  # draw first: the readings as recorded, then the plan
-                from benchwarden.workflows.cylinder import first_readings
+                from benchwarden.workflows.cylinder import first_readings, profile_view
 
                 self.state.load(plan=False)
                 assert self.state.profile is not None
-                self.app.call_from_thread(self._show_first, first_readings(self.state.profile, self.state.journal))
+                view = profile_view(self.state.profile)
+                self.app.call_from_thread(self._show_first, view, first_readings(view, self.state.journal))
             self.state.recompute()
         except BenchwardenError as exc:
             self.app.call_from_thread(self._error, error_line(exc, self.units))
             return
         self.app.call_from_thread(self._plan_ready)
 
-    def _show_first(self, pressures: dict[str, float]) -> None:
+    def _show_first(self, view: ProfileView, pressures: dict[str, float]) -> None:
         """The supplies' readings as the journal has them, while the plan is computed."""
         sup = self.query_one("#supplies", DataTable)
         if self.state.plan is None and not sup.row_count:
+            d = display_for(self.pressure_unit or view.pressure_unit, view.ambient_pa)
+            steps = {s.id: s.step_pa for s in view.supplies}
             for sid, p in pressures.items():
-                sup.add_row(sid, self.units.gauge(p, self.state.reading_step(sid)), "", "", "", key=sid)
+                sup.add_row(sid, d.gauge(p, steps.get(sid)), "", "", "", key=sid)
 
     def _plan_ready(self) -> None:
         self.refresh_view()
