@@ -4,6 +4,9 @@ Sources beside each check; exact factors come from the unit definitions (NIST SP
 """
 
 import math
+import subprocess
+import sys
+from pathlib import Path
 
 import pytest
 from clitools import run
@@ -22,6 +25,8 @@ from benchwarden.units import (
     parse_volume,
     pressure_abs,
 )
+
+ROOT = Path(__file__).resolve().parents[1]
 
 R = 8.314462618  # CODATA 2018, exact
 
@@ -174,6 +179,36 @@ def test_fast_unit_factors_agree_with_pint():
                      "um": "um", "hr": "hour", "d": "day", "days": "day", "hz": "Hz", "khz": "kHz",
                      "/s": "1/s", "/min": "1/min", "v": "V", "kv": "kV"}.get(unit, unit)
         assert Q_(1.0, pint_unit).to(target).magnitude == pytest.approx(factor, rel=1e-12), unit
+
+
+def test_fast_flow_units_agree_with_pint():
+    # every mass and actual-volume flow unit read without pint's registry gives pint's kind and
+    # factor (pint through the same path the other units take: the reference)
+    import pint
+
+    from benchwarden.units.flows import _FAST_FLOW_NUMERATORS, _FAST_FLOW_PER, _fast_flow
+    from benchwarden.units.parse import _pint_quantity
+
+    for num in _FAST_FLOW_NUMERATORS:
+        for per in _FAST_FLOW_PER:
+            unit = f"{num}/{per}"
+            kind, factor = _fast_flow(unit)
+            q = _pint_quantity(1.0, unit, unit, "flow")
+            target = "kg/s" if kind == "mass" else "m**3/s"
+            other = "m**3/s" if kind == "mass" else "kg/s"
+            assert q.to(target).magnitude == pytest.approx(factor, rel=1e-12), unit
+            with pytest.raises(pint.errors.DimensionalityError):
+                q.to(other)
+    assert _fast_flow("ML/h") is None and _fast_flow("m3") is None and _fast_flow("m3/h/h") is None
+
+
+def test_a_profile_with_a_ventilation_flow_is_read_without_pint():
+    # the premix bench's "90 m3/h" no longer builds pint's registry on a cold plan (issue 28)
+    code = ("import sys; from benchwarden.storage.profile import load_profile; "
+            "p = load_profile(sys.argv[1]); print(p.room.ventilation.m3_s(1.0), 'pint' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code, str(ROOT / "profiles" / "premix-switch-bench.toml")],
+                         capture_output=True, text=True, check=True).stdout.split()
+    assert float(out[0]) == pytest.approx(90 / 3600, rel=1e-12) and out[1] == "False"
 
 
 def test_temperature_arithmetic_agrees_with_pint():

@@ -105,6 +105,17 @@ def _vapour_mass(gas: g.Gas, V: float, p: float, T: float) -> tuple[float, bool]
         return g.saturated_vapour_density_at_p(gas, p) * V, True
     return g.density(gas, T, p) * V, False
 
+def _density_slope(gas: g.Gas, p: float, T: float) -> float | None:
+    """(∂ρ/∂T) at constant p [kg/(m³·K)] of a single-phase state, CoolProp's analytic derivative
+    of the equation of state (the same flash as :func:`benchwarden.core.gas.density`); None for a
+    two-phase state."""
+    g.check_state(gas, T, p)
+    AS = g.state_at(gas, "PT_INPUTS", p, T)
+    if g.phase_of(gas, AS).kind == "two-phase":
+        return None
+    CP = g.coolprop()
+    return float(AS.first_partial_deriv(CP.iDmass, CP.iT, CP.iP))
+
 def temperature_sensitivity(gas: g.Gas, V: float, p: float, T: float, u_T: float) -> tuple[float, float, bool]:
     """How much the contents by pressure depend on the temperature.
 
@@ -122,7 +133,8 @@ def temperature_sensitivity(gas: g.Gas, V: float, p: float, T: float, u_T: float
 
     Notes
     -----
-    ∂m/∂T is a central difference (±0.05 K) of m = ρ(T, p)·V; the mass uncertainty is the larger
+    ∂m/∂T is CoolProp's analytic (∂ρ/∂T)_p × V of a single-phase state (a two-phase mixture or
+    a saturated vapour: a central difference, ±0.05 K, of m = ρ(T, p)·V); the mass uncertainty is the larger
     change of m over T ± u_T (the model evaluated at the ends of the interval, as GUM JCGM
     100:2008 §5.1.2 allows for a non-linear model). Where T − u_T lies at or below the saturation
     temperature at p (a gas sold liquefied), the mass there is the saturated vapour's at p: a
@@ -132,11 +144,15 @@ def temperature_sensitivity(gas: g.Gas, V: float, p: float, T: float, u_T: float
     ----------
     JCGM 100:2008 (GUM); the reference equations of state in CoolProp HEOS.
     """
-    m = _vapour_mass(gas, V, p, T)[0]
+    m, saturated = _vapour_mass(gas, V, p, T)
     tmin, tmax, _ = g.limits(gas)
-    dT = 0.05
-    lo, hi = max(tmin, T - dT), min(tmax, T + dT)
-    slope = (_vapour_mass(gas, V, p, hi)[0] - _vapour_mass(gas, V, p, lo)[0]) / (hi - lo)
+    drho_dT = None if saturated else _density_slope(gas, p, T)
+    if drho_dT is not None:
+        slope = drho_dT * V
+    else:
+        dT = 0.05
+        lo, hi = max(tmin, T - dT), min(tmax, T + dT)
+        slope = (_vapour_mass(gas, V, p, hi)[0] - _vapour_mass(gas, V, p, lo)[0]) / (hi - lo)
     m_lo, liquid = _vapour_mass(gas, V, p, max(tmin, T - u_T))
     m_hi, _ = _vapour_mass(gas, V, p, min(tmax, T + u_T))
     return slope, max(abs(m_lo - m), abs(m_hi - m)), liquid

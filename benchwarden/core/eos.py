@@ -12,6 +12,19 @@ also taken from the previous state. :func:`update` therefore throws a state away
 failure and retries the same inputs on a fresh one, so every call answers what it answers in a
 fresh process, whatever ran before in that thread (``tests/test_order_independence.py``).
 Imposing a phase is an argument of the call, never left on a state between calls.
+
+Repeated mixture states
+-----------------------
+A mixture's full (T, p) flash (stability analysis, then the phase equilibrium where the mixture
+splits) costs about 10 ms with CoolProp 8 for a three-component premix; the same state on a
+given branch about 0.1 ms. A plan asks for the same mixture state several times (the supply now
+for its density, its enthalpy, its phase; the regulator's outlet). Each thread therefore
+remembers, per gas and exact (p, T), the phase CoolProp's full flash found where it found one
+single phase, with its density; the same inputs again are updated with that phase imposed, and
+the answer is kept only if CoolProp reports the same phase, vapour fraction and density (to
+1e-12), else the full flash runs again. A two-phase state is never remembered. The result is the
+full flash's state (``tests/test_eos_memo.py``, against fresh ``AbstractState`` objects).
+:func:`discard` with no gas forgets these too, as a fresh process would.
 """
 
 from __future__ import annotations
@@ -35,6 +48,8 @@ SUPERANCILLARY_SWITCH = "COOLPROP_DISABLE_SUPERANCILLARIES_ENTIRELY"
 _IMPORT_LOCK = threading.Lock()
 _BUILD_LOCK = threading.Lock()  # CoolProp's mixing-rule table is process-wide
 _local = threading.local()
+#: Remembered single-phase mixture states per thread: at most this many, then forgotten.
+SINGLE_PHASE_LIMIT = 4096
 #: Pairs whose parameters were estimated: mirrors CoolProp's own process-wide pair table.
 _ESTIMATED: set[frozenset[str]] = set()
 
@@ -198,6 +213,8 @@ def discard(gas: Gas | None = None) -> None:
     ----------
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
     """
+    if gas is None:
+        _single().clear()
     states: dict[str, _State] | None = getattr(_local, "states", None)
     if not states:
         return
@@ -218,6 +235,46 @@ def _try(AS: Any, code: int, a: float, b: float, imposed: int | None) -> bool:
     finally:
         if imposed is not None:
             AS.unspecify_phase()
+
+
+def _single() -> dict[tuple[str, float, float], tuple[Any, float, float]]:
+    """This thread's remembered single-phase mixture states: (gas key, p, T) → (CoolProp phase
+    index, vapour fraction as CoolProp reports it, density [kg/m³])."""
+    single: dict[tuple[str, float, float], tuple[Any, float, float]] | None = getattr(_local, "single", None)
+    if single is None:
+        single = _local.single = {}
+    return single
+
+
+def _same_single(AS: Any, known: tuple[Any, float, float]) -> bool:
+    phase, q, rho = known
+    return AS.phase() == phase and float(AS.Q()) == q and abs(float(AS.rhomass()) - rho) <= 1e-12 * rho
+
+
+def _full_pt(gas: Gas, CP: Any, a: float, b: float) -> Any | None:
+    """A mixture's (T, p) state (``PT_INPUTS``, no phase imposed): the remembered single phase
+    imposed where these inputs were flashed before in this thread and the answer is the same
+    (see the module docstring), else CoolProp's full flash, remembered where it is one phase."""
+    single = _single()
+    key = (gas.key, a, b)
+    known = single.get(key)
+    if known is not None:
+        AS = state(gas)
+        if _try(AS, CP.PT_INPUTS, a, b, known[0]) and _same_single(AS, known):
+            return AS
+        discard(gas)
+        single.pop(key, None)
+    for _ in range(2):
+        AS = state(gas)
+        if _try(AS, CP.PT_INPUTS, a, b, None):
+            phase, q = AS.phase(), float(AS.Q())
+            if phase != CP.iphase_twophase and not 0.0 <= q < 1.0:
+                if len(single) >= SINGLE_PHASE_LIMIT:
+                    single.clear()
+                single[key] = (phase, q, float(AS.rhomass()))
+            return AS
+        discard(gas)
+    return None
 
 
 def update(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None) -> Any | None:
@@ -249,6 +306,8 @@ def update(gas: Gas, pair: str, a: float, b: float, imposed: str | None = None) 
     CoolProp HEOS (Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498–2508).
     """
     CP = coolprop()
+    if imposed is None and pair == "PT_INPUTS" and gas.is_mixture:
+        return _full_pt(gas, CP, a, b)
     code = getattr(CP, pair)
     phase_code = None if imposed is None else getattr(CP, f"iphase_{imposed}")
     for _ in range(2):
