@@ -64,8 +64,11 @@ class DensityTable:
         interval [p_j, p_j+1]) in ``rows`` not checked yet; a row that fails is fully flashed."""
         import numpy as np
 
-        pending = [(int(i), int(k)) for i, k in {(int(i), int(j) // CHECK_BLOCK)
-                                                 for i, j in zip(np.ravel(rows), np.ravel(intervals), strict=True)}
+        # the distinct (row, block) pairs asked for, found in one vectorised pass (a long log asks
+        # for a few blocks with many points each)
+        blocks = len(self.p) // CHECK_BLOCK + 1
+        keys = np.unique(np.ravel(rows).astype(np.int64) * blocks + np.ravel(intervals).astype(np.int64) // CHECK_BLOCK)
+        pending = [(int(i), int(k)) for i, k in zip(*np.divmod(keys, blocks), strict=True)
                    if self._checked[i] is not None and k not in self._checked[i]]  # type: ignore[operator]
         if not pending:
             return
