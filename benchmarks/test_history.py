@@ -203,6 +203,21 @@ def test_hold_log_cost_per_row(tmp_path):
     print(f"\nhold --log per row: ours {per_row['ours'] * 1e6:.2f} µs, numpy.loadtxt {per_row['loadtxt'] * 1e6:.2f} µs "
           f"({per_row['ours'] / per_row['loadtxt']:.1f}×), plain loadtxt+CoolProp+polyfit "
           f"{per_row['plain'] * 1e6:.2f} µs")
+    # the same in this process (no process start in the difference: steadier on a busy machine)
+    import numpy as np
+
+    def in_process(f):
+        argv = ["hold", "--gas", "nitrogen", "--volume", "50 L", "--log", str(f), "--gauge-range", "250 bar",
+                "--gauge-class", "0.25", "--json"]
+        with contextlib.redirect_stdout(io.StringIO()):
+            return _timed(lambda: main(argv))
+
+    in_process(small)
+    ours_ip = (_best(lambda: in_process(big), 5) - _best(lambda: in_process(small), 5)) / 99_000
+    load_ip = (_best(lambda: _timed(lambda: np.loadtxt(big, delimiter=",", skiprows=1)), 5)
+               - _best(lambda: _timed(lambda: np.loadtxt(small, delimiter=",", skiprows=1)), 5)) / 99_000
+    print(f"hold --log per row in process: ours {ours_ip * 1e6:.2f} µs, numpy.loadtxt {load_ip * 1e6:.2f} µs "
+          f"({ours_ip / load_ip:.1f}×)")
     assert all(v == v for v in per_row.values())  # every run finished (check=True) and was timed
 
 
