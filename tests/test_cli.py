@@ -6,7 +6,7 @@ import sys
 from pathlib import Path
 
 import pytest
-from clitools import run
+from clitools import limit_s, run
 
 from benchwarden.cli import main
 
@@ -131,7 +131,7 @@ def test_json_into_a_closed_pipe_is_quiet():
     proc = subprocess.run(
         f"{sys.executable} -m benchwarden contents --gas nitrogen --volume '50 L' --pressure '200 bar' "
         "--temperature '15 degC' --json | head -1", shell=True, capture_output=True, text=True, cwd=ROOT,
-        timeout=120)
+        timeout=limit_s(120))
     assert proc.stdout.strip() == "{" and "Traceback" not in proc.stderr
 
 

@@ -14,6 +14,7 @@ import threading
 from pathlib import Path
 
 import pytest
+from clitools import limit_s
 
 from benchwarden.core import gas as g
 from benchwarden.core import regulator, supply
@@ -182,7 +183,7 @@ def test_coolprop_8_import_prints_nothing_on_stdout():
     env = {k: v for k, v in os.environ.items() if k != g.SUPERANCILLARY_SWITCH}
     out = subprocess.run(
         [sys.executable, "-m", "benchwarden", "contents", "--gas", "co2", "--gross", "75 kg", "--tare",
-         "68.5 kg", "--volume", "13.4 L", "--json"], capture_output=True, text=True, env=env, cwd=ROOT, timeout=120)
+         "68.5 kg", "--volume", "13.4 L", "--json"], capture_output=True, text=True, env=env, cwd=ROOT, timeout=limit_s(120))
     assert out.returncode == 0, out.stderr
     assert json.loads(out.stdout)["mass_kg"] == pytest.approx(6.5)
     assert "superancillar" not in out.stdout

@@ -7,6 +7,7 @@ import os
 from pathlib import Path
 
 import pytest
+from clitools import limit_s
 
 from benchwarden.cli import main
 from benchwarden.errors import InputError
@@ -285,7 +286,7 @@ def _unshare(tmp_path: Path, script: str) -> str:
     env = dict(os.environ, PY=sys.executable, DEMO=str(DEMO), MNT=str(tmp_path / "mnt"), PYTHONPATH=str(ROOT))
     (tmp_path / "mnt").mkdir()
     r = subprocess.run(["unshare", "-m", "sh", "-c", "set -u\nmount -t tmpfs -o size=256k none \"$MNT\" || exit 77\n"
-                        + script], capture_output=True, text=True, env=env, timeout=120)
+                        + script], capture_output=True, text=True, env=env, timeout=limit_s(120))
     if r.returncode == 77:
         pytest.skip("tmpfs mounts are not permitted here")
     assert r.returncode == 0, r.stderr

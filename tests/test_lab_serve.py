@@ -33,6 +33,7 @@ from pathlib import Path
 
 import psycopg
 import pytest
+from clitools import limit_s
 from pgserver import server_or_skip
 
 from benchwarden.cli import build_parser, main
@@ -172,7 +173,7 @@ def test_a_port_in_use_is_one_line_and_exit_2(lab):
         busy.listen()
         port = busy.getsockname()[1]
         p = subprocess.run([sys.executable, "-m", "benchwarden", "lab", "serve", lab.url("benchwarden_viewer"),
-                            "--port", str(port)], capture_output=True, text=True, timeout=START_S)
+                            "--port", str(port)], capture_output=True, text=True, timeout=limit_s(START_S))
     assert p.returncode == 2 and p.stdout == "" and len(p.stderr.strip().splitlines()) == 1
     assert f"--port {port}" in p.stderr
 

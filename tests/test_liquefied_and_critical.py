@@ -14,7 +14,7 @@ import sys
 import textwrap
 
 import pytest
-from clitools import run
+from clitools import limit_s, run
 
 from benchwarden.core import gas as g
 from benchwarden.core import supply
@@ -49,7 +49,7 @@ _REFERENCE = textwrap.dedent("""
 
 @pytest.fixture(scope="module")
 def ref():
-    out = subprocess.run([sys.executable, "-c", _REFERENCE], capture_output=True, text=True, timeout=120, check=True)
+    out = subprocess.run([sys.executable, "-c", _REFERENCE], capture_output=True, text=True, timeout=limit_s(120), check=True)
     return json.loads(out.stdout.strip().splitlines()[-1])
 
 

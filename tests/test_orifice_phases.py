@@ -15,6 +15,7 @@ import textwrap
 
 import numpy as np
 import pytest
+from clitools import limit_s
 
 from benchwarden.cli import main
 from benchwarden.core import flow
@@ -48,7 +49,7 @@ _REFERENCE = textwrap.dedent("""
 
 @pytest.fixture(scope="module")
 def ref():
-    out = subprocess.run([sys.executable, "-c", _REFERENCE], capture_output=True, text=True, timeout=180, check=True)
+    out = subprocess.run([sys.executable, "-c", _REFERENCE], capture_output=True, text=True, timeout=limit_s(180), check=True)
     return json.loads(out.stdout.strip().splitlines()[-1])
 
 
