@@ -33,6 +33,8 @@ from benchwarden.units.quantities import check_text
 from benchwarden.workflows.holds import (
     profile_gauge_spec,
 )
+from benchwarden.workflows.kept import kept_figure
+from benchwarden.workflows.model import Memo
 
 __all__ = ["stamp", "Entry", "Question", "current_change", "readings_since_change", "last_reading", "journal_profile",
            "check_reading", "check_limits", "questions_after", "record_reading", "record_change", "parse_at",
@@ -105,8 +107,7 @@ def current_change(journal: Journal | None, bench: str, supply_id: str) -> Chang
     """The latest cylinder change of the supply, or None (still the profile's first fill)."""
     if journal is None:
         return None
-    rows = journal.changes(bench, supply_id)
-    return rows[-1] if rows else None
+    return journal.latest_change(bench, supply_id)
 
 
 def readings_since_change(journal: Journal | None, bench: str, supply_id: str,
@@ -177,18 +178,29 @@ def latest_state(journal: Journal | None, prof: Profile, supply_id: str,
 
 
 
-def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
-    """The profile with every supply's state from the journal (see module docstring)."""
+def _latest(journal: Journal, bench: str, supply_id: str) -> tuple[ChangeRow | None, ReadingRow | None,
+                                                                    ReadingRow | None]:
+    """The supply's latest cylinder change, and its latest pressure and weight readings since."""
+    change = current_change(journal, bench, supply_id)
+    since = change.at if change is not None else None
+    return (change, journal.latest_reading(bench, supply_id, since, "pressure"),
+            journal.latest_reading(bench, supply_id, since, "weight"))
+
+
+def journal_profile(prof: Profile, journal: Journal | None, memo: Memo | None = None) -> Profile:
+    """The profile with every supply's state from the journal (see module docstring). With a
+    ``memo`` (the app's), each supply's latest change and readings are kept until the record of
+    that supply changes (:func:`benchwarden.workflows.kept.kept_figure`); live samples are read
+    each time."""
     if journal is None:
         return prof
+    bench = prof.bench.name
     for s in prof.supplies:
-        change = current_change(journal, prof.bench.name, s.id)
+        change, last_p, last_w = kept_figure(memo, journal, bench, s.id, "latest", None,
+                                             lambda: _latest(journal, bench, s.id))  # noqa: B023 - called at once
         if change is not None:
             prof = _apply(prof, s, change.pressure_abs_pa, change.weight_kg, change.temperature_k,
                           change.pressure_text or "")
-        since = change.at if change is not None else None
-        last_p = journal.latest_reading(prof.bench.name, s.id, since, "pressure")
-        last_w = journal.latest_reading(prof.bench.name, s.id, since, "weight")
         if last_w is not None:
             prof = _apply(prof, s, None, last_w.weight_kg, last_w.temperature_k, "")
         if last_p is not None:

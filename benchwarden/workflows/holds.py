@@ -186,9 +186,9 @@ def judged_hold_tests(journal: Journal, bench: str) -> list[JudgedHold]:
     struck = {rd.id: rd.struck_reason or "struck out" for rd in journal.struck_readings(bench)}
     last_change: dict[str, str] = {}
     for sid in {r.supply_id for r in rows if r.supply_id}:
-        changes = journal.changes(bench, sid)
-        if changes:
-            last_change[sid] = changes[-1].at
+        latest = journal.latest_change(bench, sid)
+        if latest is not None:
+            last_change[sid] = latest.at
     out: list[JudgedHold] = []
     for r in rows:
         hit = [i for i in _derived_from(r) if i in struck]

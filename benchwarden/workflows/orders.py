@@ -15,6 +15,8 @@ from benchwarden.storage.journal import Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply
 from benchwarden.workflows.cylinder import stamp
 from benchwarden.workflows.holds import profile_gauge_spec
+from benchwarden.workflows.kept import kept_figure
+from benchwarden.workflows.model import Memo, memo_get
 
 __all__ = ["Consumption", "OrderBy", "consumption", "order_by", "CONSUMPTION_READINGS"]
 
@@ -30,13 +32,14 @@ class Consumption:
     days_covered: float
 
 
-def _mass_of(prof: Profile, s: Supply, r: ReadingRow) -> float | None:
+def _mass_of(prof: Profile, s: Supply, r: ReadingRow, memo: Memo | None = None) -> float | None:
     if r.weight_kg is not None and s.tare is not None:
         return r.weight_kg - s.tare
     if r.pressure_abs_pa is None:
         return None
     try:
-        return g.density(s.gas, r.temperature_k, r.pressure_abs_pa) * s.water_volume
+        return memo_get(memo, ("rho", s.gas.key, r.temperature_k, r.pressure_abs_pa), g.density, s.gas,
+                        r.temperature_k, r.pressure_abs_pa) * s.water_volume
     except Exception:  # noqa: BLE001 - outside the equation of state: the reading is skipped
         return None
 
@@ -50,7 +53,7 @@ CONSUMPTION_READINGS = 300
 _METHOD = "consumption 2"
 
 
-def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consumption | None:
+def consumption(journal: Journal | None, prof: Profile, supply_id: str, memo: Memo | None = None) -> Consumption | None:
     """Consumption per week from the pairs of consecutive readings on the same cylinder (no
     change between them, none struck) among the newest :data:`CONSUMPTION_READINGS`: mass used
     over the time between, weighted by time; the spread is the time-weighted standard deviation
@@ -58,13 +61,28 @@ def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consu
 
     The result is kept in the journal with a key of everything it depends on (those readings,
     the cylinder changes among them, the supply's gas, volume and tare): a status computes it
-    again only when one of them changed, never the same real-gas densities twice."""
+    again only when one of them changed, never the same real-gas densities twice. With a
+    ``memo`` (the app's) it is also kept in memory until a reading, strike or change of the
+    supply is recorded (:func:`benchwarden.workflows.kept.kept_figure`), and each reading's
+    density is kept there, so a new reading costs one density."""
     if journal is None:
         return None
     s = prof.supply(supply_id)
+    return kept_figure(memo, journal, prof.bench.name, supply_id, "consumption",
+                       (_METHOD, s.gas.key, s.water_volume, s.tare, s.gauge),
+                       lambda: _kept_consumption(journal, prof, s, memo))
+
+
+def _kept_consumption(journal: Journal, prof: Profile, s: Supply, memo: Memo | None) -> Consumption | None:
+    """The consumption kept in the journal with its key, or computed and kept there."""
+    supply_id = s.id
     rows = journal.recent_readings(prof.bench.name, supply_id, CONSUMPTION_READINGS)
     first = stamp(rows[0].at) if rows else None
-    changes = sorted((stamp(c.at), c.at) for c in journal.changes(prof.bench.name, supply_id))
+    # the changes among the readings (read from two days before the first: times with other
+    # offsets than the first reading's still sort after that in text)
+    near = [] if first is None else journal.changes_from(prof.bench.name, supply_id,
+                                                         (first.date() - dt.timedelta(days=2)).isoformat())
+    changes = sorted((stamp(c.at), c.at) for c in near)
     changes = [c for c in changes if first is not None and c[0] >= first]  # only those among the readings
     change_at = [at for _, at in changes]
     key = hashlib.sha256(repr((_METHOD, s.gas.key, s.water_volume, s.tare, change_at, s.gauge,
@@ -75,7 +93,7 @@ def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consu
         value = json.loads(kept[1])
         return None if value is None else Consumption(supply_id, *value)
     spec = profile_gauge_spec(s.gauge)
-    cons = _consumption(prof, s, rows, [t for t, _ in changes], spec.resolved_drop_pa if spec else None)
+    cons = _consumption(prof, s, rows, [t for t, _ in changes], spec.resolved_drop_pa if spec else None, memo)
     try:
         journal.keep_derived(prof.bench.name, supply_id, "consumption", key,
                              json.dumps(None if cons is None else list(astuple(cons))[1:]))
@@ -85,11 +103,11 @@ def consumption(journal: Journal | None, prof: Profile, supply_id: str) -> Consu
 
 
 def _consumption(prof: Profile, s: Supply, rows: list[ReadingRow], changes: list[dt.datetime],
-                 resolved_drop_pa: float | None = None) -> Consumption | None:
+                 resolved_drop_pa: float | None = None, memo: Memo | None = None) -> Consumption | None:
     """The time-weighted consumption of the usable intervals; None when there is none, or when
     the pressure the gauge read falling over them all is no more than ``resolved_drop_pa`` (a
     fall the gauge cannot tell from its own error is no consumption: no order date from it)."""
-    masses = [_mass_of(prof, s, r) for r in rows]
+    masses = [_mass_of(prof, s, r, memo) for r in rows]
     times = [stamp(r.at) for r in rows]
     rates: list[tuple[float, float]] = []  # (kg/s, seconds)
     drop_pa, by_weight = 0.0, False

@@ -122,7 +122,7 @@ class SessionState:
         drops stored as hold tests), with readings not yet saved applied on top."""
         from benchwarden.workflows.bench import journal_state
         assert self.profile is not None
-        prof = journal_state(self.profile, self.journal, self.clock())
+        prof = journal_state(self.profile, self.journal, self.clock(), self._memo)
         for r in sorted(self.unsaved, key=lambda r: r.at):
             prof = with_reading(prof, r.supply_id, parse_pressure(f"{r.pressure_abs_pa} Pa(a)"), r.temperature_k)
         return prof

@@ -1,0 +1,184 @@
+"""The app's refresh reads only what changed (issue 28): the queries that replace whole-history
+reads give what the whole history gives, and the figures kept between refreshes (in the app's
+memo, by the bench's events) equal the same figures computed afresh on the same SQLite file."""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+import shutil
+from pathlib import Path
+
+import pytest
+
+from benchwarden.storage.journal import Journal
+from benchwarden.storage.profile import load_profile
+from benchwarden.workflows import orders
+from benchwarden.workflows.idledrops import idle_drops, record_idle_drops
+from benchwarden.workflows.model import Memo
+from benchwarden.workflows.session import SessionState
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
+T0 = dt.datetime(2026, 10, 1, 9, 0, tzinfo=dt.UTC)
+AMB = 101325.0
+
+
+def _two_supplies(tmp: Path) -> Path:
+    """The demo bench with a second nitrogen cylinder ``n2-1``."""
+    start, end = DEMO.index("[[supplies]]"), DEMO.index("[[regulators]]")
+    p = tmp / "bench.toml"
+    p.write_text(DEMO[:end] + DEMO[start:end].replace('id = "n2-A"', 'id = "n2-1"') + DEMO[end:])
+    return p
+
+
+def _at(hours: float) -> str:
+    return (T0 + dt.timedelta(hours=hours)).isoformat(timespec="seconds")
+
+
+def _read(j: Journal, bench: str, sid: str, hours: float, bar: float) -> int:
+    at = _at(hours)
+    return j.add_reading(None, sid, at, bar * 1e5 + AMB, f"{bar} bar", 294.15, at, bench=bench, ambient_pa=AMB)
+
+
+# ----------------------------------------------------------------------------- the queries
+
+
+def test_the_narrow_queries_give_what_the_whole_history_gives(tmp_path):
+    prof = load_profile(_two_supplies(tmp_path))
+    bench = prof.bench.name
+    with Journal(tmp_path / "j.sqlite") as j:
+        for i in range(40):  # the two supplies' readings interleaved, one written with an older time
+            _read(j, bench, "n2-A" if i % 3 else "n2-1", i if i != 17 else 2.5, 150 - i)
+        for h in (5, 12, 12, 30):  # two changes at the same time: the later id is the latest
+            j.add_change(bench, "n2-A", _at(h), _at(h), 200e5 + AMB, "200 bar")
+        j.strike_reading(10, _at(41), "misread")
+        everything = j.supply_readings(bench, "n2-A")
+        for after in (0, 7, 23, 39, 40):  # by id, struck ones included (the independent reference: a filter)
+            assert j.readings_after(bench, "n2-A", after) == sorted((r for r in everything if r.id > after),
+                                                                     key=lambda r: r.id)
+        changes = j.changes(bench, "n2-A")
+        assert j.latest_change(bench, "n2-A") == changes[-1] and changes[-1].id == 4
+        assert j.latest_change(bench, "n2-1") is None
+        assert j.changes_from(bench, "n2-A", _at(12)) == [c for c in changes if c.at >= _at(12)]
+        assert j.last_reading_id() == 40
+        seq = j.last_event_seq(bench)
+        _read(j, bench, "n2-1", 50, 100)
+        assert j.last_event_seq(bench) > seq and j.event_supplies(bench, seq, ("reading",)) == {"n2-1"}
+        assert j.event_supplies(bench, seq, ("strike",)) == set()
+
+
+# ----------------------------------------------------------------------------- idle drops
+
+
+def test_the_idle_drop_scan_by_id_stores_what_a_full_scan_finds(tmp_path):
+    """Readings of two supplies written in turn, the scan run after each: the drops stored equal
+    those of one scan of the finished journal with no mark (the first scan reads it all)."""
+    prof = load_profile(_two_supplies(tmp_path))
+    bench, path = prof.bench.name, tmp_path / "j.sqlite"
+    now = T0 + dt.timedelta(days=30)
+    with Journal(path) as j:
+        for i in range(24):  # 20 bar a day on n2-A: a leak the demo gauge resolves
+            _read(j, bench, "n2-A" if i % 2 else "n2-1", 12 * i, 190 - 7 * i if i % 2 else 120)
+            record_idle_drops(j, prof, now)
+        j.strike_reading(9, _at(200), "misread")
+        _read(j, bench, "n2-A", 300, 25)
+        record_idle_drops(j, prof, now)
+        kept = sorted((h.supply_id, h.details) for h in j.hold_tests(bench))
+    fresh = tmp_path / "fresh.sqlite"
+    shutil.copyfile(path, fresh)
+    with Journal(fresh) as j:
+        j.db.execute("DELETE FROM marks")
+        j.db.execute("DROP TRIGGER events_immutable_delete")
+        j.db.execute("DELETE FROM hold_tests")
+        j.db.commit()
+        record_idle_drops(j, prof, now)
+        assert sorted((h.supply_id, h.details) for h in j.hold_tests(bench)) == kept
+        # and the stored drops are the current cylinder's idle pairs that count
+        assert {d.key for d in idle_drops(j, prof, "n2-A", now)} >= {json.loads(k)["idle_drop"] for sid, k in kept if sid == "n2-A"}
+    assert len(kept) >= 5
+
+
+# ----------------------------------------------------------------------------- kept in memory
+
+
+def test_a_consumption_kept_in_memory_equals_a_fresh_one_after_every_change(tmp_path, monkeypatch):
+    prof = load_profile(_two_supplies(tmp_path))
+    bench, path = prof.bench.name, tmp_path / "j.sqlite"
+    with Journal(path) as j:
+        for i in range(30):
+            _read(j, bench, "n2-A", 24 * i, 190 - 4 * i)
+            _read(j, bench, "n2-1", 24 * i, 150 - 2 * i)
+    calls: list[str] = []
+    real = orders._kept_consumption
+    monkeypatch.setattr(orders, "_kept_consumption", lambda j, p, s, m: (m is not None and calls.append(s.id)) or real(j, p, s, m))  # the app's calls
+
+    def fresh(sid: str) -> orders.Consumption | None:
+        with Journal(path, readonly=True) as r:  # another connection, nothing kept
+            return orders.consumption(r, prof, sid)
+
+    memo = Memo()
+    with Journal(path) as j, Journal(path) as other:
+        def both() -> list[orders.Consumption | None]:
+            return [orders.consumption(j, prof, sid, memo) for sid in ("n2-A", "n2-1")]
+
+        first = both()
+        assert first == [fresh("n2-A"), fresh("n2-1")] and calls == ["n2-A", "n2-1"]
+        assert both() == first and len(calls) == 2  # nothing recorded: both kept
+        _read(j, bench, "n2-A", 24 * 30, 60)  # a reading on n2-A: only n2-A again
+        second = both()
+        assert second == [fresh("n2-A"), fresh("n2-1")] and second[1] == first[1] and calls[2:] == ["n2-A"]
+        rid = _read(other, bench, "n2-1", 24 * 30, 50)  # another connection (another process) writes
+        assert both() == [fresh("n2-A"), fresh("n2-1")] and calls[3:] == ["n2-1"]
+        other.strike_reading(rid, _at(24 * 31), "misread")
+        assert both() == [fresh("n2-A"), fresh("n2-1")] == second and calls[4:] == ["n2-1"]
+        j.add_change(bench, "n2-A", _at(24 * 20 + 1), _at(24 * 20 + 1), 200e5 + AMB, "200 bar")
+        assert both() == [fresh("n2-A"), fresh("n2-1")] and calls[5:] == ["n2-A"]
+        j.start_session(bench, str(path), _at(24 * 32))
+        assert both() == [fresh("n2-A"), fresh("n2-1")] and len(calls) == 6
+    bigger = prof.model_copy(update={"supplies": [prof.supplies[0].model_copy(update={"water_volume": 0.1})]
+                                     + list(prof.supplies[1:])})
+    with Journal(path) as j:  # another volume is another input
+        assert orders.consumption(j, bigger, "n2-A", memo) == orders.consumption(j, bigger, "n2-A")
+
+
+def _figures(st: SessionState) -> tuple[object, ...]:
+    return st.plan, st._life, st.findings(), st.observed
+
+
+@pytest.mark.parametrize("step", ["nothing", "reading", "other-supply", "strike", "change", "session"])
+def test_the_apps_refresh_equals_a_fresh_open_of_the_same_file(tmp_path, step):
+    """After each kind of record, the kept state's refresh gives the plan, findings and life
+    findings a new app opened on the same file computes from nothing."""
+    prof_path = _two_supplies(tmp_path)
+    path = tmp_path / "j.sqlite"
+    now = [T0 + dt.timedelta(days=40)]
+    with Journal(path) as j:
+        bench = load_profile(prof_path).bench.name
+        for i in range(36):
+            _read(j, bench, "n2-A", 24 * i, 190 - 3 * i)
+            _read(j, bench, "n2-1", 24 * i + 1, 150 - 1 * i)
+        st = SessionState(prof_path, j, lambda: now[0])
+        st.load()
+        st.recompute()
+        now[0] += dt.timedelta(minutes=5)
+        if step == "reading":
+            st.add_reading(st.parse_reading("n2-A", "80 bar", "21 degC", "now"))
+        elif step == "other-supply":
+            _read(j, bench, "n2-1", 24 * 40, 110)
+        elif step == "strike":
+            j.strike_reading(j.latest_reading(bench, "n2-A").id, now[0].isoformat(timespec="seconds"), "misread")
+        elif step == "change":
+            st.change_cylinder(st.parse_reading("n2-A", "200 bar", "21 degC", "now"), "B-2", None)
+        elif step == "session":
+            st.start(accept_reason="test")
+            st.add_reading(st.parse_reading("n2-1", "110 bar", "21 degC", "now"))
+        st.recompute()
+        kept = _figures(st)
+    with Journal(path) as j:
+        fresh = SessionState(prof_path, j, lambda: now[0])
+        fresh.load()
+        if step == "session":
+            fresh.resume(st.session_id)
+            fresh.recompute()
+        assert _figures(fresh) == kept
