@@ -111,7 +111,7 @@ def test_a_consumption_kept_in_memory_equals_a_fresh_one_after_every_change(tmp_
             _read(j, bench, "n2-1", 24 * i, 150 - 2 * i)
     calls: list[str] = []
     real = orders._kept_consumption
-    monkeypatch.setattr(orders, "_kept_consumption", lambda j, p, s, m: (m is not None and calls.append(s.id)) or real(j, p, s, m))  # the app's calls
+    monkeypatch.setattr(orders, "_kept_consumption", lambda j, p, s, m, *a: (m is not None and calls.append(s.id)) or real(j, p, s, m, *a))
 
     def fresh(sid: str) -> orders.Consumption | None:
         with Journal(path, readonly=True) as r:  # another connection, nothing kept
@@ -182,3 +182,58 @@ def test_the_apps_refresh_equals_a_fresh_open_of_the_same_file(tmp_path, step):
             fresh.resume(st.session_id)
             fresh.recompute()
         assert _figures(fresh) == kept
+
+
+def test_a_slid_consumption_window_equals_the_newest_readings_read_afresh(tmp_path, monkeypatch):
+    """The app slides the kept window over each new reading (one interval computed); a reading
+    older than the window, a strike or a change reads it afresh. Each step equals the
+    computation on the newest readings queried from the file (nothing kept)."""
+    from benchwarden.workflows.holds import profile_gauge_spec
+
+    monkeypatch.setattr(orders, "CONSUMPTION_READINGS", 6)  # slides after six readings
+    compute, interval = orders._consumption, orders._interval
+    calls: list[int] = []
+    monkeypatch.setattr(orders, "_interval", lambda *a: calls.append(1) or interval(*a))
+    prof = load_profile(_two_supplies(tmp_path))
+    bench, path = prof.bench.name, tmp_path / "j.sqlite"
+    s = prof.supply("n2-A")
+    spec = profile_gauge_spec(s.gauge)
+
+    def fresh() -> orders.Consumption | None:
+        with Journal(path, readonly=True) as r:
+            rows = r.recent_readings(bench, "n2-A", 6)
+            changes = sorted(orders.stamp(c.at) for c in r.changes(bench, "n2-A")
+                             if rows and orders.stamp(c.at) >= orders.stamp(rows[0].at))
+            return compute(prof, s, rows, changes, spec.resolved_drop_pa if spec else None)
+
+    memo = Memo()
+    with Journal(path) as j:
+        def check() -> orders.Consumption | None:
+            calls.clear()
+            got = orders.consumption(j, prof, "n2-A", memo)
+            n = len(calls)  # the intervals the app computed (the fresh computation counts too)
+            assert got == fresh()
+            del calls[n:]
+            return got
+
+        for i in range(4):
+            _read(j, bench, "n2-A", 24 * i, 190 - 5 * i)
+        assert check() is not None and len(calls) == 3
+        for i in range(4, 12):  # each new reading: one interval, the window slid past six
+            _read(j, bench, "n2-A", 24 * i, 190 - 5 * i - (3 if i == 7 else 0))
+            _read(j, bench, "n2-1", 24 * i, 150)
+            check()
+            assert len(calls) == 1
+        _read(j, bench, "n2-A", 24 * 12, 150)  # a rise: its interval does not count
+        check()
+        _read(j, bench, "n2-A", 24 * 11.5, 140)  # older than the newest: read afresh
+        check()
+        assert len(calls) == 5
+        j.strike_reading(j.latest_reading(bench, "n2-A").id, _at(24 * 13), "misread")
+        check()
+        j.add_change(bench, "n2-A", _at(24 * 10 + 1), _at(24 * 10 + 1), 200e5 + AMB, "200 bar")
+        check()
+        for i in range(14, 17):
+            _read(j, bench, "n2-A", 24 * i, 200 - 6 * (i - 14))
+            check()
+            assert len(calls) == 1

@@ -235,6 +235,9 @@ class Memo:
         #: :func:`benchwarden.workflows.kept.kept_figure`); one entry per supply and figure
         self.kept: dict[tuple[str, str, str, str], tuple[Any, Any]] = {}
         self.seen: dict[tuple[str, str], int] = {}
+        #: what a figure was last computed from, per (journal, bench, supply, what), for a figure
+        #: that itself reads what changed since (the consumption's window of readings)
+        self.windows: dict[tuple[str, str, str, str], tuple[Any, Any]] = {}
 
     def get(self, key: tuple[Any, ...], fn: Callable[..., Any], *args: Any, **kw: Any) -> Any:
         if key not in self.values:

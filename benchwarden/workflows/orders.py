@@ -68,22 +68,70 @@ def consumption(journal: Journal | None, prof: Profile, supply_id: str, memo: Me
     if journal is None:
         return None
     s = prof.supply(supply_id)
-    return kept_figure(memo, journal, prof.bench.name, supply_id, "consumption",
-                       (_METHOD, s.gas.key, s.water_volume, s.tare, s.gauge),
-                       lambda: _kept_consumption(journal, prof, s, memo))
+    inputs = (_METHOD, s.gas.key, s.water_volume, s.tare, s.gauge)
+    return kept_figure(memo, journal, prof.bench.name, supply_id, "consumption", inputs,
+                       lambda: _kept_consumption(journal, prof, s, memo, inputs))
 
 
-def _kept_consumption(journal: Journal, prof: Profile, s: Supply, memo: Memo | None) -> Consumption | None:
-    """The consumption kept in the journal with its key, or computed and kept there."""
-    supply_id = s.id
-    rows = journal.recent_readings(prof.bench.name, supply_id, CONSUMPTION_READINGS)
+@dataclass
+class _Window:
+    """The readings a supply's consumption was last computed from, kept in the app's memo: a new
+    reading newer than all of them slides it (only the new rows are read, and only their
+    intervals computed)."""
+
+    rows: list[ReadingRow]
+    changes: list[tuple[dt.datetime, str]]
+    #: the bench's newest event and the journal's newest reading id when it was read
+    seq: int | None
+    newest_id: int
+    #: each interval's result, by the ids of its two readings
+    pairs: dict[tuple[int, int], tuple[float, float, float | None] | None]
+
+
+def _read_window(journal: Journal, prof: Profile, s: Supply) -> _Window:
+    """The supply's newest :data:`CONSUMPTION_READINGS` readings and the changes among them."""
+    seq, newest = journal.last_event_seq(prof.bench.name), journal.last_reading_id()  # read first
+    rows = journal.recent_readings(prof.bench.name, s.id, CONSUMPTION_READINGS)
     first = stamp(rows[0].at) if rows else None
     # the changes among the readings (read from two days before the first: times with other
     # offsets than the first reading's still sort after that in text)
-    near = [] if first is None else journal.changes_from(prof.bench.name, supply_id,
+    near = [] if first is None else journal.changes_from(prof.bench.name, s.id,
                                                          (first.date() - dt.timedelta(days=2)).isoformat())
     changes = sorted((stamp(c.at), c.at) for c in near)
     changes = [c for c in changes if first is not None and c[0] >= first]  # only those among the readings
+    return _Window(rows, changes, seq, max([newest] + [r.id for r in rows]), {})
+
+
+def _window(journal: Journal, prof: Profile, s: Supply, memo: Memo | None, inputs: object) -> _Window:
+    """The window read afresh, or the kept one slid over the readings written since when no
+    strike or cylinder change of the supply was recorded and each new reading is newer (time,
+    id) than the window's newest: the same rows the newest-first query gives."""
+    where = (str(journal.path), prof.bench.name, s.id, "consumption-window")
+    kept = memo.windows.get(where) if memo is not None else None
+    old = kept[1] if kept is not None and kept[0] == inputs else None
+    win = None
+    if old is not None and old.rows and old.seq is not None and not journal.event_supplies(
+            prof.bench.name, old.seq, ("strike", "cylinder-change")) & {s.id, None}:
+        seq, newest = journal.last_event_seq(prof.bench.name), journal.last_reading_id()  # read first
+        new = journal.readings_after(prof.bench.name, s.id, old.newest_id)
+        if all(not r.struck and (r.at, r.id) > (old.rows[-1].at, old.rows[-1].id) for r in new):
+            rows = (old.rows + sorted(new, key=lambda r: (r.at, r.id)))[-CONSUMPTION_READINGS:]
+            first = stamp(rows[0].at)
+            win = _Window(rows, [c for c in old.changes if c[0] >= first], seq,
+                          max([newest, old.newest_id] + [r.id for r in new]), old.pairs)
+    if win is None:
+        win = _read_window(journal, prof, s)
+    if memo is not None:
+        memo.windows[where] = (inputs, win)
+    return win
+
+
+def _kept_consumption(journal: Journal, prof: Profile, s: Supply, memo: Memo | None,
+                      inputs: object = None) -> Consumption | None:
+    """The consumption kept in the journal with its key, or computed and kept there."""
+    supply_id = s.id
+    win = _window(journal, prof, s, memo, inputs)
+    rows, changes = win.rows, win.changes
     change_at = [at for _, at in changes]
     key = hashlib.sha256(repr((_METHOD, s.gas.key, s.water_volume, s.tare, change_at, s.gauge,
                                [(r.id, r.at, r.pressure_abs_pa, r.temperature_k, r.weight_kg) for r in rows])
@@ -93,7 +141,11 @@ def _kept_consumption(journal: Journal, prof: Profile, s: Supply, memo: Memo | N
         value = json.loads(kept[1])
         return None if value is None else Consumption(supply_id, *value)
     spec = profile_gauge_spec(s.gauge)
-    cons = _consumption(prof, s, rows, [t for t, _ in changes], spec.resolved_drop_pa if spec else None, memo)
+    pairs = {(a.id, b.id): win.pairs[(a.id, b.id)] for a, b in zip(rows, rows[1:], strict=False)
+             if (a.id, b.id) in win.pairs}
+    cons = _consumption(prof, s, rows, [t for t, _ in changes], spec.resolved_drop_pa if spec else None, memo,
+                        pairs)
+    win.pairs = pairs
     try:
         journal.keep_derived(prof.bench.name, supply_id, "consumption", key,
                              json.dumps(None if cons is None else list(astuple(cons))[1:]))
@@ -102,30 +154,54 @@ def _kept_consumption(journal: Journal, prof: Profile, s: Supply, memo: Memo | N
     return cons
 
 
+def _interval(a: ReadingRow, b: ReadingRow, ma: float | None, mb: float | None,
+              changes: list[dt.datetime]) -> tuple[float, float, float | None] | None:
+    """Two consecutive readings' interval: (mass rate [kg/s], its length [s], the pressure drop
+    [Pa], None when read by weight), or None when it does not count (no time between, a change
+    between, a mass missing or risen). Only the changes after ``a`` matter."""
+    ta, tb = stamp(a.at), stamp(b.at)
+    k = bisect.bisect_right(changes, ta)  # the first change after ta: does it fall before tb?
+    if tb <= ta or (k < len(changes) and changes[k] <= tb):
+        return None
+    if ma is None or mb is None or mb > ma:
+        return None
+    dt_s = (tb - ta).total_seconds()
+    pa, pb = a.pressure_abs_pa, b.pressure_abs_pa
+    by_weight = a.weight_kg is not None or b.weight_kg is not None or pa is None or pb is None
+    return (ma - mb) / dt_s, dt_s, None if by_weight or pa is None or pb is None else pa - pb
+
+
 def _consumption(prof: Profile, s: Supply, rows: list[ReadingRow], changes: list[dt.datetime],
-                 resolved_drop_pa: float | None = None, memo: Memo | None = None) -> Consumption | None:
+                 resolved_drop_pa: float | None = None, memo: Memo | None = None,
+                 pairs: dict[tuple[int, int], tuple[float, float, float | None] | None] | None = None,
+                 ) -> Consumption | None:
     """The time-weighted consumption of the usable intervals; None when there is none, or when
     the pressure the gauge read falling over them all is no more than ``resolved_drop_pa`` (a
-    fall the gauge cannot tell from its own error is no consumption: no order date from it)."""
-    masses = [_mass_of(prof, s, r, memo) for r in rows]
-    times = [stamp(r.at) for r in rows]
+    fall the gauge cannot tell from its own error is no consumption: no order date from it).
+    ``pairs``: intervals already computed (by reading ids), used and completed."""
+    masses: dict[int, float | None] = {}
+
+    def mass(r: ReadingRow) -> float | None:
+        if r.id not in masses:
+            masses[r.id] = _mass_of(prof, s, r, memo)
+        return masses[r.id]
+
     rates: list[tuple[float, float]] = []  # (kg/s, seconds)
     drop_pa, by_weight = 0.0, False
-    for i in range(1, len(rows)):
-        ta, tb = times[i - 1], times[i]
-        k = bisect.bisect_right(changes, ta)  # the first change after ta: does it fall before tb?
-        if tb <= ta or (k < len(changes) and changes[k] <= tb):
+    for a, b in zip(rows, rows[1:], strict=False):
+        if pairs is not None and (a.id, b.id) in pairs:
+            iv = pairs[(a.id, b.id)]
+        else:
+            iv = _interval(a, b, mass(a), mass(b), changes)
+            if pairs is not None:
+                pairs[(a.id, b.id)] = iv
+        if iv is None:
             continue
-        ma, mb = masses[i - 1], masses[i]
-        if ma is None or mb is None or mb > ma:
-            continue
-        dt_s = (tb - ta).total_seconds()
-        rates.append(((ma - mb) / dt_s, dt_s))
-        pa, pb = rows[i - 1].pressure_abs_pa, rows[i].pressure_abs_pa
-        if rows[i - 1].weight_kg is not None or rows[i].weight_kg is not None or pa is None or pb is None:
+        rates.append((iv[0], iv[1]))
+        if iv[2] is None:
             by_weight = True
         else:
-            drop_pa += pa - pb
+            drop_pa += iv[2]
     if not rates:
         return None
     if resolved_drop_pa is not None and not by_weight and drop_pa <= resolved_drop_pa:
