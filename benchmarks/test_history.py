@@ -189,7 +189,7 @@ def _app_costs(prof: Path, journal: Path, start: dt.datetime) -> tuple[float, fl
     with Journal(journal) as j:
         st = SessionState(prof, j, clock)
         st.load()
-        warm = _best(lambda: _timed(lambda: _app_refresh(st)), n=5)
+        warm = _best(lambda: _timed(lambda: _app_refresh(st)), n=20)
         assert st.profile is not None
         gauge = first_readings(st.profile, j)["n2-A"] - st.profile.ambient_pa
 
@@ -202,7 +202,7 @@ def _app_costs(prof: Path, journal: Path, start: dt.datetime) -> tuple[float, fl
             st.add_reading(r)
             _app_refresh(st)
 
-        added = _best(lambda: _timed(reading), n=5)
+        added = _best(lambda: _timed(reading), n=10)
     return first, warm, added
 
 
@@ -227,7 +227,7 @@ def teardown_module(module):
         for name, e, f, p, pe, pf in RESULTS:
             print(f"{name:<32}{e:>16.3f}s{f:>7.3f}s{pe:>14.2f}s{pf:>7.2f}s{pf / pe:>7.2f}×{p:>13.4f}s")
     if REFRESH:
-        print("\n\nthe app's refresh (in-process; first open best of 3, the others best of 5), empty journal / full")
+        print("\n\nthe app's refresh (in-process; first open best of 3, warm refresh best of 20, a reading best of 10), empty journal / full")
         print(f"{'journal':<32}{'first open':>22}{'warm refresh':>24}{'a reading, then refresh':>26}")
         for name, e, f in REFRESH:
             print(f"{name:<32}" + "".join(f"{a * 1e3:>8.1f}/{b * 1e3:>6.1f} ms{b / a:>5.2f}×" for a, b in zip(e, f, strict=True)))

@@ -237,3 +237,49 @@ def test_a_slid_consumption_window_equals_the_newest_readings_read_afresh(tmp_pa
             _read(j, bench, "n2-A", 24 * i, 200 - 6 * (i - 14))
             check()
             assert len(calls) == 1
+
+
+def test_a_consumption_kept_in_the_journal_is_taken_without_its_readings_until_they_change(tmp_path, monkeypatch):
+    """A new process (no memo) takes the journal's kept consumption without reading the window
+    while the events since it was kept name no reading, strike or change of the supply."""
+    prof = load_profile(_two_supplies(tmp_path))
+    bench, path = prof.bench.name, tmp_path / "j.sqlite"
+    with Journal(path) as j:
+        for i in range(20):
+            _read(j, bench, "n2-A", 24 * i, 190 - 4 * i)
+    reads: list[str] = []
+    real = orders._read_window
+    monkeypatch.setattr(orders, "_read_window", lambda j, p, s: reads.append(s.id) or real(j, p, s))
+
+    def fresh() -> orders.Consumption | None:
+        with Journal(path, readonly=True) as r:
+            rows = r.recent_readings(bench, "n2-A", orders.CONSUMPTION_READINGS)
+            changes = sorted(orders.stamp(c.at) for c in r.changes(bench, "n2-A")
+                             if orders.stamp(c.at) >= orders.stamp(rows[0].at))
+            return orders._consumption(prof, prof.supply("n2-A"), rows, changes, 0.0)
+
+    def status(p=prof) -> orders.Consumption | None:
+        with Journal(path) as j:  # as a new process opens it
+            return orders.consumption(j, p, "n2-A")
+
+    first = status()
+    assert first == fresh() and reads == ["n2-A"]
+    assert status() == first and reads == ["n2-A"]  # taken as kept: no reading read
+    with Journal(path) as j:
+        _read(j, bench, "n2-1", 24 * 30, 100)  # another supply's reading, a session: still kept
+        j.start_session(bench, None, _at(24 * 31))
+    assert status() == first and len(reads) == 1
+    with Journal(path) as j:
+        rid = _read(j, bench, "n2-A", 24 * 30, 90)
+    second = status()
+    assert second == fresh() != first and len(reads) == 2
+    assert status() == second and len(reads) == 2
+    with Journal(path) as j:
+        j.strike_reading(rid, _at(24 * 32), "misread")
+    assert status() == fresh() == first and len(reads) == 3
+    with Journal(path) as j:
+        j.add_change(bench, "n2-A", _at(24 * 10 + 1), _at(24 * 10 + 1), 200e5 + AMB, "200 bar")
+    assert status() == fresh() != first and len(reads) == 4
+    bigger = prof.model_copy(update={"supplies": [prof.supplies[0].model_copy(update={"water_volume": 0.1})]
+                                     + list(prof.supplies[1:])})
+    assert status(bigger) != status() and len(reads) == 6  # each profile reads it once (one kept per supply)

@@ -81,11 +81,11 @@ def _new_drops(journal: Journal, prof: Profile, supply_id: str, now: dt.datetime
     history). The first scan of a supply reads its current cylinder once."""
     bench = prof.bench.name
     mark = journal.mark(bench, supply_id, "idle-drops")
+    newest = journal.last_reading_id()  # read first: a reading written meanwhile is after it
     if mark is None:
         rows = readings_since_change(journal, bench, supply_id, include_struck=True)
-        return idle_drops(journal, prof, supply_id, now), max((r.id for r in rows), default=0)
+        return idle_drops(journal, prof, supply_id, now), max([newest] + [r.id for r in rows])
     last_id, scanned_at = mark
-    newest = journal.last_reading_id()  # read first: a reading written meanwhile is after it
     change = current_change(journal, bench, supply_id)
     since = change.at if change is not None else ""
     fresh = journal.readings_after(bench, supply_id, last_id)

@@ -15,7 +15,7 @@ from benchwarden.storage.journal import Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply
 from benchwarden.workflows.cylinder import stamp
 from benchwarden.workflows.holds import profile_gauge_spec
-from benchwarden.workflows.kept import kept_figure
+from benchwarden.workflows.kept import READING_KINDS, kept_figure
 from benchwarden.workflows.model import Memo, memo_get
 
 __all__ = ["Consumption", "OrderBy", "consumption", "order_by", "CONSUMPTION_READINGS"]
@@ -126,32 +126,61 @@ def _window(journal: Journal, prof: Profile, s: Supply, memo: Memo | None, input
     return win
 
 
+def _value(supply_id: str, text: str) -> Consumption | None:
+    value = json.loads(text)
+    return None if value is None else Consumption(supply_id, *value)
+
+
+def _unchanged(journal: Journal, bench: str, supply_id: str, inputs_key: str) -> tuple[bool, Consumption | None]:
+    """(True, the consumption kept in the journal) when it was kept from the same inputs and no
+    reading, strike or cylinder change of the supply was recorded since (its key ends with the
+    bench's newest event when its readings were read): no reading is read. Else (False, None)."""
+    kept = journal.derived(bench, supply_id, "consumption")
+    if kept is None or kept[0].count("@") != 2:
+        return False, None
+    _, seq, inputs = kept[0].split("@")
+    if inputs != inputs_key or journal.last_event_seq(bench) is None or journal.event_supplies(
+            bench, int(seq), READING_KINDS) & {supply_id, None}:
+        return False, None
+    return True, _value(supply_id, kept[1])
+
+
 def _kept_consumption(journal: Journal, prof: Profile, s: Supply, memo: Memo | None,
-                      inputs: object = None) -> Consumption | None:
+                      inputs: object) -> Consumption | None:
     """The consumption kept in the journal with its key, or computed and kept there."""
     supply_id = s.id
+    inputs_key = hashlib.sha256(repr(inputs).encode()).hexdigest()[:16]
+    if memo is None or (str(journal.path), prof.bench.name, s.id, "consumption-window") not in memo.windows:
+        same, cons = _unchanged(journal, prof.bench.name, supply_id, inputs_key)
+        if same:
+            return cons
     win = _window(journal, prof, s, memo, inputs)
     rows, changes = win.rows, win.changes
     change_at = [at for _, at in changes]
     key = hashlib.sha256(repr((_METHOD, s.gas.key, s.water_volume, s.tare, change_at, s.gauge,
                                [(r.id, r.at, r.pressure_abs_pa, r.temperature_k, r.weight_kg) for r in rows])
                               ).encode()).hexdigest()
+    seq_key = key if win.seq is None else f"{key}@{win.seq}@{inputs_key}"
     kept = journal.derived(prof.bench.name, supply_id, "consumption")
-    if kept is not None and kept[0] == key:
-        value = json.loads(kept[1])
-        return None if value is None else Consumption(supply_id, *value)
+    if kept is not None and kept[0].split("@")[0] == key:
+        if kept[0] != seq_key:
+            _keep(journal, prof.bench.name, supply_id, seq_key, kept[1])  # the same figure, as of now
+        return _value(supply_id, kept[1])
     spec = profile_gauge_spec(s.gauge)
     pairs = {(a.id, b.id): win.pairs[(a.id, b.id)] for a, b in zip(rows, rows[1:], strict=False)
              if (a.id, b.id) in win.pairs}
     cons = _consumption(prof, s, rows, [t for t, _ in changes], spec.resolved_drop_pa if spec else None, memo,
                         pairs)
     win.pairs = pairs
+    _keep(journal, prof.bench.name, supply_id, seq_key, json.dumps(None if cons is None else list(astuple(cons))[1:]))
+    return cons
+
+
+def _keep(journal: Journal, bench: str, supply_id: str, key: str, value: str) -> None:
     try:
-        journal.keep_derived(prof.bench.name, supply_id, "consumption", key,
-                             json.dumps(None if cons is None else list(astuple(cons))[1:]))
+        journal.keep_derived(bench, supply_id, "consumption", key, value)
     except JournalError:
         pass  # a kept figure only saves work
-    return cons
 
 
 def _interval(a: ReadingRow, b: ReadingRow, ma: float | None, mb: float | None,
