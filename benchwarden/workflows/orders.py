@@ -167,11 +167,10 @@ def _kept_consumption(journal: Journal, prof: Profile, s: Supply, memo: Memo | N
             _keep(journal, prof.bench.name, supply_id, seq_key, kept[1])  # the same figure, as of now
         return _value(supply_id, kept[1])
     spec = profile_gauge_spec(s.gauge)
-    pairs = {(a.id, b.id): win.pairs[(a.id, b.id)] for a, b in zip(rows, rows[1:], strict=False)
-             if (a.id, b.id) in win.pairs}
+    if len(win.pairs) > 2 * len(rows):  # those of readings slid out of the window go now and then
+        win.pairs = {}
     cons = _consumption(prof, s, rows, [t for t, _ in changes], spec.resolved_drop_pa if spec else None, memo,
-                        pairs)
-    win.pairs = pairs
+                        win.pairs)
     _keep(journal, prof.bench.name, supply_id, seq_key, json.dumps(None if cons is None else list(astuple(cons))[1:]))
     return cons
 
