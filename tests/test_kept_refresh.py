@@ -283,3 +283,49 @@ def test_a_consumption_kept_in_the_journal_is_taken_without_its_readings_until_t
     bigger = prof.model_copy(update={"supplies": [prof.supplies[0].model_copy(update={"water_volume": 0.1})]
                                      + list(prof.supplies[1:])})
     assert status(bigger) != status() and len(reads) == 6  # each profile reads it once (one kept per supply)
+
+
+def test_the_judged_hold_tests_kept_in_memory_equal_a_fresh_judgement(tmp_path, monkeypatch):
+    """Kept until a hold test, a strike or a change is recorded on the bench; readings, sessions
+    and alarms leave them as they were."""
+    from benchwarden.workflows import holds
+
+    prof = load_profile(_two_supplies(tmp_path))
+    bench, path = prof.bench.name, tmp_path / "j.sqlite"
+    calls: list[int] = []
+    real = holds._judged_hold_tests
+    monkeypatch.setattr(holds, "_judged_hold_tests", lambda j, b: calls.append(1) or real(j, b))
+    memo = Memo()
+
+    def hold(j: Journal, sid: str, hours: float, details: str = "", kind: str | None = None) -> int:
+        return j.add_hold_test(_at(hours), bench, sid, "nitrogen", 0.05, 3600.0, "leak", 40.0, 5.0, details, kind)
+
+    with Journal(path) as j, Journal(path) as other:
+        def check(n: int) -> None:
+            calls.clear()
+            kept = holds.judged_hold_tests(j, bench, memo)
+            assert len(calls) == n
+            assert kept == real(j, bench)  # the same judgement afresh
+            assert holds.standing_leaks(j, bench, memo) == holds.standing_leaks(j, bench)
+            now = T0 + dt.timedelta(days=20)
+            assert holds.last_hold_test(j, bench, now, memo) == holds.last_hold_test(j, bench, now)
+
+        a = _read(j, bench, "n2-A", 1, 150)
+        b = _read(j, bench, "n2-A", 30, 140)
+        check(1)
+        hold(other, "n2-A", 30, f'{{"idle_drop": "{a}-{b}"}}', "idle-drop")  # another connection
+        check(1)
+        check(0)
+        _read(j, bench, "n2-1", 40, 120)
+        j.start_session(bench, None, _at(41))
+        j.add_alarm(bench, "n2-1", "reserve-close", _at(42), "x")
+        check(0)
+        j.strike_reading(b, _at(43), "misread")  # the idle-drop test is withdrawn
+        check(1)
+        assert holds.judged_hold_tests(j, bench, memo)[0].withdrawn
+        hold(j, "n2-1", 44)
+        check(1)
+        j.add_change(bench, "n2-1", _at(45), _at(45), 200e5 + AMB, "200 bar")  # n2-1's test: an earlier cylinder
+        check(1)
+        assert holds.judged_hold_tests(j, bench, memo)[1].earlier_cylinder
+        assert holds.standing_leaks(j, bench, memo) == {}

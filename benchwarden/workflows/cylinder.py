@@ -190,10 +190,34 @@ def _latest(journal: Journal, bench: str, supply_id: str) -> tuple[ChangeRow | N
 def journal_profile(prof: Profile, journal: Journal | None, memo: Memo | None = None) -> Profile:
     """The profile with every supply's state from the journal (see module docstring). With a
     ``memo`` (the app's), each supply's latest change and readings are kept until the record of
-    that supply changes (:func:`benchwarden.workflows.kept.kept_figure`); live samples are read
-    each time."""
+    that supply changes (:func:`benchwarden.workflows.kept.kept_figure`), and the profile they
+    give while none did; live samples are read each time."""
     if journal is None:
         return prof
+    bench = prof.bench.name
+    latest = [kept_figure(memo, journal, bench, s.id, "latest", None,
+                          lambda: _latest(journal, bench, s.id)) for s in prof.supplies]  # noqa: B023 - called at once
+    where = (str(journal.path), bench, "", "journal-profile")
+    hit = memo.windows.get(where) if memo is not None else None
+    if hit is not None and hit[0][0] is prof and all(a is b for a, b in zip(hit[0][1], latest, strict=True)):
+        out = hit[1]  # the same profile and the same kept rows: the same state
+    else:
+        out = prof  # each supply's change, weight and reading (each touches its own supply only)
+        for s, (change, last_p, last_w) in zip(prof.supplies, latest, strict=True):
+            if change is not None:
+                out = _apply(out, s, change.pressure_abs_pa, change.weight_kg, change.temperature_k,
+                             change.pressure_text or "")
+            if last_w is not None:
+                out = _apply(out, s, None, last_w.weight_kg, last_w.temperature_k, "")
+            if last_p is not None:
+                out = _apply(out, s, last_p.pressure_abs_pa, None, last_p.temperature_k, last_p.pressure_text)
+        if memo is not None:
+            memo.windows[where] = ((prof, latest), out)
+    for s, (change, last_p, _) in zip(prof.supplies, latest, strict=True):
+        live = latest_state(journal, out, s.id)
+        if live is not None and not (s.gas.sold_liquefied and s.gross is not None) and _newer(live, last_p, change):
+            out = _apply(out, s, live.pressure_abs_pa, None, live.temperature_k, live.text)
+    return out
     bench = prof.bench.name
     for s in prof.supplies:
         change, last_p, last_w = kept_figure(memo, journal, bench, s.id, "latest", None,

@@ -15,10 +15,13 @@ from typing import Any, TypeVar
 from benchwarden.storage.journal import Journal
 from benchwarden.workflows.model import Memo
 
-__all__ = ["READING_KINDS", "kept_figure", "is_kept", "keep"]
+__all__ = ["READING_KINDS", "HOLD_KINDS", "kept_figure", "is_kept", "keep", "kept_bench_figure"]
 
 #: The events that change what a supply's readings give.
 READING_KINDS = ("reading", "strike", "cylinder-change")
+#: The events that change how the bench's hold tests are judged (a new one, a struck reading it
+#: came from, a change that makes it an earlier cylinder's).
+HOLD_KINDS = ("hold-test", "strike", "cylinder-change")
 
 T = TypeVar("T")
 
@@ -70,4 +73,21 @@ def kept_figure(memo: Memo | None, journal: Journal, bench: str, supply_id: str,
         return memo.kept[(str(journal.path), bench, supply_id, what)][1]  # type: ignore[no-any-return]
     value = compute()
     keep(memo, journal, bench, supply_id, what, inputs, value)
+    return value
+
+
+def kept_bench_figure(memo: Memo | None, journal: Journal, bench: str, what: str, kinds: tuple[str, ...],
+                      compute: Callable[[], T]) -> T:
+    """``compute()``, or the value it gave before while no event of ``kinds`` was recorded on the
+    bench since (a figure of the whole bench; nothing is kept without a memo or events)."""
+    seq = journal.last_event_seq(bench) if memo is not None else None  # read first
+    if memo is None or seq is None:
+        return compute()
+    where = (str(journal.path), bench, "", what)
+    hit = memo.windows.get(where)
+    if hit is not None and hit[0] <= seq and (hit[0] == seq or not journal.event_supplies(bench, hit[0], kinds)):
+        memo.windows[where] = (seq, hit[1])
+        return hit[1]  # type: ignore[no-any-return]
+    value = compute()
+    memo.windows[where] = (seq, value)
     return value
