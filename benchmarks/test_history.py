@@ -42,7 +42,8 @@ def _profile(tmp: Path, supplies: int) -> Path:
 
 
 def _journal(path: Path, supplies: int, per_supply: int) -> None:
-    """Hourly readings, 200 → 20 bar with a cylinder change each time round, per supply."""
+    """Hourly readings, 200 → 20 bar with a cylinder change each time round, per supply; a hold
+    test two hours after each change, and one reading in a thousand struck out."""
     t0 = dt.datetime(2016, 12, 1, 9, 0, tzinfo=dt.UTC)
     with Journal(path) as j:
         for k in range(supplies):
@@ -58,6 +59,12 @@ def _journal(path: Path, supplies: int, per_supply: int) -> None:
             j.add_readings(rows)
             for c in changes:
                 j.add_change(BENCH, sid, c, c, 200e5 + AMB, "200 bar", None, 294.15)
+                held = (dt.datetime.fromisoformat(c) + dt.timedelta(hours=2)).isoformat(timespec="seconds")
+                j.add_hold_test(held, BENCH, sid, "nitrogen", 0.05, 7200.0, "no-leak-resolved", 0.5, 2.0,
+                                kind="two-readings")
+        ids = [r[0] for r in j.db.execute("SELECT id FROM readings ORDER BY id").fetchall()]
+        for rid in ids[500::1000]:
+            j.strike_reading(rid, "2016-12-01T09:00:00+00:00", "misread")
 
 
 def _status(profile: Path, journal: Path) -> float:

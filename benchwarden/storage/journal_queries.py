@@ -104,6 +104,13 @@ class RecordQueries:
             f"SELECT {self._CHANGE_COLUMNS} FROM changes WHERE bench = ? AND supply_id = ? AND at >= ?"
             " ORDER BY at, id", (bench, supply_id, at))]
 
+    def idle_drop_keys(self, bench: str, supply_id: str, since: str) -> set[str]:
+        """The keys (``first-last`` reading ids) of the supply's idle-drop hold tests whose time
+        text sorts at or after ``since``."""
+        return {str(k) for (k,) in self._read(
+            "SELECT json_extract(details, '$.idle_drop') FROM hold_tests WHERE bench = ? AND supply_id = ?"
+            " AND kind = 'idle-drop' AND at >= ? AND json_valid(details)", (bench, supply_id, since)) if k is not None}
+
     def last_event_seq(self, bench: str) -> int | None:
         """The sequence number of the bench's newest event (0 without any; None on a journal
         opened read-only before its events existed): it changes whenever the bench's record does."""

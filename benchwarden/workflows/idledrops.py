@@ -7,7 +7,6 @@ mark per supply says how far the readings were scanned.
 from __future__ import annotations
 
 import datetime as dt
-import json
 from dataclasses import dataclass
 
 from benchwarden.core import hold as hd
@@ -155,16 +154,12 @@ def unresolved_idle_drop(journal: Journal | None, prof: Profile, supply_id: str,
     return None if idle_drop_counts(r) else r
 
 
-def _stored_drops(journal: Journal, bench: str) -> set[str]:
-    """The keys of the idle drops already stored as hold tests."""
-    done = set()
-    for h in journal.hold_tests(bench):
-        if h.kind == "idle-drop" and h.details:
-            try:
-                done.add(json.loads(h.details).get("idle_drop"))
-            except ValueError:
-                continue
-    return done
+def _stored_drops(journal: Journal, bench: str, supply_id: str, drops: list[IdleDrop]) -> set[str]:
+    """The keys of those idle drops already stored as hold tests (a drop's test is filed at its
+    last reading's time: those from two days before the earliest drop's first reading are read,
+    so that times with other offsets still sort after it in text)."""
+    first = min(stamp(d.first.at) for d in drops)
+    return journal.idle_drop_keys(bench, supply_id, (first.date() - dt.timedelta(days=2)).isoformat())
 
 
 def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime,
@@ -176,7 +171,6 @@ def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime,
     looked at (:func:`benchwarden.workflows.kept.is_kept`)."""
     if journal is None:
         return []
-    done: set[str] | None = None  # the drops already stored, read when there is a new one
     new: list[HoldRecord] = []
     scanned_at = now.isoformat(timespec="seconds")
     for s in prof.supplies:
@@ -185,10 +179,9 @@ def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime,
         if is_kept(memo, journal, prof.bench.name, s.id, "idle-drops", None):
             continue
         drops, newest = _new_drops(journal, prof, s.id, now)
-        if drops and done is None:
-            done = _stored_drops(journal, prof.bench.name)
+        done = _stored_drops(journal, prof.bench.name, s.id, drops) if drops else set()
         for drop in drops:
-            if done is not None and drop.key in done:
+            if drop.key in done:
                 continue
             r = idle_drop_result(prof, drop)
             if not idle_drop_counts(r):
