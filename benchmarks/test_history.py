@@ -1,15 +1,18 @@
 """Cost that does not grow with history (issue 28): `status --json` on journals of 1k, 10k and
 100k readings of one supply, and 5 or 50 supplies with 10k readings each, against the same
 command on an empty journal and a plain script (SQLite latest reading per supply, one CoolProp
-call each), in one run. Printed as a table; the targets are ratios (≤ 1.3× the empty journal for
-100k readings on one supply, ≤ 2× for 50 supplies × 10k).
+call each), in one run; and the app's refresh on the same journals (the first open, a refresh
+with nothing changed, a reading recorded then the refresh), against the same on an empty journal.
+Printed as tables; the targets are ratios (≤ 1.3× the empty journal for 100k readings on one
+supply, ≤ 2× for 50 supplies × 10k). Each journal is built once per run.
 
-Run: uv run pytest benchmarks/test_history.py -s   (builds the journals first, ~1 min)
+Run: uv run pytest benchmarks/test_history.py -s -k "status_cost or refresh_cost"   (~5 min)
 """
 
 import contextlib
 import datetime as dt
 import io
+import shutil
 import sqlite3
 import time
 from pathlib import Path
@@ -24,6 +27,7 @@ DEMO = (ROOT / "profiles" / "demo-teaching-bench.toml").read_text()
 BENCH = "Demo: Larkfield teaching lab, bench 2 (N2 laser)"
 AMB = 99891.70147786745
 RESULTS: list[tuple[str, float, float, float, float, float]] = []
+REFRESH: list[tuple[str, tuple[float, float, float], tuple[float, float, float]]] = []
 
 
 def _profile(tmp: Path, supplies: int) -> Path:
@@ -38,7 +42,8 @@ def _profile(tmp: Path, supplies: int) -> Path:
 
 
 def _journal(path: Path, supplies: int, per_supply: int) -> None:
-    """Hourly readings, 200 → 20 bar with a cylinder change each time round, per supply."""
+    """Hourly readings, 200 → 20 bar with a cylinder change each time round, per supply; a hold
+    test two hours after each change, and one reading in a thousand struck out."""
     t0 = dt.datetime(2016, 12, 1, 9, 0, tzinfo=dt.UTC)
     with Journal(path) as j:
         for k in range(supplies):
@@ -54,6 +59,12 @@ def _journal(path: Path, supplies: int, per_supply: int) -> None:
             j.add_readings(rows)
             for c in changes:
                 j.add_change(BENCH, sid, c, c, 200e5 + AMB, "200 bar", None, 294.15)
+                held = (dt.datetime.fromisoformat(c) + dt.timedelta(hours=2)).isoformat(timespec="seconds")
+                j.add_hold_test(held, BENCH, sid, "nitrogen", 0.05, 7200.0, "no-leak-resolved", 0.5, 2.0,
+                                kind="two-readings")
+        ids = [r[0] for r in j.db.execute("SELECT id FROM readings ORDER BY id").fetchall()]
+        for rid in ids[500::1000]:
+            j.strike_reading(rid, "2016-12-01T09:00:00+00:00", "misread")
 
 
 def _status(profile: Path, journal: Path) -> float:
@@ -97,32 +108,138 @@ def _best(fn, n=3):
     return min(fn() for _ in range(n))
 
 
-@pytest.mark.parametrize(("supplies", "per_supply"), [(1, 1_000), (1, 10_000), (1, 100_000), (5, 10_000),
-                                                      (50, 10_000)])
-def test_status_cost_does_not_grow_with_history(tmp_path, supplies, per_supply):
+SIZES = [(1, 1_000), (1, 10_000), (1, 100_000), (5, 10_000), (50, 10_000)]
+_BUILT: dict[tuple[int, int], Path] = {}
+
+
+@pytest.fixture(scope="module")
+def built(tmp_path_factory):
+    """The journals, each built once per run and copied by each test that uses it (the status
+    test writes its kept figures, the refresh test its readings)."""
+    root = tmp_path_factory.mktemp("journals")
+
+    def copy(supplies: int, per_supply: int, to: Path) -> Path:
+        key = (supplies, per_supply)
+        if key not in _BUILT:
+            _BUILT[key] = root / f"{supplies}x{per_supply}.sqlite"
+            _journal(_BUILT[key], supplies, per_supply)
+        shutil.copyfile(_BUILT[key], to)
+        return to
+
+    return copy
+
+
+def _label(supplies: int, per_supply: int) -> str:
+    return f"{supplies} suppl{'y' if supplies == 1 else 'ies'} × {per_supply:,} readings"
+
+
+@pytest.mark.parametrize(("supplies", "per_supply"), SIZES)
+def test_status_cost_does_not_grow_with_history(tmp_path, built, supplies, per_supply):
     prof = _profile(tmp_path, supplies)
-    empty, full = tmp_path / "empty.sqlite", tmp_path / "full.sqlite"
+    empty = tmp_path / "empty.sqlite"
     _status(prof, empty)  # creates it
-    _journal(full, supplies, per_supply)
+    full = built(supplies, per_supply, tmp_path / "full.sqlite")
     _status(prof, full)   # the first call after a bulk import scans the new readings once
     t_empty = _best(lambda: _status(prof, empty))
     t_full = _best(lambda: _status(prof, full))
     t_plain = _best(lambda: _plain(full, supplies))
     p_empty = _best(lambda: _process(prof, empty))
     p_full = _best(lambda: _process(prof, full))
-    RESULTS.append((f"{supplies} suppl{'y' if supplies == 1 else 'ies'} × {per_supply:,} readings",
-                    t_empty, t_full, t_plain, p_empty, p_full))
+    RESULTS.append((_label(supplies, per_supply), t_empty, t_full, t_plain, p_empty, p_full))
     assert t_full > 0
 
 
+def _app_refresh(st) -> None:
+    """What the overview does on a refresh (benchwarden/tui/screens/overview.py): ``load_plan``
+    (the state's ``recompute``), then ``refresh_view`` (findings, the open hold tests, each
+    supply's gauge step) and its ``tick`` (the countdowns, alarms and the alarm book, the lab link)."""
+    from benchwarden.workflows.hold_runs import open_holds
+
+    st.recompute()
+    now = st.clock()
+    codes = {f.code for f in st.findings()}
+    open_holds(st.journal, st.profile)
+    for s in st.plan.supplies:
+        st.reading_step(s.id)
+        st.hours_left(s.id, now)
+    st.new_alarms(st.alarms(now, codes), now, lambda f: f.code)
+    st.poll_lab(time.monotonic())
+
+
+def _app_open(prof: Path, journal: Path, clock) -> float:
+    """The app opened on the journal: the journal's check on open, the profile and the first
+    figures (``load(plan=False)``, ``first_readings``), then the first refresh."""
+    from benchwarden.workflows.cylinder import first_readings
+    from benchwarden.workflows.session import SessionState
+
+    t = time.perf_counter()
+    with Journal(journal) as j:
+        st = SessionState(prof, j, clock)
+        st.load(plan=False)
+        assert st.profile is not None
+        first_readings(st.profile, j)
+        _app_refresh(st)
+    return time.perf_counter() - t
+
+
+def _app_costs(prof: Path, journal: Path, start: dt.datetime) -> tuple[float, float, float]:
+    """(first open, warm refresh with nothing changed, the refresh after a reading is recorded)
+    [s], best of several; each new reading is 0.1 bar below the last, a minute after it."""
+    from benchwarden.workflows.cylinder import first_readings
+    from benchwarden.workflows.session import SessionState
+
+    at = [start]
+
+    def clock() -> dt.datetime:
+        return at[0]
+
+    _app_open(prof, journal, clock)  # the first open after a bulk import scans it once (as status)
+    first = _best(lambda: _app_open(prof, journal, clock))
+    with Journal(journal) as j:
+        st = SessionState(prof, j, clock)
+        st.load()
+        warm = _best(lambda: _timed(lambda: _app_refresh(st)), n=20)
+        assert st.profile is not None
+        gauge = first_readings(st.profile, j)["n2-A"] - st.profile.ambient_pa
+
+        def reading() -> float:
+            nonlocal gauge
+            at[0] += dt.timedelta(minutes=1)
+            gauge -= 0.1e5
+            r = st.parse_reading("n2-A", f"{gauge / 1e5:.2f} bar", "21 °C", at[0].isoformat(timespec="minutes"))
+            st.questions(r)  # the app asks before it records
+            st.add_reading(r)
+            return _timed(lambda: _app_refresh(st))  # the refresh that follows (the insert is the same on both)
+
+        added = _best(reading, n=10)
+    return first, warm, added
+
+
+@pytest.mark.parametrize(("supplies", "per_supply"), SIZES)
+def test_app_refresh_cost_does_not_grow_with_history(tmp_path, built, supplies, per_supply):
+    """The app's refresh (see :func:`_app_refresh`) on the same journals as the status test, against
+    the same on an empty journal of the same profile and the same clock, in one run."""
+    prof = _profile(tmp_path, supplies)
+    full = built(supplies, per_supply, tmp_path / "full.sqlite")
+    start = dt.datetime(2016, 12, 1, 9, 0, tzinfo=dt.UTC) + dt.timedelta(hours=per_supply, minutes=5)
+    empty = _app_costs(prof, tmp_path / "empty.sqlite", start)
+    ours = _app_costs(prof, full, start)
+    REFRESH.append((_label(supplies, per_supply), empty, ours))
+    assert all(t > 0 for t in ours)
+
+
 def teardown_module(module):
-    if not RESULTS:
-        return
-    print("\n\nstatus --json, best of 3 (2-core machine); 'process' = the whole command in a new process")
-    print(f"{'journal':<32}{'in-process empty':>17}{'full':>8}{'process empty':>15}{'full':>8}{'ratio':>8}"
-          f"{'plain script':>14}")
-    for name, e, f, p, pe, pf in RESULTS:
-        print(f"{name:<32}{e:>16.3f}s{f:>7.3f}s{pe:>14.2f}s{pf:>7.2f}s{pf / pe:>7.2f}×{p:>13.4f}s")
+    if RESULTS:
+        print("\n\nstatus --json, best of 3 (2-core machine); 'process' = the whole command in a new process")
+        print(f"{'journal':<32}{'in-process empty':>17}{'full':>8}{'process empty':>15}{'full':>8}{'ratio':>8}"
+              f"{'plain script':>14}")
+        for name, e, f, p, pe, pf in RESULTS:
+            print(f"{name:<32}{e:>16.3f}s{f:>7.3f}s{pe:>14.2f}s{pf:>7.2f}s{pf / pe:>7.2f}×{p:>13.4f}s")
+    if REFRESH:
+        print("\n\nthe app's refresh (in-process; first open best of 3, warm refresh best of 20, a reading best of 10), empty journal / full")
+        print(f"{'journal':<32}{'first open':>22}{'warm refresh':>24}{'after a new reading':>26}")
+        for name, e, f in REFRESH:
+            print(f"{name:<32}" + "".join(f"{a * 1e3:>8.1f}/{b * 1e3:>6.1f} ms{b / a:>5.2f}×" for a, b in zip(e, f, strict=True)))
 
 
 def test_premix_warm_refresh(tmp_path):

@@ -11,7 +11,13 @@ from collections.abc import Callable
 from typing import Any
 
 from benchwarden.storage.events import Event
-from benchwarden.storage.journal_rows import AcceptedStop, HoldStartRow, PurgeRow, ReadingRow
+from benchwarden.storage.journal_rows import (
+    AcceptedStop,
+    ChangeRow,
+    HoldStartRow,
+    PurgeRow,
+    ReadingRow,
+)
 
 __all__ = ["RecordQueries"]
 
@@ -72,10 +78,54 @@ class RecordQueries:
         return [ReadingRow(*r) for r in reversed(rows)]
 
     def readings_after(self, bench: str, supply_id: str, reading_id: int) -> list[ReadingRow]:
-        """Readings of the supply written after reading ``reading_id`` (by id), struck ones included."""
+        """Readings of the supply written after reading ``reading_id`` (by id), struck ones included.
+        Read by id range (the ``+`` keeps the bench and supply index out of the plan): the cost is
+        that of the readings written since, not of the supply's history."""
         return [ReadingRow(*r) for r in self._read(
-            f"SELECT {self._READING_COLUMNS} FROM readings WHERE bench = ? AND supply_id = ? AND id > ? ORDER BY id",
-            (bench, supply_id, reading_id))]
+            f"SELECT {self._READING_COLUMNS} FROM readings WHERE id > ? AND +bench = ? AND +supply_id = ? ORDER BY id",
+            (reading_id, bench, supply_id))]
+
+    def last_reading_id(self) -> int:
+        """The newest reading id in the journal, any bench or supply (0 without readings)."""
+        return int(self._read("SELECT COALESCE(MAX(id), 0) FROM readings")[0][0])
+
+    _CHANGE_COLUMNS = ("id, bench, supply_id, at, pressure_abs_pa, pressure_text, weight_kg, temperature_k, label,"
+                       " retest_due")
+
+    def latest_change(self, bench: str, supply_id: str) -> ChangeRow | None:
+        """The supply's latest cylinder change (the last of ``changes(bench, supply_id)``), or None."""
+        rows = self._read(f"SELECT {self._CHANGE_COLUMNS} FROM changes WHERE bench = ? AND supply_id = ?"
+                          " ORDER BY at DESC, id DESC LIMIT 1", (bench, supply_id))
+        return ChangeRow(*rows[0]) if rows else None
+
+    def changes_from(self, bench: str, supply_id: str, at: str) -> list[ChangeRow]:
+        """The supply's cylinder changes whose time text sorts at or after ``at``, oldest first."""
+        return [ChangeRow(*r) for r in self._read(
+            f"SELECT {self._CHANGE_COLUMNS} FROM changes WHERE bench = ? AND supply_id = ? AND at >= ?"
+            " ORDER BY at, id", (bench, supply_id, at))]
+
+    def idle_drop_keys(self, bench: str, supply_id: str, since: str) -> set[str]:
+        """The keys (``first-last`` reading ids) of the supply's idle-drop hold tests whose time
+        text sorts at or after ``since``."""
+        return {str(k) for (k,) in self._read(
+            "SELECT json_extract(details, '$.idle_drop') FROM hold_tests WHERE bench = ? AND supply_id = ?"
+            " AND kind = 'idle-drop' AND at >= ? AND json_valid(details)", (bench, supply_id, since)) if k is not None}
+
+    def last_event_seq(self, bench: str) -> int | None:
+        """The sequence number of the bench's newest event (0 without any; None on a journal
+        opened read-only before its events existed): it changes whenever the bench's record does."""
+        if not self._read("SELECT 1 FROM sqlite_master WHERE name = 'events'"):
+            return None
+        rows = self._read("SELECT seq FROM events WHERE bench = ? ORDER BY seq DESC LIMIT 1", (bench,))
+        return int(rows[0][0]) if rows else 0
+
+    def event_supplies(self, bench: str, after_seq: int, kinds: tuple[str, ...]) -> set[str | None]:
+        """The supplies named by the bench's events of ``kinds`` after ``after_seq`` (None for an
+        event that names none)."""
+        marks = ", ".join("?" * len(kinds))
+        return {r[0] for r in self._read(
+            f"SELECT DISTINCT json_extract(payload, '$.supply_id') FROM events WHERE bench = ? AND seq > ?"
+            f" AND kind IN ({marks})", (bench, after_seq, *kinds))}
 
     def neighbour_reading(self, bench: str, supply_id: str, at: str, reading_id: int, after: bool) -> ReadingRow | None:
         """The pressure reading (not struck out) just before or just after (``at``, ``reading_id``)."""

@@ -102,7 +102,7 @@ def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.dateti
         except BenchwardenError:
             reserve_kg = 0.0
         full_usable = max(0.0, full_mass(prof, s, memo) - reserve_kg)
-        cons = consumption(journal, prof, sp.id)
+        cons = consumption(journal, prof, sp.id, memo)
         if sp.leak_sccm > 0:  # a found leak is consumption too (the readings may predate it)
             leak_week = kg_s_from_sccm(s.gas, sp.leak_sccm) * 7 * SECONDS_PER_DAY
             cons = (Consumption(sp.id, leak_week, 0.0, 0, 0.0) if cons is None
@@ -111,13 +111,14 @@ def orders_of(prof: Profile, plan: Plan, journal: Journal | None, now: dt.dateti
     return out
 
 
-def journal_state(prof: Profile, journal: Journal | None, now: dt.datetime) -> Profile:
+def journal_state(prof: Profile, journal: Journal | None, now: dt.datetime, memo: Memo | None = None) -> Profile:
     """The profile as the journal records it, after storing any new idle-drop hold tests (a
-    journal that cannot be written still gives its state)."""
-    jprof = journal_profile(prof, journal)
+    journal that cannot be written still gives its state); ``memo``: the app's, which keeps
+    what each supply's record gives until it changes."""
+    jprof = journal_profile(prof, journal, memo)
     if journal is not None:
         try:
-            record_idle_drops(journal, jprof, now)
+            record_idle_drops(journal, jprof, now, memo)
         except JournalError:
             pass
     return jprof

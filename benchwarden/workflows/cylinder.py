@@ -32,9 +32,11 @@ from benchwarden.units.constants import BAR_PA
 from benchwarden.units.limits import EARLIEST_RECORD, check_quantity_text, within_dates
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows.holds import profile_gauge_spec, reading_step_pa
+from benchwarden.workflows.kept import kept_figure
 
 if TYPE_CHECKING:  # the profile's models load with the plan: the first frame needs only its view
     from benchwarden.storage.profile import Profile, Supply
+    from benchwarden.workflows.model import Memo
 
 __all__ = ["stamp", "Entry", "Question", "current_change", "readings_since_change", "last_reading", "journal_profile",
            "check_reading", "check_limits", "questions_after", "record_reading", "record_change", "parse_at",
@@ -108,8 +110,7 @@ def current_change(journal: Journal | None, bench: str, supply_id: str) -> Chang
     """The latest cylinder change of the supply, or None (still the profile's first fill)."""
     if journal is None:
         return None
-    rows = journal.changes(bench, supply_id)
-    return rows[-1] if rows else None
+    return journal.latest_change(bench, supply_id)
 
 
 def readings_since_change(journal: Journal | None, bench: str, supply_id: str,
@@ -189,6 +190,9 @@ def _latest_sample(journal: Journal | None, bench: str, supply_id: str,
 
 
 
+Latest = tuple[ChangeRow | None, ReadingRow | None, ReadingRow | None]
+
+
 @dataclass(frozen=True)
 class Recorded:
     """What the journal records of a supply's current cylinder: its change (fill), the latest
@@ -201,31 +205,61 @@ class Recorded:
     live: LatestSample | None
 
 
-def recorded(journal: Journal, bench: str, supply_id: str) -> Recorded:
+def _latest(journal: Journal, bench: str, supply_id: str) -> Latest:
+    """The supply's latest cylinder change, and its latest pressure and weight readings since."""
     change = current_change(journal, bench, supply_id)
     since = change.at if change is not None else None
-    last_p = journal.latest_reading(bench, supply_id, since, "pressure")
-    last_w = journal.latest_reading(bench, supply_id, since, "weight")
+    return (change, journal.latest_reading(bench, supply_id, since, "pressure"),
+            journal.latest_reading(bench, supply_id, since, "weight"))
+
+
+def _kept_latest(memo: Memo | None, journal: Journal, bench: str, supply_id: str) -> Latest:
+    """:func:`_latest`, kept in the app's ``memo`` until the record of that supply changes
+    (:func:`benchwarden.workflows.kept.kept_figure`)."""
+    return kept_figure(memo, journal, bench, supply_id, "latest", None, lambda: _latest(journal, bench, supply_id))
+
+
+def _with_live(journal: Journal, bench: str, supply_id: str, latest: Latest) -> Recorded:
+    """The supply's records with its live sample when that is newer (read each time)."""
+    change, last_p, last_w = latest
     live = _latest_sample(journal, bench, supply_id)
     return Recorded(change, last_p, last_w, live if live is not None and _newer(live, last_p, change) else None)
 
 
-def journal_profile(prof: Profile, journal: Journal | None) -> Profile:
-    """The profile with every supply's state from the journal (see module docstring)."""
+def recorded(journal: Journal, bench: str, supply_id: str, memo: Memo | None = None) -> Recorded:
+    return _with_live(journal, bench, supply_id, _kept_latest(memo, journal, bench, supply_id))
+
+
+def journal_profile(prof: Profile, journal: Journal | None, memo: Memo | None = None) -> Profile:
+    """The profile with every supply's state from the journal (see module docstring). With a
+    ``memo`` (the app's), each supply's latest change and readings are kept until the record of
+    that supply changes, and the profile they give while none did; live samples are read each
+    time."""
     if journal is None:
         return prof
-    for s in prof.supplies:
-        r = recorded(journal, prof.bench.name, s.id)
-        if r.change is not None:
-            prof = _apply(prof, s, r.change.pressure_abs_pa, r.change.weight_kg, r.change.temperature_k,
-                          r.change.pressure_text or "")
-        if r.last_w is not None:
-            prof = _apply(prof, s, None, r.last_w.weight_kg, r.last_w.temperature_k, "")
-        if r.last_p is not None:
-            prof = _apply(prof, s, r.last_p.pressure_abs_pa, None, r.last_p.temperature_k, r.last_p.pressure_text)
+    bench = prof.bench.name
+    latest = [_kept_latest(memo, journal, bench, s.id) for s in prof.supplies]
+    where = (str(journal.path), bench, "", "journal-profile")
+    hit = memo.windows.get(where) if memo is not None else None
+    if hit is not None and hit[0][0] is prof and all(a is b for a, b in zip(hit[0][1], latest, strict=True)):
+        out = hit[1]  # the same profile and the same kept rows: the same state
+    else:
+        out = prof  # each supply's change, weight and reading (each touches its own supply only)
+        for s, (change, last_p, last_w) in zip(prof.supplies, latest, strict=True):
+            if change is not None:
+                out = _apply(out, s, change.pressure_abs_pa, change.weight_kg, change.temperature_k,
+                             change.pressure_text or "")
+            if last_w is not None:
+                out = _apply(out, s, None, last_w.weight_kg, last_w.temperature_k, "")
+            if last_p is not None:
+                out = _apply(out, s, last_p.pressure_abs_pa, None, last_p.temperature_k, last_p.pressure_text)
+        if memo is not None:
+            memo.windows[where] = ((prof, latest), out)
+    for s, lt in zip(prof.supplies, latest, strict=True):
+        r = _with_live(journal, bench, s.id, lt)
         if r.live is not None and not (s.gas.sold_liquefied and s.gross is not None):
-            prof = _apply(prof, s, r.live.pressure_abs_pa, None, r.live.temperature_k, r.live.text)
-    return prof
+            out = _apply(out, s, r.live.pressure_abs_pa, None, r.live.temperature_k, r.live.text)
+    return out
 
 
 def profile_view(prof: Profile) -> ProfileView:

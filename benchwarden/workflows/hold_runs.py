@@ -144,8 +144,8 @@ def open_holds(journal: Journal | None, prof: Profile) -> list[OpenHold]:
             rows = journal.hold_starts(prof.bench.name, s.id)
             if not rows or rows[-1].finished_by is not None:
                 continue
-            changes = journal.changes(prof.bench.name, s.id)
-            if changes and dt.datetime.fromisoformat(changes[-1].at) > dt.datetime.fromisoformat(rows[-1].at):
+            change = journal.latest_change(prof.bench.name, s.id)
+            if change is not None and dt.datetime.fromisoformat(change.at) > dt.datetime.fromisoformat(rows[-1].at):
                 continue
             out.append(_open(rows[-1]))
     except JournalError:

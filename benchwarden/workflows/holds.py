@@ -17,11 +17,13 @@ from typing import TYPE_CHECKING
 from benchwarden.core.uncertainty import GaugeSpec
 from benchwarden.errors import PA_DIFF, InputError, JournalError, RangeError
 from benchwarden.storage.journal import HoldRow, Journal
+from benchwarden.workflows.kept import HOLD_KINDS, kept_bench_figure
 
 if TYPE_CHECKING:  # the findings and the hold test's core load when first used (the app draws first)
     from benchwarden.core.hold import HoldResult
     from benchwarden.storage.profile import Gauge, Supply
     from benchwarden.workflows.findings import Finding
+    from benchwarden.workflows.model import Memo
 
 __all__ = ["gauge_spec", "profile_gauge_spec", "source_gauge_spec", "supply_target_sccm", "reading_step_pa", "HoldRecord",
            "record_of", "store", "LastHold", "last_hold_test", "hold_finding", "JudgedHold",
@@ -183,16 +185,23 @@ def _derived_from(row: HoldRow) -> tuple[int, ...]:
         return ()
 
 
-def judged_hold_tests(journal: Journal, bench: str) -> list[JudgedHold]:
+def judged_hold_tests(journal: Journal, bench: str, memo: Memo | None = None) -> list[JudgedHold]:
     """Every hold test of the bench, oldest first, each judged: withdrawn (a struck reading) or
-    from an earlier cylinder. The one rule every output takes (status, checklist, history)."""
+    from an earlier cylinder. The one rule every output takes (status, checklist, history).
+    With a ``memo`` (the app's) the list is kept until a hold test, a strike or a cylinder change
+    is recorded on the bench (:func:`benchwarden.workflows.kept.kept_bench_figure`)."""
+    return list(kept_bench_figure(memo, journal, bench, "judged-hold-tests", HOLD_KINDS,
+                                  lambda: _judged_hold_tests(journal, bench)))
+
+
+def _judged_hold_tests(journal: Journal, bench: str) -> list[JudgedHold]:
     rows = journal.hold_tests(bench)
     struck = {rd.id: rd.struck_reason or "struck out" for rd in journal.struck_readings(bench)}
     last_change: dict[str, str] = {}
     for sid in {r.supply_id for r in rows if r.supply_id}:
-        changes = journal.changes(bench, sid)
-        if changes:
-            last_change[sid] = changes[-1].at
+        latest = journal.latest_change(bench, sid)
+        if latest is not None:
+            last_change[sid] = latest.at
     out: list[JudgedHold] = []
     for r in rows:
         hit = [i for i in _derived_from(r) if i in struck]
@@ -203,13 +212,13 @@ def judged_hold_tests(journal: Journal, bench: str) -> list[JudgedHold]:
     return out
 
 
-def last_hold_test(journal: Journal | None, bench: str, now: dt.datetime) -> LastHold | None:
+def last_hold_test(journal: Journal | None, bench: str, now: dt.datetime, memo: Memo | None = None) -> LastHold | None:
     """The latest hold test filed under ``bench`` that still counts (not withdrawn, not from an
     earlier cylinder); None without a journal, such a test, or when the journal cannot be read."""
     if journal is None:
         return None
     try:
-        counting = [h.row for h in judged_hold_tests(journal, bench) if h.counts]
+        counting = [h.row for h in judged_hold_tests(journal, bench, memo) if h.counts]
     except JournalError:
         return None
     if not counting:
@@ -226,14 +235,14 @@ def last_hold_test(journal: Journal | None, bench: str, now: dt.datetime) -> Las
 LEAKING = ("leak", "likely-leak")
 
 
-def standing_leaks(journal: Journal | None, bench: str) -> dict[str, float]:
+def standing_leaks(journal: Journal | None, bench: str, memo: Memo | None = None) -> dict[str, float]:
     """The leak rate [sccm] of each supply whose latest counting hold test on its current
     cylinder (two readings, an idle drop, a log or the leak watch) found a ``leak`` or a
     ``likely-leak``; the plan counts it as a draw."""
     if journal is None:
         return {}
     try:
-        judged = judged_hold_tests(journal, bench)
+        judged = judged_hold_tests(journal, bench, memo)
     except JournalError:
         return {}
     latest: dict[str, HoldRow] = {}

@@ -7,7 +7,6 @@ mark per supply says how far the readings were scanned.
 from __future__ import annotations
 
 import datetime as dt
-import json
 from dataclasses import dataclass
 
 from benchwarden.core import hold as hd
@@ -22,6 +21,8 @@ from benchwarden.workflows.holds import (
     store,
     supply_target_sccm,
 )
+from benchwarden.workflows.kept import is_kept, keep
+from benchwarden.workflows.model import Memo
 
 __all__ = ["IdleDrop", "idle_drops", "idle_drop_result", "idle_drop_counts", "unresolved_idle_drop",
            "record_idle_drops"]
@@ -74,18 +75,23 @@ def _new_drops(journal: Journal, prof: Profile, supply_id: str, now: dt.datetime
     """The idle drops that may be new since the last scan (see :func:`record_idle_drops`): the
     pairs each reading written since then forms with its neighbours on the current cylinder,
     and the pair that closes around each reading struck out since then. Returns them and the
-    newest reading id seen. The first scan of a supply reads its current cylinder once."""
+    journal's newest reading id when the scan began (every reading up to it was looked at, so
+    the next scan reads by id only what was written after: its cost is what changed, not the
+    history). The first scan of a supply reads its current cylinder once."""
     bench = prof.bench.name
     mark = journal.mark(bench, supply_id, "idle-drops")
+    newest = journal.last_reading_id()  # read first: a reading written meanwhile is after it
     if mark is None:
         rows = readings_since_change(journal, bench, supply_id, include_struck=True)
-        return idle_drops(journal, prof, supply_id, now), max((r.id for r in rows), default=0)
+        return idle_drops(journal, prof, supply_id, now), max([newest] + [r.id for r in rows])
     last_id, scanned_at = mark
     change = current_change(journal, bench, supply_id)
     since = change.at if change is not None else ""
     fresh = journal.readings_after(bench, supply_id, last_id)
     touched = [r for r in fresh if not r.struck and r.pressure_abs_pa is not None and r.at >= since]
     touched += [r for r in journal.struck_readings(bench, supply_id, scanned_at) if r.at >= since]
+    if not touched:
+        return [], max([last_id, newest] + [r.id for r in fresh])
     sessions = _Sessions(journal, bench, now)
     pairs: dict[str, IdleDrop] = {}
     for r in touched:
@@ -99,8 +105,7 @@ def _new_drops(journal: Journal, prof: Profile, supply_id: str, now: dt.datetime
         for a, b in candidates:
             if _is_idle(sessions, a, b):
                 pairs[f"{a.id}-{b.id}"] = IdleDrop(supply_id, a, b)
-    newest = max([last_id] + [r.id for r in fresh])
-    return list(pairs.values()), newest
+    return list(pairs.values()), max([last_id, newest] + [r.id for r in fresh])
 
 
 def idle_drop_result(prof: Profile, drop: IdleDrop) -> hd.HoldResult:
@@ -149,25 +154,32 @@ def unresolved_idle_drop(journal: Journal | None, prof: Profile, supply_id: str,
     return None if idle_drop_counts(r) else r
 
 
-def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) -> list[HoldRecord]:
+def _stored_drops(journal: Journal, bench: str, supply_id: str, drops: list[IdleDrop]) -> set[str]:
+    """The keys of those idle drops already stored as hold tests (a drop's test is filed at its
+    last reading's time: those from two days before the earliest drop's first reading are read,
+    so that times with other offsets still sort after it in text)."""
+    first = min(stamp(d.first.at) for d in drops)
+    return journal.idle_drop_keys(bench, supply_id, (first.date() - dt.timedelta(days=2)).isoformat())
+
+
+def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime,
+                      memo: Memo | None = None) -> list[HoldRecord]:
     """Turn every new idle drop of every supply into a stored hold test (once each, and only
     when it counts: :func:`idle_drop_counts`); returns the new records. Incremental: only the
-    readings written or struck out since the last call are looked at (a mark per supply)."""
+    readings written or struck out since the last call are looked at (a mark per supply); with
+    a ``memo`` (the app's), a supply whose record did not change since its last scan is not
+    looked at (:func:`benchwarden.workflows.kept.is_kept`)."""
     if journal is None:
         return []
-    done = set()
-    for h in journal.hold_tests(prof.bench.name):
-        if h.kind == "idle-drop" and h.details:
-            try:
-                done.add(json.loads(h.details).get("idle_drop"))
-            except ValueError:
-                continue
     new: list[HoldRecord] = []
     scanned_at = now.isoformat(timespec="seconds")
     for s in prof.supplies:
         if s.gas.sold_liquefied and s.gross is not None:
             continue  # a liquefied gas's pressure is its vapour pressure: no hold test from it
+        if is_kept(memo, journal, prof.bench.name, s.id, "idle-drops", None):
+            continue
         drops, newest = _new_drops(journal, prof, s.id, now)
+        done = _stored_drops(journal, prof.bench.name, s.id, drops) if drops else set()
         for drop in drops:
             if drop.key in done:
                 continue
@@ -180,6 +192,7 @@ def record_idle_drops(journal: Journal | None, prof: Profile, now: dt.datetime) 
         mark = journal.mark(prof.bench.name, s.id, "idle-drops")
         if mark is None or mark[0] != newest or drops:
             journal.set_mark(prof.bench.name, s.id, "idle-drops", newest, scanned_at)
+        keep(memo, journal, prof.bench.name, s.id, "idle-drops", None)
     return new
 
 

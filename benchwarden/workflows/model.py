@@ -230,6 +230,14 @@ class Memo:
     def __init__(self, limit: int = 2000) -> None:
         self.limit = limit
         self.values: dict[tuple[Any, ...], Any] = {}
+        #: figures derived from a bench's record, per (journal, bench, supply, what): (inputs,
+        #: value), and per (journal, bench) the newest event they account for (see
+        #: :func:`benchwarden.workflows.kept.kept_figure`); one entry per supply and figure
+        self.kept: dict[tuple[str, str, str, str], tuple[Any, Any]] = {}
+        self.seen: dict[tuple[str, str], int] = {}
+        #: what a figure was last computed from, per (journal, bench, supply, what), for a figure
+        #: that itself reads what changed since (the consumption's window of readings)
+        self.windows: dict[tuple[str, str, str, str], tuple[Any, Any]] = {}
 
     def get(self, key: tuple[Any, ...], fn: Callable[..., Any], *args: Any, **kw: Any) -> Any:
         if key not in self.values:

@@ -138,7 +138,7 @@ class SessionState:
         from benchwarden.storage.profile import with_reading
         from benchwarden.workflows.bench import journal_state
         assert self.profile is not None
-        prof = journal_state(self.profile, self.journal, self.clock())
+        prof = journal_state(self.profile, self.journal, self.clock(), self._memo)
         for r in sorted(self.unsaved, key=lambda r: r.at):
             prof = with_reading(prof, r.supply_id, parse_pressure(f"{r.pressure_abs_pa} Pa(a)"), r.temperature_k)
         return prof
@@ -154,7 +154,7 @@ class SessionState:
         self.plan_at = latest or now
         prof = self.effective_profile()
         self.plan = pl.build_plan(prof, now=self.plan_at, start_at=self.plan_at,
-                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name), memo=self._memo)
+                                  leaks_sccm=standing_leaks(self.journal, prof.bench.name, self._memo), memo=self._memo)
         # retest and service dates, and when to order: the same rule as the plan and status
         orders = orders_of(prof, self.plan, self.journal, now, self._memo)
         self._life = life_findings(prof, now.date(), {k: (o.order_by, o.days_of_gas) for k, o in orders.items()})
@@ -372,7 +372,7 @@ class SessionState:
         """The bench's latest hold test in the journal (with its age now)."""
         if self.profile is None:
             return None
-        return last_hold_test(self.journal, self.profile.bench.name, self.clock())
+        return last_hold_test(self.journal, self.profile.bench.name, self.clock(), self._memo)
 
     def assessment(self) -> Assessment:
         """The bench now, as the command line's ``plan`` and ``checklist`` see it."""
