@@ -167,17 +167,23 @@ def _app_refresh(st) -> None:
 
 
 def _app_open(prof: Path, journal: Path, clock) -> float:
-    """The app opened on the journal: the journal's check on open, the profile and the first
-    figures (``load(plan=False)``, ``first_readings``), then the first refresh."""
-    from benchwarden.workflows.cylinder import first_readings
+    """The app opened on the journal as the overview opens it: the journal's check on open, the
+    first figures (from the profile's kept view, else the profile validated first), the profile
+    validated, then the first refresh."""
+    from benchwarden.workflows.cylinder import first_readings, profile_view
     from benchwarden.workflows.session import SessionState
 
     t = time.perf_counter()
     with Journal(journal) as j:
         st = SessionState(prof, j, clock)
-        st.load(plan=False)
-        assert st.profile is not None
-        first_readings(st.profile, j)
+        view = st.first_view()
+        if view is None:
+            st.load(plan=False)
+            assert st.profile is not None
+            view = profile_view(st.profile)
+        first_readings(view, j)
+        if st.profile is None:
+            st.load(plan=False)
         _app_refresh(st)
     return time.perf_counter() - t
 
@@ -185,7 +191,7 @@ def _app_open(prof: Path, journal: Path, clock) -> float:
 def _app_costs(prof: Path, journal: Path, start: dt.datetime) -> tuple[float, float, float]:
     """(first open, warm refresh with nothing changed, the refresh after a reading is recorded)
     [s], best of several; each new reading is 0.1 bar below the last, a minute after it."""
-    from benchwarden.workflows.cylinder import first_readings
+    from benchwarden.workflows.cylinder import first_readings, profile_view
     from benchwarden.workflows.session import SessionState
 
     at = [start]
@@ -200,7 +206,7 @@ def _app_costs(prof: Path, journal: Path, start: dt.datetime) -> tuple[float, fl
         st.load()
         warm = _best(lambda: _timed(lambda: _app_refresh(st)), n=20)
         assert st.profile is not None
-        gauge = first_readings(st.profile, j)["n2-A"] - st.profile.ambient_pa
+        gauge = first_readings(profile_view(st.profile), j)["n2-A"] - st.profile.ambient_pa
 
         def reading() -> float:
             nonlocal gauge
