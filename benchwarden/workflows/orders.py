@@ -157,9 +157,10 @@ def _kept_consumption(journal: Journal, prof: Profile, s: Supply, memo: Memo | N
     win = _window(journal, prof, s, memo, inputs)
     rows, changes = win.rows, win.changes
     change_at = [at for _, at in changes]
+    # a reading is never changed once written (a strike leaves the window, a correction is a new
+    # reading), so its id stands for its time and values: the key costs no float's text
     key = hashlib.sha256(repr((_METHOD, s.gas.key, s.water_volume, s.tare, change_at, s.gauge,
-                               [(r.id, r.at, r.pressure_abs_pa, r.temperature_k, r.weight_kg) for r in rows])
-                              ).encode()).hexdigest()
+                               [r.id for r in rows])).encode()).hexdigest()
     seq_key = key if win.seq is None else f"{key}@{win.seq}@{inputs_key}"
     kept = journal.derived(prof.bench.name, supply_id, "consumption")
     if kept is not None and kept[0].split("@")[0] == key:
