@@ -192,3 +192,26 @@ def test_a_fall_the_gauge_cannot_resolve_sets_no_order_date(capsys, journal):
     assert code == 0, err
     sup = next(s for s in status(capsys, DEMO, journal)["supplies"] if s["id"] == "n2-A")
     assert sup["order_by"] is not None
+
+
+def test_a_cylinder_change_fill_is_not_struck_out_alone(capsys, journal):
+    # Regression: striking the fill reading of a swap left the change's own copy of the fill
+    # counting (198 bar) while status named the profile as its source.
+    run(capsys, "reading", DEMO, "n2-A", "--pressure", "146 bar", "--at", "2026-11-28T08:05", "--journal", journal)
+    assert run(capsys, "swap", DEMO, "n2-A", "--pressure", "198 bar", "--at", "2026-11-28T08:10",
+               "--journal", journal)[0] == 0
+    fill = status(capsys, DEMO, journal)["supplies"][0]["last_reading_id"]
+    code, out, err = run(capsys, "strike", DEMO, str(fill), "--reason", "typed 198 for 189", "--journal", journal)
+    assert code == 2 and out == "" and err.count("\n") == 1 and "fill of the cylinder change" in err
+    s = status(capsys, DEMO, journal)["supplies"][0]
+    assert s["pressure_gauge_pa"] == pytest.approx(198e5) and s["reading_source"] == "cylinder change"
+    # the way out it names: the change recorded again with the right fill takes its place
+    assert run(capsys, "swap", DEMO, "n2-A", "--pressure", "189 bar", "--at", "2026-11-28T08:12",
+               "--journal", journal)[0] == 0
+    s = status(capsys, DEMO, journal)["supplies"][0]
+    assert s["pressure_gauge_pa"] == pytest.approx(189e5) and s["reading_source"] == "cylinder change"
+    # an ordinary reading of the new cylinder is struck out as before
+    run(capsys, "reading", DEMO, "n2-A", "--pressure", "188 bar", "--at", "2026-11-28T09:00", "--journal", journal)
+    rid = status(capsys, DEMO, journal)["supplies"][0]["last_reading_id"]
+    assert run(capsys, "strike", DEMO, str(rid), "--reason", "wrong gauge", "--journal", journal)[0] == 0
+    assert status(capsys, DEMO, journal)["supplies"][0]["pressure_gauge_pa"] == pytest.approx(189e5)

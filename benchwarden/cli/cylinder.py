@@ -213,10 +213,7 @@ def cmd_strike(args: argparse.Namespace) -> int:
     if not reason:
         raise input_error("--reason must say why the reading is struck out")
     with _open(args) as j:
-        ids = {r.id for s in prof.supplies for r in j.supply_readings(prof.bench.name, s.id)}
-        if args.reading_id not in ids:
-            raise input_error(f"no reading {args.reading_id} of bench {prof.bench.name!r} in the journal")
-        j.strike_reading(args.reading_id, now.isoformat(timespec="seconds"), reason)
+        cy.strike(j, prof, args.reading_id, reason, now)
     print(f"reading {args.reading_id} struck out ({reason}); it stays in the journal, marked")
     return 0
 

@@ -308,12 +308,11 @@ class SessionState:
 
     def strike(self, reading_id: int, reason: str) -> None:
         """Strike a reading out (kept, marked, with the reason)."""
+        from benchwarden.workflows.cylinder import strike
         if self.journal is None:
             raise JournalError("no journal")
-        reason = check_text(reason, "reason", 200)
-        if not reason:
-            raise InputError("say why the reading is struck out")
-        self.journal.strike_reading(reading_id, self.clock().isoformat(timespec="seconds"), reason)
+        assert self.profile is not None
+        strike(self.journal, self.profile, reading_id, reason, self.clock())
         for rs in self.readings.values():
             rs[:] = [r for r in rs if r.journal_id != reading_id]
 
