@@ -17,8 +17,8 @@ def _isolated_journal(tmp_path, monkeypatch):
 
 
 #: Interface tests (the app, the command line end to end, subprocesses, files on disk); the core
-#: tier (`uv run pytest -m "not slow"`) runs without them in a few seconds.
-SLOW_MODULES = {"test_app", "test_app_life", "test_one_truth", "test_journal", "test_cli", "test_checklist",
+#: tier (`uv run pytest -m "not slow"`) runs without them in under a minute.
+SLOW_MODULES = {"test_app", "test_app_life", "test_app_stops", "test_one_truth", "test_journal", "test_cli", "test_checklist",
                 "test_bad_input", "test_hardening", "test_cylinder_life", "test_generated_bad_input",
                 "test_around_session", "test_sources", "test_live", "test_hazard_benches"}
 

@@ -30,6 +30,7 @@ from benchwarden.units.limits import EARLIEST_RECORD, RETEST_HORIZON_YEARS, with
 from benchwarden.units.quantities import check_text
 from benchwarden.workflows import computations as comp
 from benchwarden.workflows import cylinder as cy
+from benchwarden.workflows import cylinders
 from benchwarden.workflows.bench import assess
 from benchwarden.workflows.importing import MAX_IMPORT_BYTES, import_readings
 from benchwarden.workflows.status import RECENT_ALARMS_S, seconds, status_document
@@ -213,7 +214,7 @@ def cmd_strike(args: argparse.Namespace) -> int:
     if not reason:
         raise input_error("--reason must say why the reading is struck out")
     with _open(args) as j:
-        cy.strike(j, prof, args.reading_id, reason, now)
+        cylinders.strike(j, prof, args.reading_id, reason, now)
     print(f"reading {args.reading_id} struck out ({reason}); it stays in the journal, marked")
     return 0
 

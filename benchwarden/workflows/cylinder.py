@@ -41,7 +41,6 @@ if TYPE_CHECKING:  # the profile's models load with the plan: the first frame ne
 __all__ = ["stamp", "Entry", "Question", "current_change", "readings_since_change", "last_reading", "journal_profile",
            "check_reading", "check_limits", "questions_after", "record_reading", "record_change", "parse_at",
            "latest_state", "live_is_state", "LatestSample", "Recorded", "recorded", "profile_view", "first_readings",
-           "strike",
            "ProfileView"]
 
 #: Temperatures a cylinder reading may carry [K] (−73 °C to 77 °C): beyond, the unit slipped.
@@ -409,26 +408,6 @@ def questions_after(prof: Profile, prev: Entry, entry: Entry, planned_kg_s: floa
             out.append(Question("fast-drop", {"previous_abs_pa": p0, "pressure_abs_pa": p1, "hours": hours,
                                               "observed_kg_s": rate, "planned_kg_s": planned_kg_s}))
     return out
-
-
-def strike(journal: Journal, prof: Profile, reading_id: int, reason: str, now: dt.datetime) -> ReadingRow:
-    """Strike a reading of the bench out (kept, marked, with the reason); it then takes part in
-    no figure. A cylinder change's fill is refused: the change keeps its own copy of the fill, so
-    the reading struck alone would leave the fill counting (record the change again instead)."""
-    reason = check_text(reason, "reason", 200)
-    if not reason:
-        raise InputError("say why the reading is struck out")
-    row = next((r for s in prof.supplies for r in journal.supply_readings(prof.bench.name, s.id) if r.id == reading_id),
-               None)
-    if row is None:
-        raise InputError(f"no reading {reading_id} of bench {prof.bench.name!r} in the journal")
-    if any(c.at == row.at and c.pressure_abs_pa == row.pressure_abs_pa and c.weight_kg == row.weight_kg
-           for c in journal.changes(prof.bench.name, row.supply_id)):
-        raise InputError(f"reading {reading_id} is the fill of the cylinder change of {row.supply_id} at "
-                         f"{row.at[:16].replace('T', ' ')}: the change keeps its fill, so it is not struck out "
-                         "alone; record the change again with the right fill (swap), which takes its place")
-    journal.strike_reading(reading_id, now.isoformat(timespec="seconds"), reason)
-    return row
 
 
 def record_reading(journal: Journal, prof: Profile, entry: Entry, session_id: int | None, now: dt.datetime) -> int:

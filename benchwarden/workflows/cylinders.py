@@ -1,6 +1,7 @@
 """Each supply's cylinders as the record shows them, one after another, with what each one gave:
 label, fill, from–to, the readings on it, the gas it gave (real gas), its hold tests and its
-retest date.
+retest date; and a reading struck out of that record (:func:`strike`, for the command line and
+the app alike).
 """
 
 from __future__ import annotations
@@ -9,11 +10,12 @@ import datetime as dt
 from dataclasses import dataclass
 
 from benchwarden.core import gas as g
-from benchwarden.errors import BenchwardenError, JournalError
+from benchwarden.errors import BenchwardenError, InputError, JournalError
 from benchwarden.storage.journal import Journal, ReadingRow
 from benchwarden.storage.profile import Profile, Supply
+from benchwarden.units.quantities import check_text
 
-__all__ = ["CylinderLife", "cylinder_lives"]
+__all__ = ["CylinderLife", "cylinder_lives", "strike"]
 
 
 @dataclass(frozen=True)
@@ -83,3 +85,23 @@ def cylinder_lives(journal: Journal | None, prof: Profile, supply_id: str) -> li
         out.append(CylinderLife(s.id, c.label if c else None, fill, lo if c else (rows[0].at if rows else None), hi,
                                 len(rows), _used(s, rows), sum(1 for h in holds if inside(h.at)), retest))
     return out
+
+
+def strike(journal: Journal, prof: Profile, reading_id: int, reason: str, now: dt.datetime) -> ReadingRow:
+    """Strike a reading of the bench out (kept, marked, with the reason); it then takes part in
+    no figure. A cylinder change's fill is refused: the change keeps its own copy of the fill, so
+    the reading struck alone would leave the fill counting (record the change again instead)."""
+    reason = check_text(reason, "reason", 200)
+    if not reason:
+        raise InputError("say why the reading is struck out")
+    row = next((r for s in prof.supplies for r in journal.supply_readings(prof.bench.name, s.id) if r.id == reading_id),
+               None)
+    if row is None:
+        raise InputError(f"no reading {reading_id} of bench {prof.bench.name!r} in the journal")
+    if any(c.at == row.at and c.pressure_abs_pa == row.pressure_abs_pa and c.weight_kg == row.weight_kg
+           for c in journal.changes(prof.bench.name, row.supply_id)):
+        raise InputError(f"reading {reading_id} is the fill of the cylinder change of {row.supply_id} at "
+                         f"{row.at[:16].replace('T', ' ')}: the change keeps its fill, so it is not struck out "
+                         "alone; record the change again with the right fill (swap), which takes its place")
+    journal.strike_reading(reading_id, now.isoformat(timespec="seconds"), reason)
+    return row

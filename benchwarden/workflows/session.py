@@ -308,7 +308,7 @@ class SessionState:
 
     def strike(self, reading_id: int, reason: str) -> None:
         """Strike a reading out (kept, marked, with the reason)."""
-        from benchwarden.workflows.cylinder import strike
+        from benchwarden.workflows.cylinders import strike
         if self.journal is None:
             raise JournalError("no journal")
         assert self.profile is not None

@@ -41,7 +41,7 @@ class ReadingScreen(TypeAhead, ModalScreen[Reading | None]):
             yield Label("Supply", classes="field-label")
             yield Select([(s.id, s.id) for s in st.profile.supplies], value=first, allow_blank=False, id="supply",
                          compact=True)
-            yield field("Gauge pressure (142 bar, 2050 psi; bar(a) absolute) or gross weight (74.1 kg)", "pressure",
+            yield field("Gauge pressure (142 bar, 2060 psi; bar(a) absolute) or gross weight (74.1 kg)", "pressure",
                         placeholder="142 bar")
             yield field("Cylinder temperature", "temperature", self._last_temperature(first))
             yield field("Time: now, 18:05 (its latest past one), yesterday 18:05, 2026-12-01 09:30", "time", "now")
