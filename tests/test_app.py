@@ -327,3 +327,22 @@ async def test_the_graph_plots_in_the_overviews_pressure_unit(journal_path, tmp_
         reserve_psig = (s.reserve_abs_pa - app.state.plan.ambient_pa) / 6894.757
         assert screen.units.gauge_value(s.reserve_abs_pa) == pytest.approx(reserve_psig, rel=1e-6)
         assert "bar(g)" not in str(screen.query_one("#graph-title").render())
+
+
+async def test_a_gap_row_adds_up_to_the_part_it_is_judged_against(journal_path):
+    # Regression: the row showed the gap's firing voltage now (18.6 kV) beside the margin taken at
+    # the reserve (+2.2 kV against 21.0 kV, i.e. 18.8 kV), which did not add up.
+    app = make_app(None, journal_path, clock=Clock())
+    async with app.run_test(size=(120, 40)) as pilot:
+        await _ready(app, pilot)
+        table = app.screen.query_one("#draws")
+        checked = 0
+        for d in app.state.plan.draws:
+            if d.gap is None:
+                continue
+            w = min(list(d.gap.margins_start) + list(d.gap.margins_reserve), key=lambda m: m.margin_kv)
+            fires, margin = (str(table.get_cell(d.id, k)) for k in ("kv", "margin"))
+            assert float(fires.split()[0]) + float(margin.split()[0]) == pytest.approx(w.withstand_kv, abs=0.11)
+            assert margin.endswith(w.status)  # the severity in words, whole at 120 columns
+            checked += 1
+        assert checked == 2  # the demo's main and trigger gaps

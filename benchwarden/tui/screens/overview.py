@@ -278,8 +278,9 @@ class OverviewScreen(OverviewActions):
             if d.gap is not None:
                 kv = f"{d.gap.breakdown_start_kv:.1f} kV"
                 ms = list(d.gap.margins_start) + list(d.gap.margins_reserve)
-                if ms:
+                if ms:  # the row adds up: the firing voltage the smallest margin is taken against
                     w = min(ms, key=lambda m: m.margin_kv)
+                    kv = f"{w.firing_kv:.1f} kV" if math.isfinite(w.firing_kv) else kv
                     margin = f"{w.margin_kv:+.1f} kV {w.status}"
             rows.append(("draws", d.id, d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin))
         if rows != self._rows:  # only what changed is redrawn (idle CPU): the cells, or the tables when rows differ
