@@ -276,11 +276,10 @@ class OverviewScreen(OverviewActions):
         for d in st.plan.draws:
             kv = margin = "—"
             if d.gap is not None:
-                kv = f"{d.gap.breakdown_start_kv:.1f} kV"
-                ms = list(d.gap.margins_start) + list(d.gap.margins_reserve)
-                if ms:  # the row adds up: the firing voltage the smallest margin is taken against
-                    w = min(ms, key=lambda m: m.margin_kv)
-                    kv = f"{w.firing_kv:.1f} kV" if math.isfinite(w.firing_kv) else kv
+                w = min([*d.gap.margins_start, *d.gap.margins_reserve], key=lambda m: m.margin_kv, default=None)
+                fires = w.firing_kv if w is not None and math.isfinite(w.firing_kv) else d.gap.breakdown_start_kv
+                kv = f"{fires:.1f} kV"  # what the smallest margin is taken against (the row adds up), else now
+                if w is not None:
                     margin = f"{w.margin_kv:+.1f} kV {w.status}"
             rows.append(("draws", d.id, d.id, d.kind, f"{d.standard_flow_slpm:.3g} slpm", kv, margin))
         if rows != self._rows:  # only what changed is redrawn (idle CPU): the cells, or the tables when rows differ
