@@ -90,7 +90,7 @@ def cmd_push(args: argparse.Namespace) -> int:
     from benchwarden.workflows.lab import push
 
     prof = comp.load_profile(args.profile)
-    text = comp.read_text_file(args.profile, "bench profile (.toml)", comp.MAX_PROFILE_BYTES)
+    text = comp.read_profile_text(args.profile)
     now = dt.datetime.now().astimezone().replace(microsecond=0)
     try:
         with comp.Journal(comp.default_path(getattr(args, "journal", None))) as j:

@@ -50,6 +50,7 @@ from benchwarden.storage.profile_view import (  # noqa: F401 - re-exported: the 
     MAX_PROFILE_BYTES,
     demo_profile_path,
     demo_profile_text,
+    read_profile_text,
     read_text_file,
 )
 
@@ -223,7 +224,7 @@ def parse_profile(text: str, source: str = "<profile>") -> Profile:
 
 def load_profile(path: str | Path) -> Profile:
     """Load a bench profile file."""
-    return parse_profile(read_text_file(path, "bench profile (.toml)", MAX_PROFILE_BYTES), str(path))
+    return parse_profile(read_profile_text(path), str(path))
 
 
 def with_reading(prof: Profile, supply_id: str, pressure: u.Pressure, temperature_k: float) -> Profile:

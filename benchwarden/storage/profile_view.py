@@ -31,7 +31,7 @@ from benchwarden.errors import BenchwardenError, ProfileError
 if TYPE_CHECKING:
     from benchwarden.storage.journal import Journal
 
-__all__ = ["MAX_PROFILE_BYTES", "DEMO_NAME", "demo_profile_path", "demo_profile_text", "read_text_file",
+__all__ = ["MAX_PROFILE_BYTES", "DEMO_NAME", "demo_profile_path", "demo_profile_text", "read_text_file", "read_profile_text",
            "SupplyView", "ProfileView", "VIEW_FORMAT", "kept_view", "keep_view"]
 
 #: The largest bench profile or file a profile names (a checklist's items) read [bytes].
@@ -72,6 +72,12 @@ def read_text_file(path: str | Path, what: str, limit: int) -> str:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError:
         raise ProfileError(f"{path}: not UTF-8 text; give a {what}") from None
+
+
+def read_profile_text(path: str | Path) -> str:
+    """The text of a bench profile file (:func:`read_text_file` with the profile's limit): what
+    is validated, and what a kept view's key is taken from."""
+    return read_text_file(path, "bench profile (.toml)", MAX_PROFILE_BYTES)
 
 
 @dataclass(frozen=True)
@@ -152,7 +158,7 @@ def kept_view(journal: Journal | None, path: str | Path) -> ProfileView | None:
         kept = journal.derived("", "", _what(path))
         if kept is None:
             return None
-        text = read_text_file(path, "bench profile (.toml)", MAX_PROFILE_BYTES)
+        text = read_profile_text(path)
     except (BenchwardenError, OSError):
         return None
     return ProfileView.from_json(kept[1]) if kept[0] == _key(text) else None

@@ -39,6 +39,7 @@ if TYPE_CHECKING:  # the names as mypy sees them; at run time each loads when fi
         Profile,
         demo_profile_path,
         load_profile,
+        read_profile_text,
         read_text_file,
     )
 
@@ -47,7 +48,7 @@ __all__ = [
     "U_T_DEFAULT", "GaugeSpec", "HoldResult", "LogFit", "hold_from_log", "hold_two_readings", "line_volume",
     "target_sccm", "cycle_purge", "flush", "throttle", "contents", "contents_by_weight", "heat_up", "mass_flow",
     "runtime", "Cylinder", "serve", "parse_log", "Journal", "default_path", "open_journal", "Profile",
-    "demo_profile_path", "load_profile", "read_text_file", "MAX_PROFILE_BYTES",
+    "demo_profile_path", "load_profile", "read_text_file", "read_profile_text", "MAX_PROFILE_BYTES",
 ]
 
 #: name → module it comes from (imported when first used: `--help` and a quick command stay fast)
@@ -86,6 +87,7 @@ _WHERE: dict[str, str] = {
     "Profile": "benchwarden.storage.profile",
     "demo_profile_path": "benchwarden.storage.profile_view",
     "read_text_file": "benchwarden.storage.profile_view",
+    "read_profile_text": "benchwarden.storage.profile_view",
     "MAX_PROFILE_BYTES": "benchwarden.storage.profile_view",
     "load_profile": "benchwarden.storage.profile",
 }

@@ -107,11 +107,11 @@ class SessionState:
 
     def _validated(self) -> Profile:
         """The profile, validated; what the first frame needs of it is kept for the next start."""
-        from benchwarden.storage.profile import MAX_PROFILE_BYTES, parse_profile, read_text_file
-        from benchwarden.storage.profile_view import keep_view
+        from benchwarden.storage.profile import parse_profile
+        from benchwarden.storage.profile_view import keep_view, read_profile_text
         from benchwarden.workflows.cylinder import profile_view
 
-        text = read_text_file(self.profile_path, "bench profile (.toml)", MAX_PROFILE_BYTES)
+        text = read_profile_text(self.profile_path)
         prof = parse_profile(text, str(self.profile_path))
         keep_view(self.journal, self.profile_path, text, profile_view(prof))
         return prof
